@@ -1,0 +1,199 @@
+"""The whole comparison in one call: summaries, checks, advice, every procedure, effect sizes.
+
+``analyze`` is what the headless command and the window both run. It is the only place that
+knows the list of procedures, so adding one means adding it here (see DEVELOPERS.md).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from typing import Any, Callable, Mapping
+
+import numpy as np
+
+from .errors import Cancelled, OptionProblem
+from .results import ALTERNATIVES, EffectSize, GroupSummary, Groups, Interval, ProcedureResult, frozen_mapping
+from .summary import summarize
+
+__all__ = ["Options", "RobustnessRow", "Robustness", "Analysis", "analyze", "PROCEDURE_NAMES"]
+
+Progress = Callable[[float, str], None]
+CancelCheck = Callable[[], bool]
+
+# Plain names for every procedure key the engine knows, in the order they are shown.
+PROCEDURE_NAMES: Mapping[str, str] = frozen_mapping({
+    "welch_t": "Welch t-test",
+    "pooled_t": "pooled t-test",
+    "z": "z-test with known SDs",
+    "mann_whitney": "Mann-Whitney U with Hodges-Lehmann shift",
+    "permutation_mean": "permutation test, difference in means",
+    "permutation_median": "permutation test, difference in medians",
+    "bootstrap_mean": "bootstrap interval, difference in means",
+    "bootstrap_median": "bootstrap interval, difference in medians",
+})
+
+
+@dataclass(frozen=True)
+class Options:
+    """The user's choices that shape the analysis (not the data)."""
+
+    alternative: str = "two-sided"
+    confidence_level: float = 0.95
+    n_resamples: int = 10_000
+    seed: int | None = None
+    known_sd: tuple[float, float] | None = None
+    equal_spread_known: bool = False
+    ordinal: bool = False
+    rank_method: str = "auto"  # "auto", "exact" or "normal" for the Mann-Whitney p-value
+
+    def __post_init__(self) -> None:
+        _check_options(self)
+
+
+def _check_options(options: Options) -> None:
+    if options.alternative not in ALTERNATIVES:
+        raise OptionProblem(
+            f"The direction must be one of {', '.join(ALTERNATIVES)}, not '{options.alternative}'.")
+    if not 0.5 <= options.confidence_level < 1:
+        raise OptionProblem(
+            f"The confidence level must be at least 0.5 and below 1, not {options.confidence_level}.")
+    if options.n_resamples < 100:
+        raise OptionProblem(f"Use at least 100 resamples, not {options.n_resamples}.")
+    if options.known_sd is not None and not all(np.isfinite(s) and s > 0 for s in options.known_sd):
+        raise OptionProblem("Known standard deviations must be positive numbers.")
+    if options.rank_method not in ("auto", "exact", "normal"):
+        raise OptionProblem(f"Unknown rank method '{options.rank_method}'.")
+
+
+@dataclass(frozen=True)
+class RobustnessRow:
+    key: str
+    name: str
+    estimate: float
+    estimate_name: str
+    interval: Interval
+    p_value: float | None
+    finds_difference: bool  # p below 1 - level, or the interval excludes zero when there is no p
+
+
+@dataclass(frozen=True)
+class Robustness:
+    """Every applicable procedure side by side, and whether they agree at the chosen level."""
+
+    rows: tuple[RobustnessRow, ...]
+    agree: bool
+    level: float
+
+
+@dataclass(frozen=True, eq=False)
+class Analysis:
+    groups: Groups
+    options: Options
+    summaries: tuple[GroupSummary, GroupSummary]
+    diagnostics: Any          # engine.diagnostics.Diagnostics
+    recommendation: Any       # engine.advice.Recommendation
+    procedures: Mapping[str, ProcedureResult]
+    effect_sizes: Mapping[str, EffectSize]
+    robustness: Robustness
+    screening: Any = None     # engine.io.ScreeningReport, when the groups came from a file
+    source: Mapping[str, Any] = field(default_factory=frozen_mapping)  # file name, sheet, columns
+
+    def __post_init__(self) -> None:
+        object.__setattr__(self, "procedures", frozen_mapping(self.procedures))
+        object.__setattr__(self, "effect_sizes", frozen_mapping(self.effect_sizes))
+        object.__setattr__(self, "source", frozen_mapping(self.source))
+
+    @property
+    def chosen(self) -> ProcedureResult | None:
+        """The recommended procedure's result."""
+        return self.procedures.get(self.recommendation.key)
+
+
+def _robustness(procedures: Mapping[str, ProcedureResult], level: float) -> Robustness:
+    rows = []
+    for key, result in procedures.items():
+        if result.p_value is not None:
+            finds = result.p_value < 1 - level
+        else:
+            finds = not result.interval.contains(0.0)
+        rows.append(RobustnessRow(key, result.name, result.estimate, result.estimate_name,
+                                  result.interval, result.p_value, bool(finds)))
+    verdicts = {row.finds_difference for row in rows}
+    return Robustness(tuple(rows), agree=len(verdicts) <= 1, level=level)
+
+
+def analyze(
+    groups: Groups,
+    options: Options = Options(),
+    *,
+    screening: Any = None,
+    source: Mapping[str, Any] | None = None,
+    progress: Progress | None = None,
+    cancelled: CancelCheck | None = None,
+) -> Analysis:
+    """Run every applicable procedure, the checks, the effect sizes and the recommendation.
+
+    ``progress(fraction, what)`` is called as the work advances; ``cancelled()`` is polled and a
+    True answer raises :class:`engine.errors.Cancelled`.
+    """
+    from . import advice, diagnostics, effects
+    from .procedures import ranks, resampling, t
+
+    x, y = groups.x, groups.y
+    report = progress or (lambda fraction, what: None)
+    stop = cancelled or (lambda: False)
+
+    def step(fraction: float, what: str) -> None:
+        if stop():
+            raise Cancelled()
+        report(fraction, what)
+
+    common = dict(alternative=options.alternative, confidence_level=options.confidence_level)
+    summaries = (summarize(groups.labels[0], x), summarize(groups.labels[1], y))
+    step(0.02, "checking shape and spread")
+    checks = diagnostics.diagnose(groups)
+    procedures: dict[str, ProcedureResult] = {}
+    step(0.08, "t procedures")
+    procedures["welch_t"] = t.welch_t(x, y, **common)
+    procedures["pooled_t"] = t.pooled_t(x, y, **common)
+    if options.known_sd is not None:
+        procedures["z"] = t.z_test(x, y, sd=options.known_sd, **common)
+    step(0.12, "rank procedure")
+    procedures["mann_whitney"] = ranks.mann_whitney(x, y, method=options.rank_method, **common,
+                                                    cancelled=stop)
+
+    rng = np.random.default_rng(options.seed)
+    resampled = [
+        ("permutation_mean", resampling.permutation_test, "mean"),
+        ("permutation_median", resampling.permutation_test, "median"),
+        ("bootstrap_mean", resampling.bootstrap_interval, "mean"),
+        ("bootstrap_median", resampling.bootstrap_interval, "median"),
+    ]
+    start, span = 0.2, 0.7 / len(resampled)
+    for i, (key, run, statistic) in enumerate(resampled):
+        begin = start + i * span
+        step(begin, PROCEDURE_NAMES[key])
+        procedures[key] = run(
+            x, y, statistic=statistic, n_resamples=options.n_resamples, rng=rng, **common,
+            progress=lambda f, b=begin: report(b + f * span, PROCEDURE_NAMES[key]),
+            cancelled=stop,
+        )
+    step(0.92, "effect sizes")
+    sizes = effects.all_effect_sizes(x, y, **common)
+    recommendation = advice.recommend(
+        checks, groups, equal_spread_known=options.equal_spread_known, ordinal=options.ordinal,
+        known_sd=options.known_sd,
+    )
+    step(1.0, "done")
+    return Analysis(
+        groups=groups,
+        options=options,
+        summaries=summaries,
+        diagnostics=checks,
+        recommendation=recommendation,
+        procedures=procedures,
+        effect_sizes=sizes,
+        robustness=_robustness(procedures, options.confidence_level),
+        screening=screening,
+        source=source or {},
+    )
