@@ -71,7 +71,7 @@ class RobustnessRow:
     name: str
     estimate: float
     estimate_name: str
-    interval: Interval
+    interval: Interval | None
     p_value: float | None
     finds_difference: bool  # p below 1 - level, or the interval excludes zero when there is no p
 
@@ -114,8 +114,10 @@ def _robustness(procedures: Mapping[str, ProcedureResult], level: float) -> Robu
     for key, result in procedures.items():
         if result.p_value is not None:
             finds = result.p_value < 1 - level
-        else:
+        elif result.interval is not None:
             finds = not result.interval.contains(0.0)
+        else:
+            continue
         rows.append(RobustnessRow(key, result.name, result.estimate, result.estimate_name,
                                   result.interval, result.p_value, bool(finds)))
     verdicts = {row.finds_difference for row in rows}

@@ -107,7 +107,8 @@ class ProcedureResult:
 
     ``estimate`` is the procedure's own estimate of the difference, group 1 minus group 2 (a
     difference in means, in medians, or the Hodges-Lehmann shift; ``estimate_name`` says which).
-    ``statistic`` and ``p_value`` are None for interval-only procedures (the bootstrap).
+    ``statistic`` and ``p_value`` are None for interval-only procedures (the bootstrap);
+    ``interval`` is None only where the procedure gives none (``method`` then says so).
     ``method`` names how the p-value and interval were found in plain words, e.g. "exact
     permutation distribution of the rank sum (ties kept as mid-ranks)". ``details`` holds other
     raw numbers (U, z, variances, the percentile interval of a bootstrap, ...). ``distribution``
@@ -123,7 +124,7 @@ class ProcedureResult:
     statistic_name: str | None
     df: float | None
     p_value: float | None
-    interval: Interval
+    interval: Interval | None
     alternative: str
     method: str
     details: Mapping[str, Any] = field(default_factory=frozen_mapping)
