@@ -1,0 +1,7 @@
+"""``python -m engine``: the headless command (see engine.cli)."""
+
+import sys
+
+from .cli import main
+
+sys.exit(main())

@@ -1,0 +1,158 @@
+"""The headless command: ``python -m engine analyze PATH ...``.
+
+Bad input ends with exit code 2 and one line on stderr; nothing else is printed then.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import sys
+from pathlib import Path
+from typing import Sequence, TextIO
+
+from .errors import TwofoldError
+
+__all__ = ["main", "build_parser"]
+
+EXIT_BAD_INPUT = 2
+
+
+class _Parser(argparse.ArgumentParser):
+    """An argument parser whose usage errors are one line and exit code 2."""
+
+    def error(self, message: str) -> None:  # noqa: D401 - argparse's hook
+        raise TwofoldError(f"{self.prog}: {message} (see --help)")
+
+
+def build_parser() -> argparse.ArgumentParser:
+    parser = _Parser(prog="python -m engine",
+                     description="Compare two independent groups of measurements from a data file.")
+    commands = parser.add_subparsers(dest="command", required=True, parser_class=_Parser)
+
+    analyze = commands.add_parser("analyze", help="run the whole comparison on a file")
+    analyze.add_argument("path", type=Path, help="a .csv, .tsv, .txt, .xlsx, .xls or .ods file")
+    analyze.add_argument("--value", action="append", metavar="COLUMN",
+                         help="the column of measurements; give it twice, once per group column, "
+                              "for a file with one column per group")
+    analyze.add_argument("--group", metavar="COLUMN", help="the column that says which group a row is in")
+    analyze.add_argument("--groups", nargs=2, metavar=("FIRST", "SECOND"),
+                         help="the two group labels to compare; every difference is FIRST minus SECOND")
+    analyze.add_argument("--sheet", help="the sheet of a workbook (default: the first)")
+    analyze.add_argument("--alternative", default="two-sided", choices=("two-sided", "less", "greater"),
+                         help="two-sided: do the groups differ; less/greater: is the first group lower/higher")
+    analyze.add_argument("--confidence", type=float, default=0.95, help="confidence level (default 0.95)")
+    analyze.add_argument("--resamples", type=int, default=10_000,
+                         help="resamples for the permutation and bootstrap procedures (default 10000)")
+    analyze.add_argument("--seed", type=int, default=None, help="seed for the resampling, for repeatable results")
+    analyze.add_argument("--known-sd", nargs=2, type=float, metavar=("SD1", "SD2"),
+                         help="population standard deviations known beforehand (adds the z procedure)")
+    analyze.add_argument("--equal-spreads-known", action="store_true",
+                         help="the spreads are known to be equal from prior knowledge")
+    analyze.add_argument("--ordinal", action="store_true", help="the values are ordered ratings, not measurements")
+    analyze.add_argument("--json", action="store_true", help="print one JSON object instead of a summary")
+
+    columns = commands.add_parser("columns", help="show the columns of a file and the suggested roles")
+    columns.add_argument("path", type=Path)
+    columns.add_argument("--sheet")
+    return parser
+
+
+def _load(args):
+    from . import io
+
+    table = io.read_table(args.path, sheet=args.sheet)
+    proposal = io.propose_layout(table)
+    values = args.value
+    group = args.group
+    if not values:
+        values = list(proposal.value_columns)
+        if group is None:
+            group = proposal.group_column
+    if len(values) == 1 and group is None:
+        group = proposal.group_column
+        if group is None:
+            raise TwofoldError(f"{args.path.name}: name the group column with --group, "
+                               "or give --value twice for one column per group.")
+    if len(values) >= 2 and group is None and len(values) != 2:
+        raise TwofoldError(f"{args.path.name}: give exactly two --value columns for one column per group.")
+    if len(values) > 1 and group is not None:
+        raise TwofoldError(f"{args.path.name}: with --group, give one --value column, not {len(values)}.")
+    value_arg = values[0] if group is not None else tuple(values)
+    intake = io.make_groups(table, values=value_arg, group=group,
+                            pick=tuple(args.groups) if args.groups else None)
+    source = {"file": args.path.name, "sheet": table.sheet, "group_column": group,
+              "value_columns": list(values)}
+    return table, intake, source
+
+
+def _analyze(args, out: TextIO) -> None:
+    from .analysis import Options, analyze
+    from .jsonout import analysis_document
+    from .report import render
+
+    _table, intake, source = _load(args)
+    options = Options(alternative=args.alternative, confidence_level=args.confidence,
+                      n_resamples=args.resamples, seed=args.seed,
+                      known_sd=tuple(args.known_sd) if args.known_sd else None,
+                      equal_spread_known=args.equal_spreads_known, ordinal=args.ordinal)
+    analysis = analyze(intake.groups, options, screening=intake.screening, source=source)
+    if args.json:
+        json.dump(analysis_document(analysis), out, indent=2, allow_nan=False)
+        out.write("\n")
+        return
+    out.write(_readable(analysis, render(analysis).plain))
+
+
+def _readable(analysis, report_text: str) -> str:
+    lines = [f"File: {analysis.source.get('file')}"]
+    for summary in analysis.summaries:
+        lines.append(f"  {summary.label}: n = {summary.n}, mean {summary.mean:.6g}, sd {summary.sd:.6g}, "
+                     f"median {summary.median:.6g}, range {summary.min:.6g} to {summary.max:.6g}")
+    screening = analysis.screening
+    if screening is not None:
+        for finding in screening.findings:
+            lines.append(f"  [{finding.severity}] {finding.text}")
+    lines.append("")
+    lines.append(report_text.rstrip())
+    lines.append("")
+    lines.append("All procedures side by side:")
+    for row in analysis.robustness.rows:
+        verdict = "finds a difference" if row.finds_difference else "finds no clear difference"
+        p = "" if row.p_value is None else f", p = {row.p_value:.4g}"
+        lines.append(f"  {row.name}: {row.estimate_name} {row.estimate:.6g}{p}; {verdict}")
+    lines.append("  They agree." if analysis.robustness.agree else "  They do not all agree: read the reasons above.")
+    return "\n".join(lines) + "\n"
+
+
+def _columns(args, out: TextIO) -> None:
+    from . import io
+
+    table = io.read_table(args.path, sheet=args.sheet)
+    proposal = io.propose_layout(table)
+    out.write(f"{args.path.name}: {len(table.frame)} rows")
+    out.write(f", sheet '{table.sheet}'\n" if table.sheet else "\n")
+    for name, kind in table.column_kinds.items():
+        out.write(f"  {name}: {kind}\n")
+    out.write(f"Suggested layout: {proposal.layout}; group column: {proposal.group_column}; "
+              f"value column(s): {', '.join(proposal.value_columns)}\n")
+    for reason in proposal.reasons:
+        out.write(f"  {reason}\n")
+
+
+def main(argv: Sequence[str] | None = None, *, out: TextIO | None = None, err: TextIO | None = None) -> int:
+    out = out or sys.stdout
+    err = err or sys.stderr
+    try:
+        args = build_parser().parse_args(argv)
+        if args.command == "analyze":
+            _analyze(args, out)
+        else:
+            _columns(args, out)
+    except TwofoldError as problem:
+        err.write(f"{problem.message}\n")
+        return EXIT_BAD_INPUT
+    except MemoryError:
+        err.write("The file is too large for the memory of this computer.\n")
+        return EXIT_BAD_INPUT
+    return 0

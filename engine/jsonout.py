@@ -1,0 +1,80 @@
+"""Plain JSON-ready structures from the engine's result objects."""
+
+from __future__ import annotations
+
+import dataclasses
+import math
+from collections.abc import Mapping
+from pathlib import Path
+from typing import Any
+
+import numpy as np
+
+__all__ = ["to_plain", "analysis_document", "intake_document"]
+
+# Arrays kept out of the JSON document: they can be long and are for plotting, not reporting.
+_LEFT_OUT = {"distribution", "qq_theoretical", "qq_observed"}
+
+
+def to_plain(value: Any) -> Any:
+    """Dataclasses, mappings, tuples and numpy scalars as dicts, lists and floats.
+
+    Non-finite floats become None (JSON has no NaN); numpy arrays become lists.
+    """
+    if dataclasses.is_dataclass(value) and not isinstance(value, type):
+        return {f.name: to_plain(getattr(value, f.name))
+                for f in dataclasses.fields(value) if f.name not in _LEFT_OUT}
+    if isinstance(value, Mapping):
+        return {str(k): to_plain(v) for k, v in value.items() if k not in _LEFT_OUT}
+    if isinstance(value, (list, tuple)):
+        return [to_plain(v) for v in value]
+    if isinstance(value, np.ndarray):
+        return [to_plain(v) for v in value.tolist()]
+    if isinstance(value, (bool, np.bool_)):
+        return bool(value)
+    if isinstance(value, (int, np.integer)):
+        return int(value)
+    if isinstance(value, (float, np.floating)):
+        value = float(value)
+        return value if math.isfinite(value) else None
+    if isinstance(value, Path):
+        return str(value)
+    return value
+
+
+def _summary(summaries) -> list[dict]:
+    return [to_plain(s) for s in summaries]
+
+
+def intake_document(intake) -> dict[str, Any]:
+    """The data part of the document: labels, counts, exclusions and summaries."""
+    from .summary import summarize
+
+    groups, screening = intake.groups, intake.screening
+    return {
+        "groups": list(groups.labels),
+        "n": list(groups.n),
+        "excluded": dict(to_plain(screening.excluded_counts)),
+        "summary": _summary((summarize(groups.labels[0], groups.x),
+                             summarize(groups.labels[1], groups.y))),
+        "screening": to_plain(screening),
+    }
+
+
+def analysis_document(analysis) -> dict[str, Any]:
+    """The whole analysis as one JSON-ready object (the headless command's ``--json``)."""
+    document: dict[str, Any] = {
+        "groups": list(analysis.groups.labels),
+        "n": list(analysis.groups.n),
+        "excluded": dict(to_plain(analysis.screening.excluded_counts)) if analysis.screening else {},
+        "summary": _summary(analysis.summaries),
+        "options": to_plain(analysis.options),
+        "procedures": to_plain(analysis.procedures),
+        "effect_sizes": to_plain(analysis.effect_sizes),
+        "diagnostics": to_plain(analysis.diagnostics),
+        "recommendation": to_plain(analysis.recommendation),
+        "robustness": to_plain(analysis.robustness),
+        "screening": to_plain(analysis.screening) if analysis.screening else None,
+        "source": to_plain(analysis.source),
+    }
+    return document
