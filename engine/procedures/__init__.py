@@ -1,0 +1,10 @@
+"""The procedures that compare two groups, one module per family.
+
+``t`` holds the z-test with known SDs, the pooled t-test and the Welch t-test; ``ranks`` holds the
+Mann-Whitney U test with the Hodges-Lehmann shift and its interval; ``resampling`` holds the
+permutation tests and bootstrap intervals. Each public function takes the two samples first
+(group 1, then group 2) and its options as keywords, and returns an
+:class:`engine.results.ProcedureResult`. ``_checks`` holds the input checks they share.
+"""
+
+__all__ = ["t", "ranks", "resampling"]
