@@ -1,0 +1,82 @@
+"""The whole analysis: every procedure present, progress, cancelling, option checks, robustness."""
+
+import numpy as np
+import pytest
+from scipy import stats
+
+from engine.analysis import PROCEDURE_NAMES, Options, analyze
+from engine.errors import Cancelled, OptionProblem
+from engine.results import Groups
+
+
+@pytest.fixture
+def groups():
+    rng = np.random.default_rng(7)
+    return Groups(("treated", "control"), rng.normal(12.0, 2.0, 40), rng.normal(10.5, 2.5, 35))
+
+
+def test_every_procedure_and_effect_size_is_there(groups):
+    analysis = analyze(groups, Options(n_resamples=500, seed=1))
+    expected = set(PROCEDURE_NAMES) - {"z"}
+    assert set(analysis.procedures) == expected
+    assert set(analysis.effect_sizes) == {"cohen_d", "hedges_g", "glass_delta", "rank_biserial", "common_language"}
+    assert analysis.recommendation.key in analysis.procedures
+    assert analysis.chosen is analysis.procedures[analysis.recommendation.key]
+
+
+def test_numbers_are_those_of_the_reference_library(groups):
+    analysis = analyze(groups, Options(n_resamples=500, seed=1, alternative="greater"))
+    # reference: scipy.stats.ttest_ind(x, y, equal_var=False, alternative="greater")
+    expected = stats.ttest_ind(groups.x, groups.y, equal_var=False, alternative="greater")
+    welch = analysis.procedures["welch_t"]
+    assert welch.p_value == pytest.approx(expected.pvalue, rel=1e-10)
+    assert welch.statistic == pytest.approx(expected.statistic, rel=1e-10)
+    assert welch.interval.high is None  # one-sided: the upper end is open
+    # reference: numpy mean and standard deviation with ddof=1
+    assert analysis.summaries[0].mean == pytest.approx(np.mean(groups.x), rel=1e-14)
+    assert analysis.summaries[1].sd == pytest.approx(np.std(groups.y, ddof=1), rel=1e-12)
+
+
+def test_known_sds_add_the_z_procedure(groups):
+    analysis = analyze(groups, Options(n_resamples=200, seed=1, known_sd=(2.0, 2.5)))
+    assert "z" in analysis.procedures
+    # reference: the z statistic (mean1 - mean2) / sqrt(s1^2/n1 + s2^2/n2) with the given sds
+    z = (groups.x.mean() - groups.y.mean()) / np.sqrt(4.0 / 40 + 6.25 / 35)
+    assert analysis.procedures["z"].statistic == pytest.approx(z, rel=1e-12)
+
+
+def test_progress_rises_to_one_and_cancel_stops(groups):
+    seen = []
+    analyze(groups, Options(n_resamples=300, seed=2), progress=lambda f, what: seen.append(f))
+    assert seen[-1] == 1.0
+    assert all(b >= a - 1e-12 for a, b in zip(seen, seen[1:]))
+    with pytest.raises(Cancelled):
+        analyze(groups, Options(n_resamples=300, seed=2), cancelled=lambda: True)
+
+
+def test_the_same_seed_gives_the_same_answer(groups):
+    first = analyze(groups, Options(n_resamples=300, seed=5))
+    again = analyze(groups, Options(n_resamples=300, seed=5))
+    assert first.procedures["permutation_mean"].p_value == again.procedures["permutation_mean"].p_value
+    assert first.procedures["bootstrap_mean"].interval == again.procedures["bootstrap_mean"].interval
+
+
+def test_robustness_rows_follow_the_chosen_level(groups):
+    analysis = analyze(groups, Options(n_resamples=300, seed=3, confidence_level=0.99))
+    for row in analysis.robustness.rows:
+        result = analysis.procedures[row.key]
+        if result.p_value is not None:
+            assert row.finds_difference == (result.p_value < 0.01)
+    verdicts = {row.finds_difference for row in analysis.robustness.rows}
+    assert analysis.robustness.agree == (len(verdicts) == 1)
+
+
+@pytest.mark.parametrize("options, message", [
+    (dict(alternative="bigger"), "direction"),
+    (dict(confidence_level=1.2), "confidence level"),
+    (dict(n_resamples=5), "at least 100"),
+    (dict(known_sd=(1.0, -2.0)), "positive"),
+])
+def test_bad_options_are_refused_with_a_sentence(options, message):
+    with pytest.raises(OptionProblem, match=message):
+        Options(**options)
