@@ -12,10 +12,16 @@ from typing import Any, Callable, Mapping
 import numpy as np
 
 from .errors import Cancelled, OptionProblem
-from .results import ALTERNATIVES, EffectSize, GroupSummary, Groups, Interval, ProcedureResult, frozen_mapping
+from .results import (ALTERNATIVES, EffectSize, Finding, GroupSummary, Groups, Interval, ProcedureResult,
+                      frozen_mapping)
 from .summary import summarize
 
 __all__ = ["Options", "RobustnessRow", "Robustness", "Analysis", "analyze", "PROCEDURE_NAMES"]
+
+# Above this many values in all, resampling is left out (and the user told why): the large-sample
+# procedures are then accurate, and 10,000 resamples of millions of values would take minutes.
+# A practical limit of this program, not a statistical rule.
+RESAMPLING_MAX_VALUES = 200_000
 
 Progress = Callable[[float, str], None]
 CancelCheck = Callable[[], bool]
@@ -97,6 +103,7 @@ class Analysis:
     robustness: Robustness
     screening: Any = None     # engine.io.ScreeningReport, when the groups came from a file
     source: Mapping[str, Any] = field(default_factory=frozen_mapping)  # file name, sheet, columns
+    notes: tuple[Finding, ...] = ()  # what the analysis itself decided (e.g. resampling left out)
 
     def __post_init__(self) -> None:
         object.__setattr__(self, "procedures", frozen_mapping(self.procedures))
@@ -171,7 +178,14 @@ def analyze(
         ("bootstrap_mean", resampling.bootstrap_interval, "mean"),
         ("bootstrap_median", resampling.bootstrap_interval, "median"),
     ]
-    start, span = 0.2, 0.7 / len(resampled)
+    notes: list[Finding] = []
+    if x.size + y.size > RESAMPLING_MAX_VALUES:
+        notes.append(Finding(
+            "resampling_left_out", "note",
+            f"The permutation and bootstrap procedures were left out: with {x.size + y.size:,} values "
+            "the large-sample procedures are accurate, and resampling would take minutes."))
+        resampled = []
+    start, span = 0.2, 0.7 / max(len(resampled), 1)
     for i, (key, run, statistic) in enumerate(resampled):
         begin = start + i * span
         step(begin, PROCEDURE_NAMES[key])
@@ -198,4 +212,5 @@ def analyze(
         robustness=_robustness(procedures, options.confidence_level),
         screening=screening,
         source=source or {},
+        notes=tuple(notes),
     )
