@@ -76,5 +76,6 @@ def analysis_document(analysis) -> dict[str, Any]:
         "robustness": to_plain(analysis.robustness),
         "screening": to_plain(analysis.screening) if analysis.screening else None,
         "source": to_plain(analysis.source),
+        "notes": to_plain(analysis.notes),
     }
     return document
