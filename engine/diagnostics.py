@@ -1,0 +1,485 @@
+"""Checks of shape, spread, outliers and ties of two groups, as numbers and plain sentences.
+
+``diagnose`` describes the data; it never picks a procedure (that is ``engine.advice``). Every
+check yields one :class:`engine.results.Finding` with a stable key, so the window and the advice
+can read them. The checks stay fast on a million values per group: the Shapiro-Wilk test is run
+only where it is valid (3 to 5000 values), each group is sorted once, and the Q-Q plot keeps at
+most ``QQ_MAX_POINTS`` evenly spaced order statistics.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+from scipy import special, stats
+
+from .errors import DataProblem
+from .report import format_number, format_p
+from .results import Finding, Groups, readonly_array
+
+__all__ = [
+    "GroupShape",
+    "SpreadCheck",
+    "Diagnostics",
+    "diagnose",
+    "skewness_se",
+    "kurtosis_se",
+    "is_clearly_skewed",
+    "is_heavy_tailed",
+    "SHAPIRO_MIN_N",
+    "SHAPIRO_MAX_N",
+    "QQ_MAX_POINTS",
+    "MILD_FENCE",
+    "FAR_FENCE",
+    "CHECK_ALPHA",
+    "SKEW_SE_MULTIPLE",
+    "SKEW_MATERIAL",
+    "KURTOSIS_MATERIAL",
+    "HEAVY_TIES",
+    "SD_RATIO_NOTE",
+    "SD_RATIO_WARNING",
+    "N_RATIO_NOTE",
+]
+
+# Shapiro-Wilk as implemented (Royston's algorithm) is valid for 3 to 5000 values.
+SHAPIRO_MIN_N = 3
+SHAPIRO_MAX_N = 5000
+# Most points drawn in a Q-Q plot; more add nothing visible and slow the window.
+QQ_MAX_POINTS = 2000
+# Tukey's fences: beyond 1.5 IQR from the quartiles is a mild outlier, beyond 3 IQR a far one
+# (common practice, Tukey 1977).
+MILD_FENCE = 1.5
+FAR_FENCE = 3.0
+# Level at which a check's p-value is called "small" in the findings (common practice: 0.05).
+CHECK_ALPHA = 0.05
+# Skewness or excess kurtosis more than twice its standard error is "clearly" non-zero
+# (common practice, a rough two-SE rule).
+SKEW_SE_MULTIPLE = 2.0
+# Sizes that matter in practice whatever n is (common practice, after Bulmer 1979: |skewness|
+# above 0.5 is moderate, above 1 strong; excess kurtosis above 1 means visibly heavy tails).
+SKEW_MATERIAL = 0.5
+KURTOSIS_MATERIAL = 1.0
+# Share of tied values from which ties are "heavy" (common practice for rating scales).
+HEAVY_TIES = 0.25
+# Ratio of the larger to the smaller SD worth a note, and one that is a warning for the pooled
+# t-test (common practice: a ratio above 2 is the usual rule of thumb).
+SD_RATIO_NOTE = 1.5
+SD_RATIO_WARNING = 2.0
+# Ratio of group sizes from which unequal spreads bias the pooled t-test more (common practice).
+N_RATIO_NOTE = 1.5
+
+
+@dataclass(frozen=True, eq=False)
+class GroupShape:
+    """The shape of one group's values.
+
+    ``shapiro_w`` and ``shapiro_p`` are None outside Shapiro-Wilk's valid n (3..5000); a finding
+    says why. ``skewness`` and ``excess_kurtosis`` are the adjusted Fisher-Pearson G1 and G2
+    (NaN where n is too small or the values do not vary). Outliers are at Tukey's fences.
+    ``tie_share`` is the share of values equal to another value of the same group.
+    ``qq_theoretical`` and ``qq_observed`` are normal Q-Q coordinates (Blom positions).
+    """
+
+    label: str
+    n: int
+    shapiro_w: float | None
+    shapiro_p: float | None
+    skewness: float
+    skewness_se: float
+    excess_kurtosis: float
+    kurtosis_se: float
+    mild_outliers: tuple[float, ...]
+    far_outliers: tuple[float, ...]
+    tie_share: float
+    qq_theoretical: np.ndarray
+    qq_observed: np.ndarray
+
+
+@dataclass(frozen=True)
+class SpreadCheck:
+    """Whether the two groups spread out alike, and how different their sizes are."""
+
+    levene_stat: float
+    levene_p: float
+    brown_forsythe_stat: float
+    brown_forsythe_p: float
+    sd_ratio: float
+    n_ratio: float
+
+
+@dataclass(frozen=True, eq=False)
+class Diagnostics:
+    """Shape of each group, the spread check, ties across both groups, and the findings."""
+
+    shapes: tuple[GroupShape, GroupShape]
+    spread: SpreadCheck
+    pooled_tie_share: float
+    findings: tuple[Finding, ...]
+
+    def finding(self, key: str, group: int | None = None) -> Finding | None:
+        """The finding with ``key`` (and ``group``), or None."""
+        for item in self.findings:
+            if item.key == key and item.group == group:
+                return item
+        return None
+
+
+# -- formulas -------------------------------------------------------------------------------------
+
+def skewness_se(n: int) -> float:
+    """Standard error of the adjusted skewness G1 of a normal sample of size n.
+
+    Notes
+    -----
+    SES = sqrt(6 n (n - 1) / ((n - 2)(n + 1)(n + 3))), defined for n >= 3.
+
+    References
+    ----------
+    Joanes, D. N. and Gill, C. A. (1998). Comparing measures of sample skewness and kurtosis.
+    The Statistician 47(1), 183-189.
+    """
+    if n < 3:
+        return float("nan")
+    return float(np.sqrt(6.0 * n * (n - 1) / ((n - 2) * (n + 1) * (n + 3))))
+
+
+def kurtosis_se(n: int) -> float:
+    """Standard error of the adjusted excess kurtosis G2 of a normal sample of size n.
+
+    Notes
+    -----
+    SEK = 2 SES sqrt((n^2 - 1) / ((n - 3)(n + 5))), defined for n >= 4.
+
+    References
+    ----------
+    Joanes, D. N. and Gill, C. A. (1998). The Statistician 47(1), 183-189.
+    """
+    if n < 4:
+        return float("nan")
+    return float(2.0 * skewness_se(n) * np.sqrt((n * n - 1.0) / ((n - 3) * (n + 5))))
+
+
+def _moments(values: np.ndarray) -> tuple[float, float]:
+    """Adjusted Fisher-Pearson skewness G1 and excess kurtosis G2 (NaN where undefined)."""
+    n = values.size
+    if n < 3:
+        return float("nan"), float("nan")
+    deviations = values - values.mean()
+    squares = deviations * deviations
+    m2 = squares.mean()
+    scale = float(np.max(np.abs(deviations)))
+    # Values that do not vary (up to rounding) have no shape to speak of.
+    if m2 <= 0 or scale == 0 or m2 <= (np.finfo(float).eps * scale) ** 2:
+        return float("nan"), float("nan")
+    m3 = float(np.dot(squares, deviations)) / n
+    g1 = m3 / m2 ** 1.5
+    skew = g1 * np.sqrt(n * (n - 1.0)) / (n - 2.0)
+    if n < 4:
+        return float(skew), float("nan")
+    m4 = float(np.dot(squares, squares)) / n
+    g2 = m4 / (m2 * m2) - 3.0
+    kurt = ((n + 1.0) * g2 + 6.0) * (n - 1.0) / ((n - 2.0) * (n - 3.0))
+    return float(skew), float(kurt)
+
+
+def _quartiles(ordered: np.ndarray) -> tuple[float, float, float]:
+    """First quartile, median and third quartile of sorted values (linear interpolation)."""
+    q1, median, q3 = np.quantile(ordered, [0.25, 0.5, 0.75], method="linear")
+    return float(q1), float(median), float(q3)
+
+
+def _tie_share(ordered: np.ndarray) -> float:
+    """Share of sorted values that equal a neighbour (and so another value)."""
+    n = ordered.size
+    if n < 2:
+        return 0.0
+    same = ordered[1:] == ordered[:-1]
+    tied = np.zeros(n, dtype=bool)
+    tied[1:] |= same
+    tied[:-1] |= same
+    return float(np.count_nonzero(tied)) / n
+
+
+def _qq(ordered: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Normal Q-Q coordinates with Blom's positions (i - 3/8) / (n + 1/4)."""
+    n = ordered.size
+    if n == 0:
+        return readonly_array([]), readonly_array([])
+    if n > QQ_MAX_POINTS:
+        index = np.unique(np.round(np.linspace(0, n - 1, QQ_MAX_POINTS)).astype(np.int64))
+    else:
+        index = np.arange(n)
+    positions = (index + 1 - 0.375) / (n + 0.25)
+    return readonly_array(special.ndtri(positions)), readonly_array(ordered[index])
+
+
+def _anova_of_deviations(groups: tuple[np.ndarray, np.ndarray], centres: tuple[float, float]
+                         ) -> tuple[float, float]:
+    """One-way ANOVA F of absolute deviations from each group's centre, and its p-value.
+
+    Notes
+    -----
+    With Z_ij = |x_ij - c_i|, W = (N - k) sum n_i (Zbar_i - Zbar)^2 / ((k - 1) sum (Z_ij -
+    Zbar_i)^2), referred to F(k - 1, N - k). Centre = mean gives Levene's test, centre = median
+    the Brown-Forsythe variant.
+    """
+    deviations = [np.abs(values - centre) for values, centre in zip(groups, centres)]
+    sizes = np.array([d.size for d in deviations], dtype=float)
+    total = sizes.sum()
+    k = len(deviations)
+    means = np.array([d.mean() for d in deviations])
+    grand = float((means * sizes).sum() / total)
+    between = float((sizes * (means - grand) ** 2).sum())
+    within = float(sum(np.dot(d - m, d - m) for d, m in zip(deviations, means)))
+    if total - k <= 0 or within <= 0:
+        return float("nan"), float("nan")
+    statistic = (total - k) * between / ((k - 1) * within)
+    return float(statistic), float(stats.f.sf(statistic, k - 1, total - k))
+
+
+# -- checks ---------------------------------------------------------------------------------------
+
+def is_clearly_skewed(shape: GroupShape) -> bool:
+    """Skewness both beyond ``SKEW_SE_MULTIPLE`` standard errors and of material size."""
+    g1, se = shape.skewness, shape.skewness_se
+    return bool(np.isfinite(g1) and np.isfinite(se)
+                and abs(g1) > SKEW_SE_MULTIPLE * se and abs(g1) > SKEW_MATERIAL)
+
+
+def is_heavy_tailed(shape: GroupShape) -> bool:
+    """Excess kurtosis both beyond ``SKEW_SE_MULTIPLE`` standard errors and above the material size."""
+    g2, se = shape.excess_kurtosis, shape.kurtosis_se
+    return bool(np.isfinite(g2) and np.isfinite(se)
+                and g2 > SKEW_SE_MULTIPLE * se and g2 > KURTOSIS_MATERIAL)
+
+
+def _shape(label: str, values: np.ndarray, index: int) -> tuple[GroupShape, list[Finding]]:
+    n = int(values.size)
+    ordered = np.sort(values)
+    findings: list[Finding] = []
+    name = f"Group '{label}'"
+    lower = f"group '{label}'"
+
+    shapiro_w = shapiro_p = None
+    constant = n > 0 and ordered[0] == ordered[-1]
+    if n < SHAPIRO_MIN_N:
+        findings.append(Finding("normality", "note",
+            f"{name} has {n} value(s), too few for the Shapiro-Wilk check of a bell shape "
+            f"(it needs at least {SHAPIRO_MIN_N}).", index))
+    elif n > SHAPIRO_MAX_N:
+        findings.append(Finding("normality", "info",
+            f"{name} has {n:,} values, more than the {SHAPIRO_MAX_N:,} for which the Shapiro-Wilk "
+            "check of a bell shape is valid, so it was not run. At this size it would flag "
+            "departures too small to matter; the skewness, the tails and the Q-Q plot describe "
+            "the shape instead.", index))
+    elif constant:
+        findings.append(Finding("normality", "note",
+            f"All values of {name} are equal, so the Shapiro-Wilk check of a bell shape cannot "
+            "be run.", index))
+    else:
+        result = stats.shapiro(ordered)
+        shapiro_w, shapiro_p = float(result.statistic), float(result.pvalue)
+        if shapiro_p < CHECK_ALPHA:
+            text = (f"The Shapiro-Wilk check (does {lower} look like a sample from a "
+                    f"bell-shaped, normal distribution?) finds a departure: W = "
+                    f"{format_number(shapiro_w, digits=3)}, p = {format_p(shapiro_p)}.")
+            severity = "note"
+        else:
+            text = (f"The Shapiro-Wilk check finds no clear departure of {lower} from a "
+                    f"bell shape (W = {format_number(shapiro_w, digits=3)}, p = "
+                    f"{format_p(shapiro_p)}); with few values this check often misses real "
+                    "departures, so it does not prove the values are normal.")
+            severity = "info"
+        findings.append(Finding("normality", severity, text, index))
+
+    skew, kurt = _moments(values)
+    ses, sek = skewness_se(n), kurtosis_se(n)
+    q1, _median, q3 = _quartiles(ordered) if n else (np.nan, np.nan, np.nan)
+    iqr = q3 - q1
+    far_mask = (ordered < q1 - FAR_FENCE * iqr) | (ordered > q3 + FAR_FENCE * iqr)
+    mild_mask = ((ordered < q1 - MILD_FENCE * iqr) | (ordered > q3 + MILD_FENCE * iqr)) & ~far_mask
+    mild = tuple(ordered[mild_mask].tolist())
+    far = tuple(ordered[far_mask].tolist())
+    ties = _tie_share(ordered)
+    qq_x, qq_y = _qq(ordered)
+    shape = GroupShape(label, n, shapiro_w, shapiro_p, skew, ses, kurt, sek, mild, far, ties,
+                       qq_x, qq_y)
+
+    findings.append(_skew_finding(shape, name, index))
+    findings.append(_tail_finding(shape, name, index))
+    findings.append(_outlier_finding(shape, name, index))
+    findings.append(_tie_finding(shape, name, index))
+    return shape, findings
+
+
+def _lower(name: str) -> str:
+    """'Group 'x'' at the start of a sentence -> 'group 'x'' inside one (the label untouched)."""
+    return "g" + name[1:] if name.startswith("Group") else name
+
+
+def _skew_finding(shape: GroupShape, name: str, index: int) -> Finding:
+    g1 = shape.skewness
+    if not np.isfinite(g1):
+        return Finding("skewness", "info",
+                       f"{name}: too few distinct values to measure lopsidedness (skewness).", index)
+    side = "right (a long tail of high values)" if g1 > 0 else "left (a long tail of low values)"
+    figures = f"skewness {format_number(g1, digits=2)}, standard error {format_number(shape.skewness_se, digits=2)}"
+    if is_clearly_skewed(shape):
+        severity = "warning" if abs(g1) > 2 * SKEW_MATERIAL else "note"
+        return Finding("skewness", severity,
+                       f"{name} is lopsided to the {side}: {figures}.", index)
+    return Finding("skewness", "info",
+                   f"{name} is not clearly lopsided ({figures}).", index)
+
+
+def _tail_finding(shape: GroupShape, name: str, index: int) -> Finding:
+    g2 = shape.excess_kurtosis
+    if not np.isfinite(g2):
+        return Finding("tails", "info",
+                       f"{name}: too few distinct values to measure tail weight (kurtosis).", index)
+    figures = (f"excess kurtosis {format_number(g2, digits=2)}, standard error "
+               f"{format_number(shape.kurtosis_se, digits=2)}; 0 for a normal distribution")
+    if is_heavy_tailed(shape):
+        return Finding("tails", "warning",
+                       f"{name} has heavier tails than a bell curve, so extreme values are more "
+                       f"common than a normal distribution would give ({figures}).", index)
+    return Finding("tails", "info", f"{name} shows no clearly heavy tails ({figures}).", index)
+
+
+def _outlier_finding(shape: GroupShape, name: str, index: int) -> Finding:
+    far, mild = len(shape.far_outliers), len(shape.mild_outliers)
+    if far:
+        return Finding("outliers", "warning",
+                       f"{name} has {far} value(s) far from the rest (more than {FAR_FENCE:g} "
+                       f"times the interquartile range beyond the quartiles) and {mild} more "
+                       f"beyond {MILD_FENCE:g} times. Check they are real measurements before "
+                       "relying on a mean.", index)
+    if mild:
+        return Finding("outliers", "note",
+                       f"{name} has {mild} value(s) somewhat apart from the rest (more than "
+                       f"{MILD_FENCE:g} times the interquartile range beyond the quartiles), "
+                       f"none beyond {FAR_FENCE:g} times.", index)
+    return Finding("outliers", "info", f"{name} has no values apart from the rest.", index)
+
+
+def _tie_finding(shape: GroupShape, name: str, index: int) -> Finding:
+    share = shape.tie_share
+    if share >= HEAVY_TIES:
+        return Finding("ties", "note",
+                       f"{format_number(100 * share, digits=2)}% of the values of {_lower(name)} "
+                       "repeat another value (ties), as on a rating scale or a coarse gauge.",
+                       index)
+    if share > 0:
+        return Finding("ties", "info",
+                       f"{format_number(100 * share, digits=2)}% of the values of {_lower(name)} "
+                       "repeat another value (ties).", index)
+    return Finding("ties", "info", f"No two values of {_lower(name)} are equal.", index)
+
+
+def _spread(x: np.ndarray, y: np.ndarray, medians: tuple[float, float]) -> SpreadCheck:
+    levene = _anova_of_deviations((x, y), (float(x.mean()), float(y.mean())))
+    brown_forsythe = _anova_of_deviations((x, y), medians)
+    sds = [float(np.std(v, ddof=1)) if v.size > 1 else float("nan") for v in (x, y)]
+    small, large = min(sds), max(sds)
+    if not (np.isfinite(small) and np.isfinite(large)):
+        sd_ratio = float("nan")
+    elif small == 0:
+        sd_ratio = float("inf") if large > 0 else float("nan")
+    else:
+        sd_ratio = large / small
+    n_ratio = max(x.size, y.size) / min(x.size, y.size)
+    return SpreadCheck(levene[0], levene[1], brown_forsythe[0], brown_forsythe[1], sd_ratio,
+                       float(n_ratio))
+
+
+def _spread_findings(spread: SpreadCheck, labels: tuple[str, str]) -> list[Finding]:
+    ratio = spread.sd_ratio
+    bf = (f"the Brown-Forsythe check of equal spread (Levene's test around the medians) gives "
+          f"p = {format_p(spread.brown_forsythe_p)}")
+    if not np.isfinite(ratio):
+        spread_finding = Finding("spread", "warning",
+                                 "At least one group does not vary, so the spreads cannot be "
+                                 "compared.")
+    elif ratio >= SD_RATIO_WARNING:
+        spread_finding = Finding("spread", "warning",
+                                 f"One group's standard deviation is {format_number(ratio, digits=2)} "
+                                 f"times the other's, and {bf}. Procedures that assume equal "
+                                 "spread are unsafe here.")
+    elif ratio >= SD_RATIO_NOTE or spread.brown_forsythe_p < CHECK_ALPHA:
+        spread_finding = Finding("spread", "note",
+                                 f"The standard deviations differ by a factor of "
+                                 f"{format_number(ratio, digits=2)}, and {bf}.")
+    else:
+        spread_finding = Finding("spread", "info",
+                                 f"The standard deviations are similar (ratio "
+                                 f"{format_number(ratio, digits=2)}), and {bf}; a check that "
+                                 "passes does not prove the spreads are equal.")
+    if spread.n_ratio >= N_RATIO_NOTE:
+        sizes = Finding("sizes", "note",
+                        f"One group is {format_number(spread.n_ratio, digits=2)} times the size of "
+                        "the other; with unequal sizes, a difference in spread misleads the pooled "
+                        "t-test more.")
+    else:
+        sizes = Finding("sizes", "info",
+                        f"The groups are of similar size (ratio {format_number(spread.n_ratio, digits=2)}).")
+    return [spread_finding, sizes]
+
+
+def _check_groups(groups: Groups) -> None:
+    for label, values in zip(groups.labels, (groups.x, groups.y)):
+        if values.size == 0:
+            raise DataProblem(f"Group '{label}' has no values to check.")
+
+
+def diagnose(groups: Groups) -> Diagnostics:
+    """Describe the shape of each group, the spread of both, outliers and ties.
+
+    Parameters
+    ----------
+    groups : engine.results.Groups
+        The two clean samples (each at least one value).
+
+    Returns
+    -------
+    Diagnostics
+        Numbers per group and for both, and one plain-language :class:`Finding` per check with
+        keys "normality", "skewness", "tails", "outliers", "ties" (per group), "spread",
+        "sizes" and "pooled_ties".
+
+    Notes
+    -----
+    G1 = g1 sqrt(n (n - 1)) / (n - 2) and G2 = ((n + 1) g2 + 6)(n - 1) / ((n - 2)(n - 3)) with
+    g1 = m3 / m2^(3/2), g2 = m4 / m2^2 - 3 and m_r the central moments; standard errors as in
+    :func:`skewness_se` and :func:`kurtosis_se`. Outliers lie beyond q1 - f IQR or q3 + f IQR
+    (f = 1.5 mild, 3 far; quartiles by linear interpolation). Levene's statistic is the one-way
+    ANOVA F of |x - mean| across groups; the Brown-Forsythe one uses |x - median|.
+
+    References
+    ----------
+    Joanes, D. N. and Gill, C. A. (1998). The Statistician 47(1), 183-189.
+    Shapiro, S. S. and Wilk, M. B. (1965). Biometrika 52, 591-611; Royston, P. (1995). Applied
+    Statistics 44, 547-551 (the algorithm for n up to 5000).
+    Levene, H. (1960). In Contributions to Probability and Statistics, 278-292. Brown, M. B. and
+    Forsythe, A. B. (1974). JASA 69, 364-367.
+    Tukey, J. W. (1977). Exploratory Data Analysis. Addison-Wesley.
+    Blom, G. (1958). Statistical Estimates and Transformed Beta-Variables. Wiley.
+    """
+    _check_groups(groups)
+    shape_x, found_x = _shape(groups.labels[0], groups.x, 0)
+    shape_y, found_y = _shape(groups.labels[1], groups.y, 1)
+    medians = (float(np.median(groups.x)), float(np.median(groups.y)))
+    spread = _spread(groups.x, groups.y, medians)
+    pooled = _tie_share(np.sort(np.concatenate([groups.x, groups.y]), kind="stable"))
+    findings = found_x + found_y + _spread_findings(spread, groups.labels)
+    if pooled >= HEAVY_TIES:
+        findings.append(Finding("pooled_ties", "note",
+                                f"{format_number(100 * pooled, digits=2)}% of all values repeat "
+                                "another value in either group; rank procedures handle such ties "
+                                "exactly, but a rank test's simple large-sample formula needs a "
+                                "correction for them."))
+    else:
+        findings.append(Finding("pooled_ties", "info",
+                                f"{format_number(100 * pooled, digits=2)}% of all values repeat "
+                                "another value in either group."))
+    return Diagnostics((shape_x, shape_y), spread, pooled, tuple(findings))
