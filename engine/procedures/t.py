@@ -1,6 +1,6 @@
 """The z-test with known SDs, the pooled-variance t-test and the Welch t-test.
 
-All three compare means: the estimate is mean(group 1) - mean(group 2), the statistic is that
+In all three the estimate is mean(group 1) - mean(group 2), the statistic is that
 difference over its standard error, and the p-value and interval come from the normal
 distribution (z) or a Student t distribution (pooled, Welch).
 """
