@@ -1,13 +1,83 @@
-"""From the checks to one suggested procedure, with reasons, alternatives and cautions."""
+"""From the checks to one suggested procedure, with reasons, alternatives and cautions.
+
+The choice encodes the usual practice of the field rather than a single p-value cut-off: Welch's
+t-test by default; the pooled t-test only when equal spreads are known beforehand; the z-test when
+the SDs are known; a rank procedure for ratings, or for small groups whose shape is clearly far
+from a bell curve; a resampling procedure when the mean matters but the shape is doubtful and the
+groups are small. A normality pre-test's p-value on its own never decides. Every threshold below is
+a named constant; they are rules of common practice, not results, and the reasons say so.
+"""
 
 from __future__ import annotations
 
 from dataclasses import dataclass, field
 from typing import Mapping
 
-from .results import frozen_mapping
+import numpy as np
 
-__all__ = ["ConsideredOption", "Recommendation", "recommend"]
+from . import diagnostics as checks
+from .analysis import PROCEDURE_NAMES
+from .report import format_number
+from .results import Groups, frozen_mapping
+
+__all__ = [
+    "ConsideredOption",
+    "Recommendation",
+    "recommend",
+    "ASSUMPTIONS",
+    "SMALL_GROUP_N",
+    "KNOWN_SD_MISMATCH",
+    "RESAMPLING_MAX_VALUES",
+]
+
+# Below this many values in a group, the central limit theorem cannot be leaned on when the
+# values are clearly lopsided or heavy-tailed (common practice: "30 per group").
+SMALL_GROUP_N = 30
+# A sample SD this many times above or below the stated known SD casts doubt on it (common
+# practice, the same rule of thumb as the SD ratio of two groups).
+KNOWN_SD_MISMATCH = checks.SD_RATIO_WARNING
+# Resampling is not run above this many values in all (a limit of this program, kept in step
+# with engine.analysis), so it is never suggested there.
+RESAMPLING_MAX_VALUES = 200_000
+
+WELCH_SOURCES = ("Ruxton 2006, Behavioral Ecology 17:688; Delacre, Lakens and Leys 2017, "
+                 "International Review of Social Psychology 30:92")
+
+# What choosing each procedure takes for granted, one sentence each (shown when the user picks a
+# procedure other than the suggested one).
+ASSUMPTIONS: Mapping[str, str] = frozen_mapping({
+    "welch_t": ("Assumes independent values and a mean that is close to normally distributed "
+                "(true for bell-shaped values, or for larger groups); the spreads may differ."),
+    "pooled_t": ("Assumes independent values, a mean close to normally distributed, and the same "
+                 "spread (standard deviation) in both groups."),
+    "z": ("Assumes independent values, a mean close to normally distributed, and that the two "
+          "standard deviations given are the true ones, known from outside these data."),
+    "mann_whitney": ("Assumes independent values that can be put in order; it compares whether "
+                     "values of one group tend to be larger, and its shift estimate (Hodges-"
+                     "Lehmann) reads best when the two groups have the same shape and spread."),
+    "permutation_mean": ("Assumes independent values and that, if the groups did not differ, "
+                         "their labels could be swapped freely (the same distribution, spread "
+                         "included, in both)."),
+    "permutation_median": ("Assumes independent values and that, if the groups did not differ, "
+                           "their labels could be swapped freely; it compares medians."),
+    "bootstrap_mean": ("Assumes independent values and that each group is large enough to stand "
+                       "in for its population; it gives an interval for the difference in means "
+                       "but no p-value."),
+    "bootstrap_median": ("Assumes independent values and groups large enough to stand in for their "
+                         "populations; it gives an interval for the difference in medians but no "
+                         "p-value, and is coarse when there are many ties."),
+})
+
+CAUTIONS_ALWAYS = (
+    "Checks of normality such as Shapiro-Wilk have little power with small groups (they miss real "
+    "departures) and with large groups flag departures too small to matter, so the choice does not "
+    "rest on their p-value alone.",
+    "A p-value says how surprising the data would be if there were no difference; it is not the size "
+    "of the difference. Read the estimate, its interval and the effect size for that.",
+    "A check that passes does not prove an assumption holds; it only finds no clear sign against it.",
+    "Regulated work (clinical, pharmaceutical, safety-critical) follows its own prescribed methods and "
+    "needs a qualified statistician's review; this suggestion does not replace either.",
+)
 
 
 @dataclass(frozen=True)
@@ -21,30 +91,317 @@ class ConsideredOption:
 
 @dataclass(frozen=True)
 class Recommendation:
-    """The suggested procedure, why, what else was weighed, and what to keep in mind."""
+    """The suggested procedure, why, what else was weighed, and what to keep in mind.
+
+    ``assumptions`` holds one sentence for every procedure key, whether suggested or not.
+    """
 
     key: str
     name: str
     reasons: tuple[str, ...]
     considered: tuple[ConsideredOption, ...]
     cautions: tuple[str, ...]
-    assumptions: Mapping[str, str] = field(default_factory=frozen_mapping)
+    assumptions: Mapping[str, str] = field(default_factory=lambda: ASSUMPTIONS)
 
     def __post_init__(self) -> None:
+        object.__setattr__(self, "reasons", tuple(self.reasons))
+        object.__setattr__(self, "considered", tuple(self.considered))
+        object.__setattr__(self, "cautions", tuple(self.cautions))
         object.__setattr__(self, "assumptions", frozen_mapping(self.assumptions))
 
 
-def recommend(diagnostics, groups, *, equal_spread_known: bool = False, ordinal: bool = False,
-              known_sd: tuple[float, float] | None = None) -> Recommendation:
-    """Suggest a procedure for these groups (being written: Welch unless told otherwise)."""
-    from .analysis import PROCEDURE_NAMES
+@dataclass(frozen=True)
+class _Situation:
+    """What the checks say, in the terms the advice reasons with."""
 
+    sizes: tuple[int, int]
+    labels: tuple[str, str]
+    skewed: tuple[bool, bool]
+    heavy: tuple[bool, bool]
+    far: tuple[bool, bool]
+    sd_ratio: float
+    n_ratio: float
+    ties: float
+    resampling_runs: bool
+
+    @property
+    def small(self) -> bool:
+        return min(self.sizes) < SMALL_GROUP_N
+
+    @property
+    def shape_doubtful(self) -> bool:
+        return any(self.skewed) or any(self.heavy) or any(self.far)
+
+    @property
+    def extremes(self) -> bool:
+        """Heavy tails or far outliers: the mean itself is unstable."""
+        return any(self.heavy) or any(self.far)
+
+    @property
+    def spreads_differ(self) -> bool:
+        return not np.isfinite(self.sd_ratio) or self.sd_ratio >= checks.SD_RATIO_WARNING
+
+    @property
+    def pooling_risky(self) -> bool:
+        """The data argue against one common SD (the rule of thumb of the SD and n ratios)."""
+        return self.spreads_differ or (self.sd_ratio >= checks.SD_RATIO_NOTE
+                                       and self.n_ratio >= checks.N_RATIO_NOTE)
+
+    def describe_shape(self) -> str:
+        """Which groups look how, in words: "group 'A' is clearly lopsided and has far outliers"."""
+        parts = []
+        for label, skewed, heavy, far in zip(self.labels, self.skewed, self.heavy, self.far):
+            traits = [words for flag, words in ((skewed, "is clearly lopsided"),
+                                                (heavy, "is heavy-tailed"),
+                                                (far, "has values far from the rest")) if flag]
+            if traits:
+                parts.append(f"group '{label}' " + _join(traits))
+        return "; ".join(parts)
+
+
+def _join(words: list[str]) -> str:
+    return words[0] if len(words) == 1 else ", ".join(words[:-1]) + " and " + words[-1]
+
+
+def _situation(diagnostics, groups: Groups) -> _Situation:
+    shapes = diagnostics.shapes
+    sizes = (int(groups.x.size), int(groups.y.size))
+    return _Situation(
+        sizes=sizes,
+        labels=tuple(groups.labels),
+        skewed=tuple(checks.is_clearly_skewed(s) for s in shapes),
+        heavy=tuple(checks.is_heavy_tailed(s) for s in shapes),
+        far=tuple(len(s.far_outliers) > 0 for s in shapes),
+        sd_ratio=float(diagnostics.spread.sd_ratio),
+        n_ratio=float(diagnostics.spread.n_ratio),
+        ties=float(diagnostics.pooled_tie_share),
+        resampling_runs=sum(sizes) <= RESAMPLING_MAX_VALUES,
+    )
+
+
+# -- the choice -----------------------------------------------------------------------------------
+
+def _choose(s: _Situation, *, equal_spread_known: bool, ordinal: bool, known_sd) -> tuple[str, list[str]]:
+    """The suggested key and the reasons for it."""
     if known_sd is not None:
-        key = "z"
-    elif ordinal:
-        key = "mann_whitney"
-    elif equal_spread_known:
-        key = "pooled_t"
+        return "z", [
+            "You gave the two standard deviations as known from outside these data (for example a "
+            "long record of the same process), so the z-test uses them instead of estimating them.",
+        ]
+    if ordinal:
+        reasons = [
+            "The values are ratings on an ordered scale: their order means something but the steps "
+            "between them need not be equal, so a mean is hard to interpret.",
+            "The Mann-Whitney procedure uses only the order of the values. It answers whether values "
+            "in one group tend to be higher than in the other, with the Hodges-Lehmann estimate of "
+            "the typical shift; it does not compare means.",
+        ]
+        if s.ties >= checks.HEAVY_TIES:
+            reasons.append("Many values are tied, as ratings usually are; the exact rank test counts "
+                           "ties correctly.")
+        return "mann_whitney", reasons
+    if s.small and s.shape_doubtful:
+        return _small_and_doubtful(s)
+    if equal_spread_known:
+        reasons = [
+            "You stated from prior knowledge that the two groups spread out equally, so the pooled "
+            "t-test may combine both groups into one estimate of spread, which gives it slightly "
+            "more precision than Welch's test.",
+        ]
+        return "pooled_t", reasons
+    reasons = ["Welch's t-test is the usual default for comparing two means: it keeps its stated "
+               "error rate when the spreads differ and loses almost nothing when they are equal "
+               f"({WELCH_SOURCES})."]
+    if s.shape_doubtful:
+        reasons.append(
+            f"The values are not bell-shaped ({s.describe_shape()}), but each group has at least "
+            f"{SMALL_GROUP_N} values. With that many, the group means are close to normally "
+            "distributed even when the values are not (the central limit theorem), so Welch's "
+            f"p-value and interval hold up. The cut-off of {SMALL_GROUP_N} is common practice, not a "
+            "sharp rule; very lopsided values need more.")
     else:
-        key = "welch_t"
-    return Recommendation(key, PROCEDURE_NAMES[key], ("provisional",), (), (), {})
+        reasons.append("Neither group shows clear lopsidedness, heavy tails or far outliers, so "
+                       "nothing argues against a comparison of means.")
+    if s.spreads_differ:
+        reasons.append(f"The standard deviations differ by a factor of {format_number(s.sd_ratio, digits=2)}, "
+                       "which is exactly the situation Welch's test is made for.")
+    return "welch_t", reasons
+
+
+def _small_and_doubtful(s: _Situation) -> tuple[str, list[str]]:
+    smallest = min(s.sizes)
+    base = (f"The smallest group has {smallest} values, fewer than {SMALL_GROUP_N}, and "
+            f"{s.describe_shape()}. With groups this small the central limit theorem cannot be "
+            "relied on to rescue a t-test (the cut-off is common practice, not a sharp rule).")
+    if s.extremes or not s.resampling_runs:
+        reasons = [base,
+                   "The Mann-Whitney procedure works with the order of the values, so a few extreme "
+                   "values cannot pull it far. It answers whether values in one group tend to be "
+                   "higher (a shift, or stochastic ordering), with the Hodges-Lehmann estimate of "
+                   "the typical shift; it does not compare means."]
+        if s.ties >= checks.HEAVY_TIES:
+            reasons.append("Many values are tied; the exact rank test counts ties correctly.")
+        return "mann_whitney", reasons
+    if s.spreads_differ:
+        return "bootstrap_mean", [
+            base,
+            "The mean is still a sensible summary here (no far outliers or heavy tails), but the "
+            f"spreads differ by a factor of {format_number(s.sd_ratio, digits=2)}. The bootstrap "
+            "resamples each group on its own, so its interval for the difference in means does not "
+            "assume equal spreads or a bell shape. It gives an interval, not a p-value.",
+        ]
+    return "permutation_mean", [
+        base,
+        "The mean is still a sensible summary here (no far outliers or heavy tails) and the spreads "
+        "are similar, so the permutation test compares the means directly: it reshuffles the group "
+        "labels many times and needs no bell shape. Its p-value carries a small Monte Carlo error, "
+        "reported with it.",
+    ]
+
+
+# -- the alternatives -----------------------------------------------------------------------------
+
+def _why_not(key: str, chosen: str, s: _Situation, *, equal_spread_known: bool, ordinal: bool,
+             known_sd) -> str:
+    small_doubt = s.small and s.shape_doubtful
+    if chosen == "z" and key != "z":
+        return "Standard deviations known from outside the data were given, and the z-test uses them."
+    if key == "welch_t":
+        if chosen == "z":
+            return "The standard deviations are known, so there is no need to estimate them."
+        if chosen == "pooled_t":
+            return ("With equal spreads known, pooling gives a little more precision; Welch's test "
+                    "remains a safe check and should agree.")
+        if ordinal:
+            return "A mean of ratings assumes equal steps between the scale points."
+        return ("The groups are small and not bell-shaped, so the t-test's p-value and interval may "
+                "be off.")
+    if key == "pooled_t":
+        if equal_spread_known and chosen != "pooled_t":
+            return ("You stated equal spreads, but with small groups that are not bell-shaped the shape "
+                    "matters more than the spread.") if small_doubt else "Equal spreads were stated."
+        if s.pooling_risky:
+            return (f"It assumes equal spreads, and the data argue against that (SD ratio "
+                    f"{format_number(s.sd_ratio, digits=2)}, size ratio {format_number(s.n_ratio, digits=2)}); "
+                    "it can then give misleading p-values.")
+        return ("It assumes equal spreads, which were not stated as known; Welch's test does not need "
+                "that and loses almost nothing when the spreads are equal.")
+    if key == "z":
+        return "The z-test needs standard deviations known from outside the data; none were given."
+    if key == "mann_whitney":
+        if chosen in ("welch_t", "pooled_t", "z"):
+            return ("It answers a different question (whether values of one group tend to be higher) "
+                    "rather than comparing means; nothing in the data forces that change.")
+        return ("It compares the order of values, not the means; with no far outliers or heavy "
+                "tails the mean can be kept as the quantity of interest.")
+    if key in ("permutation_mean", "bootstrap_mean"):
+        if not s.resampling_runs:
+            return "Resampling is not run for this many values; the large-sample procedures are accurate."
+        if ordinal:
+            return "It compares means, which assumes equal steps between the scale points."
+        if chosen == "mann_whitney":
+            return ("Far outliers or heavy tails pull a mean strongly, so a comparison of means is "
+                    "fragile here however its p-value is found.")
+        if key == "permutation_mean" and chosen == "bootstrap_mean":
+            return ("Reshuffling labels assumes the groups spread out alike if they do not differ, "
+                    "and here the spreads differ.")
+        if key == "bootstrap_mean" and chosen == "permutation_mean":
+            return ("It gives an interval but no p-value, and its intervals tend to be a little too "
+                    "narrow with small groups.")
+        return ("It answers the same question as the t-test without the bell-shape assumption; "
+                "nothing in these data calls for that, so it serves as a cross-check.")
+    if key in ("permutation_median", "bootstrap_median"):
+        if not s.resampling_runs:
+            return "Resampling is not run for this many values; the large-sample procedures are accurate."
+        coarse = (" Medians of data with many ties move in jumps, which makes it coarse."
+                  if s.ties >= checks.HEAVY_TIES else "")
+        return ("A difference in medians is a different quantity from the one compared here, and it "
+                "is estimated less precisely than a difference in means or the rank shift." + coarse)
+    return "Not weighed for these data."
+
+
+def _cautions(chosen: str, s: _Situation, diagnostics, groups: Groups, *, equal_spread_known: bool,
+              ordinal: bool, known_sd) -> list[str]:
+    out: list[str] = []
+    if chosen == "pooled_t" and s.pooling_risky:
+        out.append(f"You stated equal spreads, but the data argue against it: the SD ratio is "
+                   f"{format_number(s.sd_ratio, digits=2)} and the size ratio "
+                   f"{format_number(s.n_ratio, digits=2)}. If the statement rests on firm knowledge "
+                   "keep it; otherwise Welch's test is the safer choice.")
+    if chosen == "z" and known_sd is not None:
+        for label, values, known in zip(groups.labels, (groups.x, groups.y), known_sd):
+            if values.size > 1:
+                sd = float(np.std(values, ddof=1))
+                ratio = max(sd, known) / min(sd, known) if min(sd, known) > 0 else float("inf")
+                if ratio >= KNOWN_SD_MISMATCH:
+                    out.append(f"The standard deviation of group '{label}' in these data "
+                               f"({format_number(sd)}) is far from the known value "
+                               f"({format_number(known)}); check that the known value applies.")
+    if chosen == "mann_whitney" and s.spreads_differ:
+        out.append("The spreads differ a lot; the rank test then tells whether one group tends to be "
+                   "higher, but the shift estimate is less meaningful as one number.")
+    if chosen in ("welch_t", "pooled_t", "z") and any(s.far):
+        out.append("Some values lie far from the rest and pull the means; check that they are real "
+                   "measurements, and compare with the rank and median procedures.")
+    if chosen in ("permutation_mean", "bootstrap_mean", "permutation_median", "bootstrap_median"):
+        out.append("Resampled results vary slightly with the random seed; the seed used is recorded "
+                   "so the numbers can be repeated.")
+    flagged = [shape.label for shape in diagnostics.shapes
+               if shape.shapiro_p is not None and shape.shapiro_p < checks.CHECK_ALPHA]
+    if flagged and not s.shape_doubtful and not ordinal:
+        out.append("The Shapiro-Wilk check flagged a departure from a bell shape in "
+                   f"{_join([f'group {label!r}' for label in flagged])}, but the skewness, tails and outliers "
+                   "show nothing large, so it did not change the suggestion.")
+    return out + list(CAUTIONS_ALWAYS)
+
+
+def recommend(diagnostics, groups: Groups, *, equal_spread_known: bool = False, ordinal: bool = False,
+              known_sd: tuple[float, float] | None = None) -> Recommendation:
+    """Suggest one procedure for the two groups, with reasons, alternatives and cautions.
+
+    Parameters
+    ----------
+    diagnostics : engine.diagnostics.Diagnostics
+        The checks of these groups.
+    groups : engine.results.Groups
+        The two samples.
+    equal_spread_known : bool, keyword-only
+        The user knows from outside the data that the spreads are equal.
+    ordinal : bool, keyword-only
+        The values are ratings on an ordered scale.
+    known_sd : (float, float) or None, keyword-only
+        Standard deviations known from outside the data.
+
+    Returns
+    -------
+    Recommendation
+
+    Notes
+    -----
+    In order: known SDs -> z-test; ratings -> Mann-Whitney; a group under ``SMALL_GROUP_N`` values
+    that is clearly skewed, heavy-tailed or has far outliers -> Mann-Whitney when there are heavy
+    tails or far outliers, otherwise the permutation test of means (similar spreads) or the
+    bootstrap interval of means (spreads differ); equal spreads known -> pooled t; otherwise
+    Welch's t-test, which stays accurate for larger groups by the central limit theorem. The
+    Shapiro-Wilk p-value never decides on its own.
+
+    References
+    ----------
+    Ruxton, G. D. (2006). The unequal variance t-test is an underused alternative to Student's
+    t-test and the Mann-Whitney U test. Behavioral Ecology 17(4), 688-690.
+    Delacre, M., Lakens, D. and Leys, C. (2017). Why psychologists should by default use Welch's
+    t-test instead of Student's t-test. International Review of Social Psychology 30(1), 92-101.
+    Fagerland, M. W. and Sandvik, L. (2009). The Wilcoxon-Mann-Whitney test under scrutiny.
+    Statistics in Medicine 28(10), 1487-1497.
+    """
+    s = _situation(diagnostics, groups)
+    flags = dict(equal_spread_known=equal_spread_known, ordinal=ordinal, known_sd=known_sd)
+    key, reasons = _choose(s, **flags)
+    candidates = [k for k in PROCEDURE_NAMES if k != key and (k != "z" or known_sd is not None)]
+    considered = tuple(ConsideredOption(k, PROCEDURE_NAMES[k], _why_not(k, key, s, **flags))
+                       for k in candidates)
+    cautions = _cautions(key, s, diagnostics, groups, **flags)
+    assumptions = {k: ASSUMPTIONS.get(k, "No assumptions recorded for this procedure.")
+                   for k in PROCEDURE_NAMES}
+    return Recommendation(key, PROCEDURE_NAMES[key], tuple(reasons), considered, tuple(cautions),
+                          assumptions)

@@ -15,7 +15,7 @@ import numpy as np
 from scipy import special, stats
 
 from .errors import DataProblem
-from .report import format_number, format_p
+from .report import format_number, p_clause
 from .results import Finding, Groups, readonly_array
 
 __all__ = [
@@ -29,9 +29,14 @@ __all__ = [
     "is_heavy_tailed",
     "SHAPIRO_MIN_N",
     "SHAPIRO_MAX_N",
+    "SHAPIRO_SMALL_N",
+    "SHAPIRO_LARGE_N",
     "QQ_MAX_POINTS",
     "MILD_FENCE",
     "FAR_FENCE",
+    "NORMAL_MILD_SHARE",
+    "NORMAL_FAR_SHARE",
+    "OUTLIER_SURPRISE",
     "CHECK_ALPHA",
     "SKEW_SE_MULTIPLE",
     "SKEW_MATERIAL",
@@ -45,6 +50,10 @@ __all__ = [
 # Shapiro-Wilk as implemented (Royston's algorithm) is valid for 3 to 5000 values.
 SHAPIRO_MIN_N = 3
 SHAPIRO_MAX_N = 5000
+# Below this many values the Shapiro-Wilk check has little power; from the larger size on it
+# flags departures too small to matter for a t-test (common practice).
+SHAPIRO_SMALL_N = 30
+SHAPIRO_LARGE_N = 200
 # Most points drawn in a Q-Q plot; more add nothing visible and slow the window.
 QQ_MAX_POINTS = 2000
 # Tukey's fences: beyond 1.5 IQR from the quartiles is a mild outlier, beyond 3 IQR a far one
@@ -60,6 +69,12 @@ SKEW_SE_MULTIPLE = 2.0
 # above 0.5 is moderate, above 1 strong; excess kurtosis above 1 means visibly heavy tails).
 SKEW_MATERIAL = 0.5
 KURTOSIS_MATERIAL = 1.0
+# Share of a normal distribution beyond each fence (about 0.7% and 0.00023%), and how unlikely
+# a count must be under that share to be reported as more than chance (common practice: 1%).
+_QUARTILE_Z = float(stats.norm.ppf(0.75))
+NORMAL_MILD_SHARE = float(2 * stats.norm.sf(_QUARTILE_Z * (1 + 2 * MILD_FENCE)))
+NORMAL_FAR_SHARE = float(2 * stats.norm.sf(_QUARTILE_Z * (1 + 2 * FAR_FENCE)))
+OUTLIER_SURPRISE = 0.01
 # Share of tied values from which ties are "heavy" (common practice for rating scales).
 HEAVY_TIES = 0.25
 # Ratio of the larger to the smaller SD worth a note, and one that is a warning for the pooled
@@ -183,22 +198,49 @@ def _moments(values: np.ndarray) -> tuple[float, float]:
     return float(skew), float(kurt)
 
 
+def _quantile_sorted(ordered: np.ndarray, fraction: float) -> float:
+    """Quantile of sorted values by linear interpolation (Hyndman and Fan's type 7)."""
+    position = (ordered.size - 1) * fraction
+    below = int(np.floor(position))
+    above = min(below + 1, ordered.size - 1)
+    weight = position - below
+    return float(ordered[below] + weight * (ordered[above] - ordered[below]))
+
+
 def _quartiles(ordered: np.ndarray) -> tuple[float, float, float]:
     """First quartile, median and third quartile of sorted values (linear interpolation)."""
-    q1, median, q3 = np.quantile(ordered, [0.25, 0.5, 0.75], method="linear")
-    return float(q1), float(median), float(q3)
+    return tuple(_quantile_sorted(ordered, f) for f in (0.25, 0.5, 0.75))  # type: ignore[return-value]
+
+
+def _tied_across(ordered: np.ndarray, other: np.ndarray) -> np.ndarray:
+    """Which of the sorted values also occur in the sorted ``other``."""
+    if other.size == 0:
+        return np.zeros(ordered.size, dtype=bool)
+    index = np.searchsorted(other, ordered)
+    np.minimum(index, other.size - 1, out=index)
+    return other[index] == ordered
+
+
+def _tied_within(ordered: np.ndarray) -> np.ndarray:
+    """Which of the sorted values equal a neighbour (and so another value of the same group)."""
+    tied = np.zeros(ordered.size, dtype=bool)
+    if ordered.size > 1:
+        same = ordered[1:] == ordered[:-1]
+        tied[1:] |= same
+        tied[:-1] |= same
+    return tied
 
 
 def _tie_share(ordered: np.ndarray) -> float:
-    """Share of sorted values that equal a neighbour (and so another value)."""
-    n = ordered.size
-    if n < 2:
-        return 0.0
-    same = ordered[1:] == ordered[:-1]
-    tied = np.zeros(n, dtype=bool)
-    tied[1:] |= same
-    tied[:-1] |= same
-    return float(np.count_nonzero(tied)) / n
+    """Share of sorted values that equal another value."""
+    return float(np.count_nonzero(_tied_within(ordered))) / ordered.size if ordered.size else 0.0
+
+
+def _pooled_tie_share(x_sorted: np.ndarray, y_sorted: np.ndarray) -> float:
+    """Share of all values equal to another value in either group (no pooled sort needed)."""
+    tied = (np.count_nonzero(_tied_within(x_sorted) | _tied_across(x_sorted, y_sorted))
+            + np.count_nonzero(_tied_within(y_sorted) | _tied_across(y_sorted, x_sorted)))
+    return float(tied) / (x_sorted.size + y_sorted.size)
 
 
 def _qq(ordered: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
@@ -254,7 +296,9 @@ def is_heavy_tailed(shape: GroupShape) -> bool:
                 and g2 > SKEW_SE_MULTIPLE * se and g2 > KURTOSIS_MATERIAL)
 
 
-def _shape(label: str, values: np.ndarray, index: int) -> tuple[GroupShape, list[Finding]]:
+def _shape(label: str, values: np.ndarray, index: int
+           ) -> tuple[GroupShape, list[Finding], np.ndarray, float]:
+    """The shape of one group, its findings, its sorted values and its median."""
     n = int(values.size)
     ordered = np.sort(values)
     findings: list[Finding] = []
@@ -275,27 +319,30 @@ def _shape(label: str, values: np.ndarray, index: int) -> tuple[GroupShape, list
             "the shape instead.", index))
     elif constant:
         findings.append(Finding("normality", "note",
-            f"All values of {name} are equal, so the Shapiro-Wilk check of a bell shape cannot "
+            f"All values of {lower} are equal, so the Shapiro-Wilk check of a bell shape cannot "
             "be run.", index))
     else:
         result = stats.shapiro(ordered)
         shapiro_w, shapiro_p = float(result.statistic), float(result.pvalue)
+        figures = f"W = {format_number(shapiro_w, digits=3)}, {p_clause(shapiro_p)}"
         if shapiro_p < CHECK_ALPHA:
             text = (f"The Shapiro-Wilk check (does {lower} look like a sample from a "
-                    f"bell-shaped, normal distribution?) finds a departure: W = "
-                    f"{format_number(shapiro_w, digits=3)}, p = {format_p(shapiro_p)}.")
+                    f"bell-shaped, normal distribution?) finds a departure: {figures}.")
+            if n >= SHAPIRO_LARGE_N:
+                text += (" With this many values it flags even departures too small to matter; "
+                         "look at the skewness, the tails and the Q-Q plot for their size.")
             severity = "note"
         else:
             text = (f"The Shapiro-Wilk check finds no clear departure of {lower} from a "
-                    f"bell shape (W = {format_number(shapiro_w, digits=3)}, p = "
-                    f"{format_p(shapiro_p)}); with few values this check often misses real "
-                    "departures, so it does not prove the values are normal.")
+                    f"bell shape ({figures}). That does not prove the values are normal")
+            text += (": with few values this check often misses real departures." if n < SHAPIRO_SMALL_N
+                     else ".")
             severity = "info"
         findings.append(Finding("normality", severity, text, index))
 
     skew, kurt = _moments(values)
     ses, sek = skewness_se(n), kurtosis_se(n)
-    q1, _median, q3 = _quartiles(ordered) if n else (np.nan, np.nan, np.nan)
+    q1, median, q3 = _quartiles(ordered)
     iqr = q3 - q1
     far_mask = (ordered < q1 - FAR_FENCE * iqr) | (ordered > q3 + FAR_FENCE * iqr)
     mild_mask = ((ordered < q1 - MILD_FENCE * iqr) | (ordered > q3 + MILD_FENCE * iqr)) & ~far_mask
@@ -310,7 +357,7 @@ def _shape(label: str, values: np.ndarray, index: int) -> tuple[GroupShape, list
     findings.append(_tail_finding(shape, name, index))
     findings.append(_outlier_finding(shape, name, index))
     findings.append(_tie_finding(shape, name, index))
-    return shape, findings
+    return shape, findings, ordered, median
 
 
 def _lower(name: str) -> str:
@@ -322,7 +369,7 @@ def _skew_finding(shape: GroupShape, name: str, index: int) -> Finding:
     g1 = shape.skewness
     if not np.isfinite(g1):
         return Finding("skewness", "info",
-                       f"{name}: too few distinct values to measure lopsidedness (skewness).", index)
+                       f"{name}: too few values, or values that do not vary, to measure lopsidedness (skewness).", index)
     side = "right (a long tail of high values)" if g1 > 0 else "left (a long tail of low values)"
     figures = f"skewness {format_number(g1, digits=2)}, standard error {format_number(shape.skewness_se, digits=2)}"
     if is_clearly_skewed(shape):
@@ -337,7 +384,7 @@ def _tail_finding(shape: GroupShape, name: str, index: int) -> Finding:
     g2 = shape.excess_kurtosis
     if not np.isfinite(g2):
         return Finding("tails", "info",
-                       f"{name}: too few distinct values to measure tail weight (kurtosis).", index)
+                       f"{name}: too few values, or values that do not vary, to measure tail weight (kurtosis).", index)
     figures = (f"excess kurtosis {format_number(g2, digits=2)}, standard error "
                f"{format_number(shape.kurtosis_se, digits=2)}; 0 for a normal distribution")
     if is_heavy_tailed(shape):
@@ -347,19 +394,28 @@ def _tail_finding(shape: GroupShape, name: str, index: int) -> Finding:
     return Finding("tails", "info", f"{name} shows no clearly heavy tails ({figures}).", index)
 
 
+def _more_than_normal(count: int, n: int, share: float) -> bool:
+    """Whether ``count`` values beyond a fence are more than a normal sample of n would give."""
+    if count == 0:
+        return False
+    return bool(stats.poisson.sf(count - 1, n * share) < OUTLIER_SURPRISE)
+
+
 def _outlier_finding(shape: GroupShape, name: str, index: int) -> Finding:
-    far, mild = len(shape.far_outliers), len(shape.mild_outliers)
-    if far:
+    far, mild, n = len(shape.far_outliers), len(shape.mild_outliers), shape.n
+    counts = (f"{far} value(s) more than {FAR_FENCE:g} times the interquartile range beyond the "
+              f"quartiles and {mild} more beyond {MILD_FENCE:g} times")
+    if _more_than_normal(far, n, NORMAL_FAR_SHARE):
         return Finding("outliers", "warning",
-                       f"{name} has {far} value(s) far from the rest (more than {FAR_FENCE:g} "
-                       f"times the interquartile range beyond the quartiles) and {mild} more "
-                       f"beyond {MILD_FENCE:g} times. Check they are real measurements before "
-                       "relying on a mean.", index)
-    if mild:
+                       f"{name} has values far from the rest: {counts}. Check they are real "
+                       "measurements before relying on a mean, which they pull strongly.", index)
+    if far or _more_than_normal(mild, n, NORMAL_MILD_SHARE):
         return Finding("outliers", "note",
-                       f"{name} has {mild} value(s) somewhat apart from the rest (more than "
-                       f"{MILD_FENCE:g} times the interquartile range beyond the quartiles), "
-                       f"none beyond {FAR_FENCE:g} times.", index)
+                       f"{name} has values apart from the rest: {counts}.", index)
+    if mild:
+        return Finding("outliers", "info",
+                       f"{name} has {counts}, about as many as a bell-shaped distribution gives "
+                       "by chance in a group this size.", index)
     return Finding("outliers", "info", f"{name} has no values apart from the rest.", index)
 
 
@@ -396,7 +452,7 @@ def _spread(x: np.ndarray, y: np.ndarray, medians: tuple[float, float]) -> Sprea
 def _spread_findings(spread: SpreadCheck, labels: tuple[str, str]) -> list[Finding]:
     ratio = spread.sd_ratio
     bf = (f"the Brown-Forsythe check of equal spread (Levene's test around the medians) gives "
-          f"p = {format_p(spread.brown_forsythe_p)}")
+          f"{p_clause(spread.brown_forsythe_p)}")
     if not np.isfinite(ratio):
         spread_finding = Finding("spread", "warning",
                                  "At least one group does not vary, so the spreads cannot be "
@@ -466,11 +522,10 @@ def diagnose(groups: Groups) -> Diagnostics:
     Blom, G. (1958). Statistical Estimates and Transformed Beta-Variables. Wiley.
     """
     _check_groups(groups)
-    shape_x, found_x = _shape(groups.labels[0], groups.x, 0)
-    shape_y, found_y = _shape(groups.labels[1], groups.y, 1)
-    medians = (float(np.median(groups.x)), float(np.median(groups.y)))
-    spread = _spread(groups.x, groups.y, medians)
-    pooled = _tie_share(np.sort(np.concatenate([groups.x, groups.y]), kind="stable"))
+    shape_x, found_x, x_sorted, x_median = _shape(groups.labels[0], groups.x, 0)
+    shape_y, found_y, y_sorted, y_median = _shape(groups.labels[1], groups.y, 1)
+    spread = _spread(groups.x, groups.y, (x_median, y_median))
+    pooled = _pooled_tie_share(x_sorted, y_sorted)
     findings = found_x + found_y + _spread_findings(spread, groups.labels)
     if pooled >= HEAVY_TIES:
         findings.append(Finding("pooled_ties", "note",

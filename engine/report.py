@@ -8,7 +8,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-__all__ = ["ReportText", "render", "format_p", "format_number"]
+__all__ = ["ReportText", "render", "format_p", "format_number", "p_clause"]
 
 # Below this a p-value is written as "< 0.001" (common practice in journals).
 P_FLOOR = 0.001
@@ -58,6 +58,12 @@ def format_p(p: float | None) -> str:
     if p < P_FLOOR:
         return f"< {P_FLOOR:g}"
     return _fixed_significant(p, P_DIGITS)
+
+
+def p_clause(p: float | None) -> str:
+    """"p = 0.031" or "p < 0.001" (the p-value as it sits in a sentence)."""
+    text = format_p(p)
+    return f"p {text}" if text.startswith("<") else f"p = {text}"
 
 
 def format_number(value: float | None, *, digits: int = 3) -> str:
