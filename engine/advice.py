@@ -194,7 +194,7 @@ def _choose(s: _Situation, *, equal_spread_known: bool, ordinal: bool, known_sd)
             "between them need not be equal, so a mean is hard to interpret.",
             "The Mann-Whitney procedure uses only the order of the values. It answers whether values "
             "in one group tend to be higher than in the other, with the Hodges-Lehmann estimate of "
-            "the typical shift; it does not compare means.",
+            "the typical shift; the means are not what it tests.",
         ]
         if s.ties >= checks.HEAVY_TIES:
             reasons.append("Many values are tied, as ratings usually are; the exact rank test counts "
@@ -238,7 +238,7 @@ def _small_and_doubtful(s: _Situation) -> tuple[str, list[str]]:
                    "The Mann-Whitney procedure works with the order of the values, so a few extreme "
                    "values cannot pull it far. It answers whether values in one group tend to be "
                    "higher (a shift, or stochastic ordering), with the Hodges-Lehmann estimate of "
-                   "the typical shift; it does not compare means."]
+                   "the typical shift; the means are not what it tests."]
         if s.ties >= checks.HEAVY_TIES:
             reasons.append("Many values are tied; the exact rank test counts ties correctly.")
         return "mann_whitney", reasons

@@ -5,7 +5,9 @@ This is the only module that rounds numbers for display (``format_number``, ``fo
 
 from __future__ import annotations
 
+import html
 import math
+import textwrap
 from dataclasses import dataclass
 
 __all__ = ["ReportText", "render", "format_p", "format_number", "p_clause"]
@@ -118,6 +120,380 @@ def _fixed_significant(value: float, digits: int) -> str:
     return text[1:] if text.startswith("-") and float(text) == 0 else text
 
 
+# -- the report -----------------------------------------------------------------------------------
+
+# Standardised effect sizes are shown with two decimals (common practice).
+EFFECT_DECIMALS = 2
+# Significant digits of estimates, intervals and statistics in the text.
+DIGITS = 3
+# Width at which the plain-text paragraph is wrapped.
+PLAIN_WIDTH = 88
+
+# The effect size that goes with each procedure's question.
+EFFECT_FOR: dict[str, tuple[str, ...]] = {
+    "welch_t": ("hedges_g", "cohen_d"),
+    "pooled_t": ("hedges_g", "cohen_d"),
+    "z": ("hedges_g", "cohen_d"),
+    "permutation_mean": ("hedges_g", "cohen_d"),
+    "bootstrap_mean": ("hedges_g", "cohen_d"),
+    "mann_whitney": ("rank_biserial", "common_language"),
+    "permutation_median": ("rank_biserial", "common_language"),
+    "bootstrap_median": ("rank_biserial", "common_language"),
+}
+# How each procedure's statistic is written ("Welch t(52.3) = 2.84"); None: not written.
+STATISTIC_LABEL: dict[str, str | None] = {
+    "welch_t": "Welch t",
+    "pooled_t": "pooled t",
+    "z": "z",
+    "mann_whitney": "Mann-Whitney U",
+    "permutation_mean": None,
+    "permutation_median": None,
+    "bootstrap_mean": None,
+    "bootstrap_median": None,
+}
+RANK_KEYS = ("mann_whitney",)
+MEDIAN_KEYS = ("permutation_median", "bootstrap_median")
+
+CAUTION_LINE = ("A p-value is not the size of an effect; a check that passes does not prove an "
+                "assumption; regulated work follows its own rules and needs a qualified "
+                "statistician's review.")
+
+
+@dataclass(frozen=True)
+class _Numbers:
+    """The display strings of one procedure's result, shared by the paragraph and the tables."""
+
+    level: str
+    estimate: str
+    interval: str | None
+    statistic: str | None
+    df: str | None
+    p: str | None
+    mc_se: str | None
+    effect_name: str | None
+    effect: str | None
+    effect_interval: str | None
+
+
+def _level(level: float) -> str:
+    return f"{round(level * 100, 4):g}%"
+
+
+def _decimals_shared(values, digits: int = DIGITS) -> int | None:
+    """Decimals that show the largest of ``values`` to ``digits`` significant digits (None: use
+    scientific notation for each)."""
+    finite = [abs(v) for v in values if v is not None and math.isfinite(v)]
+    if not finite or max(finite) == 0:
+        return 0
+    largest = max(finite)
+    if largest < SCIENTIFIC_SMALL or largest >= SCIENTIFIC_LARGE:
+        return None
+    return _decimals_for(largest, digits)
+
+
+def _fixed(value: float | None, decimals: int | None, digits: int = DIGITS) -> str:
+    if value is None or not math.isfinite(value) or decimals is None:
+        return format_number(value, digits=digits)
+    text = f"{value:.{decimals}f}"
+    return text[1:] if text.startswith("-") and float(text) == 0 else text
+
+
+def _interval_text(interval, decimals: int | None, *, open_words: bool = True) -> str | None:
+    """ "1.2 to 7.0", or for a one-sided interval "at least 1.2" / "at most 7.0"."""
+    if interval is None:
+        return None
+    low, high = interval.low, interval.high
+    if low is None and high is None:
+        return "unbounded"
+    if high is None:
+        return f"at least {_fixed(low, decimals)}"
+    if low is None:
+        return f"at most {_fixed(high, decimals)}"
+    return f"{_fixed(low, decimals)} to {_fixed(high, decimals)}"
+
+
+def _df_text(df: float | None) -> str | None:
+    if df is None or not math.isfinite(df):
+        return None
+    if abs(df - round(df)) < 1e-9:
+        return f"{int(round(df))}"
+    return format_number(df, digits=DIGITS)
+
+
+def _statistic_text(key: str, value: float | None) -> str | None:
+    if value is None or not math.isfinite(value):
+        return None
+    if key in RANK_KEYS and abs(value * 2 - round(value * 2)) < 1e-9:
+        return f"{value:.1f}".removesuffix(".0")  # U is a whole or half number
+    return format_number(value, digits=DIGITS)
+
+
+def _effect_for(analysis, key: str):
+    for name in EFFECT_FOR.get(key, ("hedges_g",)):
+        effect = analysis.effect_sizes.get(name)
+        if effect is not None:
+            return effect
+    return None
+
+
+def _numbers(analysis, key: str, result) -> _Numbers:
+    interval = result.interval
+    ends = [result.estimate] + ([interval.low, interval.high] if interval is not None else [])
+    decimals = _decimals_shared(ends)
+    effect = _effect_for(analysis, key)
+    return _Numbers(
+        level=_level(interval.level if interval is not None else analysis.options.confidence_level),
+        estimate=_fixed(result.estimate, decimals),
+        interval=_interval_text(interval, decimals),
+        statistic=_statistic_text(key, result.statistic) if STATISTIC_LABEL.get(key) else None,
+        df=_df_text(result.df),
+        p=None if result.p_value is None else format_p(result.p_value),
+        mc_se=(None if result.mc_standard_error is None
+               else format_number(result.mc_standard_error, digits=2)),
+        effect_name=None if effect is None else effect.name,
+        effect=None if effect is None else _fixed(effect.value, EFFECT_DECIMALS),
+        effect_interval=None if effect is None else _interval_text(effect.interval, EFFECT_DECIMALS),
+    )
+
+
+def _measure(analysis) -> str:
+    """The name of the measured quantity when the source gives a single one, else ""."""
+    source = analysis.source or {}
+    values = source.get("value_columns") or ()
+    if source.get("group_column") and len(values) == 1:
+        return str(values[0])
+    return ""
+
+
+def _interval_phrase(numbers: _Numbers, alternative: str, prefix: str = "") -> str:
+    if numbers.interval is None:
+        return "no confidence interval"
+    sided = "one-sided " if alternative != "two-sided" else ""
+    return f"{sided}{prefix}{numbers.level} CI {numbers.interval}"
+
+
+def _group_phrase(summary, key: str, decimals: int | None) -> str:
+    if key in RANK_KEYS or key in MEDIAN_KEYS:
+        return (f"{summary.label} (median {_fixed(summary.median, decimals)}, quartiles "
+                f"{_fixed(summary.q1, decimals)} to {_fixed(summary.q3, decimals)}, n = {summary.n:,})")
+    return (f"{summary.label} (mean {_fixed(summary.mean, decimals)}, SD "
+            f"{_fixed(summary.sd, decimals)}, n = {summary.n:,})")
+
+
+def _summary_decimals(analysis, numbers_decimals: int | None) -> int | None:
+    values = []
+    for s in analysis.summaries:
+        values += [s.mean, s.sd, s.median, s.q1, s.q3]
+    own = _decimals_shared(values)
+    if own is None or numbers_decimals is None:
+        return own
+    return max(own, numbers_decimals)
+
+
+def _direction(analysis, key: str, estimate: float) -> str:
+    """The opening clause: who was higher, in the words of the procedure's quantity."""
+    first, second = analysis.summaries
+    result_decimals = _decimals_shared([estimate])
+    decimals = _summary_decimals(analysis, result_decimals)
+    measure = _measure(analysis)
+    a, b = _group_phrase(first, key, decimals), _group_phrase(second, key, decimals)
+    if key in RANK_KEYS:
+        if estimate > 0:
+            return f"Values of {a} tended to be higher than those of {b}"
+        if estimate < 0:
+            return f"Values of {a} tended to be lower than those of {b}"
+        return f"Values of {a} tended to be neither higher nor lower than those of {b}"
+    quantity = "median" if key in MEDIAN_KEYS else "mean"
+    quantity = f"{quantity} {measure}" if measure else quantity
+    if estimate > 0:
+        return f"The {quantity} of {a} was higher than that of {b}"
+    if estimate < 0:
+        return f"The {quantity} of {a} was lower than that of {b}"
+    return f"The {quantity} of {a} was the same as that of {b}"
+
+
+def _test_phrase(analysis, key: str, result, numbers: _Numbers) -> str:
+    """ "Welch t(52.3) = 2.84, p = 0.006" and its kin."""
+    alternative = result.alternative
+    first, second = analysis.groups.labels
+    parts = []
+    label = STATISTIC_LABEL.get(key)
+    if label and numbers.statistic is not None:
+        df = f"({numbers.df})" if numbers.df is not None and key != "z" else ""
+        parts.append(f"{label}{df} = {numbers.statistic}")
+    if numbers.p is not None:
+        sided = "one-sided " if alternative != "two-sided" else ""
+        method = "permutation " if key.startswith("permutation") else ""
+        p = f"{sided}{method}{p_clause(result.p_value)}"
+        if method:
+            if numbers.mc_se is not None:
+                p += f" (Monte Carlo standard error {numbers.mc_se})"
+        parts.append(p)
+        if alternative != "two-sided":
+            word = "higher" if alternative == "greater" else "lower"
+            parts.append(f"testing whether {first} is {word} than {second}")
+    elif key.startswith("bootstrap"):
+        parts.append("the bootstrap gives an interval but no p-value")
+    return ", ".join(parts)
+
+
+def _exclusions(analysis) -> str:
+    screening = analysis.screening
+    counts = getattr(screening, "excluded_counts", None) if screening is not None else None
+    if not counts:
+        return ""
+    pairs = list(counts.items()) if hasattr(counts, "items") else list(counts)
+    pairs = [(str(reason), int(n)) for reason, n in pairs if n]
+    if not pairs:
+        return ""
+    total = sum(n for _, n in pairs)
+    detail = "; ".join(f"{reason}: {n:,}" for reason, n in pairs)
+    verb = "value was" if total == 1 else "values were"
+    return f"{total:,} {verb} left out before the comparison ({detail})."
+
+
+def _paragraph(analysis, key: str, result, numbers: _Numbers) -> str:
+    opening = _direction(analysis, key, result.estimate)
+    estimate_name = result.estimate_name
+    prefix = "bootstrap " if key.startswith("bootstrap") else ""
+    body = f"{estimate_name} {numbers.estimate}, {_interval_phrase(numbers, result.alternative, prefix)}"
+    if key.startswith("bootstrap"):
+        body += f" ({analysis.options.n_resamples:,} resamples)"
+    test = _test_phrase(analysis, key, result, numbers)
+    sentence = f"{opening}: {body}" + (f"; {test}." if test else ".")
+    sentences = [sentence]
+    if numbers.effect is not None:
+        effect = f"{numbers.effect_name} = {numbers.effect}"
+        if numbers.effect_interval is not None:
+            sided = "one-sided " if result.alternative != "two-sided" else ""
+            effect += f", {sided}{numbers.level} CI {numbers.effect_interval}"
+        sentences.append(effect[:1].upper() + effect[1:] + ".")
+    sentences.extend(w if w.endswith(".") else w + "." for w in result.warnings)
+    excluded = _exclusions(analysis)
+    if excluded:
+        sentences.append(excluded)
+    recommended = analysis.recommendation.key
+    if key != recommended:
+        sentences.append(f"This report uses the {result.name}; the procedure suggested for these "
+                         f"data was the {analysis.recommendation.name}.")
+    return " ".join(sentences)
+
+
+def _result_rows(analysis, key: str, result, numbers: _Numbers) -> list[tuple[str, str]]:
+    sided = "one-sided " if result.alternative != "two-sided" else ""
+    rows = [("Procedure", result.name),
+            (result.estimate_name[:1].upper() + result.estimate_name[1:], numbers.estimate)]
+    if numbers.interval is not None:
+        rows.append((f"{sided}{numbers.level} confidence interval".capitalize(), numbers.interval))
+    label = STATISTIC_LABEL.get(key)
+    if label and numbers.statistic is not None:
+        rows.append(("Test statistic", f"{label.split()[-1]} = {numbers.statistic}"))
+    if numbers.df is not None and key != "z":
+        rows.append(("Degrees of freedom", numbers.df))
+    if numbers.p is not None:
+        rows.append((f"{sided}p-value".capitalize(), numbers.p))
+    if numbers.mc_se is not None:
+        rows.append(("Monte Carlo standard error of p", numbers.mc_se))
+    if numbers.effect is not None:
+        text = numbers.effect
+        if numbers.effect_interval is not None:
+            text += f" ({sided}{numbers.level} CI {numbers.effect_interval})"
+        rows.append((f"Effect size: {numbers.effect_name}", text))
+    rows.append(("How it was found", result.method))
+    source = analysis.source or {}
+    if source.get("file"):
+        where = str(source["file"]) + (f", sheet {source['sheet']}" if source.get("sheet") else "")
+        rows.append(("Data", where))
+    return rows
+
+
+def _summary_rows(analysis, decimals: int | None) -> tuple[list[str], list[list[str]]]:
+    head = ["Group", "n", "Mean", "SD", "Median", "Quartiles", "Range"]
+    body = [[s.label, f"{s.n:,}", _fixed(s.mean, decimals), _fixed(s.sd, decimals),
+             _fixed(s.median, decimals), f"{_fixed(s.q1, decimals)} to {_fixed(s.q3, decimals)}",
+             f"{_fixed(s.min, decimals)} to {_fixed(s.max, decimals)}"] for s in analysis.summaries]
+    return head, body
+
+
+_CELL = "border: 1px solid #999; padding: 2px 8px; text-align: left;"
+_NUMBER_CELL = "border: 1px solid #999; padding: 2px 8px; text-align: right;"
+_TABLE = "border-collapse: collapse; margin: 6px 0;"
+
+
+def _html(paragraph: str, rows, head, body) -> str:
+    e = html.escape
+    out = [f"<p>{e(paragraph)}</p>", f'<table style="{_TABLE}">']
+    for name, value in rows:
+        out.append(f'<tr><th style="{_CELL}">{e(name)}</th><td style="{_CELL}">{e(value)}</td></tr>')
+    out.append("</table>")
+    out.append(f'<table style="{_TABLE}">')
+    out.append("<tr>" + "".join(f'<th style="{_CELL}">{e(h)}</th>' for h in head) + "</tr>")
+    for line in body:
+        cells = [f'<td style="{_CELL}">{e(line[0])}</td>']
+        cells += [f'<td style="{_NUMBER_CELL}">{e(cell)}</td>' for cell in line[1:]]
+        out.append("<tr>" + "".join(cells) + "</tr>")
+    out.append("</table>")
+    out.append(f'<p style="font-size: smaller;">{e(CAUTION_LINE)}</p>')
+    return "\n".join(out)
+
+
+def _plain(paragraph: str, rows, head, body) -> str:
+    out = [textwrap.fill(paragraph, PLAIN_WIDTH), ""]
+    width = max(len(name) for name, _ in rows)
+    for name, value in rows:
+        out.append(f"{name.ljust(width)}  {value}")
+    out.append("")
+    widths = [max(len(line[i]) for line in [head, *body]) for i in range(len(head))]
+    for line in [head, *body]:
+        cells = [line[0].ljust(widths[0])] + [cell.rjust(w) for cell, w in zip(line[1:], widths[1:])]
+        out.append("  ".join(cells).rstrip())
+    out.append("")
+    out.append(textwrap.fill(CAUTION_LINE, PLAIN_WIDTH))
+    return "\n".join(out) + "\n"
+
+
+def _check_procedure(analysis, key: str) -> None:
+    if key not in analysis.procedures:
+        from .errors import OptionProblem
+
+        raise OptionProblem(f"The procedure '{key}' was not run for these data, so it cannot be reported.")
+
+
 def render(analysis, *, procedure: str | None = None) -> ReportText:
-    """The report of ``procedure`` (default: the recommended one) from a finished analysis."""
-    raise NotImplementedError("report rendering is being written")
+    """The report of one procedure from a finished analysis.
+
+    Parameters
+    ----------
+    analysis : engine.analysis.Analysis
+        The finished analysis.
+    procedure : str or None, keyword-only
+        A procedure key; None reports the recommended one.
+
+    Returns
+    -------
+    ReportText
+        A paragraph in the usual reporting convention (groups with their summaries, the estimate
+        with its interval, the test statistic with degrees of freedom and the p-value, the effect
+        size with its interval, values left out), an HTML fragment with the paragraph and two
+        compact tables, and a plain-text version with aligned tables.
+
+    Notes
+    -----
+    Estimates and interval ends share one number of decimals (three significant digits of the
+    largest); standardised effect sizes have two decimals; p-values follow :func:`format_p`.
+    One-sided intervals are written with their open end in words ("at least 1.2").
+
+    References
+    ----------
+    American Psychological Association (2020). Publication Manual, 7th ed., chapter 6 (numbers
+    and statistics in text).
+    """
+    key = procedure or analysis.recommendation.key
+    _check_procedure(analysis, key)
+    result = analysis.procedures[key]
+    numbers = _numbers(analysis, key, result)
+    paragraph = _paragraph(analysis, key, result, numbers)
+    rows = _result_rows(analysis, key, result, numbers)
+    head, body = _summary_rows(analysis, _summary_decimals(analysis, _decimals_shared([result.estimate])))
+    return ReportText(paragraph=paragraph, html=_html(paragraph, rows, head, body),
+                      plain=_plain(paragraph, rows, head, body))
