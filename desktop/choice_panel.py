@@ -1,0 +1,438 @@
+"""Which procedure: the shape and spread checks, the suggestion with its reasons, and the pick.
+
+The panel walks the user through the checks the engine ran (each with a small plot, a line of
+figures and a one-line reading), shows the suggested procedure with its reasons and the
+alternatives weighed, and lets the user pick another, saying what that pick assumes. Three
+things only the user can know are offered too: that the spreads are equal, that the values are
+ordinal ratings, and (tucked away, for the z procedure) the population standard deviations.
+
+Run on its own for a quick look: ``python -m desktop.choice_panel``.
+"""
+
+from __future__ import annotations
+
+import html
+from typing import Any
+
+from PySide6.QtCore import Qt
+from PySide6.QtGui import QDoubleValidator
+from PySide6.QtWidgets import (QCheckBox, QComboBox, QFormLayout, QFrame, QGroupBox, QHBoxLayout,
+                               QLabel, QLineEdit, QPushButton, QScrollArea, QToolButton,
+                               QVBoxLayout, QWidget)
+
+from engine import report
+
+from .plots import BoxPlot, QQPlot, ShapePlot
+
+__all__ = ["ChoicePanel", "CHECK_TIPS", "main_reading"]
+
+_SEVERITY_RANK = {"info": 0, "note": 1, "warning": 2}
+_SEVERITY_WORD = {"info": "", "note": "Worth a look: ", "warning": "Take care: "}
+_SHAPE_KEYS = ("normality", "skewness", "tails", "outliers", "ties")
+_SPREAD_KEYS = ("spread", "sizes", "pooled_ties")
+
+# One sentence per figure of the checks, shown when the pointer rests on it.
+CHECK_TIPS = {
+    "shapiro": "Shapiro-Wilk W is near 1 for values that look bell-shaped; a small p-value "
+               "means the shape departs from a normal distribution.",
+    "skewness": "Skewness measures lopsidedness: 0 for a symmetric shape, positive for a long "
+                "tail of high values, negative for a long tail of low values.",
+    "kurtosis": "Excess kurtosis measures tail weight: 0 for a normal distribution, positive "
+                "when extreme values are more common than that.",
+    "outliers": "Values more than 1.5 (mild) or 3 (far) interquartile ranges beyond the "
+                "quartiles, a common rule of thumb.",
+    "sd_ratio": "The larger standard deviation divided by the smaller; 1 means the groups vary "
+                "equally.",
+    "levene": "Levene's check compares the spread of the groups around their means; a small "
+              "p-value means the spreads differ.",
+    "brown_forsythe": "The Brown-Forsythe check compares spread around the medians, which "
+                      "stays reliable when the values are not bell-shaped.",
+    "n_ratio": "The larger group's size divided by the smaller's.",
+}
+
+_HINT = "Pick the columns and the two groups; the checks and the suggested procedure appear here."
+
+
+def main_reading(findings) -> Any:
+    """The finding to lead with: the most severe, the earliest among equals (None if empty)."""
+    best = None
+    for item in findings:
+        if best is None or _SEVERITY_RANK[item.severity] > _SEVERITY_RANK[best.severity]:
+            best = item
+    return best
+
+
+def _label(text: str = "", *, rich: bool = False) -> QLabel:
+    label = QLabel(text)
+    label.setWordWrap(True)
+    label.setTextFormat(Qt.TextFormat.RichText if rich else Qt.TextFormat.PlainText)
+    label.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
+    return label
+
+
+def _heading(text: str) -> QLabel:
+    label = QLabel(text)
+    font = label.font()
+    font.setBold(True)
+    font.setPointSizeF(font.pointSizeF() * 1.1)
+    label.setFont(font)
+    return label
+
+
+class _CheckCard(QFrame):
+    """One check: title, plots, a row of figures with tooltips, the reading and the rest."""
+
+    def __init__(self, plots: list[QWidget]) -> None:
+        super().__init__()
+        self.setFrameShape(QFrame.Shape.StyledPanel)
+        layout = QVBoxLayout(self)
+        self.title = _heading("")
+        layout.addWidget(self.title)
+        row = QHBoxLayout()
+        for plot in plots:
+            plot.setFixedHeight(190)
+            row.addWidget(plot)
+        layout.addLayout(row)
+        self.figures = QHBoxLayout()
+        self.figures.setSpacing(18)
+        layout.addLayout(self.figures)
+        self.reading = _label()
+        font = self.reading.font()
+        font.setBold(True)
+        self.reading.setFont(font)
+        layout.addWidget(self.reading)
+        self.more_button = QToolButton()
+        self.more_button.setCheckable(True)
+        self.more_button.setText("All the checks in this part")
+        self.more_button.setToolButtonStyle(Qt.ToolButtonStyle.ToolButtonTextBesideIcon)
+        self.more_button.setArrowType(Qt.ArrowType.RightArrow)
+        self.more_button.toggled.connect(self._toggle)
+        layout.addWidget(self.more_button)
+        self.more = _label()
+        self.more.setVisible(False)
+        layout.addWidget(self.more)
+
+    def _toggle(self, shown: bool) -> None:
+        self.more.setVisible(shown)
+        self.more_button.setArrowType(Qt.ArrowType.DownArrow if shown else Qt.ArrowType.RightArrow)
+
+    def show_figures(self, figures: list[tuple[str, str]]) -> None:
+        while self.figures.count():
+            item = self.figures.takeAt(0)
+            if item.widget() is not None:
+                item.widget().deleteLater()
+        for text, tip in figures:
+            label = QLabel(text)
+            label.setToolTip(tip)
+            self.figures.addWidget(label)
+        self.figures.addStretch(1)
+
+    def show_findings(self, findings) -> None:
+        lead = main_reading(findings)
+        self.reading.setText("" if lead is None else _SEVERITY_WORD[lead.severity] + lead.text)
+        others = [f for f in findings if f is not lead]
+        self.more.setText("\n".join(f"- {_SEVERITY_WORD[f.severity]}{f.text}" for f in others))
+        self.more_button.setVisible(bool(others))
+
+
+class ChoicePanel(QWidget):
+    """The checks, the suggested procedure and the user's pick.
+
+    Parameters
+    ----------
+    session : engine.session.Session
+        Read for the analysis and the choices; written with ``session.choose(procedure=...)``,
+        ``known_sd=...``, ``equal_spread_known=...`` and ``ordinal=...``.
+    """
+
+    def __init__(self, session, parent: QWidget | None = None) -> None:
+        super().__init__(parent)
+        self.session = session
+        self._syncing = False
+        self._build()
+        session.subscribe(self._on_session)
+        self.refresh()
+
+    # -- building ------------------------------------------------------------------------------
+    def _build(self) -> None:
+        outer = QVBoxLayout(self)
+        outer.setContentsMargins(0, 0, 0, 0)
+        self.hint = QLabel(_HINT)
+        self.hint.setWordWrap(True)
+        self.hint.setAlignment(Qt.AlignmentFlag.AlignCenter)
+        outer.addWidget(self.hint)
+        self.scroll = QScrollArea()
+        self.scroll.setWidgetResizable(True)
+        self.scroll.setFrameShape(QFrame.Shape.NoFrame)
+        outer.addWidget(self.scroll)
+        body = QWidget()
+        self.scroll.setWidget(body)
+        layout = QVBoxLayout(body)
+
+        layout.addWidget(_heading("1. How the values look"))
+        self.shape_plots = [(ShapePlot(), QQPlot()) for _ in range(2)]
+        self.shape_cards = [_CheckCard(list(pair)) for pair in self.shape_plots]
+        for card in self.shape_cards:
+            layout.addWidget(card)
+        self.box_plot = BoxPlot()
+        self.spread_card = _CheckCard([self.box_plot])
+        layout.addWidget(self.spread_card)
+
+        layout.addWidget(_heading("2. The suggested procedure"))
+        self.suggestion = _label(rich=True)
+        layout.addWidget(self.suggestion)
+
+        layout.addWidget(_heading("3. Your pick"))
+        pick_row = QHBoxLayout()
+        pick_row.addWidget(QLabel("Procedure to follow:"))
+        self.picker = QComboBox()
+        self.picker.setToolTip("Follow the suggestion, or pick another procedure; the findings "
+                               "then show that procedure's result.")
+        self.picker.currentIndexChanged.connect(self._picked)
+        pick_row.addWidget(self.picker, 1)
+        layout.addLayout(pick_row)
+        self.assumes = _label()
+        layout.addWidget(self.assumes)
+
+        known = QGroupBox("What you know beyond these data")
+        known_layout = QVBoxLayout(known)
+        self.equal_spread = QCheckBox("I know the spreads are equal")
+        self.equal_spread.setToolTip("Tick this only if you know from outside these data (a "
+                                     "specification, long experience) that both groups vary "
+                                     "alike; it allows the pooled t-test.")
+        self.equal_spread.toggled.connect(self._equal_spread_toggled)
+        self.ordinal = QCheckBox("The values are ordinal ratings (only their order means something)")
+        self.ordinal.setToolTip("Tick this for scores such as 1 to 5 ratings, where a step of one "
+                                "need not mean the same everywhere; it points to rank procedures.")
+        self.ordinal.toggled.connect(self._ordinal_toggled)
+        known_layout.addWidget(self.equal_spread)
+        known_layout.addWidget(self.ordinal)
+        self.advanced_button = QToolButton()
+        self.advanced_button.setCheckable(True)
+        self.advanced_button.setText("Advanced: known population SDs")
+        self.advanced_button.setToolButtonStyle(Qt.ToolButtonStyle.ToolButtonTextBesideIcon)
+        self.advanced_button.setArrowType(Qt.ArrowType.RightArrow)
+        self.advanced_button.toggled.connect(self._advanced_toggled)
+        known_layout.addWidget(self.advanced_button)
+        self.sd_box = QGroupBox("Use the z procedure with these population standard deviations")
+        self.sd_box.setCheckable(True)
+        self.sd_box.setToolTip("Only when the true standard deviation of each group is known from "
+                               "outside these data, for example a gauge's certified precision.")
+        self.sd_box.toggled.connect(self._sd_toggled)
+        sd_form = QFormLayout(self.sd_box)
+        self.sd_edits = [QLineEdit(), QLineEdit()]
+        self.sd_labels = [QLabel(), QLabel()]
+        for edit, label in zip(self.sd_edits, self.sd_labels):
+            validator = QDoubleValidator(0.0, 1e300, 12, edit)
+            validator.setNotation(QDoubleValidator.Notation.ScientificNotation)
+            edit.setValidator(validator)
+            edit.setPlaceholderText("a positive number")
+            edit.returnPressed.connect(self._apply_sd)
+            sd_form.addRow(label, edit)
+        self.sd_apply = QPushButton("Use these SDs")
+        self.sd_apply.clicked.connect(self._apply_sd)
+        self.sd_message = _label()
+        sd_form.addRow(self.sd_apply, self.sd_message)
+        self.sd_box.setVisible(False)
+        known_layout.addWidget(self.sd_box)
+        layout.addWidget(known)
+        layout.addStretch(1)
+
+    # -- listening -----------------------------------------------------------------------------
+    def _on_session(self, name: str, value: Any) -> None:
+        if name == "analysis":
+            self.refresh()
+        elif name == "choices":
+            self._sync_choices()
+
+    def cleanup(self) -> None:
+        """Stop listening to the session."""
+        self.session.unsubscribe(self._on_session)
+
+    # -- showing -------------------------------------------------------------------------------
+    def refresh(self) -> None:
+        """Show the current analysis (or the hint when there is none)."""
+        analysis = self.session.analysis
+        self.hint.setVisible(analysis is None)
+        self.scroll.setVisible(analysis is not None)
+        if analysis is None:
+            return
+        self._show_checks(analysis)
+        self._show_suggestion(analysis)
+        self._fill_picker(analysis)
+        self._sync_choices()
+
+    def _show_checks(self, analysis) -> None:
+        groups, checks = analysis.groups, analysis.diagnostics
+        values = (groups.x, groups.y)
+        for index, (card, (shape_plot, qq_plot)) in enumerate(zip(self.shape_cards, self.shape_plots)):
+            summary, shape = analysis.summaries[index], checks.shapes[index]
+            card.title.setText(f"Shape of {groups.labels[index]} ({summary.n} values)")
+            shape_plot.set_title("histogram and normal curve")
+            shape_plot.show_group(values[index], mean=summary.mean, sd=summary.sd, group=index)
+            qq_plot.set_title("normal Q-Q plot")
+            qq_plot.show_points(shape.qq_theoretical, shape.qq_observed, mean=summary.mean,
+                                sd=summary.sd, group=index)
+            card.show_figures(_shape_figures(shape))
+            card.show_findings([f for f in checks.findings if f.group == index and f.key in _SHAPE_KEYS]
+                               or [f for f in checks.findings if f.group == index])
+        self.spread_card.title.setText("Spread of the two groups")
+        self.box_plot.set_title("boxes with every value (thinned for large groups)")
+        self.box_plot.show_groups([(groups.labels[0], groups.x, analysis.summaries[0]),
+                                   (groups.labels[1], groups.y, analysis.summaries[1])])
+        self.spread_card.show_figures(_spread_figures(checks.spread))
+        self.spread_card.show_findings([f for f in checks.findings if f.group is None])
+
+    def _show_suggestion(self, analysis) -> None:
+        suggested = analysis.recommendation
+        parts = [f"<p>Suggested: <b>{html.escape(suggested.name)}</b></p>"]
+        if suggested.reasons:
+            parts.append("<p>Why:</p><ul>" + "".join(f"<li>{html.escape(r)}</li>" for r in suggested.reasons) + "</ul>")
+        if suggested.considered:
+            parts.append("<p>Also weighed:</p><ul>" + "".join(
+                f"<li><b>{html.escape(c.name)}</b>: {html.escape(c.why_not)}</li>" for c in suggested.considered)
+                + "</ul>")
+        self.suggestion.setText("".join(parts))
+
+    def _fill_picker(self, analysis) -> None:
+        self._syncing = True
+        try:
+            self.picker.clear()
+            self.picker.addItem(f"Follow the suggestion ({analysis.recommendation.name})", None)
+            for key, result in analysis.procedures.items():
+                self.picker.addItem(result.name, key)
+        finally:
+            self._syncing = False
+        labels = analysis.groups.labels
+        for label, text in zip(self.sd_labels, labels):
+            label.setText(f"SD of {text}:")
+
+    def _sync_choices(self) -> None:
+        """Make the widgets show the session's choices without writing anything back."""
+        choices = self.session.choices
+        self._syncing = True
+        try:
+            index = self.picker.findData(choices.procedure) if choices.procedure else 0
+            self.picker.setCurrentIndex(max(index, 0))
+            self.equal_spread.setChecked(choices.equal_spread_known)
+            self.ordinal.setChecked(choices.ordinal)
+            has_sd = choices.known_sd is not None
+            self.sd_box.setChecked(has_sd)
+            if has_sd:
+                self.advanced_button.setChecked(True)
+                for edit, value in zip(self.sd_edits, choices.known_sd):
+                    edit.setText(repr(float(value)))
+        finally:
+            self._syncing = False
+        self._show_assumption()
+
+    def _show_assumption(self) -> None:
+        analysis = self.session.analysis
+        if analysis is None:
+            return
+        suggested = analysis.recommendation
+        key = self.picker.currentData() or suggested.key
+        sentence = suggested.assumptions.get(key)
+        name = analysis.procedures[key].name if key in analysis.procedures else key
+        if sentence:
+            self.assumes.setText(f"What the {name} assumes. {sentence}")
+        else:
+            self.assumes.setText("")
+        picked = self.session.choices.procedure
+        if picked is not None and picked not in analysis.procedures:
+            self.assumes.setText(f"The procedure picked before ({picked}) is not available for "
+                                 "these data; the findings follow the suggestion.")
+
+    # -- writing back --------------------------------------------------------------------------
+    def _picked(self, _index: int) -> None:
+        if self._syncing:
+            return
+        self.session.choose(procedure=self.picker.currentData())
+        self._show_assumption()
+
+    def _equal_spread_toggled(self, checked: bool) -> None:
+        if not self._syncing:
+            self.session.choose(equal_spread_known=checked)
+
+    def _ordinal_toggled(self, checked: bool) -> None:
+        if not self._syncing:
+            self.session.choose(ordinal=checked)
+
+    def _advanced_toggled(self, shown: bool) -> None:
+        self.sd_box.setVisible(shown)
+        self.advanced_button.setArrowType(Qt.ArrowType.DownArrow if shown else Qt.ArrowType.RightArrow)
+
+    def _sd_toggled(self, checked: bool) -> None:
+        if self._syncing:
+            return
+        if checked:
+            self._apply_sd()
+        else:
+            self.sd_message.setText("")
+            self.session.choose(known_sd=None)
+
+    def _apply_sd(self) -> None:
+        if self._syncing or not self.sd_box.isChecked():
+            return
+        values = []
+        for edit, label in zip(self.sd_edits, self.sd_labels):
+            text = edit.text().strip().replace(",", ".")
+            try:
+                value = float(text)
+            except ValueError:
+                value = float("nan")
+            if not (value > 0 and value < float("inf")):
+                self.sd_message.setText(f"Enter a positive number for the {label.text().rstrip(':')}.")
+                return
+            values.append(value)
+        self.sd_message.setText("")
+        self.session.choose(known_sd=(values[0], values[1]))
+
+
+def _shape_figures(shape) -> list[tuple[str, str]]:
+    fmt = report.format_number
+    if shape.shapiro_w is None:
+        shapiro = "Shapiro-Wilk: not run"
+    else:
+        shapiro = f"Shapiro-Wilk W = {fmt(shape.shapiro_w)}, p = {report.format_p(shape.shapiro_p)}"
+    return [
+        (shapiro, CHECK_TIPS["shapiro"]),
+        (f"skewness {fmt(shape.skewness, digits=2)}", CHECK_TIPS["skewness"]),
+        (f"excess kurtosis {fmt(shape.excess_kurtosis, digits=2)}", CHECK_TIPS["kurtosis"]),
+        (f"apart from the rest: {len(shape.mild_outliers)} mild, {len(shape.far_outliers)} far",
+         CHECK_TIPS["outliers"]),
+    ]
+
+
+def _spread_figures(spread) -> list[tuple[str, str]]:
+    fmt = report.format_number
+    return [
+        (f"SD ratio {fmt(spread.sd_ratio, digits=2)}", CHECK_TIPS["sd_ratio"]),
+        (f"Levene p = {report.format_p(spread.levene_p)}", CHECK_TIPS["levene"]),
+        (f"Brown-Forsythe p = {report.format_p(spread.brown_forsythe_p)}", CHECK_TIPS["brown_forsythe"]),
+        (f"size ratio {fmt(spread.n_ratio, digits=2)}", CHECK_TIPS["n_ratio"]),
+    ]
+
+
+def _main() -> None:  # pragma: no cover - a quick look by hand
+    import sys
+    from pathlib import Path
+
+    from PySide6.QtWidgets import QApplication
+
+    from engine.session import Session
+
+    app = QApplication(sys.argv)
+    session = Session()
+    panel = ChoicePanel(session)
+    panel.resize(900, 1000)
+    panel.show()
+    if len(sys.argv) > 1:
+        from .screens import load_analysis
+
+        session.store("analysis", load_analysis(Path(sys.argv[1])))
+    app.exec()
+
+
+if __name__ == "__main__":  # pragma: no cover
+    _main()

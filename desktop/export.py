@@ -1,0 +1,234 @@
+"""A finished comparison written out as a self-contained HTML page or a PDF.
+
+The report records where the numbers came from and what was decided: the data file's name and
+checksum, the choices made, the values set aside, the date, then the findings as
+``engine.report.render`` words them and the plots as pictures. The HTML carries its pictures
+inside it (``data:`` addresses), so the one file is the whole report. The PDF is drawn by Qt's
+own writer from the same HTML.
+"""
+
+from __future__ import annotations
+
+import base64
+import html as html_text
+from datetime import datetime
+from pathlib import Path
+from typing import Any, Mapping, Sequence
+
+from PySide6.QtCore import QBuffer, QByteArray, QIODevice, QMarginsF, QSizeF, QUrl
+from PySide6.QtGui import QImage, QPageLayout, QPageSize, QPdfWriter, QTextDocument
+
+from engine.errors import FileProblem
+
+__all__ = ["level_text", "direction_text", "choice_rows", "set_aside_rows", "report_html",
+           "export_report", "REPORT_SUFFIXES"]
+
+REPORT_SUFFIXES = (".html", ".pdf")
+
+_DIRECTIONS = {
+    "two-sided": "do the two groups differ (either way)?",
+    "greater": "is the first group higher?",
+    "less": "is the first group lower?",
+}
+
+
+def level_text(level: float) -> str:
+    """A confidence level as a percentage, e.g. 0.95 -> "95%", 0.975 -> "97.5%"."""
+    return f"{round(100 * level, 6):g}%"
+
+
+def direction_text(alternative: str) -> str:
+    """The question a direction asks, in words."""
+    return _DIRECTIONS.get(alternative, alternative)
+
+
+def _yes_no(flag: bool) -> str:
+    return "yes" if flag else "no"
+
+
+def choice_rows(analysis, choices, *, procedure: str) -> list[tuple[str, str]]:
+    """(what, choice) pairs describing the decisions behind the analysis."""
+    from engine.report import format_number
+
+    options = analysis.options
+    labels = analysis.groups.labels
+    source = analysis.source
+    columns = source.get("columns") or choices.value_columns
+    if isinstance(columns, str):
+        columns = (columns,)
+    rows = [
+        ("Groups compared", f"{labels[0]} (first) and {labels[1]} (second); "
+                            f"differences are {labels[0]} minus {labels[1]}"),
+        ("Sizes", f"{analysis.groups.n[0]} and {analysis.groups.n[1]} values"),
+    ]
+    if source.get("sheet") or choices.sheet:
+        rows.append(("Sheet", str(source.get("sheet") or choices.sheet)))
+    if columns:
+        rows.append(("Columns used", ", ".join(str(c) for c in columns)))
+    rows += [
+        ("Question", direction_text(options.alternative)),
+        ("Confidence level", level_text(options.confidence_level)),
+        ("Procedure followed", _procedure_text(analysis, procedure)),
+        ("Spreads known to be equal", _yes_no(options.equal_spread_known)),
+        ("Values are ordinal ratings", _yes_no(options.ordinal)),
+    ]
+    if options.known_sd is not None:
+        rows.append(("Known population SDs",
+                     " and ".join(format_number(s, digits=4) for s in options.known_sd)))
+    rows.append(("Resamples for permutation and bootstrap",
+                 f"{options.n_resamples} (random seed {options.seed})"))
+    return rows
+
+
+def _procedure_text(analysis, procedure: str) -> str:
+    suggested = analysis.recommendation
+    name = analysis.procedures[procedure].name if procedure in analysis.procedures else procedure
+    if procedure == suggested.key:
+        return f"{name} (the suggested procedure)"
+    return f"{name} (picked by the user; the suggestion was {suggested.name})"
+
+
+def _describe_exclusion(item: Any) -> tuple[str, str]:
+    """(where, why) for one screening exclusion, whatever fields it has."""
+    if isinstance(item, Mapping):
+        get = item.get
+    else:
+        def get(name, default=None):
+            return getattr(item, name, default)
+    where = []
+    if get("row") is not None:
+        where.append(f"row {get('row')}")
+    if get("column") is not None:
+        where.append(f"column {get('column')}")
+    if get("value") is not None:
+        where.append(f"value '{get('value')}'")
+    reason = get("reason") or get("text") or ""
+    return (", ".join(where) or str(item)), str(reason)
+
+
+def set_aside_rows(analysis, choices) -> list[tuple[str, str]]:
+    """(where, why) pairs: values the user set aside, then those the screening left out."""
+    rows = []
+    for (row, column), reason in sorted((choices.set_aside or {}).items(), key=lambda kv: (kv[0][0], str(kv[0][1]))):
+        rows.append((f"row {row}, column {column} (set aside by the user)", str(reason)))
+    screening = analysis.screening
+    for item in getattr(screening, "exclusions", None) or ():
+        rows.append(_describe_exclusion(item))
+    return rows
+
+
+def _escape(text: Any) -> str:
+    return html_text.escape(str(text), quote=True)
+
+
+def _table(rows: Sequence[tuple[str, str]], headings: tuple[str, str]) -> str:
+    head = "".join(f"<th align='left'>{_escape(h)}</th>" for h in headings)
+    body = "".join(f"<tr><td>{_escape(a)}</td><td>{_escape(b)}</td></tr>" for a, b in rows)
+    return (f"<table border='1' cellspacing='0' cellpadding='4'><thead><tr>{head}</tr></thead>"
+            f"<tbody>{body}</tbody></table>")
+
+
+def _file_rows(analysis, choices) -> list[tuple[str, str]]:
+    path = choices.path
+    name = analysis.source.get("file") or (path.name if path else None)
+    if not name:
+        return [("Data", "entered directly, not read from a file")]
+    rows = [("Data file", Path(str(name)).name)]
+    if path is not None and Path(path).is_file():
+        from engine.io import file_checksum
+
+        rows.append(("Checksum of the file", str(file_checksum(path))))
+    else:
+        rows.append(("Checksum of the file", "not available: the file was not found when the report was written"))
+    return rows
+
+
+def _png_base64(image: QImage) -> str:
+    data = QByteArray()
+    buffer = QBuffer(data)
+    buffer.open(QIODevice.OpenModeFlag.WriteOnly)
+    image.save(buffer, "PNG")
+    buffer.close()
+    return base64.b64encode(bytes(data)).decode("ascii")
+
+
+def report_html(analysis, choices, *, procedure: str, findings_html: str, cautions: Sequence[str],
+                images: Sequence[tuple[str, QImage]] = (), when: datetime | None = None,
+                embed_images: bool = True) -> str:
+    """The whole report as one HTML document.
+
+    ``images`` are (caption, image) pairs. With ``embed_images`` each image is a ``data:`` URL
+    (one self-contained file); without it the ``src`` is ``plot<i>.png`` for a resource loader.
+    """
+    when = when or datetime.now().astimezone()
+    labels = analysis.groups.labels
+    title = f"Comparison of {labels[0]} and {labels[1]}"
+    parts = [f"<h1>{_escape(title)}</h1>",
+             f"<p>Written on {_escape(when.strftime('%Y-%m-%d %H:%M %Z').strip())} by Twofold.</p>",
+             "<h2>The data</h2>", _table(_file_rows(analysis, choices), ("What", "Record")),
+             "<h2>Choices made</h2>", _table(choice_rows(analysis, choices, procedure=procedure),
+                                            ("What", "Choice")),
+             "<h2>Values set aside</h2>"]
+    aside = set_aside_rows(analysis, choices)
+    parts.append(_table(aside, ("Where", "Why")) if aside else "<p>No values were set aside.</p>")
+    parts += ["<h2>Findings</h2>", findings_html]
+    for number, (caption, image) in enumerate(images):
+        src = f"data:image/png;base64,{_png_base64(image)}" if embed_images else f"plot{number}.png"
+        width = round(image.width() / max(image.devicePixelRatio(), 1.0))
+        parts.append(f"<p><img src='{src}' width='{min(width, 640)}' alt='{_escape(caption)}'><br>"
+                     f"<i>{_escape(caption)}</i></p>")
+    parts.append("<h2>Before relying on this</h2><ul>")
+    parts += [f"<li>{_escape(c)}</li>" for c in cautions]
+    parts.append("</ul>")
+    body = "\n".join(parts)
+    return (f'<!DOCTYPE html>\n<html><head><meta charset="utf-8"><title>{_escape(title)}</title>'
+            "<style>body{font-family:sans-serif;max-width:48em;margin:1.5em auto;line-height:1.4}"
+            "table{border-collapse:collapse}td,th{padding:4px 8px;vertical-align:top}</style>"
+            f"</head><body>\n{body}\n</body></html>\n")
+
+
+def _write_pdf(path: Path, document_html: str, images: Sequence[tuple[str, QImage]]) -> None:
+    document = QTextDocument()
+    for number, (_caption, image) in enumerate(images):
+        document.addResource(QTextDocument.ResourceType.ImageResource, QUrl(f"plot{number}.png"), image)
+    document.setHtml(document_html)
+    writer = QPdfWriter(str(path))
+    writer.setPageSize(QPageSize(QPageSize.PageSizeId.A4))
+    writer.setPageMargins(QMarginsF(18, 18, 18, 18), QPageLayout.Unit.Millimeter)
+    writer.setResolution(300)
+    writer.setTitle(document.metaInformation(QTextDocument.MetaInformation.DocumentTitle))
+    writer.setCreator("Twofold")
+    layout = writer.pageLayout()
+    page = layout.paintRectPixels(writer.resolution())
+    document.setPageSize(QSizeF(page.width(), page.height()))
+    document.print_(writer)
+
+
+def export_report(path: str | Path, analysis, choices, *, procedure: str, findings_html: str,
+                  cautions: Sequence[str], images: Sequence[tuple[str, QImage]] = (),
+                  when: datetime | None = None) -> Path:
+    """Write the report to ``path``: HTML or PDF by its suffix. Returns the path written.
+
+    Raises :class:`engine.errors.FileProblem` for another suffix or when the file cannot be
+    written (the message names the file).
+    """
+    path = Path(path)
+    suffix = path.suffix.lower()
+    if suffix not in REPORT_SUFFIXES:
+        raise FileProblem(f"A report is written as .html or .pdf, not '{path.suffix or path.name}'.")
+    embed = suffix == ".html"
+    document = report_html(analysis, choices, procedure=procedure, findings_html=findings_html,
+                           cautions=cautions, images=images, when=when, embed_images=embed)
+    try:
+        if embed:
+            path.write_text(document, encoding="utf-8")
+        else:
+            if not path.parent.is_dir():
+                raise OSError("the folder does not exist")
+            _write_pdf(path, document, images)
+            if not path.is_file() or path.stat().st_size == 0:
+                raise OSError("the PDF writer produced nothing")
+    except OSError as error:
+        reason = error.strerror or str(error)
+        raise FileProblem(f"Could not write the report to {path}: {reason}.") from None
+    return path

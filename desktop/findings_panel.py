@@ -1,0 +1,413 @@
+"""The findings: a headline, a compact table, every procedure side by side, and the cautions.
+
+The panel shows the result of the procedure the user follows (``session.choices.procedure``, or
+the suggested one). Every number comes from the engine and is written by ``engine.report``;
+the panel lays them out and offers them to a document: copy the findings (a table and plain
+text), copy or save the plot, export an HTML or PDF report.
+
+Run on its own for a quick look: ``python -m desktop.findings_panel``.
+"""
+
+from __future__ import annotations
+
+import html
+from pathlib import Path
+from typing import Any
+
+from PySide6.QtCore import Qt
+from PySide6.QtWidgets import (QAbstractItemView, QFileDialog, QFrame, QHBoxLayout, QHeaderView,
+                               QLabel, QPushButton, QScrollArea, QSizePolicy, QTableWidget,
+                               QTableWidgetItem, QVBoxLayout, QWidget)
+
+from engine import report
+from engine.errors import FileProblem
+
+from . import clipboard, export
+from .icons import icon
+from .plots import BoxPlot, IntervalPlot, plot_image, save_plot
+
+__all__ = ["FindingsPanel", "GENERAL_CAUTIONS", "EFFECT_FOR", "STATISTIC_TIPS", "interval_text"]
+
+# The effect size shown beside each procedure: standardised mean differences for the mean-based
+# procedures, the rank-biserial correlation for those built on ranks or medians.
+EFFECT_FOR = {
+    "welch_t": "hedges_g",
+    "pooled_t": "hedges_g",
+    "z": "cohen_d",
+    "permutation_mean": "hedges_g",
+    "bootstrap_mean": "hedges_g",
+    "mann_whitney": "rank_biserial",
+    "permutation_median": "rank_biserial",
+    "bootstrap_median": "rank_biserial",
+}
+
+# Shown after the suggestion's own cautions (which already cover p-values, passing checks and
+# regulated work).
+GENERAL_CAUTIONS = (
+    "These procedures assume two independent groups; paired or repeated measurements need a "
+    "paired procedure.",
+)
+
+# One sentence per statistic, shown when the pointer rests on a row of the table.
+STATISTIC_TIPS = {
+    "difference": "The procedure's estimate of how far the first group lies above the second "
+                  "(a negative value means below).",
+    "statistic": "The procedure's own measure of how far the data sit from no difference, on "
+                 "the scale its p-value is read from.",
+    "df": "How much information the t distribution behind the p-value rests on; larger groups "
+          "give more degrees of freedom.",
+    "p": "How often chance alone would give a difference at least this far from zero if the "
+         "groups did not differ; small values speak against no difference.",
+    "interval": "The range of differences these data are consistent with at the chosen "
+                "confidence level.",
+    "cohen_d": "The difference in means measured in pooled standard deviations.",
+    "hedges_g": "Cohen's d with a small-sample correction: the difference in means in pooled "
+                "standard deviations.",
+    "glass_delta": "The difference in means measured in the second group's standard deviation.",
+    "rank_biserial": "From -1 to 1: how much more often a value of the first group exceeds one "
+                     "of the second than the other way round.",
+    "common_language": "The chance that a value drawn from the first group exceeds one drawn "
+                       "from the second.",
+}
+
+_HINT = "Pick the columns and the two groups; the findings appear here."
+
+
+def interval_text(interval) -> str:
+    """An interval in words and numbers: "0.12 to 1.9", "0.12 or more", "1.9 or less"."""
+    if interval is None:
+        return "none given"
+    low, high = interval.low, interval.high
+    if low is None and high is None:
+        return "unbounded"
+    if high is None:
+        return f"{report.format_number(low)} or more"
+    if low is None:
+        return f"{report.format_number(high)} or less"
+    return f"{report.format_number(low)} to {report.format_number(high)}"
+
+
+def _label(text: str = "", *, wrap: bool = True, selectable: bool = True) -> QLabel:
+    label = QLabel(text)
+    label.setWordWrap(wrap)
+    label.setTextFormat(Qt.TextFormat.PlainText)
+    if selectable:
+        label.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
+    return label
+
+
+def _heading(text: str) -> QLabel:
+    label = QLabel(text)
+    font = label.font()
+    font.setBold(True)
+    font.setPointSizeF(font.pointSizeF() * 1.1)
+    label.setFont(font)
+    return label
+
+
+class FindingsPanel(QWidget):
+    """What the comparison found, ready to copy into a document.
+
+    Parameters
+    ----------
+    session : engine.session.Session
+        Read for the analysis and the procedure to follow; never written except to report a
+        failed save or export as ``problem``.
+    """
+
+    def __init__(self, session, parent: QWidget | None = None) -> None:
+        super().__init__(parent)
+        self.session = session
+        self._shown_key: str | None = None
+        self._build()
+        session.subscribe(self._on_session)
+        self.refresh()
+
+    # -- building ------------------------------------------------------------------------------
+    def _build(self) -> None:
+        outer = QVBoxLayout(self)
+        outer.setContentsMargins(0, 0, 0, 0)
+        self.hint = _label(_HINT, selectable=False)
+        self.hint.setAlignment(Qt.AlignmentFlag.AlignCenter)
+        outer.addWidget(self.hint)
+
+        self.scroll = QScrollArea()
+        self.scroll.setWidgetResizable(True)
+        self.scroll.setFrameShape(QFrame.Shape.NoFrame)
+        outer.addWidget(self.scroll)
+        body = QWidget()
+        self.scroll.setWidget(body)
+        layout = QVBoxLayout(body)
+
+        buttons = QHBoxLayout()
+        self.copy_button = QPushButton(icon("copy"), "Copy findings")
+        self.copy_button.setToolTip("Put the findings on the clipboard as a table and as plain "
+                                    "text, ready to paste into a document.")
+        self.copy_plot_button = QPushButton(icon("copy"), "Copy plot")
+        self.copy_plot_button.setToolTip("Put the side-by-side plot on the clipboard as a picture.")
+        self.save_plot_button = QPushButton("Save plot...")
+        self.save_plot_button.setToolTip("Save the side-by-side plot as a PNG picture or an SVG drawing.")
+        self.export_button = QPushButton(icon("export"), "Export report...")
+        self.export_button.setToolTip("Write the whole report, with the file's checksum and the "
+                                      "choices made, as an HTML page or a PDF.")
+        self.copy_button.clicked.connect(self.copy_findings)
+        self.copy_plot_button.clicked.connect(self.copy_plot)
+        self.save_plot_button.clicked.connect(self.ask_save_plot)
+        self.export_button.clicked.connect(self.ask_export_report)
+        for button in (self.copy_button, self.copy_plot_button, self.save_plot_button, self.export_button):
+            buttons.addWidget(button)
+        buttons.addStretch(1)
+        layout.addLayout(buttons)
+
+        self.headline = _label()
+        font = self.headline.font()
+        font.setPointSizeF(font.pointSizeF() * 1.25)
+        self.headline.setFont(font)
+        layout.addWidget(self.headline)
+        self.followed = _label()
+        layout.addWidget(self.followed)
+
+        self.table = QTableWidget(0, 3)
+        self.table.verticalHeader().setVisible(False)
+        self.table.setEditTriggers(QAbstractItemView.EditTrigger.NoEditTriggers)
+        self.table.setSelectionMode(QAbstractItemView.SelectionMode.ContiguousSelection)
+        self.table.setWordWrap(True)
+        header = self.table.horizontalHeader()
+        header.setSectionResizeMode(QHeaderView.ResizeMode.ResizeToContents)
+        self.table.setSizePolicy(QSizePolicy.Policy.Fixed, QSizePolicy.Policy.Fixed)
+        self.table.setHorizontalScrollBarPolicy(Qt.ScrollBarPolicy.ScrollBarAlwaysOff)
+        self.table.setVerticalScrollBarPolicy(Qt.ScrollBarPolicy.ScrollBarAlwaysOff)
+        layout.addWidget(self.table)
+
+        layout.addWidget(_heading("Every applicable procedure side by side"))
+        self.agreement = _label()
+        layout.addWidget(self.agreement)
+        self.plot = IntervalPlot()
+        self.plot.setToolTip("Each line is one procedure's interval for the difference, its dot the "
+                             "estimate; the dashed line is no difference. The highlighted line is "
+                             "the procedure the findings follow.")
+        layout.addWidget(self.plot)
+
+        layout.addWidget(_heading("About this procedure"))
+        self.method = _label()
+        layout.addWidget(self.method)
+
+        layout.addWidget(_heading("Before relying on this"))
+        self.cautions = _label()
+        self.cautions.setTextFormat(Qt.TextFormat.RichText)
+        layout.addWidget(self.cautions)
+        layout.addStretch(1)
+
+    # -- listening -----------------------------------------------------------------------------
+    def _on_session(self, name: str, value: Any) -> None:
+        if name == "analysis":
+            self.refresh()
+        elif name == "choices" and self.session.analysis is not None:
+            if self.procedure_key() != self._shown_key:
+                self.refresh()
+
+    def cleanup(self) -> None:
+        """Stop listening to the session."""
+        self.session.unsubscribe(self._on_session)
+
+    # -- what is shown -------------------------------------------------------------------------
+    def procedure_key(self) -> str | None:
+        """The key of the procedure the findings follow (the user's pick if the analysis has it)."""
+        analysis = self.session.analysis
+        if analysis is None:
+            return None
+        picked = self.session.choices.procedure
+        if picked in analysis.procedures:
+            return picked
+        return analysis.recommendation.key
+
+    def report_text(self) -> report.ReportText:
+        """The engine's words for the findings being shown."""
+        return report.render(self.session.analysis, procedure=self.procedure_key())
+
+    def cautions_list(self) -> list[str]:
+        """The suggestion's own cautions, then the ones that hold for every comparison."""
+        analysis = self.session.analysis
+        own = list(analysis.recommendation.cautions) if analysis is not None else []
+        return own + list(GENERAL_CAUTIONS)
+
+    def refresh(self) -> None:
+        """Show the current analysis (or the hint when there is none)."""
+        analysis = self.session.analysis
+        ready = analysis is not None
+        self.hint.setVisible(not ready)
+        self.scroll.setVisible(ready)
+        for button in (self.copy_button, self.copy_plot_button, self.save_plot_button, self.export_button):
+            button.setEnabled(ready)
+        if not ready:
+            self._shown_key = None
+            return
+        key = self.procedure_key()
+        self._shown_key = key
+        result = analysis.procedures[key]
+        self.headline.setText(self.report_text().paragraph)
+        suggested = analysis.recommendation
+        if key == suggested.key:
+            self.followed.setText(f"Following the suggested procedure: {result.name}.")
+        else:
+            self.followed.setText(f"Following your pick, {result.name}; the suggestion was {suggested.name}.")
+        self._fill_table(analysis, result)
+        self._show_robustness(analysis, key)
+        notes = [result.method[:1].upper() + result.method[1:] + "."] if result.method else []
+        notes += list(result.warnings)
+        self.method.setText("\n".join(notes))
+        self.cautions.setText("<ul>" + "".join(f"<li>{html.escape(c)}</li>" for c in self.cautions_list()) + "</ul>")
+
+    def _fill_table(self, analysis, result) -> None:
+        labels = analysis.groups.labels
+        level = export.level_text(analysis.options.confidence_level)
+        effect = analysis.effect_sizes.get(EFFECT_FOR.get(result.key, "hedges_g"))
+        rows = [
+            (f"{result.estimate_name[:1].upper()}{result.estimate_name[1:]} ({labels[0]} minus {labels[1]})",
+             report.format_number(result.estimate), interval_text(result.interval),
+             STATISTIC_TIPS["difference"] + " " + STATISTIC_TIPS["interval"]),
+            (result.statistic_name or "Test statistic", report.format_number(result.statistic), "",
+             STATISTIC_TIPS["statistic"]),
+            ("Degrees of freedom", report.format_number(result.df), "", STATISTIC_TIPS["df"]),
+            ("p-value", report.format_p(result.p_value), "", STATISTIC_TIPS["p"]),
+        ]
+        if effect is not None:
+            rows.append((effect.name[:1].upper() + effect.name[1:], report.format_number(effect.value),
+                         interval_text(effect.interval), STATISTIC_TIPS.get(effect.key, "")))
+        self.table.setHorizontalHeaderLabels(["", "Value", f"{level} interval"])
+        self.table.setRowCount(len(rows))
+        for row, (what, value, interval, tip) in enumerate(rows):
+            for column, text in enumerate((what, value, interval)):
+                item = QTableWidgetItem(text)
+                item.setToolTip(tip)
+                if column:
+                    item.setTextAlignment(Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter)
+                self.table.setItem(row, column, item)
+        self.table.resizeRowsToContents()
+        height = self.table.horizontalHeader().height() + 2 * self.table.frameWidth()
+        height += sum(self.table.rowHeight(r) for r in range(self.table.rowCount()))
+        self.table.setFixedHeight(height)
+        self.table.resizeColumnsToContents()
+        width = 2 * self.table.frameWidth() + sum(self.table.columnWidth(c) for c in range(3))
+        self.table.setFixedWidth(width + 4)
+
+    def _show_robustness(self, analysis, key: str) -> None:
+        robustness = analysis.robustness
+        labels = analysis.groups.labels
+        self.plot.show_rows(robustness.rows, picked=key,
+                            axis_label=f"difference, {labels[0]} minus {labels[1]}")
+        self.agreement.setText(_agreement_text(robustness))
+
+    # -- into a document -----------------------------------------------------------------------
+    def copy_findings(self) -> None:
+        """Put the findings on the clipboard: HTML with a table, and plain text."""
+        if self.session.analysis is None:
+            return
+        text = self.report_text()
+        clipboard.copy_findings_text(text.html, text.plain)
+
+    def copy_plot(self) -> None:
+        """Put the side-by-side plot on the clipboard as an image."""
+        if self.session.analysis is None:
+            return
+        clipboard.copy_image(plot_image(self.plot))
+
+    def save_plot(self, path: str | Path) -> Path:
+        """Save the side-by-side plot as PNG or SVG (by the suffix of ``path``).
+
+        Raises :class:`engine.errors.FileProblem` for another suffix or a failed write.
+        """
+        path = Path(path)
+        try:
+            return save_plot(self.plot, path)
+        except ValueError as error:
+            raise FileProblem(f"{str(error)[:1].upper()}{str(error)[1:]} ({path.name}).") from None
+        except OSError as error:
+            raise FileProblem(f"Could not save the plot to {path}: {error.strerror or error}.") from None
+
+    def export_report(self, path: str | Path) -> Path:
+        """Write the report as HTML or PDF (by the suffix of ``path``) and return the path.
+
+        Raises :class:`engine.errors.FileProblem` for another suffix or a failed write.
+        """
+        analysis = self.session.analysis
+        if analysis is None:
+            raise FileProblem("There are no findings to export yet.")
+        text = self.report_text()
+        images = [("Every applicable procedure: the difference and its interval", plot_image(self.plot)),
+                  ("The two groups: boxes and the values", _box_image(analysis))]
+        return export.export_report(path, analysis, self.session.choices, procedure=self.procedure_key(),
+                                    findings_html=text.html, cautions=self.cautions_list(), images=images)
+
+    def ask_save_plot(self) -> None:
+        """Ask where to save the plot, then save it (a failure is reported as ``problem``)."""
+        path, _ = QFileDialog.getSaveFileName(self, "Save the plot", "difference.png",
+                                              "PNG picture (*.png);;SVG drawing (*.svg)")
+        if path:
+            self._attempt(self.save_plot, path)
+
+    def ask_export_report(self) -> None:
+        """Ask where to write the report, then write it (a failure is reported as ``problem``)."""
+        path, _ = QFileDialog.getSaveFileName(self, "Export the report", "comparison.html",
+                                              "HTML page (*.html);;PDF document (*.pdf)")
+        if path:
+            self._attempt(self.export_report, path)
+
+    def _attempt(self, action, path: str) -> None:
+        try:
+            action(path)
+        except FileProblem as error:
+            self.session.store("problem", error.message)
+
+
+def _agreement_text(robustness) -> str:
+    rows = robustness.rows
+    level = export.level_text(robustness.level)
+    finding = [row.name for row in rows if row.finds_difference]
+    if not rows:
+        return "No procedure gave an interval or a p-value."
+    if robustness.agree:
+        verdict = "all find a difference" if finding else "none finds a clear difference"
+        return f"The {len(rows)} procedures agree at the {level} level: {verdict}."
+    others = [row.name for row in rows if not row.finds_difference]
+    return (f"The procedures disagree at the {level} level. A difference is found by "
+            f"{', '.join(finding)}, but not by {', '.join(others)}; the answer depends on the "
+            "procedure, so lean on the size of the difference and its interval.")
+
+
+def _box_image(analysis):
+    """The box plot of both groups drawn off screen, for the report."""
+    plot = BoxPlot()
+    plot.setAttribute(Qt.WidgetAttribute.WA_DontShowOnScreen, True)
+    plot.resize(560, 320)
+    groups = analysis.groups
+    plot.show_groups([(groups.labels[0], groups.x, analysis.summaries[0]),
+                      (groups.labels[1], groups.y, analysis.summaries[1])])
+    plot.show()
+    image = plot_image(plot)
+    plot.close()
+    plot.deleteLater()
+    return image
+
+
+def _main() -> None:  # pragma: no cover - a quick look by hand
+    import sys
+
+    from PySide6.QtWidgets import QApplication
+
+    from engine.session import Session
+
+    app = QApplication(sys.argv)
+    session = Session()
+    panel = FindingsPanel(session)
+    panel.resize(900, 900)
+    panel.show()
+    if len(sys.argv) > 1:
+        from .screens import load_analysis
+
+        session.store("analysis", load_analysis(Path(sys.argv[1])))
+    app.exec()
+
+
+if __name__ == "__main__":  # pragma: no cover
+    _main()

@@ -1,0 +1,380 @@
+"""Small pyqtgraph plots for the checks and the findings, coloured from the window's palette.
+
+Every plot only draws what the engine computed (summaries, Q-Q points, intervals) plus the
+bins, jitter and thinning that drawing needs. Large groups stay quick: histograms come from
+``numpy.histogram``, and scatter overlays show at most :data:`MAX_POINTS` points per group.
+This module is the only one in the program that imports pyqtgraph.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+from pathlib import Path
+from typing import Sequence
+
+import numpy as np
+import pyqtgraph as pg
+from PySide6.QtCore import QEvent, QPointF, QRectF, Qt
+from PySide6.QtGui import QColor, QFontMetrics, QGuiApplication, QImage, QPainter, QPalette
+from PySide6.QtWidgets import QWidget
+
+__all__ = [
+    "MAX_POINTS",
+    "PlotColours",
+    "plot_colours",
+    "thin_sorted",
+    "sample_points",
+    "histogram",
+    "ThemedPlot",
+    "ShapePlot",
+    "QQPlot",
+    "BoxPlot",
+    "IntervalPlot",
+    "plot_image",
+    "save_plot",
+]
+
+MAX_POINTS = 2000
+_MAX_BINS = 80
+
+# Our own pair of group colours: a sea blue and a clay orange, each in a shade for light and one
+# for dark backgrounds. They differ in lightness as well as hue, so they stay apart in grey.
+_GROUP_SHADES = {False: ("#1f6f8b", "#c45a1c"), True: ("#5ab8d6", "#f0a060")}
+_PICKED_SHADE = {False: "#6b3fa0", True: "#c9a6f2"}
+
+
+@dataclass(frozen=True)
+class PlotColours:
+    """Colours for one plot, taken from a palette (``groups`` are our own two colours)."""
+
+    background: QColor
+    foreground: QColor
+    faint: QColor
+    groups: tuple[QColor, QColor]
+    picked: QColor
+    dark: bool
+
+
+def plot_colours(palette: QPalette | None = None) -> PlotColours:
+    """Background and ink from ``palette`` (the application's by default), plus group colours."""
+    palette = palette if palette is not None else QGuiApplication.palette()
+    background = palette.color(QPalette.ColorRole.Base)
+    foreground = palette.color(QPalette.ColorRole.Text)
+    dark = background.lightnessF() < 0.5
+    faint = QColor(foreground)
+    faint.setAlphaF(0.35)
+    shades = _GROUP_SHADES[dark]
+    return PlotColours(background, foreground, faint, (QColor(shades[0]), QColor(shades[1])),
+                       QColor(_PICKED_SHADE[dark]), dark)
+
+
+def _with_alpha(colour: QColor, alpha: float) -> QColor:
+    result = QColor(colour)
+    result.setAlphaF(alpha)
+    return result
+
+
+def thin_sorted(values: np.ndarray, limit: int = MAX_POINTS) -> np.ndarray:
+    """Indices of at most ``limit`` evenly spaced entries of a sorted array, both ends kept."""
+    n = len(values)
+    if n <= limit:
+        return np.arange(n)
+    return np.unique(np.linspace(0, n - 1, limit).round().astype(np.intp))
+
+
+def sample_points(values: np.ndarray, limit: int = MAX_POINTS, *, keep: np.ndarray | None = None,
+                  seed: int = 0) -> np.ndarray:
+    """At most ``limit`` of ``values`` for a scatter overlay: every ``keep`` one first, the rest
+    drawn at random (a fixed seed, so the picture does not change between redraws)."""
+    values = np.asarray(values, dtype=float)
+    if values.size <= limit:
+        return values
+    keep = np.zeros(values.size, dtype=bool) if keep is None else keep
+    kept = values[keep][:limit]
+    room = limit - kept.size
+    others = np.flatnonzero(~keep)
+    if room > 0 and others.size:
+        chosen = np.random.default_rng(seed).choice(others, size=min(room, others.size), replace=False)
+        kept = np.concatenate([kept, values[chosen]])
+    return kept
+
+
+def histogram(values: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Bin edges and densities of ``values`` (numpy's "auto" bins, at most 80 of them)."""
+    values = np.asarray(values, dtype=float)
+    if values.size == 0:
+        return np.array([0.0, 1.0]), np.array([0.0])
+    low, high = float(values.min()), float(values.max())
+    if low == high:
+        low, high = low - 0.5, high + 0.5
+    edges = np.histogram_bin_edges(values, bins="auto", range=(low, high))
+    if edges.size - 1 > _MAX_BINS:
+        edges = np.linspace(low, high, _MAX_BINS + 1)
+    density, edges = np.histogram(values, bins=edges, density=True)
+    return edges, density
+
+
+class ThemedPlot(pg.PlotWidget):
+    """A ``PlotWidget`` whose background, axes and text follow the palette, redrawn on change."""
+
+    def __init__(self, parent: QWidget | None = None, *, title: str = "") -> None:
+        self._ready = False
+        super().__init__(parent)
+        self._title = title
+        self.setMenuEnabled(False)
+        self.setMouseEnabled(x=False, y=False)
+        self.hideButtons()
+        self.setMinimumSize(180, 150)
+        self.colours = plot_colours(self.palette())
+        self._restyle()
+        self._ready = True
+
+    def changeEvent(self, event: QEvent) -> None:  # noqa: N802 (Qt's name)
+        super().changeEvent(event)
+        if self._ready and event.type() == QEvent.Type.PaletteChange:
+            self.colours = plot_colours(self.palette())
+            self._restyle()
+            self.redraw()
+
+    def _restyle(self) -> None:
+        colours = self.colours
+        self.setBackground(colours.background)
+        for name in ("left", "bottom"):
+            axis = self.getPlotItem().getAxis(name)
+            axis.setPen(pg.mkPen(colours.faint))
+            axis.setTextPen(pg.mkPen(colours.foreground))
+            axis.enableAutoSIPrefix(False)
+        self.set_title(self._title)
+
+    def set_title(self, text: str) -> None:
+        self._title = text
+        self.getPlotItem().setTitle(text or None, color=self.colours.foreground.name(), size="9pt")
+
+    def set_axis_labels(self, bottom: str = "", left: str = "") -> None:
+        ink = self.colours.foreground.name()
+        self.getPlotItem().setLabel("bottom", bottom, color=ink)
+        self.getPlotItem().setLabel("left", left, color=ink)
+
+    def redraw(self) -> None:
+        """Draw the current data again (after a palette change); subclasses override."""
+
+
+class ShapePlot(ThemedPlot):
+    """Histogram of one group (as a density) with the normal curve of its mean and SD."""
+
+    def __init__(self, parent: QWidget | None = None) -> None:
+        super().__init__(parent)
+        self._data: tuple | None = None
+
+    def show_group(self, values: np.ndarray, *, mean: float, sd: float, group: int = 0) -> None:
+        self._data = (np.asarray(values, dtype=float), float(mean), float(sd), int(group))
+        self.redraw()
+
+    def redraw(self) -> None:
+        self.clear()
+        if self._data is None:
+            return
+        values, mean, sd, group = self._data
+        colour = self.colours.groups[group]
+        edges, density = histogram(values)
+        self.addItem(pg.PlotDataItem(edges, density, stepMode="center", fillLevel=0,
+                                     brush=_with_alpha(colour, 0.35), pen=pg.mkPen(colour, width=1.5)))
+        if math.isfinite(sd) and sd > 0:
+            grid = np.linspace(edges[0], edges[-1], 200)
+            curve = np.exp(-0.5 * ((grid - mean) / sd) ** 2) / (sd * math.sqrt(2 * math.pi))
+            self.addItem(pg.PlotDataItem(grid, curve, pen=pg.mkPen(self.colours.foreground, width=1.2,
+                                                                   style=Qt.PenStyle.DashLine)))
+        self.set_axis_labels("value", "density")
+
+
+class QQPlot(ThemedPlot):
+    """Normal Q-Q points of one group and the line of its mean and SD."""
+
+    def __init__(self, parent: QWidget | None = None) -> None:
+        super().__init__(parent)
+        self._data: tuple | None = None
+
+    def show_points(self, theoretical: np.ndarray | None, observed: np.ndarray | None, *,
+                    mean: float, sd: float, group: int = 0) -> None:
+        t = np.asarray(theoretical if theoretical is not None else [], dtype=float)
+        o = np.asarray(observed if observed is not None else [], dtype=float)
+        self._data = (t, o, float(mean), float(sd), int(group))
+        self.redraw()
+
+    def redraw(self) -> None:
+        self.clear()
+        if self._data is None:
+            return
+        theoretical, observed, mean, sd, group = self._data
+        colour = self.colours.groups[group]
+        keep = thin_sorted(theoretical)
+        if keep.size:
+            self.addItem(pg.ScatterPlotItem(theoretical[keep], observed[keep], size=5,
+                                            pen=pg.mkPen(None), brush=_with_alpha(colour, 0.8)))
+            ends = np.array([theoretical[keep[0]], theoretical[keep[-1]]])
+            if math.isfinite(sd):
+                self.addItem(pg.PlotDataItem(ends, mean + sd * ends,
+                                             pen=pg.mkPen(self.colours.foreground, width=1.2,
+                                                          style=Qt.PenStyle.DashLine)))
+        self.set_axis_labels("normal quantile", "value")
+
+
+class BoxPlot(ThemedPlot):
+    """A box per group (quartiles and median from the engine) with the points laid over it.
+
+    Whiskers reach the most extreme value within 1.5 IQR of the box (common practice); points
+    beyond them are always drawn, the others thinned to :data:`MAX_POINTS` per group.
+    """
+
+    def __init__(self, parent: QWidget | None = None) -> None:
+        super().__init__(parent)
+        self._data: list | None = None
+
+    def show_groups(self, groups: Sequence[tuple[str, np.ndarray, object]]) -> None:
+        """``groups``: (label, values, summary) pairs; summary has q1, median and q3."""
+        self._data = [(label, np.asarray(values, dtype=float), summary) for label, values, summary in groups]
+        self.redraw()
+
+    def redraw(self) -> None:
+        self.clear()
+        if not self._data:
+            return
+        ink = self.colours.foreground
+        for place, (label, values, summary) in enumerate(self._data):
+            colour = self.colours.groups[place % 2]
+            q1, median, q3 = summary.q1, summary.median, summary.q3
+            spread = q3 - q1
+            low_fence, high_fence = q1 - 1.5 * spread, q3 + 1.5 * spread
+            inside = (values >= low_fence) & (values <= high_fence)
+            reach_low = float(values[inside].min()) if inside.any() else q1
+            reach_high = float(values[inside].max()) if inside.any() else q3
+            box = pg.QtWidgets.QGraphicsRectItem(QRectF(place - 0.25, q1, 0.5, spread))
+            box.setPen(pg.mkPen(colour, width=1.5))
+            box.setBrush(pg.mkBrush(_with_alpha(colour, 0.18)))
+            self.addItem(box)
+            pen = pg.mkPen(ink, width=1.2)
+            self.addItem(pg.PlotDataItem([place - 0.25, place + 0.25], [median, median],
+                                         pen=pg.mkPen(colour, width=2.5)))
+            for start, end in ((q1, reach_low), (q3, reach_high)):
+                self.addItem(pg.PlotDataItem([place, place], [start, end], pen=pen))
+                self.addItem(pg.PlotDataItem([place - 0.1, place + 0.1], [end, end], pen=pen))
+            shown = sample_points(values, keep=~inside, seed=place)
+            jitter = np.random.default_rng(place).uniform(-0.18, 0.18, shown.size)
+            self.addItem(pg.ScatterPlotItem(place + jitter, shown, size=4, pen=pg.mkPen(None),
+                                            brush=_with_alpha(colour, 0.55)))
+        axis = self.getPlotItem().getAxis("bottom")
+        axis.setTicks([[(i, group[0]) for i, group in enumerate(self._data)]])
+        self.getPlotItem().setXRange(-0.6, len(self._data) - 0.4, padding=0)
+        self.set_axis_labels("", "value")
+
+
+@dataclass(frozen=True)
+class _Row:
+    name: str
+    estimate: float
+    low: float | None
+    high: float | None
+    finds_difference: bool
+    picked: bool
+
+
+class IntervalPlot(ThemedPlot):
+    """The difference and its confidence interval for each procedure, one row each.
+
+    A vertical line marks no difference; an open end of a one-sided interval runs to the edge of
+    the plot and ends in an arrow. The procedure the findings follow is drawn in its own colour.
+    """
+
+    def __init__(self, parent: QWidget | None = None) -> None:
+        super().__init__(parent)
+        self._rows: list[_Row] = []
+        self._axis_label = ""
+        self.setMinimumSize(320, 200)
+
+    def show_rows(self, rows: Sequence[object], *, picked: str | None = None, axis_label: str = "") -> None:
+        """``rows``: the engine's ``RobustnessRow`` objects; ``picked`` is the key to highlight."""
+        self._rows = []
+        for row in rows:
+            interval = row.interval
+            self._rows.append(_Row(row.name, row.estimate,
+                                   None if interval is None else interval.low,
+                                   None if interval is None else interval.high,
+                                   row.finds_difference, row.key == picked))
+        self._axis_label = axis_label
+        self.redraw()
+
+    def _span(self) -> tuple[float, float]:
+        ends = [0.0]
+        for row in self._rows:
+            ends += [v for v in (row.estimate, row.low, row.high) if v is not None and math.isfinite(v)]
+        low, high = min(ends), max(ends)
+        margin = (high - low) * 0.12 or 1.0
+        return low - margin, high + margin
+
+    def redraw(self) -> None:
+        self.clear()
+        if not self._rows:
+            return
+        left, right = self._span()
+        ink, faint = self.colours.foreground, self.colours.faint
+        self.addItem(pg.InfiniteLine(0.0, angle=90, pen=pg.mkPen(faint, width=1.2, style=Qt.PenStyle.DashLine)))
+        count = len(self._rows)
+        for place, row in enumerate(self._rows):
+            y = count - 1 - place
+            colour = self.colours.picked if row.picked else ink
+            width = 3.0 if row.picked else 1.8
+            if row.low is not None or row.high is not None:
+                low = row.low if row.low is not None else left
+                high = row.high if row.high is not None else right
+                self.addItem(pg.PlotDataItem([low, high], [y, y], pen=pg.mkPen(colour, width=width)))
+                for end, value, symbol in ((low, row.low, "t3"), (high, row.high, "t2")):
+                    marker = "|" if value is not None else symbol
+                    self.addItem(pg.ScatterPlotItem([end], [y], symbol=marker, size=12,
+                                                    pen=pg.mkPen(colour, width=width), brush=pg.mkBrush(colour)))
+            self.addItem(pg.ScatterPlotItem([row.estimate], [y], symbol="o", size=10 if row.picked else 8,
+                                            pen=pg.mkPen(colour), brush=pg.mkBrush(colour)))
+        ticks = [(count - 1 - i, row.name) for i, row in enumerate(self._rows)]
+        axis = self.getPlotItem().getAxis("left")
+        axis.setTicks([ticks])
+        metrics = QFontMetrics(axis.style.get("tickFont") or self.font())
+        axis.setWidth(min(320, 16 + max(metrics.horizontalAdvance(row.name) for row in self._rows)))
+        self.getPlotItem().setYRange(-0.6, count - 0.4, padding=0)
+        pad = 0.03 * (right - left)
+        self.getPlotItem().setXRange(left - pad, right + pad, padding=0)
+        self.setFixedHeight(90 + 34 * count)
+        self.set_axis_labels(self._axis_label, "")
+
+
+def plot_image(widget: QWidget, *, scale: float = 2.0) -> QImage:
+    """The widget drawn into an image ``scale`` times its size (sharp when pasted into a document)."""
+    size = widget.size()
+    image = QImage(round(size.width() * scale), round(size.height() * scale), QImage.Format.Format_ARGB32)
+    image.setDevicePixelRatio(scale)
+    image.fill(widget.palette().color(QPalette.ColorRole.Base))
+    painter = QPainter(image)
+    painter.setRenderHint(QPainter.RenderHint.Antialiasing)
+    widget.render(painter, QPointF(0, 0))
+    painter.end()
+    return image
+
+
+def save_plot(widget: ThemedPlot, path: str | Path) -> Path:
+    """Write ``widget`` to ``path`` as PNG or SVG, chosen by the suffix; returns the path.
+
+    Raises ``ValueError`` for another suffix and ``OSError`` when the file cannot be written.
+    """
+    path = Path(path)
+    suffix = path.suffix.lower()
+    if suffix == ".png":
+        if not plot_image(widget).save(str(path), "PNG"):
+            raise OSError(f"could not write {path}")
+    elif suffix == ".svg":
+        from pyqtgraph.exporters import SVGExporter
+
+        SVGExporter(widget.getPlotItem()).export(str(path))
+        if not path.is_file():
+            raise OSError(f"could not write {path}")
+    else:
+        raise ValueError(f"a plot is saved as .png or .svg, not '{path.suffix}'")
+    return path
