@@ -1,0 +1,223 @@
+"""Shape, spread, outlier and tie checks, against scipy, numpy and the textbook formulas."""
+
+import time
+
+import numpy as np
+import pytest
+from scipy import stats
+
+from engine import diagnostics as dg
+from engine.diagnostics import diagnose
+from engine.errors import DataProblem
+from engine.results import Groups
+
+
+def _groups(x, y, labels=("bolts A", "bolts B")):
+    return Groups(labels, np.asarray(x, dtype=float), np.asarray(y, dtype=float))
+
+
+@pytest.mark.parametrize("n", [5, 12, 40, 300])
+def test_skewness_and_kurtosis_match_the_reference_library(n):
+    rng = np.random.default_rng(n)
+    x, y = rng.gamma(2.0, 3.0, n), rng.standard_t(5, n + 3)
+    shapes = diagnose(_groups(x, y)).shapes
+    for shape, values in zip(shapes, (x, y)):
+        # reference: scipy.stats.skew(values, bias=False), the adjusted Fisher-Pearson G1
+        assert shape.skewness == pytest.approx(stats.skew(values, bias=False), rel=1e-10)
+        # reference: scipy.stats.kurtosis(values, fisher=True, bias=False), G2
+        assert shape.excess_kurtosis == pytest.approx(stats.kurtosis(values, bias=False), rel=1e-10)
+
+
+@pytest.mark.parametrize("n", [3, 4, 10, 25, 100, 1000])
+def test_standard_errors_follow_the_textbook_variances(n):
+    # reference: Joanes and Gill (1998), The Statistician 47:183, exact variances under normality:
+    # var(G1) = 6 n (n - 1) / ((n - 2)(n + 1)(n + 3));
+    # var(G2) = 24 n (n - 1)^2 / ((n - 3)(n - 2)(n + 3)(n + 5)) (written here in this other form)
+    var_g1 = 6 * n * (n - 1) / ((n - 2) * (n + 1) * (n + 3))
+    assert dg.skewness_se(n) == pytest.approx(np.sqrt(var_g1), rel=1e-12)
+    if n >= 4:
+        var_g2 = 24 * n * (n - 1) ** 2 / ((n - 3) * (n - 2) * (n + 3) * (n + 5))
+        assert dg.kurtosis_se(n) == pytest.approx(np.sqrt(var_g2), rel=1e-12)
+    else:
+        assert np.isnan(dg.kurtosis_se(n))
+
+
+def test_standard_error_of_skewness_against_simulation():
+    # reference: theory - the SD of G1 over many normal samples equals SES (Joanes and Gill 1998)
+    rng = np.random.default_rng(42)
+    n, reps = 20, 20_000
+    samples = rng.normal(size=(reps, n))
+    g1 = stats.skew(samples, axis=1, bias=False)
+    g2 = stats.kurtosis(samples, axis=1, bias=False)
+    # Monte Carlo SE of an SD estimate is about sd / sqrt(2 reps): 0.5% here; allow 3%
+    assert np.std(g1) == pytest.approx(dg.skewness_se(n), rel=0.03)
+    assert np.std(g2) == pytest.approx(dg.kurtosis_se(n), rel=0.06)  # G2 is far from normal
+
+
+def test_known_values_of_the_standard_errors():
+    # reference: direct evaluation of the Joanes and Gill (1998) formulas for n = 100 by hand:
+    # sqrt(59400 / 1019494) = 0.24138 and 2 * 0.24138 * sqrt(9999 / 10185) = 0.47833
+    assert dg.skewness_se(100) == pytest.approx(0.24138, abs=5e-5)
+    assert dg.kurtosis_se(100) == pytest.approx(0.47833, abs=5e-5)
+
+
+def test_shapiro_wilk_matches_the_reference_library():
+    rng = np.random.default_rng(3)
+    x, y = rng.normal(5, 1, 30), rng.lognormal(0, 0.8, 45)
+    shapes = diagnose(_groups(x, y)).shapes
+    for shape, values in zip(shapes, (x, y)):
+        # reference: scipy.stats.shapiro(values)
+        expected = stats.shapiro(values)
+        assert shape.shapiro_w == pytest.approx(expected.statistic, rel=1e-12)
+        assert shape.shapiro_p == pytest.approx(expected.pvalue, rel=1e-10)
+
+
+def test_shapiro_wilk_is_not_run_outside_its_valid_range_and_says_why():
+    rng = np.random.default_rng(4)
+    result = diagnose(_groups(rng.normal(size=2), rng.normal(size=6000)))
+    small, large = result.shapes
+    assert small.shapiro_w is None and small.shapiro_p is None
+    assert large.shapiro_w is None and large.shapiro_p is None
+    assert "at least 3" in result.finding("normality", 0).text
+    assert "not run" in result.finding("normality", 1).text
+    assert "5,000" in result.finding("normality", 1).text
+
+
+def test_a_group_that_does_not_vary_is_described_without_failing():
+    result = diagnose(_groups([2.0, 2.0, 2.0, 2.0], [1.0, 2.5, 3.0, 4.5, 5.0]))
+    shape = result.shapes[0]
+    assert shape.shapiro_p is None and np.isnan(shape.skewness) and np.isnan(shape.excess_kurtosis)
+    assert shape.tie_share == 1.0
+    assert "equal" in result.finding("normality", 0).text
+    assert result.finding("spread").severity == "warning"
+
+
+@pytest.mark.parametrize("center, field", [("mean", "levene"), ("median", "brown_forsythe")])
+def test_spread_checks_match_the_reference_library(center, field):
+    rng = np.random.default_rng(11)
+    x, y = rng.normal(10, 1.0, 25), rng.normal(10, 2.2, 37)
+    spread = diagnose(_groups(x, y)).spread
+    # reference: scipy.stats.levene(x, y, center=center)
+    expected = stats.levene(x, y, center=center)
+    assert getattr(spread, f"{field}_stat") == pytest.approx(expected.statistic, rel=1e-10)
+    assert getattr(spread, f"{field}_p") == pytest.approx(expected.pvalue, rel=1e-9)
+
+
+def test_sd_and_size_ratios():
+    rng = np.random.default_rng(12)
+    x, y = rng.normal(0, 3, 20), rng.normal(0, 1, 50)
+    spread = diagnose(_groups(x, y)).spread
+    # reference: numpy standard deviations with ddof=1
+    sds = np.std(x, ddof=1), np.std(y, ddof=1)
+    assert spread.sd_ratio == pytest.approx(max(sds) / min(sds), rel=1e-12)
+    assert spread.n_ratio == pytest.approx(2.5)
+
+
+def test_outliers_at_tukeys_fences():
+    x = np.r_[np.arange(1.0, 21.0), 35.0, 60.0, -40.0]
+    y = np.linspace(0, 1, 10)
+    shape = diagnose(_groups(x, y)).shapes[0]
+    # reference: numpy.percentile (linear) and Tukey's fences q1 - k IQR, q3 + k IQR, k = 1.5, 3
+    q1, q3 = np.percentile(x, [25, 75])
+    iqr = q3 - q1
+    far = x[(x < q1 - 3 * iqr) | (x > q3 + 3 * iqr)]
+    mild = x[((x < q1 - 1.5 * iqr) | (x > q3 + 1.5 * iqr)) & ~np.isin(x, far)]
+    assert sorted(shape.far_outliers) == sorted(far.tolist())
+    assert sorted(shape.mild_outliers) == sorted(mild.tolist())
+    assert 60.0 in shape.far_outliers and -40.0 in shape.far_outliers
+    assert 35.0 in shape.mild_outliers
+
+
+def test_a_far_outlier_in_a_small_group_is_a_warning_but_chance_ones_in_a_huge_group_are_not():
+    rng = np.random.default_rng(13)
+    small = np.r_[rng.normal(10, 1, 19), 30.0]
+    result = diagnose(_groups(small, rng.normal(10, 1, 1_000_000)))
+    assert result.finding("outliers", 0).severity == "warning"
+    # a normal sample of a million has a few values beyond 3 IQR by chance (about 2.3 expected)
+    assert result.finding("outliers", 1).severity != "warning"
+
+
+def test_tie_shares_against_counting_with_numpy_unique():
+    rng = np.random.default_rng(14)
+    x = rng.integers(1, 8, 60).astype(float)
+    y = np.r_[rng.normal(size=40), 3.0, 3.0]
+    result = diagnose(_groups(x, y))
+
+    # reference: numpy.unique counts - a value is tied when its count is above one
+    def share(values):
+        _, inverse, counts = np.unique(values, return_inverse=True, return_counts=True)
+        return np.mean(counts[inverse] > 1)
+
+    assert result.shapes[0].tie_share == pytest.approx(share(x))
+    assert result.shapes[1].tie_share == pytest.approx(2 / 42)
+    assert result.pooled_tie_share == pytest.approx(share(np.r_[x, y]))
+
+
+def test_a_tie_across_the_groups_counts_only_for_the_pooled_share():
+    # reference: counting by hand - 3.0 is the only repeated value, once in each group
+    result = diagnose(_groups([1.0, 2.0, 3.0], [3.0, 4.0, 5.0]))
+    assert result.shapes[0].tie_share == 0.0 and result.shapes[1].tie_share == 0.0
+    assert result.pooled_tie_share == pytest.approx(2 / 6)
+
+
+def test_qq_coordinates_use_blom_positions_and_are_thinned_for_big_groups():
+    rng = np.random.default_rng(15)
+    x, y = rng.normal(size=50), rng.normal(size=100_000)
+    shapes = diagnose(_groups(x, y)).shapes
+    n = x.size
+    # reference: scipy.stats.norm.ppf at Blom's positions (i - 3/8) / (n + 1/4)
+    expected = stats.norm.ppf((np.arange(1, n + 1) - 0.375) / (n + 0.25))
+    np.testing.assert_allclose(shapes[0].qq_theoretical, expected, rtol=1e-12)
+    np.testing.assert_array_equal(shapes[0].qq_observed, np.sort(x))
+    big = shapes[1]
+    assert big.qq_observed.size <= dg.QQ_MAX_POINTS
+    assert big.qq_observed[0] == y.min() and big.qq_observed[-1] == y.max()
+    assert np.all(np.diff(big.qq_observed) >= 0) and np.all(np.diff(big.qq_theoretical) > 0)
+
+
+def test_one_finding_per_check_with_stable_keys():
+    rng = np.random.default_rng(16)
+    result = diagnose(_groups(rng.normal(size=30), rng.normal(size=25)))
+    keys = {(f.key, f.group) for f in result.findings}
+    per_group = {"normality", "skewness", "tails", "outliers", "ties"}
+    expected = {(k, g) for k in per_group for g in (0, 1)} | {("spread", None), ("sizes", None),
+                                                             ("pooled_ties", None)}
+    assert keys == expected
+    assert len(result.findings) == len(expected)
+    assert all(f.severity in ("info", "note", "warning") and f.text.endswith(".") for f in result.findings)
+
+
+def test_clearly_skewed_small_group_and_unequal_spread_are_flagged():
+    rng = np.random.default_rng(17)
+    x, y = rng.lognormal(0, 1.2, 25), rng.normal(0, 0.2, 25)
+    result = diagnose(_groups(x, y))
+    assert dg.is_clearly_skewed(result.shapes[0])
+    assert not dg.is_clearly_skewed(result.shapes[1])
+    assert result.finding("skewness", 0).severity in ("note", "warning")
+    assert result.finding("spread").severity == "warning"
+
+
+def test_labels_keep_their_case_in_findings():
+    rng = np.random.default_rng(18)
+    result = diagnose(_groups(rng.normal(size=10), rng.normal(size=10), labels=("Batch-X", "Batch-Y")))
+    assert all("Batch-X" in f.text for f in result.findings if f.group == 0)
+
+
+def test_an_empty_group_is_refused_with_a_sentence():
+    with pytest.raises(DataProblem, match="Group 'B' has no values"):
+        diagnose(_groups([1.0, 2.0, 3.0], [], labels=("A", "B")))
+
+
+@pytest.mark.slow
+def test_two_million_values_are_checked_in_well_under_a_second():
+    rng = np.random.default_rng(19)
+    groups = _groups(rng.normal(size=1_000_000), rng.gamma(2.0, size=1_000_000).round(2))
+    diagnose(groups)  # warm caches
+    best = min(_timed(groups) for _ in range(2))
+    assert best < 1.0
+
+
+def _timed(groups):
+    start = time.perf_counter()
+    diagnose(groups)
+    return time.perf_counter() - start
