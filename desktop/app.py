@@ -1,0 +1,118 @@
+"""The program's entry point: ``twofold [FILE]``, ``python -m desktop [FILE]``.
+
+``twofold FILE`` is also what a double-click on a data file runs once the program is registered
+with the desktop (``twofold --install-desktop-entry``); the file goes through the same
+:meth:`MainWindow.open_file` as the Open dialog, a drop on the window or the recent list.
+"""
+
+from __future__ import annotations
+
+import argparse
+import sys
+from pathlib import Path
+from typing import Any, Sequence
+
+__all__ = ["main", "start", "build_parser", "run_panel"]
+
+
+def build_parser() -> argparse.ArgumentParser:
+    parser = argparse.ArgumentParser(
+        prog="twofold", description="Compare two independent groups of measurements from a data file.")
+    parser.add_argument("files", nargs="*", type=Path, metavar="FILE",
+                        help="a .csv, .tsv, .txt, .xlsx, .xls or .ods file to open")
+    parser.add_argument("--install-desktop-entry", action="store_true",
+                        help="let a double-click on a .csv, .tsv, .xlsx or .ods file open Twofold")
+    parser.add_argument("--uninstall-desktop-entry", action="store_true",
+                        help="undo --install-desktop-entry")
+    return parser
+
+
+def _application() -> Any:
+    from PySide6.QtCore import Qt
+    from PySide6.QtGui import QGuiApplication
+    from PySide6.QtWidgets import QApplication
+
+    app = QApplication.instance()
+    if app is None:
+        QGuiApplication.setHighDpiScaleFactorRoundingPolicy(Qt.HighDpiScaleFactorRoundingPolicy.PassThrough)
+        app = QApplication([sys.argv[0] if sys.argv else "twofold"])
+    app.setApplicationName("Twofold")
+    app.setOrganizationName("Twofold")
+    app.setApplicationDisplayName("Twofold")
+    app.setDesktopFileName("twofold")
+    return app
+
+
+def _keep_running(window: Any) -> None:
+    """Show an unexpected error of the window's own code in its message bar instead of a crash."""
+    previous = sys.excepthook
+
+    def hook(kind: type, error: BaseException, trace: Any) -> None:
+        if issubclass(kind, KeyboardInterrupt):
+            previous(kind, error, trace)
+            return
+        try:
+            window.message_bar.show_message("analysis_crashed", reason=f"{kind.__name__}: {error}")
+        except RuntimeError:  # the window is already gone
+            previous(kind, error, trace)
+
+    sys.excepthook = hook
+
+
+def start(argv: Sequence[str] | None = None, **window_options: Any) -> Any:
+    """Create the application and the window for command line ``argv``; open its file, if any.
+
+    Returns the shown :class:`desktop.main_window.MainWindow`. ``window_options`` go to it
+    (tests pass their own settings and sheet chooser).
+    """
+    args = build_parser().parse_args(argv)
+    _application()
+    from .main_window import MainWindow
+
+    window = MainWindow(**window_options)
+    _keep_running(window)
+    if args.files:
+        window.open_file(args.files[0])  # starts reading while the window is being shown
+    window.show()
+    return window
+
+
+def main(argv: Sequence[str] | None = None) -> int:
+    """Run Twofold; the exit code is 0 unless the desktop registration failed."""
+    args = build_parser().parse_args(argv)
+    if args.install_desktop_entry or args.uninstall_desktop_entry:
+        from .desktop_entry import install, uninstall
+
+        try:
+            where = install() if args.install_desktop_entry else uninstall()
+        except OSError as problem:
+            print(f"twofold: {problem}", file=sys.stderr)
+            return 1
+        print(where)
+        return 0
+    window = start(argv)
+    return _application().exec()
+
+
+def run_panel(panel_class: type, argv: Sequence[str]) -> int:  # pragma: no cover - a manual look
+    """Show one panel on its own over the file ``argv[1]`` (``python -m desktop.<panel> FILE``)."""
+    from engine import io
+    from engine.session import Session
+
+    app = _application()
+    session = Session()
+    if len(argv) > 1:
+        table = io.read_table(Path(argv[1]))
+        proposal = io.propose_layout(table)
+        session.choose(path=Path(argv[1]), layout=proposal.layout, group_column=proposal.group_column,
+                       value_columns=tuple(proposal.value_columns))
+        session.store("table", table)
+        values = proposal.value_columns[0] if proposal.layout == "long" else tuple(proposal.value_columns)
+        try:
+            session.store("intake", io.make_groups(table, values=values, group=proposal.group_column))
+        except Exception as problem:  # noqa: BLE001 - show it, as the window would
+            session.store("problem", str(problem))
+    panel = panel_class(session)
+    panel.resize(900, 600)
+    panel.show()
+    return app.exec()

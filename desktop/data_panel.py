@@ -1,0 +1,333 @@
+"""The "Your data" panel: the file's cells in a read-only grid, and the screening in plain words.
+
+Cells the screening left out are greyed and explain themselves on hover; a value the user sets
+aside (a suspected slip of the pen) is struck through, carries the user's reason, and can be
+brought back from the grid's menu or from the list beside it. Setting aside and bringing back
+write ``set_aside`` into the session; nothing is ever written to the file.
+
+Run on its own for a quick look: ``python -m desktop.data_panel demo_files/bolt_strength.csv``.
+"""
+
+from __future__ import annotations
+
+import html
+import sys
+from typing import Any, Callable, Mapping
+
+from PySide6.QtCore import QItemSelectionModel, QPoint, Qt, QUrl
+from PySide6.QtGui import QAction, QGuiApplication, QKeySequence
+from PySide6.QtWidgets import (
+    QAbstractItemView,
+    QHBoxLayout,
+    QInputDialog,
+    QLabel,
+    QMenu,
+    QPushButton,
+    QSplitter,
+    QTableView,
+    QTextBrowser,
+    QVBoxLayout,
+    QWidget,
+)
+
+from .table_model import MARK_SET_ASIDE, FrameModel
+
+__all__ = ["DataPanel", "screening_html", "aside_order", "MAX_COPY_CELLS"]
+
+MAX_COPY_CELLS = 200_000  # a larger selection is copied only up to this many cells
+_BRING_BACK = "bring-back"
+
+AskReason = Callable[[str], "str | None"]
+
+
+def _escape(text: object) -> str:
+    return html.escape(str(text))
+
+
+def _pairs(mapping: Any) -> list[tuple[Any, Any]]:
+    if mapping is None:
+        return []
+    if isinstance(mapping, Mapping):
+        return list(mapping.items())
+    return list(mapping)
+
+
+def _count(value: Any) -> int:
+    if value is None:
+        return 0
+    if isinstance(value, int):
+        return value
+    return len(value)
+
+
+def aside_order(set_aside: Mapping[tuple[int, str], str]) -> list[tuple[int, str]]:
+    """The cells set aside in the order they are listed: by row, then column name."""
+    return sorted(set_aside, key=lambda cell: (cell[0], str(cell[1])))
+
+
+def screening_html(table: Any, screening: Any, *, set_aside: Mapping[tuple[int, str], str] | None = None,
+                   problem: str | None = None, file_row: Callable[[int], int] | None = None) -> str:
+    """The screening report as a short HTML page (no colours: the view's palette applies)."""
+    parts: list[str] = []
+    if table is None:
+        return "<p>Open a data file to see here what was read and what will be compared.</p>"
+    frame = table.frame
+    parts.append(f"<p>{frame.shape[0]:,} rows and {frame.shape[1]} columns were read.</p>")
+    for note in getattr(table, "notes", ()) or ():
+        parts.append(f"<p>{_escape(note.text)}</p>")
+    if problem:
+        parts.append(f"<p><b>Not ready to compare:</b> {_escape(problem)}</p>")
+    if screening is not None:
+        parts.append(_groups_html(screening))
+    if set_aside:
+        finder = file_row or (lambda row: row + 1)
+        items = []
+        for number, (row, column) in enumerate(aside_order(set_aside)):
+            items.append(f"<li>Row {finder(row)}, {_escape(column)}: {_escape(set_aside[(row, column)])} "
+                         f"(<a href=\"{_BRING_BACK}:{number}\">bring back</a>)</li>")
+        parts.append("<p><b>Values you set aside</b></p><ul>" + "".join(items) + "</ul>")
+    return "\n".join(parts)
+
+
+def _groups_html(screening: Any) -> str:
+    parts = []
+    labels = tuple(getattr(screening, "labels", ()) or ())
+    used = tuple(getattr(screening, "n_used", ()) or ())
+    if labels and used:
+        rows = "".join(f"<li>{_escape(label)}: {n:,} values</li>" for label, n in zip(labels, used))
+        parts.append(f"<p><b>Compared</b> (group 1 first)</p><ul>{rows}</ul>")
+    left_out = [(reason, n) for reason, n in _pairs(getattr(screening, "excluded_counts", None)) if n]
+    if left_out:
+        rows = "".join(f"<li>{_escape(reason)}: {n:,}</li>" for reason, n in left_out)
+        parts.append(f"<p><b>Left out</b> (hover over a grey cell to see why)</p><ul>{rows}</ul>")
+    others = _count(getattr(screening, "other_group_rows", 0))
+    if others:
+        parts.append(f"<p>{others:,} rows belong to other groups and are not part of this comparison.</p>")
+    paired = getattr(screening, "paired", None)
+    if paired is not None:
+        parts.append(f"<p><b>Are these really two separate groups?</b> {_escape(paired.text)}</p>")
+    shown = {paired.key} if paired is not None else set()
+    findings = [f for f in getattr(screening, "findings", ()) or () if f.key not in shown]
+    slips = [f for f in getattr(screening, "possible_slips", ()) or () if f not in findings]
+    if findings or slips:
+        rows = "".join(f"<li>{'<b>Check:</b> ' if f.severity == 'warning' else ''}{_escape(f.text)}</li>"
+                       for f in (*findings, *slips))
+        parts.append(f"<p><b>Noticed while reading</b></p><ul>{rows}</ul>")
+    return "\n".join(parts)
+
+
+def _ask_reason(parent: QWidget) -> AskReason:
+    def ask(where: str) -> str | None:
+        text, ok = QInputDialog.getText(
+            parent, "Set a value aside",
+            f"Why should {where} be left out? (The reason goes into the findings.)",
+            text="suspected slip when the value was written down")
+        return text.strip() or "set aside" if ok else None
+    return ask
+
+
+class DataPanel(QWidget):
+    """The grid of the file's cells and, beside it, what was read and what will be compared."""
+
+    def __init__(self, session: Any, parent: QWidget | None = None, *,
+                 ask_reason: AskReason | None = None) -> None:
+        super().__init__(parent)
+        self._session = session
+        self._ask = ask_reason or _ask_reason(self)
+        self.model = FrameModel(self)
+
+        self.heading = QLabel("Open a data file to begin.", self)
+        self.heading.setWordWrap(True)
+        self.grid = QTableView(self)
+        self.grid.setModel(self.model)
+        self.grid.setObjectName("data_grid")
+        self.grid.setToolTip("The cells of your file as they were read. The file itself is never changed.")
+        self.grid.setSelectionBehavior(QAbstractItemView.SelectionBehavior.SelectItems)
+        self.grid.setEditTriggers(QAbstractItemView.EditTrigger.NoEditTriggers)
+        self.grid.setWordWrap(False)
+        self.grid.setContextMenuPolicy(Qt.ContextMenuPolicy.CustomContextMenu)
+        self.grid.customContextMenuRequested.connect(self._cell_menu)
+        self.grid.verticalHeader().setDefaultSectionSize(self.grid.fontMetrics().height() + 6)
+        self.grid.verticalHeader().setSectionResizeMode(self.grid.verticalHeader().ResizeMode.Fixed)
+        self.grid.horizontalHeader().setDefaultSectionSize(self.grid.fontMetrics().averageCharWidth() * 14)
+        self.grid.horizontalHeader().setHighlightSections(False)
+        self.grid.setAccessibleName("Your data")
+        copy_cells = QAction("Copy cells", self.grid)
+        copy_cells.setShortcut(QKeySequence.StandardKey.Copy)
+        copy_cells.setShortcutContext(Qt.ShortcutContext.WidgetShortcut)
+        copy_cells.triggered.connect(self.copy_selection)
+        self.grid.addAction(copy_cells)
+
+        self.aside_button = QPushButton("Set value aside…", self)
+        self.aside_button.setToolTip("Leave the selected value out of the comparison, with a reason you give.")
+        self.aside_button.clicked.connect(self.set_aside_current)
+        self.back_button = QPushButton("Bring value back", self)
+        self.back_button.setToolTip("Put the selected value, which you set aside, back into the comparison.")
+        self.back_button.clicked.connect(self.bring_back_current)
+
+        self.report = QTextBrowser(self)
+        self.report.setObjectName("screening_report")
+        self.report.setOpenLinks(False)
+        self.report.anchorClicked.connect(self._on_link)
+        self.report.setToolTip("What was read from the file, what will be compared, and what was left out.")
+        self.report.setAccessibleName("What was read")
+
+        left = QWidget(self)
+        left_column = QVBoxLayout(left)
+        left_column.setContentsMargins(0, 0, 0, 0)
+        left_column.addWidget(self.grid, 1)
+        buttons = QHBoxLayout()
+        buttons.addWidget(self.aside_button)
+        buttons.addWidget(self.back_button)
+        buttons.addStretch(1)
+        left_column.addLayout(buttons)
+        self.splitter = QSplitter(Qt.Orientation.Horizontal, self)
+        self.splitter.addWidget(left)
+        self.splitter.addWidget(self.report)
+        self.splitter.setStretchFactor(0, 3)
+        self.splitter.setStretchFactor(1, 2)
+        column = QVBoxLayout(self)
+        column.setContentsMargins(0, 0, 0, 0)
+        column.addWidget(self.heading)
+        column.addWidget(self.splitter, 1)
+        self.setTabOrder(self.grid, self.aside_button)
+        self.setTabOrder(self.aside_button, self.back_button)
+        self.setTabOrder(self.back_button, self.report)
+
+        self.grid.selectionModel().currentChanged.connect(self._update_buttons)
+        session.subscribe(self._on_session)
+        self._show_table(session.table)
+        self._show_marks()
+
+    # -- listening -----------------------------------------------------------------------------
+    def _on_session(self, name: str, value: Any) -> None:
+        if name == "table":
+            self._show_table(value)
+        if name in ("table", "intake", "choices", "problem"):
+            self._show_marks()
+
+    def _show_table(self, table: Any) -> None:
+        if table is self.model.table:
+            return
+        self.model.set_table(table)
+        if table is None:
+            self.heading.setText("Open a data file to begin.")
+        else:
+            path = self._session.choices.path
+            name = path.name if path is not None else "the data"
+            sheet = getattr(table, "sheet", None)
+            where = f"{name}, sheet {sheet}" if sheet else name
+            self.heading.setText(f"<b>{_escape(where)}</b>: {table.frame.shape[0]:,} rows, "
+                                 f"{table.frame.shape[1]} columns")
+        self._update_buttons()
+
+    def _show_marks(self) -> None:
+        intake = self._session.intake
+        screening = getattr(intake, "screening", None)
+        excluded = {}
+        for item in getattr(screening, "exclusions", ()) or ():
+            excluded[(int(item.frame_row), str(item.column))] = item.text or item.reason
+        set_aside = dict(self._session.choices.set_aside or {})
+        self.model.set_marks(excluded=excluded, set_aside=set_aside)
+        self.report.setHtml(screening_html(self._session.table, screening, set_aside=set_aside,
+                                           problem=self._session.problem, file_row=self.model.file_row))
+        self._update_buttons()
+
+    # -- setting aside -------------------------------------------------------------------------
+    def set_aside(self, row: int, column: str, reason: str) -> None:
+        """Leave the value at (frame row, column) out of the comparison, for ``reason``."""
+        marks = dict(self._session.choices.set_aside or {})
+        marks[(int(row), str(column))] = reason
+        self._session.choose(set_aside=marks)
+
+    def bring_back(self, row: int, column: str) -> None:
+        """Put a value set aside back into the comparison."""
+        marks = dict(self._session.choices.set_aside or {})
+        marks.pop((int(row), str(column)), None)
+        self._session.choose(set_aside=marks or None)
+
+    def set_aside_current(self) -> None:
+        index = self.grid.currentIndex()
+        if not index.isValid():
+            return
+        column = self.model.column_name(index.column())
+        where = f"the value {self.model.cell_text(index.row(), index.column()) or '(empty)'} " \
+                f"in row {self.model.file_row(index.row())}, column {column},"
+        reason = self._ask(where)
+        if reason:
+            self.set_aside(index.row(), column, reason)
+
+    def bring_back_current(self) -> None:
+        index = self.grid.currentIndex()
+        if index.isValid():
+            self.bring_back(index.row(), self.model.column_name(index.column()))
+
+    def _update_buttons(self, *_: Any) -> None:
+        index = self.grid.currentIndex()
+        marked = self.model.mark(index.row(), index.column()) if index.isValid() else None
+        is_aside = marked is not None and marked[0] == MARK_SET_ASIDE
+        self.aside_button.setEnabled(index.isValid() and not is_aside)
+        self.back_button.setEnabled(is_aside)
+
+    def _cell_menu(self, point: QPoint) -> None:
+        index = self.grid.indexAt(point)
+        if not index.isValid():
+            return
+        self.grid.setCurrentIndex(index)
+        menu = QMenu(self)
+        marked = self.model.mark(index.row(), index.column())
+        if marked is not None and marked[0] == MARK_SET_ASIDE:
+            menu.addAction("Bring this value back", self.bring_back_current)
+        else:
+            menu.addAction("Set this value aside…", self.set_aside_current)
+        menu.addAction("Copy", self.copy_selection)
+        menu.exec(self.grid.viewport().mapToGlobal(point))
+
+    def _on_link(self, url: QUrl) -> None:
+        if url.scheme() != _BRING_BACK:
+            return
+        cells = aside_order(dict(self._session.choices.set_aside or {}))
+        number = int(url.path()) if url.path().isdigit() else -1
+        if 0 <= number < len(cells):
+            self.bring_back(*cells[number])
+
+    # -- copying cells -------------------------------------------------------------------------
+    def selection_text(self) -> str:
+        """The selected cells as tab-separated lines (the bounding box of the selection)."""
+        ranges = self.grid.selectionModel().selection()
+        if ranges.isEmpty():
+            return ""
+        top = min(r.top() for r in ranges)
+        bottom = max(r.bottom() for r in ranges)
+        left = min(r.left() for r in ranges)
+        right = max(r.right() for r in ranges)
+        width = right - left + 1
+        bottom = min(bottom, top + max(1, MAX_COPY_CELLS // width) - 1)
+        lines = ("\t".join(self.model.cell_text(row, col) for col in range(left, right + 1))
+                 for row in range(top, bottom + 1))
+        return "\n".join(lines)
+
+    def copy_selection(self) -> None:
+        text = self.selection_text()
+        if text:
+            QGuiApplication.clipboard().setText(text)
+
+    def select_cell(self, row: int, column: str) -> None:
+        """Make (frame row, column) the current cell and show it."""
+        index = self.model.index(row, self.model.column_index(column))
+        self.grid.selectionModel().setCurrentIndex(index, QItemSelectionModel.SelectionFlag.ClearAndSelect)
+        self.grid.scrollTo(index)
+
+    def cleanup(self) -> None:
+        """Stop listening to the session."""
+        self._session.unsubscribe(self._on_session)
+
+
+def _run_alone(argv: list[str]) -> int:  # pragma: no cover - a quick manual look
+    from .app import run_panel
+
+    return run_panel(DataPanel, argv)
+
+
+if __name__ == "__main__":  # pragma: no cover
+    sys.exit(_run_alone(sys.argv))

@@ -1,0 +1,305 @@
+"""Registering Twofold with the desktop, so that a double-click on a data file opens it.
+
+On Linux and other freedesktop systems :func:`install_linux` writes, under ``$XDG_DATA_HOME``
+(by default ``~/.local/share``), a desktop entry ``applications/twofold.desktop`` that accepts
+one file (``%f``) of the four types, a shared-MIME package ``mime/packages/twofold.xml`` with
+their file-name patterns, and the icon ``icons/hicolor/scalable/apps/twofold.svg``; then it runs
+``update-desktop-database`` and ``update-mime-database`` where they are installed. On Windows
+:func:`windows_registry_entries` lists the per-user file associations (a ProgID under
+``HKCU\\Software\\Classes`` and an ``OpenWithProgids`` value for each extension) and
+:func:`install_windows` writes them with ``winreg``. Nothing needs administrator rights, and
+nothing becomes the default program for a type unless the user makes it so.
+
+References
+----------
+freedesktop.org, "Desktop Entry Specification", version 1.5 (the Exec key and its quoting).
+freedesktop.org, "Shared MIME-info Database", version 0.21 (the package XML format).
+Microsoft, "File Types and File Associations" and "OpenWithProgids" (Win32 shell documentation).
+"""
+
+from __future__ import annotations
+
+import os
+import shutil
+import subprocess
+import sys
+from dataclasses import dataclass
+from pathlib import Path
+from typing import Mapping, Sequence
+
+__all__ = [
+    "FILE_TYPES",
+    "PROG_ID",
+    "RegistryValue",
+    "data_home",
+    "launch_command",
+    "exec_line",
+    "linux_files",
+    "install_linux",
+    "uninstall_linux",
+    "windows_command_line",
+    "windows_registry_entries",
+    "install_windows",
+    "uninstall_windows",
+    "install",
+    "uninstall",
+]
+
+# extension -> (MIME type, what the type is called)
+FILE_TYPES: Mapping[str, tuple[str, str]] = {
+    ".csv": ("text/csv", "comma-separated values"),
+    ".tsv": ("text/tab-separated-values", "tab-separated values"),
+    ".xlsx": ("application/vnd.openxmlformats-officedocument.spreadsheetml.sheet", "Excel workbook"),
+    ".ods": ("application/vnd.oasis.opendocument.spreadsheet", "OpenDocument spreadsheet"),
+}
+PROG_ID = "Twofold.DataFile"
+APP_ID = "twofold"
+_ROOT = Path(__file__).resolve().parent.parent
+_ICON = _ROOT / "icons" / "app.svg"
+
+
+def data_home(environ: Mapping[str, str] | None = None) -> Path:
+    """``$XDG_DATA_HOME``, or ``~/.local/share`` when it is unset or not absolute."""
+    environ = os.environ if environ is None else environ
+    value = environ.get("XDG_DATA_HOME", "")
+    if value and Path(value).is_absolute():
+        return Path(value)
+    home = environ.get("HOME") or str(Path.home())
+    return Path(home) / ".local" / "share"
+
+
+def _installed() -> bool:
+    try:
+        from importlib.metadata import PackageNotFoundError, distribution
+    except ImportError:  # pragma: no cover - always there on Python 3.11
+        return False
+    try:
+        distribution("twofold")
+    except PackageNotFoundError:
+        return False
+    return True
+
+
+def launch_command(*, windowed: bool = False) -> list[str]:
+    """The command that starts Twofold, without the file argument.
+
+    The ``twofold`` script where it is installed; otherwise this Python running the package from
+    the source folder. ``windowed`` picks ``pythonw.exe`` on Windows (no console window).
+    """
+    script = shutil.which("twofold")
+    if script and _installed():
+        return [script]
+    python = sys.executable
+    if windowed and python.lower().endswith("python.exe"):
+        candidate = Path(python).with_name("pythonw.exe")
+        python = str(candidate) if candidate.exists() else python
+    if _installed():
+        return [python, "-m", "desktop"]
+    starter = f"import sys; sys.path.insert(0, {str(_ROOT)!r}); from desktop.app import main; sys.exit(main())"
+    return [python, "-c", starter]
+
+
+_RESERVED = set(" \t\n\"'\\><~|&;$*?#()`")
+
+
+def _exec_quote(argument: str) -> str:
+    """One argument quoted by the desktop-entry rules (then escaped as a string value)."""
+    argument = argument.replace("%", "%%")
+    if argument and not (_RESERVED & set(argument)):
+        quoted = argument
+    else:
+        inner = "".join("\\" + ch if ch in '"`$\\' else ch for ch in argument)
+        quoted = f'"{inner}"'
+    return quoted.replace("\\", "\\\\")
+
+
+def exec_line(command: Sequence[str]) -> str:
+    """The ``Exec`` value: the command, quoted, followed by ``%f`` (one local file)."""
+    return " ".join(_exec_quote(part) for part in command) + " %f"
+
+
+def _desktop_entry(command: Sequence[str]) -> str:
+    types = "".join(f"{mime};" for mime, _ in FILE_TYPES.values())
+    return "\n".join([
+        "[Desktop Entry]",
+        "Type=Application",
+        "Version=1.5",
+        "Name=Twofold",
+        "GenericName=Two-group comparison",
+        "Comment=Compare two groups of measurements and write up the result",
+        f"Exec={exec_line(command)}",
+        f"Icon={APP_ID}",
+        "Terminal=false",
+        "StartupNotify=true",
+        "Categories=Office;Science;Math;",
+        "Keywords=compare;groups;measurements;data;",
+        f"MimeType={types}",
+        "",
+    ])
+
+
+def _mime_package() -> str:
+    lines = ['<?xml version="1.0" encoding="UTF-8"?>',
+             '<mime-info xmlns="http://www.freedesktop.org/standards/shared-mime-info">']
+    for extension, (mime, name) in FILE_TYPES.items():
+        lines += [f'  <mime-type type="{mime}">',
+                  f"    <comment>{name}</comment>",
+                  f'    <glob pattern="*{extension}"/>',
+                  "  </mime-type>"]
+    lines += ["</mime-info>", ""]
+    return "\n".join(lines)
+
+
+_FALLBACK_ICON = ('<svg xmlns="http://www.w3.org/2000/svg" viewBox="0 0 64 64">'
+                  '<rect x="12" y="24" width="14" height="28"/><rect x="38" y="14" width="14" height="38"/></svg>\n')
+
+
+def linux_files(command: Sequence[str] | None = None) -> dict[str, str]:
+    """The files to write, as {path under the data home: text}."""
+    icon = _ICON.read_text(encoding="utf-8") if _ICON.is_file() else _FALLBACK_ICON
+    return {
+        f"applications/{APP_ID}.desktop": _desktop_entry(command or launch_command()),
+        f"mime/packages/{APP_ID}.xml": _mime_package(),
+        f"icons/hicolor/scalable/apps/{APP_ID}.svg": icon,
+    }
+
+
+def _refresh_linux(home: Path) -> None:
+    """Rebuild the desktop's caches where the tools exist; their absence is harmless."""
+    for tool, folder in (("update-desktop-database", home / "applications"), ("update-mime-database", home / "mime")):
+        program = shutil.which(tool)
+        if program is None:
+            continue
+        try:
+            subprocess.run([program, str(folder)], check=False, capture_output=True, timeout=60)
+        except (OSError, subprocess.SubprocessError):
+            pass
+
+
+def install_linux(home: Path | None = None, *, command: Sequence[str] | None = None) -> Path:
+    """Write the desktop entry, the MIME package and the icon; returns the desktop entry's path."""
+    home = home or data_home()
+    for relative, text in linux_files(command).items():
+        target = home / relative
+        target.parent.mkdir(parents=True, exist_ok=True)
+        target.write_text(text, encoding="utf-8")
+    _refresh_linux(home)
+    return home / "applications" / f"{APP_ID}.desktop"
+
+
+def uninstall_linux(home: Path | None = None) -> Path:
+    """Remove the three files again (missing ones are fine); returns the data home."""
+    home = home or data_home()
+    for relative in linux_files(["twofold"]):
+        (home / relative).unlink(missing_ok=True)
+    _refresh_linux(home)
+    return home
+
+
+@dataclass(frozen=True)
+class RegistryValue:
+    """One value to write under ``HKEY_CURRENT_USER``: key path, value name ("" = default), text."""
+
+    key: str
+    name: str
+    value: str
+
+
+def _windows_quote(argument: str) -> str:
+    if argument and not any(ch in argument for ch in ' \t"'):
+        return argument
+    return '"' + argument.replace('"', '\\"') + '"'
+
+
+def windows_command_line(command: Sequence[str]) -> str:
+    """The shell's open command: the quoted program and arguments, then ``"%1"`` (the file)."""
+    return " ".join(_windows_quote(part) for part in command) + ' "%1"'
+
+
+def windows_registry_entries(command: Sequence[str], *, icon: str | None = None) -> list[RegistryValue]:
+    """The per-user registry values that offer Twofold for the four file types.
+
+    A ProgID ``Twofold.DataFile`` with its name, icon and open command, and for each extension
+    an empty ``OpenWithProgids`` value naming the ProgID (which adds Twofold to "Open with"
+    without taking the type over from the program that has it).
+    """
+    base = "Software\\Classes"
+    entries = [
+        RegistryValue(f"{base}\\{PROG_ID}", "", "Twofold data file"),
+        RegistryValue(f"{base}\\{PROG_ID}\\shell\\open", "FriendlyAppName", "Twofold"),
+        RegistryValue(f"{base}\\{PROG_ID}\\shell\\open\\command", "", windows_command_line(command)),
+    ]
+    if icon:
+        entries.insert(1, RegistryValue(f"{base}\\{PROG_ID}\\DefaultIcon", "", icon))
+    for extension in FILE_TYPES:
+        entries.append(RegistryValue(f"{base}\\{extension}\\OpenWithProgids", PROG_ID, ""))
+    return entries
+
+
+def _notify_windows_shell() -> None:  # pragma: no cover - Windows only
+    import ctypes
+
+    shcne_assocchanged, shcnf_idlist = 0x08000000, 0x0000
+    ctypes.windll.shell32.SHChangeNotify(shcne_assocchanged, shcnf_idlist, None, None)
+
+
+def install_windows(entries: Sequence[RegistryValue] | None = None) -> str:  # pragma: no cover - Windows only
+    """Write ``entries`` (by default those for this installation) under HKEY_CURRENT_USER."""
+    import winreg
+
+    entries = entries or windows_registry_entries(launch_command(windowed=True))
+    for entry in entries:
+        with winreg.CreateKeyEx(winreg.HKEY_CURRENT_USER, entry.key, 0, winreg.KEY_SET_VALUE) as key:
+            winreg.SetValueEx(key, entry.name, 0, winreg.REG_SZ, entry.value)
+    _notify_windows_shell()
+    return f"HKEY_CURRENT_USER\\Software\\Classes\\{PROG_ID}"
+
+
+def _delete_tree(winreg: object, root: object, path: str) -> None:  # pragma: no cover - Windows only
+    try:
+        with winreg.OpenKey(root, path, 0, winreg.KEY_ALL_ACCESS) as key:
+            while True:
+                try:
+                    child = winreg.EnumKey(key, 0)
+                except OSError:
+                    break
+                _delete_tree(winreg, root, f"{path}\\{child}")
+        winreg.DeleteKey(root, path)
+    except FileNotFoundError:
+        pass
+
+
+def uninstall_windows() -> str:  # pragma: no cover - Windows only
+    """Remove the ProgID and the ``OpenWithProgids`` values written by :func:`install_windows`."""
+    import winreg
+
+    root = winreg.HKEY_CURRENT_USER
+    _delete_tree(winreg, root, f"Software\\Classes\\{PROG_ID}")
+    for extension in FILE_TYPES:
+        try:
+            with winreg.OpenKey(root, f"Software\\Classes\\{extension}\\OpenWithProgids", 0,
+                                winreg.KEY_SET_VALUE) as key:
+                winreg.DeleteValue(key, PROG_ID)
+        except FileNotFoundError:
+            pass
+    _notify_windows_shell()
+    return f"HKEY_CURRENT_USER\\Software\\Classes\\{PROG_ID}"
+
+
+def install() -> str:
+    """Register Twofold for this user on this system; returns where it was written."""
+    if sys.platform == "win32":
+        return install_windows()
+    if sys.platform == "darwin":
+        raise OSError("on macOS, choose Twofold once with Finder's Open With > Other…; "
+                      "there is nothing to install")
+    return str(install_linux())
+
+
+def uninstall() -> str:
+    """Undo :func:`install`; returns where it was removed from."""
+    if sys.platform == "win32":
+        return uninstall_windows()
+    if sys.platform == "darwin":
+        raise OSError("on macOS there is nothing to remove")
+    return str(uninstall_linux())

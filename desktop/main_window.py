@@ -1,0 +1,588 @@
+"""The main window: the panels around one session, the menus, and the flow from file to findings.
+
+The flow: opening a file reads it in a worker (``engine.io.read_table`` and ``propose_layout``),
+asks for the sheet of a workbook with several, stores the table and fills the choices from the
+engine's proposal. Each change of the columns, the two groups or the values set aside forms the
+groups again (``make_groups``, in a worker); each new set of groups, and each change of an option
+that shapes the analysis, runs ``analyze`` in a worker with a progress bar and a Stop button. The
+choice of procedure only changes what is shown, so it runs nothing. A newer run replaces an older
+one; a failure shows in the message bar and leaves the window as it was.
+
+The procedure and findings panels load after the window is first painted, because their plotting
+library and the engine's statistics take about two seconds to import.
+"""
+
+from __future__ import annotations
+
+import importlib
+from pathlib import Path
+from typing import Any, Callable, Sequence
+
+from PySide6.QtCore import QSettings, Qt, QTimer
+from PySide6.QtGui import QAction, QCloseEvent, QDragEnterEvent, QDropEvent, QKeySequence
+from PySide6.QtWidgets import (
+    QFileDialog,
+    QInputDialog,
+    QLabel,
+    QMainWindow,
+    QMenu,
+    QProgressBar,
+    QSplitter,
+    QTabWidget,
+    QToolButton,
+    QVBoxLayout,
+    QWidget,
+)
+
+from engine.session import Choices, Session
+
+from .data_panel import DataPanel
+from .messages import MessageBar
+from .recent import RecentFiles
+from .setup_panel import SetupPanel
+from .workers import Worker
+
+__all__ = ["MainWindow", "OPEN_FILTER", "GROUP_FIELDS", "ANALYSIS_FIELDS", "LATE_PANELS"]
+
+OPEN_FILTER = "Data files (*.csv *.tsv *.txt *.xlsx *.xls *.ods);;All files (*)"
+SAVE_FILTER = "Web page (*.html);;PDF document (*.pdf)"
+PLOT_FILTER = "Picture (*.png);;Drawing (*.svg)"
+
+# Choices that change the two groups, and choices that change only the analysis of them.
+GROUP_FIELDS = ("layout", "group_column", "value_columns", "picked", "set_aside")
+ANALYSIS_FIELDS = ("alternative", "confidence_level", "n_resamples", "seed", "known_sd",
+                   "equal_spread_known", "ordinal")
+
+# The panels that load after the first paint: (attribute, module, class, tab title, tooltip).
+LATE_PANELS = (
+    ("choice_panel", "desktop.choice_panel", "ChoicePanel", "Which procedure",
+     "The checks on shape and spread, and the procedure they point to."),
+    ("findings_panel", "desktop.findings_panel", "FindingsPanel", "Findings",
+     "The result in words and numbers, ready to copy into a report."),
+)
+
+AskSheet = Callable[[Sequence[str], str | None], "str | None"]
+
+
+def _changed(old: Choices, new: Choices, names: Sequence[str]) -> bool:
+    return any(getattr(old, name) != getattr(new, name) for name in names)
+
+
+def _proposed_picks(proposal: Any) -> tuple[str, str] | None:
+    levels = tuple(getattr(proposal, "levels", ()) or ())
+    if getattr(proposal, "layout", "long") == "long" and len(levels) == 2:
+        return str(levels[0]), str(levels[1])
+    return None
+
+
+class MainWindow(QMainWindow):
+    """Twofold's window over one :class:`engine.session.Session`."""
+
+    def __init__(self, session: Session | None = None, *, settings: QSettings | None = None,
+                 ask_sheet: AskSheet | None = None, ask_reason: Callable[[str], str | None] | None = None) -> None:
+        super().__init__()
+        self.session = session or Session()
+        self.recent = RecentFiles(settings or QSettings("Twofold", "Twofold"))
+        self._ask_sheet = ask_sheet or self._choose_sheet
+        self._quiet = False
+        self._seen = self.session.choices
+        self._late_started = False
+        self._pending_sheet_question = True
+        self._opening = ""
+        self._closed = False
+
+        self.setWindowTitle("Twofold")
+        self.setAcceptDrops(True)
+        self.resize(1400, 900)
+        self._set_icon(self, "app")
+
+        self.load_worker = Worker(self)
+        self.groups_worker = Worker(self)
+        self.analysis_worker = Worker(self)
+        self.import_worker = Worker(self)
+
+        self.message_bar = MessageBar(self)
+        self.data_panel = DataPanel(self.session, self, ask_reason=ask_reason)
+        self.setup_panel = SetupPanel(self.session, self)
+        self.tabs = QTabWidget(self)
+        self.tabs.setDocumentMode(True)
+        self.choice_panel: Any = None
+        self.findings_panel: Any = None
+        for attribute, _module, _name, title, tip in LATE_PANELS:
+            placeholder = QLabel("Loading…", self)
+            placeholder.setAlignment(Qt.AlignmentFlag.AlignCenter)
+            index = self.tabs.addTab(placeholder, title)
+            self.tabs.setTabToolTip(index, tip)
+
+        left = QSplitter(Qt.Orientation.Vertical, self)
+        left.addWidget(self.data_panel)
+        left.addWidget(self.setup_panel)
+        left.setStretchFactor(0, 3)
+        left.setStretchFactor(1, 0)
+        left.setChildrenCollapsible(False)
+        self.splitter = QSplitter(Qt.Orientation.Horizontal, self)
+        self.splitter.addWidget(left)
+        self.splitter.addWidget(self.tabs)
+        self.splitter.setStretchFactor(0, 1)
+        self.splitter.setStretchFactor(1, 1)
+        centre = QWidget(self)
+        column = QVBoxLayout(centre)
+        column.setContentsMargins(6, 6, 6, 0)
+        column.addWidget(self.message_bar)
+        column.addWidget(self.splitter, 1)
+        self.setCentralWidget(centre)
+
+        self._build_status()
+        self._build_actions()
+        self._build_menus()
+        self.setTabOrder(self.data_panel.grid, self.setup_panel.long_radio)
+        self.setTabOrder(self.setup_panel.resamples, self.tabs)
+
+        self.load_worker.finished.connect(self._on_loaded)
+        self.load_worker.failed.connect(self._on_load_failed)
+        self.groups_worker.finished.connect(self._on_groups)
+        self.groups_worker.failed.connect(self._on_groups_failed)
+        self.analysis_worker.finished.connect(self._on_analysis)
+        self.analysis_worker.failed.connect(self._on_analysis_failed)
+        self.analysis_worker.progress.connect(self._on_progress)
+        self.import_worker.finished.connect(lambda _: self._add_late_panels())
+        self.import_worker.failed.connect(lambda *_: self._add_late_panels())
+        for worker in (self.load_worker, self.groups_worker, self.analysis_worker):
+            worker.busy_changed.connect(self._on_busy)
+        self.session.subscribe(self._on_session)
+
+    # -- building ------------------------------------------------------------------------------
+    @staticmethod
+    def _set_icon(target: Any, name: str) -> None:
+        try:
+            from .icons import icon
+            target.setIcon(icon(name)) if not isinstance(target, QMainWindow) else target.setWindowIcon(icon(name))
+        except (ImportError, OSError, KeyError):
+            pass
+
+    def _build_status(self) -> None:
+        bar = self.statusBar()
+        self.busy_label = QLabel(self)
+        self.progress = QProgressBar(self)
+        self.progress.setMaximumWidth(260)
+        self.progress.setRange(0, 1000)
+        self.progress.setTextVisible(False)
+        self.progress.setToolTip("How far the current work has got.")
+        self.cancel_button = QToolButton(self)
+        self.cancel_button.setText("Stop")
+        self.cancel_button.setToolButtonStyle(Qt.ToolButtonStyle.ToolButtonTextBesideIcon)
+        self._set_icon(self.cancel_button, "cancel")
+        self.cancel_button.setToolTip("Stop the work in progress (Esc); nothing already shown is lost.")
+        self.cancel_button.clicked.connect(self.cancel)
+        bar.addPermanentWidget(self.busy_label)
+        bar.addPermanentWidget(self.progress)
+        bar.addPermanentWidget(self.cancel_button)
+        for widget in (self.busy_label, self.progress, self.cancel_button):
+            widget.hide()
+
+    def _action(self, text: str, tip: str, slot: Callable[[], Any], shortcut: Any = None,
+                icon_name: str | None = None) -> QAction:
+        action = QAction(text, self)
+        action.setToolTip(tip)
+        action.setStatusTip(tip)
+        if shortcut is not None:
+            action.setShortcut(QKeySequence(shortcut))
+        if icon_name:
+            self._set_icon(action, icon_name)
+        action.triggered.connect(lambda checked=False: slot())
+        self.addAction(action)
+        return action
+
+    def _build_actions(self) -> None:
+        self.open_action = self._action("&Open…", "Open a data file (.csv, .tsv, .xlsx, .ods…).",
+                                        self.open_dialog, QKeySequence.StandardKey.Open, "open")
+        self.copy_action = self._action("&Copy findings", "Copy the findings as text for a report.",
+                                        self.copy_findings, "Ctrl+Shift+C", "copy")
+        self.copy_plot_action = self._action("Copy &picture", "Copy the picture of the two groups.",
+                                             self.copy_plot, "Ctrl+Shift+P")
+        self.export_action = self._action("&Export report…", "Save the findings as a web page or a PDF file.",
+                                          self.export_report, "Ctrl+E", "export")
+        self.save_plot_action = self._action("Save p&icture…", "Save the picture of the two groups to a file.",
+                                             self.save_plot)
+        self.redo_action = self._action("&Redo the comparison", "Run the comparison again with the current set-up.",
+                                        self.run_analysis, "F5")
+        self.cancel_action = self._action("&Stop", "Stop the work in progress.", self.cancel, "Esc")
+        self.cancel_action.setEnabled(False)
+        self.quit_action = self._action("&Quit", "Close Twofold.", self.close, QKeySequence.StandardKey.Quit)
+        self.entry_action = self._action("Open data files with a double-click",
+                                         "Register Twofold with your desktop for .csv, .tsv, .xlsx and .ods files.",
+                                         self.install_desktop_entry)
+
+    def _build_menus(self) -> None:
+        menus = self.menuBar()
+        file_menu = menus.addMenu("&File")
+        file_menu.addAction(self.open_action)
+        self.recent_menu = QMenu("Open &recent", self)
+        self.recent_menu.setToolTipsVisible(True)
+        self.recent_menu.aboutToShow.connect(self._fill_recent)
+        file_menu.addMenu(self.recent_menu)
+        file_menu.addSeparator()
+        file_menu.addAction(self.export_action)
+        file_menu.addAction(self.save_plot_action)
+        file_menu.addSeparator()
+        file_menu.addAction(self.entry_action)
+        file_menu.addSeparator()
+        file_menu.addAction(self.quit_action)
+        edit_menu = menus.addMenu("&Edit")
+        edit_menu.addAction(self.copy_action)
+        edit_menu.addAction(self.copy_plot_action)
+        run_menu = menus.addMenu("&Comparison")
+        run_menu.addAction(self.redo_action)
+        run_menu.addAction(self.cancel_action)
+        tools = self.addToolBar("Main")
+        tools.setObjectName("main_tools")
+        tools.setMovable(False)
+        tools.setToolButtonStyle(Qt.ToolButtonStyle.ToolButtonTextBesideIcon)
+        for action in (self.open_action, self.copy_action, self.export_action):
+            tools.addAction(action)
+
+    def _fill_recent(self) -> None:
+        self.recent_menu.clear()
+        paths = self.recent.paths()
+        for path in paths:
+            action = self.recent_menu.addAction(path.name)
+            action.setToolTip(str(path))
+            action.triggered.connect(lambda checked=False, p=path: self.open_recent(p))
+        if not paths:
+            self.recent_menu.addAction("(no files yet)").setEnabled(False)
+
+    # -- the panels that load late -------------------------------------------------------------
+    def showEvent(self, event: Any) -> None:  # noqa: N802 - Qt's name
+        super().showEvent(event)
+        if not self._late_started:
+            self._late_started = True
+            QTimer.singleShot(0, self.load_late_panels)
+
+    def load_late_panels(self) -> None:
+        """Import the two late panels in a worker, then put them in their tabs."""
+        if self.choice_panel is not None or self.import_worker.busy:
+            return
+
+        def warm_up(progress: Any, cancelled: Any) -> None:
+            for _attribute, module, *_ in LATE_PANELS:
+                try:
+                    importlib.import_module(module)
+                except ImportError:
+                    pass
+
+        self.import_worker.run(warm_up)
+
+    def _add_late_panels(self) -> None:
+        for index, (attribute, module, name, title, tip) in enumerate(LATE_PANELS):
+            if getattr(self, attribute) is not None:
+                continue
+            try:
+                panel = getattr(importlib.import_module(module), name)(self.session, self)
+            except ImportError:
+                panel = QLabel("This part is not available yet.", self)
+                panel.setAlignment(Qt.AlignmentFlag.AlignCenter)
+                setattr(self, attribute, None)
+            else:
+                setattr(self, attribute, panel)
+            old = self.tabs.widget(index)
+            self.tabs.removeTab(index)
+            old.deleteLater()
+            self.tabs.insertTab(index, panel, title)
+            self.tabs.setTabToolTip(index, tip)
+        self.tabs.setCurrentIndex(1 if self.session.analysis is not None else 0)
+
+    # -- opening -------------------------------------------------------------------------------
+    def open_dialog(self) -> None:
+        start = str(self.session.choices.path.parent) if self.session.choices.path else ""
+        path, _ = QFileDialog.getOpenFileName(self, "Open a data file", start, OPEN_FILTER)
+        if path:
+            self.open_file(path)
+
+    def open_recent(self, path: Path) -> None:
+        if not Path(path).is_file():
+            self.recent.remove(path)
+            self.message_bar.show_message("recent_gone", name=Path(path).name)
+            return
+        self.open_file(path)
+
+    def open_file(self, path: str | Path, *, sheet: str | None = None) -> bool:
+        """Read ``path`` in a worker and show it; every way of opening a file ends here.
+
+        Returns False (with a message) when ``path`` is not a file, else True: the reading has
+        started and its outcome arrives as a table in the session or a message in the bar.
+        """
+        path = Path(path).expanduser()
+        if not path.is_file():
+            self.message_bar.show_message("not_a_file", name=path.name or str(path))
+            return False
+        self.groups_worker.cancel()
+        self.analysis_worker.cancel()
+        self._pending_sheet_question = sheet is None
+        self._opening = path.name
+        self.busy_label.setText(f"Opening {path.name}…")
+
+        def read(progress: Any, cancelled: Any) -> tuple[Path, Any, Any]:
+            from engine import io
+
+            table = io.read_table(path, sheet=sheet)
+            return path, table, io.propose_layout(table)
+
+        self.load_worker.run(read)
+        return True
+
+    def _choose_sheet(self, names: Sequence[str], current: str | None) -> str | None:
+        at = list(names).index(current) if current in names else 0
+        name, ok = QInputDialog.getItem(self, "Choose a sheet",
+                                        "This workbook has several sheets. Which one holds your data?",
+                                        list(names), at, False)
+        return name if ok else None
+
+    def _on_loaded(self, result: tuple[Path, Any, Any]) -> None:
+        path, table, proposal = result
+        names = list(getattr(table, "sheet_names", ()) or ())
+        if len(names) > 1 and self._pending_sheet_question:
+            self._pending_sheet_question = False
+            wanted = self._ask_sheet(names, getattr(table, "sheet", None))
+            if wanted and wanted != getattr(table, "sheet", None):
+                self.open_file(path, sheet=wanted)
+                return
+        self.message_bar.clear()
+        self._quiet = True
+        try:
+            for name in ("analysis", "intake", "problem"):
+                self.session.store(name, None)
+            self.session.choose(
+                path=path, sheet=getattr(table, "sheet", None), layout=proposal.layout,
+                group_column=proposal.group_column if proposal.layout == "long" else None,
+                value_columns=tuple(proposal.value_columns)[: 1 if proposal.layout == "long" else 2],
+                picked=_proposed_picks(proposal),
+                set_aside=None, procedure=None)
+            self.session.store("table", table)
+        finally:
+            self._quiet = False
+            self._seen = self.session.choices
+        self.setWindowTitle(f"{path.name} - Twofold")
+        self.recent.add(path)
+        self.form_groups()
+
+    def _on_load_failed(self, message: str, expected: bool) -> None:
+        self.message_bar.show_message("open_failed" if expected else "open_crashed",
+                                      name=self._opening, reason=message)
+
+    # -- forming the groups --------------------------------------------------------------------
+    def _on_session(self, name: str, value: Any) -> None:
+        if name != "choices" or self._quiet:
+            return
+        old, self._seen = self._seen, value
+        if _changed(old, value, GROUP_FIELDS):
+            self.form_groups()
+        elif _changed(old, value, ANALYSIS_FIELDS):
+            self.run_analysis()
+
+    def _group_request(self) -> tuple[Any, str | None] | str:
+        """The ``values`` and ``group`` arguments of ``make_groups``, or why there are none yet."""
+        choices = self.session.choices
+        columns = tuple(choices.value_columns)
+        if choices.layout == "wide":
+            if len(columns) != 2 or columns[0] == columns[1]:
+                return "Choose two different columns, one for each group."
+            return columns, None
+        if not columns:
+            return "Choose the column of measurements."
+        if not choices.group_column:
+            return "Choose the column that names the groups."
+        if choices.group_column == columns[0]:
+            return "The groups and the measurements must be in different columns."
+        return columns[0], choices.group_column
+
+    def form_groups(self) -> None:
+        """Form the two groups from the current choices, in a worker."""
+        table = self.session.table
+        if table is None:
+            return
+        self.analysis_worker.cancel()
+        request = self._group_request()
+        if isinstance(request, str):
+            self.groups_worker.cancel()
+            self._no_groups(request)
+            return
+        values, group = request
+        choices = self.session.choices
+        pick = choices.picked if choices.layout == "long" else None
+        set_aside = dict(choices.set_aside) if choices.set_aside else None
+        self.busy_label.setText("Forming the groups…")
+
+        def form(progress: Any, cancelled: Any) -> Any:
+            from engine import io
+
+            return io.make_groups(table, values=values, group=group, pick=pick, set_aside=set_aside)
+
+        self.groups_worker.run(form)
+
+    def _no_groups(self, message: str) -> None:
+        self.session.store("intake", None)
+        self.session.store("analysis", None)
+        self.session.store("problem", message)
+
+    def _on_groups(self, intake: Any) -> None:
+        if self.message_bar.key in ("groups_problem", "groups_crashed", "analysis_failed", "analysis_crashed",
+                                    "analysis_stopped"):
+            self.message_bar.clear()
+        self.session.store("problem", None)
+        self.session.store("intake", intake)
+        self.run_analysis()
+
+    def _on_groups_failed(self, message: str, expected: bool) -> None:
+        self._no_groups(message)
+        self.message_bar.show_message("groups_problem" if expected else "groups_crashed", reason=message)
+
+    # -- the analysis --------------------------------------------------------------------------
+    def run_analysis(self) -> None:
+        """Run (or run again) the analysis of the current groups with the current options."""
+        intake = self.session.intake
+        if intake is None:
+            return
+        choices = self.session.choices
+        source = {"file": choices.path.name if choices.path else None, "sheet": choices.sheet,
+                  "columns": list(choices.value_columns) if choices.layout == "wide"
+                  else [choices.group_column, *choices.value_columns],
+                  "group_column": choices.group_column, "value_columns": list(choices.value_columns)}
+        settings = {name: getattr(choices, name) for name in ANALYSIS_FIELDS}
+        self.busy_label.setText("Comparing…")
+        self.progress.setValue(0)
+
+        def compare(progress: Any, cancelled: Any) -> Any:
+            from engine.analysis import Options, analyze
+
+            return analyze(intake.groups, Options(**settings), screening=intake.screening, source=source,
+                           progress=progress, cancelled=cancelled)
+
+        self.analysis_worker.run(compare)
+
+    def _on_analysis(self, analysis: Any) -> None:
+        if self.message_bar.key in ("analysis_failed", "analysis_crashed", "analysis_stopped"):
+            self.message_bar.clear()
+        self.session.store("analysis", analysis)
+
+    def _on_analysis_failed(self, message: str, expected: bool) -> None:
+        self.session.store("analysis", None)
+        self.session.store("problem", message)
+        self.message_bar.show_message("analysis_failed" if expected else "analysis_crashed", reason=message)
+
+    def _on_progress(self, fraction: float, what: str) -> None:
+        self.progress.setRange(0, 1000)
+        self.progress.setValue(int(fraction * 1000))
+        self.busy_label.setText(f"Comparing: {what}…")
+
+    def cancel(self) -> None:
+        """Stop whatever is running; the window keeps what it showed before."""
+        running = [w for w in (self.load_worker, self.groups_worker, self.analysis_worker) if w.busy]
+        for worker in running:
+            worker.cancel()
+        if self.analysis_worker in running or self.groups_worker in running:
+            self.message_bar.show_message("analysis_stopped")
+
+    @property
+    def busy(self) -> bool:
+        return any(w.busy for w in (self.load_worker, self.groups_worker, self.analysis_worker))
+
+    def _on_busy(self, _: bool) -> None:
+        busy = self.busy
+        for widget in (self.busy_label, self.progress, self.cancel_button):
+            widget.setVisible(busy)
+        if busy and not self.analysis_worker.busy:
+            self.progress.setRange(0, 0)  # no measure of progress while reading: a moving bar
+        self.cancel_action.setEnabled(busy)
+        self.redo_action.setEnabled(not busy)
+        self.open_action.setEnabled(True)
+
+    # -- copy and export -----------------------------------------------------------------------
+    def _findings(self) -> Any:
+        if self.findings_panel is None:
+            self.message_bar.show_message("part_missing")
+            return None
+        if self.session.analysis is None:
+            self.message_bar.show_message("nothing_yet")
+            return None
+        return self.findings_panel
+
+    def copy_findings(self) -> None:
+        panel = self._findings()
+        if panel is not None:
+            panel.copy_findings()
+            self.statusBar().showMessage("Copied the findings.", 3000)
+
+    def copy_plot(self) -> None:
+        panel = self._findings()
+        if panel is not None:
+            panel.copy_plot()
+            self.statusBar().showMessage("Copied the picture.", 3000)
+
+    def _save(self, path: str | Path | None, title: str, name_filter: str, suffix: str,
+              write: Callable[[Path], Any]) -> bool:
+        if path is None:
+            start = self.session.choices.path.with_suffix(suffix) if self.session.choices.path else Path(f"findings{suffix}")
+            chosen, _ = QFileDialog.getSaveFileName(self, title, str(start), name_filter)
+            if not chosen:
+                return False
+            path = chosen
+        path = Path(path)
+        data_file = self.session.choices.path
+        if data_file is not None and path.resolve() == data_file.resolve():
+            self.message_bar.show_message("save_failed", name=path.name, reason="that is your data file")
+            return False
+        try:
+            write(path)
+        except Exception as problem:  # noqa: BLE001 - a failed save must never end the program
+            self.message_bar.show_message("save_failed", name=path.name, reason=str(problem))
+            return False
+        self.message_bar.show_message("saved", name=path.name)
+        return True
+
+    def export_report(self, path: str | Path | None = None) -> bool:
+        """Save the report (.html or .pdf by the suffix); asks for the path when none is given."""
+        panel = self._findings()
+        return panel is not None and self._save(path, "Export the report", SAVE_FILTER, ".html",
+                                                panel.export_report)
+
+    def save_plot(self, path: str | Path | None = None) -> bool:
+        panel = self._findings()
+        return panel is not None and self._save(path, "Save the picture", PLOT_FILTER, ".png", panel.save_plot)
+
+    def install_desktop_entry(self) -> None:
+        from .desktop_entry import install
+
+        try:
+            where = install()
+        except OSError as problem:
+            self.message_bar.show_message("save_failed", name="the desktop registration", reason=str(problem))
+        else:
+            self.statusBar().showMessage(f"Registered: {where}", 6000)
+
+    # -- drag and drop -------------------------------------------------------------------------
+    def dragEnterEvent(self, event: QDragEnterEvent) -> None:  # noqa: N802 - Qt's name
+        if any(url.isLocalFile() for url in event.mimeData().urls()):
+            event.acceptProposedAction()
+
+    def dropEvent(self, event: QDropEvent) -> None:  # noqa: N802 - Qt's name
+        files = [url.toLocalFile() for url in event.mimeData().urls() if url.isLocalFile()]
+        if files:
+            event.acceptProposedAction()
+            self.open_file(files[0])
+
+    # -- closing -------------------------------------------------------------------------------
+    def cleanup(self) -> None:
+        """Stop the workers and let every panel stop listening."""
+        if self._closed:
+            return
+        self._closed = True
+        self.session.unsubscribe(self._on_session)
+        for worker in (self.load_worker, self.groups_worker, self.analysis_worker, self.import_worker):
+            worker.shutdown(3000)
+        for panel in (self.data_panel, self.setup_panel, self.choice_panel, self.findings_panel):
+            if panel is not None and hasattr(panel, "cleanup"):
+                panel.cleanup()
+
+    def closeEvent(self, event: QCloseEvent) -> None:  # noqa: N802 - Qt's name
+        self.cleanup()
+        super().closeEvent(event)

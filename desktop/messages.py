@@ -1,0 +1,143 @@
+"""Every message the window shows a user, declared in one place, and the bar that shows them.
+
+A message is a named entry with a level and a sentence that may hold ``{placeholders}``. Code
+elsewhere refers to messages by key (``bar.show_message("open_failed", name=..., reason=...)``),
+so the wording lives here alone and tests can check which message appeared.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Mapping
+
+from PySide6.QtCore import Qt, Signal
+from PySide6.QtGui import QColor, QPalette
+from PySide6.QtWidgets import QFrame, QHBoxLayout, QLabel, QStyle, QToolButton, QWidget
+
+__all__ = ["Message", "MESSAGES", "message_text", "MessageBar"]
+
+
+@dataclass(frozen=True)
+class Message:
+    """One message: a stable ``key``, a ``level`` ("info", "warning", "error") and its sentence."""
+
+    key: str
+    level: str
+    text: str
+
+
+_DECLARED = (
+    # opening files
+    Message("open_failed", "error", "Could not open {name}: {reason}"),
+    Message("open_crashed", "error",
+            "Something unexpected stopped the opening of {name} ({reason}). Your file was not changed."),
+    Message("not_a_file", "warning", "{name} is not a file that can be opened."),
+    Message("unknown_type", "warning",
+            "{name} is not a data file this program reads; use .csv, .tsv, .txt, .xlsx, .xls or .ods."),
+    Message("recent_gone", "warning", "{name} is no longer there, so it was taken off the recent list."),
+    Message("opened", "info", "Opened {name}: {rows} rows, {columns} columns."),
+    # forming the two groups
+    Message("groups_problem", "warning", "{reason}"),
+    Message("groups_crashed", "error", "Something unexpected stopped the forming of the groups ({reason})."),
+    Message("pick_two", "info", "The column {column} holds {count} groups: choose the two to compare."),
+    # the comparison
+    Message("analysis_failed", "warning", "The comparison could not be made: {reason}"),
+    Message("analysis_crashed", "error",
+            "Something unexpected stopped the comparison ({reason}). Change a setting or press Redo."),
+    Message("analysis_stopped", "info", "The comparison was stopped. Press Redo to run it again."),
+    # copy and export
+    Message("nothing_yet", "info", "There is nothing to copy or save yet: open a file and set up the comparison."),
+    Message("copied", "info", "Copied to the clipboard."),
+    Message("saved", "info", "Saved {name}."),
+    Message("save_failed", "error", "Could not save {name}: {reason}"),
+    Message("part_missing", "warning", "This part of the window is not available in this version."),
+)
+
+MESSAGES: Mapping[str, Message] = {message.key: message for message in _DECLARED}
+
+
+def message_text(key: str, **values: object) -> str:
+    """The sentence of message ``key`` with its placeholders filled in."""
+    return MESSAGES[key].text.format(**values)
+
+
+_TINTS = {"info": QPalette.ColorRole.Highlight, "warning": None, "error": None}
+_HUES = {"warning": QColor(214, 150, 20), "error": QColor(205, 55, 45)}
+_ICONS = {
+    "info": QStyle.StandardPixmap.SP_MessageBoxInformation,
+    "warning": QStyle.StandardPixmap.SP_MessageBoxWarning,
+    "error": QStyle.StandardPixmap.SP_MessageBoxCritical,
+}
+
+
+def _mix(base: QColor, tint: QColor, amount: float) -> QColor:
+    return QColor(round(base.red() + (tint.red() - base.red()) * amount),
+                  round(base.green() + (tint.green() - base.green()) * amount),
+                  round(base.blue() + (tint.blue() - base.blue()) * amount))
+
+
+class MessageBar(QFrame):
+    """A strip above the panels that shows one message at a time, with a button to close it.
+
+    Its background is the window's own base colour tinted towards the message's level, so it
+    reads in light and dark themes alike.
+    """
+
+    closed = Signal()
+
+    def __init__(self, parent: QWidget | None = None) -> None:
+        super().__init__(parent)
+        self.setFrameShape(QFrame.Shape.StyledPanel)
+        self.setAutoFillBackground(True)
+        self._key: str | None = None
+        self._icon = QLabel(self)
+        self._text = QLabel(self)
+        self._text.setWordWrap(True)
+        self._text.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
+        self._close = QToolButton(self)
+        self._close.setAutoRaise(True)
+        self._close.setIcon(self.style().standardIcon(QStyle.StandardPixmap.SP_TitleBarCloseButton))
+        self._close.setToolTip("Hide this message.")
+        self._close.clicked.connect(self.clear)
+        row = QHBoxLayout(self)
+        row.setContentsMargins(8, 4, 4, 4)
+        row.addWidget(self._icon)
+        row.addWidget(self._text, 1)
+        row.addWidget(self._close)
+        self.hide()
+
+    @property
+    def key(self) -> str | None:
+        """The key of the message on show, or None."""
+        return self._key
+
+    @property
+    def text(self) -> str:
+        return self._text.text() if self._key else ""
+
+    def show_message(self, key: str, **values: object) -> None:
+        message = MESSAGES[key]
+        self._key = key
+        self._text.setText(message.text.format(**values))
+        size = self.style().pixelMetric(QStyle.PixelMetric.PM_SmallIconSize)
+        self._icon.setPixmap(self.style().standardIcon(_ICONS[message.level]).pixmap(size, size))
+        self._paint(message.level)
+        self.setAccessibleDescription(self._text.text())
+        self.show()
+
+    def clear(self) -> None:
+        was_showing = self._key is not None
+        self._key = None
+        self._text.clear()
+        self.hide()
+        if was_showing:
+            self.closed.emit()
+
+    def _paint(self, level: str) -> None:
+        palette = self.palette()
+        base = self.window().palette().color(QPalette.ColorRole.Base) if self.window() else \
+            palette.color(QPalette.ColorRole.Base)
+        role = _TINTS[level]
+        tint = palette.color(role) if role is not None else _HUES[level]
+        palette.setColor(QPalette.ColorRole.Window, _mix(base, tint, 0.22))
+        self.setPalette(palette)

@@ -1,0 +1,327 @@
+"""The "Set up the comparison" panel: which columns hold what, which two groups, which question.
+
+The panel shows the session's choices and writes the user's edits back with
+``session.choose``. It is filled from the choices the window made from the engine's proposal
+when a file was opened, so most users only check it. While the panel itself refreshes its
+widgets from the session it writes nothing back (no update loops).
+
+Run on its own for a quick look: ``python -m desktop.setup_panel demo_files/bolt_strength.csv``.
+"""
+
+from __future__ import annotations
+
+import sys
+from typing import Any, Sequence
+
+from PySide6.QtCore import QSignalBlocker
+from PySide6.QtWidgets import (
+    QButtonGroup,
+    QComboBox,
+    QDoubleSpinBox,
+    QFormLayout,
+    QGroupBox,
+    QHBoxLayout,
+    QLabel,
+    QPushButton,
+    QRadioButton,
+    QSpinBox,
+    QVBoxLayout,
+    QWidget,
+)
+
+from .table_model import format_cell
+
+__all__ = ["SetupPanel", "QUESTIONS", "group_levels", "MAX_LEVELS"]
+
+MAX_LEVELS = 500  # a column with more distinct entries than this is not a list of groups
+
+# The direction of the question, in the user's words, for each engine alternative.
+QUESTIONS: tuple[tuple[str, str], ...] = (
+    ("two-sided", "Do {a} and {b} differ?"),
+    ("less", "Is {a} lower than {b}?"),
+    ("greater", "Is {a} higher than {b}?"),
+)
+
+
+def group_levels(table: Any, column: str | None) -> list[str]:
+    """The group labels of ``column`` as the engine forms them (trimmed, in order of first
+    appearance), at most MAX_LEVELS of them."""
+    if table is None or column is None or column not in table.frame.columns:
+        return []
+    try:
+        from engine.io.layout import trimmed_levels
+
+        labels = trimmed_levels(table, column)[0]
+    except ImportError:  # an engine without the helper: the same rule, done here
+        labels = list(dict.fromkeys(t for t in (format_cell(v).strip() for v in table.frame[column].unique()) if t))
+    return list(labels[:MAX_LEVELS])
+
+
+def _fill(combo: QComboBox, items: Sequence[str], current: str | None, *, blank: str | None = None) -> None:
+    with QSignalBlocker(combo):
+        combo.clear()
+        if blank is not None:
+            combo.addItem(blank, None)
+        for item in items:
+            combo.addItem(item, item)
+        at = combo.findData(current) if current is not None else (0 if blank is not None else -1)
+        combo.setCurrentIndex(at)
+
+
+class SetupPanel(QWidget):
+    """Columns, the two groups, the direction of the question and the confidence level."""
+
+    def __init__(self, session: Any, parent: QWidget | None = None) -> None:
+        super().__init__(parent)
+        self._session = session
+        self._refreshing = False
+
+        self.box = QGroupBox("Set up the comparison", self)
+        self.long_radio = QRadioButton("One column names the group, another holds the measurements", self)
+        self.long_radio.setToolTip("Choose this when each row is one measurement with its group written beside it.")
+        self.wide_radio = QRadioButton("Each group has a column of its own", self)
+        self.wide_radio.setToolTip("Choose this when the measurements of each group stand in their own column.")
+        self.layout_buttons = QButtonGroup(self)
+        self.layout_buttons.addButton(self.long_radio)
+        self.layout_buttons.addButton(self.wide_radio)
+
+        self.group_column = QComboBox(self)
+        self.group_column.setToolTip("The column that says which group each row belongs to.")
+        self.value_column = QComboBox(self)
+        self.value_column.setToolTip("The column of measurements to compare.")
+        self.first_column = QComboBox(self)
+        self.first_column.setToolTip("The column holding the measurements of group 1.")
+        self.second_column = QComboBox(self)
+        self.second_column.setToolTip("The column holding the measurements of group 2.")
+        self.first_group = QComboBox(self)
+        self.first_group.setToolTip("Group 1: every difference is reported as group 1 minus group 2.")
+        self.second_group = QComboBox(self)
+        self.second_group.setToolTip("Group 2: the group that group 1 is compared against.")
+        self.swap_button = QPushButton("Swap", self)
+        self.swap_button.setToolTip("Exchange group 1 and group 2 (the sign of every difference turns over).")
+        self.question = QComboBox(self)
+        self.question.setToolTip("What you want to know: any difference, or a difference in one direction only.")
+        self.confidence = QDoubleSpinBox(self)
+        self.confidence.setRange(50.0, 99.9)
+        self.confidence.setDecimals(1)
+        self.confidence.setSingleStep(0.5)
+        self.confidence.setSuffix(" %")
+        self.confidence.setKeyboardTracking(False)
+        self.confidence.setToolTip("How sure the intervals should be: 95 % is usual, 99 % gives wider intervals.")
+        self.resamples = QSpinBox(self)
+        self.resamples.setRange(1_000, 1_000_000)
+        self.resamples.setSingleStep(1_000)
+        self.resamples.setGroupSeparatorShown(True)
+        self.resamples.setKeyboardTracking(False)
+        self.resamples.setToolTip("How many reshuffles the resampling procedures use: more is steadier but slower.")
+        self.hint = QLabel(self)
+        self.hint.setWordWrap(True)
+
+        form = QFormLayout()
+        self.group_row_label = QLabel("Group column:", self)
+        self.value_row_label = QLabel("Measurements:", self)
+        self.first_column_label = QLabel("Group 1 column:", self)
+        self.second_column_label = QLabel("Group 2 column:", self)
+        self.first_group_label = QLabel("Group 1:", self)
+        self.second_group_label = QLabel("Group 2:", self)
+        for label, widget in ((self.group_row_label, self.group_column), (self.value_row_label, self.value_column),
+                              (self.first_column_label, self.first_column),
+                              (self.second_column_label, self.second_column)):
+            label.setBuddy(widget)
+            form.addRow(label, widget)
+        pair = QHBoxLayout()
+        pair.addWidget(self.first_group, 1)
+        pair.addWidget(self.swap_button)
+        self.first_group_label.setBuddy(self.first_group)
+        self.second_group_label.setBuddy(self.second_group)
+        form.addRow(self.first_group_label, pair)
+        form.addRow(self.second_group_label, self.second_group)
+        form.addRow("Question:", self.question)
+        form.addRow("Confidence level:", self.confidence)
+        form.addRow("Resampling rounds:", self.resamples)
+        inner = QVBoxLayout(self.box)
+        inner.addWidget(self.long_radio)
+        inner.addWidget(self.wide_radio)
+        inner.addLayout(form)
+        inner.addWidget(self.hint)
+        outer = QVBoxLayout(self)
+        outer.setContentsMargins(0, 0, 0, 0)
+        outer.addWidget(self.box)
+
+        order = [self.long_radio, self.wide_radio, self.group_column, self.value_column, self.first_column,
+                 self.second_column, self.first_group, self.swap_button, self.second_group, self.question,
+                 self.confidence, self.resamples]
+        for before, after in zip(order, order[1:]):
+            self.setTabOrder(before, after)
+
+        self.long_radio.toggled.connect(self._layout_edited)
+        self.group_column.activated.connect(self._group_column_edited)
+        self.value_column.activated.connect(self._values_edited)
+        self.first_column.activated.connect(self._values_edited)
+        self.second_column.activated.connect(self._values_edited)
+        self.first_group.activated.connect(lambda _: self._groups_edited(first_moved=True))
+        self.second_group.activated.connect(lambda _: self._groups_edited(first_moved=False))
+        self.swap_button.clicked.connect(self.swap)
+        self.question.activated.connect(self._question_edited)
+        self.confidence.valueChanged.connect(self._confidence_edited)
+        self.resamples.valueChanged.connect(self._resamples_edited)
+        session.subscribe(self._on_session)
+        self.refresh()
+
+    # -- from the session ----------------------------------------------------------------------
+    def _on_session(self, name: str, value: Any) -> None:
+        if name in ("choices", "table", "intake", "problem") and not self._refreshing:
+            self.refresh()
+
+    def _labels(self) -> tuple[str, str]:
+        choices = self._session.choices
+        if choices.layout == "wide" and len(choices.value_columns) == 2:
+            return choices.value_columns[0], choices.value_columns[1]
+        if choices.picked:
+            return choices.picked
+        intake = self._session.intake
+        if intake is not None:
+            return intake.groups.labels
+        return "group 1", "group 2"
+
+    def refresh(self) -> None:
+        """Show the session's current choices (writes nothing back)."""
+        self._refreshing = True
+        try:
+            self._refresh()
+        finally:
+            self._refreshing = False
+
+    def _refresh(self) -> None:
+        session, choices = self._session, self._session.choices
+        table = session.table
+        columns = [str(c) for c in table.frame.columns] if table is not None else []
+        wide = choices.layout == "wide"
+        self.box.setEnabled(table is not None)
+        with QSignalBlocker(self.long_radio), QSignalBlocker(self.wide_radio):
+            self.long_radio.setChecked(not wide)
+            self.wide_radio.setChecked(wide)
+        values = list(choices.value_columns)
+        _fill(self.group_column, columns, choices.group_column, blank="(choose a column)")
+        _fill(self.value_column, columns, values[0] if values and not wide else None, blank="(choose a column)")
+        _fill(self.first_column, columns, values[0] if wide and values else None, blank="(choose a column)")
+        _fill(self.second_column, columns, values[1] if wide and len(values) > 1 else None,
+              blank="(choose a column)")
+        levels = group_levels(table, choices.group_column) if not wide else []
+        picked = choices.picked or (session.intake.groups.labels if session.intake is not None and not wide
+                                    else (None, None))
+        _fill(self.first_group, levels, picked[0], blank="(choose a group)")
+        _fill(self.second_group, levels, picked[1], blank="(choose a group)")
+        for widget in (self.group_row_label, self.group_column, self.value_row_label, self.value_column,
+                       self.first_group_label, self.first_group, self.second_group_label, self.second_group):
+            widget.setVisible(not wide)
+        for widget in (self.first_column_label, self.first_column, self.second_column_label, self.second_column):
+            widget.setVisible(wide)
+        self.swap_button.setEnabled(not wide and bool(choices.picked) or wide and len(values) == 2)
+        first, second = self._labels()
+        with QSignalBlocker(self.question):
+            self.question.clear()
+            for key, words in QUESTIONS:
+                self.question.addItem(words.format(a=first, b=second), key)
+            self.question.setCurrentIndex(max(0, self.question.findData(choices.alternative)))
+        with QSignalBlocker(self.confidence):
+            self.confidence.setValue(round(choices.confidence_level * 100, 1))
+        with QSignalBlocker(self.resamples):
+            self.resamples.setValue(int(choices.n_resamples))
+        if not wide and choices.group_column and len(levels) > 2 and not choices.picked:
+            self.hint.setText(f"{choices.group_column} holds {len(levels)} groups: choose the two to compare.")
+        elif not wide and choices.group_column and len(levels) < 2 and table is not None:
+            self.hint.setText(f"{choices.group_column} holds fewer than two groups: choose another column.")
+        else:
+            self.hint.setText("")
+        self.hint.setVisible(bool(self.hint.text()))
+
+    # -- to the session ------------------------------------------------------------------------
+    def _choose(self, **changes: Any) -> None:
+        if self._refreshing:
+            return
+        self._refreshing = True
+        try:
+            self._session.choose(**changes)
+        finally:
+            self._refreshing = False
+        self.refresh()
+
+    def _layout_edited(self, long_checked: bool) -> None:
+        if self._refreshing:
+            return
+        choices = self._session.choices
+        if long_checked:
+            self._choose(layout="long", value_columns=tuple(choices.value_columns[:1]), picked=None)
+        else:
+            numbers = self._number_columns()
+            values = tuple(choices.value_columns[:2])
+            if len(values) < 2:
+                values = tuple(numbers[:2])
+            self._choose(layout="wide", value_columns=values, group_column=None, picked=None)
+
+    def _number_columns(self) -> list[str]:
+        table = self._session.table
+        if table is None:
+            return []
+        kinds = getattr(table, "column_kinds", {}) or {}
+        return [str(c) for c in table.frame.columns if kinds.get(c) == "number"]
+
+    def _group_column_edited(self, _: int) -> None:
+        column = self.group_column.currentData()
+        levels = group_levels(self._session.table, column)
+        picked = (levels[0], levels[1]) if len(levels) == 2 else None
+        self._choose(group_column=column, picked=picked)
+
+    def _values_edited(self, _: int) -> None:
+        if self._session.choices.layout == "wide":
+            chosen = (self.first_column.currentData(), self.second_column.currentData())
+            self._choose(value_columns=tuple(c for c in chosen if c))
+        else:
+            column = self.value_column.currentData()
+            self._choose(value_columns=(column,) if column else ())
+
+    def _groups_edited(self, *, first_moved: bool) -> None:
+        first, second = self.first_group.currentData(), self.second_group.currentData()
+        old = self._session.choices.picked or (None, None)
+        if first is not None and first == second:
+            # picking the other group's label exchanges the two
+            if first_moved:
+                second = old[0]
+            else:
+                first = old[1]
+        if first and second and first != second:
+            self._choose(picked=(first, second))
+        else:
+            self.refresh()
+
+    def swap(self) -> None:
+        """Exchange group 1 and group 2."""
+        choices = self._session.choices
+        if choices.layout == "wide" and len(choices.value_columns) == 2:
+            self._choose(value_columns=(choices.value_columns[1], choices.value_columns[0]))
+        elif choices.picked:
+            self._choose(picked=(choices.picked[1], choices.picked[0]))
+
+    def _question_edited(self, _: int) -> None:
+        self._choose(alternative=self.question.currentData())
+
+    def _confidence_edited(self, value: float) -> None:
+        self._choose(confidence_level=round(value / 100.0, 4))
+
+    def _resamples_edited(self, value: int) -> None:
+        self._choose(n_resamples=int(value))
+
+    def cleanup(self) -> None:
+        """Stop listening to the session."""
+        self._session.unsubscribe(self._on_session)
+
+
+def _run_alone(argv: list[str]) -> int:  # pragma: no cover - a quick manual look
+    from .app import run_panel
+
+    return run_panel(SetupPanel, argv)
+
+
+if __name__ == "__main__":  # pragma: no cover
+    sys.exit(_run_alone(sys.argv))

@@ -1,0 +1,203 @@
+"""A read-only Qt model over a data frame that stays quick at a million rows.
+
+The model keeps one reference per column (the frame's own numpy array, or its extension array
+where there is no zero-copy numpy view) and formats a cell only when a view asks for it. It never
+builds anything per row or per cell up front; ``rowCount`` is the frame's real length. Cells the
+screening left out and cells the user set aside are marked from two small mappings keyed by
+(frame row, column name), whose size is the number of marked cells.
+"""
+
+from __future__ import annotations
+
+import math
+from typing import Any, Mapping
+
+import numpy as np
+import pandas as pd
+from PySide6.QtCore import QAbstractTableModel, QModelIndex, QPersistentModelIndex, Qt
+from PySide6.QtGui import QColor, QFont, QGuiApplication, QPalette
+
+__all__ = ["FrameModel", "KIND_WORDS", "MARK_EXCLUDED", "MARK_SET_ASIDE", "format_cell"]
+
+MARK_EXCLUDED = "excluded"
+MARK_SET_ASIDE = "set aside"
+
+# How the header names each detected kind of column, and the one-sentence tooltip for it.
+KIND_WORDS: Mapping[str, tuple[str, str]] = {
+    "number": ("numbers", "Every filled cell of this column is a number."),
+    "text": ("words", "This column holds words or labels, such as group names."),
+    "mixed": ("numbers and words", "This column mixes numbers with words; the words cannot be measured."),
+    "empty": ("empty", "This column has no filled cells."),
+}
+
+Index = QModelIndex | QPersistentModelIndex
+
+
+def format_cell(value: Any) -> str:
+    """The text of one cell: floats to 15 significant digits, missing values as an empty cell."""
+    if value is None or value is pd.NA or value is pd.NaT:
+        return ""
+    if isinstance(value, (float, np.floating)):
+        if math.isnan(value):
+            return ""
+        return f"{float(value):.15g}"
+    if isinstance(value, (np.integer, np.bool_)):
+        return str(value.item())
+    return str(value)
+
+
+def _column_store(series: pd.Series) -> Any:
+    """The frame's own storage of a column, indexable by position without a per-cell copy."""
+    dtype = series.dtype
+    if isinstance(dtype, np.dtype) or (isinstance(dtype, pd.StringDtype) and dtype.storage == "python"):
+        return series.to_numpy(copy=False)
+    return series.array
+
+
+def _mix(base: QColor, tint: QColor, amount: float) -> QColor:
+    return QColor(round(base.red() + (tint.red() - base.red()) * amount),
+                  round(base.green() + (tint.green() - base.green()) * amount),
+                  round(base.blue() + (tint.blue() - base.blue()) * amount))
+
+
+class FrameModel(QAbstractTableModel):
+    """Rows and columns of ``table.frame``; the row header shows the row number in the file."""
+
+    def __init__(self, parent: Any = None) -> None:
+        super().__init__(parent)
+        self._table: Any = None
+        self._names: list[str] = []
+        self._stores: list[Any] = []
+        self._rows = 0
+        self._kinds: Mapping[str, str] = {}
+        self._excluded: Mapping[tuple[int, str], str] = {}
+        self._set_aside: Mapping[tuple[int, str], str] = {}
+
+    # -- filling -------------------------------------------------------------------------------
+    def set_table(self, table: Any) -> None:
+        """Show ``table`` (an ``engine.io.Table``), or nothing for None."""
+        self.beginResetModel()
+        self._table = table
+        frame = table.frame if table is not None else None
+        if frame is None:
+            self._names, self._stores, self._rows, self._kinds = [], [], 0, {}
+        else:
+            self._names = [str(name) for name in frame.columns]
+            self._stores = [_column_store(frame.iloc[:, j]) for j in range(frame.shape[1])]
+            self._rows = int(frame.shape[0])
+            self._kinds = dict(getattr(table, "column_kinds", {}) or {})
+        self._excluded, self._set_aside = {}, {}
+        self.endResetModel()
+
+    def set_marks(self, *, excluded: Mapping[tuple[int, str], str] | None = None,
+                  set_aside: Mapping[tuple[int, str], str] | None = None) -> None:
+        """Replace the marked cells: left out by the screening, and set aside by the user."""
+        before = set(self._excluded) | set(self._set_aside)
+        self._excluded = dict(excluded or {})
+        self._set_aside = dict(set_aside or {})
+        changed = before | set(self._excluded) | set(self._set_aside)
+        self._announce(changed)
+
+    def _announce(self, cells: set[tuple[int, str]]) -> None:
+        """One bounded ``dataChanged`` over the rows and columns that hold changed marks."""
+        places = [(row, self._names.index(col)) for row, col in cells
+                  if col in self._names and 0 <= row < self._rows]
+        if not places:
+            return
+        rows = [row for row, _ in places]
+        cols = [col for _, col in places]
+        self.dataChanged.emit(self.index(min(rows), min(cols)), self.index(max(rows), max(cols)))
+
+    # -- reading -------------------------------------------------------------------------------
+    @property
+    def table(self) -> Any:
+        return self._table
+
+    def column_name(self, column: int) -> str:
+        return self._names[column]
+
+    def column_index(self, name: str) -> int:
+        return self._names.index(name)
+
+    def mark(self, row: int, column: int) -> tuple[str, str] | None:
+        """``(MARK_SET_ASIDE or MARK_EXCLUDED, reason)`` for a marked cell, else None."""
+        key = (row, self._names[column])
+        if key in self._set_aside:
+            return MARK_SET_ASIDE, self._set_aside[key]
+        if key in self._excluded:
+            return MARK_EXCLUDED, self._excluded[key]
+        return None
+
+    def cell_text(self, row: int, column: int) -> str:
+        return format_cell(self._stores[column][row])
+
+    def file_row(self, row: int) -> int:
+        """The row number a spreadsheet program would show for frame row ``row``."""
+        table = self._table
+        finder = getattr(table, "file_row", None)
+        return int(finder(row)) if finder is not None else row + 1
+
+    # -- the Qt model interface ---------------------------------------------------------------
+    def rowCount(self, parent: Index = QModelIndex()) -> int:  # noqa: N802 - Qt's name
+        return 0 if parent.isValid() else self._rows
+
+    def columnCount(self, parent: Index = QModelIndex()) -> int:  # noqa: N802 - Qt's name
+        return 0 if parent.isValid() else len(self._names)
+
+    def flags(self, index: Index) -> Qt.ItemFlag:
+        if not index.isValid():
+            return Qt.ItemFlag.NoItemFlags
+        return Qt.ItemFlag.ItemIsEnabled | Qt.ItemFlag.ItemIsSelectable
+
+    def data(self, index: Index, role: int = Qt.ItemDataRole.DisplayRole) -> Any:
+        if not index.isValid():
+            return None
+        row, column = index.row(), index.column()
+        if role == Qt.ItemDataRole.DisplayRole:
+            return format_cell(self._stores[column][row])
+        if role == Qt.ItemDataRole.TextAlignmentRole:
+            if self._kinds.get(self._names[column]) == "number":
+                return int(Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter)
+            return int(Qt.AlignmentFlag.AlignLeft | Qt.AlignmentFlag.AlignVCenter)
+        if role not in (Qt.ItemDataRole.ToolTipRole, Qt.ItemDataRole.BackgroundRole,
+                        Qt.ItemDataRole.ForegroundRole, Qt.ItemDataRole.FontRole):
+            return None
+        if not self._excluded and not self._set_aside:
+            return None
+        marked = self.mark(row, column)
+        if marked is None:
+            return None
+        kind, reason = marked
+        if role == Qt.ItemDataRole.ToolTipRole:
+            if kind == MARK_SET_ASIDE:
+                return f"You set this value aside: {reason}"
+            return f"Left out of the comparison: {reason}"
+        palette = QGuiApplication.palette()
+        if role == Qt.ItemDataRole.BackgroundRole:
+            tint = palette.color(QPalette.ColorRole.Highlight) if kind == MARK_SET_ASIDE else \
+                palette.color(QPalette.ColorRole.Text)
+            return _mix(palette.color(QPalette.ColorRole.Base), tint, 0.28 if kind == MARK_SET_ASIDE else 0.12)
+        if role == Qt.ItemDataRole.ForegroundRole:
+            return palette.color(QPalette.ColorRole.PlaceholderText) if kind == MARK_EXCLUDED else None
+        font = QFont()
+        font.setStrikeOut(kind == MARK_SET_ASIDE)
+        font.setItalic(kind == MARK_EXCLUDED)
+        return font
+
+    def headerData(self, section: int, orientation: Qt.Orientation,  # noqa: N802 - Qt's name
+                   role: int = Qt.ItemDataRole.DisplayRole) -> Any:
+        if orientation == Qt.Orientation.Vertical:
+            if role == Qt.ItemDataRole.DisplayRole:
+                return str(self.file_row(section))
+            if role == Qt.ItemDataRole.ToolTipRole:
+                return f"Row {self.file_row(section)} of the file."
+            return None
+        if not 0 <= section < len(self._names):
+            return None
+        name = self._names[section]
+        kind = self._kinds.get(name)
+        if role == Qt.ItemDataRole.DisplayRole:
+            return f"{name}\n{KIND_WORDS[kind][0]}" if kind in KIND_WORDS else name
+        if role == Qt.ItemDataRole.ToolTipRole:
+            return KIND_WORDS[kind][1] if kind in KIND_WORDS else f"The column {name}."
+        return None

@@ -1,0 +1,116 @@
+"""The grid's model over a data frame: per-cell answers, quick at a million rows, marked cells."""
+
+from __future__ import annotations
+
+import time
+import tracemalloc
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+import pytest
+from PySide6.QtCore import Qt
+
+from desktop.table_model import MARK_EXCLUDED, MARK_SET_ASIDE, FrameModel, format_cell
+from engine.io.table import Table
+
+
+def make_table(frame: pd.DataFrame, kinds: dict[str, str] | None = None) -> Table:
+    kinds = kinds or {c: "number" if frame[c].dtype.kind == "f" else "text" for c in frame.columns}
+    return Table(path=Path("made_up.csv"), kind="csv", frame=frame, sheet=None, sheet_names=(),
+                 encoding="utf-8", delimiter=",", decimal=".", thousands=None, header=True,
+                 column_kinds=kinds, notes=())
+
+
+@pytest.fixture(scope="module")
+def million() -> Table:
+    rng = np.random.default_rng(2026)
+    n = 1_000_000
+    frame = pd.DataFrame({
+        "line": np.where(rng.random(n) < 0.5, "old press", "new press"),
+        "torque_nm": rng.normal(40.0, 3.0, n),
+    })
+    return make_table(frame)
+
+
+def test_million_rows_answer_the_last_row_without_building_the_others(million):
+    model = FrameModel()
+    tracemalloc.start()
+    started = time.perf_counter()
+    model.set_table(million)
+    index = model.index(999_999, 1)
+    text = model.data(index)
+    label = model.data(model.index(999_999, 0))
+    elapsed = time.perf_counter() - started
+    _, peak = tracemalloc.get_traced_memory()
+    tracemalloc.stop()
+    assert model.rowCount() == 1_000_000
+    assert model.columnCount() == 2
+    # reference: Python's own format spec, 15 significant digits
+    assert text == format(float(million.frame["torque_nm"].iloc[999_999]), ".15g")
+    assert label == million.frame["line"].iloc[999_999]
+    # one Python object per row would cost at least 8 MB for 1,000,000 rows
+    assert peak < 1_000_000, f"filling the model allocated {peak} bytes"
+    assert elapsed < 0.5
+
+
+def test_model_passes_qt_consistency_checks(qtmodeltester):
+    frame = pd.DataFrame({"batch": ["A", "B", None], "peel": [1.5, np.nan, 3.0]})
+    model = FrameModel()
+    model.set_table(make_table(frame))
+    qtmodeltester.check(model)
+
+
+def test_headers_show_kind_and_file_row():
+    frame = pd.DataFrame({"batch": ["A", "B"], "peel": [1.5, 2.0]})
+    model = FrameModel()
+    model.set_table(make_table(frame))
+    assert model.headerData(1, Qt.Orientation.Horizontal) == "peel\nnumbers"
+    assert "number" in model.headerData(1, Qt.Orientation.Horizontal, Qt.ItemDataRole.ToolTipRole)
+    # with a header line, frame row 0 is the file's second line
+    assert model.headerData(0, Qt.Orientation.Vertical) == "2"
+    assert model.data(model.index(0, 1), Qt.ItemDataRole.TextAlignmentRole) & int(Qt.AlignmentFlag.AlignRight)
+
+
+@pytest.mark.parametrize("value, text", [
+    (np.nan, ""), (None, ""), (pd.NA, ""), (3.0, "3"), (0.1, "0.1"), (np.float64(2.5e-12), "2.5e-12"),
+    (np.int64(7), "7"), ("old press", "old press"), (1 / 3, "0.333333333333333"),
+])
+def test_format_cell(value, text):
+    # reference: Python's format(value, ".15g"); blanks for missing cells
+    assert format_cell(value) == text
+
+
+def test_marks_explain_themselves_and_announce_a_bounded_change(qtbot):
+    frame = pd.DataFrame({"batch": list("AABBCC") * 10, "peel": np.arange(60.0)})
+    model = FrameModel()
+    model.set_table(make_table(frame))
+    with qtbot.waitSignal(model.dataChanged) as blocker:
+        model.set_marks(excluded={(5, "peel"): "the cell is blank"}, set_aside={(40, "peel"): "pen slip"})
+    top_left, bottom_right = blocker.args[:2]
+    assert (top_left.row(), bottom_right.row()) == (5, 40)
+    assert (top_left.column(), bottom_right.column()) == (1, 1)
+    assert model.mark(5, 1) == (MARK_EXCLUDED, "the cell is blank")
+    assert model.mark(40, 1) == (MARK_SET_ASIDE, "pen slip")
+    assert model.mark(6, 1) is None
+    assert "blank" in model.data(model.index(5, 1), Qt.ItemDataRole.ToolTipRole)
+    assert "pen slip" in model.data(model.index(40, 1), Qt.ItemDataRole.ToolTipRole)
+    assert model.data(model.index(40, 1), Qt.ItemDataRole.FontRole).strikeOut()
+    assert model.data(model.index(6, 1), Qt.ItemDataRole.ToolTipRole) is None
+
+
+def test_scrolling_a_view_to_the_end_of_a_million_rows_is_quick(qtbot, million):
+    from PySide6.QtWidgets import QTableView
+
+    view = QTableView()
+    qtbot.addWidget(view)
+    model = FrameModel()
+    view.setModel(model)
+    view.resize(800, 600)
+    view.show()
+    started = time.perf_counter()
+    model.set_table(million)
+    view.scrollToBottom()
+    view.viewport().repaint()
+    assert time.perf_counter() - started < 1.0
+    assert view.rowAt(view.viewport().height() - 2) > 999_900
