@@ -1,0 +1,152 @@
+"""The suggested procedure in seeded scenarios that the usual practice of the field settles.
+
+The expected choices follow the sources named in engine/advice.py: Welch by default (Ruxton 2006,
+Behavioral Ecology 17:688; Delacre, Lakens and Leys 2017, International Review of Social
+Psychology 30:92), pooled only with equal spreads known, z with known SDs, ranks for ratings and
+for small groups with clearly non-normal shape (common practice), Welch for large groups by the
+central limit theorem (common practice).
+"""
+
+import numpy as np
+import pytest
+
+from engine import advice
+from engine.analysis import PROCEDURE_NAMES
+from engine.diagnostics import diagnose
+from engine.results import Groups
+
+
+def _suggest(x, y, **flags):
+    groups = Groups(("plot A", "plot B"), np.asarray(x, float), np.asarray(y, float))
+    return advice.recommend(diagnose(groups), groups, **flags)
+
+
+@pytest.fixture
+def rng():
+    return np.random.default_rng(2026)
+
+
+def test_normal_groups_get_welch_with_its_sources(rng):
+    suggestion = _suggest(rng.normal(10, 2, 40), rng.normal(11, 2, 40))
+    assert suggestion.key == "welch_t"
+    assert suggestion.name == PROCEDURE_NAMES["welch_t"]
+    assert any("Ruxton 2006" in r and "Delacre" in r for r in suggestion.reasons)
+
+
+def test_equal_spread_asserted_gives_pooled(rng):
+    suggestion = _suggest(rng.normal(10, 2, 40), rng.normal(11, 2, 42), equal_spread_known=True)
+    assert suggestion.key == "pooled_t"
+    assert not any("argue against" in c for c in suggestion.cautions)
+
+
+def test_asserted_equal_spread_that_the_data_contradict_is_questioned(rng):
+    # SD ratio about 3 with sizes 2:1 - the common-practice rule of thumb says pooling misleads
+    suggestion = _suggest(rng.normal(10, 1, 60), rng.normal(10, 3, 30), equal_spread_known=True)
+    assert suggestion.key == "pooled_t"
+    assert any("argue against" in c for c in suggestion.cautions)
+
+
+def test_small_skewed_groups_with_far_outliers_get_a_rank_or_resampling_procedure(rng):
+    x = np.r_[rng.lognormal(0, 1, 14), 80.0]
+    y = rng.lognormal(0.5, 1, 15)
+    suggestion = _suggest(x, y)
+    assert suggestion.key in ("mann_whitney", "permutation_mean", "bootstrap_mean")
+    # with a far outlier the mean itself is unstable, so the rank procedure is the one
+    assert suggestion.key == "mann_whitney"
+    assert any("shift" in r for r in suggestion.reasons)
+    assert any("common practice" in r for r in suggestion.reasons)
+
+
+def test_small_lopsided_groups_without_extremes_keep_the_mean_with_resampling():
+    # square of a uniform: clearly right-skewed (G1 about 0.6-0.9) but light-tailed, no far outliers
+    rng = np.random.default_rng(8)
+    x, y = rng.uniform(0, 1, 28) ** 2, rng.uniform(0, 1, 28) ** 2 + 0.2
+    groups = Groups(("plot A", "plot B"), x, y)
+    checks = diagnose(groups)
+    # this scenario only means something if the sample is clearly skewed and has no extremes
+    from engine.diagnostics import is_clearly_skewed, is_heavy_tailed
+    assert any(is_clearly_skewed(s) for s in checks.shapes)
+    assert not any(is_heavy_tailed(s) or s.far_outliers for s in checks.shapes)
+    suggestion = advice.recommend(checks, groups)
+    assert suggestion.key == "permutation_mean"
+
+
+def test_ordinal_ratings_get_mann_whitney_with_a_note_on_ties(rng):
+    x, y = rng.integers(1, 6, 40), rng.integers(2, 6, 45)
+    suggestion = _suggest(x, y, ordinal=True)
+    assert suggestion.key == "mann_whitney"
+    assert any("ties" in r or "tied" in r for r in suggestion.reasons)
+
+
+def test_known_sds_give_the_z_test(rng):
+    suggestion = _suggest(rng.normal(10, 2, 40), rng.normal(11, 2, 40), known_sd=(2.0, 2.0))
+    assert suggestion.key == "z"
+    assert "z" not in {c.key for c in suggestion.considered}
+    assert not any("far from the known value" in c for c in suggestion.cautions)
+
+
+def test_known_sds_far_from_the_data_are_questioned(rng):
+    suggestion = _suggest(rng.normal(10, 2, 40), rng.normal(11, 2, 40), known_sd=(2.0, 9.0))
+    assert any("far from the known value" in c for c in suggestion.cautions)
+
+
+def test_large_skewed_groups_get_welch_with_a_central_limit_reason(rng):
+    suggestion = _suggest(rng.lognormal(0, 1, 400), rng.lognormal(0.2, 1, 500))
+    assert suggestion.key == "welch_t"
+    assert any("central limit theorem" in r and "common practice" in r for r in suggestion.reasons)
+
+
+def test_the_shapiro_p_value_alone_does_not_move_the_choice():
+    # two tight clusters: Shapiro-Wilk rejects a bell shape, but nothing is lopsided or heavy-tailed
+    rng = np.random.default_rng(5)
+    x = np.r_[rng.normal(0, 0.3, 14), rng.normal(4, 0.3, 14)]
+    y = np.r_[rng.normal(1, 0.3, 14), rng.normal(5, 0.3, 14)]
+    groups = Groups(("plot A", "plot B"), x, y)
+    checks = diagnose(groups)
+    assert all(s.shapiro_p < 0.05 for s in checks.shapes)  # reference: scipy.stats.shapiro inside
+    suggestion = advice.recommend(checks, groups)
+    assert suggestion.key == "welch_t"
+    assert any("Shapiro-Wilk" in c and "did not change" in c for c in suggestion.cautions)
+
+
+def test_resampling_is_never_suggested_where_it_is_not_run():
+    # one small skewed group beside a huge one: resampling is left out above the analysis limit
+    rng = np.random.default_rng(6)
+    x, y = rng.gamma(1.5, size=20) ** 2, rng.normal(size=advice.RESAMPLING_MAX_VALUES)
+    suggestion = _suggest(x, y)
+    assert suggestion.key not in ("permutation_mean", "bootstrap_mean", "permutation_median",
+                                  "bootstrap_median")
+
+
+def test_the_resampling_limit_matches_the_analysis():
+    from engine import analysis
+
+    limit = getattr(analysis, "RESAMPLING_MAX_VALUES", advice.RESAMPLING_MAX_VALUES)
+    assert advice.RESAMPLING_MAX_VALUES == limit
+
+
+@pytest.mark.parametrize("flags", [{}, {"equal_spread_known": True}, {"ordinal": True},
+                                   {"known_sd": (1.0, 1.0)}])
+def test_every_suggestion_has_reasons_alternatives_cautions_and_assumptions(rng, flags):
+    suggestion = _suggest(rng.normal(0, 1, 20), rng.normal(0.5, 1, 22), **flags)
+    assert suggestion.reasons and all(r.strip() for r in suggestion.reasons)
+    # every other applicable procedure is weighed, each with a reason
+    applicable = set(PROCEDURE_NAMES) - ({"z"} if "known_sd" not in flags else set())
+    assert {c.key for c in suggestion.considered} == applicable - {suggestion.key}
+    assert all(c.why_not.strip() and c.name == PROCEDURE_NAMES[c.key] for c in suggestion.considered)
+    # one sentence on what choosing it assumes, for every procedure key
+    assert set(suggestion.assumptions) == set(PROCEDURE_NAMES)
+    assert all(s.endswith(".") and s.count(". ") == 0 for s in suggestion.assumptions.values())
+    for caution in advice.CAUTIONS_ALWAYS:
+        assert caution in suggestion.cautions
+    text = " ".join(suggestion.cautions)
+    for idea in ("little power", "not the size", "does not prove", "Regulated work"):
+        assert idea in text
+
+
+def test_thresholds_are_named_constants_marked_as_common_practice():
+    import inspect
+
+    source = inspect.getsource(advice)
+    assert advice.SMALL_GROUP_N == 30
+    assert "common practice" in source.split("SMALL_GROUP_N = 30")[0].rsplit("\n\n", 1)[-1]
