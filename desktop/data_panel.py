@@ -37,6 +37,14 @@ __all__ = ["DataPanel", "screening_html", "aside_order", "MAX_COPY_CELLS"]
 MAX_COPY_CELLS = 200_000  # a larger selection is copied only up to this many cells
 _BRING_BACK = "bring-back"
 
+# the screening's reasons for leaving a cell out, in the words the report uses
+REASON_WORDS: Mapping[str, str] = {
+    "missing": "blank or marked as missing",
+    "non_numeric": "not a number",
+    "infinite": "infinite",
+    "set_aside": "set aside by you",
+}
+
 AskReason = Callable[[str], "str | None"]
 
 
@@ -98,7 +106,7 @@ def _groups_html(screening: Any) -> str:
         parts.append(f"<p><b>Compared</b> (group 1 first)</p><ul>{rows}</ul>")
     left_out = [(reason, n) for reason, n in _pairs(getattr(screening, "excluded_counts", None)) if n]
     if left_out:
-        rows = "".join(f"<li>{_escape(reason)}: {n:,}</li>" for reason, n in left_out)
+        rows = "".join(f"<li>{_escape(REASON_WORDS.get(reason, reason))}: {n:,}</li>" for reason, n in left_out)
         parts.append(f"<p><b>Left out</b> (hover over a grey cell to see why)</p><ul>{rows}</ul>")
     others = _count(getattr(screening, "other_group_rows", 0))
     if others:

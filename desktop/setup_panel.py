@@ -75,6 +75,7 @@ class SetupPanel(QWidget):
         super().__init__(parent)
         self._session = session
         self._refreshing = False
+        self._partial: tuple[str | None, str | None] = (None, None)  # one group chosen so far
 
         self.box = QGroupBox("Set up the comparison", self)
         self.long_radio = QRadioButton("One column names the group, another holds the measurements", self)
@@ -208,8 +209,12 @@ class SetupPanel(QWidget):
         _fill(self.second_column, columns, values[1] if wide and len(values) > 1 else None,
               blank="(choose a column)")
         levels = group_levels(table, choices.group_column) if not wide else []
-        picked = choices.picked or (session.intake.groups.labels if session.intake is not None and not wide
-                                    else (None, None))
+        if choices.picked:
+            picked = choices.picked
+        elif session.intake is not None and not wide:
+            picked = session.intake.groups.labels
+        else:
+            picked = tuple(p if p in levels else None for p in self._partial)
         _fill(self.first_group, levels, picked[0], blank="(choose a group)")
         _fill(self.second_group, levels, picked[1], blank="(choose a group)")
         for widget in (self.group_row_label, self.group_column, self.value_row_label, self.value_column,
@@ -271,6 +276,7 @@ class SetupPanel(QWidget):
         column = self.group_column.currentData()
         levels = group_levels(self._session.table, column)
         picked = (levels[0], levels[1]) if len(levels) == 2 else None
+        self._partial = (None, None)
         self._choose(group_column=column, picked=picked)
 
     def _values_edited(self, _: int) -> None:
@@ -291,8 +297,10 @@ class SetupPanel(QWidget):
             else:
                 first = old[1]
         if first and second and first != second:
+            self._partial = (None, None)
             self._choose(picked=(first, second))
         else:
+            self._partial = (first, second)
             self.refresh()
 
     def swap(self) -> None:

@@ -78,6 +78,12 @@ def write_csv(path: Path, rows: list[tuple], header: tuple) -> Path:
 
 
 @pytest.fixture
+def csv_file(tmp_path):
+    """``csv_file(name, rows, header)`` writes a small CSV file in the test's folder."""
+    return lambda name, rows, header: write_csv(tmp_path / name, rows, header)
+
+
+@pytest.fixture
 def three_groups_csv(tmp_path) -> Path:
     """A long-layout file with three adhesive batches and a few awkward cells."""
     rng = np.random.default_rng(7)

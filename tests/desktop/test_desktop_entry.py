@@ -1,0 +1,144 @@
+"""Registration with the desktop: freedesktop files on Linux, per-user registry values on Windows."""
+
+from __future__ import annotations
+
+import configparser
+import shlex
+import xml.etree.ElementTree as ElementTree
+
+import pytest
+
+from desktop import desktop_entry
+from desktop.desktop_entry import (
+    FILE_TYPES,
+    PROG_ID,
+    data_home,
+    exec_line,
+    install_linux,
+    linux_files,
+    uninstall_linux,
+    windows_command_line,
+    windows_registry_entries,
+)
+
+# reference: the MIME types registered with IANA for the four formats (RFC 4180 for text/csv;
+# IANA media-type registry for the others)
+IANA_TYPES = {
+    ".csv": "text/csv",
+    ".tsv": "text/tab-separated-values",
+    ".xlsx": "application/vnd.openxmlformats-officedocument.spreadsheetml.sheet",
+    ".ods": "application/vnd.oasis.opendocument.spreadsheet",
+}
+
+
+def read_entry(text: str) -> dict[str, str]:
+    parser = configparser.ConfigParser(interpolation=None, strict=True)
+    parser.optionxform = str  # keys are case-sensitive in desktop entries
+    parser.read_string(text)
+    return dict(parser["Desktop Entry"])
+
+
+def test_data_home_follows_xdg_rules(tmp_path):
+    # reference: XDG Base Directory Specification 0.8 - an unset or relative $XDG_DATA_HOME
+    # means $HOME/.local/share
+    assert data_home({"XDG_DATA_HOME": str(tmp_path), "HOME": "/home/x"}) == tmp_path
+    assert str(data_home({"HOME": "/home/x"})) == "/home/x/.local/share"
+    assert str(data_home({"XDG_DATA_HOME": "relative/dir", "HOME": "/home/x"})) == "/home/x/.local/share"
+
+
+def test_install_writes_the_three_files(tmp_path, monkeypatch):
+    monkeypatch.setenv("XDG_DATA_HOME", str(tmp_path / "share"))
+    monkeypatch.setattr(desktop_entry.shutil, "which", lambda name: None)  # no cache tools here
+    entry_path = install_linux(data_home(), command=["/opt/tf/bin/twofold"])
+    share = tmp_path / "share"
+    assert entry_path == share / "applications" / "twofold.desktop"
+
+    entry = read_entry(entry_path.read_text(encoding="utf-8"))
+    # reference: Desktop Entry Specification 1.5 - required keys Type and Name, Exec with %f for
+    # one local file, MimeType a ;-terminated list
+    assert entry["Type"] == "Application"
+    assert entry["Name"] == "Twofold"
+    assert entry["Exec"] == "/opt/tf/bin/twofold %f"
+    assert entry["Icon"] == "twofold"
+    assert entry["Terminal"] == "false"
+    assert entry["MimeType"].endswith(";")
+    assert set(entry["MimeType"].rstrip(";").split(";")) == set(IANA_TYPES.values())
+
+    package = ElementTree.parse(share / "mime" / "packages" / "twofold.xml").getroot()
+    namespace = "{http://www.freedesktop.org/standards/shared-mime-info}"
+    # reference: Shared MIME-info Database 0.21 - <mime-info> root, <mime-type type=...><glob pattern=.../>
+    assert package.tag == f"{namespace}mime-info"
+    globs = {t.get("type"): [g.get("pattern") for g in t.findall(f"{namespace}glob")]
+             for t in package.findall(f"{namespace}mime-type")}
+    assert globs == {mime: [f"*{ext}"] for ext, mime in IANA_TYPES.items()}
+
+    icon = share / "icons" / "hicolor" / "scalable" / "apps" / "twofold.svg"
+    assert icon.read_text(encoding="utf-8").lstrip().startswith("<svg")
+
+    uninstall_linux(data_home())
+    assert not entry_path.exists() and not icon.exists()
+    assert not (share / "mime" / "packages" / "twofold.xml").exists()
+
+
+def test_install_runs_the_cache_tools_when_present(tmp_path, monkeypatch):
+    calls = []
+    monkeypatch.setattr(desktop_entry.shutil, "which", lambda name: f"/usr/bin/{name}")
+    monkeypatch.setattr(desktop_entry.subprocess, "run", lambda args, **kw: calls.append(args))
+    install_linux(tmp_path, command=["twofold"])
+    assert calls == [["/usr/bin/update-desktop-database", str(tmp_path / "applications")],
+                     ["/usr/bin/update-mime-database", str(tmp_path / "mime")]]
+
+
+def test_file_types_are_the_registered_ones():
+    assert {ext: mime for ext, (mime, _name) in FILE_TYPES.items()} == IANA_TYPES
+
+
+@pytest.mark.parametrize("command, expected", [
+    (["/usr/bin/twofold"], "/usr/bin/twofold %f"),
+    (["/home/a b/py", "-m", "desktop"], '"/home/a b/py" -m desktop %f'),
+    # reference: Desktop Entry Specification 1.5, "The Exec key": inside quotes, " ` $ \ take a
+    # backslash, and string-value escaping then doubles every backslash
+    (["/x/py", "-c", 'say "$HOME"'], '/x/py -c "say \\\\"\\\\$HOME\\\\"" %f'),
+    (["/x/100%/py"], "/x/100%%/py %f"),
+])
+def test_exec_line_quoting(command, expected):
+    assert exec_line(command) == expected
+
+
+def test_exec_line_round_trips_through_a_shell_like_split():
+    command = ["/opt/my apps/python3", "-c", "import sys; sys.path.insert(0, '/src'); main()"]
+    line = exec_line(command)
+    unescaped = line.replace("\\\\", "\\")  # undo the string-value escaping
+    # reference: the quoting rules of the spec are those of a POSIX shell's double quotes
+    assert shlex.split(unescaped) == [*command, "%f"]
+
+
+def test_the_default_command_starts_the_program():
+    files = linux_files()
+    exec_value = read_entry(files["applications/twofold.desktop"])["Exec"]
+    assert exec_value.endswith(" %f")
+    assert "desktop" in exec_value or "twofold" in exec_value
+
+
+def test_windows_registry_entries():
+    command = [r"C:\Program Files\Python311\pythonw.exe", "-m", "desktop"]
+    entries = windows_registry_entries(command, icon=r"C:\Twofold\twofold.ico")
+    by_key = {(e.key, e.name): e.value for e in entries}
+    base = "Software\\Classes"
+    # reference: Microsoft Win32 docs "Programmatic Identifiers" and "OpenWithProgids": a ProgID key
+    # with a default value (its name), DefaultIcon, shell\open\command holding "%1"; each
+    # .ext\OpenWithProgids gets a value named after the ProgID (its data is ignored)
+    assert by_key[(f"{base}\\{PROG_ID}", "")] == "Twofold data file"
+    assert by_key[(f"{base}\\{PROG_ID}\\DefaultIcon", "")] == r"C:\Twofold\twofold.ico"
+    assert by_key[(f"{base}\\{PROG_ID}\\shell\\open\\command", "")] == \
+        r'"C:\Program Files\Python311\pythonw.exe" -m desktop "%1"'
+    for extension in (".csv", ".tsv", ".xlsx", ".ods"):
+        assert by_key[(f"{base}\\{extension}\\OpenWithProgids", PROG_ID)] == ""
+    # nothing takes over a type's default program (the .ext key's own default value)
+    assert not any(e.key in {f"{base}\\{x}" for x in FILE_TYPES} and e.name == "" for e in entries)
+    assert all(e.key.startswith(base + "\\") for e in entries)
+
+
+def test_windows_command_line_quotes_only_what_needs_it():
+    assert windows_command_line([r"C:\tf\twofold.exe"]) == r'C:\tf\twofold.exe "%1"'
+    assert windows_command_line([r"C:\a b\py.exe", "-c", 'x = "1"']) == r'"C:\a b\py.exe" -c "x = \"1\"" "%1"'

@@ -1,0 +1,110 @@
+"""The set-up panel: shows the session's choices and writes the user's edits back, without loops."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import pytest
+
+from desktop.setup_panel import SetupPanel, group_levels
+from engine import io
+from engine.session import Session
+
+
+@pytest.fixture
+def session(three_groups_csv) -> Session:
+    session = Session()
+    table = io.read_table(three_groups_csv)
+    session.choose(path=three_groups_csv, group_column="batch", value_columns=("peel_strength",))
+    session.store("table", table)
+    return session
+
+
+@pytest.fixture
+def panel(qtbot, session):
+    made = SetupPanel(session)
+    qtbot.addWidget(made)
+    yield made
+    made.cleanup()
+
+
+def test_levels_are_the_engines_labels(csv_file):
+    path = csv_file("spaced.csv",
+                     [(" north ", 1.0), ("south", 2.0), ("north", 3.0), ("south", 4.0), ("", 5.0)],
+                     ("field", "yield"))
+    table = io.read_table(path)
+    # the engine trims labels and skips blanks (make_groups' Notes); the panel must offer the same
+    assert group_levels(table, "field") == ["north", "south"]
+    intake = io.make_groups(table, values="yield", group="field")
+    assert list(intake.groups.labels) == group_levels(table, "field")
+
+
+def test_shows_the_choices(panel, session):
+    assert panel.long_radio.isChecked()
+    assert panel.group_column.currentData() == "batch"
+    assert panel.value_column.currentData() == "peel_strength"
+    assert [panel.first_group.itemData(i) for i in range(1, panel.first_group.count())] == ["A", "B", "C"]
+    assert panel.first_group.currentData() is None  # three groups and none picked yet
+    assert "3 groups" in panel.hint.text()
+
+
+def test_picking_the_two_groups(panel, session):
+    panel.first_group.setCurrentIndex(panel.first_group.findData("C"))
+    panel.first_group.activated.emit(panel.first_group.currentIndex())
+    assert session.choices.picked is None  # only one of the two so far
+    panel.second_group.setCurrentIndex(panel.second_group.findData("A"))
+    panel.second_group.activated.emit(panel.second_group.currentIndex())
+    assert session.choices.picked == ("C", "A")
+    # choosing group 2's label for group 1 exchanges the two
+    panel.first_group.setCurrentIndex(panel.first_group.findData("A"))
+    panel.first_group.activated.emit(panel.first_group.currentIndex())
+    assert session.choices.picked == ("A", "C")
+    panel.swap()
+    assert session.choices.picked == ("C", "A")
+    assert panel.question.itemText(2) == "Is C higher than A?"
+
+
+def test_question_and_confidence(panel, session):
+    panel.question.setCurrentIndex(panel.question.findData("less"))
+    panel.question.activated.emit(panel.question.currentIndex())
+    assert session.choices.alternative == "less"
+    panel.confidence.setValue(99.0)
+    assert session.choices.confidence_level == pytest.approx(0.99)
+    panel.resamples.setValue(5_000)
+    assert session.choices.n_resamples == 5_000
+
+
+def test_changes_from_elsewhere_show_and_write_nothing_back(panel, session):
+    seen = []
+    session.subscribe(lambda name, value: seen.append(name))
+    session.choose(alternative="greater", confidence_level=0.9)
+    assert seen == ["choices"]  # one announcement, no echo from the panel
+    assert panel.question.currentData() == "greater"
+    assert panel.confidence.value() == pytest.approx(90.0)
+
+
+def test_wide_layout(panel, session, csv_file):
+    path = csv_file("wide.csv", [(1.0, 2.0, 9), (1.5, 2.5, 8), (1.2, 2.2, 7)],
+                     ("supplier_a", "supplier_b", "lot"))
+    session.store("table", io.read_table(Path(path)))
+    session.choose(layout="long", group_column=None, value_columns=())
+    panel.wide_radio.setChecked(True)
+    assert session.choices.layout == "wide"
+    assert session.choices.group_column is None
+    assert session.choices.value_columns == ("supplier_a", "supplier_b")
+    assert panel.first_column.isVisibleTo(panel) and not panel.group_column.isVisibleTo(panel)
+    panel.second_column.setCurrentIndex(panel.second_column.findData("lot"))
+    panel.second_column.activated.emit(panel.second_column.currentIndex())
+    assert session.choices.value_columns == ("supplier_a", "lot")
+    panel.swap()
+    assert session.choices.value_columns == ("lot", "supplier_a")
+
+
+def test_choosing_a_group_column_with_two_groups_picks_them(panel, session, csv_file):
+    path = csv_file("two.csv", [("old", 1.0, "x"), ("new", 2.0, "y"), ("old", 1.4, "x")],
+                     ("press", "torque", "shift"))
+    session.store("table", io.read_table(path))
+    panel.group_column.setCurrentIndex(panel.group_column.findData("shift"))
+    panel.group_column.activated.emit(panel.group_column.currentIndex())
+    assert session.choices.group_column == "shift"
+    assert session.choices.picked == ("x", "y")
