@@ -173,6 +173,7 @@ class _Numbers:
     effect_name: str | None
     effect: str | None
     effect_interval: str | None
+    decimals: int | None  # shared by the estimate, its interval and the group summaries
 
 
 def _level(level: float) -> str:
@@ -253,6 +254,7 @@ def _numbers(analysis, key: str, result) -> _Numbers:
         effect_name=None if effect is None else effect.name,
         effect=None if effect is None else _fixed(effect.value, EFFECT_DECIMALS),
         effect_interval=None if effect is None else _interval_text(effect.interval, EFFECT_DECIMALS),
+        decimals=decimals,
     )
 
 
@@ -290,10 +292,9 @@ def _summary_decimals(analysis, numbers_decimals: int | None) -> int | None:
     return max(own, numbers_decimals)
 
 
-def _direction(analysis, key: str, estimate: float) -> str:
+def _direction(analysis, key: str, estimate: float, result_decimals: int | None) -> str:
     """The opening clause: who was higher, in the words of the procedure's quantity."""
     first, second = analysis.summaries
-    result_decimals = _decimals_shared([estimate])
     decimals = _summary_decimals(analysis, result_decimals)
     measure = _measure(analysis)
     a, b = _group_phrase(first, key, decimals), _group_phrase(second, key, decimals)
@@ -353,7 +354,7 @@ def _exclusions(analysis) -> str:
 
 
 def _paragraph(analysis, key: str, result, numbers: _Numbers) -> str:
-    opening = _direction(analysis, key, result.estimate)
+    opening = _direction(analysis, key, result.estimate, numbers.decimals)
     estimate_name = result.estimate_name
     prefix = "bootstrap " if key.startswith("bootstrap") else ""
     body = f"{estimate_name} {numbers.estimate}, {_interval_phrase(numbers, result.alternative, prefix)}"
@@ -391,7 +392,7 @@ def _result_rows(analysis, key: str, result, numbers: _Numbers) -> list[tuple[st
     if numbers.df is not None and key != "z":
         rows.append(("Degrees of freedom", numbers.df))
     if numbers.p is not None:
-        rows.append((f"{sided}p-value".capitalize(), numbers.p))
+        rows.append(("One-sided p-value" if sided else "p-value", numbers.p))
     if numbers.mc_se is not None:
         rows.append(("Monte Carlo standard error of p", numbers.mc_se))
     if numbers.effect is not None:
@@ -494,6 +495,6 @@ def render(analysis, *, procedure: str | None = None) -> ReportText:
     numbers = _numbers(analysis, key, result)
     paragraph = _paragraph(analysis, key, result, numbers)
     rows = _result_rows(analysis, key, result, numbers)
-    head, body = _summary_rows(analysis, _summary_decimals(analysis, _decimals_shared([result.estimate])))
+    head, body = _summary_rows(analysis, _summary_decimals(analysis, numbers.decimals))
     return ReportText(paragraph=paragraph, html=_html(paragraph, rows, head, body),
                       plain=_plain(paragraph, rows, head, body))
