@@ -212,15 +212,6 @@ def _quartiles(ordered: np.ndarray) -> tuple[float, float, float]:
     return tuple(_quantile_sorted(ordered, f) for f in (0.25, 0.5, 0.75))  # type: ignore[return-value]
 
 
-def _tied_across(ordered: np.ndarray, other: np.ndarray) -> np.ndarray:
-    """Which of the sorted values also occur in the sorted ``other``."""
-    if other.size == 0:
-        return np.zeros(ordered.size, dtype=bool)
-    index = np.searchsorted(other, ordered)
-    np.minimum(index, other.size - 1, out=index)
-    return other[index] == ordered
-
-
 def _tied_within(ordered: np.ndarray) -> np.ndarray:
     """Which of the sorted values equal a neighbour (and so another value of the same group)."""
     tied = np.zeros(ordered.size, dtype=bool)
@@ -237,10 +228,14 @@ def _tie_share(ordered: np.ndarray) -> float:
 
 
 def _pooled_tie_share(x_sorted: np.ndarray, y_sorted: np.ndarray) -> float:
-    """Share of all values equal to another value in either group (no pooled sort needed)."""
-    tied = (np.count_nonzero(_tied_within(x_sorted) | _tied_across(x_sorted, y_sorted))
-            + np.count_nonzero(_tied_within(y_sorted) | _tied_across(y_sorted, x_sorted)))
-    return float(tied) / (x_sorted.size + y_sorted.size)
+    """Share of all values equal to another value in either group.
+
+    Both inputs are sorted, so a stable sort of their concatenation is a single merge of two runs
+    (numpy's timsort finds them), far quicker than sorting anew.
+    """
+    pooled = np.concatenate((x_sorted, y_sorted))
+    pooled.sort(kind="stable")
+    return _tie_share(pooled)
 
 
 def _qq(ordered: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
@@ -283,14 +278,36 @@ def _anova_of_deviations(groups: tuple[np.ndarray, np.ndarray], centres: tuple[f
 # -- checks ---------------------------------------------------------------------------------------
 
 def is_clearly_skewed(shape: GroupShape) -> bool:
-    """Skewness both beyond ``SKEW_SE_MULTIPLE`` standard errors and of material size."""
+    """Whether a group is clearly lopsided: skewness beyond chance and of a size that matters.
+
+    Notes
+    -----
+    True when |G1| > ``SKEW_SE_MULTIPLE`` * SES and |G1| > ``SKEW_MATERIAL``. The first part
+    keeps small samples from being judged on noise; the second keeps huge samples from being
+    judged on trivial lopsidedness that the standard error alone would call significant.
+
+    References
+    ----------
+    Bulmer, M. G. (1979). Principles of Statistics. Dover (skewness beyond 0.5 moderate, beyond 1
+    strong).
+    """
     g1, se = shape.skewness, shape.skewness_se
     return bool(np.isfinite(g1) and np.isfinite(se)
                 and abs(g1) > SKEW_SE_MULTIPLE * se and abs(g1) > SKEW_MATERIAL)
 
 
 def is_heavy_tailed(shape: GroupShape) -> bool:
-    """Excess kurtosis both beyond ``SKEW_SE_MULTIPLE`` standard errors and above the material size."""
+    """Whether a group has clearly heavier tails than a normal distribution.
+
+    Notes
+    -----
+    True when G2 > ``SKEW_SE_MULTIPLE`` * SEK and G2 > ``KURTOSIS_MATERIAL`` (light tails,
+    G2 < 0, do not count: they harm neither the t-test nor the rank test).
+
+    References
+    ----------
+    Joanes, D. N. and Gill, C. A. (1998). The Statistician 47(1), 183-189.
+    """
     g2, se = shape.excess_kurtosis, shape.kurtosis_se
     return bool(np.isfinite(g2) and np.isfinite(se)
                 and g2 > SKEW_SE_MULTIPLE * se and g2 > KURTOSIS_MATERIAL)
