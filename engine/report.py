@@ -10,7 +10,7 @@ import math
 import textwrap
 from dataclasses import dataclass
 
-__all__ = ["ReportText", "render", "format_p", "format_number", "p_clause"]
+__all__ = ["ReportText", "render", "format_p", "format_number", "format_interval", "p_clause"]
 
 # Below this a p-value is written as "< 0.001" (common practice in journals).
 P_FLOOR = 0.001
@@ -199,11 +199,24 @@ def _fixed(value: float | None, decimals: int | None, digits: int = DIGITS) -> s
     return text[1:] if text.startswith("-") and float(text) == 0 else text
 
 
-def _interval_text(interval, decimals: int | None, *, open_words: bool = True) -> str | None:
-    """ "1.2 to 7.0", or for a one-sided interval "at least 1.2" / "at most 7.0"."""
+def format_interval(interval, *, decimals: int | None = None, digits: int = DIGITS) -> str | None:
+    """An interval in words and numbers: "1.2 to 7.0", "at least 1.2" or "at most 7.0".
+
+    Parameters
+    ----------
+    interval : engine.results.Interval or None
+        None gives None; an open end (one-sided interval) is written in words.
+    decimals : int or None, keyword-only
+        Decimals of both ends; None: enough to show the larger end to ``digits`` significant
+        digits, shared by both ends.
+    digits : int, keyword-only
+        Significant digits when ``decimals`` is None.
+    """
     if interval is None:
         return None
     low, high = interval.low, interval.high
+    if decimals is None:
+        decimals = _decimals_shared([low, high], digits)
     if low is None and high is None:
         return "unbounded"
     if high is None:
@@ -245,7 +258,7 @@ def _numbers(analysis, key: str, result) -> _Numbers:
     return _Numbers(
         level=_level(interval.level if interval is not None else analysis.options.confidence_level),
         estimate=_fixed(result.estimate, decimals),
-        interval=_interval_text(interval, decimals),
+        interval=format_interval(interval, decimals=decimals),
         statistic=_statistic_text(key, result.statistic) if STATISTIC_LABEL.get(key) else None,
         df=_df_text(result.df),
         p=None if result.p_value is None else format_p(result.p_value),
@@ -253,7 +266,7 @@ def _numbers(analysis, key: str, result) -> _Numbers:
                else format_number(result.mc_standard_error, digits=2)),
         effect_name=None if effect is None else effect.name,
         effect=None if effect is None else _fixed(effect.value, EFFECT_DECIMALS),
-        effect_interval=None if effect is None else _interval_text(effect.interval, EFFECT_DECIMALS),
+        effect_interval=None if effect is None else format_interval(effect.interval, decimals=EFFECT_DECIMALS),
         decimals=decimals,
     )
 

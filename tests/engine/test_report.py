@@ -316,3 +316,16 @@ def test_render_a_full_analysis_from_analyze(groups):
     # reference: scipy.stats.ttest_ind(x, y, equal_var=False)
     expected = stats.ttest_ind(groups.x, groups.y, equal_var=False)
     assert f"= {expected.statistic:.2f}" in render(analysis, procedure="welch_t").paragraph
+
+
+@pytest.mark.parametrize("interval, text", [
+    # convention: both ends share the decimals that show the larger end to three digits
+    (Interval(0.1234, 1.9876, 0.95), "0.12 to 1.99"),
+    (Interval(-12.345, -1.2, 0.95), "-12.3 to -1.2"),
+    (Interval.for_alternative(0.1234, 9.0, 0.95, "greater"), "at least 0.123"),
+    (Interval.for_alternative(0.1234, 9.0, 0.95, "less"), "at most 9.00"),
+    (Interval(None, None, 0.95), "unbounded"),
+    (None, None),
+])
+def test_format_interval(interval, text):
+    assert report.format_interval(interval) == text
