@@ -1,0 +1,132 @@
+"""Checks on the file itself before any parsing: exists, readable, known type, not empty, not binary.
+
+Every function here opens the file read-only (``"rb"``); nothing in ``engine.io`` ever writes to
+a user's file.
+"""
+
+from __future__ import annotations
+
+import contextlib
+import hashlib
+from pathlib import Path
+from typing import Iterator
+
+from ..errors import FileProblem, TwofoldError
+
+__all__ = [
+    "SUPPORTED_EXTENSIONS",
+    "TEXT_KINDS",
+    "SHEET_KINDS",
+    "HEAD_BYTES",
+    "check_path",
+    "read_head",
+    "file_checksum",
+    "one_line",
+    "wrap_unexpected",
+]
+
+SUPPORTED_EXTENSIONS: tuple[str, ...] = (".csv", ".tsv", ".txt", ".xlsx", ".xls", ".ods")
+TEXT_KINDS: tuple[str, ...] = ("csv", "tsv", "txt")
+SHEET_KINDS: tuple[str, ...] = ("xlsx", "xls", "ods")
+HEAD_BYTES = 64 * 1024  # the sample that format detection looks at
+
+
+def one_line(text: object, limit: int = 160) -> str:
+    """``text`` squeezed onto one line and cut to ``limit`` characters."""
+    flat = " ".join(str(text).split())
+    return flat if len(flat) <= limit else flat[: limit - 3] + "..."
+
+
+def check_path(path: str | Path) -> tuple[Path, str]:
+    """Return the path and its kind ("csv", "xlsx", ...) or raise :class:`FileProblem`.
+
+    The kind comes from the extension (case ignored). Missing files, folders and unknown
+    extensions are refused here, before anything is opened.
+    """
+    try:
+        path = Path(path)
+    except TypeError as error:
+        raise FileProblem(f"'{one_line(path)}' is not a file name.") from error
+    extension = path.suffix.lower()
+    if extension not in SUPPORTED_EXTENSIONS:
+        shown = f"'{path.suffix}'" if path.suffix else "no extension"
+        raise FileProblem(
+            f"{path.name} has {shown}; Twofold reads {', '.join(SUPPORTED_EXTENSIONS)} files.")
+    if not path.exists():
+        raise FileProblem(f"{path.name} was not found (looked in {path.parent}).")
+    if path.is_dir():
+        raise FileProblem(f"{path.name} is a folder, not a file.")
+    return path, extension[1:]
+
+
+def _open_failure(path: Path, error: OSError) -> FileProblem:
+    if isinstance(error, PermissionError):
+        return FileProblem(
+            f"{path.name} cannot be opened: permission denied (it may be locked by another "
+            "program or need different access rights).")
+    return FileProblem(f"{path.name} cannot be opened: {one_line(error.strerror or error)}.")
+
+
+def read_head(path: Path, size: int = HEAD_BYTES) -> tuple[bytes, int]:
+    """The first ``size`` bytes of the file and its total size, read-only."""
+    try:
+        with open(path, "rb") as handle:
+            head = handle.read(size)
+            handle.seek(0, 2)
+            total = handle.tell()
+    except OSError as error:
+        raise _open_failure(path, error) from error
+    return head, total
+
+
+def file_checksum(path: str | Path) -> str:
+    """SHA-256 of the file's bytes as a hex string (the file is opened read-only).
+
+    Kept out of :func:`engine.io.read_table` so that loading a large file does not pay for
+    hashing it; the report cites the checksum so a reader can tell which file was analysed.
+
+    Parameters
+    ----------
+    path : str or pathlib.Path
+        The file.
+
+    Returns
+    -------
+    str
+        64 lowercase hexadecimal digits.
+
+    Notes
+    -----
+    The file is read in 1 MiB blocks, so memory use does not grow with its size.
+
+    References
+    ----------
+    FIPS PUB 180-4, Secure Hash Standard (SHS), NIST, 2015.
+    """
+    path = Path(path)
+    if not path.exists():
+        raise FileProblem(f"{path.name} was not found (looked in {path.parent}).")
+    if path.is_dir():
+        raise FileProblem(f"{path.name} is a folder, not a file.")
+    digest = hashlib.sha256()
+    try:
+        with open(path, "rb") as handle:
+            for block in iter(lambda: handle.read(1 << 20), b""):
+                digest.update(block)
+    except OSError as error:
+        raise _open_failure(path, error) from error
+    return digest.hexdigest()
+
+
+@contextlib.contextmanager
+def wrap_unexpected(name: str, what: str, kind: type[TwofoldError] = FileProblem) -> Iterator[None]:
+    """Let our own errors through; turn any other exception into ``kind`` naming the file."""
+    try:
+        yield
+    except TwofoldError:
+        raise
+    except MemoryError as error:
+        raise kind(f"{name} is too large to {what} in the memory available.") from error
+    except Exception as error:  # a parser's own error: give the user one line, never a traceback
+        detail = one_line(error) or type(error).__name__
+        raise kind(f"{name} could not be {what}: {detail}") from error

@@ -1,0 +1,133 @@
+"""Turning cells into numbers and sorting columns into kinds ("number", "text", "mixed", "empty")."""
+
+from __future__ import annotations
+
+import numpy as np
+import pandas as pd
+
+__all__ = [
+    "MISSING_MARKERS",
+    "EXACT_INTEGER_LIMIT",
+    "coerce_numbers",
+    "is_missing_marker",
+    "settle_column",
+    "cell_text",
+]
+
+# Texts people type for "no value"; they count as missing (their text is kept in the report).
+MISSING_MARKERS = frozenset({"", "na", "n/a", "n.a.", "nan", "null", "none", "#n/a", "-", "--"})
+EXACT_INTEGER_LIMIT = 2.0 ** 53  # integers beyond this cannot be held exactly as float64
+
+
+def is_missing_marker(text: str) -> bool:
+    return text.strip().lower() in MISSING_MARKERS
+
+
+def cell_text(value: object) -> str:
+    """The text a user would see in a cell (blank for a missing cell)."""
+    if value is None or (isinstance(value, float) and np.isnan(value)) or value is pd.NA:
+        return ""
+    if isinstance(value, float) and value.is_integer() and abs(value) < EXACT_INTEGER_LIMIT:
+        return str(int(value))
+    return str(value)
+
+
+def coerce_numbers(column: pd.Series, *, decimal: str = ".", thousands: str | None = None) -> np.ndarray:
+    """The column as float64, NaN wherever a cell is not a number.
+
+    Numeric columns are returned as they are. Text cells are read with the file's decimal mark
+    and thousands separator; under a decimal comma a cell with a dot is not a number. Booleans
+    and dates are not numbers.
+    """
+    if pd.api.types.is_bool_dtype(column.dtype):
+        return np.full(len(column), np.nan)
+    if pd.api.types.is_numeric_dtype(column.dtype):
+        return column.to_numpy(dtype=float, na_value=np.nan)
+    if isinstance(column.dtype, pd.CategoricalDtype):
+        categories = pd.Series(column.cat.categories)
+        numbers = coerce_numbers(categories, decimal=decimal, thousands=thousands)
+        codes = column.cat.codes.to_numpy()
+        out = np.append(numbers, np.nan)[np.where(codes < 0, len(numbers), codes)]
+        return out.astype(float)
+    values = column.astype(object)
+    is_text = values.map(lambda v: isinstance(v, str)).to_numpy(dtype=bool)
+    is_number = values.map(
+        lambda v: isinstance(v, (int, float, np.integer, np.floating)) and not isinstance(v, (bool, np.bool_))
+    ).to_numpy(dtype=bool)
+    out = np.full(len(values), np.nan)
+    if is_number.any():
+        out[is_number] = values[is_number].astype(float).to_numpy()
+    if is_text.any():
+        text = pd.Series(values[is_text].to_numpy(), dtype=object).str.strip()
+        bad = np.zeros(len(text), dtype=bool)
+        if thousands:
+            text = text.str.replace(thousands, "", regex=False)
+        if decimal == ",":
+            bad = text.str.contains(".", regex=False).to_numpy(dtype=bool)
+            text = text.str.replace(",", ".", regex=False)
+        else:
+            bad = text.str.contains(",", regex=False).to_numpy(dtype=bool)
+        numbers = pd.to_numeric(text, errors="coerce").to_numpy(dtype=float, na_value=np.nan, copy=True)
+        numbers[bad] = np.nan
+        out[is_text] = numbers
+    return out
+
+
+def settle_column(column: pd.Series, *, decimal: str, thousands: str | None) -> tuple[pd.Series, str]:
+    """Return the column as it will sit in ``Table.frame`` and its kind.
+
+    Clean numeric columns become float64 (integers too, unless too large to hold exactly: those
+    are identifiers and stay text). Columns read as categories go back to text. Text columns
+    whose every filled cell is a number become float64 ("number"); some numbers -> "mixed";
+    none -> "text"; nothing filled -> "empty".
+    """
+    dtype = column.dtype
+    if pd.api.types.is_bool_dtype(dtype):
+        return column.astype(object).map(str), "text"
+    if pd.api.types.is_integer_dtype(dtype):
+        values = column.to_numpy()
+        if values.size and max(-int(values.min()), int(values.max())) >= EXACT_INTEGER_LIMIT:
+            return column.astype(str), "text"
+        return column.astype(float), "number"
+    if pd.api.types.is_float_dtype(dtype):
+        values = column.to_numpy(dtype=float)
+        head_blank = values.size == 0 or np.isnan(values[:1000]).all()
+        return column, ("empty" if head_blank and np.isnan(values).all() else "number")
+    if isinstance(dtype, pd.CategoricalDtype):
+        return _settle_categories(column, decimal=decimal, thousands=thousands)
+    numbers = coerce_numbers(column, decimal=decimal, thousands=thousands)
+    filled = column.notna().to_numpy() & ~column.map(
+        lambda v: isinstance(v, str) and not v.strip()).to_numpy(dtype=bool)
+    n_filled = int(filled.sum())
+    n_numbers = int(np.count_nonzero(~np.isnan(numbers) & filled))
+    if n_filled == 0:
+        return column, "empty"
+    if n_numbers == n_filled:
+        return pd.Series(numbers, index=column.index, name=column.name), "number"
+    return column, ("text" if n_numbers == 0 else "mixed")
+
+
+def _settle_categories(column: pd.Series, *, decimal: str, thousands: str | None) -> tuple[pd.Series, str]:
+    """A column parsed as categories (few distinct texts): judged on its categories alone."""
+    categories = np.asarray(column.cat.categories.astype(str), dtype=object)
+    codes = column.cat.codes.to_numpy()
+    numbers = coerce_numbers(pd.Series(categories, dtype=object), decimal=decimal, thousands=thousands)
+    blank = np.array([not c.strip() for c in categories], dtype=bool)
+    as_text = pd.Series(np.append(categories, np.nan).take(codes), index=column.index,
+                        name=column.name, dtype=object)
+    present = np.zeros(len(categories), dtype=bool)
+    if len(categories) <= 64:
+        for k in range(len(categories)):
+            present[k] = bool((codes == k).any())
+    else:
+        present[np.unique(codes[codes >= 0])] = True
+    filled = present & ~blank
+    numeric = filled & ~np.isnan(numbers)
+    if not filled.any():
+        return as_text, "empty"
+    if not numeric.any():
+        return as_text, "text"
+    if numeric.sum() == filled.sum() and not (present & blank).any():
+        values = np.append(numbers, np.nan)[codes]
+        return pd.Series(values, index=column.index, name=column.name), "number"
+    return as_text, "mixed"

@@ -1,0 +1,191 @@
+"""``read_table``: a .csv/.tsv/.txt/.xlsx/.xls/.ods file into a :class:`Table`."""
+
+from __future__ import annotations
+
+import warnings
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+
+from ..errors import ColumnProblem, FileProblem
+from ..results import Finding
+from ._files import HEAD_BYTES, SHEET_KINDS, check_path, one_line, read_head, wrap_unexpected
+from .cells import settle_column
+from .sniff import TextFormat, sniff_text
+from .table import Table, remember_factors, with_rows_above
+
+__all__ = ["read_table"]
+
+
+def read_table(path: str | Path, *, sheet: str | None = None) -> Table:
+    """Read a data file into a :class:`Table`, detecting its format.
+
+    Parameters
+    ----------
+    path : str or pathlib.Path
+        A .csv, .tsv, .txt, .xlsx, .xls or .ods file. It is opened read-only.
+    sheet : str, optional
+        For a workbook, the sheet to read (the first sheet by default). Ignored, with a note,
+        for text files.
+
+    Returns
+    -------
+    Table
+
+    Raises
+    ------
+    FileProblem
+        Missing, unreadable, empty, binary, of an unknown type, or broken.
+    ColumnProblem
+        The sheet asked for does not exist (the message lists the sheets).
+
+    Notes
+    -----
+    Text files: encoding, delimiter, decimal mark, thousands separator and header row are
+    detected on the first 64 KiB (see :func:`engine.io.sniff.sniff_text`); pandas' C parser then
+    reads the whole file with those settings. Only blank cells are taken as missing at this
+    stage, so texts such as "n/a" stay visible; columns whose cells are all numbers become
+    float64. Workbooks are read with the calamine reader.
+
+    References
+    ----------
+    pandas documentation, ``pandas.read_csv`` and ``pandas.read_excel`` (engine "calamine").
+    """
+    path, kind = check_path(path)
+    head, size = read_head(path)
+    if size == 0 or (kind not in SHEET_KINDS and not head.strip(b" \t\r\n\x00\xef\xbb\xbf\xff\xfe")):
+        raise FileProblem(f"{path.name} is empty.")
+    with wrap_unexpected(path.name, "read"):
+        if kind in SHEET_KINDS:
+            from .sheets import read_sheet
+
+            return read_sheet(path, kind, sheet)
+        return _read_text(path, kind, head, truncated=size > len(head), sheet=sheet)
+
+
+def _read_text(path: Path, kind: str, head: bytes, *, truncated: bool, sheet: str | None) -> Table:
+    fmt = sniff_text(head, name=path.name, kind=kind, truncated=truncated)
+    notes = list(fmt.notes)
+    encoding = fmt.encoding
+    try:
+        frame = _parse(path, fmt, encoding)
+    except UnicodeDecodeError:
+        encoding = "cp1252"
+        notes.append("Part of the file is not valid UTF-8; it was read as Windows Western (cp1252).")
+        frame = _parse(path, fmt, encoding)
+    if sheet is not None:
+        notes.append(f"A sheet ('{sheet}') was asked for, but a text file has no sheets.")
+    return build_table(path, kind, frame, fmt=fmt, encoding=encoding, notes=notes,
+                       rows_above=fmt.skip_rows + (1 if fmt.header else 0))
+
+
+def _parse(path: Path, fmt: TextFormat, encoding: str) -> pd.DataFrame:
+    options = dict(
+        header=0 if fmt.header else None,
+        skiprows=fmt.skip_rows or None,
+        encoding=encoding,
+        decimal=fmt.decimal,
+        thousands=fmt.thousands,
+        keep_default_na=False,
+        na_values=[""],
+        skip_blank_lines=False,
+        dtype={j: "category" for j in fmt.text_columns} or None,
+    )
+    if fmt.delimiter == " ":
+        options["sep"] = r"\s+"
+    else:
+        options.update(sep=fmt.delimiter, quotechar='"')
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")  # mixed-type chunks are settled column by column below
+        try:
+            return pd.read_csv(path, engine="c", **options)
+        except pd.errors.EmptyDataError as error:
+            raise FileProblem(f"{path.name} holds no data.") from error
+        except pd.errors.ParserError as error:
+            raise FileProblem(f"{path.name} could not be read as a table: {one_line(error)}") from error
+
+
+def _clean_names(names: list[object], header: bool) -> tuple[list[str], list[str]]:
+    """Column names as text: trimmed, blanks named by position, repeats numbered."""
+    notes: list[str] = []
+    clean: list[str] = []
+    seen: set[str] = set()
+    for j, raw in enumerate(names):
+        text = "" if raw is None or (isinstance(raw, float) and np.isnan(raw)) else str(raw)
+        if isinstance(raw, float) and raw.is_integer():
+            text = str(int(raw))
+        name = text.strip()
+        if not header or not name or name.startswith("Unnamed: "):
+            name = f"column {j + 1}"
+            if header:
+                notes.append(f"Column {j + 1} has no name; it is called '{name}'.")
+        base, k = name, 2
+        while name in seen:
+            name = f"{base} ({k})"
+            k += 1
+        if header and name != text and text and not text.startswith("Unnamed: "):
+            notes.append(f"Column name '{text}' is used as '{name}'.")
+        seen.add(name)
+        clean.append(name)
+    return clean, notes
+
+
+def _trim_blank_tail(frame: pd.DataFrame) -> tuple[pd.DataFrame, int]:
+    end = len(frame)
+    while end > 0 and frame.iloc[end - 1].isna().all():
+        end -= 1
+    return (frame.iloc[:end] if end < len(frame) else frame), len(frame) - end
+
+
+def build_table(
+    path: Path,
+    kind: str,
+    frame: pd.DataFrame,
+    *,
+    fmt: TextFormat | None = None,
+    encoding: str | None = None,
+    notes: list[str],
+    rows_above: int,
+    sheet: str | None = None,
+    sheet_names: tuple[str, ...] = (),
+    header: bool | None = None,
+) -> Table:
+    """Settle names, kinds and blank rows of a freshly parsed frame and wrap it in a Table."""
+    header = fmt.header if fmt is not None else bool(header)
+    decimal = fmt.decimal if fmt is not None else "."
+    thousands = fmt.thousands if fmt is not None else None
+    if frame.shape[1] == 0:
+        raise FileProblem(f"{path.name} holds no columns.")
+    names, name_notes = _clean_names(list(frame.columns), header)
+    notes = notes + name_notes
+    frame, trailing = _trim_blank_tail(frame)
+    if trailing:
+        notes.append(f"{trailing} blank row(s) at the end were passed over.")
+    if len(frame) == 0:
+        where = f"sheet '{sheet}' of {path.name}" if sheet else path.name
+        raise FileProblem(f"{where} has column names but no rows of data." if header
+                          else f"{where} holds no data.")
+    frame = frame.set_axis(names, axis=1)
+    kinds: dict[str, str] = {}
+    factors: dict[str, tuple[np.ndarray, list[str]]] = {}
+    for position, name in enumerate(names):
+        column = frame.iloc[:, position]
+        if isinstance(column.dtype, pd.CategoricalDtype):
+            factors[name] = (column.cat.codes.to_numpy(), [str(c) for c in column.cat.categories])
+        settled, kinds[name] = settle_column(column, decimal=decimal, thousands=thousands)
+        if settled is not column:
+            frame.isetitem(position, settled)
+    if not isinstance(frame.index, pd.RangeIndex) or frame.index.start != 0:
+        frame = frame.reset_index(drop=True)
+    clean = frame
+    table = Table(
+        path=path, kind=kind, frame=clean, sheet=sheet, sheet_names=sheet_names,
+        encoding=encoding, delimiter=fmt.delimiter if fmt is not None else None,
+        decimal=decimal, thousands=thousands, header=header, column_kinds=kinds,
+        notes=tuple(Finding(f"read_{i}", "info", text) for i, text in enumerate(notes)),
+    )
+    for name, (codes, texts) in factors.items():
+        if kinds[name] in ("text", "mixed"):
+            remember_factors(table, name, codes, texts)
+    return with_rows_above(table, rows_above)

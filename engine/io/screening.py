@@ -1,0 +1,270 @@
+"""The screening report: what was used, what was left out and why, and what looks odd.
+
+Nothing here removes a value that is a number: possible slips and signs of pairing are
+reported for the user to judge.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from typing import Mapping, Sequence
+
+import numpy as np
+import pandas as pd
+
+from ..results import Finding, frozen_mapping
+from .layout import looks_like_id_name
+
+__all__ = [
+    "Exclusion",
+    "ScreeningReport",
+    "EXCLUSION_REASONS",
+    "MAX_LISTED_EXCLUSIONS",
+    "FAR_OUT_IQR",
+    "duplicate_rows",
+    "possible_slips",
+    "paired_sign",
+    "identifier_candidates",
+]
+
+EXCLUSION_REASONS: tuple[str, ...] = ("missing", "non_numeric", "infinite", "set_aside")
+MAX_LISTED_EXCLUSIONS = 1000
+FAR_OUT_IQR = 3.0       # Tukey's "far out" fence: beyond 3 IQR from the quartiles
+INNER_IQR = 1.5         # Tukey's inner fence
+MAX_SLIPS_LISTED = 20   # per group; the rest are summed up in one finding
+_EXACT_QUARTILES_UP_TO = 100_000  # larger groups: quartiles from an evenly spaced subsample
+_SHIFT_TOLERANCE = 0.12  # |log10(value / median) - k| for a shift by 10**k
+
+
+@dataclass(frozen=True)
+class Exclusion:
+    """One cell left out of a group, with where it is and why."""
+
+    frame_row: int
+    file_row: int
+    column: str
+    group: str | None
+    reason: str
+    text: str
+
+
+@dataclass(frozen=True)
+class ScreeningReport:
+    """What became of every row read, and what deserves a second look."""
+
+    rows_read: int
+    labels: tuple[str, str]
+    n_used: tuple[int, int]
+    excluded_counts: Mapping[str, int]
+    exclusions: tuple[Exclusion, ...]
+    other_group_rows: int
+    duplicate_rows: int
+    possible_slips: tuple[Finding, ...]
+    paired: Finding | None
+    findings: tuple[Finding, ...] = field(default=())
+
+    def __post_init__(self) -> None:
+        counts = {reason: int(self.excluded_counts.get(reason, 0)) for reason in EXCLUSION_REASONS}
+        object.__setattr__(self, "excluded_counts", frozen_mapping(counts))
+        object.__setattr__(self, "exclusions", tuple(self.exclusions))
+        object.__setattr__(self, "possible_slips", tuple(self.possible_slips))
+        object.__setattr__(self, "findings", tuple(self.findings))
+
+
+def duplicate_rows(table, *, counted: np.ndarray | None = None) -> np.ndarray:
+    """Frame rows that repeat an earlier row in every column.
+
+    Only rows where ``counted`` is True are reported (the caller leaves out rows whose value
+    cells are blank, which repeat each other without meaning anything); blank rows never count.
+
+    Notes
+    -----
+    On large frames a column with no repeated value proves that no row repeats, which costs one
+    sort; otherwise only the rows that repeat in that column are compared in full.
+    """
+    frame = table.frame
+    n = len(frame)
+    if n < 2 or frame.shape[1] == 0:
+        return np.empty(0, dtype=np.int64)
+    candidates = None
+    if n > 50_000:
+        floats = [name for name in frame.columns if frame[name].dtype == np.float64]
+        if any(table.strictly_rising(name) for name in floats):
+            return np.empty(0, dtype=np.int64)  # a strictly rising column: no row repeats
+        for name in floats:
+            column = frame[name]
+            values = column.to_numpy()
+            ordered = np.sort(values)
+            ties = np.count_nonzero(ordered[1:] == ordered[:-1]) + max(0, np.isnan(values).sum() - 1)
+            if ties == 0:
+                return np.empty(0, dtype=np.int64)
+            if candidates is None:
+                candidates = column.duplicated(keep=False).to_numpy()
+            break
+    part = frame if candidates is None else frame.loc[candidates]
+    repeated = part.duplicated(keep="first").to_numpy()
+    rows = part.index.to_numpy()[repeated]
+    if counted is not None and rows.size:
+        rows = rows[counted[rows]]
+    if rows.size:
+        blank = frame.loc[rows].isna().all(axis=1).to_numpy()
+        rows = rows[~blank]
+    return rows.astype(np.int64)
+
+
+def _fences(values: np.ndarray) -> tuple[float, float, float, float] | None:
+    if values.size < 5:
+        return None
+    sample = values
+    if values.size > _EXACT_QUARTILES_UP_TO:  # an evenly spread subsample: quartiles to ~0.3 %
+        sample = values[:: values.size // _EXACT_QUARTILES_UP_TO]
+    q1, median, q3 = np.quantile(sample, [0.25, 0.5, 0.75])
+    iqr = q3 - q1
+    if not iqr > 0:
+        return None
+    return q1, median, q3, iqr
+
+
+def possible_slips(
+    values: np.ndarray,
+    file_rows: np.ndarray,
+    *,
+    label: str,
+    group: int,
+    column: str,
+) -> list[Finding]:
+    """Values that look like data-entry slips: flagged, never removed.
+
+    Parameters
+    ----------
+    values : numpy.ndarray
+        The group's usable values.
+    file_rows : numpy.ndarray
+        The file row of each value, for the messages.
+    label, group, column
+        The group's label and index (0 or 1) and the column name, for the messages.
+
+    Returns
+    -------
+    list of Finding
+        One "possible_slip" finding (severity "note") per flagged value, at most 20, then one
+        that counts the rest.
+
+    Notes
+    -----
+    With quartiles Q1, Q3 and IQR = Q3 - Q1, a value is flagged when it lies beyond Tukey's
+    far-out fences Q1 - 3 IQR or Q3 + 3 IQR, or when it lies beyond the inner fences
+    (1.5 IQR) and is within a factor 10**0.12 of 10 or 100 times (or a tenth or hundredth of)
+    the group median while the value shifted back by that power of ten falls inside the inner
+    fences: the mark of a misplaced decimal point. Groups of fewer than five values, or with
+    no spread between the quartiles, are not screened.
+
+    References
+    ----------
+    Tukey, J. W. (1977). Exploratory Data Analysis. Addison-Wesley, section 2C (fences).
+    """
+    fences = _fences(values)
+    if fences is None:
+        return []
+    q1, median, q3, iqr = fences
+    inner_low, inner_high = q1 - INNER_IQR * iqr, q3 + INNER_IQR * iqr
+    far_low, far_high = q1 - FAR_OUT_IQR * iqr, q3 + FAR_OUT_IQR * iqr
+    shift = _decimal_shifts(values, median, inner_low, inner_high)
+    far = (values < far_low) | (values > far_high)
+    flagged = np.flatnonzero(far | (shift != 0))
+    findings: list[Finding] = []
+    for i in flagged[:MAX_SLIPS_LISTED]:
+        value = float(values[i])
+        where = f"Row {int(file_rows[i])} of '{column}' (group '{label}')"
+        if shift[i]:
+            power = 10 ** abs(int(shift[i]))
+            times = f"{power} times" if shift[i] > 0 else f"1/{power} of"
+            text = (f"{where}: {value:g} is about {times} the group median ({median:g}); it may "
+                    "have a misplaced decimal point. It was kept.")
+        else:
+            side = "above" if value > far_high else "below"
+            text = (f"{where}: {value:g} lies more than 3 IQR {side} the quartiles "
+                    f"({q1:g} to {q3:g}); check it for a typing slip. It was kept.")
+        findings.append(Finding("possible_slip", "note", text, group))
+    if flagged.size > MAX_SLIPS_LISTED:
+        findings.append(Finding(
+            "possible_slip", "note",
+            f"{flagged.size - MAX_SLIPS_LISTED} more values of group '{label}' look like possible "
+            f"slips; only the first {MAX_SLIPS_LISTED} are listed.", group))
+    return findings
+
+
+def _decimal_shifts(values: np.ndarray, median: float, low: float, high: float) -> np.ndarray:
+    """For each value, k if it looks like the median shifted by 10**k (k = +-1, +-2), else 0."""
+    shifts = np.zeros(values.size, dtype=np.int8)
+    outside = np.flatnonzero((values < low) | (values > high))
+    if median == 0 or outside.size == 0:
+        return shifts
+    candidates = values[outside]
+    with np.errstate(divide="ignore", invalid="ignore"):
+        ratio = np.log10(candidates / median)
+    for k in (1, 2, -1, -2):
+        back = candidates / 10.0 ** k
+        hit = (np.abs(ratio - k) < _SHIFT_TOLERANCE) & (back >= low) & (back <= high)
+        shifts[outside[hit & (shifts[outside] == 0)]] = k
+    return shifts
+
+
+def paired_sign(
+    candidates: Sequence[tuple[str, np.ndarray, np.ndarray]],
+    *,
+    labels: tuple[str, str],
+    n_used: tuple[int, int],
+    wide: bool,
+) -> Finding | None:
+    """A warning when the data look paired rather than independent.
+
+    ``candidates`` holds (column name, IDs of group 1's rows, IDs of group 2's rows) for each
+    identifier-like column. In the long layout the sign is that most IDs appear exactly once in
+    each group; in the wide layout (one row holds a value of each group) it is equal group sizes
+    and an identifier column with one ID per row.
+    """
+    for name, first, second in candidates:
+        if wide:
+            if n_used[0] == n_used[1] and len(first) and pd.Series(first).is_unique:
+                return Finding(
+                    "paired", "warning",
+                    f"Each row holds one value of '{labels[0]}' and one of '{labels[1]}', the groups "
+                    f"are the same size ({n_used[0]}) and '{name}' names each row: if both values "
+                    "of a row come from the same unit, the data are paired and procedures for "
+                    "independent groups do not fit.")
+            continue
+        one = pd.Series(first)
+        two = pd.Series(second)
+        if one.empty or two.empty or not one.is_unique or not two.is_unique:
+            continue
+        shared = np.intersect1d(one.to_numpy(), two.to_numpy()).size
+        if shared >= 2 and shared >= 0.8 * max(len(one), len(two)):
+            every = shared == len(one) == len(two)
+            amount = "every ID appears" if every else f"{shared} IDs appear"
+            return Finding(
+                "paired", "warning",
+                f"In column '{name}', {amount} once in group '{labels[0]}' and once in group "
+                f"'{labels[1]}': the same units seem to be measured twice, so the data may be "
+                "paired and procedures for independent groups may not fit.")
+    return None
+
+
+def identifier_candidates(table, skip: Sequence[str]) -> list[str]:
+    """Columns that may identify units: named like an ID, or whole-number codes."""
+    names = []
+    for name in table.frame.columns:
+        if name in skip or table.column_kinds[name] == "empty":
+            continue
+        if looks_like_id_name(name):
+            names.append(name)
+            continue
+        if table.column_kinds[name] == "number":
+            values = table.numbers(name)
+            head = values[:1000]
+            head = head[np.isfinite(head)]
+            if head.size and np.all(head == np.round(head)):
+                finite = values[np.isfinite(values)]
+                if finite.size and np.all(finite == np.round(finite)):
+                    names.append(name)
+    return names[:3]

@@ -1,0 +1,95 @@
+"""Workbooks (.xlsx, .xls, .ods) read with the calamine reader."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import pandas as pd
+
+from ..errors import ColumnProblem, FileProblem
+from ._files import one_line
+from .cells import cell_text
+from .sniff import has_header
+
+__all__ = ["read_sheet", "sheet_names"]
+
+_KIND_NAMES = {"xlsx": "an Excel workbook", "xls": "an Excel 97-2003 workbook", "ods": "an OpenDocument spreadsheet"}
+_HEADER_SAMPLE = 200
+
+
+def _open(path: Path, kind: str) -> pd.ExcelFile:
+    try:
+        return pd.ExcelFile(path, engine="calamine")
+    except PermissionError as error:
+        raise FileProblem(
+            f"{path.name} cannot be opened: permission denied (it may be locked by another "
+            "program or need different access rights).") from error
+    except Exception as error:  # calamine's zip/XML errors: the file is damaged or mislabelled
+        raise FileProblem(
+            f"{path.name} could not be read as {_KIND_NAMES[kind]}; it may be damaged or not "
+            f"really a .{kind} file ({one_line(error, 80)}).") from error
+
+
+def sheet_names(path: Path, kind: str) -> tuple[str, ...]:
+    """The workbook's sheet names in order."""
+    with _open(path, kind) as book:
+        return tuple(str(name) for name in book.sheet_names)
+
+
+def _pick_sheet(path: Path, names: tuple[str, ...], sheet: str | None) -> str:
+    if not names:
+        raise FileProblem(f"{path.name} holds no sheets.")
+    if sheet is None:
+        return names[0]
+    if sheet in names:
+        return sheet
+    loose = [n for n in names if n.strip().lower() == str(sheet).strip().lower()]
+    if len(loose) == 1:
+        return loose[0]
+    listed = ", ".join(f"'{n}'" for n in names)
+    raise ColumnProblem(f"{path.name} has no sheet '{sheet}'; its sheets are {listed}.")
+
+
+def read_sheet(path: Path, kind: str, sheet: str | None):
+    """Read one sheet into a :class:`engine.io.Table` (the first sheet by default).
+
+    Leading blank rows are kept in the count so that ``Table.file_row`` gives the row number the
+    spreadsheet shows; fully blank columns without a name are dropped.
+    """
+    from .read import build_table
+
+    with _open(path, kind) as book:
+        names = tuple(str(name) for name in book.sheet_names)
+        chosen = _pick_sheet(path, names, sheet)
+        try:
+            raw = book.parse(chosen, header=None)
+        except Exception as error:
+            raise FileProblem(
+                f"Sheet '{chosen}' of {path.name} could not be read: {one_line(error, 100)}") from error
+    others = [n for n in names if n != chosen]
+    if raw.empty or raw.isna().all().all():
+        hint = f"; the other sheets are {', '.join(repr(n) for n in others)}" if others else ""
+        raise FileProblem(f"Sheet '{chosen}' of {path.name} is empty{hint}.")
+    raw = raw.loc[:, raw.notna().any()]  # blank columns (calamine keeps the empty area)
+    filled = raw.notna().any(axis=1).to_numpy()
+    top = int(filled.argmax())
+    body = raw.iloc[top:]
+    sample = [[cell_text(v) for v in row] for row in body.head(_HEADER_SAMPLE).itertuples(index=False)]
+    header, why = has_header(sample, ".", None)
+    notes = [f"Read {_KIND_NAMES[kind]}, sheet '{chosen}'"
+             + (f" (of {len(names)}: {', '.join(repr(n) for n in names)})." if len(names) > 1 else ".")]
+    if top:
+        notes.append(f"The first {top} row(s) of the sheet are blank and were passed over.")
+    notes.append(("The first row holds column names: " if header else
+                  "The first row is data, not column names: ") + why + ".")
+    if header:
+        columns = list(body.iloc[0])
+        body = body.iloc[1:]
+    else:
+        columns = list(range(body.shape[1]))
+    frame = body.copy()
+    frame.columns = range(frame.shape[1])
+    frame.reset_index(drop=True, inplace=True)
+    frame.columns = columns if header else frame.columns
+    return build_table(path, kind, frame, notes=notes, rows_above=top + (1 if header else 0),
+                       sheet=chosen, sheet_names=names, header=header)

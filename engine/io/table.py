@@ -1,0 +1,98 @@
+"""The :class:`Table`: a file's cells as read, with what detection decided about them."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from pathlib import Path
+from typing import Mapping
+
+import numpy as np
+import pandas as pd
+
+from ..results import Finding, frozen_mapping
+
+__all__ = ["Table", "with_rows_above", "remember_factors"]
+
+
+@dataclass(frozen=True, eq=False)
+class Table:
+    """A data file read into a frame.
+
+    ``frame`` holds the cells as read, one frame row per file row after the column names:
+    clean numeric columns are float64, other columns text (or objects for spreadsheet cells).
+    ``column_kinds`` maps each column to "number", "text", "mixed" or "empty". ``notes`` say
+    in plain words what detection decided (encoding, delimiter, decimal mark, header, sheet).
+    """
+
+    path: Path
+    kind: str
+    frame: pd.DataFrame
+    sheet: str | None
+    sheet_names: tuple[str, ...]
+    encoding: str | None
+    delimiter: str | None
+    decimal: str
+    thousands: str | None
+    header: bool
+    column_kinds: Mapping[str, str]
+    notes: tuple[Finding, ...]
+
+    def __post_init__(self) -> None:
+        object.__setattr__(self, "column_kinds", frozen_mapping(self.column_kinds))
+        object.__setattr__(self, "notes", tuple(self.notes))
+        object.__setattr__(self, "sheet_names", tuple(self.sheet_names))
+        # file rows above the first frame row (blank lines, column names); readers may reset it
+        object.__setattr__(self, "_rows_above", 1 if self.header else 0)
+        object.__setattr__(self, "_numbers", {})
+        object.__setattr__(self, "_factors", {})
+        object.__setattr__(self, "_rising", {})
+
+    def file_row(self, frame_row: int) -> int:
+        """The 1-based row number a user sees for ``frame_row`` in a spreadsheet or text editor.
+
+        Exact unless a quoted cell spans several lines above that row.
+        """
+        return int(frame_row) + 1 + self._rows_above
+
+    def numbers(self, column: str):
+        """The column as float64, NaN where a cell is not a number (cached per column)."""
+        from .cells import coerce_numbers
+
+        cache = self._numbers
+        if column not in cache:
+            values = coerce_numbers(self.frame[column], decimal=self.decimal, thousands=self.thousands)
+            values.setflags(write=False)
+            cache[column] = values
+        return cache[column]
+
+
+    def strictly_rising(self, column: str) -> bool:
+        """True if the column is numeric and every value exceeds the one above it (cached)."""
+        if column not in self._rising:
+            rising = False
+            if self.column_kinds[column] == "number" and len(self.frame) > 1:
+                values = self.frame[column].to_numpy()
+                rising = bool(values[0] < values[1] and (values[1:] > values[:-1]).all())
+            self._rising[column] = rising
+        return self._rising[column]
+
+    def factors(self, column: str) -> tuple[np.ndarray, list[str]]:
+        """Integer codes of the column's cells (-1 for a missing cell) and the distinct cell
+        texts they index (cached per column)."""
+        from .cells import cell_text
+
+        if column not in self._factors:
+            codes, uniques = pd.factorize(self.frame[column], use_na_sentinel=True)
+            self._factors[column] = (codes, [cell_text(u) for u in uniques])
+        return self._factors[column]
+
+
+def with_rows_above(table: Table, rows_above: int) -> Table:
+    """Record how many file rows sit above the first frame row (used by the readers)."""
+    object.__setattr__(table, "_rows_above", int(rows_above))
+    return table
+
+
+def remember_factors(table: Table, column: str, codes: np.ndarray, texts: list[str]) -> None:
+    """Store codes already known from the read (a column parsed as categories)."""
+    table._factors[column] = (codes, texts)
