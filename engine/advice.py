@@ -43,6 +43,9 @@ RESAMPLING_MAX_VALUES = 200_000
 WELCH_SOURCES = ("Ruxton 2006, Behavioral Ecology 17:688; Delacre, Lakens and Leys 2017, "
                  "International Review of Social Psychology 30:92")
 
+TIES_HANDLED = ("the rank test allows for ties: its exact version counts them as they are, and "
+                "its large-sample formula carries the usual correction for them.")
+
 # What choosing each procedure takes for granted, one sentence each (shown when the user picks a
 # procedure other than the suggested one).
 ASSUMPTIONS: Mapping[str, str] = frozen_mapping({
@@ -197,8 +200,7 @@ def _choose(s: _Situation, *, equal_spread_known: bool, ordinal: bool, known_sd)
             "the typical shift; the means are not what it tests.",
         ]
         if s.ties >= checks.HEAVY_TIES:
-            reasons.append("Many values are tied, as ratings usually are; the exact rank test counts "
-                           "ties correctly.")
+            reasons.append(f"Many values are tied, as ratings usually are; {TIES_HANDLED}")
         return "mann_whitney", reasons
     if s.small and s.shape_doubtful:
         return _small_and_doubtful(s)
@@ -240,7 +242,7 @@ def _small_and_doubtful(s: _Situation) -> tuple[str, list[str]]:
                    "higher (a shift, or stochastic ordering), with the Hodges-Lehmann estimate of "
                    "the typical shift; the means are not what it tests."]
         if s.ties >= checks.HEAVY_TIES:
-            reasons.append("Many values are tied; the exact rank test counts ties correctly.")
+            reasons.append(f"Many values are tied; {TIES_HANDLED}")
         return "mann_whitney", reasons
     if s.spreads_differ:
         return "bootstrap_mean", [
@@ -266,20 +268,18 @@ def _why_not(key: str, chosen: str, s: _Situation, *, equal_spread_known: bool, 
     small_doubt = s.small and s.shape_doubtful
     if chosen == "z" and key != "z":
         return "Standard deviations known from outside the data were given, and the z-test uses them."
+    if key in ("welch_t", "pooled_t") and ordinal:
+        return "A mean of ratings assumes equal steps between the scale points."
     if key == "welch_t":
-        if chosen == "z":
-            return "The standard deviations are known, so there is no need to estimate them."
         if chosen == "pooled_t":
             return ("With equal spreads known, pooling gives a little more precision; Welch's test "
                     "remains a safe check and should agree.")
-        if ordinal:
-            return "A mean of ratings assumes equal steps between the scale points."
         return ("The groups are small and not bell-shaped, so the t-test's p-value and interval may "
                 "be off.")
     if key == "pooled_t":
-        if equal_spread_known and chosen != "pooled_t":
+        if equal_spread_known and small_doubt:
             return ("You stated equal spreads, but with small groups that are not bell-shaped the shape "
-                    "matters more than the spread.") if small_doubt else "Equal spreads were stated."
+                    "matters more than the spread.")
         if s.pooling_risky:
             return (f"It assumes equal spreads, and the data argue against that (SD ratio "
                     f"{format_number(s.sd_ratio, digits=2)}, size ratio {format_number(s.n_ratio, digits=2)}); "
