@@ -351,17 +351,28 @@ def _test_phrase(analysis, key: str, result, numbers: _Numbers) -> str:
     return ", ".join(parts)
 
 
+# How each reason for leaving a value out is written (engine.io.screening.EXCLUSION_REASONS).
+EXCLUSION_WORDS: dict[str, str] = {
+    "missing": "empty or missing",
+    "non_numeric": "not a number",
+    "infinite": "infinite",
+    "set_aside": "set aside after review",
+}
+
+
 def _exclusions(analysis) -> str:
+    """ "4 values were left out before the comparison (3 empty or missing, 1 not a number)." """
     screening = analysis.screening
     counts = getattr(screening, "excluded_counts", None) if screening is not None else None
     if not counts:
         return ""
     pairs = list(counts.items()) if hasattr(counts, "items") else list(counts)
-    pairs = [(str(reason), int(n)) for reason, n in pairs if n]
+    pairs = [(EXCLUSION_WORDS.get(str(reason), str(reason).replace("_", " ")), int(n))
+             for reason, n in pairs if n]
     if not pairs:
         return ""
     total = sum(n for _, n in pairs)
-    detail = "; ".join(f"{reason}: {n:,}" for reason, n in pairs)
+    detail = ", ".join(f"{n:,} {words}" for words, n in pairs)
     verb = "value was" if total == 1 else "values were"
     return f"{total:,} {verb} left out before the comparison ({detail})."
 

@@ -239,14 +239,16 @@ def test_z_paragraph_has_no_degrees_of_freedom(groups):
     assert f"z = {z:.2f}" in text and "z(" not in text
 
 
-class _Screening:
-    excluded_counts = {"empty cell": 3, "text instead of a number": 1}
-    findings = ()
-
-
 def test_values_left_out_are_mentioned(groups):
-    text = render(_analysis(groups, screening=_Screening())).paragraph
-    assert "4 values were left out before the comparison (empty cell: 3; text instead of a number: 1)" in text
+    from engine.io.screening import ScreeningReport
+
+    screening = ScreeningReport(rows_read=80, labels=groups.labels, n_used=(40, 35),
+                                excluded_counts={"missing": 3, "set_aside": 1}, exclusions=(),
+                                other_group_rows=0, duplicate_rows=0, possible_slips=(), paired=None)
+    text = render(_analysis(groups, screening=screening)).paragraph
+    assert ("4 values were left out before the comparison (3 empty or missing, 1 set aside after "
+            "review).") in text
+    assert "left out" not in render(_analysis(groups)).paragraph
 
 
 def test_a_procedure_that_was_not_run_is_refused_with_a_sentence(groups):
