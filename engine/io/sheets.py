@@ -62,7 +62,7 @@ def read_sheet(path: Path, kind: str, sheet: str | None):
         names = tuple(str(name) for name in book.sheet_names)
         chosen = _pick_sheet(path, names, sheet)
         try:
-            raw = book.parse(chosen, header=None)
+            raw = pd.read_excel(book, sheet_name=chosen, header=None)
         except Exception as error:
             raise FileProblem(
                 f"Sheet '{chosen}' of {path.name} could not be read: {one_line(error, 100)}") from error
@@ -87,9 +87,7 @@ def read_sheet(path: Path, kind: str, sheet: str | None):
         body = body.iloc[1:]
     else:
         columns = list(range(body.shape[1]))
-    frame = body.copy()
-    frame.columns = range(frame.shape[1])
-    frame.reset_index(drop=True, inplace=True)
-    frame.columns = columns if header else frame.columns
+    frame = body.reset_index(drop=True)
+    frame.columns = columns if header else range(frame.shape[1])
     return build_table(path, kind, frame, notes=notes, rows_above=top + (1 if header else 0),
                        sheet=chosen, sheet_names=names, header=header)

@@ -20,6 +20,8 @@ __all__ = ["TextFormat", "detect_encoding", "sniff_text", "has_header", "DELIMIT
 DELIMITER_NAMES = {",": "comma", ";": "semicolon", "\t": "tab", "|": "pipe", " ": "spaces"}
 _CANDIDATES = (",", ";", "\t", "|")
 _SAMPLE_LINES = 200
+# zip (xlsx, ods), PDF, OLE2 (xls, doc), PNG, JPEG, GIF, gzip
+_BINARY_SIGNATURES = (b"PK\x03\x04", b"%PDF", b"\xd0\xcf\x11\xe0", b"\x89PNG", b"\xff\xd8\xff", b"GIF8", b"\x1f\x8b")
 
 # A number as typed by a person: optional sign, digits with "." and "," anywhere, optional exponent.
 _NUMBERISH = re.compile(r"^[+-]?(?:\d[\d.,]*|[.,]\d+)(?:[eE][+-]?\d+)?$")
@@ -59,6 +61,8 @@ def detect_encoding(head: bytes, name: str) -> tuple[str, str]:
     if head.startswith(codecs.BOM_UTF16_LE) or head.startswith(codecs.BOM_UTF16_BE):
         return "utf-16", "UTF-16"
     sample = head[:4096]
+    if sample.startswith(_BINARY_SIGNATURES):
+        raise FileProblem(f"{name} looks like a binary file, not a text table.")
     if sample and b"\x00" in sample:
         even, odd = sample[0::2], sample[1::2]
         if odd.count(0) > 0.4 * len(odd) and even.count(0) < 0.1 * len(even):
@@ -67,7 +71,7 @@ def detect_encoding(head: bytes, name: str) -> tuple[str, str]:
             return "utf-16-be", "UTF-16 (big-endian, no byte-order mark)"
         raise FileProblem(f"{name} looks like a binary file, not a text table.")
     controls = sum(sample.count(bytes([c])) for c in range(32) if c not in (9, 10, 12, 13))
-    if sample.startswith((b"PK\x03\x04", b"%PDF", b"\xd0\xcf\x11\xe0")) or controls > 0.05 * len(sample):
+    if controls > 0.05 * len(sample):
         raise FileProblem(f"{name} looks like a binary file, not a text table.")
     try:
         _decode_head(head, "utf-8")
