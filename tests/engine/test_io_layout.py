@@ -1,0 +1,85 @@
+"""engine.io.propose_layout: which column holds the groups and which the values."""
+
+from __future__ import annotations
+
+import pandas as pd
+import pytest
+
+from engine.io import LayoutProposal, propose_layout, read_table
+
+
+def _table(tmp_path, text, name="data.csv"):
+    path = tmp_path / name
+    path.write_text(text, encoding="utf-8")
+    return read_table(path)
+
+
+def test_long_layout_with_a_text_group_column(tmp_path):
+    table = _table(tmp_path, "bolt_id,supplier,strength,lot\n1,north,812.5,3\n2,south,799.1,3\n"
+                             "3,north ,845.2,4\n4,south,830.7,4\n")
+    proposal = propose_layout(table)
+    assert isinstance(proposal, LayoutProposal)
+    assert proposal.layout == "long"
+    assert proposal.group_column == "supplier"
+    assert proposal.value_columns[0] == "strength"
+    assert "bolt_id" not in proposal.value_columns  # an identifier, not a measurement
+    assert proposal.levels == ("north", "south")  # trimmed, in order of first appearance
+    assert any("supplier" in reason for reason in proposal.reasons)
+
+
+def test_two_level_column_beats_many_levels(tmp_path):
+    rows = "".join(f"{'AB'[i % 2]},{'CDEFG'[i % 5]},{i * 1.5}\n" for i in range(20))
+    proposal = propose_layout(_table(tmp_path, "batch,oven,cure\n" + rows))
+    assert proposal.group_column == "batch"
+
+
+def test_more_than_two_levels_are_listed(tmp_path):
+    rows = "".join(f"{'CDE'[i % 3]},{i * 1.5}\n" for i in range(9))
+    proposal = propose_layout(_table(tmp_path, "oven,cure\n" + rows))
+    assert proposal.layout == "long"
+    assert proposal.levels == ("C", "D", "E")
+    assert any("Pick the two groups" in reason for reason in proposal.reasons)
+
+
+def test_whole_number_codes_as_groups(tmp_path):
+    rows = "".join(f"{1 + i % 2},{800 + i * 1.25}\n" for i in range(10))
+    proposal = propose_layout(_table(tmp_path, "regime,yield\n" + rows))
+    assert proposal.layout == "long"
+    assert proposal.group_column == "regime"
+    assert proposal.levels == ("1", "2")
+    assert proposal.value_columns == ("yield",)
+
+
+def test_only_numeric_columns_is_wide(tmp_path):
+    proposal = propose_layout(_table(tmp_path, "slow,split,extra\n7.5,7.1,1.2\n7.9,6.8,1.1\n8.1,,1.3\n"))
+    assert proposal.layout == "wide"
+    assert proposal.group_column is None
+    assert proposal.value_columns[:2] == ("slow", "split")
+    assert proposal.levels == ()
+
+
+def test_mixed_value_column_still_counts_as_values(tmp_path):
+    proposal = propose_layout(_table(tmp_path, "batch;cure\nA;12,5\nB;n/a\nA;13,0\nB;14,5\n"))
+    assert (proposal.layout, proposal.group_column, proposal.value_columns) == ("long", "batch", ("cure",))
+
+
+def test_one_number_column_and_no_labels(tmp_path):
+    proposal = propose_layout(_table(tmp_path, "note,value\nfirst try,1.5\nsecond,2.5\nthird,3.5\nfourth,4.5\n"
+                                                "fifth,5.5\nsixth,6.5\nseventh,7.5\neighth,8.5\n"))
+    # eight distinct notes: could be labels, so the proposal offers the text column as groups
+    assert proposal.value_columns == ("value",)
+
+
+def test_workbook_wide_layout(tmp_path):
+    path = tmp_path / "plots.xlsx"
+    pd.DataFrame({"slow": [7.5, 7.9, 8.1], "split": [7.1, 6.8, None]}).to_excel(path, index=False)
+    proposal = propose_layout(read_table(path))
+    assert proposal.layout == "wide" and proposal.value_columns == ("slow", "split")
+
+
+@pytest.mark.parametrize("name", ["id", "sample_id", "SpecimenID", "subject", "unit no"])
+def test_identifier_names_are_not_values(tmp_path, name):
+    rows = "".join(f"{i},{'AB'[i % 2]},{i * 0.7 + 3}\n" for i in range(1, 9))
+    proposal = propose_layout(_table(tmp_path, f"{name},group,value\n" + rows))
+    assert name not in proposal.value_columns
+    assert proposal.value_columns == ("value",)
