@@ -45,6 +45,7 @@ from .workers import Worker
 __all__ = ["MainWindow", "OPEN_FILTER", "GROUP_FIELDS", "ANALYSIS_FIELDS", "LATE_PANELS"]
 
 OPEN_FILTER = "Data files (*.csv *.tsv *.txt *.xlsx *.xls *.ods);;All files (*)"
+WORKBOOK_KINDS = ("xlsx", "xls", "ods")
 SAVE_FILTER = "Web page (*.html);;PDF document (*.pdf)"
 PLOT_FILTER = "Picture (*.png);;Drawing (*.svg)"
 
@@ -75,6 +76,21 @@ def _proposed_picks(proposal: Any) -> tuple[str, str] | None:
     return None
 
 
+def _workbook_sheets(path: Path) -> tuple[str, ...]:
+    """The sheet names of a workbook (empty for a text file or a workbook that cannot be read:
+    reading it then says what is wrong)."""
+    kind = path.suffix.lower().lstrip(".")
+    if kind not in WORKBOOK_KINDS:
+        return ()
+    from engine.errors import TwofoldError
+    from engine.io.sheets import sheet_names
+
+    try:
+        return tuple(sheet_names(path, kind))
+    except TwofoldError:
+        return ()
+
+
 class MainWindow(QMainWindow):
     """Twofold's window over one :class:`engine.session.Session`."""
 
@@ -87,7 +103,6 @@ class MainWindow(QMainWindow):
         self._quiet = False
         self._seen = self.session.choices
         self._late_started = False
-        self._pending_sheet_question = True
         self._opening = ""
         self._closed = False
 
@@ -317,15 +332,19 @@ class MainWindow(QMainWindow):
             return False
         self.groups_worker.cancel()
         self.analysis_worker.cancel()
-        self._pending_sheet_question = sheet is None
         self._opening = path.name
         self.busy_label.setText(f"Opening {path.name}…")
+        ask = sheet is None
 
-        def read(progress: Any, cancelled: Any) -> tuple[Path, Any, Any]:
+        def read(progress: Any, cancelled: Any) -> tuple:
             from engine import io
 
+            if ask:
+                names = _workbook_sheets(path)
+                if len(names) > 1:
+                    return ("sheets", path, names)
             table = io.read_table(path, sheet=sheet)
-            return path, table, io.propose_layout(table)
+            return ("table", path, table, io.propose_layout(table))
 
         self.load_worker.run(read)
         return True
@@ -337,15 +356,14 @@ class MainWindow(QMainWindow):
                                         list(names), at, False)
         return name if ok else None
 
-    def _on_loaded(self, result: tuple[Path, Any, Any]) -> None:
-        path, table, proposal = result
-        names = list(getattr(table, "sheet_names", ()) or ())
-        if len(names) > 1 and self._pending_sheet_question:
-            self._pending_sheet_question = False
-            wanted = self._ask_sheet(names, getattr(table, "sheet", None))
-            if wanted and wanted != getattr(table, "sheet", None):
+    def _on_loaded(self, result: tuple) -> None:
+        if result[0] == "sheets":
+            _, path, names = result
+            wanted = self._ask_sheet(list(names), names[0])
+            if wanted:
                 self.open_file(path, sheet=wanted)
-                return
+            return
+        _, path, table, proposal = result
         self.message_bar.clear()
         self._quiet = True
         try:

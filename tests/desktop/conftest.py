@@ -24,6 +24,12 @@ def demo_files() -> list[Path]:
     return sorted(p for p in DEMO_DIR.iterdir() if p.suffix.lower() in DATA_SUFFIXES)
 
 
+def pytest_generate_tests(metafunc):
+    """A test that takes ``demo_path`` runs once per demo file."""
+    if "demo_path" in metafunc.fixturenames:
+        metafunc.parametrize("demo_path", demo_files(), ids=lambda p: p.name)
+
+
 @pytest.fixture(autouse=True)
 def _private_desktop_home(tmp_path, monkeypatch):
     """Keep every test away from the real user's settings and desktop folders."""
@@ -66,9 +72,12 @@ def make_window(qtbot, settings, sheets_asked):
         window.cleanup()
 
 
-def wait_until_settled(qtbot, window, timeout: int = 20_000) -> None:
-    """Wait until no worker of ``window`` is busy (the late panels may still be loading)."""
-    qtbot.waitUntil(lambda: not window.busy, timeout=timeout)
+@pytest.fixture
+def settle(qtbot):
+    """``settle(window)`` waits until no worker of the window is busy."""
+    def wait(window, timeout: int = 20_000) -> None:
+        qtbot.waitUntil(lambda: not window.busy, timeout=timeout)
+    return wait
 
 
 def write_csv(path: Path, rows: list[tuple], header: tuple) -> Path:

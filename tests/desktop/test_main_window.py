@@ -1,0 +1,226 @@
+"""The main window: every way of opening a file, the flow to the findings, failures and stops."""
+
+from __future__ import annotations
+
+import hashlib
+
+import numpy as np
+import pytest
+from PySide6.QtCore import QMimeData, QPointF, Qt, QUrl
+from PySide6.QtGui import QDropEvent, QKeySequence
+
+
+def digest(path) -> str:
+    return hashlib.sha256(path.read_bytes()).hexdigest()
+
+
+def wait_for_table(qtbot, window, timeout=20_000):
+    qtbot.waitUntil(lambda: window.session.table is not None, timeout=timeout)
+
+
+def test_every_demo_file_opens_as_a_double_click_would(make_window, qtbot, settle, demo_path):
+    path = demo_path
+    before = digest(path)
+    window = make_window([path])  # what `twofold FILE` (the desktop's Exec line) runs
+    wait_for_table(qtbot, window)
+    settle(window, timeout=60_000)
+    session = window.session
+    assert window.data_panel.model.rowCount() == len(session.table.frame)
+    assert session.choices.path == path
+    if session.intake is not None:
+        qtbot.waitUntil(lambda: session.analysis is not None or window.message_bar.key is not None,
+                        timeout=60_000)
+        assert session.analysis is not None, window.message_bar.text
+    else:
+        assert window.message_bar.key == "groups_problem" and session.problem
+    assert digest(path) == before  # the user's file is never written
+    assert window.isVisible()
+
+
+def test_columns_groups_set_aside_and_back(make_window, qtbot, settle, three_groups_csv):
+    before = digest(three_groups_csv)
+    window = make_window([three_groups_csv])
+    wait_for_table(qtbot, window)
+    settle(window)
+    session = window.session
+    # three batches: the window asks for two
+    assert session.choices.group_column == "batch"
+    assert session.choices.value_columns == ("peel_strength",)
+    assert session.intake is None and "3 groups" in session.problem
+    assert window.message_bar.key == "groups_problem"
+
+    setup = window.setup_panel
+    setup.first_group.setCurrentIndex(setup.first_group.findData("A"))
+    setup.first_group.activated.emit(setup.first_group.currentIndex())
+    setup.second_group.setCurrentIndex(setup.second_group.findData("C"))
+    setup.second_group.activated.emit(setup.second_group.currentIndex())
+    qtbot.waitUntil(lambda: session.intake is not None, timeout=10_000)
+    assert session.intake.groups.labels == ("A", "C")
+    assert window.message_bar.key is None
+    # batch A has one blank cell among its 12 rows; C has 12 numbers
+    assert session.intake.screening.n_used == (11, 12)
+    settle(window, timeout=60_000)
+    first = session.analysis
+    assert first is not None and first.groups.labels == ("A", "C")
+
+    frame_row = 0  # the first row is batch A
+    window.data_panel.set_aside(frame_row, "peel_strength", "slip of the pen")
+    qtbot.waitUntil(lambda: session.intake.screening.n_used == (10, 12), timeout=10_000)
+    assert session.intake.screening.excluded_counts["set_aside"] == 1
+    settle(window, timeout=60_000)
+    assert session.analysis is not first and session.analysis.groups.n == (10, 12)
+
+    window.data_panel.bring_back(frame_row, "peel_strength")
+    qtbot.waitUntil(lambda: session.intake.screening.n_used == (11, 12), timeout=10_000)
+    settle(window, timeout=60_000)
+    assert session.analysis.groups.n == (11, 12)
+    assert digest(three_groups_csv) == before
+
+
+def test_a_broken_file_shows_a_message_and_the_window_stays_usable(make_window, qtbot, tmp_path, two_groups_csv):
+    broken = tmp_path / "broken.csv"
+    broken.write_bytes(bytes(range(256)) * 40)
+    window = make_window([broken])
+    qtbot.waitUntil(lambda: window.message_bar.key is not None, timeout=10_000)
+    assert window.message_bar.key == "open_failed"
+    assert "broken.csv" in window.message_bar.text
+    assert window.session.table is None and window.isVisible()
+    assert window.open_file(two_groups_csv)
+    wait_for_table(qtbot, window)
+    assert window.message_bar.key is None
+
+
+def test_a_missing_file_is_named(make_window, tmp_path):
+    window = make_window([tmp_path / "not_there.csv"])
+    assert window.message_bar.key == "not_a_file"
+    assert "not_there.csv" in window.message_bar.text
+
+
+def test_an_unexpected_failure_in_a_worker_is_shown_not_fatal(make_window, qtbot, two_groups_csv, monkeypatch):
+    import engine.analysis
+
+    def made_up_failure(*args, **kwargs):
+        raise RuntimeError("made-up failure for the test")
+
+    monkeypatch.setattr(engine.analysis, "analyze", made_up_failure)
+    window = make_window([two_groups_csv])
+    qtbot.waitUntil(lambda: window.message_bar.key == "analysis_crashed", timeout=20_000)
+    assert "made-up failure" in window.message_bar.text
+    assert window.isVisible() and not window.busy
+    assert window.redo_action.isEnabled()
+    monkeypatch.undo()
+    window.run_analysis()
+    qtbot.waitUntil(lambda: window.session.analysis is not None, timeout=60_000)
+    assert window.message_bar.key is None
+
+
+def test_stop_ends_a_long_run(make_window, qtbot, csv_file):
+    rng = np.random.default_rng(5)
+    rows = [("old", round(float(v), 3)) for v in rng.normal(10, 2, 3000)]
+    rows += [("new", round(float(v), 3)) for v in rng.normal(10.2, 2, 3000)]
+    path = csv_file("long_run.csv", rows, ("press", "force"))
+    window = make_window()
+    window.session.choose(n_resamples=1_000_000)
+    window.open_file(path)
+    qtbot.waitUntil(lambda: window.analysis_worker.busy, timeout=20_000)
+    with qtbot.waitSignal(window.analysis_worker.progress, timeout=30_000):
+        pass
+    assert window.cancel_button.isVisibleTo(window) and not window.redo_action.isEnabled()
+    with qtbot.waitSignal(window.analysis_worker.stopped, timeout=5_000):
+        window.cancel_button.click()
+    assert window.message_bar.key == "analysis_stopped"
+    assert not window.busy and window.redo_action.isEnabled()
+    assert window.session.analysis is None
+    assert window.analysis_worker.wait(30_000)  # the engine noticed and ended the pool thread
+
+
+def test_choosing_a_procedure_only_changes_the_view(make_window, qtbot, settle, two_groups_csv):
+    window = make_window([two_groups_csv])
+    qtbot.waitUntil(lambda: window.session.analysis is not None, timeout=60_000)
+    settle(window)
+    shown = window.session.analysis
+    window.session.choose(procedure="mann_whitney")
+    assert not window.busy and window.session.analysis is shown
+    window.session.choose(alternative="less")
+    assert window.analysis_worker.busy
+    qtbot.waitUntil(lambda: window.session.analysis is not shown and not window.busy, timeout=60_000)
+    assert window.session.analysis.options.alternative == "less"
+
+
+def test_a_workbook_with_several_sheets_asks_which(make_window, qtbot, tmp_path, sheets_asked):
+    openpyxl = pytest.importorskip("openpyxl")
+    book = openpyxl.Workbook()
+    notes = book.active
+    notes.title = "notes"
+    notes.append(["written by", "the lab"])
+    data = book.create_sheet("bolts")
+    data.append(["supplier", "strength"])
+    for k in range(8):
+        data.append(["east" if k % 2 else "west", 800 + 7 * k])
+    path = tmp_path / "bolts.xlsx"
+    book.save(path)
+    chosen = []
+
+    def ask(names, current):
+        chosen.append(list(names))
+        return "bolts"
+
+    window = make_window([path], ask_sheet=ask)
+    qtbot.waitUntil(lambda: window.session.table is not None and window.session.table.sheet == "bolts",
+                    timeout=20_000)
+    assert chosen == [["notes", "bolts"]]  # asked once, not again for the chosen sheet
+    assert window.session.choices.sheet == "bolts"
+    assert window.data_panel.model.rowCount() == 8
+
+
+def test_a_drop_opens_the_file(make_window, qtbot, two_groups_csv):
+    window = make_window()
+    mime = QMimeData()
+    mime.setUrls([QUrl.fromLocalFile(str(two_groups_csv))])
+    event = QDropEvent(QPointF(10, 10), Qt.DropAction.CopyAction, mime, Qt.MouseButton.LeftButton,
+                       Qt.KeyboardModifier.NoModifier)
+    window.dropEvent(event)
+    wait_for_table(qtbot, window)
+    assert window.session.choices.path == two_groups_csv
+
+
+def test_recent_files(make_window, qtbot, two_groups_csv, three_groups_csv):
+    window = make_window([two_groups_csv])
+    wait_for_table(qtbot, window)
+    window.open_file(three_groups_csv)
+    qtbot.waitUntil(lambda: window.session.choices.path == three_groups_csv, timeout=20_000)
+    assert window.recent.paths()[:2] == [three_groups_csv.resolve(), two_groups_csv.resolve()]
+    window._fill_recent()
+    assert [a.text() for a in window.recent_menu.actions()][:2] == [three_groups_csv.name, two_groups_csv.name]
+    two_groups_csv.unlink()
+    window.open_recent(two_groups_csv)
+    assert window.message_bar.key == "recent_gone"
+    assert two_groups_csv.resolve() not in window.recent.paths()
+
+
+def test_shortcuts_and_tooltips(make_window):
+    window = make_window()
+    assert window.open_action.shortcut() == QKeySequence(QKeySequence.StandardKey.Open)
+    assert window.copy_action.shortcut() == QKeySequence("Ctrl+Shift+C")
+    assert window.export_action.shortcut() == QKeySequence("Ctrl+E")
+    assert window.quit_action.shortcut() == QKeySequence(QKeySequence.StandardKey.Quit)
+    for action in (window.open_action, window.copy_action, window.export_action, window.redo_action,
+                   window.cancel_action, window.quit_action):
+        assert action.toolTip().endswith(".")
+    for widget in (window.setup_panel.group_column, window.setup_panel.confidence, window.data_panel.grid,
+                   window.cancel_button):
+        assert widget.toolTip()
+
+
+def test_nothing_to_copy_before_a_comparison_and_never_over_the_data(make_window, qtbot, two_groups_csv):
+    window = make_window()
+    window._add_late_panels()
+    window.copy_findings()
+    assert window.message_bar.key in ("nothing_yet", "part_missing")
+    window.open_file(two_groups_csv)
+    qtbot.waitUntil(lambda: window.session.analysis is not None, timeout=60_000)
+    before = digest(two_groups_csv)
+    if window.findings_panel is not None:
+        assert not window.export_report(two_groups_csv)
+        assert window.message_bar.key == "save_failed" and "data file" in window.message_bar.text
+    assert digest(two_groups_csv) == before
