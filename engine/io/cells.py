@@ -95,9 +95,7 @@ def settle_column(column: pd.Series, *, decimal: str, thousands: str | None) -> 
         return column, ("empty" if head_blank and np.isnan(values).all() else "number")
     if isinstance(dtype, pd.CategoricalDtype):
         return _settle_categories(column, decimal=decimal, thousands=thousands)
-    numbers = coerce_numbers(column, decimal=decimal, thousands=thousands)
-    filled = column.notna().to_numpy() & ~column.map(
-        lambda v: isinstance(v, str) and not v.strip()).to_numpy(dtype=bool)
+    numbers, filled = _numbers_by_distinct_cell(column, decimal=decimal, thousands=thousands)
     n_filled = int(filled.sum())
     n_numbers = int(np.count_nonzero(~np.isnan(numbers) & filled))
     if n_filled == 0:
@@ -131,3 +129,12 @@ def _settle_categories(column: pd.Series, *, decimal: str, thousands: str | None
         values = np.append(numbers, np.nan)[codes]
         return pd.Series(values, index=column.index, name=column.name), "number"
     return as_text, "mixed"
+
+
+def _numbers_by_distinct_cell(column: pd.Series, *, decimal: str, thousands: str | None) -> tuple[np.ndarray, np.ndarray]:
+    """Numbers and a filled-cell mask, converting each distinct cell once (text columns repeat)."""
+    codes, uniques = pd.factorize(column, use_na_sentinel=True)
+    distinct = pd.Series(np.asarray(uniques, dtype=object), dtype=object)
+    numbers = np.append(coerce_numbers(distinct, decimal=decimal, thousands=thousands), np.nan)
+    blank = np.append(distinct.map(lambda v: isinstance(v, str) and not v.strip()).to_numpy(dtype=bool), True)
+    return numbers[codes], ~blank[codes]

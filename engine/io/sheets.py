@@ -87,7 +87,7 @@ def read_sheet(path: Path, kind: str, sheet: str | None):
         body = body.iloc[1:]
     else:
         columns = list(range(body.shape[1]))
-    frame = body.reset_index(drop=True)
+    frame = body.reset_index(drop=True).infer_objects()  # the header row made every column object
     frame.columns = columns if header else range(frame.shape[1])
     return build_table(path, kind, frame, notes=notes, rows_above=top + (1 if header else 0),
                        sheet=chosen, sheet_names=names, header=header)
