@@ -66,9 +66,10 @@ def _load(args):
     values = args.value
     group = args.group
     if not values:
-        values = list(proposal.value_columns)
         if group is None:
             group = proposal.group_column
+        # long layout: the first proposed value column; wide: the first two columns
+        values = list(proposal.value_columns[:1] if group is not None else proposal.value_columns[:2])
     if len(values) == 1 and group is None:
         group = proposal.group_column
         if group is None:
