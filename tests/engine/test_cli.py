@@ -1,0 +1,107 @@
+"""The headless command on the demo files and on bad input."""
+
+import io
+import json
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+import pytest
+from scipy import stats
+
+from engine.cli import main
+
+DEMO = Path(__file__).resolve().parents[2] / "demo_files"
+
+
+def run(*argv):
+    out, err = io.StringIO(), io.StringIO()
+    code = main(list(argv), out=out, err=err)
+    return code, out.getvalue(), err.getvalue()
+
+
+def run_json(*argv):
+    code, out, err = run(*argv, "--json", "--resamples", "500", "--seed", "3")
+    assert code == 0, err
+    return json.loads(out)
+
+
+def test_long_csv_gives_groups_counts_and_summaries_as_pandas_does():
+    document = run_json("analyze", str(DEMO / "bolt_strength.csv"), "--value", "strength_mpa",
+                        "--group", "supplier")
+    frame = pd.read_csv(DEMO / "bolt_strength.csv")
+    first, second = frame["supplier"].drop_duplicates().tolist()[:2]
+    assert document["groups"] == [first, second]
+    for label, summary in zip(document["groups"], document["summary"]):
+        values = frame.loc[frame["supplier"] == label, "strength_mpa"].dropna().to_numpy()
+        # reference: pandas/numpy on the same column
+        assert summary["n"] == values.size
+        assert summary["mean"] == pytest.approx(values.mean(), rel=1e-12)
+        assert summary["sd"] == pytest.approx(values.std(ddof=1), rel=1e-10)
+        assert summary["median"] == pytest.approx(np.median(values), rel=1e-12)
+        assert summary["q1"] == pytest.approx(np.quantile(values, 0.25), rel=1e-12)
+    x = frame.loc[frame["supplier"] == first, "strength_mpa"].to_numpy()
+    y = frame.loc[frame["supplier"] == second, "strength_mpa"].to_numpy()
+    # reference: scipy.stats.ttest_ind(x, y, equal_var=False)
+    welch = document["procedures"]["welch_t"]
+    assert welch["p_value"] == pytest.approx(stats.ttest_ind(x, y, equal_var=False).pvalue, rel=1e-10)
+    for member in ("procedures", "effect_sizes", "diagnostics", "recommendation"):
+        assert document[member]
+    assert document["recommendation"]["key"] in document["procedures"]
+
+
+def test_groups_option_orders_the_difference():
+    forward = run_json("analyze", str(DEMO / "bolt_strength.csv"), "--value", "strength_mpa", "--group", "supplier")
+    a, b = forward["groups"]
+    backward = run_json("analyze", str(DEMO / "bolt_strength.csv"), "--value", "strength_mpa",
+                        "--group", "supplier", "--groups", b, a)
+    assert backward["groups"] == [b, a]
+    assert backward["procedures"]["welch_t"]["estimate"] == pytest.approx(-forward["procedures"]["welch_t"]["estimate"])
+
+
+def test_wide_workbook_uses_the_two_columns_as_groups():
+    frame = pd.read_excel(DEMO / "fertiliser_yields.xlsx")
+    a, b = frame.columns[:2]
+    document = run_json("analyze", str(DEMO / "fertiliser_yields.xlsx"), "--value", a, "--value", b)
+    assert document["groups"] == [a, b]
+    # reference: pandas' own reader, blanks dropped
+    assert document["n"] == [int(frame[a].notna().sum()), int(frame[b].notna().sum())]
+
+
+def test_junk_cells_are_counted_not_dropped_silently():
+    document = run_json("analyze", str(DEMO / "adhesive_cure_times.csv"))
+    excluded = document["excluded"]
+    assert excluded["missing"] >= 1 and excluded["non_numeric"] >= 1
+    assert sum(document["n"]) + sum(excluded.values()) >= 40
+
+
+def test_readable_summary_without_json():
+    code, out, err = run("analyze", str(DEMO / "bolt_strength.csv"), "--resamples", "300", "--seed", "1")
+    assert code == 0, err
+    assert "bolt_strength.csv" in out and "Welch" in out
+
+
+@pytest.mark.parametrize("argv, words", [
+    (["analyze", "no_such_file.csv"], "no_such_file.csv"),
+    (["analyze", str(DEMO / "bolt_strength.csv"), "--value", "torque", "--group", "supplier"], "torque"),
+    (["analyze", str(DEMO / "bolt_strength.csv"), "--value", "strength_mpa", "--group", "supplier",
+      "--groups", "north_forge", "west_forge"], "west_forge"),
+    (["analyze", str(DEMO / "bolt_strength.csv"), "--confidence", "1.5"], "confidence"),
+    (["analyze"], "path"),
+])
+def test_bad_input_is_one_line_and_exit_code_2(argv, words):
+    code, out, err = run(*argv)
+    assert code == 2
+    assert out == ""
+    assert err.count("\n") == 1 and words in err
+    assert "Traceback" not in err
+
+
+def test_text_only_value_column_and_tiny_group(tmp_path):
+    path = tmp_path / "tiny.csv"
+    path.write_text("site,yield\nA,1.5\nA,2.5\nB,3.0\n")
+    code, _, err = run("analyze", str(path), "--value", "yield", "--group", "site")
+    assert code == 2 and "B" in err
+    path.write_text("site,yield\nA,low\nA,high\nB,low\nB,mid\n")
+    code, _, err = run("analyze", str(path), "--value", "yield", "--group", "site")
+    assert code == 2 and "yield" in err
