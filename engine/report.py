@@ -122,8 +122,10 @@ def _fixed_significant(value: float, digits: int) -> str:
 
 # -- the report -----------------------------------------------------------------------------------
 
-# Standardised effect sizes are shown with two decimals (common practice).
+# Standardised effect sizes are shown with two decimals (common practice), more when a narrow
+# interval would otherwise show the same number at both ends (very large groups).
 EFFECT_DECIMALS = 2
+EFFECT_DECIMALS_MAX = 4
 # Significant digits of estimates, intervals and statistics in the text.
 DIGITS = 3
 # Width at which the plain-text paragraph is wrapped.
@@ -242,6 +244,17 @@ def _statistic_text(key: str, value: float | None) -> str | None:
     return format_number(value, digits=DIGITS)
 
 
+def _effect_decimals(effect) -> int:
+    """Two decimals, or more (up to ``EFFECT_DECIMALS_MAX``) until the interval's ends differ."""
+    low, high = effect.interval.low, effect.interval.high
+    decimals = EFFECT_DECIMALS
+    if low is None or high is None or not (math.isfinite(low) and math.isfinite(high)):
+        return decimals
+    while decimals < EFFECT_DECIMALS_MAX and f"{low:.{decimals}f}" == f"{high:.{decimals}f}":
+        decimals += 1
+    return decimals
+
+
 def _effect_for(analysis, key: str):
     for name in EFFECT_FOR.get(key, ("hedges_g",)):
         effect = analysis.effect_sizes.get(name)
@@ -255,6 +268,7 @@ def _numbers(analysis, key: str, result) -> _Numbers:
     ends = [result.estimate] + ([interval.low, interval.high] if interval is not None else [])
     decimals = _decimals_shared(ends)
     effect = _effect_for(analysis, key)
+    effect_decimals = EFFECT_DECIMALS if effect is None else _effect_decimals(effect)
     return _Numbers(
         level=_level(interval.level if interval is not None else analysis.options.confidence_level),
         estimate=_fixed(result.estimate, decimals),
@@ -265,8 +279,9 @@ def _numbers(analysis, key: str, result) -> _Numbers:
         mc_se=(None if result.mc_standard_error is None
                else format_number(result.mc_standard_error, digits=2)),
         effect_name=None if effect is None else effect.name,
-        effect=None if effect is None else _fixed(effect.value, EFFECT_DECIMALS),
-        effect_interval=None if effect is None else format_interval(effect.interval, decimals=EFFECT_DECIMALS),
+        effect=None if effect is None else _fixed(effect.value, effect_decimals),
+        effect_interval=None if effect is None else format_interval(effect.interval,
+                                                                    decimals=effect_decimals),
         decimals=decimals,
     )
 

@@ -220,6 +220,15 @@ def test_rank_paragraph_gives_u_the_shift_and_medians(groups):
     assert "suggested for these data was the Welch t-test" in text
 
 
+def test_a_narrow_effect_size_interval_gets_more_decimals(groups):
+    analysis = _analysis(groups)
+    narrow = {"hedges_g": _effect("hedges_g", "Hedges' g", 0.0512, 0.0483, 0.0541, "two-sided")}
+    analysis = Analysis(**{**{f: getattr(analysis, f) for f in ("groups", "options", "summaries",
+                          "diagnostics", "recommendation", "procedures", "robustness")},
+                          "effect_sizes": narrow})
+    assert "Hedges' g = 0.051, 95% CI 0.048 to 0.054" in render(analysis).paragraph
+
+
 def test_permutation_gives_p_with_its_monte_carlo_error(groups):
     text = render(_analysis(groups, extra=_resampled()), procedure="permutation_mean").paragraph
     assert "permutation p = 0.0042 (Monte Carlo standard error 0.00065)" in text
