@@ -16,7 +16,7 @@ from typing import Mapping
 import numpy as np
 
 from . import diagnostics as checks
-from .analysis import PROCEDURE_NAMES
+from .analysis import PROCEDURE_NAMES, RESAMPLING_MAX_VALUES
 from .report import format_number
 from .results import Groups, frozen_mapping
 
@@ -36,9 +36,8 @@ SMALL_GROUP_N = 30
 # A sample SD this many times above or below the stated known SD casts doubt on it (common
 # practice, the same rule of thumb as the SD ratio of two groups).
 KNOWN_SD_MISMATCH = checks.SD_RATIO_WARNING
-# Resampling is not run above this many values in all (a limit of this program, kept in step
-# with engine.analysis), so it is never suggested there.
-RESAMPLING_MAX_VALUES = 200_000
+# Resampling is not run above RESAMPLING_MAX_VALUES values in all (engine.analysis), so it is
+# never suggested there.
 
 WELCH_SOURCES = ("Ruxton 2006, Behavioral Ecology 17:688; Delacre, Lakens and Leys 2017, "
                  "International Review of Social Psychology 30:92")

@@ -118,13 +118,6 @@ def test_resampling_is_never_suggested_where_it_is_not_run():
                                   "bootstrap_median")
 
 
-def test_the_resampling_limit_matches_the_analysis():
-    from engine import analysis
-
-    limit = getattr(analysis, "RESAMPLING_MAX_VALUES", advice.RESAMPLING_MAX_VALUES)
-    assert advice.RESAMPLING_MAX_VALUES == limit
-
-
 @pytest.mark.parametrize("flags", [{}, {"equal_spread_known": True}, {"ordinal": True},
                                    {"known_sd": (1.0, 1.0)}])
 def test_every_suggestion_has_reasons_alternatives_cautions_and_assumptions(rng, flags):
