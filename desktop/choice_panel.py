@@ -414,25 +414,9 @@ def _spread_figures(spread) -> list[tuple[str, str]]:
     ]
 
 
-def _main() -> None:  # pragma: no cover - a quick look by hand
+if __name__ == "__main__":  # pragma: no cover - a quick look by hand
     import sys
-    from pathlib import Path
 
-    from PySide6.QtWidgets import QApplication
+    from .screens import show_alone
 
-    from engine.session import Session
-
-    app = QApplication(sys.argv)
-    session = Session()
-    panel = ChoicePanel(session)
-    panel.resize(900, 1000)
-    panel.show()
-    if len(sys.argv) > 1:
-        from .screens import load_analysis
-
-        session.store("analysis", load_analysis(Path(sys.argv[1])))
-    app.exec()
-
-
-if __name__ == "__main__":  # pragma: no cover
-    _main()
+    sys.exit(show_alone(ChoicePanel, sys.argv))

@@ -13,7 +13,7 @@ import base64
 import html as html_text
 from datetime import datetime
 from pathlib import Path
-from typing import Any, Mapping, Sequence
+from typing import Any, Sequence
 
 from PySide6.QtCore import QBuffer, QByteArray, QIODevice, QMarginsF, QSizeF, QUrl
 from PySide6.QtGui import QImage, QPageLayout, QPageSize, QPdfWriter, QTextDocument
@@ -88,32 +88,42 @@ def _procedure_text(analysis, procedure: str) -> str:
     return f"{name} (picked by the user; the suggestion was {suggested.name})"
 
 
-def _describe_exclusion(item: Any) -> tuple[str, str]:
-    """(where, why) for one screening exclusion, whatever fields it has."""
-    if isinstance(item, Mapping):
-        get = item.get
-    else:
-        def get(name, default=None):
-            return getattr(item, name, default)
-    where = []
-    if get("row") is not None:
-        where.append(f"row {get('row')}")
-    if get("column") is not None:
-        where.append(f"column {get('column')}")
-    if get("value") is not None:
-        where.append(f"value '{get('value')}'")
-    reason = get("reason") or get("text") or ""
-    return (", ".join(where) or str(item)), str(reason)
+_REASONS = {
+    "missing": "empty or marked as missing",
+    "non_numeric": "not a number",
+    "infinite": "an infinite value",
+    "set_aside": "set aside by the user",
+}
 
 
 def set_aside_rows(analysis, choices) -> list[tuple[str, str]]:
-    """(where, why) pairs: values the user set aside, then those the screening left out."""
-    rows = []
-    for (row, column), reason in sorted((choices.set_aside or {}).items(), key=lambda kv: (kv[0][0], str(kv[0][1]))):
-        rows.append((f"row {row}, column {column} (set aside by the user)", str(reason)))
+    """(where, why) pairs for every value left out of the groups (as the screening lists them).
+
+    A value the user set aside carries the reason the user gave. When the screening listed only
+    some of the values it left out, a last row gives the count of the others by reason.
+    """
     screening = analysis.screening
-    for item in getattr(screening, "exclusions", None) or ():
-        rows.append(_describe_exclusion(item))
+    if screening is None:
+        return []
+    given = dict(choices.set_aside or {})
+    rows = []
+    listed: dict[str, int] = {}
+    for item in screening.exclusions:
+        where = f"row {item.file_row} of the file, column {item.column}"
+        if item.group is not None:
+            where += f", group {item.group}"
+        if item.text:
+            where += f": '{item.text}'"
+        why = _REASONS.get(item.reason, item.reason)
+        if item.reason == "set_aside" and given.get((item.frame_row, item.column)):
+            why += f" ({given[(item.frame_row, item.column)]})"
+        rows.append((where, why))
+        listed[item.reason] = listed.get(item.reason, 0) + 1
+    unlisted = {reason: count - listed.get(reason, 0)
+                for reason, count in screening.excluded_counts.items() if count > listed.get(reason, 0)}
+    if unlisted:
+        rows.append(("other rows, not listed one by one",
+                     "; ".join(f"{count} {_REASONS.get(reason, reason)}" for reason, count in unlisted.items())))
     return rows
 
 

@@ -26,20 +26,7 @@ from . import clipboard, export
 from .icons import icon
 from .plots import BoxPlot, IntervalPlot, plot_image, save_plot
 
-__all__ = ["FindingsPanel", "GENERAL_CAUTIONS", "EFFECT_FOR", "STATISTIC_TIPS", "interval_text"]
-
-# The effect size shown beside each procedure: standardised mean differences for the mean-based
-# procedures, the rank-biserial correlation for those built on ranks or medians.
-EFFECT_FOR = {
-    "welch_t": "hedges_g",
-    "pooled_t": "hedges_g",
-    "z": "cohen_d",
-    "permutation_mean": "hedges_g",
-    "bootstrap_mean": "hedges_g",
-    "mann_whitney": "rank_biserial",
-    "permutation_median": "rank_biserial",
-    "bootstrap_median": "rank_biserial",
-}
+__all__ = ["FindingsPanel", "GENERAL_CAUTIONS", "STATISTIC_TIPS", "effect_for", "interval_text"]
 
 # Shown after the suggestion's own cautions (which already cover p-values, passing checks and
 # regulated work).
@@ -74,17 +61,25 @@ _HINT = "Pick the columns and the two groups; the findings appear here."
 
 
 def interval_text(interval) -> str:
-    """An interval in words and numbers: "0.12 to 1.9", "0.12 or more", "1.9 or less"."""
+    """An interval in words and numbers: "0.12 to 1.9", "at least 0.12", "at most 1.9"."""
     if interval is None:
         return "none given"
     low, high = interval.low, interval.high
     if low is None and high is None:
         return "unbounded"
     if high is None:
-        return f"{report.format_number(low)} or more"
+        return f"at least {report.format_number(low)}"
     if low is None:
-        return f"{report.format_number(high)} or less"
+        return f"at most {report.format_number(high)}"
     return f"{report.format_number(low)} to {report.format_number(high)}"
+
+
+def effect_for(analysis, key: str):
+    """The effect size the report pairs with procedure ``key`` (None if none was computed)."""
+    for name in report.EFFECT_FOR.get(key, ()):
+        if name in analysis.effect_sizes:
+            return analysis.effect_sizes[name]
+    return None
 
 
 def _label(text: str = "", *, wrap: bool = True, selectable: bool = True) -> QLabel:
@@ -261,7 +256,7 @@ class FindingsPanel(QWidget):
     def _fill_table(self, analysis, result) -> None:
         labels = analysis.groups.labels
         level = export.level_text(analysis.options.confidence_level)
-        effect = analysis.effect_sizes.get(EFFECT_FOR.get(result.key, "hedges_g"))
+        effect = effect_for(analysis, result.key)
         rows = [
             (f"{result.estimate_name[:1].upper()}{result.estimate_name[1:]} ({labels[0]} minus {labels[1]})",
              report.format_number(result.estimate), interval_text(result.interval),
@@ -390,24 +385,9 @@ def _box_image(analysis):
     return image
 
 
-def _main() -> None:  # pragma: no cover - a quick look by hand
+if __name__ == "__main__":  # pragma: no cover - a quick look by hand
     import sys
 
-    from PySide6.QtWidgets import QApplication
+    from .screens import show_alone
 
-    from engine.session import Session
-
-    app = QApplication(sys.argv)
-    session = Session()
-    panel = FindingsPanel(session)
-    panel.resize(900, 900)
-    panel.show()
-    if len(sys.argv) > 1:
-        from .screens import load_analysis
-
-        session.store("analysis", load_analysis(Path(sys.argv[1])))
-    app.exec()
-
-
-if __name__ == "__main__":  # pragma: no cover
-    _main()
+    sys.exit(show_alone(FindingsPanel, sys.argv))

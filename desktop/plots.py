@@ -9,13 +9,14 @@ This module is the only one in the program that imports pyqtgraph.
 from __future__ import annotations
 
 import math
+import sys
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Sequence
 
 import numpy as np
 import pyqtgraph as pg
-from PySide6.QtCore import QEvent, QPointF, QRectF, Qt
+from PySide6.QtCore import QEvent, QPoint, Qt
 from PySide6.QtGui import QColor, QFontMetrics, QGuiApplication, QImage, QPainter, QPalette
 from PySide6.QtWidgets import QWidget
 
@@ -26,6 +27,8 @@ __all__ = [
     "thin_sorted",
     "sample_points",
     "histogram",
+    "whisker_reach",
+    "WHISKER_IQR",
     "ThemedPlot",
     "ShapePlot",
     "QQPlot",
@@ -35,8 +38,33 @@ __all__ = [
     "save_plot",
 ]
 
+def _keep_singletons_alive() -> None:
+    """Shield None, True and False from a reference-count fault of PySide6 6.12 on Python 3.11.
+
+    That binding drops one reference to None on every call of a Qt method that returns nothing
+    (and to True/False in some overrides), as if these objects were immortal, which they are only
+    from Python 3.12 on. A plotting window makes such calls thousands of times a second, and
+    the interpreter aborts when a count reaches zero. Adding a very large count makes them
+    effectively immortal, which is what the binding assumes; they are never freed anyway.
+    """
+    if sys.version_info >= (3, 12) or sys.implementation.name != "cpython":
+        return
+    import ctypes
+
+    import PySide6
+
+    if tuple(int(part) for part in PySide6.__version__.split(".")[:2]) < (6, 12):
+        return
+    for singleton in (None, True, False):
+        ctypes.c_ssize_t.from_address(id(singleton)).value += 1 << 40
+
+
+_keep_singletons_alive()
+
 MAX_POINTS = 2000
 _MAX_BINS = 80
+# Whiskers reach the last value within this many interquartile ranges of the box (Tukey's rule).
+WHISKER_IQR = 1.5
 
 # Our own pair of group colours: a sea blue and a clay orange, each in a shade for light and one
 # for dark backgrounds. They differ in lightness as well as hue, so they stay apart in grey.
@@ -113,6 +141,18 @@ def histogram(values: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
         edges = np.linspace(low, high, _MAX_BINS + 1)
     density, edges = np.histogram(values, bins=edges, density=True)
     return edges, density
+
+
+def whisker_reach(values: np.ndarray, q1: float, q3: float) -> tuple[float, float, np.ndarray]:
+    """Whisker ends (the most extreme values within 1.5 IQR of the quartiles, common practice)
+    and which values lie within those fences."""
+    values = np.asarray(values, dtype=float)
+    spread = q3 - q1
+    inside = (values >= q1 - WHISKER_IQR * spread) & (values <= q3 + WHISKER_IQR * spread)
+    if not inside.any():
+        return q1, q3, inside
+    kept = values[inside]
+    return float(kept.min()), float(kept.max()), inside
 
 
 class ThemedPlot(pg.PlotWidget):
@@ -245,14 +285,10 @@ class BoxPlot(ThemedPlot):
             colour = self.colours.groups[place % 2]
             q1, median, q3 = summary.q1, summary.median, summary.q3
             spread = q3 - q1
-            low_fence, high_fence = q1 - 1.5 * spread, q3 + 1.5 * spread
-            inside = (values >= low_fence) & (values <= high_fence)
-            reach_low = float(values[inside].min()) if inside.any() else q1
-            reach_high = float(values[inside].max()) if inside.any() else q3
-            box = pg.QtWidgets.QGraphicsRectItem(QRectF(place - 0.25, q1, 0.5, spread))
-            box.setPen(pg.mkPen(colour, width=1.5))
-            box.setBrush(pg.mkBrush(_with_alpha(colour, 0.18)))
-            self.addItem(box)
+            reach_low, reach_high, inside = whisker_reach(values, q1, q3)
+            self.addItem(pg.BarGraphItem(x=[place], y0=[q1], height=[spread], width=0.5,
+                                         pen=pg.mkPen(colour, width=1.5),
+                                         brush=pg.mkBrush(_with_alpha(colour, 0.18))))
             pen = pg.mkPen(ink, width=1.2)
             self.addItem(pg.PlotDataItem([place - 0.25, place + 0.25], [median, median],
                                          pen=pg.mkPen(colour, width=2.5)))
@@ -353,9 +389,12 @@ def plot_image(widget: QWidget, *, scale: float = 2.0) -> QImage:
     image.setDevicePixelRatio(scale)
     image.fill(widget.palette().color(QPalette.ColorRole.Base))
     painter = QPainter(image)
-    painter.setRenderHint(QPainter.RenderHint.Antialiasing)
-    widget.render(painter, QPointF(0, 0))
-    painter.end()
+    try:
+        painter.setRenderHint(QPainter.RenderHint.Antialiasing)
+        # QWidget's own render (the view's frame and all), not QGraphicsView's scene-only one
+        QWidget.render(widget, painter, QPoint(0, 0))
+    finally:
+        painter.end()
     return image
 
 
@@ -370,10 +409,22 @@ def save_plot(widget: ThemedPlot, path: str | Path) -> Path:
         if not plot_image(widget).save(str(path), "PNG"):
             raise OSError(f"could not write {path}")
     elif suffix == ".svg":
-        from pyqtgraph.exporters import SVGExporter
+        from PySide6.QtSvg import QSvgGenerator
 
-        SVGExporter(widget.getPlotItem()).export(str(path))
-        if not path.is_file():
+        if not path.parent.is_dir():
+            raise OSError(f"no folder {path.parent}")
+        generator = QSvgGenerator()
+        generator.setFileName(str(path))
+        generator.setSize(widget.size())
+        generator.setViewBox(widget.rect())
+        generator.setTitle("Twofold plot")
+        painter = QPainter(generator)
+        try:
+            painter.fillRect(widget.rect(), widget.palette().color(QPalette.ColorRole.Base))
+            QWidget.render(widget, painter, QPoint(0, 0))
+        finally:
+            painter.end()
+        if not path.is_file() or path.stat().st_size == 0:
             raise OSError(f"could not write {path}")
     else:
         raise ValueError(f"a plot is saved as .png or .svg, not '{path.suffix}'")
