@@ -191,7 +191,7 @@ def analyze(
         step(begin, PROCEDURE_NAMES[key])
         procedures[key] = run(
             x, y, statistic=statistic, n_resamples=options.n_resamples, rng=rng, **common,
-            progress=lambda f, b=begin: report(b + f * span, PROCEDURE_NAMES[key]),
+            progress=lambda f, what="", b=begin, k=key: report(b + f * span, PROCEDURE_NAMES[k]),
             cancelled=stop,
         )
     step(0.92, "effect sizes")
