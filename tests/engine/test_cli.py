@@ -60,7 +60,7 @@ def test_groups_option_orders_the_difference():
 
 
 def test_wide_workbook_uses_the_two_columns_as_groups():
-    frame = pd.read_excel(DEMO / "fertiliser_yields.xlsx")
+    frame = pd.read_excel(DEMO / "fertiliser_yields.xlsx", engine="calamine")
     a, b = frame.columns[:2]
     document = run_json("analyze", str(DEMO / "fertiliser_yields.xlsx"), "--value", a, "--value", b)
     assert document["groups"] == [a, b]
