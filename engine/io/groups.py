@@ -48,6 +48,24 @@ class _Cells:
     trailing_from: int | None = None  # wide layout: frame row where the column's blank tail begins
 
 
+class _Listing:
+    """Many excluded cells of one kind: their frame rows and texts (None: all blank)."""
+
+    def __init__(self, rows: np.ndarray, texts: np.ndarray | None) -> None:
+        self.rows, self.texts = rows, texts
+
+    def __len__(self) -> int:
+        return int(self.rows.size)
+
+    def __getitem__(self, part: slice) -> list[tuple[int, str]]:
+        rows = self.rows[part]
+        texts = [""] * rows.size if self.texts is None else self.texts[part]
+        return [(int(r), str(t)) for r, t in zip(rows, texts)]
+
+    def __iter__(self):
+        return iter(self[:])
+
+
 @dataclass
 class _Unlabelled:
     """Long-layout rows with a blank group label: counted as missing, listed on the label column."""
@@ -299,7 +317,7 @@ def _screen(table, cells, group, other_rows, set_aside, findings, extra) -> Inta
         infinite = np.isinf(numbers)
         missing_or_text = np.isnan(numbers)
         used = finite & ~aside[k]
-        per_group = {"missing": [], "non_numeric": [], "infinite": [], "set_aside": []}
+        per_group: dict[str, _Listing | list] = {"missing": [], "non_numeric": [], "infinite": [], "set_aside": []}
         raw = frame[c.column]
         kind_is_number = table.column_kinds[c.column] == "number"
         for position in np.flatnonzero(aside[k]):
@@ -308,12 +326,14 @@ def _screen(table, cells, group, other_rows, set_aside, findings, extra) -> Inta
         for position in np.flatnonzero(infinite & ~aside[k]):
             row = int(c.frame_rows[position])
             per_group["infinite"].append((row, cell_text(raw.iat[row]) or str(numbers[position])))
-        gaps = np.flatnonzero(missing_or_text & ~aside[k])
-        for position in gaps:
-            row = int(c.frame_rows[position])
-            text = "" if kind_is_number else cell_text(raw.iat[row])
-            reason = "missing" if is_missing_marker(text) else "non_numeric"
-            per_group[reason].append((row, text))
+        gap_rows = c.frame_rows[np.flatnonzero(missing_or_text & ~aside[k])]
+        if kind_is_number or gap_rows.size == 0:
+            per_group["missing"] = _Listing(gap_rows, None)
+        else:
+            texts = raw.iloc[gap_rows].map(cell_text).to_numpy(dtype=object)
+            marker = np.array([is_missing_marker(t) for t in texts], dtype=bool)
+            per_group["missing"] = _Listing(gap_rows[marker], texts[marker])
+            per_group["non_numeric"] = _Listing(gap_rows[~marker], texts[~marker])
         for reason, items in per_group.items():
             counts[reason] += len(items)
             for row, text in items[:MAX_LISTED_EXCLUSIONS]:
@@ -403,13 +423,17 @@ def _exclusion_findings(table, cells: _Cells, k: int, per_group) -> list[Finding
     where = f"'{cells.column}'" + (f" (group '{cells.label}')" if cells.column != cells.label else "")
     missing = per_group["missing"]
     if missing:
-        rows = np.array([row for row, _ in missing])
+        if isinstance(missing, _Listing):
+            rows = missing.rows
+            marked = sorted({str(t) for t in missing.texts if str(t).strip()}) if missing.texts is not None else []
+        else:
+            rows = np.array([row for row, _ in missing], dtype=np.int64)
+            marked = sorted({text for _, text in missing if text.strip()})
         tail = np.array([], dtype=rows.dtype)
         if cells.trailing_from is not None:
             tail = rows[rows >= cells.trailing_from]
             rows = rows[rows < cells.trailing_from]
         if rows.size:
-            marked = sorted({text for _, text in missing if text.strip()})
             as_text = (" or hold " + ", ".join(f"'{t}'" for t in marked[:_SHOWN])) if marked else ""
             out.append(Finding(
                 "missing", "note",

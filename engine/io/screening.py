@@ -175,16 +175,16 @@ def possible_slips(
     findings: list[Finding] = []
     for i in flagged[:MAX_SLIPS_LISTED]:
         value = float(values[i])
-        where = f"Row {int(file_rows[i])} of '{column}' (group '{label}')"
+        where = f"Row {int(file_rows[i])} of '{column}'" + (f" (group '{label}')" if label != column else "")
         if shift[i]:
             power = 10 ** abs(int(shift[i]))
             times = f"{power} times" if shift[i] > 0 else f"1/{power} of"
             text = (f"{where}: {value:g} is about {times} the group median ({median:g}); it may "
                     "have a misplaced decimal point. It was kept.")
         else:
-            side = "above" if value > far_high else "below"
-            text = (f"{where}: {value:g} lies more than 3 IQR {side} the quartiles "
-                    f"({q1:g} to {q3:g}); check it for a typing slip. It was kept.")
+            side = "above the upper" if value > far_high else "below the lower"
+            text = (f"{where}: {value:g} lies more than 3 IQR {side} quartile (quartiles "
+                    f"{q1:g} and {q3:g}); check it for a typing slip. It was kept.")
         findings.append(Finding("possible_slip", "note", text, group))
     if flagged.size > MAX_SLIPS_LISTED:
         findings.append(Finding(
