@@ -1,0 +1,100 @@
+"""Copying into a document: HTML with a real table plus plain text, and plots as images."""
+
+from __future__ import annotations
+
+import os
+
+os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
+
+from html.parser import HTMLParser  # noqa: E402
+
+import numpy as np  # noqa: E402
+import pytest  # noqa: E402
+from PySide6.QtWidgets import QApplication  # noqa: E402
+from scipy import stats  # noqa: E402
+
+from engine import report  # noqa: E402
+from engine.analysis import Options, analyze  # noqa: E402
+from engine.results import Groups  # noqa: E402
+from engine.session import Session  # noqa: E402
+from desktop import clipboard  # noqa: E402
+from desktop.findings_panel import FindingsPanel  # noqa: E402
+
+
+class _Cells(HTMLParser):
+    """The text of every table cell in an HTML document."""
+
+    def __init__(self) -> None:
+        super().__init__()
+        self.cells: list[str] = []
+        self.tables = 0
+        self._in_cell = False
+
+    def handle_starttag(self, tag, attrs):
+        if tag == "table":
+            self.tables += 1
+        if tag in ("td", "th"):
+            self._in_cell = True
+            self.cells.append("")
+
+    def handle_endtag(self, tag):
+        if tag in ("td", "th"):
+            self._in_cell = False
+
+    def handle_data(self, data):
+        if self._in_cell:
+            self.cells[-1] += data
+
+
+@pytest.fixture
+def ready_panel(qtbot):
+    rng = np.random.default_rng(41)
+    groups = Groups(("batch A", "batch B"), rng.normal(30.0, 4.0, 25), rng.normal(27.0, 4.0, 22))
+    session = Session()
+    panel = FindingsPanel(session)
+    qtbot.addWidget(panel)
+    session.store("analysis", analyze(groups, Options(n_resamples=300, seed=9)))
+    yield panel, groups
+    panel.cleanup()
+
+
+def test_mime_data_carries_both_formats():
+    data = clipboard.findings_mime("<table><tr><td>1.5</td></tr></table>", "1.5")
+    assert data.hasHtml() and data.hasText()
+    assert "<table>" in data.html() and data.html().startswith("<!DOCTYPE html>")
+    assert data.text() == "1.5"
+
+
+def test_copy_findings_puts_a_table_and_plain_text_on_the_clipboard(ready_panel):
+    panel, groups = ready_panel
+    panel.copy_findings()
+    data = QApplication.clipboard().mimeData()
+    assert "text/html" in data.formats() and "text/plain" in data.formats()
+    expected = report.render(panel.session.analysis)
+    assert data.text() == expected.plain
+    parser = _Cells()
+    parser.feed(data.html())
+    assert parser.tables >= 1
+    # reference: scipy.stats.ttest_ind(x, y, equal_var=False): the p-value the report prints
+    welch = stats.ttest_ind(groups.x, groups.y, equal_var=False)
+    p_text = report.format_p(welch.pvalue)
+    assert p_text in parser.cells
+    assert p_text in data.text()
+
+
+def test_copy_plot_puts_an_image_on_the_clipboard(ready_panel):
+    panel, _ = ready_panel
+    panel.resize(700, 600)
+    panel.copy_plot()
+    image = QApplication.clipboard().image()
+    assert not image.isNull()
+    assert image.width() >= panel.plot.width()
+
+
+def test_nothing_is_copied_before_an_analysis(qtbot):
+    QApplication.clipboard().setText("untouched")
+    panel = FindingsPanel(Session())
+    qtbot.addWidget(panel)
+    panel.copy_findings()
+    panel.copy_plot()
+    assert QApplication.clipboard().text() == "untouched"

@@ -1,0 +1,114 @@
+"""The exported report: a self-contained HTML page and a PDF with the file's record and choices."""
+
+from __future__ import annotations
+
+import os
+
+os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
+
+import hashlib  # noqa: E402
+import re  # noqa: E402
+from datetime import datetime, timezone  # noqa: E402
+from pathlib import Path  # noqa: E402
+
+import numpy as np  # noqa: E402
+import pytest  # noqa: E402
+
+from engine import io, report  # noqa: E402
+from engine.analysis import Options, analyze  # noqa: E402
+from engine.errors import FileProblem  # noqa: E402
+from engine.session import Session  # noqa: E402
+from desktop import export  # noqa: E402
+from desktop.findings_panel import FindingsPanel  # noqa: E402
+
+
+@pytest.fixture
+def data_file(tmp_path) -> Path:
+    rng = np.random.default_rng(5)
+    lines = ["coating,hours"]
+    lines += [f"wax,{v:.2f}" for v in rng.normal(140, 12, 18)]
+    lines += [f"resin,{v:.2f}" for v in rng.normal(128, 15, 20)]
+    lines[4] = "wax,"                # a blank measurement
+    lines[9] = "wax,about 150"       # words where a number belongs
+    path = tmp_path / "coating_hours.csv"
+    path.write_text("\n".join(lines) + "\n", encoding="utf-8")
+    return path
+
+
+@pytest.fixture
+def panel(qtbot, data_file):
+    session = Session()
+    table = io.read_table(data_file)
+    set_aside = {(20, "hours"): "gauge dropped before this reading"}
+    intake = io.make_groups(table, values="hours", group="coating", pick=("wax", "resin"), set_aside=set_aside)
+    session.choose(path=data_file, group_column="coating", value_columns=("hours",), picked=("wax", "resin"),
+                   set_aside=set_aside, n_resamples=300)
+    session.store("table", table)
+    session.store("intake", intake)
+    options = Options(n_resamples=300, seed=session.choices.seed)
+    session.store("analysis", analyze(intake.groups, options, screening=intake.screening,
+                                      source={"file": data_file.name, "columns": ["coating", "hours"]}))
+    widget = FindingsPanel(session)
+    qtbot.addWidget(widget)
+    widget.resize(800, 700)
+    yield widget
+    widget.cleanup()
+
+
+def test_html_report_is_self_contained_and_records_the_file(panel, data_file, tmp_path):
+    path = panel.export_report(tmp_path / "report.html")
+    text = path.read_text(encoding="utf-8")
+    # reference: hashlib.sha256 of the file's bytes
+    assert hashlib.sha256(data_file.read_bytes()).hexdigest() in text
+    assert "coating_hours.csv" in text
+    assert datetime.now().astimezone().strftime("%Y-%m-%d") in text
+    assert "95%" in text and "Welch" in text
+    # every picture is inside the page; nothing is fetched from elsewhere
+    sources = re.findall(r"src='([^']*)'", text) + re.findall(r'src="([^"]*)"', text)
+    assert len(sources) == 2 and all(s.startswith("data:image/png;base64,") for s in sources)
+    assert "<table" in text
+    assert report.render(panel.session.analysis).html in text
+
+
+def test_values_set_aside_and_left_out_are_listed(panel, tmp_path):
+    screening = panel.session.analysis.screening
+    rows = export.set_aside_rows(panel.session.analysis, panel.session.choices)
+    assert len(rows) == sum(screening.excluded_counts.values()) >= 3
+    text = panel.export_report(tmp_path / "report.html").read_text(encoding="utf-8")
+    assert "gauge dropped before this reading" in text
+    assert "about 150" in text
+    assert "not a number" in text and "empty or marked as missing" in text
+
+
+def test_pdf_report_is_written_by_qt(panel, tmp_path):
+    path = panel.export_report(tmp_path / "report.pdf")
+    data = path.read_bytes()
+    # the PDF file structure: a header and an end-of-file marker (ISO 32000-1, 7.5)
+    assert data.startswith(b"%PDF-") and data.rstrip().endswith(b"%%EOF")
+    assert len(data) > 5_000
+
+
+def test_refuses_other_suffixes_and_reports_write_failures(panel, tmp_path):
+    with pytest.raises(FileProblem, match=r"\.html or \.pdf"):
+        panel.export_report(tmp_path / "report.docx")
+    with pytest.raises(FileProblem, match="Could not write the report"):
+        panel.export_report(tmp_path / "missing folder" / "report.html")
+    with pytest.raises(FileProblem, match="Could not write the report"):
+        panel.export_report(tmp_path / "missing folder" / "report.pdf")
+
+
+def test_choice_rows_name_the_decisions(panel):
+    analysis = panel.session.analysis
+    rows = dict(export.choice_rows(analysis, panel.session.choices, procedure="pooled_t"))
+    assert rows["Confidence level"] == "95%"
+    assert "picked by the user" in rows["Procedure followed"]
+    assert rows["Question"] == export.direction_text("two-sided")
+    assert export.level_text(0.975) == "97.5%"
+
+
+def test_report_date_is_the_one_given(panel):
+    when = datetime(2026, 3, 4, 5, 6, tzinfo=timezone.utc)
+    analysis = panel.session.analysis
+    page = export.report_html(analysis, panel.session.choices, procedure="welch_t",
+                              findings_html="<p>x</p>", cautions=["be careful"], when=when)
+    assert "2026-03-04 05:06 UTC" in page and "<li>be careful</li>" in page

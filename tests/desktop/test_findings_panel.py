@@ -1,0 +1,118 @@
+"""The findings panel: the hint, the headline, the table against scipy, the pick, saving a plot."""
+
+from __future__ import annotations
+
+import os
+
+os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
+
+import numpy as np  # noqa: E402
+import pytest  # noqa: E402
+from PySide6.QtGui import QImage  # noqa: E402
+from scipy import stats  # noqa: E402
+
+from engine import report  # noqa: E402
+from engine.analysis import Options, analyze  # noqa: E402
+from engine.errors import FileProblem  # noqa: E402
+from engine.results import Groups  # noqa: E402
+from engine.session import Session  # noqa: E402
+from desktop.findings_panel import FindingsPanel, interval_text  # noqa: E402
+
+
+@pytest.fixture
+def groups():
+    rng = np.random.default_rng(20261202)
+    return Groups(("treated", "control"), rng.normal(12.0, 2.0, 28), rng.normal(10.5, 3.0, 33))
+
+
+@pytest.fixture
+def analysis(groups):
+    return analyze(groups, Options(n_resamples=400, seed=3))
+
+
+@pytest.fixture
+def panel(qtbot):
+    session = Session()
+    widget = FindingsPanel(session)
+    qtbot.addWidget(widget)
+    yield widget
+    widget.cleanup()
+
+
+def _cells(panel) -> list[list[str]]:
+    table = panel.table
+    return [[table.item(r, c).text() for c in range(table.columnCount())] for r in range(table.rowCount())]
+
+
+def test_only_a_hint_before_any_analysis(panel):
+    assert not panel.hint.isHidden() and panel.scroll.isHidden()
+    assert not panel.copy_button.isEnabled() and not panel.export_button.isEnabled()
+
+
+def test_headline_and_table_show_the_engines_welch_numbers(panel, analysis, groups):
+    panel.session.store("analysis", analysis)
+    assert panel.hint.isHidden() and not panel.scroll.isHidden()
+    assert panel.procedure_key() == analysis.recommendation.key == "welch_t"
+    assert panel.headline.text() == report.render(analysis).paragraph
+    result = analysis.procedures["welch_t"]
+    cells = _cells(panel)
+    assert cells[0][1] == report.format_number(result.estimate)
+    assert cells[0][2] == interval_text(result.interval)
+    # reference: scipy.stats.ttest_ind(x, y, equal_var=False) for t, its df and p; the mean
+    # difference and interval from the same result's confidence_interval(0.95)
+    welch = stats.ttest_ind(groups.x, groups.y, equal_var=False)
+    ci = welch.confidence_interval(0.95)
+    assert cells[1][1] == report.format_number(welch.statistic)
+    assert cells[2][1] == report.format_number(welch.df)
+    assert cells[3][1] == report.format_p(welch.pvalue)
+    assert cells[0][2] == f"{report.format_number(ci.low)} to {report.format_number(ci.high)}"
+    assert cells[4][0].startswith("Hedges")
+    assert cells[4][1] == report.format_number(analysis.effect_sizes["hedges_g"].value)
+    assert all(panel.table.item(r, 1).toolTip() for r in range(panel.table.rowCount()))
+
+
+def test_a_pick_switches_the_findings_to_that_procedure(panel, analysis, groups):
+    session = panel.session
+    session.store("analysis", analysis)
+    session.choose(procedure="mann_whitney")
+    assert panel.procedure_key() == "mann_whitney"
+    cells = _cells(panel)
+    # reference: scipy.stats.mannwhitneyu(x, y) gives U of the first sample
+    u = stats.mannwhitneyu(groups.x, groups.y)
+    assert cells[1][1] == report.format_number(u.statistic)
+    rank = analysis.effect_sizes["rank_biserial"]
+    assert cells[4][0].lower() == rank.name.lower()
+    assert cells[4][1] == report.format_number(rank.value)
+    assert "suggestion was" in panel.followed.text()
+    assert panel.headline.text() == report.render(analysis, procedure="mann_whitney").paragraph
+    session.choose(procedure="z")  # not run without known SDs: the suggestion is shown instead
+    assert panel.procedure_key() == "welch_t"
+
+
+def test_robustness_rows_and_agreement(panel, analysis):
+    panel.session.store("analysis", analysis)
+    rows = analysis.robustness.rows
+    ticks = panel.plot.getPlotItem().getAxis("left")._tickLevels[0]
+    assert sorted(name for _, name in ticks) == sorted(row.name for row in rows)
+    verdict = "agree" if analysis.robustness.agree else "disagree"
+    assert verdict in panel.agreement.text()
+    for caution in analysis.recommendation.cautions:
+        assert caution in panel.cautions_list()
+
+
+def test_save_plot_by_suffix_and_refuse_others(panel, analysis, tmp_path):
+    panel.session.store("analysis", analysis)
+    png = panel.save_plot(tmp_path / "difference.png")
+    assert not QImage(str(png)).isNull()
+    svg = panel.save_plot(tmp_path / "difference.svg")
+    assert svg.read_text(encoding="utf-8").lstrip().startswith("<?xml")
+    with pytest.raises(FileProblem, match="difference.bmp"):
+        panel.save_plot(tmp_path / "difference.bmp")
+    with pytest.raises(FileProblem, match="Could not save"):
+        panel.save_plot(tmp_path / "no such folder" / "difference.svg")
+
+
+def test_cleanup_stops_listening(panel, analysis):
+    panel.cleanup()
+    panel.session.store("analysis", analysis)
+    assert not panel.hint.isHidden()  # nothing was redrawn after cleanup
