@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import re
 import warnings
 from pathlib import Path
 
@@ -12,7 +13,7 @@ from ..errors import ColumnProblem, FileProblem
 from ..results import Finding
 from ._files import HEAD_BYTES, SHEET_KINDS, check_path, one_line, read_head, wrap_unexpected
 from .cells import settle_column
-from .sniff import TextFormat, sniff_text
+from .sniff import DELIMITER_NAMES, TextFormat, sniff_text
 from .table import Table, remember_factors, with_rows_above
 
 __all__ = ["read_table"]
@@ -103,7 +104,23 @@ def _parse(path: Path, fmt: TextFormat, encoding: str) -> pd.DataFrame:
         except pd.errors.EmptyDataError as error:
             raise FileProblem(f"{path.name} holds no data.") from error
         except pd.errors.ParserError as error:
-            raise FileProblem(f"{path.name} could not be read as a table: {one_line(error)}") from error
+            raise FileProblem(_parser_message(path.name, error, fmt)) from error
+
+
+def _parser_message(name: str, error: Exception, fmt: TextFormat) -> str:
+    """pandas' tokenizer complaint in our words, with the file row where it applies."""
+    text = one_line(error)
+    ragged = re.search(r"Expected (\d+) fields in line (\d+), saw (\d+)", text)
+    if ragged:
+        expected, line, seen = (int(g) for g in ragged.groups())
+        return (f"{name}, row {line}: {seen} cells where the rows above have "
+                f"{expected}; check for a stray {DELIMITER_NAMES.get(fmt.delimiter, 'separator')} "
+                "or a missing quote.")
+    if "EOF inside string" in text:
+        start = re.search(r"starting at row (\d+)", text)
+        where = f", row {int(start.group(1)) + 1}" if start else ""
+        return f"{name}{where}: a quote mark opens a cell that is never closed."
+    return f"{name} could not be read as a table: {text}"
 
 
 def _clean_names(names: list[object], header: bool) -> tuple[list[str], list[str]]:

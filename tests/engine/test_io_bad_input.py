@@ -226,3 +226,15 @@ def test_unexpected_parser_errors_are_wrapped(tmp_path, monkeypatch):
 def test_every_error_is_a_twofold_error():
     for kind in (FileProblem, ColumnProblem, DataProblem, OptionProblem):
         assert issubclass(kind, TwofoldError)
+
+
+def test_ragged_row_names_the_row(tmp_path):
+    path = _csv(tmp_path, "\n\ng;v\nA;1\nA;2\nB;2;3\n", "ragged.csv")
+    with pytest.raises(FileProblem, match=r"^ragged\.csv, row 6: 3 cells where the rows above have 2; check for a stray semicolon"):
+        read_table(path)
+
+
+def test_unclosed_quote_names_the_row(tmp_path):
+    path = _csv(tmp_path, 'g,v\nA,1\n"B,2\nA,3\n', "quote.csv")
+    with pytest.raises(FileProblem, match=r"^quote\.csv, row 3: a quote mark opens a cell that is never closed"):
+        read_table(path)
