@@ -148,14 +148,10 @@ def _choose_decimal(tokens: list[str], delimiter: str) -> tuple[str, str | None,
     """Decide the decimal mark and thousands separator from the numbers in the sample."""
     notes: list[str] = []
     comma_decimal = dot_decimal = 0
-    comma_grouped = dot_grouped = 0
-    thousands_votes: Counter[str] = Counter()
+    comma_grouped = 0
     for token in tokens:
         has_comma, has_dot = "," in token, "." in token
         if has_comma and has_dot:
-            for sep, pattern in _GROUPED_WITH_DECIMAL.items():
-                if pattern.match(token):
-                    thousands_votes[sep] += 1
             if token.rfind(",") > token.rfind("."):
                 comma_decimal += 1
             else:
@@ -166,9 +162,7 @@ def _choose_decimal(tokens: list[str], delimiter: str) -> tuple[str, str | None,
             elif token.count(",") == 1:
                 comma_decimal += 1
         elif has_dot:
-            if _GROUPED["."].match(token) and token.count(".") > 1:
-                dot_grouped += 1
-            elif token.count(".") == 1:
+            if token.count(".") == 1:
                 dot_decimal += 1
     if delimiter == ",":
         comma_decimal = comma_grouped = 0  # unquoted commas split cells here
@@ -178,17 +172,10 @@ def _choose_decimal(tokens: list[str], delimiter: str) -> tuple[str, str | None,
         notes.append(
             "Numbers such as '" + next(t for t in tokens if _GROUPED[","].match(t)) + "' could be "
             f"read two ways; the comma was taken as {'the decimal mark' if decimal == ',' else 'a thousands separator'}.")
-    thousands = None
     other = "." if decimal == "," else ","
     uses_other = [t for t in tokens if other in t]
-    if uses_other and all(
-        _GROUPED[other].match(t) or _GROUPED_WITH_DECIMAL[other].match(t)
-        or (other == "." and _GROUPED["."].match(t))
-        for t in uses_other
-    ):
-        grouped_evidence = thousands_votes[other] + (dot_grouped if other == "." else comma_grouped)
-        if grouped_evidence or decimal == "," or (other == "," and delimiter != ","):
-            thousands = other
+    grouped = all(_GROUPED[other].match(t) or _GROUPED_WITH_DECIMAL[other].match(t) for t in uses_other)
+    thousands = other if uses_other and grouped else None
     if decimal == "," and thousands is None and any("." in t for t in uses_other):
         notes.append("Some numbers use a dot in a file that writes decimals with commas; those "
                      "cells are kept as text.")

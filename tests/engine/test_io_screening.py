@@ -268,3 +268,24 @@ def test_demo_adhesive_cure_times():
     assert sorted(e.text for e in intake.screening.exclusions) == ["", "", "45.8", "?", "n/a"]
     slips = intake.screening.possible_slips
     assert len(slips) == 1 and slips[0].group == 1 and "decimal point" in slips[0].text
+
+
+@pytest.mark.slow
+def test_large_groups_are_screened_on_a_subsample_of_quartiles(tmp_path):
+    rng = np.random.default_rng(21)
+    n = 250_000
+    values = np.round(rng.normal(40.0, 2.0, n), 3)
+    values[123_456] = 412.5  # one misplaced decimal point
+    frame = pd.DataFrame({"bolt_id": np.arange(n), "batch": np.where(np.arange(n) % 2, "b1", "b2"), "cure": values})
+    path = tmp_path / "large.csv"
+    frame.to_csv(path, index=False)
+    report = make_groups(read_table(path), values="cure", group="batch").screening
+    # reference: exact Tukey far-out fences from numpy on each full group
+    expected = 0
+    for label in ("b2", "b1"):
+        group = values[frame["batch"].to_numpy() == label]
+        q1, q3 = np.quantile(group, [0.25, 0.75])
+        expected += int(np.count_nonzero((group > q3 + 3 * (q3 - q1)) | (group < q1 - 3 * (q3 - q1))))
+    assert len(report.possible_slips) == expected
+    assert any("412.5" in slip.text and "decimal point" in slip.text for slip in report.possible_slips)
+    assert report.duplicate_rows == 0 and report.paired is None
