@@ -1,0 +1,131 @@
+"""The procedure panel: the checks against scipy, the suggestion, the pick and what it assumes."""
+
+from __future__ import annotations
+
+import os
+
+os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
+
+import numpy as np  # noqa: E402
+import pytest  # noqa: E402
+from PySide6.QtWidgets import QLabel  # noqa: E402
+from scipy import stats  # noqa: E402
+
+from engine import report  # noqa: E402
+from engine.analysis import Options, analyze  # noqa: E402
+from engine.results import Groups  # noqa: E402
+from engine.session import Session  # noqa: E402
+from desktop.choice_panel import ChoicePanel, main_reading  # noqa: E402
+
+
+@pytest.fixture
+def groups():
+    rng = np.random.default_rng(77)
+    return Groups(("plot north", "plot south"), rng.normal(5.0, 1.0, 24), rng.gamma(2.0, 1.4, 30))
+
+
+@pytest.fixture
+def panel(qtbot, groups):
+    session = Session()
+    widget = ChoicePanel(session)
+    qtbot.addWidget(widget)
+    session.store("analysis", analyze(groups, Options(n_resamples=300, seed=4)))
+    yield widget
+    widget.cleanup()
+
+
+def _figures(card) -> list[str]:
+    layout = card.figures
+    return [layout.itemAt(i).widget().text() for i in range(layout.count())
+            if isinstance(layout.itemAt(i).widget(), QLabel)]
+
+
+def test_hint_only_without_an_analysis(qtbot):
+    widget = ChoicePanel(Session())
+    qtbot.addWidget(widget)
+    assert not widget.hint.isHidden() and widget.scroll.isHidden()
+
+
+def test_shape_figures_match_scipy(panel, groups):
+    for index, values in enumerate((groups.x, groups.y)):
+        figures = _figures(panel.shape_cards[index])
+        # reference: scipy.stats.shapiro(values)
+        w, p = stats.shapiro(values)
+        assert figures[0] == f"Shapiro-Wilk W = {report.format_number(w)}, p = {report.format_p(p)}"
+        # reference: scipy.stats.skew(values, bias=False), the adjusted Fisher-Pearson G1
+        assert figures[1] == f"skewness {report.format_number(stats.skew(values, bias=False), digits=2)}"
+        # reference: scipy.stats.kurtosis(values, bias=False), the adjusted excess kurtosis G2
+        assert figures[2] == (f"excess kurtosis "
+                              f"{report.format_number(stats.kurtosis(values, bias=False), digits=2)}")
+        assert groups.labels[index] in panel.shape_cards[index].title.text()
+
+
+def test_spread_figures_match_scipy(panel, groups):
+    figures = _figures(panel.spread_card)
+    # reference: scipy.stats.levene(x, y, center="mean") and center="median" (Brown-Forsythe)
+    levene = stats.levene(groups.x, groups.y, center="mean")
+    brown_forsythe = stats.levene(groups.x, groups.y, center="median")
+    assert f"Levene p = {report.format_p(levene.pvalue)}" in figures
+    assert f"Brown-Forsythe p = {report.format_p(brown_forsythe.pvalue)}" in figures
+    sds = sorted([np.std(groups.x, ddof=1), np.std(groups.y, ddof=1)])
+    assert f"SD ratio {report.format_number(sds[1] / sds[0], digits=2)}" in figures
+
+
+def test_each_card_leads_with_its_most_severe_finding(panel):
+    checks = panel.session.analysis.diagnostics
+    for index, card in enumerate(panel.shape_cards):
+        lead = main_reading([f for f in checks.findings if f.group == index and f.key in
+                             ("normality", "skewness", "tails", "outliers", "ties")])
+        assert card.reading.text().endswith(lead.text)
+        rank = {"info": 0, "note": 1, "warning": 2}
+        assert all(rank[f.severity] <= rank[lead.severity] for f in checks.findings if f.group == index)
+
+
+def test_suggestion_shows_reasons_and_alternatives(panel):
+    suggested = panel.session.analysis.recommendation
+    text = panel.suggestion.text()
+    assert suggested.name in text
+    assert all(option.name in text for option in suggested.considered)
+
+
+def test_picking_writes_the_choice_and_says_what_it_assumes(panel):
+    session = panel.session
+    index = panel.picker.findData("pooled_t")
+    panel.picker.setCurrentIndex(index)
+    assert session.choices.procedure == "pooled_t"
+    assert session.analysis.recommendation.assumptions["pooled_t"] in panel.assumes.text()
+    panel.picker.setCurrentIndex(0)
+    assert session.choices.procedure is None
+
+
+def test_a_change_from_elsewhere_is_shown_without_writing_back(panel, groups, monkeypatch):
+    session = panel.session
+    original = session.choose
+    session.choose(procedure="mann_whitney", ordinal=True, equal_spread_known=True)
+    calls = []
+    monkeypatch.setattr(session, "choose", lambda **changes: calls.append(changes) or original(**changes))
+    session.store("analysis", None)
+    session.store("analysis", analyze(groups, Options(n_resamples=300, seed=4)))
+    assert calls == []  # refilling the widgets from the session wrote nothing back
+    assert panel.picker.currentData() == "mann_whitney"
+    assert panel.ordinal.isChecked() and panel.equal_spread.isChecked()
+
+
+def test_what_the_user_knows_goes_into_the_choices(panel):
+    session = panel.session
+    panel.equal_spread.setChecked(True)
+    assert session.choices.equal_spread_known
+    panel.ordinal.setChecked(True)
+    assert session.choices.ordinal
+    panel.advanced_button.setChecked(True)
+    assert not panel.sd_box.isHidden()
+    panel.sd_edits[0].setText("1.5")
+    panel.sd_edits[1].setText("nonsense")
+    panel.sd_box.setChecked(True)
+    assert session.choices.known_sd is None
+    assert "positive number" in panel.sd_message.text()
+    panel.sd_edits[1].setText("2.25")
+    panel.sd_apply.click()
+    assert session.choices.known_sd == (1.5, 2.25)
+    panel.sd_box.setChecked(False)
+    assert session.choices.known_sd is None
