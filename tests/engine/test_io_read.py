@@ -248,3 +248,36 @@ def test_text_file_ignores_a_sheet_with_a_note(tmp_path):
     table = read_table(_write(tmp_path / "bolts.csv", _rows(",")), sheet="Sheet1")
     assert table.sheet is None
     assert any("no sheets" in note.text for note in table.notes)
+
+
+def test_table_is_frozen_and_notes_are_findings(tmp_path):
+    from engine.results import Finding
+
+    table = read_table(_write(tmp_path / "bolts.csv", _rows(";", ",")))
+    assert all(isinstance(note, Finding) and note.severity == "info" for note in table.notes)
+    with pytest.raises(AttributeError):
+        table.header = False
+    with pytest.raises(TypeError):
+        table.column_kinds["strength"] = "text"
+
+
+def test_sheet_without_column_names(tmp_path):
+    path = tmp_path / "bare.xlsx"
+    pd.DataFrame([[812.5, 799.0], [845.25, 830.75]]).to_excel(path, index=False, header=False)
+    table = read_table(path)
+    assert table.header is False
+    assert list(table.frame.columns) == ["column 1", "column 2"]
+    assert table.file_row(0) == 1
+    np.testing.assert_array_equal(table.frame["column 2"].to_numpy(), [799.0, 830.75])
+
+
+def test_sheet_cells_match_pandas_calamine(tmp_path):
+    path = tmp_path / "mixed.xlsx"
+    frame = pd.DataFrame({"batch": ["b1", "b2", None, "b1"], "cure": [41.5, "n/a", 39.0, 40.25]})
+    frame.to_excel(path, index=False)
+    table = read_table(path)
+    # reference: pandas.read_excel(engine="calamine") on the same workbook, blanks only as missing
+    expected = pd.read_excel(path, engine="calamine", keep_default_na=False, na_values=[""])
+    assert table.column_kinds["cure"] == "mixed"
+    assert [str(v) for v in table.frame["cure"]] == [str(v) for v in expected["cure"]]
+    assert table.frame["batch"].isna().tolist() == expected["batch"].isna().tolist()
