@@ -18,8 +18,8 @@ import importlib
 from pathlib import Path
 from typing import Any, Callable, Sequence
 
-from PySide6.QtCore import QSettings, Qt, QTimer
-from PySide6.QtGui import QAction, QCloseEvent, QDragEnterEvent, QDropEvent, QKeySequence
+from PySide6.QtCore import QCoreApplication, QSettings, Qt, QTimer
+from PySide6.QtGui import QAction, QCloseEvent, QDragEnterEvent, QDropEvent, QGuiApplication, QKeySequence
 from PySide6.QtWidgets import (
     QFileDialog,
     QInputDialog,
@@ -61,6 +61,9 @@ LATE_PANELS = (
     ("findings_panel", "desktop.findings_panel", "FindingsPanel", "Findings",
      "The result in words and numbers, ready to copy into a report."),
 )
+
+LATE_DELAY_MS = 150   # after the first paint, before importing the plotting panels
+GROUPS_DELAY_MS = 20  # lets the freshly filled grid paint before the groups are formed
 
 AskSheet = Callable[[Sequence[str], str | None], "str | None"]
 
@@ -109,7 +112,7 @@ class MainWindow(QMainWindow):
         self.setWindowTitle("Twofold")
         self.setAcceptDrops(True)
         self.resize(1400, 900)
-        self._set_icon(self, "app")
+        self._icons_wanted: list[tuple[Any, str]] = [(self, "app")]
 
         self.load_worker = Worker(self)
         self.groups_worker = Worker(self)
@@ -167,13 +170,24 @@ class MainWindow(QMainWindow):
         self.session.subscribe(self._on_session)
 
     # -- building ------------------------------------------------------------------------------
-    @staticmethod
-    def _set_icon(target: Any, name: str) -> None:
+    def apply_icons(self) -> None:
+        """Give the window and its actions their icons (drawn after the first paint: it takes a
+        noticeable moment to render them)."""
         try:
             from .icons import icon
-            target.setIcon(icon(name)) if not isinstance(target, QMainWindow) else target.setWindowIcon(icon(name))
-        except (ImportError, OSError, KeyError):
-            pass
+        except ImportError:
+            return
+        for target, name in self._icons_wanted:
+            try:
+                picture = icon(name)
+            except (OSError, KeyError):
+                continue
+            if target is self:
+                self.setWindowIcon(picture)
+                QGuiApplication.setWindowIcon(picture)
+            else:
+                target.setIcon(picture)
+        self._icons_wanted = []
 
     def _build_status(self) -> None:
         bar = self.statusBar()
@@ -186,7 +200,7 @@ class MainWindow(QMainWindow):
         self.cancel_button = QToolButton(self)
         self.cancel_button.setText("Stop")
         self.cancel_button.setToolButtonStyle(Qt.ToolButtonStyle.ToolButtonTextBesideIcon)
-        self._set_icon(self.cancel_button, "cancel")
+        self._icons_wanted.append((self.cancel_button, "cancel"))
         self.cancel_button.setToolTip("Stop the work in progress (Esc); nothing already shown is lost.")
         self.cancel_button.clicked.connect(self.cancel)
         bar.addPermanentWidget(self.busy_label)
@@ -203,7 +217,7 @@ class MainWindow(QMainWindow):
         if shortcut is not None:
             action.setShortcut(QKeySequence(shortcut))
         if icon_name:
-            self._set_icon(action, icon_name)
+            self._icons_wanted.append((action, icon_name))
         action.triggered.connect(lambda checked=False: slot())
         self.addAction(action)
         return action
@@ -269,12 +283,18 @@ class MainWindow(QMainWindow):
     # -- the panels that load late -------------------------------------------------------------
     def showEvent(self, event: Any) -> None:  # noqa: N802 - Qt's name
         super().showEvent(event)
+        if not self.load_worker.busy:
+            self._load_late_soon()
+
+    def _load_late_soon(self) -> None:
+        """Load the late panels once the window (and the grid, if a file is on its way) is painted."""
         if not self._late_started:
             self._late_started = True
-            QTimer.singleShot(0, self.load_late_panels)
+            QTimer.singleShot(LATE_DELAY_MS, self.load_late_panels)
 
     def load_late_panels(self) -> None:
         """Import the two late panels in a worker, then put them in their tabs."""
+        self.apply_icons()
         if self.choice_panel is not None or self.import_worker.busy:
             return
 
@@ -349,6 +369,19 @@ class MainWindow(QMainWindow):
         self.load_worker.run(read)
         return True
 
+    def wait_for_file(self, msecs: int) -> bool:
+        """Block up to ``msecs`` for the file being read, then take its table at once.
+
+        Used before the window is first shown, so that a small file is painted with the window
+        itself; a large one goes on reading in the background. True if the reading ended.
+        """
+        if not self.load_worker.busy:
+            return True
+        ended = self.load_worker.wait(msecs)
+        if ended:
+            QCoreApplication.sendPostedEvents()  # delivers the worker's queued result
+        return ended
+
     def _choose_sheet(self, names: Sequence[str], current: str | None) -> str | None:
         at = list(names).index(current) if current in names else 0
         name, ok = QInputDialog.getItem(self, "Choose a sheet",
@@ -381,9 +414,12 @@ class MainWindow(QMainWindow):
             self._seen = self.session.choices
         self.setWindowTitle(f"{path.name} - Twofold")
         self.recent.add(path)
-        self.form_groups()
+        # paint the grid first; the groups, the analysis and the late panels follow at once
+        QTimer.singleShot(GROUPS_DELAY_MS, self.form_groups)
+        self._load_late_soon()
 
     def _on_load_failed(self, message: str, expected: bool) -> None:
+        self._load_late_soon()
         self.message_bar.show_message("open_failed" if expected else "open_crashed",
                                       name=self._opening, reason=message)
 
