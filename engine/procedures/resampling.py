@@ -18,6 +18,7 @@ from numbers import Integral
 from typing import Any, Callable
 
 import numpy as np
+from scipy import stats
 from scipy.special import ndtr, ndtri
 
 from ..analysis import PROCEDURE_NAMES
@@ -477,16 +478,53 @@ class _Sample:
             self.values = values - self.centre
         else:
             self.values = np.sort(values)
+            self._median_law()
+
+    def _median_law(self) -> None:
+        """The law of the middle order statistic(s) of n indices drawn with replacement.
+
+        With N(m) the number of the n indices (uniform on 0..n-1) that are <= m,
+        N(m) ~ Binomial(n, (m + 1) / n) and the h-th smallest index is <= m iff N(m) >= h.
+        For even n, given the h-th (h = n / 2) smallest is a, the next one is also a unless
+        exactly h indices are <= a; that happens with probability ``stay_chance[a]``, and then
+        the next is a + 1 plus the least of the other n - h indices, uniform above a.
+        """
+        n = self.n
+        h = (n + 1) // 2 if n % 2 else n // 2
+        self.rank = h
+        grid = np.arange(n)
+        upper = stats.binom.sf(h - 1, n, (grid + 1) / n)  # P(h-th smallest <= a)
+        lower = stats.binom.cdf(h - 1, n, (grid + 1) / n)  # 1 - upper, accurate near 1
+        upper[-1], lower[-1] = 1.0, 0.0
+        self.cdf = upper
+        if n % 2:
+            return
+        # P(h-th smallest == a): difference of upper (left half) or of lower (right half)
+        previous_upper = np.concatenate(([0.0], upper[:-1]))
+        previous_lower = np.concatenate(([1.0], lower[:-1]))
+        chance = np.where(upper < 0.5, upper - previous_upper, previous_lower - lower)
+        # P(h-th smallest == a and exactly h indices <= a)
+        with np.errstate(divide="ignore"):  # a = n - 1: log1p(-1) = -inf, probability 0
+            none_at_a = np.exp((n - h) * np.log1p(-1.0 / (n - grid)))
+        exactly = (stats.binom.pmf(h, n, (grid + 1) / n)
+                   - stats.binom.pmf(h, n, grid / n) * none_at_a)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            self.stay_chance = np.clip(np.where(chance > 0, exactly / chance, 0.0), 0.0, 1.0)
 
     def replicates(self, rng: np.random.Generator, rows: int) -> np.ndarray:
-        index = rng.integers(0, self.n, (rows, self.n), dtype=self.dtype)
         if self.statistic == "mean":
+            index = rng.integers(0, self.n, (rows, self.n), dtype=self.dtype)
             return self.values[index].sum(axis=1) / self.n
-        half = (self.n - 1) // 2
-        if self.n % 2:
-            return self.values[np.partition(index, half, axis=1)[:, half]]
-        both = np.partition(index, (half, half + 1), axis=1)[:, half:half + 2]
-        return 0.5 * (self.values[both[:, 0]] + self.values[both[:, 1]])
+        n, h = self.n, self.rank
+        first = np.minimum(np.searchsorted(self.cdf, rng.random(rows), side="right"), n - 1)
+        if n % 2:
+            return self.values[first]
+        jump = rng.random(rows) < self.stay_chance[first]
+        room = n - 1 - first[jump]  # positions above a
+        least = -np.expm1(np.log1p(-rng.random(room.size)) / (n - h))  # least of n - h uniforms
+        second = first.copy()
+        second[jump] += 1 + np.minimum(np.floor(room * least).astype(np.intp), room - 1)
+        return 0.5 * (self.values[first] + self.values[second])
 
     def jackknife(self) -> np.ndarray:
         """Leave-one-out statistics, closed form (for means, relative to the centre)."""
@@ -571,6 +609,13 @@ def bootstrap_interval(
     for a median the middle of the sorted sample with one order statistic removed. When every
     replicate is equal, or theta lies outside all of them, BCa is undefined: the percentile
     interval is used and a warning says so.
+
+    A resampled median is drawn without forming the resample: with the group sorted, it is the
+    value at the middle order statistic(s) of n indices drawn uniformly with replacement, whose
+    law is exact and cheap. The h-th smallest index is <= m exactly when at least h of the n
+    indices are, a Binomial(n, (m + 1) / n) count, so it is drawn by inverting that
+    distribution function; for even n the next order statistic is drawn given the first (see
+    ``_Sample._median_law``). Each replicate then costs O(log n) instead of O(n).
 
     References
     ----------

@@ -311,6 +311,36 @@ def test_jackknife_closed_forms_match_leaving_each_value_out():
         np.testing.assert_allclose(np.sort(median.jackknife()), np.sort(direct), atol=1e-14)
 
 
+@pytest.mark.parametrize("n", [3, 4, 5, 6])
+def test_resampled_medians_follow_the_enumerated_law(n):
+    # reference: enumeration of all n^n resamples with replacement (itertools.product) and
+    # np.median of each; 100000 drawn replicates tested with scipy.stats.chisquare
+    from engine.procedures.resampling import _Sample
+    values = np.array([1.0, 2.5, 2.5, 4.0, 7.0, 9.5])[:n]
+    law: dict[float, int] = {}
+    for draw in itertools.product(range(n), repeat=n):
+        m = float(np.median(values[list(draw)]))
+        law[m] = law.get(m, 0) + 1
+    drawn = _Sample(values, "median").replicates(np.random.default_rng(n), 100_000)
+    keys = sorted(law)
+    observed = np.array([np.count_nonzero(drawn == k) for k in keys])
+    assert observed.sum() == drawn.size
+    expected = np.array([law[k] for k in keys]) / n**n * drawn.size
+    assert stats.chisquare(observed, expected).pvalue > 1e-3
+
+
+@pytest.mark.parametrize("n", [400, 401])
+def test_resampled_medians_match_direct_resampling(n):
+    # reference: np.median of index resamples drawn with numpy, compared by
+    # scipy.stats.ks_2samp (the replicates' law is the same, so p should not be tiny)
+    from engine.procedures.resampling import _Sample
+    rng = np.random.default_rng(n)
+    values = np.sort(rng.normal(size=n))
+    drawn = _Sample(values, "median").replicates(rng, 20_000)
+    direct = np.median(values[rng.integers(0, n, (4_000, n))], axis=1)
+    assert stats.ks_2samp(drawn, direct).pvalue > 1e-3
+
+
 def test_bootstrap_of_means_matches_theory():
     # reference: theory of the stratified bootstrap (Efron and Tibshirani 1993, ch. 5): the
     # replicates of mean(x*) - mean(y*) have mean mean(x) - mean(y) and variance
