@@ -14,17 +14,17 @@ from __future__ import annotations
 import html
 from typing import Any
 
-from PySide6.QtCore import Qt
+from PySide6.QtCore import QPoint, QRect, QSize, Qt
 from PySide6.QtGui import QDoubleValidator
-from PySide6.QtWidgets import (QCheckBox, QComboBox, QFormLayout, QFrame, QGroupBox, QHBoxLayout,
-                               QLabel, QLineEdit, QPushButton, QScrollArea, QToolButton,
-                               QVBoxLayout, QWidget)
+from PySide6.QtWidgets import (QBoxLayout, QCheckBox, QComboBox, QFormLayout, QFrame, QGroupBox,
+                               QHBoxLayout, QLabel, QLayout, QLineEdit, QPushButton, QScrollArea,
+                               QToolButton, QVBoxLayout, QWidget)
 
 from engine import report
 
 from .plots import BoxPlot, QQPlot, ShapePlot
 
-__all__ = ["ChoicePanel", "CHECK_TIPS", "main_reading"]
+__all__ = ["ChoicePanel", "CHECK_TIPS", "FlowLayout", "main_reading"]
 
 _SEVERITY_RANK = {"info": 0, "note": 1, "warning": 2}
 _SEVERITY_WORD = {"info": "", "note": "Worth a look: ", "warning": "Take care: "}
@@ -79,6 +79,62 @@ def _heading(text: str) -> QLabel:
     return label
 
 
+class FlowLayout(QLayout):
+    """Lays its widgets out left to right and starts a new line where the width runs out."""
+
+    def __init__(self, parent: QWidget | None = None, *, spacing: int = 12) -> None:
+        super().__init__(parent)
+        self._items: list = []
+        self._spacing = spacing
+        self.setContentsMargins(0, 0, 0, 0)
+
+    def addItem(self, item) -> None:  # noqa: N802 - Qt's name
+        self._items.append(item)
+
+    def count(self) -> int:
+        return len(self._items)
+
+    def itemAt(self, index: int):  # noqa: N802 - Qt's name
+        return self._items[index] if 0 <= index < len(self._items) else None
+
+    def takeAt(self, index: int):  # noqa: N802 - Qt's name
+        return self._items.pop(index) if 0 <= index < len(self._items) else None
+
+    def expandingDirections(self) -> Qt.Orientation:  # noqa: N802 - Qt's name
+        return Qt.Orientation(0)
+
+    def hasHeightForWidth(self) -> bool:  # noqa: N802 - Qt's name
+        return True
+
+    def heightForWidth(self, width: int) -> int:  # noqa: N802 - Qt's name
+        return self._place(QRect(0, 0, width, 0), move=False)
+
+    def setGeometry(self, rect: QRect) -> None:  # noqa: N802 - Qt's name
+        super().setGeometry(rect)
+        self._place(rect, move=True)
+
+    def sizeHint(self) -> QSize:  # noqa: N802 - Qt's name
+        return self.minimumSize()
+
+    def minimumSize(self) -> QSize:  # noqa: N802 - Qt's name
+        size = QSize()
+        for item in self._items:
+            size = size.expandedTo(item.minimumSize())
+        return size
+
+    def _place(self, rect: QRect, *, move: bool) -> int:
+        x, y, line = rect.x(), rect.y(), 0
+        for item in self._items:
+            hint = item.sizeHint()
+            if x > rect.x() and x + hint.width() > rect.right() + 1:
+                x, y, line = rect.x(), y + line + self._spacing // 2, 0
+            if move:
+                item.setGeometry(QRect(QPoint(x, y), hint))
+            x += hint.width() + self._spacing
+            line = max(line, hint.height())
+        return y + line - rect.y()
+
+
 class _CheckCard(QFrame):
     """One check: title, plots, a row of figures with tooltips, the reading and the rest."""
 
@@ -88,13 +144,14 @@ class _CheckCard(QFrame):
         layout = QVBoxLayout(self)
         self.title = _heading("")
         layout.addWidget(self.title)
-        row = QHBoxLayout()
+        self.plot_row = QBoxLayout(QBoxLayout.Direction.LeftToRight)
+        self._plot_count = len(plots)
         for plot in plots:
             plot.setFixedHeight(190)
-            row.addWidget(plot)
-        layout.addLayout(row)
-        self.figures = QHBoxLayout()
-        self.figures.setSpacing(18)
+            plot.setMinimumWidth(150)
+            self.plot_row.addWidget(plot)
+        layout.addLayout(self.plot_row)
+        self.figures = FlowLayout(spacing=18)
         layout.addLayout(self.figures)
         self.reading = _label()
         font = self.reading.font()
@@ -112,6 +169,13 @@ class _CheckCard(QFrame):
         self.more.setVisible(False)
         layout.addWidget(self.more)
 
+    def resizeEvent(self, event) -> None:  # noqa: N802 - Qt's name
+        super().resizeEvent(event)
+        # plots side by side when there is room for each, one above the other when not
+        wide = event.size().width() >= 300 * self._plot_count
+        self.plot_row.setDirection(QBoxLayout.Direction.LeftToRight if wide
+                                   else QBoxLayout.Direction.TopToBottom)
+
     def _toggle(self, shown: bool) -> None:
         self.more.setVisible(shown)
         self.more_button.setArrowType(Qt.ArrowType.DownArrow if shown else Qt.ArrowType.RightArrow)
@@ -125,7 +189,6 @@ class _CheckCard(QFrame):
             label = QLabel(text)
             label.setToolTip(tip)
             self.figures.addWidget(label)
-        self.figures.addStretch(1)
 
     def show_findings(self, findings) -> None:
         lead = main_reading(findings)
@@ -191,7 +254,7 @@ class ChoicePanel(QWidget):
         self.picker.currentIndexChanged.connect(self._picked)
         pick_row.addWidget(self.picker, 1)
         layout.addLayout(pick_row)
-        self.assumes = _label()
+        self.assumes = _label(rich=True)
         layout.addWidget(self.assumes)
 
         known = QGroupBox("What you know beyond these data")
@@ -201,9 +264,10 @@ class ChoicePanel(QWidget):
                                      "specification, long experience) that both groups vary "
                                      "alike; it allows the pooled t-test.")
         self.equal_spread.toggled.connect(self._equal_spread_toggled)
-        self.ordinal = QCheckBox("The values are ordinal ratings (only their order means something)")
-        self.ordinal.setToolTip("Tick this for scores such as 1 to 5 ratings, where a step of one "
-                                "need not mean the same everywhere; it points to rank procedures.")
+        self.ordinal = QCheckBox("The values are ordinal ratings")
+        self.ordinal.setToolTip("Tick this when only the order of the values means something, as with "
+                                "1 to 5 ratings where a step of one need not mean the same everywhere; "
+                                "it points to rank procedures.")
         self.ordinal.toggled.connect(self._ordinal_toggled)
         known_layout.addWidget(self.equal_spread)
         known_layout.addWidget(self.ordinal)
@@ -214,7 +278,7 @@ class ChoicePanel(QWidget):
         self.advanced_button.setArrowType(Qt.ArrowType.RightArrow)
         self.advanced_button.toggled.connect(self._advanced_toggled)
         known_layout.addWidget(self.advanced_button)
-        self.sd_box = QGroupBox("Use the z procedure with these population standard deviations")
+        self.sd_box = QGroupBox("Use the z procedure with these SDs")
         self.sd_box.setCheckable(True)
         self.sd_box.setToolTip("Only when the true standard deviation of each group is known from "
                                "outside these data, for example a gauge's certified precision.")
@@ -277,7 +341,7 @@ class ChoicePanel(QWidget):
             card.show_findings([f for f in checks.findings if f.group == index and f.key in _SHAPE_KEYS]
                                or [f for f in checks.findings if f.group == index])
         self.spread_card.title.setText("Spread of the two groups")
-        self.box_plot.set_title("boxes with every value (thinned for large groups)")
+        self.box_plot.set_title("boxes and values")
         self.box_plot.show_groups([(groups.labels[0], groups.x, analysis.summaries[0]),
                                    (groups.labels[1], groups.y, analysis.summaries[1])])
         self.spread_card.show_figures(_spread_figures(checks.spread))
@@ -335,13 +399,13 @@ class ChoicePanel(QWidget):
         sentence = suggested.assumptions.get(key)
         name = analysis.procedures[key].name if key in analysis.procedures else key
         if sentence:
-            self.assumes.setText(f"What the {name} assumes. {sentence}")
+            self.assumes.setText(f"<b>What this pick assumes</b> ({html.escape(name, quote=False)}): {html.escape(sentence, quote=False)}")
         else:
             self.assumes.setText("")
         picked = self.session.choices.procedure
         if picked is not None and picked not in analysis.procedures:
-            self.assumes.setText(f"The procedure picked before ({picked}) is not available for "
-                                 "these data; the findings follow the suggestion.")
+            self.assumes.setText(f"The procedure picked before ({html.escape(picked)}) is not available "
+                                 "for these data; the findings follow the suggestion.")
 
     # -- writing back --------------------------------------------------------------------------
     def _picked(self, _index: int) -> None:

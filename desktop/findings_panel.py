@@ -15,7 +15,7 @@ from pathlib import Path
 from typing import Any
 
 from PySide6.QtCore import Qt
-from PySide6.QtWidgets import (QAbstractItemView, QFileDialog, QFrame, QHBoxLayout, QHeaderView,
+from PySide6.QtWidgets import (QAbstractItemView, QFileDialog, QFrame, QHeaderView,
                                QLabel, QPushButton, QScrollArea, QSizePolicy, QTableWidget,
                                QTableWidgetItem, QVBoxLayout, QWidget)
 
@@ -23,6 +23,7 @@ from engine import report
 from engine.errors import FileProblem
 
 from . import clipboard, export
+from .choice_panel import FlowLayout
 from .icons import icon
 from .plots import BoxPlot, IntervalPlot, plot_image, save_plot
 
@@ -134,7 +135,7 @@ class FindingsPanel(QWidget):
         self.scroll.setWidget(body)
         layout = QVBoxLayout(body)
 
-        buttons = QHBoxLayout()
+        buttons = FlowLayout(spacing=8)
         self.copy_button = QPushButton(icon("copy"), "Copy findings")
         self.copy_button.setToolTip("Put the findings on the clipboard as a table and as plain "
                                     "text, ready to paste into a document.")
@@ -151,12 +152,11 @@ class FindingsPanel(QWidget):
         self.export_button.clicked.connect(self.ask_export_report)
         for button in (self.copy_button, self.copy_plot_button, self.save_plot_button, self.export_button):
             buttons.addWidget(button)
-        buttons.addStretch(1)
         layout.addLayout(buttons)
 
         self.headline = _label()
         font = self.headline.font()
-        font.setPointSizeF(font.pointSizeF() * 1.25)
+        font.setPointSizeF(font.pointSizeF() * 1.1)
         self.headline.setFont(font)
         layout.addWidget(self.headline)
         self.followed = _label()
@@ -169,7 +169,8 @@ class FindingsPanel(QWidget):
         self.table.setWordWrap(True)
         header = self.table.horizontalHeader()
         header.setSectionResizeMode(QHeaderView.ResizeMode.ResizeToContents)
-        self.table.setSizePolicy(QSizePolicy.Policy.Fixed, QSizePolicy.Policy.Fixed)
+        header.setSectionResizeMode(0, QHeaderView.ResizeMode.Stretch)
+        self.table.setSizePolicy(QSizePolicy.Policy.Preferred, QSizePolicy.Policy.Fixed)
         self.table.setHorizontalScrollBarPolicy(Qt.ScrollBarPolicy.ScrollBarAlwaysOff)
         self.table.setVerticalScrollBarPolicy(Qt.ScrollBarPolicy.ScrollBarAlwaysOff)
         layout.addWidget(self.table)
@@ -278,13 +279,23 @@ class FindingsPanel(QWidget):
                 if column:
                     item.setTextAlignment(Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter)
                 self.table.setItem(row, column, item)
+        metrics = self.table.fontMetrics()
+        natural = sum(max(metrics.horizontalAdvance(text) for text in column) + 24
+                      for column in zip(*[row[:3] for row in rows], ("", "Value", f"{level} interval")))
+        self.table.setMaximumWidth(natural + 2 * self.table.frameWidth())
+        self._fit_table()
+
+    def _fit_table(self) -> None:
+        """Row heights for the current width (the first column wraps), and a height to match."""
         self.table.resizeRowsToContents()
-        height = self.table.horizontalHeader().height() + 2 * self.table.frameWidth()
+        height = self.table.horizontalHeader().sizeHint().height() + 2 * self.table.frameWidth()
         height += sum(self.table.rowHeight(r) for r in range(self.table.rowCount()))
         self.table.setFixedHeight(height)
-        self.table.resizeColumnsToContents()
-        width = 2 * self.table.frameWidth() + sum(self.table.columnWidth(c) for c in range(3))
-        self.table.setFixedWidth(width + 4)
+
+    def resizeEvent(self, event) -> None:  # noqa: N802 - Qt's name
+        super().resizeEvent(event)
+        if self.session.analysis is not None:
+            self._fit_table()
 
     def _show_robustness(self, analysis, key: str) -> None:
         robustness = analysis.robustness

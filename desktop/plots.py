@@ -17,7 +17,7 @@ from typing import Sequence
 import numpy as np
 import pyqtgraph as pg
 from PySide6.QtCore import QEvent, QPoint, Qt
-from PySide6.QtGui import QColor, QFontMetrics, QGuiApplication, QImage, QPainter, QPalette
+from PySide6.QtGui import QColor, QGuiApplication, QImage, QPainter, QPalette
 from PySide6.QtWidgets import QWidget
 
 __all__ = [
@@ -325,6 +325,7 @@ class IntervalPlot(ThemedPlot):
     def __init__(self, parent: QWidget | None = None) -> None:
         super().__init__(parent)
         self._rows: list[_Row] = []
+        self._labels: list = []
         self._axis_label = ""
         self.setMinimumSize(320, 200)
 
@@ -370,15 +371,22 @@ class IntervalPlot(ThemedPlot):
                                                     pen=pg.mkPen(colour, width=width), brush=pg.mkBrush(colour)))
             self.addItem(pg.ScatterPlotItem([row.estimate], [y], symbol="o", size=10 if row.picked else 8,
                                             pen=pg.mkPen(colour), brush=pg.mkBrush(colour)))
-        ticks = [(count - 1 - i, row.name) for i, row in enumerate(self._rows)]
-        axis = self.getPlotItem().getAxis("left")
-        axis.setTicks([ticks])
-        metrics = QFontMetrics(axis.style.get("tickFont") or self.font())
-        axis.setWidth(min(320, 16 + max(metrics.horizontalAdvance(row.name) for row in self._rows)))
-        self.getPlotItem().setYRange(-0.6, count - 0.4, padding=0)
+        self.getPlotItem().showAxis("left", False)
+        self.getPlotItem().setYRange(-0.5, count - 0.1, padding=0)
         pad = 0.03 * (right - left)
         self.getPlotItem().setXRange(left - pad, right + pad, padding=0)
-        self.setFixedHeight(90 + 34 * count)
+        # each procedure's name sits above its line, at the left edge
+        self._labels = []
+        for place, row in enumerate(self._rows):
+            label = pg.TextItem(row.name, color=self.colours.picked if row.picked else ink, anchor=(0, 1))
+            label.setPos(left - pad, count - 1 - place + 0.05)
+            self.addItem(label)
+            self._labels.append(label)
+        self.setFixedHeight(70 + 46 * count)
+
+    def row_names(self) -> list[str]:
+        """The names written beside the rows, top to bottom."""
+        return [label.toPlainText() for label in self._labels]
         self.set_axis_labels(self._axis_label, "")
 
 

@@ -129,6 +129,10 @@ def shoot(path: Path, *, dark: bool = False) -> list[Path]:
                 _settle(app, 0.3)
                 name = tabs.tabText(index).replace("&", "").strip().lower().replace(" ", "-")
                 written.append(_save(window, f"{index + 1}-{name}{suffix}"))
+        for name in ("choice_panel", "findings_panel"):
+            panel = getattr(window, name, None)
+            if panel is not None and hasattr(panel, "scroll"):
+                written.append(_save(panel.scroll.widget(), f"{name.replace('_', '-')}-whole{suffix}"))
         window.cleanup()
         window.close()
         return written
