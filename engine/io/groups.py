@@ -313,20 +313,24 @@ def _screen(table, cells, group, other_rows, set_aside, findings, extra) -> Inta
     used_values, used_rows = [], []
     for k, c in enumerate(cells):
         numbers = c.numbers
-        finite = np.isfinite(numbers)
-        infinite = np.isinf(numbers)
-        missing_or_text = np.isnan(numbers)
-        used = finite & ~aside[k]
+        clean = bool(np.isfinite(numbers).all()) and not aside[k].any()
+        if clean:  # the common case on large files: one pass, no masks
+            infinite = missing_or_text = np.zeros(numbers.size, dtype=bool)
+            used = slice(None)
+        else:
+            infinite = np.isinf(numbers)
+            missing_or_text = np.isnan(numbers)
+            used = ~(infinite | missing_or_text) & ~aside[k]
         per_group: dict[str, _Listing | list] = {"missing": [], "non_numeric": [], "infinite": [], "set_aside": []}
         raw = frame[c.column]
         kind_is_number = table.column_kinds[c.column] == "number"
-        for position in np.flatnonzero(aside[k]):
+        for position in (() if clean else np.flatnonzero(aside[k])):
             row = int(c.frame_rows[position])
             per_group["set_aside"].append((row, reasons_aside.get((row, c.column), "")))
-        for position in np.flatnonzero(infinite & ~aside[k]):
+        for position in (() if clean else np.flatnonzero(infinite & ~aside[k])):
             row = int(c.frame_rows[position])
             per_group["infinite"].append((row, cell_text(raw.iat[row]) or str(numbers[position])))
-        gap_rows = c.frame_rows[np.flatnonzero(missing_or_text & ~aside[k])]
+        gap_rows = c.frame_rows[:0] if clean else c.frame_rows[np.flatnonzero(missing_or_text & ~aside[k])]
         if kind_is_number or gap_rows.size == 0:
             per_group["missing"] = _Listing(gap_rows, None)
         else:
@@ -340,7 +344,7 @@ def _screen(table, cells, group, other_rows, set_aside, findings, extra) -> Inta
                 listed.append((row, c.column, c.label, reason, text))
         findings.extend(_exclusion_findings(table, c, k, per_group))
         used_values.append(numbers[used])
-        used_rows.append(c.frame_rows[used].astype(np.int64))
+        used_rows.append(np.array(c.frame_rows[used], dtype=np.int64))
     labels = (cells[0].label, cells[1].label)
     n_used = (int(used_values[0].size), int(used_values[1].size))
     for k in (0, 1):
@@ -352,11 +356,14 @@ def _screen(table, cells, group, other_rows, set_aside, findings, extra) -> Inta
     for k in (0, 1):
         slips.extend(possible_slips(used_values[k], used_rows[k] + offset, label=labels[k],
                                     group=k, column=cells[k].column))
-    counted = np.ones(len(frame), dtype=bool)
-    for c in cells:  # rows whose value cell is blank repeat each other without meaning
-        blank = np.isnan(c.numbers)
-        blank[_filled_text(table, c)] = False
-        counted[c.frame_rows[blank]] = False
+    def counted() -> np.ndarray:
+        keep = np.ones(len(frame), dtype=bool)
+        for c in cells:  # rows whose value cell is blank repeat each other without meaning
+            blank = np.isnan(c.numbers)
+            blank[_filled_text(table, c)] = False
+            keep[c.frame_rows[blank]] = False
+        return keep
+
     repeated = duplicate_rows(table, counted=counted)
     if repeated.size:
         findings.append(Finding(

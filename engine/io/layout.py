@@ -37,7 +37,13 @@ class LayoutProposal:
 
 def trimmed_levels(table: Table, column: str) -> tuple[list[str], np.ndarray, dict[str, set[str]]]:
     """Trimmed labels in order of first appearance, each row's label index (-1 for a blank
-    label), and the raw spellings merged under each trimmed label."""
+    label), and the raw spellings merged under each trimmed label (cached per column)."""
+    if column not in table._levels:
+        table._levels[column] = _trimmed_levels(table, column)
+    return table._levels[column]
+
+
+def _trimmed_levels(table: Table, column: str) -> tuple[list[str], np.ndarray, dict[str, set[str]]]:
     codes, texts = table.factors(column)
     if len(texts) <= 64:
         firsts = []

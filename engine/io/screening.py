@@ -71,10 +71,10 @@ class ScreeningReport:
         object.__setattr__(self, "findings", tuple(self.findings))
 
 
-def duplicate_rows(table, *, counted: np.ndarray | None = None) -> np.ndarray:
+def duplicate_rows(table, *, counted=None) -> np.ndarray:
     """Frame rows that repeat an earlier row in every column.
 
-    Only rows where ``counted`` is True are reported (the caller leaves out rows whose value
+    Only rows where ``counted()`` (a function giving a boolean mask) is True are reported (the caller leaves out rows whose value
     cells are blank, which repeat each other without meaning anything); blank rows never count.
 
     Notes
@@ -105,7 +105,7 @@ def duplicate_rows(table, *, counted: np.ndarray | None = None) -> np.ndarray:
     repeated = part.duplicated(keep="first").to_numpy()
     rows = part.index.to_numpy()[repeated]
     if counted is not None and rows.size:
-        rows = rows[counted[rows]]
+        rows = rows[counted()[rows]]
     if rows.size:
         blank = frame.loc[rows].isna().all(axis=1).to_numpy()
         rows = rows[~blank]

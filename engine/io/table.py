@@ -46,6 +46,7 @@ class Table:
         object.__setattr__(self, "_numbers", {})
         object.__setattr__(self, "_factors", {})
         object.__setattr__(self, "_rising", {})
+        object.__setattr__(self, "_levels", {})
 
     def file_row(self, frame_row: int) -> int:
         """The 1-based row number a user sees for ``frame_row`` in a spreadsheet or text editor.
