@@ -331,7 +331,7 @@ class ChoicePanel(QWidget):
         values = (groups.x, groups.y)
         for index, (card, (shape_plot, qq_plot)) in enumerate(zip(self.shape_cards, self.shape_plots)):
             summary, shape = analysis.summaries[index], checks.shapes[index]
-            card.title.setText(f"Shape of {groups.labels[index]} ({summary.n} values)")
+            card.title.setText(f"Shape of {groups.labels[index]} ({summary.n:,} values)")
             shape_plot.set_title("histogram and normal curve")
             shape_plot.show_group(values[index], mean=summary.mean, sd=summary.sd, group=index)
             qq_plot.set_title("normal Q-Q plot")

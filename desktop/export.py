@@ -15,7 +15,7 @@ from datetime import datetime
 from pathlib import Path
 from typing import Any, Sequence
 
-from PySide6.QtCore import QBuffer, QByteArray, QIODevice, QMarginsF, QSizeF, QUrl
+from PySide6.QtCore import QBuffer, QByteArray, QIODevice, QMarginsF, QUrl
 from PySide6.QtGui import QImage, QPageLayout, QPageSize, QPdfWriter, QTextDocument
 
 from engine.errors import FileProblem
@@ -184,8 +184,11 @@ def report_html(analysis, choices, *, procedure: str, findings_html: str, cautio
     parts += ["<h2>Findings</h2>", findings_html]
     for number, (caption, image) in enumerate(images):
         src = f"data:image/png;base64,{_png_base64(image)}" if embed_images else f"plot{number}.png"
-        width = round(image.width() / max(image.devicePixelRatio(), 1.0))
-        parts.append(f"<p><img src='{src}' width='{min(width, 640)}' alt='{_escape(caption)}'><br>"
+        ratio = max(image.devicePixelRatio(), 1.0)
+        width, height = image.width() / ratio, image.height() / ratio
+        shrink = min(1.0, 640 / width) if width else 1.0
+        parts.append(f"<p><img src='{src}' width='{round(width * shrink)}' "
+                     f"height='{round(height * shrink)}' alt='{_escape(caption)}'><br>"
                      f"<i>{_escape(caption)}</i></p>")
     parts.append("<h2>Before relying on this</h2><ul>")
     parts += [f"<li>{_escape(c)}</li>" for c in cautions]
@@ -208,9 +211,7 @@ def _write_pdf(path: Path, document_html: str, images: Sequence[tuple[str, QImag
     writer.setResolution(300)
     writer.setTitle(document.metaInformation(QTextDocument.MetaInformation.DocumentTitle))
     writer.setCreator("Twofold")
-    layout = writer.pageLayout()
-    page = layout.paintRectPixels(writer.resolution())
-    document.setPageSize(QSizeF(page.width(), page.height()))
+    # with no page size of its own the document is laid out on the writer's page, in points
     document.print_(writer)
 
 

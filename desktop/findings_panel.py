@@ -15,7 +15,8 @@ from pathlib import Path
 from typing import Any
 
 from PySide6.QtCore import Qt
-from PySide6.QtWidgets import (QAbstractItemView, QFileDialog, QFrame, QHeaderView,
+from PySide6.QtGui import QImage
+from PySide6.QtWidgets import (QAbstractItemView, QApplication, QFileDialog, QFrame, QHeaderView,
                                QLabel, QPushButton, QScrollArea, QSizePolicy, QTableWidget,
                                QTableWidgetItem, QVBoxLayout, QWidget)
 
@@ -25,7 +26,7 @@ from engine.errors import FileProblem
 from . import clipboard, export
 from .choice_panel import FlowLayout
 from .icons import icon
-from .plots import BoxPlot, IntervalPlot, plot_image, save_plot
+from .plots import BoxPlot, IntervalPlot, document_palette, plot_image, save_plot
 
 __all__ = ["FindingsPanel", "GENERAL_CAUTIONS", "STATISTIC_TIPS", "effect_for", "interval_text"]
 
@@ -340,8 +341,7 @@ class FindingsPanel(QWidget):
         if analysis is None:
             raise FileProblem("There are no findings to export yet.")
         text = self.report_text()
-        images = [("Every applicable procedure: the difference and its interval", plot_image(self.plot)),
-                  ("The two groups: boxes and the values", _box_image(analysis))]
+        images = _report_images(analysis, self.procedure_key())
         return export.export_report(path, analysis, self.session.choices, procedure=self.procedure_key(),
                                     findings_html=text.html, cautions=self.cautions_list(), images=images)
 
@@ -381,19 +381,35 @@ def _agreement_text(robustness) -> str:
             "procedure, so lean on the size of the difference and its interval.")
 
 
-def _box_image(analysis):
-    """The box plot of both groups drawn off screen, for the report."""
-    plot = BoxPlot()
+def _document_image(plot, draw) -> QImage:
+    """``plot`` drawn off screen in black on white (as a printed page has it) by ``draw(plot)``."""
     plot.setAttribute(Qt.WidgetAttribute.WA_DontShowOnScreen, True)
-    plot.resize(560, 320)
-    groups = analysis.groups
-    plot.show_groups([(groups.labels[0], groups.x, analysis.summaries[0]),
-                      (groups.labels[1], groups.y, analysis.summaries[1])])
+    plot.setPalette(document_palette())
+    plot.resize(620, 340)
     plot.show()
+    draw(plot)
+    plot.resize(620, plot.height())  # a plot may fix its own height for its rows
+    for _ in range(3):
+        QApplication.processEvents()  # let the plot lay itself out before it is drawn
     image = plot_image(plot)
     plot.close()
     plot.deleteLater()
     return image
+
+
+def _report_images(analysis, key: str) -> list[tuple[str, QImage]]:
+    """The side-by-side plot and the box plot of both groups, for the report."""
+    groups = analysis.groups
+    axis = f"difference, {groups.labels[0]} minus {groups.labels[1]}"
+    boxes = [(groups.labels[0], groups.x, analysis.summaries[0]),
+             (groups.labels[1], groups.y, analysis.summaries[1])]
+    return [
+        ("Every applicable procedure: the difference and its interval",
+         _document_image(IntervalPlot(), lambda plot: plot.show_rows(analysis.robustness.rows, picked=key,
+                                                                     axis_label=axis))),
+        ("The two groups: boxes and the values",
+         _document_image(BoxPlot(), lambda plot: plot.show_groups(boxes))),
+    ]
 
 
 if __name__ == "__main__":  # pragma: no cover - a quick look by hand

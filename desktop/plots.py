@@ -24,6 +24,7 @@ __all__ = [
     "MAX_POINTS",
     "PlotColours",
     "plot_colours",
+    "document_palette",
     "thin_sorted",
     "sample_points",
     "histogram",
@@ -97,6 +98,15 @@ def plot_colours(palette: QPalette | None = None) -> PlotColours:
                        QColor(_PICKED_SHADE[dark]), dark)
 
 
+def document_palette() -> QPalette:
+    """Black ink on white, for plots that go into a printed or pasted document."""
+    palette = QPalette()
+    for role, colour in ((QPalette.ColorRole.Base, "#ffffff"), (QPalette.ColorRole.Window, "#ffffff"),
+                         (QPalette.ColorRole.Text, "#000000"), (QPalette.ColorRole.WindowText, "#000000")):
+        palette.setColor(role, QColor(colour))
+    return palette
+
+
 def _with_alpha(colour: QColor, alpha: float) -> QColor:
     result = QColor(colour)
     result.setAlphaF(alpha)
@@ -113,19 +123,25 @@ def thin_sorted(values: np.ndarray, limit: int = MAX_POINTS) -> np.ndarray:
 
 def sample_points(values: np.ndarray, limit: int = MAX_POINTS, *, keep: np.ndarray | None = None,
                   seed: int = 0) -> np.ndarray:
-    """At most ``limit`` of ``values`` for a scatter overlay: every ``keep`` one first, the rest
-    drawn at random (a fixed seed, so the picture does not change between redraws)."""
+    """At most ``limit`` of ``values`` for a scatter overlay.
+
+    The ``keep`` values (those beyond the whiskers) come first, but they take at most a tenth of
+    the room, so that a large group's overlay still shows where most values lie; the smallest and
+    largest value are always in. The rest are drawn at random. The seed is fixed so the picture
+    does not change between redraws.
+    """
     values = np.asarray(values, dtype=float)
     if values.size <= limit:
         return values
-    keep = np.zeros(values.size, dtype=bool) if keep is None else keep
-    kept = values[keep][:limit]
-    room = limit - kept.size
-    others = np.flatnonzero(~keep)
-    if room > 0 and others.size:
-        chosen = np.random.default_rng(seed).choice(others, size=min(room, others.size), replace=False)
-        kept = np.concatenate([kept, values[chosen]])
-    return kept
+    rng = np.random.default_rng(seed)
+    flagged = np.flatnonzero(keep) if keep is not None else np.array([], dtype=np.intp)
+    room = max(2, limit // 10)
+    if flagged.size > room:
+        ends = np.array([flagged[np.argmin(values[flagged])], flagged[np.argmax(values[flagged])]])
+        flagged = np.union1d(ends, rng.choice(flagged, size=room - 2, replace=False))
+    others = np.setdiff1d(np.arange(values.size), flagged, assume_unique=True)
+    chosen = rng.choice(others, size=min(limit - flagged.size, others.size), replace=False)
+    return np.concatenate([values[flagged], values[chosen]])
 
 
 def histogram(values: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
@@ -382,12 +398,12 @@ class IntervalPlot(ThemedPlot):
             label.setPos(left - pad, count - 1 - place + 0.05)
             self.addItem(label)
             self._labels.append(label)
-        self.setFixedHeight(70 + 46 * count)
+        self.setFixedHeight(80 + 46 * count)
+        self.set_axis_labels(self._axis_label, "")
 
     def row_names(self) -> list[str]:
         """The names written beside the rows, top to bottom."""
         return [label.toPlainText() for label in self._labels]
-        self.set_axis_labels(self._axis_label, "")
 
 
 def plot_image(widget: QWidget, *, scale: float = 2.0) -> QImage:

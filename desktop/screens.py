@@ -34,18 +34,20 @@ def prepared_session(path: Path) -> Any:
     session = Session()
     table = io.read_table(path)
     proposal = io.propose_layout(table)
+    long = proposal.layout == "long"
+    columns = tuple(proposal.value_columns[:1] if long else proposal.value_columns)
     session.choose(path=Path(path), layout=proposal.layout, group_column=proposal.group_column,
-                   value_columns=tuple(proposal.value_columns))
+                   value_columns=columns)
     session.store("table", table)
-    values = proposal.value_columns[0] if proposal.layout == "long" else tuple(proposal.value_columns)
+    values = columns[0] if long else columns
     intake = io.make_groups(table, values=values, group=proposal.group_column)
     session.store("intake", intake)
     choices = session.choices
     options = Options(alternative=choices.alternative, confidence_level=choices.confidence_level,
                       n_resamples=choices.n_resamples, seed=choices.seed)
     source = {"file": Path(path).name, "sheet": choices.sheet,
-              "columns": [proposal.group_column, *proposal.value_columns],
-              "group_column": proposal.group_column, "value_columns": list(proposal.value_columns)}
+              "columns": [c for c in (proposal.group_column, *columns) if c],
+              "group_column": proposal.group_column, "value_columns": list(columns)}
     session.store("analysis", analyze(intake.groups, options, screening=intake.screening, source=source))
     return session
 

@@ -64,6 +64,15 @@ def test_thinning_keeps_both_ends_and_the_limit():
     assert plots.thin_sorted(ordered[:10], 500).tolist() == list(range(10))
 
 
+def test_sampled_points_keep_the_extremes_and_leave_room_for_the_rest():
+    values = np.random.default_rng(12).normal(size=200_000)
+    keep = np.abs(values) > 2.5  # about 2,500 values, more than a tenth of the room
+    shown = plots.sample_points(values, 1000, keep=keep)
+    assert shown.size == 1000
+    assert values.min() in shown and values.max() in shown
+    assert np.count_nonzero(np.abs(shown) > 2.5) <= 100 + 20  # a tenth, plus chance picks
+
+
 def test_sampled_points_keep_every_flagged_value():
     values = np.arange(50_000, dtype=float)
     keep = values > 49_990
@@ -122,6 +131,7 @@ def test_interval_plot_names_every_row_and_runs_open_ends_to_the_edge(qtbot):
     qtbot.addWidget(plot)
     plot.show_rows(_rows(), picked="welch_t", axis_label="difference")
     assert plot.row_names() == ["Welch t-test", "bootstrap", "ranks"]
+    assert plot.getPlotItem().getAxis("bottom").labelText == "difference"
     (left, right), _ = plot.getPlotItem().viewRange()
     lines = [item.getData() for item in plot.getPlotItem().listDataItems()
              if isinstance(item, plots.pg.PlotDataItem) and len(item.getData()[0]) == 2]
