@@ -42,7 +42,8 @@ def _cells(book, path: Path, name: str) -> pd.DataFrame:
     frame = pd.DataFrame(rows, dtype=object) if rows else pd.DataFrame()
     for position in range(frame.shape[1]):
         column = frame.iloc[:, position]
-        blank = column.map(lambda v: v is None or (isinstance(v, str) and not v.strip())).to_numpy(dtype=bool)
+        values = column.to_numpy()
+        blank = column.isna().to_numpy() | (values == "")
         if blank.any():
             frame.isetitem(position, column.where(~blank, np.nan))
     return frame
