@@ -138,7 +138,9 @@ def propose_layout(table: Table) -> LayoutProposal:
             reasons.append(why_group)
             reasons.append(f"'{value_columns[0]}' holds numbers, so it is taken as the measurements.")
             if identifiers:
-                reasons.append(f"{', '.join(repr(n) for n in identifiers)} look like identifiers, "
+                many = len(identifiers) > 1
+                reasons.append(f"{', '.join(repr(n) for n in identifiers)} "
+                               f"{'look like identifiers' if many else 'looks like an identifier'}, "
                                "not measurements.")
             return LayoutProposal("long", group, value_columns, tuple(levels), tuple(reasons))
     if len(measures) >= 2:

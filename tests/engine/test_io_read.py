@@ -60,7 +60,7 @@ def test_whitespace_separated_txt(tmp_path):
 
 @pytest.mark.parametrize("codec, expected", [
     ("utf-8", "utf-8"), ("utf-8-sig", "utf-8-sig"), ("utf-16", "utf-16"),
-    ("utf-16-le", "utf-16-le"), ("cp1252", "cp1252"), ("latin-1", "cp1252"),
+    ("utf-16-le", "utf-16-le"), ("utf-16-be", "utf-16-be"), ("cp1252", "cp1252"), ("latin-1", "cp1252"),
 ])
 def test_encodings(tmp_path, codec, expected):
     text = "Lieferant;Festigkeit\nSüdwerk;812,5\nNordwerk;799,0\nSüdwerk;845,25\n"
