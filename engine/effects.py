@@ -8,7 +8,8 @@ group 1 exceeds one of group 2. All are signed: positive when group 1 tends to b
 from __future__ import annotations
 
 import math
-from typing import Any
+from functools import cached_property
+from typing import Any, Callable
 
 import numpy as np
 from scipy import optimize, special, stats
@@ -31,9 +32,29 @@ __all__ = [
 ]
 
 
+class _Pair:
+    """Two checked samples and the summaries the effect sizes share, each computed once."""
+
+    def __init__(self, x: np.ndarray, y: np.ndarray) -> None:
+        self.x, self.y = x, y
+        self.n1, self.n2 = x.size, y.size
+
+    @cached_property
+    def variances(self) -> tuple[float, float]:
+        return centred_variance(self.x), centred_variance(self.y)
+
+    @cached_property
+    def difference(self) -> float:
+        return mean_difference(self.x, self.y)[2]
+
+    @cached_property
+    def u1(self) -> float:
+        return mann_whitney_u1(self.x, self.y)
+
+
 def _prepare(x: Any, y: Any, confidence_level: Any, alternative: Any):
     x, y = check_samples(x, y)
-    return x, y, check_confidence_level(confidence_level), check_alternative(alternative)
+    return _Pair(x, y), check_confidence_level(confidence_level), check_alternative(alternative)
 
 
 def _tail(level: float, alternative: str) -> float:
@@ -73,20 +94,20 @@ def _noncentrality_limits(t_observed: float, df: float, tail: float) -> tuple[fl
     return root(1 - tail), root(tail)
 
 
-def _pooled_sd(x: np.ndarray, y: np.ndarray) -> float:
-    df = x.size + y.size - 2
-    pooled = ((x.size - 1) * centred_variance(x) + (y.size - 1) * centred_variance(y)) / df
+def _pooled_sd(pair: _Pair) -> float:
+    var_x, var_y = pair.variances
+    pooled = ((pair.n1 - 1) * var_x + (pair.n2 - 1) * var_y) / (pair.n1 + pair.n2 - 2)
     if pooled == 0:
         raise DataProblem("Every value within each group is the same, so the pooled standard "
                           "deviation is zero and a standardised difference is not defined.")
     return math.sqrt(pooled)
 
 
-def _standardised(x, y, level, alternative, *, correct: bool) -> EffectSize:
-    n1, n2 = x.size, y.size
+def _standardised(pair: _Pair, level: float, alternative: str, *, correct: bool) -> EffectSize:
+    n1, n2 = pair.n1, pair.n2
     df = n1 + n2 - 2
-    sd = _pooled_sd(x, y)
-    d = mean_difference(x, y)[2] / sd
+    sd = _pooled_sd(pair)
+    d = pair.difference / sd
     scale = math.sqrt(1 / n1 + 1 / n2)
     nc_low, nc_high = _noncentrality_limits(d / scale, df, _tail(level, alternative))
     factor = hedges_correction(df) if correct else 1.0
@@ -141,8 +162,7 @@ def cohen_d(x: Any, y: Any, *, confidence_level: float = 0.95,
     Steiger, J. H. and Fouladi, R. T. (1997). Noncentrality interval estimation and the
     evaluation of statistical models. In What If There Were No Significance Tests?, Erlbaum.
     """
-    x, y, level, alternative = _prepare(x, y, confidence_level, alternative)
-    return _standardised(x, y, level, alternative, correct=False)
+    return _cohen(*_prepare(x, y, confidence_level, alternative))
 
 
 def hedges_g(x: Any, y: Any, *, confidence_level: float = 0.95,
@@ -176,8 +196,7 @@ def hedges_g(x: Any, y: Any, *, confidence_level: float = 0.95,
     Hedges, L. V. and Olkin, I. (1985). Statistical Methods for Meta-Analysis. Academic Press,
     chapter 5.
     """
-    x, y, level, alternative = _prepare(x, y, confidence_level, alternative)
-    return _standardised(x, y, level, alternative, correct=True)
+    return _hedges(*_prepare(x, y, confidence_level, alternative))
 
 
 def glass_delta(x: Any, y: Any, *, confidence_level: float = 0.95,
@@ -219,15 +238,26 @@ def glass_delta(x: Any, y: Any, *, confidence_level: float = 0.95,
     Algina, J., Keselman, H. J. and Penfield, R. D. (2006). Confidence intervals for an effect
     size when variances are not equal. Journal of Modern Applied Statistical Methods 5(1), 2-13.
     """
-    x, y, level, alternative = _prepare(x, y, confidence_level, alternative)
-    var_x, var_y = centred_variance(x), centred_variance(y)
+    return _glass(*_prepare(x, y, confidence_level, alternative))
+
+
+def _cohen(pair: _Pair, level: float, alternative: str) -> EffectSize:
+    return _standardised(pair, level, alternative, correct=False)
+
+
+def _hedges(pair: _Pair, level: float, alternative: str) -> EffectSize:
+    return _standardised(pair, level, alternative, correct=True)
+
+
+def _glass(pair: _Pair, level: float, alternative: str) -> EffectSize:
+    var_x, var_y = pair.variances
     if var_y == 0:
         raise DataProblem("Every value in group 2 is the same, so its standard deviation is zero "
                           "and Glass's delta is not defined.")
     sd = math.sqrt(var_y)
-    delta = mean_difference(x, y)[2] / sd
-    scale = math.sqrt(var_x / (var_y * x.size) + 1 / y.size)
-    df = y.size - 1
+    delta = pair.difference / sd
+    scale = math.sqrt(var_x / (var_y * pair.n1) + 1 / pair.n2)
+    df = pair.n2 - 1
     nc_low, nc_high = _noncentrality_limits(delta / scale, df, _tail(level, alternative))
     return EffectSize(
         key="glass_delta", name="Glass's delta", value=delta,
@@ -277,9 +307,9 @@ def _probability_interval(cl: float, n1: int, n2: int, level: float, alternative
     return low, high
 
 
-def _rank_effects(x, y, level, alternative):
-    n1, n2 = x.size, y.size
-    u1 = mann_whitney_u1(x, y)
+def _rank_effects(pair: _Pair, level: float, alternative: str):
+    n1, n2 = pair.n1, pair.n2
+    u1 = pair.u1
     cl = u1 / (n1 * n2)
     low, high = _probability_interval(cl, n1, n2, level, alternative)
     return u1, cl, low, high
@@ -327,14 +357,17 @@ def common_language(x: Any, y: Any, *, confidence_level: float = 0.95,
     Mann-Whitney statistic. Part 2: asymptotic methods and evaluation. Statistics in Medicine
     25(4), 559-573.
     """
-    x, y, level, alternative = _prepare(x, y, confidence_level, alternative)
-    u1, cl, low, high = _rank_effects(x, y, level, alternative)
+    return _common_language(*_prepare(x, y, confidence_level, alternative))
+
+
+def _common_language(pair: _Pair, level: float, alternative: str) -> EffectSize:
+    u1, cl, low, high = _rank_effects(pair, level, alternative)
     return EffectSize(
         key="common_language", name="common-language effect size", value=cl,
         interval=Interval.for_alternative(low, high, level, alternative),
         method="share of pairs in which the group 1 value is larger (ties count half); "
                + _RANK_NOTES_METHOD,
-        details=dict(u1=u1, n_pairs=x.size * y.size),
+        details=dict(u1=u1, n_pairs=pair.n1 * pair.n2),
     )
 
 
@@ -370,8 +403,11 @@ def rank_biserial(x: Any, y: Any, *, confidence_level: float = 0.95,
     correlation. Comprehensive Psychology 3, article 1.
     Newcombe, R. G. (2006). Statistics in Medicine 25(4), 559-573 (see :func:`common_language`).
     """
-    x, y, level, alternative = _prepare(x, y, confidence_level, alternative)
-    u1, cl, low, high = _rank_effects(x, y, level, alternative)
+    return _rank_biserial(*_prepare(x, y, confidence_level, alternative))
+
+
+def _rank_biserial(pair: _Pair, level: float, alternative: str) -> EffectSize:
+    u1, cl, low, high = _rank_effects(pair, level, alternative)
     return EffectSize(
         key="rank_biserial", name="rank-biserial correlation", value=2 * cl - 1,
         interval=Interval.for_alternative(2 * low - 1, 2 * high - 1, level, alternative),
@@ -397,14 +433,17 @@ def all_effect_sizes(x: Any, y: Any, *, confidence_level: float = 0.95,
     ----------
     See each function.
     """
-    x, y, level, alternative = _prepare(x, y, confidence_level, alternative)
-    options = dict(confidence_level=level, alternative=alternative)
+    pair, level, alternative = _prepare(x, y, confidence_level, alternative)
     sizes: dict[str, EffectSize] = {}
-    for key, compute in (("cohen_d", cohen_d), ("hedges_g", hedges_g),
-                         ("glass_delta", glass_delta), ("rank_biserial", rank_biserial),
-                         ("common_language", common_language)):
+    for key, build in _BUILDERS:
         try:
-            sizes[key] = compute(x, y, **options)
+            sizes[key] = build(pair, level, alternative)
         except DataProblem:
             continue
     return sizes
+
+
+_BUILDERS: tuple[tuple[str, Callable[[_Pair, float, str], EffectSize]], ...] = (
+    ("cohen_d", _cohen), ("hedges_g", _hedges), ("glass_delta", _glass),
+    ("rank_biserial", _rank_biserial), ("common_language", _common_language),
+)
