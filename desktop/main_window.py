@@ -64,6 +64,7 @@ LATE_PANELS = (
 
 LATE_DELAY_MS = 150   # after the first paint, before importing the plotting panels
 GROUPS_DELAY_MS = 20  # lets the freshly filled grid paint before the groups are formed
+ANALYSIS_DELAY_MS = 120  # a burst of set-up changes runs one analysis
 
 AskSheet = Callable[[Sequence[str], str | None], "str | None"]
 
@@ -118,6 +119,16 @@ class MainWindow(QMainWindow):
         self.groups_worker = Worker(self)
         self.analysis_worker = Worker(self)
         self.import_worker = Worker(self)
+        # an analysis asked for by a change of set-up starts a moment later, so that a burst of
+        # changes runs it once and the panels have repainted before the worker gets going
+        self._analysis_soon = QTimer(self)
+        self._analysis_soon.setSingleShot(True)
+        self._analysis_soon.setInterval(ANALYSIS_DELAY_MS)
+        self._analysis_soon.timeout.connect(self.run_analysis)
+        self._groups_soon = QTimer(self)
+        self._groups_soon.setSingleShot(True)
+        self._groups_soon.setInterval(GROUPS_DELAY_MS)
+        self._groups_soon.timeout.connect(self.form_groups)
 
         self.message_bar = MessageBar(self)
         self.data_panel = DataPanel(self.session, self, ask_reason=ask_reason)
@@ -206,8 +217,10 @@ class MainWindow(QMainWindow):
         bar.addPermanentWidget(self.busy_label)
         bar.addPermanentWidget(self.progress)
         bar.addPermanentWidget(self.cancel_button)
-        for widget in (self.busy_label, self.progress, self.cancel_button):
-            widget.hide()
+        # always in place (so the window never re-lays itself out when work starts): idle, the
+        # bar is empty and Stop is greyed out
+        self.cancel_button.setEnabled(False)
+        self.progress.setValue(0)
 
     def _action(self, text: str, tip: str, slot: Callable[[], Any], shortcut: Any = None,
                 icon_name: str | None = None) -> QAction:
@@ -352,6 +365,8 @@ class MainWindow(QMainWindow):
             return False
         self.groups_worker.cancel()
         self.analysis_worker.cancel()
+        self._analysis_soon.stop()
+        self._groups_soon.stop()
         self._opening = path.name
         self.busy_label.setText(f"Opening {path.name}…")
         ask = sheet is None
@@ -415,7 +430,7 @@ class MainWindow(QMainWindow):
         self.setWindowTitle(f"{path.name} - Twofold")
         self.recent.add(path)
         # paint the grid first; the groups, the analysis and the late panels follow at once
-        QTimer.singleShot(GROUPS_DELAY_MS, self.form_groups)
+        self._groups_soon.start()
         self._load_late_soon()
 
     def _on_load_failed(self, message: str, expected: bool) -> None:
@@ -431,7 +446,7 @@ class MainWindow(QMainWindow):
         if _changed(old, value, GROUP_FIELDS):
             self.form_groups()
         elif _changed(old, value, ANALYSIS_FIELDS):
-            self.run_analysis()
+            self._analysis_soon.start()
 
     def _group_request(self) -> tuple[Any, str | None] | str:
         """The ``values`` and ``group`` arguments of ``make_groups``, or why there are none yet."""
@@ -455,6 +470,8 @@ class MainWindow(QMainWindow):
         if table is None:
             return
         self.analysis_worker.cancel()
+        self._analysis_soon.stop()
+        self._groups_soon.stop()
         request = self._group_request()
         if isinstance(request, str):
             self.groups_worker.cancel()
@@ -484,7 +501,7 @@ class MainWindow(QMainWindow):
             self.message_bar.clear()
         self.session.store("problem", None)
         self.session.store("intake", intake)
-        self.run_analysis()
+        self._analysis_soon.start()
 
     def _on_groups_failed(self, message: str, expected: bool) -> None:
         self._no_groups(message)
@@ -493,6 +510,7 @@ class MainWindow(QMainWindow):
     # -- the analysis --------------------------------------------------------------------------
     def run_analysis(self) -> None:
         """Run (or run again) the analysis of the current groups with the current options."""
+        self._analysis_soon.stop()
         intake = self.session.intake
         if intake is None:
             return
@@ -530,6 +548,8 @@ class MainWindow(QMainWindow):
 
     def cancel(self) -> None:
         """Stop whatever is running; the window keeps what it showed before."""
+        self._analysis_soon.stop()
+        self._groups_soon.stop()
         running = [w for w in (self.load_worker, self.groups_worker, self.analysis_worker) if w.busy]
         for worker in running:
             worker.cancel()
@@ -538,13 +558,18 @@ class MainWindow(QMainWindow):
 
     @property
     def busy(self) -> bool:
-        return any(w.busy for w in (self.load_worker, self.groups_worker, self.analysis_worker))
+        """True while a file is read, groups are formed or an analysis runs or is about to."""
+        return self._analysis_soon.isActive() or self._groups_soon.isActive() or any(
+            w.busy for w in (self.load_worker, self.groups_worker, self.analysis_worker))
 
     def _on_busy(self, _: bool) -> None:
         busy = self.busy
-        for widget in (self.busy_label, self.progress, self.cancel_button):
-            widget.setVisible(busy)
-        if busy and not self.analysis_worker.busy:
+        self.cancel_button.setEnabled(busy)
+        if not busy:
+            self.busy_label.setText("")
+            self.progress.setRange(0, 1000)
+            self.progress.setValue(0)
+        elif not self.analysis_worker.busy:
             self.progress.setRange(0, 0)  # no measure of progress while reading: a moving bar
         self.cancel_action.setEnabled(busy)
         self.redo_action.setEnabled(not busy)
