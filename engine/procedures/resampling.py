@@ -418,6 +418,9 @@ def permutation_test(
     warnings: list[str] = []
     details: dict[str, Any] = dict(n_1=pool.n1, n_2=pool.n2, exact=exact, n_splits=splits,
                                    n_extreme=extreme, n_resamples=total, tie_tolerance=tolerance)
+    if pool.scale == 0:
+        warnings.append("Every value is the same in both groups, so every relabelling gives the "
+                        "same difference and the test cannot tell the groups apart.")
     interval = None
     if statistic == "mean":
         lowest, highest, connected = _mean_shift_interval(
@@ -446,11 +449,13 @@ def _shift_interval(lowest: float, highest: float, level: float, alternative: st
         warnings.append("No shift of group 1 passes the test at this confidence level, so the "
                         "interval is empty; use more resamples.")
         return Interval(math.nan, math.nan, level)
-    if alternative == "two-sided" and (math.isinf(lowest) or math.isinf(highest)):
+    open_low = alternative != "less" and math.isinf(lowest)
+    open_high = alternative != "greater" and math.isinf(highest)
+    if open_low or open_high:
         warnings.append("There are too few distinct splits of the data for this confidence "
                         "level: no shift is ruled out, so the interval has no limit.")
-    low = None if math.isinf(lowest) else lowest
-    high = None if math.isinf(highest) else highest
+    low = None if math.isinf(lowest) else lowest + 0.0  # + 0.0 turns -0.0 into 0.0
+    high = None if math.isinf(highest) else highest + 0.0
     if alternative == "greater":
         high = None
     elif alternative == "less":

@@ -241,6 +241,17 @@ def test_too_few_splits_give_an_unbounded_interval_with_a_warning():
     result = permutation_test([5.0, 6.0], [1.0, 2.0])
     assert result.interval.low is None and result.interval.high is None
     assert any("too few distinct splits" in w for w in result.warnings)
+    # one-sided: the smallest p is 1/6 > 0.05 as well, so the closed end cannot be found
+    result = permutation_test([5.0, 6.0], [1.0, 2.0], alternative="less")
+    assert result.interval.low is None and result.interval.high is None
+    assert any("too few distinct splits" in w for w in result.warnings)
+
+
+def test_constant_data_give_p_one_and_a_warning():
+    result = permutation_test([3.0, 3.0, 3.0], [3.0, 3.0, 3.0, 3.0], alternative="greater")
+    assert result.p_value == 1.0
+    assert any("same in both groups" in w for w in result.warnings)
+    assert math.copysign(1.0, result.interval.low) == 1.0  # 0.0, not -0.0
 
 
 # --- bootstrap ---------------------------------------------------------------------------------
