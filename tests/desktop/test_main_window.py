@@ -24,15 +24,15 @@ def test_every_demo_file_opens_as_a_double_click_would(make_window, qtbot, settl
     window = make_window([path])  # what `twofold FILE` (the desktop's Exec line) runs
     wait_for_table(qtbot, window)
     settle(window, timeout=60_000)
-    session = window.session
-    assert window.data_panel.model.rowCount() == len(session.table.frame)
-    assert session.choices.path == path
-    if session.intake is not None:
-        qtbot.waitUntil(lambda: session.analysis is not None or window.message_bar.key is not None,
+    state = window.session
+    assert window.data_panel.model.rowCount() == len(state.table.frame)
+    assert state.choices.path == path
+    if state.intake is not None:
+        qtbot.waitUntil(lambda: state.analysis is not None or window.message_bar.key is not None,
                         timeout=60_000)
-        assert session.analysis is not None, window.message_bar.text
+        assert state.analysis is not None, window.message_bar.text
     else:
-        assert window.message_bar.key == "groups_problem" and session.problem
+        assert window.message_bar.key == "groups_problem" and state.problem
     assert digest(path) == before  # the user's file is never written
     assert window.isVisible()
 
@@ -42,11 +42,11 @@ def test_columns_groups_set_aside_and_back(make_window, qtbot, settle, three_gro
     window = make_window([three_groups_csv])
     wait_for_table(qtbot, window)
     settle(window)
-    session = window.session
+    state = window.session
     # three batches: the window asks for two
-    assert session.choices.group_column == "batch"
-    assert session.choices.value_columns == ("peel_strength",)
-    assert session.intake is None and "3 groups" in session.problem
+    assert state.choices.group_column == "batch"
+    assert state.choices.value_columns == ("peel_strength",)
+    assert state.intake is None and "3 groups" in state.problem
     assert window.message_bar.key == "groups_problem"
 
     setup = window.setup_panel
@@ -54,26 +54,26 @@ def test_columns_groups_set_aside_and_back(make_window, qtbot, settle, three_gro
     setup.first_group.activated.emit(setup.first_group.currentIndex())
     setup.second_group.setCurrentIndex(setup.second_group.findData("C"))
     setup.second_group.activated.emit(setup.second_group.currentIndex())
-    qtbot.waitUntil(lambda: session.intake is not None, timeout=10_000)
-    assert session.intake.groups.labels == ("A", "C")
+    qtbot.waitUntil(lambda: state.intake is not None, timeout=10_000)
+    assert state.intake.groups.labels == ("A", "C")
     assert window.message_bar.key is None
     # batch A has one blank cell among its 12 rows; C has 12 numbers
-    assert session.intake.screening.n_used == (11, 12)
+    assert state.intake.screening.n_used == (11, 12)
     settle(window, timeout=60_000)
-    first = session.analysis
+    first = state.analysis
     assert first is not None and first.groups.labels == ("A", "C")
 
     frame_row = 0  # the first row is batch A
     window.data_panel.set_aside(frame_row, "peel_strength", "slip of the pen")
-    qtbot.waitUntil(lambda: session.intake.screening.n_used == (10, 12), timeout=10_000)
-    assert session.intake.screening.excluded_counts["set_aside"] == 1
+    qtbot.waitUntil(lambda: state.intake.screening.n_used == (10, 12), timeout=10_000)
+    assert state.intake.screening.excluded_counts["set_aside"] == 1
     settle(window, timeout=60_000)
-    assert session.analysis is not first and session.analysis.groups.n == (10, 12)
+    assert state.analysis is not first and state.analysis.groups.n == (10, 12)
 
     window.data_panel.bring_back(frame_row, "peel_strength")
-    qtbot.waitUntil(lambda: session.intake.screening.n_used == (11, 12), timeout=10_000)
+    qtbot.waitUntil(lambda: state.intake.screening.n_used == (11, 12), timeout=10_000)
     settle(window, timeout=60_000)
-    assert session.analysis.groups.n == (11, 12)
+    assert state.analysis.groups.n == (11, 12)
     assert digest(three_groups_csv) == before
 
 
