@@ -28,7 +28,7 @@ from .choice_panel import FlowLayout
 from .icons import icon
 from .plots import BoxPlot, IntervalPlot, document_palette, plot_image, save_plot
 
-__all__ = ["FindingsPanel", "GENERAL_CAUTIONS", "STATISTIC_TIPS", "effect_for", "interval_text"]
+__all__ = ["FindingsPanel", "GENERAL_CAUTIONS", "STATISTIC_TIPS", "display_numbers", "effect_for"]
 
 # Shown after the suggestion's own cautions (which already cover p-values, passing checks and
 # regulated work).
@@ -47,6 +47,8 @@ STATISTIC_TIPS = {
           "give more degrees of freedom.",
     "p": "How often chance alone would give a difference at least this far from zero if the "
          "groups did not differ; small values speak against no difference.",
+    "mc_se": "How much the resampled p-value could move with another random seed (its Monte "
+             "Carlo standard error).",
     "interval": "The range of differences these data are consistent with at the chosen "
                 "confidence level.",
     "cohen_d": "The difference in means measured in pooled standard deviations.",
@@ -62,18 +64,11 @@ STATISTIC_TIPS = {
 _HINT = "Pick the columns and the two groups; the findings appear here."
 
 
-def interval_text(interval) -> str:
-    """An interval in words and numbers: "0.12 to 1.9", "at least 0.12", "at most 1.9"."""
-    if interval is None:
-        return "none given"
-    low, high = interval.low, interval.high
-    if low is None and high is None:
-        return "unbounded"
-    if high is None:
-        return f"at least {report.format_number(low)}"
-    if low is None:
-        return f"at most {report.format_number(high)}"
-    return f"{report.format_number(low)} to {report.format_number(high)}"
+def display_numbers(analysis, key: str):
+    """The report's own display strings for procedure ``key`` (estimate, interval, statistic,
+    df, p, Monte Carlo error, effect size), so the table reads exactly as the paragraph and the
+    copied text. ``engine.report`` keeps them under a private name for now."""
+    return report._numbers(analysis, key, analysis.procedures[key])  # noqa: SLF001
 
 
 def effect_for(analysis, key: str):
@@ -259,18 +254,21 @@ class FindingsPanel(QWidget):
         labels = analysis.groups.labels
         level = export.level_text(analysis.options.confidence_level)
         effect = effect_for(analysis, result.key)
+        shown = display_numbers(analysis, result.key)
+        missing = report.NOT_AVAILABLE
         rows = [
             (f"{result.estimate_name[:1].upper()}{result.estimate_name[1:]} ({labels[0]} minus {labels[1]})",
-             report.format_number(result.estimate), interval_text(result.interval),
+             shown.estimate, shown.interval or "none given",
              STATISTIC_TIPS["difference"] + " " + STATISTIC_TIPS["interval"]),
-            (result.statistic_name or "Test statistic", report.format_number(result.statistic), "",
-             STATISTIC_TIPS["statistic"]),
-            ("Degrees of freedom", report.format_number(result.df), "", STATISTIC_TIPS["df"]),
-            ("p-value", report.format_p(result.p_value), "", STATISTIC_TIPS["p"]),
+            (result.statistic_name or "Test statistic", shown.statistic or missing, "", STATISTIC_TIPS["statistic"]),
+            ("Degrees of freedom", shown.df or missing, "", STATISTIC_TIPS["df"]),
+            ("p-value", shown.p or missing, "", STATISTIC_TIPS["p"]),
         ]
+        if shown.mc_se is not None:
+            rows.append(("Monte Carlo error of p", shown.mc_se, "", STATISTIC_TIPS["mc_se"]))
         if effect is not None:
-            rows.append((effect.name[:1].upper() + effect.name[1:], report.format_number(effect.value),
-                         interval_text(effect.interval), STATISTIC_TIPS.get(effect.key, "")))
+            rows.append((effect.name[:1].upper() + effect.name[1:], shown.effect or missing,
+                         shown.effect_interval or "", STATISTIC_TIPS.get(effect.key, "")))
         self.table.setHorizontalHeaderLabels(["", "Value", f"{level} interval"])
         self.table.setRowCount(len(rows))
         for row, (what, value, interval, tip) in enumerate(rows):

@@ -208,9 +208,11 @@ class ThemedPlot(pg.PlotWidget):
         self.getPlotItem().setTitle(text or None, color=self.colours.foreground.name(), size="9pt")
 
     def set_axis_labels(self, bottom: str = "", left: str = "") -> None:
+        """Name the axes; an empty name leaves that axis as it is."""
         ink = self.colours.foreground.name()
-        self.getPlotItem().setLabel("bottom", bottom, color=ink)
-        self.getPlotItem().setLabel("left", left, color=ink)
+        for side, text in (("bottom", bottom), ("left", left)):
+            if text:
+                self.getPlotItem().setLabel(side, text, color=ink)
 
     def redraw(self) -> None:
         """Draw the current data again (after a palette change); subclasses override."""
@@ -399,7 +401,7 @@ class IntervalPlot(ThemedPlot):
             self.addItem(label)
             self._labels.append(label)
         self.setFixedHeight(80 + 46 * count)
-        self.set_axis_labels(self._axis_label, "")
+        self.set_axis_labels(self._axis_label)
 
     def row_names(self) -> list[str]:
         """The names written beside the rows, top to bottom."""

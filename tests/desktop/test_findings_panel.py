@@ -16,7 +16,7 @@ from engine.analysis import Options, analyze  # noqa: E402
 from engine.errors import FileProblem  # noqa: E402
 from engine.results import Groups  # noqa: E402
 from engine.session import Session  # noqa: E402
-from desktop.findings_panel import FindingsPanel, interval_text  # noqa: E402
+from desktop.findings_panel import FindingsPanel, display_numbers  # noqa: E402
 
 
 @pytest.fixture
@@ -54,20 +54,25 @@ def test_headline_and_table_show_the_engines_welch_numbers(panel, analysis, grou
     assert panel.hint.isHidden() and not panel.scroll.isHidden()
     assert panel.procedure_key() == analysis.recommendation.key == "welch_t"
     assert panel.headline.text() == report.render(analysis).paragraph
-    result = analysis.procedures["welch_t"]
     cells = _cells(panel)
-    assert cells[0][1] == report.format_number(result.estimate)
-    assert cells[0][2] == interval_text(result.interval)
-    # reference: scipy.stats.ttest_ind(x, y, equal_var=False) for t, its df and p; the mean
-    # difference and interval from the same result's confidence_interval(0.95)
+    shown = display_numbers(analysis, "welch_t")
+    plain = report.render(analysis).plain
+    # the table reads exactly as the copied text
+    assert (cells[0][1], cells[0][2], cells[3][1]) == (shown.estimate, shown.interval, shown.p)
+    for text in (cells[0][1], cells[0][2], cells[1][1], cells[2][1], cells[3][1], cells[4][1]):
+        assert text in plain
+    # reference: scipy.stats.ttest_ind(x, y, equal_var=False) for t, its df and p, and its
+    # confidence_interval(0.95) for the interval of the mean difference
     welch = stats.ttest_ind(groups.x, groups.y, equal_var=False)
     ci = welch.confidence_interval(0.95)
-    assert cells[1][1] == report.format_number(welch.statistic)
-    assert cells[2][1] == report.format_number(welch.df)
+    assert float(cells[1][1]) == pytest.approx(welch.statistic, rel=5e-3)
+    assert float(cells[2][1]) == pytest.approx(welch.df, rel=5e-3)
     assert cells[3][1] == report.format_p(welch.pvalue)
-    assert cells[0][2] == f"{report.format_number(ci.low)} to {report.format_number(ci.high)}"
+    low, high = (float(v) for v in cells[0][2].split(" to "))
+    assert low == pytest.approx(ci.low, abs=0.006) and high == pytest.approx(ci.high, abs=0.006)
+    assert float(cells[0][1]) == pytest.approx(groups.x.mean() - groups.y.mean(), abs=0.006)
     assert cells[4][0].startswith("Hedges")
-    assert cells[4][1] == report.format_number(analysis.effect_sizes["hedges_g"].value)
+    assert float(cells[4][1]) == pytest.approx(analysis.effect_sizes["hedges_g"].value, abs=0.006)
     assert all(panel.table.item(r, 1).toolTip() for r in range(panel.table.rowCount()))
 
 
@@ -79,10 +84,10 @@ def test_a_pick_switches_the_findings_to_that_procedure(panel, analysis, groups)
     cells = _cells(panel)
     # reference: scipy.stats.mannwhitneyu(x, y) gives U of the first sample
     u = stats.mannwhitneyu(groups.x, groups.y)
-    assert cells[1][1] == report.format_number(u.statistic)
+    assert float(cells[1][1]) == pytest.approx(u.statistic, abs=0.05)
     rank = analysis.effect_sizes["rank_biserial"]
     assert cells[4][0].lower() == rank.name.lower()
-    assert cells[4][1] == report.format_number(rank.value)
+    assert float(cells[4][1]) == pytest.approx(rank.value, abs=0.006)
     assert "suggestion was" in panel.followed.text()
     assert panel.headline.text() == report.render(analysis, procedure="mann_whitney").paragraph
     session.choose(procedure="z")  # not run without known SDs: the suggestion is shown instead

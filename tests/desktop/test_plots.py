@@ -157,6 +157,17 @@ def test_save_png_and_svg_and_refuse_other_suffixes(qtbot, tmp_path):
         plots.save_plot(plot, tmp_path / "p.gif")
 
 
+def test_many_qt_calls_leave_none_alive(qtbot):
+    # PySide6 6.12 on Python 3.11 drops a reference to None on each call of a Qt method that
+    # returns nothing; importing desktop.plots shields None, True and False. Without the shield
+    # this loop ends the interpreter ("deallocating None").
+    plot = plots.ThemedPlot()
+    qtbot.addWidget(plot)
+    for _ in range(200_000):
+        plot.setToolTip("")
+    assert plot.toolTip() == ""
+
+
 @pytest.mark.slow
 def test_two_million_values_draw_quickly(qtbot):
     rng = np.random.default_rng(8)
