@@ -24,7 +24,8 @@ from engine import report
 
 from .plots import BoxPlot, QQPlot, ShapePlot
 
-__all__ = ["ChoicePanel", "CHECK_TIPS", "FlowLayout", "main_reading"]
+__all__ = ["ChoicePanel", "CHECK_TIPS", "FlowLayout", "heading", "hint_and_body", "main_reading",
+           "text_label"]
 
 _SEVERITY_RANK = {"info": 0, "note": 1, "warning": 2}
 _SEVERITY_WORD = {"info": "", "note": "Worth a look: ", "warning": "Take care: "}
@@ -62,7 +63,8 @@ def main_reading(findings) -> Any:
     return best
 
 
-def _label(text: str = "", *, rich: bool = False) -> QLabel:
+def text_label(text: str = "", *, rich: bool = False) -> QLabel:
+    """A word-wrapped label whose text can be selected (plain text unless ``rich``)."""
     label = QLabel(text)
     label.setWordWrap(True)
     label.setTextFormat(Qt.TextFormat.RichText if rich else Qt.TextFormat.PlainText)
@@ -70,13 +72,34 @@ def _label(text: str = "", *, rich: bool = False) -> QLabel:
     return label
 
 
-def _heading(text: str) -> QLabel:
+def heading(text: str) -> QLabel:
+    """A bold, slightly larger label for the parts of a panel."""
     label = QLabel(text)
     font = label.font()
     font.setBold(True)
     font.setPointSizeF(font.pointSizeF() * 1.1)
     label.setFont(font)
     return label
+
+
+def hint_and_body(panel: QWidget, hint: str) -> tuple[QLabel, QScrollArea, QVBoxLayout]:
+    """Give ``panel`` a centred hint (shown while there is nothing to show) and a scrolling body.
+
+    Returns the hint, the scroll area and the layout of the body to fill.
+    """
+    outer = QVBoxLayout(panel)
+    outer.setContentsMargins(0, 0, 0, 0)
+    label = QLabel(hint)
+    label.setWordWrap(True)
+    label.setAlignment(Qt.AlignmentFlag.AlignCenter)
+    outer.addWidget(label)
+    scroll = QScrollArea()
+    scroll.setWidgetResizable(True)
+    scroll.setFrameShape(QFrame.Shape.NoFrame)
+    outer.addWidget(scroll)
+    body = QWidget()
+    scroll.setWidget(body)
+    return label, scroll, QVBoxLayout(body)
 
 
 class FlowLayout(QLayout):
@@ -142,7 +165,7 @@ class _CheckCard(QFrame):
         super().__init__()
         self.setFrameShape(QFrame.Shape.StyledPanel)
         layout = QVBoxLayout(self)
-        self.title = _heading("")
+        self.title = heading("")
         layout.addWidget(self.title)
         self.plot_row = QBoxLayout(QBoxLayout.Direction.LeftToRight)
         self._plot_count = len(plots)
@@ -153,7 +176,7 @@ class _CheckCard(QFrame):
         layout.addLayout(self.plot_row)
         self.figures = FlowLayout(spacing=18)
         layout.addLayout(self.figures)
-        self.reading = _label()
+        self.reading = text_label()
         font = self.reading.font()
         font.setBold(True)
         self.reading.setFont(font)
@@ -165,7 +188,7 @@ class _CheckCard(QFrame):
         self.more_button.setArrowType(Qt.ArrowType.RightArrow)
         self.more_button.toggled.connect(self._toggle)
         layout.addWidget(self.more_button)
-        self.more = _label()
+        self.more = text_label()
         self.more.setVisible(False)
         layout.addWidget(self.more)
 
@@ -218,21 +241,9 @@ class ChoicePanel(QWidget):
 
     # -- building ------------------------------------------------------------------------------
     def _build(self) -> None:
-        outer = QVBoxLayout(self)
-        outer.setContentsMargins(0, 0, 0, 0)
-        self.hint = QLabel(_HINT)
-        self.hint.setWordWrap(True)
-        self.hint.setAlignment(Qt.AlignmentFlag.AlignCenter)
-        outer.addWidget(self.hint)
-        self.scroll = QScrollArea()
-        self.scroll.setWidgetResizable(True)
-        self.scroll.setFrameShape(QFrame.Shape.NoFrame)
-        outer.addWidget(self.scroll)
-        body = QWidget()
-        self.scroll.setWidget(body)
-        layout = QVBoxLayout(body)
+        self.hint, self.scroll, layout = hint_and_body(self, _HINT)
 
-        layout.addWidget(_heading("1. How the values look"))
+        layout.addWidget(heading("1. How the values look"))
         self.shape_plots = [(ShapePlot(), QQPlot()) for _ in range(2)]
         self.shape_cards = [_CheckCard(list(pair)) for pair in self.shape_plots]
         for card in self.shape_cards:
@@ -241,11 +252,11 @@ class ChoicePanel(QWidget):
         self.spread_card = _CheckCard([self.box_plot])
         layout.addWidget(self.spread_card)
 
-        layout.addWidget(_heading("2. The suggested procedure"))
-        self.suggestion = _label(rich=True)
+        layout.addWidget(heading("2. The suggested procedure"))
+        self.suggestion = text_label(rich=True)
         layout.addWidget(self.suggestion)
 
-        layout.addWidget(_heading("3. Your pick"))
+        layout.addWidget(heading("3. Your pick"))
         pick_row = QHBoxLayout()
         pick_row.addWidget(QLabel("Procedure to follow:"))
         self.picker = QComboBox()
@@ -254,7 +265,7 @@ class ChoicePanel(QWidget):
         self.picker.currentIndexChanged.connect(self._picked)
         pick_row.addWidget(self.picker, 1)
         layout.addLayout(pick_row)
-        self.assumes = _label(rich=True)
+        self.assumes = text_label(rich=True)
         layout.addWidget(self.assumes)
 
         known = QGroupBox("What you know beyond these data")
@@ -295,7 +306,7 @@ class ChoicePanel(QWidget):
             sd_form.addRow(label, edit)
         self.sd_apply = QPushButton("Use these SDs")
         self.sd_apply.clicked.connect(self._apply_sd)
-        self.sd_message = _label()
+        self.sd_message = text_label()
         sd_form.addRow(self.sd_apply, self.sd_message)
         self.sd_box.setVisible(False)
         known_layout.addWidget(self.sd_box)

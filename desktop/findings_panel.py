@@ -16,15 +16,14 @@ from typing import Any
 
 from PySide6.QtCore import Qt
 from PySide6.QtGui import QImage
-from PySide6.QtWidgets import (QAbstractItemView, QApplication, QFileDialog, QFrame, QHeaderView,
-                               QLabel, QPushButton, QScrollArea, QSizePolicy, QTableWidget,
-                               QTableWidgetItem, QVBoxLayout, QWidget)
+from PySide6.QtWidgets import (QAbstractItemView, QApplication, QFileDialog, QHeaderView, QPushButton,
+                               QSizePolicy, QTableWidget, QTableWidgetItem, QWidget)
 
 from engine import report
 from engine.errors import FileProblem
 
 from . import clipboard, export
-from .choice_panel import FlowLayout
+from .choice_panel import FlowLayout, heading, hint_and_body, text_label
 from .icons import icon
 from .plots import BoxPlot, IntervalPlot, document_palette, plot_image, save_plot
 
@@ -79,24 +78,6 @@ def effect_for(analysis, key: str):
     return None
 
 
-def _label(text: str = "", *, wrap: bool = True, selectable: bool = True) -> QLabel:
-    label = QLabel(text)
-    label.setWordWrap(wrap)
-    label.setTextFormat(Qt.TextFormat.PlainText)
-    if selectable:
-        label.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
-    return label
-
-
-def _heading(text: str) -> QLabel:
-    label = QLabel(text)
-    font = label.font()
-    font.setBold(True)
-    font.setPointSizeF(font.pointSizeF() * 1.1)
-    label.setFont(font)
-    return label
-
-
 class FindingsPanel(QWidget):
     """What the comparison found, ready to copy into a document.
 
@@ -117,19 +98,7 @@ class FindingsPanel(QWidget):
 
     # -- building ------------------------------------------------------------------------------
     def _build(self) -> None:
-        outer = QVBoxLayout(self)
-        outer.setContentsMargins(0, 0, 0, 0)
-        self.hint = _label(_HINT, selectable=False)
-        self.hint.setAlignment(Qt.AlignmentFlag.AlignCenter)
-        outer.addWidget(self.hint)
-
-        self.scroll = QScrollArea()
-        self.scroll.setWidgetResizable(True)
-        self.scroll.setFrameShape(QFrame.Shape.NoFrame)
-        outer.addWidget(self.scroll)
-        body = QWidget()
-        self.scroll.setWidget(body)
-        layout = QVBoxLayout(body)
+        self.hint, self.scroll, layout = hint_and_body(self, _HINT)
 
         buttons = FlowLayout(spacing=8)
         self.copy_button = QPushButton(icon("copy"), "Copy findings")
@@ -150,12 +119,12 @@ class FindingsPanel(QWidget):
             buttons.addWidget(button)
         layout.addLayout(buttons)
 
-        self.headline = _label()
+        self.headline = text_label()
         font = self.headline.font()
         font.setPointSizeF(font.pointSizeF() * 1.1)
         self.headline.setFont(font)
         layout.addWidget(self.headline)
-        self.followed = _label()
+        self.followed = text_label()
         layout.addWidget(self.followed)
 
         self.table = QTableWidget(0, 3)
@@ -171,8 +140,8 @@ class FindingsPanel(QWidget):
         self.table.setVerticalScrollBarPolicy(Qt.ScrollBarPolicy.ScrollBarAlwaysOff)
         layout.addWidget(self.table)
 
-        layout.addWidget(_heading("Every applicable procedure side by side"))
-        self.agreement = _label()
+        layout.addWidget(heading("Every applicable procedure side by side"))
+        self.agreement = text_label()
         layout.addWidget(self.agreement)
         self.plot = IntervalPlot()
         self.plot.setToolTip("Each line is one procedure's interval for the difference, its dot the "
@@ -180,12 +149,12 @@ class FindingsPanel(QWidget):
                              "the procedure the findings follow.")
         layout.addWidget(self.plot)
 
-        layout.addWidget(_heading("About this procedure"))
-        self.method = _label()
+        layout.addWidget(heading("About this procedure"))
+        self.method = text_label()
         layout.addWidget(self.method)
 
-        layout.addWidget(_heading("Before relying on this"))
-        self.cautions = _label()
+        layout.addWidget(heading("Before relying on this"))
+        self.cautions = text_label()
         self.cautions.setTextFormat(Qt.TextFormat.RichText)
         layout.addWidget(self.cautions)
         layout.addStretch(1)
