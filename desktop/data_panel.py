@@ -34,6 +34,7 @@ from .table_model import MARK_SET_ASIDE, FrameModel
 
 __all__ = ["DataPanel", "screening_html", "aside_order", "MAX_COPY_CELLS"]
 
+FIT_ROWS = 200  # rows looked at when fitting the column widths
 MAX_COPY_CELLS = 200_000  # a larger selection is copied only up to this many cells
 _BRING_BACK = "bring-back"
 
@@ -218,6 +219,8 @@ class DataPanel(QWidget):
         if table is self.model.table:
             return
         self.model.set_table(table)
+        if table is not None:
+            self._fit_columns()
         if table is None:
             self.heading.setText("Open a data file to begin.")
         else:
@@ -228,6 +231,16 @@ class DataPanel(QWidget):
             self.heading.setText(f"<b>{_escape(where)}</b>: {table.frame.shape[0]:,} rows, "
                                  f"{table.frame.shape[1]} columns")
         self._update_buttons()
+
+    def _fit_columns(self) -> None:
+        """Widen each column to its name and the first rows' cells (never all of a big file)."""
+        header = self.grid.horizontalHeader()
+        header.setResizeContentsPrecision(FIT_ROWS)
+        self.grid.resizeColumnsToContents()
+        widest = self.grid.fontMetrics().averageCharWidth() * 40
+        for column in range(self.model.columnCount()):
+            if header.sectionSize(column) > widest:
+                header.resizeSection(column, widest)
 
     def _show_marks(self) -> None:
         intake = self._session.intake

@@ -165,8 +165,13 @@ def big_file(rows: int = 1_000_000) -> None:
 
         watch = Watch()
         grid.viewport().installEventFilter(watch)
-        for _ in range(20):
+        window.load_late_panels()  # as in a window that has been open a while (Open dialog, drop)
+        while window.import_worker.busy:
             app.processEvents()
+            time.sleep(0.01)
+        for _ in range(50):
+            app.processEvents()
+            time.sleep(0.01)
         started = time.perf_counter()
         window.open_file(path)
         loop.exec()
