@@ -84,8 +84,7 @@ class FindingsPanel(QWidget):
     Parameters
     ----------
     session : engine.session.Session
-        Read for the analysis and the procedure to follow; never written except to report a
-        failed save or export as ``problem``.
+        Read for the analysis and the procedure to follow; never written.
     """
 
     def __init__(self, session, parent: QWidget | None = None) -> None:
@@ -118,6 +117,8 @@ class FindingsPanel(QWidget):
         for button in (self.copy_button, self.copy_plot_button, self.save_plot_button, self.export_button):
             buttons.addWidget(button)
         layout.addLayout(buttons)
+        self.status = text_label()
+        layout.addWidget(self.status)
 
         self.headline = text_label()
         font = self.headline.font()
@@ -313,14 +314,14 @@ class FindingsPanel(QWidget):
                                     findings_html=text.html, cautions=self.cautions_list(), images=images)
 
     def ask_save_plot(self) -> None:
-        """Ask where to save the plot, then save it (a failure is reported as ``problem``)."""
+        """Ask where to save the plot, then save it (the outcome shows under the buttons)."""
         path, _ = QFileDialog.getSaveFileName(self, "Save the plot", "difference.png",
                                               "PNG picture (*.png);;SVG drawing (*.svg)")
         if path:
             self._attempt(self.save_plot, path)
 
     def ask_export_report(self) -> None:
-        """Ask where to write the report, then write it (a failure is reported as ``problem``)."""
+        """Ask where to write the report, then write it (the outcome shows under the buttons)."""
         path, _ = QFileDialog.getSaveFileName(self, "Export the report", "comparison.html",
                                               "HTML page (*.html);;PDF document (*.pdf)")
         if path:
@@ -328,9 +329,11 @@ class FindingsPanel(QWidget):
 
     def _attempt(self, action, path: str) -> None:
         try:
-            action(path)
+            written = action(path)
         except FileProblem as error:
-            self.session.store("problem", error.message)
+            self.status.setText(error.message)
+        else:
+            self.status.setText(f"Saved {Path(written).name}.")
 
 
 def _agreement_text(robustness) -> str:

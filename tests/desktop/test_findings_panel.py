@@ -120,3 +120,16 @@ def test_cleanup_stops_listening(panel, analysis):
     panel.cleanup()
     panel.session.store("analysis", analysis)
     assert not panel.hint.isHidden()  # nothing was redrawn after cleanup
+
+
+def test_the_panels_own_save_button_says_how_it_went(panel, analysis, tmp_path, monkeypatch):
+    from desktop import findings_panel
+
+    panel.session.store("analysis", analysis)
+    target = tmp_path / "report.html"
+    monkeypatch.setattr(findings_panel.QFileDialog, "getSaveFileName", lambda *a, **k: (str(target), ""))
+    panel.export_button.click()
+    assert target.is_file() and panel.status.text() == "Saved report.html."
+    target = tmp_path / "report.odt"
+    panel.export_button.click()
+    assert not target.exists() and ".html or .pdf" in panel.status.text()
