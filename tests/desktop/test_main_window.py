@@ -224,3 +224,22 @@ def test_nothing_to_copy_before_a_comparison_and_never_over_the_data(make_window
         assert not window.export_report(two_groups_csv)
         assert window.message_bar.key == "save_failed" and "data file" in window.message_bar.text
     assert digest(two_groups_csv) == before
+
+
+def test_copy_and_export_go_through_the_findings_panel(make_window, qtbot, two_groups_csv, tmp_path):
+    from PySide6.QtGui import QGuiApplication
+
+    window = make_window([two_groups_csv])
+    qtbot.waitUntil(lambda: window.session.analysis is not None and window.findings_panel is not None,
+                    timeout=60_000)
+    QGuiApplication.clipboard().clear()
+    window.copy_action.trigger()
+    copied = QGuiApplication.clipboard().text()
+    assert "north" in copied and "south" in copied
+    target = tmp_path / "findings.html"
+    assert window.export_report(target)
+    assert target.stat().st_size > 0 and "north" in target.read_text(encoding="utf-8")
+    assert window.message_bar.key == "saved"
+    picture = tmp_path / "groups.png"
+    assert window.save_plot(picture)
+    assert picture.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"  # reference: the PNG signature (RFC 2083)
