@@ -85,7 +85,6 @@ def start(argv: Sequence[str] | None = None, **window_options: Any) -> Any:
     from .main_window import MainWindow
 
     window = MainWindow(**window_options)
-    _keep_running(window)
     if args.files and window.open_file(args.files[0]):
         window.wait_for_file(FIRST_PAINT_WAIT_MS)
     window.show()
@@ -106,6 +105,7 @@ def main(argv: Sequence[str] | None = None) -> int:
         print(where)
         return 0
     window = start(argv)
+    _keep_running(window)
     return _application().exec()
 
 

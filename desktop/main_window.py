@@ -406,6 +406,9 @@ class MainWindow(QMainWindow):
 
     def _on_loaded(self, result: tuple) -> None:
         if result[0] == "sheets":
+            if not self.isVisible():  # at start-up: ask once the window is on the screen
+                QTimer.singleShot(0, lambda: self._on_loaded(result))
+                return
             _, path, names = result
             wanted = self._ask_sheet(list(names), names[0])
             if wanted:
@@ -657,7 +660,7 @@ class MainWindow(QMainWindow):
         self._closed = True
         self.session.unsubscribe(self._on_session)
         for worker in (self.load_worker, self.groups_worker, self.analysis_worker, self.import_worker):
-            worker.shutdown(3000)
+            worker.shutdown()
         for panel in (self.data_panel, self.setup_panel, self.choice_panel, self.findings_panel):
             if panel is not None and hasattr(panel, "cleanup"):
                 panel.cleanup()

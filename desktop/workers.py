@@ -125,8 +125,12 @@ class Worker(QObject):
         """Block until every run of this worker has ended (for closing the window and tests)."""
         return self._pool.waitForDone(msecs)
 
-    def shutdown(self, msecs: int = 5000) -> None:
-        """Cancel, then wait for the pool thread to finish."""
+    def shutdown(self, msecs: int = 60_000) -> None:
+        """Cancel, then wait for the pool thread to finish.
+
+        The worker must outlive its runs (a run reports through it), so this waits for a run
+        that cannot stop early, such as a file being read, to end by itself.
+        """
         if self._stop is not None:
             self._stop.set()
             self._stop = None
