@@ -66,7 +66,7 @@ def _keep_running(window: Any) -> None:
             previous(kind, error, trace)
             return
         try:
-            window.message_bar.show_message("analysis_crashed", reason=f"{kind.__name__}: {error}")
+            window.message_bar.show_message("window_crashed", reason=f"{kind.__name__}: {error}")
         except RuntimeError:  # the window is already gone
             previous(kind, error, trace)
 

@@ -592,13 +592,13 @@ class MainWindow(QMainWindow):
         panel = self._findings()
         if panel is not None:
             panel.copy_findings()
-            self.statusBar().showMessage("Copied the findings.", 3000)
+            self.message_bar.show_message("copied", what="the findings")
 
     def copy_plot(self) -> None:
         panel = self._findings()
         if panel is not None:
             panel.copy_plot()
-            self.statusBar().showMessage("Copied the picture.", 3000)
+            self.message_bar.show_message("copied", what="the picture")
 
     def _save(self, path: str | Path | None, title: str, name_filter: str, suffix: str,
               write: Callable[[Path], Any]) -> bool:
@@ -639,7 +639,7 @@ class MainWindow(QMainWindow):
         except OSError as problem:
             self.message_bar.show_message("save_failed", name="the desktop registration", reason=str(problem))
         else:
-            self.statusBar().showMessage(f"Registered: {where}", 6000)
+            self.message_bar.show_message("registered", where=where)
 
     # -- drag and drop -------------------------------------------------------------------------
     def dragEnterEvent(self, event: QDragEnterEvent) -> None:  # noqa: N802 - Qt's name

@@ -32,14 +32,10 @@ _DECLARED = (
     Message("open_crashed", "error",
             "Something unexpected stopped the opening of {name} ({reason}). Your file was not changed."),
     Message("not_a_file", "warning", "{name} is not a file that can be opened."),
-    Message("unknown_type", "warning",
-            "{name} is not a data file this program reads; use .csv, .tsv, .txt, .xlsx, .xls or .ods."),
     Message("recent_gone", "warning", "{name} is no longer there, so it was taken off the recent list."),
-    Message("opened", "info", "Opened {name}: {rows} rows, {columns} columns."),
     # forming the two groups
     Message("groups_problem", "warning", "{reason}"),
     Message("groups_crashed", "error", "Something unexpected stopped the forming of the groups ({reason})."),
-    Message("pick_two", "info", "The column {column} holds {count} groups: choose the two to compare."),
     # the comparison
     Message("analysis_failed", "warning", "The comparison could not be made: {reason}"),
     Message("analysis_crashed", "error",
@@ -47,10 +43,13 @@ _DECLARED = (
     Message("analysis_stopped", "info", "The comparison was stopped. Press Redo to run it again."),
     # copy and export
     Message("nothing_yet", "info", "There is nothing to copy or save yet: open a file and set up the comparison."),
-    Message("copied", "info", "Copied to the clipboard."),
+    Message("copied", "info", "Copied {what} to the clipboard."),
     Message("saved", "info", "Saved {name}."),
     Message("save_failed", "error", "Could not save {name}: {reason}"),
     Message("part_missing", "warning", "This part of the window is not available in this version."),
+    Message("registered", "info", "Data files now offer Twofold when opened from the desktop ({where})."),
+    Message("window_crashed", "error",
+            "Something unexpected went wrong ({reason}). The window carries on; your file was not changed."),
 )
 
 MESSAGES: Mapping[str, Message] = {message.key: message for message in _DECLARED}

@@ -243,3 +243,32 @@ def test_copy_and_export_go_through_the_findings_panel(make_window, qtbot, two_g
     picture = tmp_path / "groups.png"
     assert window.save_plot(picture)
     assert picture.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"  # reference: the PNG signature (RFC 2083)
+
+
+def test_every_message_shown_is_declared_once():
+    import re
+    from pathlib import Path
+
+    from desktop.messages import MESSAGES, _DECLARED
+
+    desktop_dir = Path(__file__).resolve().parents[2] / "desktop"
+    used = set()
+    for source in desktop_dir.glob("*.py"):
+        used |= set(re.findall(r'show_message\(\s*"(\w+)"', source.read_text(encoding="utf-8")))
+    assert used <= set(MESSAGES), used - set(MESSAGES)
+    assert len(MESSAGES) == len(_DECLARED)  # no key declared twice
+
+
+def test_message_bar_follows_the_palette(make_window):
+    from PySide6.QtGui import QPalette
+
+    window = make_window()
+    bar = window.message_bar
+    bar.show_message("save_failed", name="report.html", reason="the disk is full")
+    assert bar.isVisibleTo(window) and bar.text == "Could not save report.html: the disk is full"
+    base = window.palette().color(QPalette.ColorRole.Base)
+    shown = bar.palette().color(QPalette.ColorRole.Window)
+    # a tint of the theme's own base colour: lightness stays on the same side as the base
+    assert (shown.lightness() > 127) == (base.lightness() > 127)
+    bar.clear()
+    assert bar.key is None and not bar.isVisibleTo(window)
