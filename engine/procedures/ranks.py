@@ -226,7 +226,8 @@ def difference_order_statistics(
     counts at both pivots narrow every window, and a wanted rank that falls on a run of entries
     equal to a pivot ends the search. When at most ``materialize_limit`` entries remain they are
     formed and partitioned. Each round keeps about 6 / sqrt(s) of the entries (s sampled), so
-    10^12 pairs need three rounds. The sums are compared as computed (fl(x_i - y_j)), so the
+    10^12 pairs need three rounds. :func:`mann_whitney` asks for the median and both interval
+    ends at once: a first shared round narrows to all three, then each goes on alone. The sums are compared as computed (fl(x_i - y_j)), so the
     result equals that of sorting all the differences; randomness affects only the speed.
 
     References
@@ -241,26 +242,34 @@ def difference_order_statistics(
     return _select(a, b, ranks, materialize_limit, cancelled)
 
 
-def _select(a, b, ranks, materialize_limit=MATERIALIZE_LIMIT, cancelled=None) -> np.ndarray:
-    ranks = sorted(int(r) for r in ranks)
-    padded = np.concatenate(([-np.inf], b, [np.inf]))
-    low = np.zeros(a.size, dtype=np.int64)
-    high = np.full(a.size, b.size, dtype=np.int64)
-    rng = np.random.default_rng(20261202)
-    first, last = ranks[0], ranks[-1]
-    while True:
+class _Matrix:
+    """The implicit sorted matrix a_i + b_j (a = sorted x, b = sorted -y) and its row windows."""
+
+    def __init__(self, a: np.ndarray, b: np.ndarray, limit: int, cancelled) -> None:
+        self.a, self.b = a, b
+        self.padded = np.concatenate(([-np.inf], b, [np.inf]))
+        self.limit = limit
+        self.cancelled = cancelled
+        self.rng = np.random.default_rng(20261202)
+        self.stalled = False
+
+    def full(self) -> tuple[np.ndarray, np.ndarray]:
+        return (np.zeros(self.a.size, dtype=np.int64),
+                np.full(self.a.size, self.b.size, dtype=np.int64))
+
+    def narrow(self, low, high, first, last):
+        """One round: windows still holding ranks first..last, or the common value if found."""
+        a, b = self.a, self.b
         counts = high - low
         in_play = int(counts.sum())
-        if in_play <= materialize_limit:
-            return _materialized(a, b, low, high, ranks)
-        check_cancelled(cancelled)
         below_all = int(low.sum())
+        check_cancelled(self.cancelled)
         if in_play == a.size * b.size:  # nothing ruled out yet: sample the matrix directly
             size = 1_000_000
-            sample = a[rng.integers(0, a.size, size)] + b[rng.integers(0, b.size, size)]
+            sample = a[self.rng.integers(0, a.size, size)] + b[self.rng.integers(0, b.size, size)]
         else:
-            size = 500_000
-            picks = np.sort(rng.integers(0, in_play, size))
+            size = 200_000
+            picks = np.sort(self.rng.integers(0, in_play, size))
             ends = np.cumsum(counts)
             rows = np.searchsorted(ends, picks, side="right")
             sample = a[rows] + b[low[rows] + picks - (ends[rows] - counts[rows])]
@@ -268,18 +277,85 @@ def _select(a, b, ranks, materialize_limit=MATERIALIZE_LIMIT, cancelled=None) ->
         i1 = int(np.clip(math.floor((first - below_all) / in_play * size - margin), 0, size - 1))
         i2 = int(np.clip(math.ceil((last + 1 - below_all) / in_play * size + margin), 0, size - 1))
         p1, p2 = np.partition(sample, [i1, i2])[[i1, i2]]
+        # rows counted exactly: every stride-th. Between two counted rows a count moves by
+        # about stride * n2 / n1 columns, so the slack is near 2 * stride * n2 in all; keep it
+        # near a twentieth of the entries the round should leave. A round that fails to halve
+        # the entries in play is followed by exact counts.
+        stride = int(0.05 * 6 / math.sqrt(size) * in_play / (2 * b.size))
+        if p1 < p2 and stride >= 2 and not self.stalled:
+            return self._narrow_by_bounds(low, high, first, last, p1, p2, stride)
         if p1 < p2:
-            bounds = [low, _row_counts(a, padded, p1, strict=False),
-                      _row_counts(a, padded, p2, strict=True), high]
+            bounds = [low, _row_counts(a, self.padded, p1, strict=False),
+                      _row_counts(a, self.padded, p2, strict=True), high]
         else:
-            lt = _row_counts(a, padded, p1, strict=True)
-            le = _row_counts(a, padded, p1, strict=False)
+            lt = _row_counts(a, self.padded, p1, strict=True)
+            le = _row_counts(a, self.padded, p1, strict=False)
             if lt.sum() <= first and last < le.sum():
-                return np.full(len(ranks), p1)  # every wanted rank falls on entries equal to p1
+                return low, high, float(p1)  # every wanted rank falls on entries equal to p1
             bounds = [low, lt, le, high]
-        sums = [int(v.sum()) for v in bounds]
-        low = bounds[max(i for i, s in enumerate(sums) if s <= first)]
-        high = bounds[min(i for i, s in enumerate(sums) if s > last)]
+        # a count vector whose total is <= first leaves only entries below every wanted rank on
+        # its left; one whose total is > last only entries above them on its right
+        for counted in bounds[1:-1]:
+            total = int(counted.sum())
+            if total <= first:
+                low = np.maximum(low, counted)
+            elif total > last:
+                high = np.minimum(high, counted)
+        return low, high, None
+
+    def _bounds(self, pivot: float, stride: int, *, strict: bool):
+        """Lower and upper bounds on every row's count, from exact counts on every stride-th row.
+
+        Row counts fall as a_i grows, so row i's count lies between those of the counted rows
+        on either side of it.
+        """
+        n = self.a.size
+        rows = np.r_[np.arange(0, n, stride), n - 1]
+        counted = _row_counts(self.a[rows], self.padded, pivot, strict=strict)
+        block = np.arange(n) // stride
+        return counted[block + 1], counted[block]
+
+    def _narrow_by_bounds(self, low, high, first, last, p1, p2, stride):
+        """A round with bounds on the counts instead of exact counts (large matrices).
+
+        The entries left of the new low are all <= p1 and those right of the new high all
+        >= p2; p1 is used only if at most ``first`` entries can be <= p1, and p2 only if more
+        than ``last`` entries must be < p2, so the wanted ranks stay inside the windows.
+        """
+        in_play = int((high - low).sum())
+        under, over = self._bounds(p1, stride, strict=False)
+        if int(over.sum()) <= first:
+            low = np.maximum(low, under)
+        under, over = self._bounds(p2, stride, strict=True)
+        if int(under.sum()) > last:
+            high = np.minimum(high, over)
+        self.stalled = 2 * int((high - low).sum()) > in_play
+        return low, high, None
+
+    def select(self, ranks, low=None, high=None) -> np.ndarray:
+        if low is None:
+            low, high = self.full()
+        first, last = ranks[0], ranks[-1]
+        self.stalled = False
+        while int((high - low).sum()) > self.limit:
+            low, high, value = self.narrow(low, high, first, last)
+            if value is not None:
+                return np.full(len(ranks), value)
+        return _materialized(self.a, self.b, low, high, ranks)
+
+    def select_groups(self, groups: list[list[int]]) -> list[np.ndarray]:
+        """Several groups of close ranks; one shared first round narrows to all of them."""
+        low, high = self.full()
+        first, last = min(g[0] for g in groups), max(g[-1] for g in groups)
+        if len(groups) > 1 and int((high - low).sum()) > self.limit:
+            low, high, value = self.narrow(low, high, first, last)
+            if value is not None:
+                return [np.full(len(g), value) for g in groups]
+        return [self.select(g, low, high) for g in groups]
+
+
+def _select(a, b, ranks, materialize_limit=MATERIALIZE_LIMIT, cancelled=None) -> np.ndarray:
+    return _Matrix(a, b, materialize_limit, cancelled).select(sorted(int(r) for r in ranks))
 
 
 def hodges_lehmann(x: Any, y: Any) -> float:
@@ -319,20 +395,19 @@ def _tail_p(cdf_at: float, sf_at: float, alternative: str) -> float:
     return min(1.0, 2 * min(cdf_at, sf_at))
 
 
-def _tie_term(xs: np.ndarray, ys: np.ndarray) -> float:
-    """sum(t^3 - t) over the tie blocks of the combined sample (xs, ys sorted)."""
-    def blocks(values):
-        starts = np.flatnonzero(np.r_[True, values[1:] != values[:-1]])
-        return values[starts], np.diff(np.r_[starts, values.size]).astype(float)
+def _tie_term(xs: np.ndarray, ys: np.ndarray, equal_in_y: np.ndarray) -> float:
+    """sum(t^3 - t) over the tie blocks of the combined sample.
 
-    ux, cx = blocks(xs)
-    uy, cy = blocks(ys)
-    term = float(np.sum(cx**3 - cx) + np.sum(cy**3 - cy))
-    where = np.searchsorted(uy, ux)
-    common = where < uy.size
-    common[common] = uy[where[common]] == ux[common]
-    tx, ty = cx[common], cy[where[common]]
-    return term + float(np.sum((tx + ty) ** 3 - (tx + ty) - (tx**3 - tx) - (ty**3 - ty)))
+    xs and ys are sorted; ``equal_in_y[i]`` is the number of values of y equal to xs[i].
+    """
+    def cube_excess(t):
+        return float(np.sum(t * t * t - t))
+
+    starts = np.flatnonzero(np.r_[True, xs[1:] != xs[:-1]])
+    in_x = np.diff(np.r_[starts, xs.size]).astype(float)
+    shared = equal_in_y[starts].astype(float)
+    in_y = np.diff(np.r_[np.flatnonzero(np.r_[True, ys[1:] != ys[:-1]]), ys.size]).astype(float)
+    return cube_excess(in_x + shared) + cube_excess(in_y) - cube_excess(shared)
 
 
 def _block_sizes(xs: np.ndarray, ys: np.ndarray) -> np.ndarray:
@@ -460,7 +535,7 @@ def mann_whitney(
     doubled_u1 = int(below.sum() + at_or_below.sum())  # 2 U1, exact in integers
     u1 = doubled_u1 / 2
     u2 = n1 * n2 - u1
-    tie_term = _tie_term(xs, ys)
+    tie_term = _tie_term(xs, ys, at_or_below - below)
     ties = tie_term > 0
     total_n = n1 + n2
     warnings: list[str] = []
@@ -511,7 +586,6 @@ def mann_whitney(
                            + (" and continuity correction" if continuity else ""))
     details["method"] = used
     negated = ys[::-1] * -1.0  # sorted(-y)
-    estimate = _shift(xs, negated, cancelled)
     total = n1 * n2
     if used == "exact" and not all_tied:
         null_u = pmf if not ties else u_distribution(n1, n2, cancelled=cancelled)
@@ -524,16 +598,17 @@ def mann_whitney(
             f"With {n1} and {n2} values no interval for the shift reaches the requested "
             f"confidence; the widest one, from the smallest to the largest difference, is shown "
             f"(its coverage is {coverage:.3f}).")
-    low_rank, high_rank = k - 1, total - k
+    middle = [total // 2] if total % 2 else [total // 2 - 1, total // 2]
+    groups = [middle, [k - 1], [total - k]]
     if alternative == "greater":
-        low = float(_select(xs, negated, [low_rank], cancelled=cancelled)[0])
-        high = math.inf
+        groups.pop()
     elif alternative == "less":
-        low = -math.inf
-        high = float(_select(xs, negated, [high_rank], cancelled=cancelled)[0])
-    else:
-        low = float(_select(xs, negated, [low_rank], cancelled=cancelled)[0])
-        high = float(_select(xs, negated, [high_rank], cancelled=cancelled)[0])
+        groups.pop(1)
+    found = _Matrix(xs, negated, MATERIALIZE_LIMIT, cancelled).select_groups(groups)
+    pair = found[0]
+    estimate = float(pair[0]) if total % 2 else float((pair[0] + pair[1]) / 2)
+    low = float(found[1][0]) if alternative != "less" else -math.inf
+    high = float(found[-1][0]) if alternative != "greater" else math.inf
     details.update(interval_rank=k, interval_coverage=coverage)
     return ProcedureResult(
         key="mann_whitney",

@@ -215,6 +215,31 @@ def test_selection_on_three_million_pairs_against_brute_force(decimals):
     assert hodges_lehmann(x, y) == np.median(ordered)  # default threshold: selection path
 
 
+@pytest.mark.parametrize("decimals", (None, 1))
+def test_selection_with_bounded_counts_against_brute_force(decimals, monkeypatch):
+    # many rows (group 1) and few columns: the first round counts only every few rows exactly
+    # and bounds the others between them
+    rng = np.random.default_rng(17)
+    x, y = rng.gamma(2.0, 1.0, 100_000), rng.normal(0, 1, 100)  # 10^7 pairs
+    if decimals is not None:
+        x, y = np.round(x, decimals), np.round(y, decimals)
+    differences = np.subtract.outer(x, y).ravel()
+    wanted = [3, 2_500_000, 4_999_999, 5_000_000, 9_999_990]
+    expected = np.partition(differences, wanted)[wanted]  # reference: brute force
+    bounded = []
+    original = ranks._Matrix._narrow_by_bounds
+
+    def spy(self, *args):
+        bounded.append(args[-1])
+        return original(self, *args)
+
+    monkeypatch.setattr(ranks._Matrix, "_narrow_by_bounds", spy)
+    for rank, value in zip(wanted, expected):
+        assert difference_order_statistics(x, y, [rank], materialize_limit=5_000)[0] == value
+    assert bounded and min(bounded) >= 2  # the bounded rounds did run
+    assert hodges_lehmann(x, y) == np.median(differences)
+
+
 def test_selection_with_every_difference_equal():
     x, y = np.full(3000, 2.5), np.full(2000, 1.0)
     got = difference_order_statistics(x, y, [0, 2_999_999], materialize_limit=1000)
