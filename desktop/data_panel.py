@@ -34,7 +34,7 @@ from .table_model import MARK_SET_ASIDE, FrameModel
 
 __all__ = ["DataPanel", "screening_html", "aside_order", "MAX_COPY_CELLS"]
 
-FIT_ROWS = 200  # rows looked at when fitting the column widths
+FIT_ROWS = 100  # rows looked at when fitting the column widths
 MAX_COPY_CELLS = 200_000  # a larger selection is copied only up to this many cells
 _BRING_BACK = "bring-back"
 
@@ -235,12 +235,16 @@ class DataPanel(QWidget):
     def _fit_columns(self) -> None:
         """Widen each column to its name and the first rows' cells (never all of a big file)."""
         header = self.grid.horizontalHeader()
-        header.setResizeContentsPrecision(FIT_ROWS)
-        self.grid.resizeColumnsToContents()
-        widest = self.grid.fontMetrics().averageCharWidth() * 40
+        metrics = self.grid.fontMetrics()
+        padding = metrics.averageCharWidth() * 3
+        widest = metrics.averageCharWidth() * 40
+        rows = range(min(FIT_ROWS, self.model.rowCount()))
         for column in range(self.model.columnCount()):
-            if header.sectionSize(column) > widest:
-                header.resizeSection(column, widest)
+            title = str(self.model.headerData(column, Qt.Orientation.Horizontal) or "")
+            width = max((header.fontMetrics().horizontalAdvance(line) for line in title.split("\n")), default=0)
+            for row in rows:
+                width = max(width, metrics.horizontalAdvance(self.model.cell_text(row, column)))
+            header.resizeSection(column, min(widest, width + padding))
 
     def _show_marks(self) -> None:
         intake = self._session.intake

@@ -79,8 +79,8 @@ OURS = r'''
 import sys, time
 sys.path.insert(0, sys.argv[2])
 from desktop.app import _application, start
+window = start([sys.argv[1]])  # as `twofold FILE`; nothing imports Qt before it does
 ''' + _PAINT_WATCH + r'''
-window = start([sys.argv[1]])
 grid = window.data_panel.grid
 watch = _FirstFilledPaint(grid, _application())
 grid.viewport().installEventFilter(watch)
