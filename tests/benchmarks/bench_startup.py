@@ -39,6 +39,8 @@ class _FirstFilledPaint(QObject):
         return False
     def report(self):
         print(f"PAINTED {time.time():.6f}", flush=True)
+        import sys
+        print("HEAVY " + ",".join(m for m in ("scipy.stats", "pyqtgraph") if m in sys.modules), flush=True)
         self.app.quit()
 '''
 
@@ -96,10 +98,17 @@ def _environment() -> dict[str, str]:
     return env
 
 
+_HEAVY_AT_PAINT: set[str] = set()
+
+
 def _launch(script: Path, path: Path, env: dict[str, str]) -> float:
     started = time.time()
     done = subprocess.run([sys.executable, str(script), str(path), str(ROOT)], capture_output=True,
                           text=True, timeout=120, env=env, cwd=tempfile.gettempdir())
+    if script.stem == "ours":
+        for line in done.stdout.splitlines():
+            if line.startswith("HEAVY ") and line[6:].strip():
+                _HEAVY_AT_PAINT.update(line[6:].strip().split(","))
     for line in done.stdout.splitlines():
         if line.startswith("PAINTED "):
             return float(line.split()[1]) - started
@@ -123,6 +132,7 @@ def startup(path: Path, runs: int) -> tuple[float, float]:
     print(f"  reference script  {ref:.3f} s   (all: {', '.join(f'{t:.3f}' for t in times['reference'])})")
     print(f"  twofold           {own:.3f} s   (all: {', '.join(f'{t:.3f}' for t in times['ours'])})")
     print(f"  ratio             {own / ref:.2f}x  (target at most 1.30x)")
+    print(f"  loaded by twofold's first paint: {', '.join(sorted(_HEAVY_AT_PAINT)) or 'neither scipy.stats nor pyqtgraph'}")
     return ref, own
 
 
