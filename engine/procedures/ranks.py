@@ -268,7 +268,7 @@ class _Matrix:
             size = 1_000_000
             sample = a[self.rng.integers(0, a.size, size)] + b[self.rng.integers(0, b.size, size)]
         else:
-            size = 200_000
+            size = 300_000
             picks = np.sort(self.rng.integers(0, in_play, size))
             ends = np.cumsum(counts)
             rows = np.searchsorted(ends, picks, side="right")
@@ -279,10 +279,10 @@ class _Matrix:
         p1, p2 = np.partition(sample, [i1, i2])[[i1, i2]]
         # rows counted exactly: every stride-th. Between two counted rows a count moves by
         # about stride * n2 / n1 columns, so the slack is near 2 * stride * n2 in all; keep it
-        # near a twentieth of the entries the round should leave. A round that fails to halve
-        # the entries in play is followed by exact counts.
-        stride = int(0.05 * 6 / math.sqrt(size) * in_play / (2 * b.size))
-        if p1 < p2 and stride >= 2 and not self.stalled:
+        # near half the entries the round should leave. A round that fails to halve the
+        # entries in play is followed by exact counts.
+        stride = int(0.5 * 6 / math.sqrt(size) * in_play / (2 * b.size))
+        if p1 < p2 and stride >= 8 and not self.stalled:
             return self._narrow_by_bounds(low, high, first, last, p1, p2, stride)
         if p1 < p2:
             bounds = [low, _row_counts(a, self.padded, p1, strict=False),
