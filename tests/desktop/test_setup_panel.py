@@ -108,3 +108,14 @@ def test_choosing_a_group_column_with_two_groups_picks_them(panel, session, csv_
     panel.group_column.activated.emit(panel.group_column.currentIndex())
     assert session.choices.group_column == "shift"
     assert session.choices.picked == ("x", "y")
+
+
+def test_tab_order_follows_the_form(panel):
+    order = [panel.long_radio, panel.group_column, panel.value_column, panel.first_group, panel.swap_button,
+             panel.second_group, panel.question, panel.confidence, panel.resamples]
+    chain, widget = [], panel.long_radio
+    for _ in range(60):
+        if widget in order and widget not in chain:
+            chain.append(widget)
+        widget = widget.nextInFocusChain()
+    assert chain == order
