@@ -9,6 +9,7 @@ from __future__ import annotations
 
 from PySide6.QtCore import QMimeData
 from PySide6.QtGui import QGuiApplication, QImage
+from PySide6.QtWidgets import QTextEdit
 
 __all__ = ["html_document", "findings_mime", "copy_findings_text", "copy_image"]
 
@@ -20,9 +21,23 @@ def html_document(fragment: str, *, title: str = "") -> str:
             f"<body>{fragment}</body></html>")
 
 
+def _qt_made_mime() -> QMimeData:
+    """An empty ``QMimeData`` that Qt itself created (and the clipboard may own outright).
+
+    A ``QMimeData`` made from Python and handed to the clipboard is freed twice when the program
+    ends (PySide6 6.12), which ends it with a crash; one made by Qt is not.
+    """
+    data = QTextEdit().createMimeDataFromSelection()
+    data.clear()
+    return data
+
+
 def findings_mime(html: str, plain: str) -> QMimeData:
-    """Clipboard data carrying ``html`` as text/html and ``plain`` as text/plain."""
-    data = QMimeData()
+    """Clipboard data carrying ``html`` as text/html and ``plain`` as text/plain.
+
+    Hand the result to the clipboard (which then owns it); it is not freed otherwise.
+    """
+    data = _qt_made_mime()
     data.setHtml(html_document(html))
     data.setText(plain)
     return data

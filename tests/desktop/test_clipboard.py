@@ -58,7 +58,7 @@ def ready_panel(qtbot):
     panel.cleanup()
 
 
-def test_mime_data_carries_both_formats():
+def test_mime_data_carries_both_formats(qapp):
     data = clipboard.findings_mime("<table><tr><td>1.5</td></tr></table>", "1.5")
     assert data.hasHtml() and data.hasText()
     assert "<table>" in data.html() and data.html().startswith("<!DOCTYPE html>")
@@ -98,3 +98,25 @@ def test_nothing_is_copied_before_an_analysis(qtbot):
     panel.copy_findings()
     panel.copy_plot()
     assert QApplication.clipboard().text() == "untouched"
+
+
+def test_the_program_ends_cleanly_with_findings_on_the_clipboard(tmp_path):
+    # Python-made clipboard data made PySide6 6.12 crash when the interpreter ended; the copy
+    # must leave the process able to exit with status 0.
+    import subprocess
+    import sys
+    from pathlib import Path
+
+    script = tmp_path / "copy_then_exit.py"
+    script.write_text(
+        "import os\n"
+        "os.environ['QT_QPA_PLATFORM'] = 'offscreen'\n"
+        "from PySide6.QtWidgets import QApplication\n"
+        "app = QApplication([])\n"
+        "from desktop import clipboard\n"
+        "clipboard.copy_findings_text('<table><tr><td>1.5</td></tr></table>', '1.5')\n"
+        "assert QApplication.clipboard().mimeData().hasHtml()\n", encoding="utf-8")
+    root = Path(__file__).resolve().parents[2]
+    done = subprocess.run([sys.executable, str(script)], cwd=root, capture_output=True, timeout=60,
+                          env={**os.environ, "PYTHONPATH": str(root)})
+    assert done.returncode == 0, done.stderr.decode(errors="replace")[-500:]
