@@ -14,6 +14,8 @@ from PySide6.QtCore import Qt, Signal
 from PySide6.QtGui import QColor, QPalette
 from PySide6.QtWidgets import QFrame, QHBoxLayout, QLabel, QStyle, QToolButton, QWidget
 
+from .table_model import blend
+
 __all__ = ["Message", "MESSAGES", "message_text", "MessageBar"]
 
 
@@ -67,12 +69,6 @@ _ICONS = {
     "warning": QStyle.StandardPixmap.SP_MessageBoxWarning,
     "error": QStyle.StandardPixmap.SP_MessageBoxCritical,
 }
-
-
-def _mix(base: QColor, tint: QColor, amount: float) -> QColor:
-    return QColor(round(base.red() + (tint.red() - base.red()) * amount),
-                  round(base.green() + (tint.green() - base.green()) * amount),
-                  round(base.blue() + (tint.blue() - base.blue()) * amount))
 
 
 class MessageBar(QFrame):
@@ -138,5 +134,5 @@ class MessageBar(QFrame):
             palette.color(QPalette.ColorRole.Base)
         role = _TINTS[level]
         tint = palette.color(role) if role is not None else _HUES[level]
-        palette.setColor(QPalette.ColorRole.Window, _mix(base, tint, 0.22))
+        palette.setColor(QPalette.ColorRole.Window, blend(base, tint, 0.22))
         self.setPalette(palette)

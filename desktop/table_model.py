@@ -17,7 +17,7 @@ import pandas as pd
 from PySide6.QtCore import QAbstractTableModel, QModelIndex, QPersistentModelIndex, Qt
 from PySide6.QtGui import QColor, QFont, QGuiApplication, QPalette
 
-__all__ = ["FrameModel", "KIND_WORDS", "MARK_EXCLUDED", "MARK_SET_ASIDE", "format_cell"]
+__all__ = ["FrameModel", "KIND_WORDS", "MARK_EXCLUDED", "MARK_SET_ASIDE", "format_cell", "blend"]
 
 MARK_EXCLUDED = "excluded"
 MARK_SET_ASIDE = "set aside"
@@ -54,7 +54,8 @@ def _column_store(series: pd.Series) -> Any:
     return series.array
 
 
-def _mix(base: QColor, tint: QColor, amount: float) -> QColor:
+def blend(base: QColor, tint: QColor, amount: float) -> QColor:
+    """``base`` moved ``amount`` (0 to 1) of the way towards ``tint``: a theme colour, tinted."""
     return QColor(round(base.red() + (tint.red() - base.red()) * amount),
                   round(base.green() + (tint.green() - base.green()) * amount),
                   round(base.blue() + (tint.blue() - base.blue()) * amount))
@@ -176,7 +177,7 @@ class FrameModel(QAbstractTableModel):
         if role == Qt.ItemDataRole.BackgroundRole:
             tint = palette.color(QPalette.ColorRole.Highlight) if kind == MARK_SET_ASIDE else \
                 palette.color(QPalette.ColorRole.Text)
-            return _mix(palette.color(QPalette.ColorRole.Base), tint, 0.28 if kind == MARK_SET_ASIDE else 0.12)
+            return blend(palette.color(QPalette.ColorRole.Base), tint, 0.28 if kind == MARK_SET_ASIDE else 0.12)
         if role == Qt.ItemDataRole.ForegroundRole:
             return palette.color(QPalette.ColorRole.PlaceholderText) if kind == MARK_EXCLUDED else None
         font = QFont()
