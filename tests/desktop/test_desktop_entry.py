@@ -142,3 +142,21 @@ def test_windows_registry_entries():
 def test_windows_command_line_quotes_only_what_needs_it():
     assert windows_command_line([r"C:\tf\twofold.exe"]) == r'C:\tf\twofold.exe "%1"'
     assert windows_command_line([r"C:\a b\py.exe", "-c", 'x = "1"']) == r'"C:\a b\py.exe" -c "x = \"1\"" "%1"'
+
+
+def test_install_picks_the_system(monkeypatch, tmp_path):
+    monkeypatch.setattr(desktop_entry.sys, "platform", "win32")
+    written = []
+    monkeypatch.setattr(desktop_entry, "install_windows", lambda: written.append("registry") or "HKCU")
+    assert desktop_entry.install() == "HKCU" and written == ["registry"]
+    monkeypatch.setattr(desktop_entry.sys, "platform", "darwin")
+    with pytest.raises(OSError, match="Open With"):
+        desktop_entry.install()
+
+
+def test_main_reports_a_failed_registration(monkeypatch, capsys):
+    from desktop.app import main
+
+    monkeypatch.setattr(desktop_entry.sys, "platform", "darwin")
+    assert main(["--install-desktop-entry"]) == 1
+    assert "Open With" in capsys.readouterr().err
