@@ -118,6 +118,7 @@ class FindingsPanel(QWidget):
             buttons.addWidget(button)
         layout.addLayout(buttons)
         self.status = text_label()
+        self.status.setVisible(False)  # until a save or export from here reports how it went
         layout.addWidget(self.status)
 
         self.headline = text_label()
@@ -334,6 +335,7 @@ class FindingsPanel(QWidget):
             self.status.setText(error.message)
         else:
             self.status.setText(f"Saved {Path(written).name}.")
+        self.status.setVisible(True)
 
 
 def _agreement_text(robustness) -> str:
