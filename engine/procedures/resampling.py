@@ -289,8 +289,10 @@ def _mean_shift_interval(pool: _Pool, null: np.ndarray, own: np.ndarray, observe
             low, high = np.full(null.size, -np.inf), -a / (1 - c)
     same = own == n1  # the observed labelling itself: always as extreme as itself
     low[same], high[same] = -np.inf, np.inf
+    # reject when p <= alpha; alpha = 1 - level carries rounding (1 - 0.9 < 0.1), so allow it
+    limit = alpha + 1e-12
     needed = max(0, int(alpha * denominator) - extra - 1)
-    while (extra + needed) / denominator <= alpha:
+    while (extra + needed) / denominator <= limit:
         needed += 1
     return _accepted_shifts(low, high, needed)
 

@@ -179,17 +179,19 @@ def _p_at_shift(x, y, shift, alternative, n_resamples, seed):
 
 
 @pytest.mark.parametrize("alternative", ALTERNATIVES)
-@pytest.mark.parametrize("n1, n2, n_resamples", [(25, 35, 4_000), (5, 6, 1_000)])
+@pytest.mark.parametrize("n1, n2, n_resamples", [(25, 35, 4_000), (5, 6, 1_000), (40, 25, 3_000),
+                                                  (6, 4, 1_000)])
 def test_interval_limits_are_where_the_test_changes_its_answer(alternative, n1, n2,
                                                                 n_resamples):
     # reference: the test itself, re-run on x - d against y with the same relabellings: just
-    # inside a limit the p-value exceeds alpha, just outside it does not. (5, 6) is exact.
+    # inside a limit the p-value exceeds alpha, just outside it does not. (5, 6) and (6, 4) are
+    # exact; (40, 25) and (6, 4) have the larger group first.
     rng = np.random.default_rng(n1)
     x, y = rng.normal(1.0, 1, n1), rng.normal(0, 1, n2)
     level, alpha = 0.9, 0.1
     result = permutation_test(x, y, alternative=alternative, confidence_level=level,
                               n_resamples=n_resamples, rng=np.random.default_rng(1))
-    assert result.details["exact"] == (n1 == 5)
+    assert result.details["exact"] == (n1 + n2 < 12)
     eps = 1e-7 * np.ptp(np.concatenate((x, y)))
     limits = []
     if result.interval.low is not None:
