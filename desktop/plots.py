@@ -9,7 +9,6 @@ This module is the only one in the program that imports pyqtgraph.
 from __future__ import annotations
 
 import math
-import sys
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Sequence
@@ -38,29 +37,6 @@ __all__ = [
     "plot_image",
     "save_plot",
 ]
-
-def _keep_singletons_alive() -> None:
-    """Shield None, True and False from a reference-count fault of PySide6 6.12 on Python 3.11.
-
-    That binding drops one reference to None on every call of a Qt method that returns nothing
-    (and to True/False in some overrides), as if these objects were immortal, which they are only
-    from Python 3.12 on. A plotting window makes such calls thousands of times a second, and
-    the interpreter aborts when a count reaches zero. Adding a very large count makes them
-    effectively immortal, which is what the binding assumes; they are never freed anyway.
-    """
-    if sys.version_info >= (3, 12) or sys.implementation.name != "cpython":
-        return
-    import ctypes
-
-    import PySide6
-
-    if tuple(int(part) for part in PySide6.__version__.split(".")[:2]) < (6, 12):
-        return
-    for singleton in (None, True, False):
-        ctypes.c_ssize_t.from_address(id(singleton)).value += 1 << 40
-
-
-_keep_singletons_alive()
 
 MAX_POINTS = 2000
 _MAX_BINS = 80

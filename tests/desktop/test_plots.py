@@ -158,9 +158,9 @@ def test_save_png_and_svg_and_refuse_other_suffixes(qtbot, tmp_path):
 
 
 def test_many_qt_calls_leave_none_alive(qtbot):
-    # PySide6 6.12 on Python 3.11 drops a reference to None on each call of a Qt method that
-    # returns nothing; importing desktop.plots shields None, True and False. Without the shield
-    # this loop ends the interpreter ("deallocating None").
+    # PySide6 6.12.0 on Python 3.11 drops a reference to None on each call of a Qt method that
+    # returns nothing, and this loop then ends the interpreter ("deallocating None");
+    # pyproject.toml keeps that release out. This guards against a binding with the fault.
     plot = plots.ThemedPlot()
     qtbot.addWidget(plot)
     for _ in range(200_000):
