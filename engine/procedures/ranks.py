@@ -285,17 +285,16 @@ class _Matrix:
         if p1 < p2 and stride >= 8 and not self.stalled:
             return self._narrow_by_bounds(low, high, first, last, p1, p2, stride)
         if p1 < p2:
-            bounds = [low, _row_counts(a, self.padded, p1, strict=False),
-                      _row_counts(a, self.padded, p2, strict=True), high]
+            vectors = (_row_counts(a, self.padded, p1, strict=False),
+                       _row_counts(a, self.padded, p2, strict=True))
         else:
-            lt = _row_counts(a, self.padded, p1, strict=True)
-            le = _row_counts(a, self.padded, p1, strict=False)
-            if lt.sum() <= first and last < le.sum():
+            vectors = (_row_counts(a, self.padded, p1, strict=True),
+                       _row_counts(a, self.padded, p1, strict=False))
+            if vectors[0].sum() <= first and last < vectors[1].sum():
                 return low, high, float(p1)  # every wanted rank falls on entries equal to p1
-            bounds = [low, lt, le, high]
         # a count vector whose total is <= first leaves only entries below every wanted rank on
         # its left; one whose total is > last only entries above them on its right
-        for counted in bounds[1:-1]:
+        for counted in vectors:
             total = int(counted.sum())
             if total <= first:
                 low = np.maximum(low, counted)
