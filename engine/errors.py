@@ -21,6 +21,9 @@ class TwofoldError(Exception):
     """
 
     def __init__(self, message: str) -> None:
+        # Labels and cell texts quoted in a message may hold line breaks; the message stays one
+        # line, with each break written as \n.
+        message = message.replace("\r\n", "\\n").replace("\n", "\\n").replace("\r", "\\n")
         super().__init__(message)
         self.message = message
 
