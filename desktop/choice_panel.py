@@ -469,7 +469,7 @@ def _shape_figures(shape) -> list[tuple[str, str]]:
     if shape.shapiro_w is None:
         shapiro = "Shapiro-Wilk: not run"
     else:
-        shapiro = f"Shapiro-Wilk W = {fmt(shape.shapiro_w)}, p = {report.format_p(shape.shapiro_p)}"
+        shapiro = f"Shapiro-Wilk W = {fmt(shape.shapiro_w)}, {report.p_clause(shape.shapiro_p)}"
     return [
         (shapiro, CHECK_TIPS["shapiro"]),
         (f"skewness {fmt(shape.skewness, digits=2)}", CHECK_TIPS["skewness"]),
@@ -483,8 +483,8 @@ def _spread_figures(spread) -> list[tuple[str, str]]:
     fmt = report.format_number
     return [
         (f"SD ratio {fmt(spread.sd_ratio, digits=2)}", CHECK_TIPS["sd_ratio"]),
-        (f"Levene p = {report.format_p(spread.levene_p)}", CHECK_TIPS["levene"]),
-        (f"Brown-Forsythe p = {report.format_p(spread.brown_forsythe_p)}", CHECK_TIPS["brown_forsythe"]),
+        (f"Levene {report.p_clause(spread.levene_p)}", CHECK_TIPS["levene"]),
+        (f"Brown-Forsythe {report.p_clause(spread.brown_forsythe_p)}", CHECK_TIPS["brown_forsythe"]),
         (f"size ratio {fmt(spread.n_ratio, digits=2)}", CHECK_TIPS["n_ratio"]),
     ]
 

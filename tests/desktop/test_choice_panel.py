@@ -51,7 +51,7 @@ def test_shape_figures_match_scipy(panel, groups):
         figures = _figures(panel.shape_cards[index])
         # reference: scipy.stats.shapiro(values)
         w, p = stats.shapiro(values)
-        assert figures[0] == f"Shapiro-Wilk W = {report.format_number(w)}, p = {report.format_p(p)}"
+        assert figures[0] == f"Shapiro-Wilk W = {report.format_number(w)}, {report.p_clause(p)}"
         # reference: scipy.stats.skew(values, bias=False), the adjusted Fisher-Pearson G1
         assert figures[1] == f"skewness {report.format_number(stats.skew(values, bias=False), digits=2)}"
         # reference: scipy.stats.kurtosis(values, bias=False), the adjusted excess kurtosis G2
@@ -65,10 +65,27 @@ def test_spread_figures_match_scipy(panel, groups):
     # reference: scipy.stats.levene(x, y, center="mean") and center="median" (Brown-Forsythe)
     levene = stats.levene(groups.x, groups.y, center="mean")
     brown_forsythe = stats.levene(groups.x, groups.y, center="median")
-    assert f"Levene p = {report.format_p(levene.pvalue)}" in figures
-    assert f"Brown-Forsythe p = {report.format_p(brown_forsythe.pvalue)}" in figures
+    assert f"Levene {report.p_clause(levene.pvalue)}" in figures
+    assert f"Brown-Forsythe {report.p_clause(brown_forsythe.pvalue)}" in figures
     sds = sorted([np.std(groups.x, ddof=1), np.std(groups.y, ddof=1)])
     assert f"SD ratio {report.format_number(sds[1] / sds[0], digits=2)}" in figures
+
+
+def test_tiny_p_values_read_p_below_a_thousandth(qtbot):
+    rng = np.random.default_rng(5)
+    skewed = Groups(("batch old", "batch new"), rng.normal(10.0, 0.5, 200), rng.exponential(8.0, 200))
+    session = Session()
+    widget = ChoicePanel(session)
+    qtbot.addWidget(widget)
+    session.store("analysis", analyze(skewed, Options(n_resamples=200, seed=1)))
+    # reference: scipy.stats.shapiro(y) and scipy.stats.levene(x, y, center="mean") are both
+    # below 0.001 for these data, checked here so the test cannot pass by accident
+    assert stats.shapiro(skewed.y).pvalue < 0.001
+    assert stats.levene(skewed.x, skewed.y, center="mean").pvalue < 0.001
+    shown = _figures(widget.shape_cards[1]) + _figures(widget.spread_card)
+    assert shown[0].endswith(", p < 0.001")
+    assert "Levene p < 0.001" in shown
+    assert not any("p = <" in text for text in shown)
 
 
 def test_each_card_leads_with_its_most_severe_finding(panel):
