@@ -27,7 +27,7 @@ from .choice_panel import FlowLayout, heading, hint_and_body, text_label
 from .icons import icon
 from .plots import BoxPlot, IntervalPlot, document_palette, plot_image, save_plot
 
-__all__ = ["FindingsPanel", "GENERAL_CAUTIONS", "STATISTIC_TIPS", "display_numbers", "effect_for"]
+__all__ = ["FindingsPanel", "GENERAL_CAUTIONS", "STATISTIC_TIPS"]
 
 # Shown after the suggestion's own cautions (which already cover p-values, passing checks and
 # regulated work).
@@ -61,21 +61,6 @@ STATISTIC_TIPS = {
 }
 
 _HINT = "Pick the columns and the two groups; the findings appear here."
-
-
-def display_numbers(analysis, key: str):
-    """The report's own display strings for procedure ``key`` (estimate, interval, statistic,
-    df, p, Monte Carlo error, effect size), so the table reads exactly as the paragraph and the
-    copied text. ``engine.report`` keeps them under a private name for now."""
-    return report._numbers(analysis, key, analysis.procedures[key])  # noqa: SLF001
-
-
-def effect_for(analysis, key: str):
-    """The effect size the report pairs with procedure ``key`` (None if none was computed)."""
-    for name in report.EFFECT_FOR.get(key, ()):
-        if name in analysis.effect_sizes:
-            return analysis.effect_sizes[name]
-    return None
 
 
 class FindingsPanel(QWidget):
@@ -224,8 +209,7 @@ class FindingsPanel(QWidget):
     def _fill_table(self, analysis, result) -> None:
         labels = analysis.groups.labels
         level = export.level_text(analysis.options.confidence_level)
-        effect = effect_for(analysis, result.key)
-        shown = display_numbers(analysis, result.key)
+        shown = report.display_numbers(analysis, result.key)
         missing = report.NOT_AVAILABLE
         rows = [
             (f"{result.estimate_name[:1].upper()}{result.estimate_name[1:]} ({labels[0]} minus {labels[1]})",
@@ -237,9 +221,9 @@ class FindingsPanel(QWidget):
         ]
         if shown.mc_se is not None:
             rows.append(("Monte Carlo error of p", shown.mc_se, "", STATISTIC_TIPS["mc_se"]))
-        if effect is not None:
-            rows.append((effect.name[:1].upper() + effect.name[1:], shown.effect or missing,
-                         shown.effect_interval or "", STATISTIC_TIPS.get(effect.key, "")))
+        if shown.effect_name is not None:
+            rows.append((shown.effect_name[:1].upper() + shown.effect_name[1:], shown.effect or missing,
+                         shown.effect_interval or "", STATISTIC_TIPS.get(shown.effect_key, "")))
         self.table.setHorizontalHeaderLabels(["", "Value", f"{level} interval"])
         self.table.setRowCount(len(rows))
         for row, (what, value, interval, tip) in enumerate(rows):

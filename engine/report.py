@@ -10,7 +10,8 @@ import math
 import textwrap
 from dataclasses import dataclass
 
-__all__ = ["ReportText", "render", "format_p", "format_number", "format_interval", "p_clause"]
+__all__ = ["ReportText", "DisplayNumbers", "render", "display_numbers", "format_p", "format_number",
+           "format_interval", "p_clause"]
 
 # Below this a p-value is written as "< 0.001" (common practice in journals).
 P_FLOOR = 0.001
@@ -162,8 +163,13 @@ CAUTION_LINE = ("A p-value is not the size of an effect; a check that passes doe
 
 
 @dataclass(frozen=True)
-class _Numbers:
-    """The display strings of one procedure's result, shared by the paragraph and the tables."""
+class DisplayNumbers:
+    """The display strings of one procedure's result, shared by the paragraph and the tables.
+
+    ``effect_key`` and ``effect_name`` name the effect size paired with the procedure (None
+    when none was computed); ``decimals`` is shared by the estimate, its interval and the group
+    summaries (None: each in scientific notation).
+    """
 
     level: str
     estimate: str
@@ -172,10 +178,11 @@ class _Numbers:
     df: str | None
     p: str | None
     mc_se: str | None
+    effect_key: str | None
     effect_name: str | None
     effect: str | None
     effect_interval: str | None
-    decimals: int | None  # shared by the estimate, its interval and the group summaries
+    decimals: int | None
 
 
 def _level(level: float) -> str:
@@ -263,13 +270,53 @@ def _effect_for(analysis, key: str):
     return None
 
 
-def _numbers(analysis, key: str, result) -> _Numbers:
+def display_numbers(analysis, procedure: str | None = None) -> DisplayNumbers:
+    """The figures of one procedure's result as the report writes them.
+
+    Parameters
+    ----------
+    analysis : engine.analysis.Analysis
+        The finished analysis.
+    procedure : str or None, optional
+        A procedure key; None takes the recommended one.
+
+    Returns
+    -------
+    DisplayNumbers
+        The confidence level, the estimate, its interval, the test statistic, degrees of
+        freedom, p-value, Monte Carlo error and the paired effect size with its interval, each as
+        text (None where the procedure gives none), exactly as in :func:`render`'s paragraph and
+        tables, so that a window showing them reads the same as the copied report.
+
+    Raises
+    ------
+    engine.errors.OptionProblem
+        When ``procedure`` was not run for these data.
+
+    Notes
+    -----
+    The estimate and both interval ends share one number of decimals: enough to show the largest
+    of them to three significant digits. Standardised effect sizes get two decimals, more (up to
+    four) while the two ends of their interval would otherwise read alike. p-values follow
+    :func:`format_p`.
+
+    References
+    ----------
+    American Psychological Association (2020). Publication Manual, 7th ed., chapter 6 (numbers
+    and statistics in text).
+    """
+    key = procedure or analysis.recommendation.key
+    _check_procedure(analysis, key)
+    return _numbers(analysis, key, analysis.procedures[key])
+
+
+def _numbers(analysis, key: str, result) -> DisplayNumbers:
     interval = result.interval
     ends = [result.estimate] + ([interval.low, interval.high] if interval is not None else [])
     decimals = _decimals_shared(ends)
     effect = _effect_for(analysis, key)
     effect_decimals = EFFECT_DECIMALS if effect is None else _effect_decimals(effect)
-    return _Numbers(
+    return DisplayNumbers(
         level=_level(interval.level if interval is not None else analysis.options.confidence_level),
         estimate=_fixed(result.estimate, decimals),
         interval=format_interval(interval, decimals=decimals),
@@ -278,6 +325,7 @@ def _numbers(analysis, key: str, result) -> _Numbers:
         p=None if result.p_value is None else format_p(result.p_value),
         mc_se=(None if result.mc_standard_error is None
                else format_number(result.mc_standard_error, digits=2)),
+        effect_key=None if effect is None else effect.key,
         effect_name=None if effect is None else effect.name,
         effect=None if effect is None else _fixed(effect.value, effect_decimals),
         effect_interval=None if effect is None else format_interval(effect.interval,
@@ -295,7 +343,7 @@ def _measure(analysis) -> str:
     return ""
 
 
-def _interval_phrase(numbers: _Numbers, alternative: str, prefix: str = "") -> str:
+def _interval_phrase(numbers: DisplayNumbers, alternative: str, prefix: str = "") -> str:
     if numbers.interval is None:
         return "no confidence interval"
     sided = "one-sided " if alternative != "two-sided" else ""
@@ -341,7 +389,7 @@ def _direction(analysis, key: str, estimate: float, result_decimals: int | None)
     return f"The {quantity} of {a} was the same as that of {b}"
 
 
-def _test_phrase(analysis, key: str, result, numbers: _Numbers) -> str:
+def _test_phrase(analysis, key: str, result, numbers: DisplayNumbers) -> str:
     """ "Welch t(52.3) = 2.84, p = 0.006" and its kin."""
     alternative = result.alternative
     first, second = analysis.groups.labels
@@ -392,7 +440,7 @@ def _exclusions(analysis) -> str:
     return f"{total:,} {verb} left out before the comparison ({detail})."
 
 
-def _paragraph(analysis, key: str, result, numbers: _Numbers) -> str:
+def _paragraph(analysis, key: str, result, numbers: DisplayNumbers) -> str:
     opening = _direction(analysis, key, result.estimate, numbers.decimals)
     estimate_name = result.estimate_name
     prefix = "bootstrap " if key.startswith("bootstrap") else ""
@@ -419,7 +467,7 @@ def _paragraph(analysis, key: str, result, numbers: _Numbers) -> str:
     return " ".join(sentences)
 
 
-def _result_rows(analysis, key: str, result, numbers: _Numbers) -> list[tuple[str, str]]:
+def _result_rows(analysis, key: str, result, numbers: DisplayNumbers) -> list[tuple[str, str]]:
     sided = "one-sided " if result.alternative != "two-sided" else ""
     rows = [("Procedure", result.name),
             (result.estimate_name[:1].upper() + result.estimate_name[1:], numbers.estimate)]

@@ -16,7 +16,7 @@ from engine.analysis import Options, analyze  # noqa: E402
 from engine.errors import FileProblem  # noqa: E402
 from engine.results import Groups  # noqa: E402
 from engine.session import Session  # noqa: E402
-from desktop.findings_panel import FindingsPanel, display_numbers  # noqa: E402
+from desktop.findings_panel import FindingsPanel  # noqa: E402
 
 
 @pytest.fixture
@@ -55,7 +55,7 @@ def test_headline_and_table_show_the_engines_welch_numbers(panel, analysis, grou
     assert panel.procedure_key() == analysis.recommendation.key == "welch_t"
     assert panel.headline.text() == report.render(analysis).paragraph
     cells = _cells(panel)
-    shown = display_numbers(analysis, "welch_t")
+    shown = report.display_numbers(analysis, "welch_t")
     plain = report.render(analysis).plain
     # the table reads exactly as the copied text
     assert (cells[0][1], cells[0][2], cells[3][1]) == (shown.estimate, shown.interval, shown.p)

@@ -265,6 +265,29 @@ def test_a_procedure_that_was_not_run_is_refused_with_a_sentence(groups):
         render(_analysis(groups), procedure="bootstrap_median")
 
 
+def test_display_numbers_are_the_figures_of_the_paragraph(groups):
+    analysis = _analysis(groups, extra=_resampled())
+    # reference: scipy.stats.ttest_ind(x, y, equal_var=False) and its confidence_interval(0.95)
+    expected = stats.ttest_ind(groups.x, groups.y, equal_var=False)
+    ci = expected.confidence_interval(0.95)
+    shown = report.display_numbers(analysis)  # the suggested procedure: Welch here
+    assert analysis.recommendation.key == "welch_t"
+    ends = (groups.x.mean() - groups.y.mean(), ci.low, ci.high)
+    assert shown.estimate == _shown(ends[0], *ends)
+    assert shown.interval == f"{_shown(ci.low, *ends)} to {_shown(ci.high, *ends)}"
+    assert shown.statistic == f"{expected.statistic:.2f}" and shown.df == f"{expected.df:.1f}"
+    assert shown.p == format_p(expected.pvalue) and shown.level == "95%"
+    assert (shown.effect_key, shown.effect, shown.effect_interval) == ("hedges_g", "0.66", "0.19 to 1.13")
+    paragraph = render(analysis).paragraph
+    for text in (shown.estimate, shown.interval, shown.statistic, shown.df, shown.p):
+        assert text in paragraph
+    ranks = report.display_numbers(analysis, "mann_whitney")
+    assert (ranks.statistic, ranks.effect_key, ranks.mc_se) == ("1032.5", "rank_biserial", None)
+    assert report.display_numbers(analysis, "permutation_mean").mc_se == "0.00065"
+    with pytest.raises(OptionProblem, match="bootstrap_median.*not run"):
+        report.display_numbers(analysis, "bootstrap_median")
+
+
 # -- HTML and plain text --------------------------------------------------------------------------
 
 @pytest.mark.parametrize("key", ["welch_t", "mann_whitney", "permutation_mean", "bootstrap_mean"])
