@@ -24,7 +24,7 @@ from engine import report
 
 from .plots import BoxPlot, QQPlot, ShapePlot
 
-__all__ = ["ChoicePanel", "CHECK_TIPS", "FlowLayout", "heading", "hint_and_body", "main_reading",
+__all__ = ["ChoicePanel", "CHECK_TIPS", "FlowLayout", "disclosure_button", "heading", "hint_and_body", "main_reading",
            "text_label"]
 
 _SEVERITY_RANK = {"info": 0, "note": 1, "warning": 2}
@@ -100,6 +100,23 @@ def hint_and_body(panel: QWidget, hint: str) -> tuple[QLabel, QScrollArea, QVBox
     body = QWidget()
     scroll.setWidget(body)
     return label, scroll, QVBoxLayout(body)
+
+
+def disclosure_button(text: str, shows: QWidget) -> QToolButton:
+    """A button with an arrow that shows ``shows`` while pressed in (hidden at first)."""
+    button = QToolButton()
+    button.setCheckable(True)
+    button.setText(text)
+    button.setToolButtonStyle(Qt.ToolButtonStyle.ToolButtonTextBesideIcon)
+    button.setArrowType(Qt.ArrowType.RightArrow)
+    shows.setVisible(False)
+
+    def toggle(shown: bool) -> None:
+        shows.setVisible(shown)
+        button.setArrowType(Qt.ArrowType.DownArrow if shown else Qt.ArrowType.RightArrow)
+
+    button.toggled.connect(toggle)
+    return button
 
 
 class FlowLayout(QLayout):
@@ -181,15 +198,9 @@ class _CheckCard(QFrame):
         font.setBold(True)
         self.reading.setFont(font)
         layout.addWidget(self.reading)
-        self.more_button = QToolButton()
-        self.more_button.setCheckable(True)
-        self.more_button.setText("All the checks in this part")
-        self.more_button.setToolButtonStyle(Qt.ToolButtonStyle.ToolButtonTextBesideIcon)
-        self.more_button.setArrowType(Qt.ArrowType.RightArrow)
-        self.more_button.toggled.connect(self._toggle)
-        layout.addWidget(self.more_button)
         self.more = text_label()
-        self.more.setVisible(False)
+        self.more_button = disclosure_button("All the checks in this part", self.more)
+        layout.addWidget(self.more_button)
         layout.addWidget(self.more)
 
     def resizeEvent(self, event) -> None:  # noqa: N802 - Qt's name
@@ -198,10 +209,6 @@ class _CheckCard(QFrame):
         wide = event.size().width() >= 300 * self._plot_count
         self.plot_row.setDirection(QBoxLayout.Direction.LeftToRight if wide
                                    else QBoxLayout.Direction.TopToBottom)
-
-    def _toggle(self, shown: bool) -> None:
-        self.more.setVisible(shown)
-        self.more_button.setArrowType(Qt.ArrowType.DownArrow if shown else Qt.ArrowType.RightArrow)
 
     def show_figures(self, figures: list[tuple[str, str]]) -> None:
         while self.figures.count():
@@ -282,13 +289,6 @@ class ChoicePanel(QWidget):
         self.ordinal.toggled.connect(self._ordinal_toggled)
         known_layout.addWidget(self.equal_spread)
         known_layout.addWidget(self.ordinal)
-        self.advanced_button = QToolButton()
-        self.advanced_button.setCheckable(True)
-        self.advanced_button.setText("Advanced: known population SDs")
-        self.advanced_button.setToolButtonStyle(Qt.ToolButtonStyle.ToolButtonTextBesideIcon)
-        self.advanced_button.setArrowType(Qt.ArrowType.RightArrow)
-        self.advanced_button.toggled.connect(self._advanced_toggled)
-        known_layout.addWidget(self.advanced_button)
         self.sd_box = QGroupBox("Use the z procedure with these SDs")
         self.sd_box.setCheckable(True)
         self.sd_box.setToolTip("Only when the true standard deviation of each group is known from "
@@ -308,7 +308,8 @@ class ChoicePanel(QWidget):
         self.sd_apply.clicked.connect(self._apply_sd)
         self.sd_message = text_label()
         sd_form.addRow(self.sd_apply, self.sd_message)
-        self.sd_box.setVisible(False)
+        self.advanced_button = disclosure_button("Advanced: known population SDs", self.sd_box)
+        known_layout.addWidget(self.advanced_button)
         known_layout.addWidget(self.sd_box)
         layout.addWidget(known)
         layout.addStretch(1)
@@ -432,10 +433,6 @@ class ChoicePanel(QWidget):
     def _ordinal_toggled(self, checked: bool) -> None:
         if not self._syncing:
             self.session.choose(ordinal=checked)
-
-    def _advanced_toggled(self, shown: bool) -> None:
-        self.sd_box.setVisible(shown)
-        self.advanced_button.setArrowType(Qt.ArrowType.DownArrow if shown else Qt.ArrowType.RightArrow)
 
     def _sd_toggled(self, checked: bool) -> None:
         if self._syncing:
