@@ -158,9 +158,12 @@ def analyze(
         report(fraction, what)
 
     common = dict(alternative=options.alternative, confidence_level=options.confidence_level)
-    summaries = (summarize(groups.labels[0], x), summarize(groups.labels[1], y))
+    # Each group is sorted once; the summaries, checks, rank test and effect sizes share the copies.
+    ordered = dict(sorted_x=np.sort(x), sorted_y=np.sort(y))
+    summaries = (summarize(groups.labels[0], x, ordered=ordered["sorted_x"]),
+                 summarize(groups.labels[1], y, ordered=ordered["sorted_y"]))
     step(0.02, "checking shape and spread")
-    checks = diagnostics.diagnose(groups)
+    checks = diagnostics.diagnose(groups, **ordered)
     procedures: dict[str, ProcedureResult] = {}
     step(0.08, "t procedures")
     procedures["welch_t"] = t.welch_t(x, y, **common)
@@ -169,7 +172,7 @@ def analyze(
         procedures["z"] = t.z_test(x, y, sd=options.known_sd, **common)
     step(0.12, "rank procedure")
     procedures["mann_whitney"] = ranks.mann_whitney(x, y, method=options.rank_method, **common,
-                                                    cancelled=stop)
+                                                    cancelled=stop, **ordered)
 
     rng = np.random.default_rng(options.seed)
     resampled = [
@@ -195,7 +198,7 @@ def analyze(
             cancelled=stop,
         )
     step(0.92, "effect sizes")
-    sizes = effects.all_effect_sizes(x, y, **common)
+    sizes = effects.all_effect_sizes(x, y, **common, **ordered)
     recommendation = advice.recommend(
         checks, groups, equal_spread_known=options.equal_spread_known, ordinal=options.ordinal,
         known_sd=options.known_sd,

@@ -17,6 +17,7 @@ from scipy import special, stats
 from .errors import DataProblem
 from .report import format_number, p_clause
 from .results import Finding, Groups, readonly_array
+from .summary import sorted_values
 
 __all__ = [
     "GroupShape",
@@ -313,11 +314,11 @@ def is_heavy_tailed(shape: GroupShape) -> bool:
                 and g2 > SKEW_SE_MULTIPLE * se and g2 > KURTOSIS_MATERIAL)
 
 
-def _shape(label: str, values: np.ndarray, index: int
+def _shape(label: str, values: np.ndarray, index: int, ordered: np.ndarray | None = None
            ) -> tuple[GroupShape, list[Finding], np.ndarray, float]:
     """The shape of one group, its findings, its sorted values and its median."""
     n = int(values.size)
-    ordered = np.sort(values)
+    ordered = sorted_values(values, ordered, name=f"group '{label}'")
     findings: list[Finding] = []
     name = f"Group '{label}'"
     lower = f"group '{label}'"
@@ -505,13 +506,17 @@ def _check_groups(groups: Groups) -> None:
             raise DataProblem(f"Group '{label}' has no values to check.")
 
 
-def diagnose(groups: Groups) -> Diagnostics:
+def diagnose(groups: Groups, *, sorted_x: np.ndarray | None = None,
+             sorted_y: np.ndarray | None = None) -> Diagnostics:
     """Describe the shape of each group, the spread of both, outliers and ties.
 
     Parameters
     ----------
     groups : engine.results.Groups
         The two clean samples (each at least one value).
+    sorted_x, sorted_y : numpy.ndarray, optional
+        ``np.sort(groups.x)`` and ``np.sort(groups.y)`` when the caller has them already; each
+        group is otherwise sorted here.
 
     Returns
     -------
@@ -539,8 +544,8 @@ def diagnose(groups: Groups) -> Diagnostics:
     Blom, G. (1958). Statistical Estimates and Transformed Beta-Variables. Wiley.
     """
     _check_groups(groups)
-    shape_x, found_x, x_sorted, x_median = _shape(groups.labels[0], groups.x, 0)
-    shape_y, found_y, y_sorted, y_median = _shape(groups.labels[1], groups.y, 1)
+    shape_x, found_x, x_sorted, x_median = _shape(groups.labels[0], groups.x, 0, sorted_x)
+    shape_y, found_y, y_sorted, y_median = _shape(groups.labels[1], groups.y, 1, sorted_y)
     spread = _spread(groups.x, groups.y, (x_median, y_median))
     pooled = _pooled_tie_share(x_sorted, y_sorted)
     findings = found_x + found_y + _spread_findings(spread, groups.labels)

@@ -16,9 +16,10 @@ from scipy import optimize, special, stats
 
 from .errors import DataProblem
 from .procedures._checks import check_alternative, check_confidence_level, check_samples
+from .procedures.ranks import pair_counts
 from .procedures.t import mean_difference
 from .results import EffectSize, Interval
-from .summary import centred_variance
+from .summary import centred_variance, sorted_values
 
 __all__ = [
     "cohen_d",
@@ -35,9 +36,11 @@ __all__ = [
 class _Pair:
     """Two checked samples and the summaries the effect sizes share, each computed once."""
 
-    def __init__(self, x: np.ndarray, y: np.ndarray) -> None:
+    def __init__(self, x: np.ndarray, y: np.ndarray, sorted_x: np.ndarray | None = None,
+                 sorted_y: np.ndarray | None = None) -> None:
         self.x, self.y = x, y
         self.n1, self.n2 = x.size, y.size
+        self.sorted_x, self.sorted_y = sorted_x, sorted_y
 
     @cached_property
     def variances(self) -> tuple[float, float]:
@@ -49,12 +52,13 @@ class _Pair:
 
     @cached_property
     def u1(self) -> float:
-        return mann_whitney_u1(self.x, self.y)
+        return mann_whitney_u1(self.x, self.y, sorted_x=self.sorted_x, sorted_y=self.sorted_y)
 
 
-def _prepare(x: Any, y: Any, confidence_level: Any, alternative: Any):
+def _prepare(x: Any, y: Any, confidence_level: Any, alternative: Any, sorted_x=None, sorted_y=None):
     x, y = check_samples(x, y)
-    return _Pair(x, y), check_confidence_level(confidence_level), check_alternative(alternative)
+    return (_Pair(x, y, sorted_x, sorted_y), check_confidence_level(confidence_level),
+            check_alternative(alternative))
 
 
 def _tail(level: float, alternative: str) -> float:
@@ -281,24 +285,27 @@ def _glass(pair: _Pair, level: float, alternative: str) -> EffectSize:
 
 # ---------------------------------------------------------------------------- rank-based
 
-def mann_whitney_u1(x: np.ndarray, y: np.ndarray) -> float:
+def mann_whitney_u1(x: np.ndarray, y: np.ndarray, *, sorted_x: np.ndarray | None = None,
+                    sorted_y: np.ndarray | None = None) -> float:
     """U1 = #{(i, j): x_i > y_j} + 0.5 #{(i, j): x_i = y_j}, by sorting (O(n log n)).
+
+    ``sorted_x`` and ``sorted_y``, if given, are ``np.sort(x)`` and ``np.sort(y)``.
 
     Notes
     -----
-    With both samples sorted, searchsorted gives for each x_i the number of y below it and the
-    number tied with it; no n1 x n2 comparison table is formed. (Sorting x too makes the
-    searches walk y in order, which is several times faster for large samples.)
+    With both samples sorted, a binary search gives for each x_i the number of y below it and
+    the number tied with it (:func:`engine.procedures.ranks.pair_counts`); no n1 x n2
+    comparison table is formed. (Sorting x too makes the searches walk y in order, which is
+    several times faster for large samples.)
 
     References
     ----------
     Mann, H. B. and Whitney, D. R. (1947). On a test of whether one of two random variables is
     stochastically larger than the other. Annals of Mathematical Statistics 18(1), 50-60.
     """
-    ordered = np.sort(np.asarray(y, dtype=float))
-    x = np.sort(np.asarray(x, dtype=float))
-    below = np.searchsorted(ordered, x, side="left")
-    not_above = np.searchsorted(ordered, x, side="right")
+    xs = sorted_values(np.asarray(x, dtype=float), sorted_x, name="group 1")
+    ys = sorted_values(np.asarray(y, dtype=float), sorted_y, name="group 2")
+    below, not_above = pair_counts(xs, ys)
     return float(below.sum(dtype=np.int64)) + 0.5 * float((not_above - below).sum(dtype=np.int64))
 
 
@@ -434,9 +441,13 @@ def _rank_biserial(pair: _Pair, level: float, alternative: str) -> EffectSize:
 
 
 def all_effect_sizes(x: Any, y: Any, *, confidence_level: float = 0.95,
-                     alternative: str = "two-sided") -> dict[str, EffectSize]:
+                     alternative: str = "two-sided", sorted_x: np.ndarray | None = None,
+                     sorted_y: np.ndarray | None = None) -> dict[str, EffectSize]:
     """Every effect size of this module, keyed "cohen_d", "hedges_g", "glass_delta",
     "rank_biserial" and "common_language".
+
+    ``sorted_x`` and ``sorted_y``, if given, are ``np.sort(x)`` and ``np.sort(y)`` (the rank-based
+    sizes need them; each group is otherwise sorted here).
 
     An effect size the data cannot support (a standardised difference when the reference SD is
     zero) is left out rather than given as NaN; the rank-based ones always exist.
@@ -449,7 +460,7 @@ def all_effect_sizes(x: Any, y: Any, *, confidence_level: float = 0.95,
     ----------
     See each function.
     """
-    pair, level, alternative = _prepare(x, y, confidence_level, alternative)
+    pair, level, alternative = _prepare(x, y, confidence_level, alternative, sorted_x, sorted_y)
     sizes: dict[str, EffectSize] = {}
     for key, build in _BUILDERS:
         try:

@@ -262,3 +262,19 @@ def test_bad_input_raises_readable_errors(compute):
         compute([1.0], UNTREATED)
     with pytest.raises(DataProblem, match="(?i)group 2"):
         compute(TREATED, [1.0, float("inf")])
+
+
+@pytest.mark.parametrize("decimals", [None, 0])
+def test_effect_sizes_with_sorted_copies_are_identical(decimals):
+    rng = np.random.default_rng(47)
+    x, y = rng.normal(10, 2, 400), rng.normal(9, 3, 380)
+    if decimals is not None:
+        x, y = np.round(x, decimals), np.round(y, decimals)
+    # reference: scipy.stats.mannwhitneyu(x, y).statistic for U1, and the call without copies
+    assert mann_whitney_u1(x, y, sorted_x=np.sort(x), sorted_y=np.sort(y)) == \
+        stats.mannwhitneyu(x, y).statistic
+    plain = all_effect_sizes(x, y)
+    given = all_effect_sizes(x, y, sorted_x=np.sort(x), sorted_y=np.sort(y))
+    assert plain.keys() == given.keys()
+    for key in plain:
+        assert (given[key].value, given[key].interval) == (plain[key].value, plain[key].interval)

@@ -17,8 +17,8 @@ from scipy import stats
 from engine.errors import Cancelled, DataProblem, OptionProblem
 from engine.procedures import ranks
 from engine.procedures.ranks import (
-    difference_order_statistics, hodges_lehmann, mann_whitney, tied_rank_sum_distribution,
-    u_distribution,
+    difference_order_statistics, hodges_lehmann, mann_whitney, pair_counts,
+    tied_rank_sum_distribution, u_distribution,
 )
 
 ALTERNATIVES = ("two-sided", "less", "greater")
@@ -374,3 +374,36 @@ def test_bad_input_gets_a_readable_error(kwargs, error, pattern):
 def test_module_limits_are_exported():
     assert ranks.EXACT_WORK_AUTO < ranks.EXACT_WORK_LIMIT
     assert "hodges_lehmann" in ranks.__all__
+
+
+@pytest.mark.parametrize("decimals", [None, 0])
+def test_pair_counts_against_brute_force(decimals):
+    rng = np.random.default_rng(41)
+    x, y = rng.normal(0, 2, 300), rng.normal(0.5, 2, 250)
+    if decimals is not None:
+        x, y = np.round(x, decimals), np.round(y, decimals)
+    xs, ys = np.sort(x), np.sort(y)
+    below, at_or_below = pair_counts(xs, ys)
+    # reference: brute force over the full comparison table
+    assert np.array_equal(below, (ys[None, :] < xs[:, None]).sum(axis=1))
+    assert np.array_equal(at_or_below, (ys[None, :] <= xs[:, None]).sum(axis=1))
+
+
+@pytest.mark.parametrize("decimals", [None, 1])
+def test_sorted_copies_give_the_same_result(decimals):
+    rng = np.random.default_rng(43)
+    x, y = rng.gamma(3, 2, 700), rng.gamma(3, 2.2, 650)
+    if decimals is not None:
+        x, y = np.round(x, decimals), np.round(y, decimals)
+    # reference: scipy.stats.mannwhitneyu(x, y) for U, and the call without sorted copies
+    plain = mann_whitney(x, y)
+    given = mann_whitney(x, y, sorted_x=np.sort(x), sorted_y=np.sort(y))
+    assert given.statistic == plain.statistic == stats.mannwhitneyu(x, y).statistic
+    assert (given.p_value, given.estimate, given.interval) == (plain.p_value, plain.estimate,
+                                                                plain.interval)
+
+
+def test_a_sorted_copy_that_does_not_match_is_refused():
+    x, y = np.array([2.0, 1.0, 4.0]), np.array([3.0, 5.0, 0.5])
+    with pytest.raises(OptionProblem, match="sorted copy of group 2"):
+        mann_whitney(x, y, sorted_x=np.sort(x), sorted_y=y)

@@ -82,3 +82,22 @@ def test_pooled_variance_against_nist_atmwtag():
     assert a.n + b.n - 2 == certified["df"]
     assert pooled == pytest.approx(certified["ms"], rel=1e-10)  # at least 10 significant digits
     assert math.sqrt(pooled) == pytest.approx(certified["residual_sd"], rel=1e-10)
+
+
+def test_summary_with_a_sorted_copy_is_identical():
+    rng = np.random.default_rng(11)
+    values = rng.gamma(2.0, 3.0, 2001)
+    # reference: numpy quantile (linear, type 7) on the unsorted values, min and max
+    assert summarize("bolts", values, ordered=np.sort(values)) == summarize("bolts", values)
+    q1, q3 = np.quantile(values, [0.25, 0.75])
+    given = summarize("bolts", values, ordered=np.sort(values))
+    assert (given.q1, given.q3, given.min, given.max) == (q1, q3, values.min(), values.max())
+
+
+@pytest.mark.parametrize("bad", ["unsorted", "short"])
+def test_summary_refuses_a_sorted_copy_that_does_not_match(bad):
+    from engine.errors import OptionProblem
+    values = np.array([3.0, 1.0, 2.0, 5.0])
+    ordered = values if bad == "unsorted" else np.sort(values)[:3]
+    with pytest.raises(OptionProblem, match="sorted copy of group 'bolts'"):
+        summarize("bolts", values, ordered=ordered)
