@@ -42,7 +42,7 @@ from .recent import RecentFiles
 from .setup_panel import SetupPanel
 from .workers import Worker
 
-__all__ = ["MainWindow", "OPEN_FILTER", "GROUP_FIELDS", "ANALYSIS_FIELDS", "LATE_PANELS"]
+__all__ = ["MainWindow", "OPEN_FILTER", "GROUP_FIELDS", "ANALYSIS_FIELDS", "LATE_PANELS", "PROBLEM_KEYS"]
 
 OPEN_FILTER = "Data files (*.csv *.tsv *.txt *.xlsx *.xls *.ods);;All files (*)"
 WORKBOOK_KINDS = ("xlsx", "xls", "ods")
@@ -53,6 +53,9 @@ PLOT_FILTER = "Picture (*.png);;Drawing (*.svg)"
 GROUP_FIELDS = ("layout", "group_column", "value_columns", "picked", "set_aside")
 ANALYSIS_FIELDS = ("alternative", "confidence_level", "n_resamples", "seed", "known_sd",
                    "equal_spread_known", "ordinal")
+
+# Messages that say why there is no comparison; the bar drops them once the session's problem is gone.
+PROBLEM_KEYS = ("groups_problem", "groups_crashed", "analysis_failed", "analysis_crashed")
 
 # The panels that load after the first paint: (attribute, module, class, tab title, tooltip).
 LATE_PANELS = (
@@ -240,12 +243,14 @@ class MainWindow(QMainWindow):
                                         self.open_dialog, QKeySequence.StandardKey.Open, "open")
         self.copy_action = self._action("&Copy findings", "Copy the findings as text for a report.",
                                         self.copy_findings, "Ctrl+Shift+C", "copy")
-        self.copy_plot_action = self._action("Copy &picture", "Copy the picture of the two groups.",
+        self.copy_plot_action = self._action("Copy the &plot",
+                                             "Copy the plot of every procedure's interval, side by side, as a picture.",
                                              self.copy_plot, "Ctrl+Shift+P")
         self.export_action = self._action("&Export report…", "Save the findings as a web page or a PDF file.",
                                           self.export_report, "Ctrl+E", "export")
-        self.save_plot_action = self._action("Save p&icture…", "Save the picture of the two groups to a file.",
-                                             self.save_plot)
+        self.save_plot_action = self._action("Save the p&lot…",
+                                             "Save the plot of every procedure's interval, side by side, "
+                                             "as a picture file.", self.save_plot)
         self.redo_action = self._action("&Redo the comparison", "Run the comparison again with the current set-up.",
                                         self.run_analysis, "F5")
         self.cancel_action = self._action("&Stop", "Stop the work in progress.", self.cancel, "Esc")
@@ -443,6 +448,8 @@ class MainWindow(QMainWindow):
 
     # -- forming the groups --------------------------------------------------------------------
     def _on_session(self, name: str, value: Any) -> None:
+        if name == "problem":
+            self._show_problem(value)
         if name != "choices" or self._quiet:
             return
         old, self._seen = self._seen, value
@@ -450,6 +457,15 @@ class MainWindow(QMainWindow):
             self.form_groups()
         elif _changed(old, value, ANALYSIS_FIELDS):
             self._analysis_soon.start()
+
+    def _show_problem(self, problem: str | None) -> None:
+        """Put the session's problem in the message bar, or take it away once it is solved."""
+        bar = self.message_bar
+        if problem is None:
+            if bar.key in PROBLEM_KEYS:
+                bar.clear()
+        elif not (bar.key in PROBLEM_KEYS and problem in bar.text):
+            bar.show_message("groups_problem", reason=problem)
 
     def _group_request(self) -> tuple[Any, str | None] | str:
         """The ``values`` and ``group`` arguments of ``make_groups``, or why there are none yet."""
@@ -499,8 +515,7 @@ class MainWindow(QMainWindow):
         self.session.store("problem", message)
 
     def _on_groups(self, intake: Any) -> None:
-        if self.message_bar.key in ("groups_problem", "groups_crashed", "analysis_failed", "analysis_crashed",
-                                    "analysis_stopped"):
+        if self.message_bar.key == "analysis_stopped":
             self.message_bar.clear()
         self.session.store("problem", None)
         self.session.store("intake", intake)
@@ -535,8 +550,9 @@ class MainWindow(QMainWindow):
         self.analysis_worker.run(compare)
 
     def _on_analysis(self, analysis: Any) -> None:
-        if self.message_bar.key in ("analysis_failed", "analysis_crashed", "analysis_stopped"):
+        if self.message_bar.key == "analysis_stopped":
             self.message_bar.clear()
+        self.session.store("problem", None)
         self.session.store("analysis", analysis)
 
     def _on_analysis_failed(self, message: str, expected: bool) -> None:
@@ -598,7 +614,7 @@ class MainWindow(QMainWindow):
         panel = self._findings()
         if panel is not None:
             panel.copy_plot()
-            self.message_bar.show_message("copied", what="the picture")
+            self.message_bar.show_message("copied", what="the plot of the intervals")
 
     def _save(self, path: str | Path | None, title: str, name_filter: str, suffix: str,
               write: Callable[[Path], Any]) -> bool:
@@ -629,7 +645,7 @@ class MainWindow(QMainWindow):
 
     def save_plot(self, path: str | Path | None = None) -> bool:
         panel = self._findings()
-        return panel is not None and self._save(path, "Save the picture", PLOT_FILTER, ".png", panel.save_plot)
+        return panel is not None and self._save(path, "Save the plot", PLOT_FILTER, ".png", panel.save_plot)
 
     def install_desktop_entry(self) -> None:
         from .desktop_entry import install

@@ -90,6 +90,32 @@ def test_a_broken_file_shows_a_message_and_the_window_stays_usable(make_window, 
     assert window.message_bar.key is None
 
 
+def test_the_sessions_problem_shows_in_the_bar_and_goes_when_solved(make_window, qtbot, settle, csv_file):
+    rows = [("north" if i < 10 else "south", 5 + i % 3, f"plot {i}") for i in range(20)]
+    path = csv_file("plots_with_notes.csv", rows, ("field", "yield_t", "note"))
+    window = make_window([path])
+    qtbot.waitUntil(lambda: window.session.analysis is not None, timeout=60_000)
+    state, bar = window.session, window.message_bar
+    assert bar.key is None and state.problem is None
+    # a value column that holds only text: the engine's sentence names the column
+    state.choose(value_columns=("note",))
+    qtbot.waitUntil(lambda: state.problem is not None, timeout=10_000)
+    assert bar.isVisibleTo(window) and bar.key == "groups_problem"
+    assert bar.text == state.problem and "'note'" in bar.text
+    assert state.analysis is None and window.data_panel.model.rowCount() == 20
+    # back to the numbers: the message goes and the comparison returns
+    state.choose(value_columns=("yield_t",))
+    qtbot.waitUntil(lambda: state.analysis is not None, timeout=60_000)
+    assert bar.key is None and state.problem is None
+    # a problem found before any worker runs shows as well
+    state.choose(group_column=None)
+    assert state.problem == "Choose the column that names the groups." and bar.text == state.problem
+    state.choose(group_column="field")
+    qtbot.waitUntil(lambda: state.analysis is not None, timeout=60_000)
+    settle(window)
+    assert bar.key is None and window.isVisible()
+
+
 def test_a_missing_file_is_named(make_window, tmp_path):
     window = make_window([tmp_path / "not_there.csv"])
     assert window.message_bar.key == "not_a_file"
@@ -205,8 +231,11 @@ def test_shortcuts_and_tooltips(make_window):
     assert window.export_action.shortcut() == QKeySequence("Ctrl+E")
     assert window.quit_action.shortcut() == QKeySequence(QKeySequence.StandardKey.Quit)
     for action in (window.open_action, window.copy_action, window.export_action, window.redo_action,
-                   window.cancel_action, window.quit_action):
+                   window.cancel_action, window.quit_action, window.copy_plot_action, window.save_plot_action):
         assert action.toolTip().endswith(".")
+    # the plot these copy and save is the findings panel's side-by-side plot of the intervals
+    for action in (window.copy_plot_action, window.save_plot_action):
+        assert "interval" in action.toolTip() and "two groups" not in action.toolTip()
     for widget in (window.setup_panel.group_column, window.setup_panel.confidence, window.data_panel.grid,
                    window.cancel_button):
         assert widget.toolTip()
