@@ -244,6 +244,24 @@ def difference_order_statistics(
     return _select(a, b, ranks, materialize_limit, cancelled)
 
 
+_GRID_SIDE = 1000
+
+
+def _grid_sample(a: np.ndarray, b: np.ndarray) -> tuple[np.ndarray, float]:
+    """Sums of every s1-th a and every s2-th b (at most 1000 of each), and a margin in places.
+
+    Each grid sum a_(k s1) + b_(l s2) is the smallest entry of its s1 x s2 block of the sorted
+    matrix, so a grid count at t is exact except for the blocks that straddle t, which form a
+    staircase of at most m1 + m2 - 1 blocks (m1, m2 grid rows and columns). A margin of
+    max(3 sqrt(m1 m2), m1 + m2) grid places around a wanted share therefore brackets it (the
+    last row and column of blocks may be smaller; the counts that follow check the bracket).
+    """
+    s1, s2 = -(-a.size // _GRID_SIDE), -(-b.size // _GRID_SIDE)
+    rows, cols = a[::s1], b[::s2]
+    sample = np.add.outer(rows, cols).ravel()
+    return sample, max(3.0 * math.sqrt(sample.size), float(rows.size + cols.size))
+
+
 class _Matrix:
     """The implicit sorted matrix a_i + b_j (a = sorted x, b = sorted -y) and its row windows."""
 
@@ -259,31 +277,58 @@ class _Matrix:
         return (np.zeros(self.a.size, dtype=np.int64),
                 np.full(self.a.size, self.b.size, dtype=np.int64))
 
-    def narrow(self, low, high, first, last):
-        """One round: windows still holding ranks first..last, or the common value if found."""
+    def _sample(self, low, high):
+        """Entries drawn from the windows, a margin in sample places, and the window totals."""
         a, b = self.a, self.b
         counts = high - low
         in_play = int(counts.sum())
         below_all = int(low.sum())
         check_cancelled(self.cancelled)
-        if in_play == a.size * b.size:  # nothing ruled out yet: sample the matrix directly
-            size = 1_000_000
-            sample = a[self.rng.integers(0, a.size, size)] + b[self.rng.integers(0, b.size, size)]
+        if in_play == a.size * b.size:
+            # nothing ruled out yet: the sums of every s1-th a and every s2-th b, a grid whose
+            # rank errors are bounded (see _grid_sample), and far quicker than random pairs
+            sample, margin = _grid_sample(a, b)
         else:
-            size = 300_000
-            picks = np.sort(self.rng.integers(0, in_play, size))
+            picks = np.sort(self.rng.integers(0, in_play, 300_000))
             ends = np.cumsum(counts)
             rows = np.searchsorted(ends, picks, side="right")
             sample = a[rows] + b[low[rows] + picks - (ends[rows] - counts[rows])]
-        margin = 3.0 * math.sqrt(size)
-        i1 = int(np.clip(math.floor((first - below_all) / in_play * size - margin), 0, size - 1))
-        i2 = int(np.clip(math.ceil((last + 1 - below_all) / in_play * size + margin), 0, size - 1))
-        p1, p2 = np.partition(sample, [i1, i2])[[i1, i2]]
+            margin = 3.0 * math.sqrt(sample.size)
+        return sample, margin, in_play, below_all
+
+    def narrow(self, low, high, first, last):
+        """One round: windows still holding ranks first..last, or the common value if found."""
+        return self.narrow_each(low, high, [(first, last)])[0]
+
+    def narrow_each(self, low, high, spans):
+        """One round for several spans of ranks (first, last) that share the windows.
+
+        One sample of the entries in play gives the pivots of every span; each span gets its
+        own narrowed windows (or its common value).
+        """
+        sample, margin, in_play, below_all = self._sample(low, high)
+        size = sample.size
+        places = []
+        for first, last in spans:
+            places.append((
+                int(np.clip(math.floor((first - below_all) / in_play * size - margin), 0, size - 1)),
+                int(np.clip(math.ceil((last + 1 - below_all) / in_play * size + margin), 0, size - 1))))
+        kth = sorted({i for pair in places for i in pair})
+        ordered = np.partition(sample, kth)
         # rows counted exactly: every stride-th. Between two counted rows a count moves by
         # about stride * n2 / n1 columns, so the slack is near 2 * stride * n2 in all; keep it
         # near half the entries the round should leave. A round that fails to halve the
         # entries in play is followed by exact counts.
-        stride = int(0.5 * 6 / math.sqrt(size) * in_play / (2 * b.size))
+        stride = int(0.5 * 6 / math.sqrt(size) * in_play / (2 * self.b.size))
+        stalled = self.stalled
+        found = []
+        for (first, last), (i1, i2) in zip(spans, places):
+            self.stalled = stalled
+            found.append(self._narrow_at(low, high, first, last, ordered[i1], ordered[i2], stride))
+        return found
+
+    def _narrow_at(self, low, high, first, last, p1, p2, stride):
+        a = self.a
         if p1 < p2 and stride >= 8 and not self.stalled:
             return self._narrow_by_bounds(low, high, first, last, p1, p2, stride)
         if p1 < p2:
@@ -345,14 +390,22 @@ class _Matrix:
         return _materialized(self.a, self.b, low, high, ranks)
 
     def select_groups(self, groups: list[list[int]]) -> list[np.ndarray]:
-        """Several groups of close ranks; one shared first round narrows to all of them."""
+        """Several groups of close ranks; one shared first round narrows to all of them, and
+        one shared sample gives each group its own second round."""
         low, high = self.full()
         first, last = min(g[0] for g in groups), max(g[-1] for g in groups)
-        if len(groups) > 1 and int((high - low).sum()) > self.limit:
-            low, high, value = self.narrow(low, high, first, last)
-            if value is not None:
-                return [np.full(len(g), value) for g in groups]
-        return [self.select(g, low, high) for g in groups]
+        if len(groups) == 1 or int((high - low).sum()) <= self.limit:
+            return [self.select(g, low, high) for g in groups]
+        self.stalled = False
+        low, high, value = self.narrow(low, high, first, last)
+        if value is not None:
+            return [np.full(len(g), value) for g in groups]
+        if int((high - low).sum()) <= self.limit:
+            return [self.select(g, low, high) for g in groups]
+        self.stalled = False
+        rounds = self.narrow_each(low, high, [(g[0], g[-1]) for g in groups])
+        return [np.full(len(g), value) if value is not None else self.select(g, lo, hi)
+                for g, (lo, hi, value) in zip(groups, rounds)]
 
 
 def _select(a, b, ranks, materialize_limit=MATERIALIZE_LIMIT, cancelled=None) -> np.ndarray:

@@ -407,3 +407,19 @@ def test_a_sorted_copy_that_does_not_match_is_refused():
     x, y = np.array([2.0, 1.0, 4.0]), np.array([3.0, 5.0, 0.5])
     with pytest.raises(OptionProblem, match="sorted copy of group 2"):
         mann_whitney(x, y, sorted_x=np.sort(x), sorted_y=y)
+
+
+@pytest.mark.parametrize("decimals", (None, 1))
+def test_shared_rounds_for_median_and_interval_ends_against_brute_force(decimals):
+    # the rank test's three order statistics: one shared round, one shared sample, then alone
+    rng = np.random.default_rng(7)
+    x, y = rng.gamma(3.0, 1.0, 1500), rng.normal(2.5, 1.5, 1400)  # 2.1e6 pairs
+    if decimals is not None:
+        x, y = np.round(x, decimals), np.round(y, decimals)
+    ordered = np.sort(np.subtract.outer(x, y).ravel())  # reference: brute force
+    total = ordered.size
+    groups = [[total // 2 - 1, total // 2], [40_000], [total - 40_001]]
+    matrix = ranks._Matrix(np.sort(x), np.sort(-y), 5_000, None)
+    found = matrix.select_groups(groups)
+    for wanted, got in zip(groups, found):
+        assert np.array_equal(got, ordered[wanted])
