@@ -203,10 +203,10 @@ def _row_counts(a: np.ndarray, padded: np.ndarray, pivot: float, *, strict: bool
 def _materialized(a, b, low, high, ranks):
     counts = high - low
     total = int(counts.sum())
-    rows = np.repeat(np.arange(a.size), counts)
     starts = np.cumsum(counts) - counts
-    cols = low[rows] + np.arange(total) - starts[rows]
-    values = a[rows] + b[cols]
+    # entry t of the run of row i is column low_i + t - start_i
+    cols = np.arange(total) + np.repeat(low - starts, counts)
+    values = np.repeat(a, counts) + b[cols]
     local = np.asarray(ranks) - int(low.sum())
     return np.partition(values, local)[local]
 
@@ -356,10 +356,10 @@ class _Matrix:
         on either side of it.
         """
         n = self.a.size
-        rows = np.r_[np.arange(0, n, stride), n - 1]
+        rows = np.append(np.arange(0, n, stride), n - 1)
         counted = _row_counts(self.a[rows], self.padded, pivot, strict=strict)
-        block = np.arange(n) // stride
-        return counted[block + 1], counted[block]
+        # row i lies in block i // stride, between counted rows (i // stride) and the next
+        return np.repeat(counted[1:], stride)[:n], np.repeat(counted[:-1], stride)[:n]
 
     def _narrow_by_bounds(self, low, high, first, last, p1, p2, stride):
         """A round with bounds on the counts instead of exact counts (large matrices).
