@@ -242,6 +242,7 @@ class ChoicePanel(QWidget):
         super().__init__(parent)
         self.session = session
         self._syncing = False
+        self._shown = None  # the analysis the checks and plots show
         self._build()
         session.subscribe(self._on_session)
         self.refresh()
@@ -327,10 +328,19 @@ class ChoicePanel(QWidget):
 
     # -- showing -------------------------------------------------------------------------------
     def refresh(self) -> None:
-        """Show the current analysis (or the hint when there is none)."""
+        """Show the current analysis (or the hint when there is none).
+
+        The checks, plots and suggestion are drawn again only for a new analysis object; for the
+        one on show only the widgets of the choices follow the session.
+        """
         analysis = self.session.analysis
         self.hint.setVisible(analysis is None)
         self.scroll.setVisible(analysis is not None)
+        if analysis is self._shown:
+            if analysis is not None:
+                self._sync_choices()
+            return
+        self._shown = analysis
         if analysis is None:
             return
         self._show_checks(analysis)

@@ -153,6 +153,8 @@ class ThemedPlot(pg.PlotWidget):
     def __init__(self, parent: QWidget | None = None, *, title: str = "") -> None:
         self._ready = False
         super().__init__(parent)
+        self._kept_items: dict[str, object] = {}
+        self._written: dict[str, tuple[str, str]] = {}  # title and axis names as last set, with their ink
         self._title = title
         self.setMenuEnabled(False)
         self.setMouseEnabled(x=False, y=False)
@@ -180,18 +182,45 @@ class ThemedPlot(pg.PlotWidget):
         self.set_title(self._title)
 
     def set_title(self, text: str) -> None:
+        ink = self.colours.foreground.name()
+        if self._written.get("title") == (text, ink):
+            return  # laying out a title again takes a noticeable moment
         self._title = text
-        self.getPlotItem().setTitle(text or None, color=self.colours.foreground.name(), size="9pt")
+        self._written["title"] = (text, ink)
+        self.getPlotItem().setTitle(text or None, color=ink, size="9pt")
 
     def set_axis_labels(self, bottom: str = "", left: str = "") -> None:
         """Name the axes; an empty name leaves that axis as it is."""
         ink = self.colours.foreground.name()
         for side, text in (("bottom", bottom), ("left", left)):
-            if text:
+            if text and self._written.get(side) != (text, ink):
+                self._written[side] = (text, ink)
                 self.getPlotItem().setLabel(side, text, color=ink)
 
     def redraw(self) -> None:
         """Draw the current data again (after a palette change); subclasses override."""
+
+    def _kept(self, name: str, make):
+        """The plot item called ``name``: made by ``make()`` and added on first use, then reused.
+
+        New data and pens set on an item already in the plot cost a fraction of removing the
+        old items and adding new ones, which is what keeps a new analysis quick to show.
+        """
+        item = self._kept_items.get(name)
+        if item is None:
+            item = self._kept_items[name] = make()
+            self.addItem(item)
+        return item
+
+    def _drop_kept(self, *, keep: int | None = None, prefixes: Sequence[str] = ()) -> None:
+        """Take kept items out of the plot: all of them, or those named ``prefix + number`` whose
+        number is ``keep`` or more."""
+        for name in list(self._kept_items):
+            if keep is not None:
+                stem = name.rstrip("0123456789")
+                if stem not in prefixes or int(name[len(stem):]) < keep:
+                    continue
+            self.removeItem(self._kept_items.pop(name))
 
 
 class ShapePlot(ThemedPlot):
@@ -206,19 +235,23 @@ class ShapePlot(ThemedPlot):
         self.redraw()
 
     def redraw(self) -> None:
-        self.clear()
         if self._data is None:
+            self._drop_kept()
             return
         values, mean, sd, group = self._data
         colour = self.colours.groups[group]
         edges, density = histogram(values)
-        self.addItem(pg.PlotDataItem(edges, density, stepMode="center", fillLevel=0,
-                                     brush=_with_alpha(colour, 0.35), pen=pg.mkPen(colour, width=1.5)))
+        bars = self._kept("bars", pg.PlotDataItem)
+        bars.setData(edges, density, stepMode="center", fillLevel=0,
+                     brush=_with_alpha(colour, 0.35), pen=pg.mkPen(colour, width=1.5))
+        curve = self._kept("curve", pg.PlotDataItem)
         if math.isfinite(sd) and sd > 0:
             grid = np.linspace(edges[0], edges[-1], 200)
-            curve = np.exp(-0.5 * ((grid - mean) / sd) ** 2) / (sd * math.sqrt(2 * math.pi))
-            self.addItem(pg.PlotDataItem(grid, curve, pen=pg.mkPen(self.colours.foreground, width=1.2,
-                                                                   style=Qt.PenStyle.DashLine)))
+            heights = np.exp(-0.5 * ((grid - mean) / sd) ** 2) / (sd * math.sqrt(2 * math.pi))
+        else:
+            grid = heights = np.array([])
+        curve.setData(grid, heights, pen=pg.mkPen(self.colours.foreground, width=1.2,
+                                                  style=Qt.PenStyle.DashLine))
         self.set_axis_labels("value", "density")
 
 
@@ -237,20 +270,19 @@ class QQPlot(ThemedPlot):
         self.redraw()
 
     def redraw(self) -> None:
-        self.clear()
         if self._data is None:
+            self._drop_kept()
             return
         theoretical, observed, mean, sd, group = self._data
         colour = self.colours.groups[group]
         keep = thin_sorted(theoretical)
-        if keep.size:
-            self.addItem(pg.ScatterPlotItem(theoretical[keep], observed[keep], size=5,
-                                            pen=pg.mkPen(None), brush=_with_alpha(colour, 0.8)))
-            ends = np.array([theoretical[keep[0]], theoretical[keep[-1]]])
-            if math.isfinite(sd):
-                self.addItem(pg.PlotDataItem(ends, mean + sd * ends,
-                                             pen=pg.mkPen(self.colours.foreground, width=1.2,
-                                                          style=Qt.PenStyle.DashLine)))
+        points = self._kept("points", pg.ScatterPlotItem)
+        points.setData(theoretical[keep], observed[keep], size=5, pen=pg.mkPen(None),
+                       brush=_with_alpha(colour, 0.8))
+        ends = np.array([theoretical[keep[0]], theoretical[keep[-1]]]) if keep.size else np.array([])
+        line = self._kept("line", pg.PlotDataItem)
+        line.setData(ends, mean + sd * ends if math.isfinite(sd) else np.full(ends.shape, np.nan),
+                     pen=pg.mkPen(self.colours.foreground, width=1.2, style=Qt.PenStyle.DashLine))
         self.set_axis_labels("normal quantile", "value")
 
 
@@ -271,28 +303,32 @@ class BoxPlot(ThemedPlot):
         self.redraw()
 
     def redraw(self) -> None:
-        self.clear()
         if not self._data:
+            self._drop_kept()
             return
         ink = self.colours.foreground
-        for place, (label, values, summary) in enumerate(self._data):
-            colour = self.colours.groups[place % 2]
+        colours = [self.colours.groups[place % 2] for place in range(len(self._data))]
+        summaries = [summary for _, _, summary in self._data]
+        self._kept("boxes", lambda: pg.BarGraphItem(x=[], height=[], width=0.5)).setOpts(
+            x=list(range(len(self._data))), y0=[s.q1 for s in summaries],
+            height=[s.q3 - s.q1 for s in summaries], width=0.5,
+            pens=[pg.mkPen(colour, width=1.5) for colour in colours],
+            brushes=[pg.mkBrush(_with_alpha(colour, 0.18)) for colour in colours])
+        for place, ((label, values, summary), colour) in enumerate(zip(self._data, colours)):
             q1, median, q3 = summary.q1, summary.median, summary.q3
-            spread = q3 - q1
             reach_low, reach_high, inside = whisker_reach(values, q1, q3)
-            self.addItem(pg.BarGraphItem(x=[place], y0=[q1], height=[spread], width=0.5,
-                                         pen=pg.mkPen(colour, width=1.5),
-                                         brush=pg.mkBrush(_with_alpha(colour, 0.18))))
-            pen = pg.mkPen(ink, width=1.2)
-            self.addItem(pg.PlotDataItem([place - 0.25, place + 0.25], [median, median],
-                                         pen=pg.mkPen(colour, width=2.5)))
-            for start, end in ((q1, reach_low), (q3, reach_high)):
-                self.addItem(pg.PlotDataItem([place, place], [start, end], pen=pen))
-                self.addItem(pg.PlotDataItem([place - 0.1, place + 0.1], [end, end], pen=pen))
+            self._kept(f"median{place}", pg.PlotDataItem).setData(
+                [place - 0.25, place + 0.25], [median, median], pen=pg.mkPen(colour, width=2.5))
+            # the two stems and their caps, drawn as pairs of points
+            self._kept(f"whiskers{place}", pg.PlotDataItem).setData(
+                [place, place, place - 0.1, place + 0.1] * 2,
+                [q1, reach_low, reach_low, reach_low, q3, reach_high, reach_high, reach_high],
+                connect="pairs", pen=pg.mkPen(ink, width=1.2))
             shown = sample_points(values, keep=~inside, seed=place)
             jitter = np.random.default_rng(place).uniform(-0.18, 0.18, shown.size)
-            self.addItem(pg.ScatterPlotItem(place + jitter, shown, size=4, pen=pg.mkPen(None),
-                                            brush=_with_alpha(colour, 0.55)))
+            self._kept(f"points{place}", pg.ScatterPlotItem).setData(
+                place + jitter, shown, size=4, pen=pg.mkPen(None), brush=_with_alpha(colour, 0.55))
+        self._drop_kept(keep=len(self._data), prefixes=("median", "whiskers", "points"))
         axis = self.getPlotItem().getAxis("bottom")
         axis.setTicks([[(i, group[0]) for i, group in enumerate(self._data)]])
         self.getPlotItem().setXRange(-0.6, len(self._data) - 0.4, padding=0)
@@ -344,38 +380,49 @@ class IntervalPlot(ThemedPlot):
         return low - margin, high + margin
 
     def redraw(self) -> None:
-        self.clear()
         if not self._rows:
+            self._drop_kept()
+            self._labels = []
             return
         left, right = self._span()
         ink, faint = self.colours.foreground, self.colours.faint
-        self.addItem(pg.InfiniteLine(0.0, angle=90, pen=pg.mkPen(faint, width=1.2, style=Qt.PenStyle.DashLine)))
+        self._kept("zero", lambda: pg.InfiniteLine(0.0, angle=90)).setPen(
+            pg.mkPen(faint, width=1.2, style=Qt.PenStyle.DashLine))
         count = len(self._rows)
+        pad = 0.03 * (right - left)
+        marks: dict[str, list] = {"x": [], "y": [], "symbol": [], "size": [], "pen": [], "brush": []}
+
+        def mark(x: float, y: float, symbol: str, size: int, pen, colour) -> None:
+            for key, value in zip(marks, (x, y, symbol, size, pen, pg.mkBrush(colour))):
+                marks[key].append(value)
+
+        self._labels = []
         for place, row in enumerate(self._rows):
             y = count - 1 - place
             colour = self.colours.picked if row.picked else ink
-            width = 3.0 if row.picked else 1.8
+            pen = pg.mkPen(colour, width=3.0 if row.picked else 1.8)
+            line = self._kept(f"line{place}", pg.PlotDataItem)
             if row.low is not None or row.high is not None:
                 low = row.low if row.low is not None else left
                 high = row.high if row.high is not None else right
-                self.addItem(pg.PlotDataItem([low, high], [y, y], pen=pg.mkPen(colour, width=width)))
+                line.setData([low, high], [y, y], pen=pen)
                 for end, value, symbol in ((low, row.low, "t3"), (high, row.high, "t2")):
-                    marker = "|" if value is not None else symbol
-                    self.addItem(pg.ScatterPlotItem([end], [y], symbol=marker, size=12,
-                                                    pen=pg.mkPen(colour, width=width), brush=pg.mkBrush(colour)))
-            self.addItem(pg.ScatterPlotItem([row.estimate], [y], symbol="o", size=10 if row.picked else 8,
-                                            pen=pg.mkPen(colour), brush=pg.mkBrush(colour)))
+                    mark(end, y, "|" if value is not None else symbol, 12, pen, colour)
+            else:
+                line.setData([], [], pen=pen)
+            mark(row.estimate, y, "o", 10 if row.picked else 8, pg.mkPen(colour), colour)
+            # each procedure's name sits above its line, at the left edge
+            label = self._kept(f"label{place}", lambda: pg.TextItem(anchor=(0, 1)))
+            if label.toPlainText() != row.name:
+                label.setText(row.name)
+            label.setColor(colour)
+            label.setPos(left - pad, y + 0.05)
+            self._labels.append(label)
+        self._drop_kept(keep=count, prefixes=("line", "label"))
+        self._kept("marks", pg.ScatterPlotItem).setData(**marks)
         self.getPlotItem().showAxis("left", False)
         self.getPlotItem().setYRange(-0.5, count - 0.1, padding=0)
-        pad = 0.03 * (right - left)
         self.getPlotItem().setXRange(left - pad, right + pad, padding=0)
-        # each procedure's name sits above its line, at the left edge
-        self._labels = []
-        for place, row in enumerate(self._rows):
-            label = pg.TextItem(row.name, color=self.colours.picked if row.picked else ink, anchor=(0, 1))
-            label.setPos(left - pad, count - 1 - place + 0.05)
-            self.addItem(label)
-            self._labels.append(label)
         self.setFixedHeight(80 + 46 * count)
         self.set_axis_labels(self._axis_label)
 

@@ -128,6 +128,19 @@ def test_a_change_from_elsewhere_is_shown_without_writing_back(panel, groups, mo
     assert panel.ordinal.isChecked() and panel.equal_spread.isChecked()
 
 
+def test_plots_are_drawn_again_only_for_a_new_analysis(panel, groups, monkeypatch):
+    session = panel.session
+    drawn = []
+    for plot in [panel.box_plot, *(p for pair in panel.shape_plots for p in pair)]:
+        monkeypatch.setattr(plot, "redraw", lambda plot=plot: drawn.append(plot))
+    session.choose(n_resamples=900, confidence_level=0.9, procedure="mann_whitney")
+    assert drawn == []  # the analysis on show is the same object: only the pick's text follows
+    assert panel.picker.currentData() == "mann_whitney"
+    assert session.analysis.procedures["mann_whitney"].name in panel.assumes.text()
+    session.store("analysis", analyze(groups, Options(n_resamples=300, seed=5)))
+    assert len(drawn) == 5 and len(set(map(id, drawn))) == 5  # each plot once
+
+
 def test_what_the_user_knows_goes_into_the_choices(panel):
     session = panel.session
     panel.equal_spread.setChecked(True)

@@ -142,6 +142,19 @@ def test_interval_plot_names_every_row_and_runs_open_ends_to_the_edge(qtbot):
     assert left < min(low for low, _ in ends) and right > max(high for _, high in ends)
 
 
+def test_new_rows_are_set_on_the_items_already_in_the_plot(qtbot):
+    plot = plots.IntervalPlot()
+    qtbot.addWidget(plot)
+    plot.show_rows(_rows(), picked="welch_t")
+    before = list(plot.getPlotItem().items)
+    plot.show_rows(_rows()[::-1], picked="mann_whitney")
+    assert plot.getPlotItem().items == before  # the same items, none made or dropped
+    assert plot.row_names() == ["ranks", "bootstrap", "Welch t-test"]
+    plot.show_rows(_rows()[:1], picked="welch_t")
+    assert plot.row_names() == ["Welch t-test"]
+    assert len(plot.getPlotItem().items) == len(before) - 4  # two rows' lines and names gone
+
+
 def test_save_png_and_svg_and_refuse_other_suffixes(qtbot, tmp_path):
     plot = plots.IntervalPlot()
     qtbot.addWidget(plot)
