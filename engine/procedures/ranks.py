@@ -389,8 +389,12 @@ class _Matrix:
         one shared sample gives each group its own second round."""
         low, high = self.full()
         first, last = min(g[0] for g in groups), max(g[-1] for g in groups)
-        if len(groups) == 1 or int((high - low).sum()) <= self.limit:
-            return [self.select(g, low, high) for g in groups]
+        if int((high - low).sum()) <= self.limit:  # few entries: form them once for all
+            wanted = sorted({r for g in groups for r in g})
+            values = dict(zip(wanted, _materialized(self.a, self.b, low, high, wanted)))
+            return [np.array([values[r] for r in g]) for g in groups]
+        if len(groups) == 1:
+            return [self.select(groups[0], low, high)]
         self.stalled = False
         low, high, value = self.narrow(low, high, first, last)
         if value is not None:
