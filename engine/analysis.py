@@ -198,7 +198,8 @@ def analyze(
             cancelled=stop,
         )
     step(0.92, "effect sizes")
-    sizes = effects.all_effect_sizes(x, y, **common, **ordered)
+    sizes = effects.all_effect_sizes(x, y, **common, **ordered,
+                                     u1=procedures["mann_whitney"].details["U1"])
     recommendation = advice.recommend(
         checks, groups, equal_spread_known=options.equal_spread_known, ordinal=options.ordinal,
         known_sd=options.known_sd,

@@ -9,12 +9,13 @@ from __future__ import annotations
 
 import math
 from functools import cached_property
+from numbers import Real
 from typing import Any, Callable
 
 import numpy as np
 from scipy import optimize, special, stats
 
-from .errors import DataProblem
+from .errors import DataProblem, OptionProblem
 from .procedures._checks import check_alternative, check_confidence_level, check_samples
 from .procedures.ranks import pair_counts
 from .procedures.t import mean_difference
@@ -37,10 +38,12 @@ class _Pair:
     """Two checked samples and the summaries the effect sizes share, each computed once."""
 
     def __init__(self, x: np.ndarray, y: np.ndarray, sorted_x: np.ndarray | None = None,
-                 sorted_y: np.ndarray | None = None) -> None:
+                 sorted_y: np.ndarray | None = None, u1: float | None = None) -> None:
         self.x, self.y = x, y
         self.n1, self.n2 = x.size, y.size
         self.sorted_x, self.sorted_y = sorted_x, sorted_y
+        if u1 is not None:
+            self.__dict__["u1"] = float(u1)  # given by the caller: the cached value
 
     @cached_property
     def variances(self) -> tuple[float, float]:
@@ -55,9 +58,12 @@ class _Pair:
         return mann_whitney_u1(self.x, self.y, sorted_x=self.sorted_x, sorted_y=self.sorted_y)
 
 
-def _prepare(x: Any, y: Any, confidence_level: Any, alternative: Any, sorted_x=None, sorted_y=None):
+def _prepare(x: Any, y: Any, confidence_level: Any, alternative: Any, sorted_x=None, sorted_y=None,
+             u1=None):
     x, y = check_samples(x, y)
-    return (_Pair(x, y, sorted_x, sorted_y), check_confidence_level(confidence_level),
+    if u1 is not None and not (isinstance(u1, Real) and 0 <= u1 <= x.size * y.size):
+        raise OptionProblem(f"U of group 1 must lie between 0 and {x.size * y.size}, not {u1!r}.")
+    return (_Pair(x, y, sorted_x, sorted_y, u1), check_confidence_level(confidence_level),
             check_alternative(alternative))
 
 
@@ -442,12 +448,15 @@ def _rank_biserial(pair: _Pair, level: float, alternative: str) -> EffectSize:
 
 def all_effect_sizes(x: Any, y: Any, *, confidence_level: float = 0.95,
                      alternative: str = "two-sided", sorted_x: np.ndarray | None = None,
-                     sorted_y: np.ndarray | None = None) -> dict[str, EffectSize]:
+                     sorted_y: np.ndarray | None = None,
+                     u1: float | None = None) -> dict[str, EffectSize]:
     """Every effect size of this module, keyed "cohen_d", "hedges_g", "glass_delta",
     "rank_biserial" and "common_language".
 
     ``sorted_x`` and ``sorted_y``, if given, are ``np.sort(x)`` and ``np.sort(y)`` (the rank-based
-    sizes need them; each group is otherwise sorted here).
+    sizes need them; each group is otherwise sorted here). ``u1``, if given, is the Mann-Whitney
+    U of group 1 (as :func:`mann_whitney_u1` counts it), which the rank-based sizes then use
+    instead of counting it again.
 
     An effect size the data cannot support (a standardised difference when the reference SD is
     zero) is left out rather than given as NaN; the rank-based ones always exist.
@@ -460,7 +469,8 @@ def all_effect_sizes(x: Any, y: Any, *, confidence_level: float = 0.95,
     ----------
     See each function.
     """
-    pair, level, alternative = _prepare(x, y, confidence_level, alternative, sorted_x, sorted_y)
+    pair, level, alternative = _prepare(x, y, confidence_level, alternative, sorted_x, sorted_y,
+                                        u1)
     sizes: dict[str, EffectSize] = {}
     for key, build in _BUILDERS:
         try:

@@ -278,3 +278,16 @@ def test_effect_sizes_with_sorted_copies_are_identical(decimals):
     assert plain.keys() == given.keys()
     for key in plain:
         assert (given[key].value, given[key].interval) == (plain[key].value, plain[key].interval)
+
+
+def test_effect_sizes_with_a_given_u1_are_identical():
+    rng = np.random.default_rng(59)
+    x, y = np.round(rng.normal(5, 1, 300), 1), np.round(rng.normal(5.3, 1, 280), 1)
+    u1 = stats.mannwhitneyu(x, y).statistic  # reference: scipy.stats.mannwhitneyu(x, y)
+    plain = all_effect_sizes(x, y)
+    given = all_effect_sizes(x, y, u1=u1)
+    for key in ("rank_biserial", "common_language"):
+        assert (given[key].value, given[key].interval) == (plain[key].value, plain[key].interval)
+    assert given["common_language"].value == u1 / (x.size * y.size)
+    with pytest.raises(OptionProblem, match="U of group 1"):
+        all_effect_sizes(x, y, u1=x.size * y.size + 1)
