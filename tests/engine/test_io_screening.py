@@ -159,6 +159,24 @@ def test_duplicate_rows_on_a_large_frame_match_pandas(tmp_path):
     assert report.duplicate_rows == expected == 3
 
 
+def test_duplicate_rows_of_tied_columns_with_signed_zeros_and_blanks_match_pandas(tmp_path):
+    # every column repeats values (rounded data), so no single column can rule repeats out
+    rng = np.random.default_rng(13)
+    n = 70_000
+    frame = pd.DataFrame({"g": rng.choice(["A", "B"], n), "v": np.round(rng.normal(50, 5, n), 0),
+                          "w": np.round(rng.normal(0, 1, n), 1), "k": rng.integers(0, 50, n)})
+    frame.loc[10, "w"], frame.loc[20, "w"] = 0.0, -0.0
+    frame.loc[[20], ["g", "v", "k"]] = frame.loc[[10], ["g", "v", "k"]].to_numpy()
+    frame.loc[[30, 31], "w"] = np.nan
+    frame.loc[[31], ["g", "v", "k"]] = frame.loc[[30], ["g", "v", "k"]].to_numpy()
+    path = tmp_path / "tied.csv"
+    frame.to_csv(path, index=False)
+    report = make_groups(read_table(path), values="v", group="g").screening
+    # reference: pandas.DataFrame.duplicated on the file as written (it takes -0.0 as 0.0)
+    expected = int(pd.read_csv(path).duplicated().sum())
+    assert report.duplicate_rows == expected and expected >= 2
+
+
 def test_blank_value_rows_are_not_duplicates(tmp_path):
     report = make_groups(_table(tmp_path, "g,v\nA,\nA,\nA,1\nB,2\nB,3\nA,4\n"), values="v", group="g").screening
     assert report.duplicate_rows == 0
