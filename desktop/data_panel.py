@@ -221,6 +221,7 @@ class DataPanel(QWidget):
         self.model.set_table(table)
         if table is not None:
             self._fit_columns()
+            self.share_width()
         if table is None:
             self.heading.setText("Open a data file to begin.")
         else:
@@ -245,6 +246,18 @@ class DataPanel(QWidget):
             for row in rows:
                 width = max(width, metrics.horizontalAdvance(self.model.cell_text(row, column)))
             header.resizeSection(column, min(widest, width + padding))
+
+    def share_width(self) -> None:
+        """Give the grid the width its columns need (between a third and two thirds of the
+        panel) and the words beside it the rest."""
+        total = sum(self.splitter.sizes())
+        if total <= 0 or self.model.columnCount() == 0:
+            return
+        grid = self.grid
+        natural = (grid.verticalHeader().sizeHint().width() + grid.horizontalHeader().length()
+                   + grid.verticalScrollBar().sizeHint().width() + 2 * grid.frameWidth() + 4)
+        left = round(min(max(natural, total * 0.35), total * 0.65))
+        self.splitter.setSizes([left, total - left])
 
     def _show_marks(self) -> None:
         intake = self._session.intake

@@ -122,6 +122,8 @@ class FindingsPanel(QWidget):
         header = self.table.horizontalHeader()
         header.setSectionResizeMode(QHeaderView.ResizeMode.ResizeToContents)
         header.setSectionResizeMode(0, QHeaderView.ResizeMode.Stretch)
+        # the first column wraps: the rows grow or shrink with its width
+        header.sectionResized.connect(lambda *_: self._fit_table())
         self.table.setSizePolicy(QSizePolicy.Policy.Preferred, QSizePolicy.Policy.Fixed)
         self.table.setHorizontalScrollBarPolicy(Qt.ScrollBarPolicy.ScrollBarAlwaysOff)
         self.table.setVerticalScrollBarPolicy(Qt.ScrollBarPolicy.ScrollBarAlwaysOff)
@@ -215,10 +217,12 @@ class FindingsPanel(QWidget):
             (f"{result.estimate_name[:1].upper()}{result.estimate_name[1:]} ({labels[0]} minus {labels[1]})",
              shown.estimate, shown.interval or "none given",
              STATISTIC_TIPS["difference"] + " " + STATISTIC_TIPS["interval"]),
-            (result.statistic_name or "Test statistic", shown.statistic or missing, "", STATISTIC_TIPS["statistic"]),
-            ("Degrees of freedom", shown.df or missing, "", STATISTIC_TIPS["df"]),
-            ("p-value", shown.p or missing, "", STATISTIC_TIPS["p"]),
+            (f"Test statistic ({result.statistic_name})" if result.statistic_name else "Test statistic",
+             shown.statistic, "", STATISTIC_TIPS["statistic"]),
+            ("Degrees of freedom", shown.df, "", STATISTIC_TIPS["df"]),
+            ("p-value", shown.p, "", STATISTIC_TIPS["p"]),
         ]
+        rows = [row for row in rows if row[1] is not None]  # what a procedure does not give takes no row
         if shown.mc_se is not None:
             rows.append(("Monte Carlo error of p", shown.mc_se, "", STATISTIC_TIPS["mc_se"]))
         if shown.effect_name is not None:

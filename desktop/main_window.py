@@ -65,6 +65,8 @@ LATE_PANELS = (
      "The result in words and numbers, ready to copy into a report."),
 )
 
+SCREEN_SHARE = 0.9  # of the available screen, each way, that the window opens at
+LEFT_SHARE = 0.47   # of the window's width for the data and set-up; the rest for the checks and findings
 LATE_DELAY_MS = 150   # after the first paint, before importing the plotting panels
 GROUPS_DELAY_MS = 20  # lets the freshly filled grid paint before the groups are formed
 ANALYSIS_DELAY_MS = 120  # a burst of set-up changes runs one analysis
@@ -115,7 +117,8 @@ class MainWindow(QMainWindow):
 
         self.setWindowTitle("Twofold")
         self.setAcceptDrops(True)
-        self.resize(1400, 900)
+        self._balanced = False
+        self.fit_to_screen()
         self._icons_wanted: list[tuple[Any, str]] = [(self, "app")]
 
         self.load_worker = Worker(self)
@@ -184,6 +187,24 @@ class MainWindow(QMainWindow):
         self.session.subscribe(self._on_session)
 
     # -- building ------------------------------------------------------------------------------
+    def fit_to_screen(self, share: float = SCREEN_SHARE) -> None:
+        """Take ``share`` of the available screen each way, centred (1400 x 900 without a screen)."""
+        screen = self.screen() or QGuiApplication.primaryScreen()
+        if screen is None:
+            self.resize(1400, 900)
+            return
+        room = screen.availableGeometry()
+        width, height = round(room.width() * share), round(room.height() * share)
+        self.setGeometry(room.x() + (room.width() - width) // 2, room.y() + (room.height() - height) // 2,
+                         width, height)
+
+    def balance_panes(self) -> None:
+        """Give the data and set-up about half the width and the checks and findings the rest."""
+        total = max(self.splitter.width(), self.width() - 12)
+        left = round(total * LEFT_SHARE)
+        self.splitter.setSizes([left, total - left])
+        QTimer.singleShot(0, self.data_panel.share_width)
+
     def apply_icons(self) -> None:
         """Give the window and its actions their icons (drawn after the first paint: it takes a
         noticeable moment to render them)."""
@@ -221,7 +242,11 @@ class MainWindow(QMainWindow):
         bar.addPermanentWidget(self.progress)
         bar.addPermanentWidget(self.cancel_button)
         # always in place (so the window never re-lays itself out when work starts): idle, the
-        # bar is empty and Stop is greyed out
+        # bar is hidden but keeps its room, and Stop is greyed out
+        policy = self.progress.sizePolicy()
+        policy.setRetainSizeWhenHidden(True)
+        self.progress.setSizePolicy(policy)
+        self.progress.setVisible(False)
         self.cancel_button.setEnabled(False)
         self.progress.setValue(0)
 
@@ -301,6 +326,9 @@ class MainWindow(QMainWindow):
     # -- the panels that load late -------------------------------------------------------------
     def showEvent(self, event: Any) -> None:  # noqa: N802 - Qt's name
         super().showEvent(event)
+        if not self._balanced:  # once: later the user's own division of the window stands
+            self._balanced = True
+            self.balance_panes()
         if not self.load_worker.busy:
             self._load_late_soon()
 
@@ -443,8 +471,11 @@ class MainWindow(QMainWindow):
 
     def _on_load_failed(self, message: str, expected: bool) -> None:
         self._load_late_soon()
-        self.message_bar.show_message("open_failed" if expected else "open_crashed",
-                                      name=self._opening, reason=message)
+        if expected:  # the engine's sentence names the file as a rule: say it once
+            self.message_bar.show_message("open_failed", reason=message,
+                                          name="the file" if self._opening in message else self._opening)
+        else:
+            self.message_bar.show_message("open_crashed", name=self._opening, reason=message)
 
     # -- forming the groups --------------------------------------------------------------------
     def _on_session(self, name: str, value: Any) -> None:
@@ -584,6 +615,7 @@ class MainWindow(QMainWindow):
     def _on_busy(self, _: bool) -> None:
         busy = self.busy
         self.cancel_button.setEnabled(busy)
+        self.progress.setVisible(busy)
         if not busy:
             self.busy_label.setText("")
             self.progress.setRange(0, 1000)

@@ -164,6 +164,10 @@ class ThemedPlot(pg.PlotWidget):
         self._restyle()
         self._ready = True
 
+    def wheelEvent(self, event) -> None:  # noqa: N802 (Qt's name)
+        # the plots neither zoom nor pan: the wheel scrolls the panel the plot sits in
+        event.ignore()
+
     def changeEvent(self, event: QEvent) -> None:  # noqa: N802 (Qt's name)
         super().changeEvent(event)
         if self._ready and event.type() == QEvent.Type.PaletteChange:

@@ -133,6 +133,7 @@ class SetupPanel(QWidget):
         pair = QHBoxLayout()
         pair.addWidget(self.first_group, 1)
         pair.addWidget(self.swap_button)
+        pair.addStretch(0)  # keeps Swap its own size when the group lists are hidden (a column per group)
         self.first_group_label.setBuddy(self.first_group)
         self.second_group_label.setBuddy(self.second_group)
         form.addRow(self.first_group_label, pair)

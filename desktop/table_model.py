@@ -25,8 +25,9 @@ MARK_SET_ASIDE = "set aside"
 # How the header names each detected kind of column, and the one-sentence tooltip for it.
 KIND_WORDS: Mapping[str, tuple[str, str]] = {
     "number": ("numbers", "Every filled cell of this column is a number."),
-    "text": ("words", "This column holds words or labels, such as group names."),
-    "mixed": ("numbers and words", "This column mixes numbers with words; the words cannot be measured."),
+    "text": ("text", "This column holds text or labels, such as group names."),
+    "mixed": ("numbers, some text", "This column holds numbers and some cells of text; the text "
+              "cells cannot be measured and are left out."),
     "empty": ("empty", "This column has no filled cells."),
 }
 

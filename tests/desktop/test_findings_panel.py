@@ -84,10 +84,14 @@ def test_a_pick_switches_the_findings_to_that_procedure(panel, analysis, groups)
     cells = _cells(panel)
     # reference: scipy.stats.mannwhitneyu(x, y) gives U of the first sample
     u = stats.mannwhitneyu(groups.x, groups.y)
+    assert cells[1][0] == "Test statistic (U)"
     assert float(cells[1][1]) == pytest.approx(u.statistic, abs=0.05)
+    # a rank test has no degrees of freedom: no row says "n/a" for them
+    assert [row[0] for row in cells[2:]] == ["p-value", cells[3][0]]
+    assert report.NOT_AVAILABLE not in [row[1] for row in cells]
     rank = analysis.effect_sizes["rank_biserial"]
-    assert cells[4][0].lower() == rank.name.lower()
-    assert float(cells[4][1]) == pytest.approx(rank.value, abs=0.006)
+    assert cells[3][0].lower() == rank.name.lower()
+    assert float(cells[3][1]) == pytest.approx(rank.value, abs=0.006)
     assert "suggestion was" in panel.followed.text()
     assert panel.headline.text() == report.render(analysis, procedure="mann_whitney").paragraph
     session.choose(procedure="z")  # not run without known SDs: the suggestion is shown instead

@@ -155,6 +155,23 @@ def test_new_rows_are_set_on_the_items_already_in_the_plot(qtbot):
     assert len(plot.getPlotItem().items) == len(before) - 4  # two rows' lines and names gone
 
 
+def test_the_wheel_over_a_plot_is_left_to_the_panel_around_it(qtbot):
+    from PySide6.QtCore import QPoint, QPointF, Qt
+    from PySide6.QtGui import QWheelEvent
+
+    plot = plots.IntervalPlot()
+    qtbot.addWidget(plot)
+    plot.resize(400, 300)
+    plot.show_rows(_rows(), picked="welch_t")
+    before = plot.getPlotItem().viewRange()
+    event = QWheelEvent(QPointF(200, 150), QPointF(200, 150), QPoint(0, 0), QPoint(0, -120),
+                        Qt.MouseButton.NoButton, Qt.KeyboardModifier.NoModifier, Qt.ScrollPhase.NoScrollPhase, False)
+    event.accept()
+    plot.wheelEvent(event)
+    assert not event.isAccepted()  # ignored: Qt hands it on to the scrolling panel
+    assert plot.getPlotItem().viewRange() == before  # and the plot did not zoom
+
+
 def test_save_png_and_svg_and_refuse_other_suffixes(qtbot, tmp_path):
     plot = plots.IntervalPlot()
     qtbot.addWidget(plot)
