@@ -80,7 +80,8 @@ def duplicate_rows(table, *, counted=None) -> np.ndarray:
 
     Notes
     -----
-    Each row gets a 64-bit hash of its cells (float bits with -0.0 and NaN made canonical,
+    A number column that never repeats a value (a running number, or unrounded measurements)
+    settles it at once. Otherwise each row gets a 64-bit hash of its cells (float bits with -0.0 and NaN made canonical,
     integers, and the column's factor codes for text). Rows whose hash is unique cannot repeat
     another row; the rest, usually few, are compared cell by cell, so the answer is exact. The
     first filter counts hashes in about four million bins, which costs a fraction of a full
@@ -92,6 +93,8 @@ def duplicate_rows(table, *, counted=None) -> np.ndarray:
         return np.empty(0, dtype=np.int64)
     part = frame
     if n > 50_000:
+        if _some_column_never_repeats(table):
+            return np.empty(0, dtype=np.int64)
         candidates = _rows_sharing_a_hash(table)
         if candidates.size == 0:
             return np.empty(0, dtype=np.int64)
@@ -104,6 +107,19 @@ def duplicate_rows(table, *, counted=None) -> np.ndarray:
         blank = frame.loc[rows].isna().all(axis=1).to_numpy()
         rows = rows[~blank]
     return rows.astype(np.int64)
+
+
+def _some_column_never_repeats(table) -> bool:
+    """True when a number column holds no value twice (then no row can repeat another)."""
+    frame = table.frame
+    numbers = [name for name in frame.columns if frame[name].dtype.kind in "fi"]
+    if any(table.strictly_rising(name) for name in numbers):
+        return True  # a running number: one comparison pass
+    for name in numbers[:1]:  # one sort is worth trying; more rarely pay off
+        ordered = np.sort(frame[name].to_numpy())
+        if not np.any(ordered[1:] == ordered[:-1]) and not np.isnan(ordered[-2:]).all():
+            return True
+    return False
 
 
 _MIX = np.uint64(0x9E3779B97F4A7C15)  # 2^64 / golden ratio, the usual multiplicative mixer
