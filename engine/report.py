@@ -576,10 +576,9 @@ def render(analysis, *, procedure: str | None = None) -> ReportText:
     American Psychological Association (2020). Publication Manual, 7th ed., chapter 6 (numbers
     and statistics in text).
     """
+    numbers = display_numbers(analysis, procedure)  # refuses a procedure that was not run
     key = procedure or analysis.recommendation.key
-    _check_procedure(analysis, key)
     result = analysis.procedures[key]
-    numbers = _numbers(analysis, key, result)
     paragraph = _paragraph(analysis, key, result, numbers)
     rows = _result_rows(analysis, key, result, numbers)
     head, body = _summary_rows(analysis, _summary_decimals(analysis, numbers.decimals))
