@@ -95,7 +95,8 @@ def test_the_sessions_problem_shows_in_the_bar_and_goes_when_solved(make_window,
     path = csv_file("plots_with_notes.csv", rows, ("field", "yield_t", "note"))
     window = make_window([path])
     qtbot.waitUntil(lambda: window.session.analysis is not None, timeout=60_000)
-    state, bar = window.session, window.message_bar
+    bar = window.message_bar
+    state = window.session
     assert bar.key is None and state.problem is None
     # a value column that holds only text: the engine's sentence names the column
     state.choose(value_columns=("note",))
