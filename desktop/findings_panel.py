@@ -238,7 +238,7 @@ class FindingsPanel(QWidget):
                     item.setTextAlignment(Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter)
                 self.table.setItem(row, column, item)
         metrics = self.table.fontMetrics()
-        natural = sum(max(metrics.horizontalAdvance(text) for text in column) + 24
+        natural = sum(max(metrics.horizontalAdvance(text) for text in column) + 32
                       for column in zip(*[row[:3] for row in rows], ("", "Value", f"{level} interval")))
         self.table.setMaximumWidth(natural + 2 * self.table.frameWidth())
         self._fit_table()
@@ -254,6 +254,11 @@ class FindingsPanel(QWidget):
         super().resizeEvent(event)
         if self.session.analysis is not None:
             self._fit_table()
+
+    def showEvent(self, event) -> None:  # noqa: N802 - Qt's name
+        super().showEvent(event)
+        if self.session.analysis is not None:
+            self._fit_table()  # the rows were fitted while the tab was hidden, at another width
 
     def _show_robustness(self, analysis, key: str) -> None:
         robustness = analysis.robustness

@@ -1,7 +1,9 @@
 """Pictures of the main screens for the README: ``python -m desktop.screens [FILE] [--dark]``.
 
-Opens FILE (default ``demo_files/bolt_strength.csv``) in the main window off screen, waits for
-the analysis, and saves each tab as a PNG in ``icons/screens/``. With ``--dark`` the pictures use
+Opens FILE (default ``demo_files/adhesive_cure_times.csv``, which has cells the screening leaves
+out) in the main window off screen, waits for the analysis, and saves in ``icons/screens/``:
+``0-your-data.png`` (the data and the set-up), the whole window with each tab
+(``1-which-procedure.png``, ``2-findings.png``) and each of those panels scrolled out in full. With ``--dark`` the pictures use
 a dark palette (their names end in ``-dark``), which shows the plots following the theme.
 """
 
@@ -18,8 +20,8 @@ __all__ = ["SCREEN_DIR", "DEFAULT_FILE", "prepared_session", "dark_palette", "sh
 
 ROOT = Path(__file__).resolve().parent.parent
 SCREEN_DIR = ROOT / "icons" / "screens"
-DEFAULT_FILE = ROOT / "demo_files" / "bolt_strength.csv"
-WINDOW_SIZE = (1280, 860)
+DEFAULT_FILE = ROOT / "demo_files" / "adhesive_cure_times.csv"
+WINDOW_SIZE = (1440, 900)  # 90% of a 1600 x 1000 screen, as the window opens there
 
 
 def prepared_session(path: Path) -> Any:
@@ -122,6 +124,7 @@ def shoot(path: Path, *, dark: bool = False) -> list[Path]:
         window.open_file(path)
         _settle(app, 60, lambda: window.session.analysis is not None and window.findings_panel is not None)
         _settle(app, 0.5)
+        written.append(_save(window.splitter.widget(0), f"0-your-data{suffix}"))
         tabs = window.findChild(QTabWidget)
         if tabs is None:
             written.append(_save(window, f"window{suffix}"))
