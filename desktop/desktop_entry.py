@@ -49,7 +49,7 @@ __all__ = [
 FILE_TYPES: Mapping[str, tuple[str, str]] = {
     ".csv": ("text/csv", "comma-separated values"),
     ".tsv": ("text/tab-separated-values", "tab-separated values"),
-    ".xlsx": ("application/vnd.openxmlformats-officedocument.spreadsheetml.sheet", "Excel workbook"),
+    ".xlsx": ("application/vnd.openxmlformats-officedocument.spreadsheetml.sheet", "spreadsheet workbook"),
     ".ods": ("application/vnd.oasis.opendocument.spreadsheet", "OpenDocument spreadsheet"),
 }
 PROG_ID = "Twofold.DataFile"

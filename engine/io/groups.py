@@ -273,7 +273,7 @@ def _wide_cells(table, names, pick):
 def _rows_text(table: Table, frame_rows: np.ndarray) -> str:
     shown = ", ".join(str(table.file_row(r)) for r in frame_rows[:_SHOWN])
     more = f" and {frame_rows.size - _SHOWN} more" if frame_rows.size > _SHOWN else ""
-    return f"file row{'s' if frame_rows.size > 1 else ''} {shown}{more}"
+    return f"row{'s' if frame_rows.size > 1 else ''} {shown}{more}"
 
 
 def _set_aside_cells(cells, set_aside, findings) -> tuple[list[np.ndarray], dict[tuple[int, str], str]]:

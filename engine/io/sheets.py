@@ -14,7 +14,7 @@ from .sniff import has_header
 
 __all__ = ["read_sheet", "sheet_names"]
 
-_KIND_NAMES = {"xlsx": "an Excel workbook", "xls": "an Excel 97-2003 workbook", "ods": "an OpenDocument spreadsheet"}
+_KIND_NAMES = {"xlsx": "a workbook (.xlsx)", "xls": "an older-format workbook (.xls)", "ods": "an OpenDocument spreadsheet (.ods)"}
 _HEADER_SAMPLE = 200
 
 
