@@ -440,6 +440,24 @@ def _exclusions(analysis) -> str:
     return f"{total:,} {verb} left out before the comparison ({detail})."
 
 
+def _verdict(analysis, key: str, result, numbers: DisplayNumbers) -> str:
+    """What the result says at the chosen level, so that a sample difference is not read as a
+    finding when the data cannot tell it from chance (and the reverse)."""
+    row = next((r for r in analysis.robustness.rows if r.key == key), None)
+    if row is None:
+        return ""
+    first, second = analysis.groups.labels
+    if result.alternative == "two-sided":
+        claim = "a difference between the groups"
+    else:
+        word = "higher" if result.alternative == "greater" else "lower"
+        claim = f"{first} being {word} than {second}"
+    if row.finds_difference:
+        return f"At {numbers.level} confidence the data give clear evidence of {claim}."
+    return (f"At {numbers.level} confidence the data do not give clear evidence of {claim}; "
+            "that does not show the groups are the same.")
+
+
 def _paragraph(analysis, key: str, result, numbers: DisplayNumbers) -> str:
     opening = _direction(analysis, key, result.estimate, numbers.decimals)
     estimate_name = result.estimate_name
@@ -450,6 +468,9 @@ def _paragraph(analysis, key: str, result, numbers: DisplayNumbers) -> str:
     test = _test_phrase(analysis, key, result, numbers)
     sentence = f"{opening}: {body}" + (f"; {test}." if test else ".")
     sentences = [sentence]
+    verdict = _verdict(analysis, key, result, numbers)
+    if verdict:
+        sentences.append(verdict)
     if numbers.effect is not None:
         effect = f"{numbers.effect_name} = {numbers.effect}"
         if numbers.effect_interval is not None:

@@ -363,3 +363,21 @@ def test_render_a_full_analysis_from_analyze(groups):
 ])
 def test_format_interval(interval, text):
     assert report.format_interval(interval) == text
+
+
+@pytest.mark.parametrize("shift, alternative", [(0.0, "two-sided"), (3.0, "two-sided"), (3.0, "greater")])
+def test_the_paragraph_says_what_the_result_means_at_the_chosen_level(shift, alternative):
+    from engine.analysis import analyze
+
+    rng = np.random.default_rng(31)
+    groups = Groups(("treated", "control"), rng.normal(10 + shift, 2, 30), rng.normal(10, 2, 30))
+    analysis = analyze(groups, Options(n_resamples=200, seed=1, alternative=alternative))
+    text = render(analysis, procedure="welch_t").paragraph
+    # reference: scipy.stats.ttest_ind(x, y, equal_var=False) at the 5% level
+    p = stats.ttest_ind(groups.x, groups.y, equal_var=False, alternative=alternative).pvalue
+    if p < 0.05:
+        assert "the data give clear evidence of" in text
+        if alternative == "greater":
+            assert "treated being higher than control" in text
+    else:
+        assert "do not give clear evidence" in text and "does not show the groups are the same" in text
