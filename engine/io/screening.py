@@ -142,10 +142,10 @@ def _rows_sharing_a_hash(table) -> np.ndarray:
                 bits = column.to_numpy().astype(np.uint64)
             else:
                 bits = table.factors(name)[0].astype(np.uint64)
-            np.bitwise_xor(combined, bits, out=combined)
             np.multiply(combined, _MIX, out=combined)
-            np.right_shift(combined, np.uint64(29), out=spare)
-            np.bitwise_xor(combined, spare, out=combined)
+            np.add(combined, bits, out=combined)
+        np.right_shift(combined, np.uint64(29), out=spare)
+        np.bitwise_xor(combined, spare, out=combined)
         np.multiply(combined, _MIX, out=spare)
         bins = np.right_shift(spare, np.uint64(64 - _BIN_BITS), out=spare)
     crowded = np.bincount(bins.astype(np.intp), minlength=1 << _BIN_BITS)[bins] > 1
