@@ -164,6 +164,9 @@ def _is_identifier(table: Table, name: str) -> bool:
         return False
     if np.all(np.diff(finite) > 0):
         return True
+    head = finite[:1000]
+    if np.unique(head).size < head.size:
+        return False  # a repeated value in the first rows: not all different
     ordered = np.sort(finite)
     return bool(np.all(np.diff(ordered) > 0))
 
@@ -178,7 +181,10 @@ def _best_grouping(table: Table, names: list[str], measures: list[str]) -> tuple
             values = table.numbers(name)
             if not _integer_codes(values) or len(measures) < 2 and name in measures:
                 continue
-            distinct = np.unique(values[np.isfinite(values)])
+            finite = values[np.isfinite(values)]
+            if np.unique(finite[:1000]).size > 2:
+                continue  # more than two codes in the first rows already
+            distinct = np.unique(finite)
             if distinct.size != 2:
                 continue
         elif _value_like(table, name):
