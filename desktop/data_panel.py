@@ -254,7 +254,11 @@ class DataPanel(QWidget):
         if total <= 0 or self.model.columnCount() == 0:
             return
         grid = self.grid
-        natural = (grid.verticalHeader().sizeHint().width() + grid.horizontalHeader().length()
+        # the row numbers' width from the longest number, not sizeHint(), which asks the model
+        # for hundreds of header labels
+        last = self.model.file_row(max(0, self.model.rowCount() - 1))
+        numbers = grid.verticalHeader().fontMetrics().horizontalAdvance("9" * len(str(last))) + 12
+        natural = (numbers + grid.horizontalHeader().length()
                    + grid.verticalScrollBar().sizeHint().width() + 2 * grid.frameWidth() + 4)
         left = round(min(max(natural, total * 0.35), total * 0.65))
         self.splitter.setSizes([left, total - left])

@@ -136,6 +136,9 @@ def startup(path: Path, runs: int) -> tuple[float, float]:
     return ref, own
 
 
+OPENS = 5  # the 1,000,000-row file is opened this many times; the medians are compared
+
+
 def big_file(rows: int = 1_000_000) -> None:
     os.environ.update({k: v for k, v in _environment().items() if k == "QT_QPA_PLATFORM"})
     sys.path.insert(0, str(ROOT))
@@ -155,16 +158,18 @@ def big_file(rows: int = 1_000_000) -> None:
             out.write("supplier,strength_mpa\n")
             out.writelines(f"{a},{b}\n" for a, b in zip(labels.tolist(), values.tolist()))
         io.propose_layout(io.read_table(path))  # warm caches and imports once
-        started = time.perf_counter()
-        io.propose_layout(io.read_table(path))
-        engine_time = time.perf_counter() - started
+        loads = []
+        for _ in range(OPENS):
+            started = time.perf_counter()
+            io.propose_layout(io.read_table(path))
+            loads.append(time.perf_counter() - started)
+        engine_time = statistics.median(loads)
 
         window = start([], settings=QSettings(str(Path(folder) / "s.ini"), QSettings.Format.IniFormat))
         app = QApplication.instance()
         window.session.choose(n_resamples=1_000)
         grid = window.data_panel.grid
         painted: list[float] = []
-
         loop = QEventLoop()
 
         class Watch(QObject):
@@ -176,16 +181,27 @@ def big_file(rows: int = 1_000_000) -> None:
         watch = Watch()
         grid.viewport().installEventFilter(watch)
         window.load_late_panels()  # as in a window that has been open a while (Open dialog, drop)
-        while window.import_worker.busy:
-            app.processEvents()
-            time.sleep(0.01)
-        for _ in range(50):
-            app.processEvents()
-            time.sleep(0.01)
-        started = time.perf_counter()
-        window.open_file(path)
-        loop.exec()
-        shown = painted[0] - started
+
+        def settle() -> None:
+            while window.import_worker.busy or window.groups_worker.busy or window.analysis_worker.busy:
+                app.processEvents()
+                time.sleep(0.01)
+            for _ in range(50):
+                app.processEvents()
+                time.sleep(0.01)
+
+        opens = []
+        for _ in range(OPENS):
+            settle()
+            painted.clear()
+            window.session.store("table", None)
+            settle()
+            started = time.perf_counter()
+            window.open_file(path)
+            loop.exec()
+            opens.append(painted[0] - started)
+            window.cancel()
+        shown = statistics.median(opens)
         started = time.perf_counter()
         grid.scrollToBottom()
         grid.viewport().repaint()
@@ -194,7 +210,8 @@ def big_file(rows: int = 1_000_000) -> None:
         window.cleanup()
     print(f"opening a {rows:,}-row CSV:")
     print(f"  engine read_table + propose_layout  {engine_time:.3f} s")
-    print(f"  window, open to painted grid        {shown:.3f} s")
+    print(f"  window, open to painted grid        {shown:.3f} s  (median of {OPENS}: "
+          + ", ".join(f"{t:.3f}" for t in opens) + ")")
     print(f"  ratio                               {shown / engine_time:.2f}x  (target at most 1.50x)")
     print(f"  scroll to the end and paint         {scrolled * 1000:.1f} ms (last row shown: {last + 1:,})")
 
