@@ -14,10 +14,11 @@ import html
 import sys
 from typing import Any, Callable, Mapping
 
-from PySide6.QtCore import QItemSelectionModel, QPoint, Qt, QUrl
+from PySide6.QtCore import QItemSelectionModel, QPoint, QSize, Qt, QUrl
 from PySide6.QtGui import QAction, QGuiApplication, QKeySequence
 from PySide6.QtWidgets import (
     QAbstractItemView,
+    QHeaderView,
     QHBoxLayout,
     QInputDialog,
     QLabel,
@@ -135,6 +136,23 @@ def _ask_reason(parent: QWidget) -> AskReason:
     return ask
 
 
+class RowNumbers(QHeaderView):
+    """The grid's row numbers, sized from the longest number rather than by asking the model
+    for hundreds of labels (what the stock header does on every reset of a big file)."""
+
+    def __init__(self, model: FrameModel, parent: QWidget | None = None) -> None:
+        super().__init__(Qt.Orientation.Vertical, parent)
+        self._frame_model = model
+        self.setSectionsClickable(True)
+        self.setHighlightSections(True)
+
+    def sizeHint(self) -> QSize:  # noqa: N802 - Qt's name
+        rows = self._frame_model.rowCount()
+        last = self._frame_model.file_row(rows - 1) if rows else 1
+        width = self.fontMetrics().horizontalAdvance("9" * len(str(last))) + 12
+        return QSize(width, self.defaultSectionSize())
+
+
 class DataPanel(QWidget):
     """The grid of the file's cells and, beside it, what was read and what will be compared."""
 
@@ -148,6 +166,7 @@ class DataPanel(QWidget):
         self.heading = QLabel("Open a data file to begin.", self)
         self.heading.setWordWrap(True)
         self.grid = QTableView(self)
+        self.grid.setVerticalHeader(RowNumbers(self.model, self.grid))
         self.grid.setModel(self.model)
         self.grid.setObjectName("data_grid")
         self.grid.setToolTip("The cells of your file as they were read. The file itself is never changed.")
@@ -254,11 +273,7 @@ class DataPanel(QWidget):
         if total <= 0 or self.model.columnCount() == 0:
             return
         grid = self.grid
-        # the row numbers' width from the longest number, not sizeHint(), which asks the model
-        # for hundreds of header labels
-        last = self.model.file_row(max(0, self.model.rowCount() - 1))
-        numbers = grid.verticalHeader().fontMetrics().horizontalAdvance("9" * len(str(last))) + 12
-        natural = (numbers + grid.horizontalHeader().length()
+        natural = (grid.verticalHeader().sizeHint().width() + grid.horizontalHeader().length()
                    + grid.verticalScrollBar().sizeHint().width() + 2 * grid.frameWidth() + 4)
         left = round(min(max(natural, total * 0.35), total * 0.65))
         self.splitter.setSizes([left, total - left])

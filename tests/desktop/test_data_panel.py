@@ -107,3 +107,37 @@ def test_reasons_are_in_words(panel):
     text = panel.report.toPlainText()
     assert "blank or marked as missing: 1" in text
     assert "not a number: 1" in text
+
+
+def test_a_million_rows_show_without_asking_for_hundreds_of_row_labels(qtbot, tmp_path, monkeypatch):
+    import numpy as np
+
+    from desktop.table_model import FrameModel
+
+    rows = 1_000_000
+    path = tmp_path / "million.csv"
+    rng = np.random.default_rng(4)
+    with path.open("w") as out:
+        out.write("site,yield_t\n")
+        out.writelines(f"{'north' if a else 'south'},{b}\n"
+                       for a, b in zip((rng.random(rows) < 0.5).tolist(), np.round(rng.normal(6, 1, rows), 2).tolist()))
+    asked = []
+    original = FrameModel.headerData
+
+    def counting(self, section, orientation, role=0):
+        if orientation.name == "Vertical":
+            asked.append(section)
+        return original(self, section, orientation, role)
+
+    monkeypatch.setattr(FrameModel, "headerData", counting)
+    session = Session()
+    panel = DataPanel(session)
+    qtbot.addWidget(panel)
+    panel.show()
+    session.choose(path=path)
+    session.store("table", io.read_table(path))
+    panel.grab()  # paints the grid, its row numbers included
+    # only the row numbers on screen are asked for (the stock header asks for about 1,600)
+    assert panel.model.rowCount() == rows
+    assert 0 < len(asked) < 200
+    panel.cleanup()
