@@ -75,7 +75,7 @@ def _load(args):
         if group is None:
             raise TwofoldError(f"{args.path.name}: name the group column with --group, "
                                "or give --value twice for one column per group.")
-    if len(values) >= 2 and group is None and len(values) != 2:
+    if len(values) > 2 and group is None:
         raise TwofoldError(f"{args.path.name}: give exactly two --value columns for one column per group.")
     if len(values) > 1 and group is not None:
         raise TwofoldError(f"{args.path.name}: with --group, give one --value column, not {len(values)}.")

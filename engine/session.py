@@ -46,7 +46,6 @@ class Session:
 
     def __init__(self) -> None:
         self._listeners: list[Listener] = []
-        self._notifying = False
         self.choices = Choices()
         self.table = None      # engine.io.Table
         self.intake = None     # engine.io.Intake: groups and screening report
