@@ -35,7 +35,11 @@ def frozen_mapping(items: Mapping[str, Any] | None = None) -> Mapping[str, Any]:
 
 
 def readonly_array(values: Any) -> np.ndarray:
-    """A float64 copy of ``values`` that cannot be written to."""
+    """``values`` as a float64 array that cannot be written to: a copy, unless ``values`` is
+    already a read-only float64 array that owns its memory (then no view can change it)."""
+    if (isinstance(values, np.ndarray) and values.dtype == np.float64 and values.base is None
+            and not values.flags.writeable):
+        return values
     array = np.array(values, dtype=float, copy=True)
     array.setflags(write=False)
     return array

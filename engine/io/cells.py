@@ -77,7 +77,8 @@ def settle_column(column: pd.Series, *, decimal: str, thousands: str | None) -> 
     """Return the column as it will sit in ``Table.frame`` and its kind.
 
     Clean numeric columns become float64 (integers too, unless too large to hold exactly: those
-    are identifiers and stay text). Columns read as categories go back to text. Text columns
+    are identifiers and stay text). Columns read as categories stay categories (codes into the
+    distinct texts: no per-cell text objects), unless every filled cell is a number. Text columns
     whose every filled cell is a number become float64 ("number"); some numbers -> "mixed";
     none -> "text"; nothing filled -> "empty".
     """
@@ -111,24 +112,31 @@ def _settle_categories(column: pd.Series, *, decimal: str, thousands: str | None
     codes = column.cat.codes.to_numpy()
     numbers = coerce_numbers(pd.Series(categories, dtype=object), decimal=decimal, thousands=thousands)
     blank = np.array([not c.strip() for c in categories], dtype=bool)
-    as_text = pd.Series(np.append(categories, np.nan).take(codes), index=column.index,
-                        name=column.name, dtype=object)
-    present = np.zeros(len(categories), dtype=bool)
-    if len(categories) <= 64:
-        for k in range(len(categories)):
-            present[k] = bool((codes == k).any())
-    else:
-        present[np.unique(codes[codes >= 0])] = True
+    present = _codes_present(codes, len(categories))
     filled = present & ~blank
     numeric = filled & ~np.isnan(numbers)
     if not filled.any():
-        return as_text, "empty"
+        return column, "empty"
     if not numeric.any():
-        return as_text, "text"
+        return column, "text"
     if numeric.sum() == filled.sum() and not (present & blank).any():
         values = np.append(numbers, np.nan)[codes]
         return pd.Series(values, index=column.index, name=column.name), "number"
-    return as_text, "mixed"
+    return column, "mixed"
+
+
+def _codes_present(codes: np.ndarray, count: int) -> np.ndarray:
+    """Which of the codes 0..count-1 occur; the first rows usually show them all."""
+    present = np.zeros(count, dtype=bool)
+    head = codes[:4096]
+    present[head[head >= 0]] = True
+    if not present.all():
+        if count <= 64:
+            for k in np.flatnonzero(~present):
+                present[k] = bool((codes == k).any())
+        else:
+            present = np.bincount(codes.astype(np.intp) + 1, minlength=count + 1)[1:] > 0
+    return present
 
 
 def _numbers_by_distinct_cell(column: pd.Series, *, decimal: str, thousands: str | None) -> tuple[np.ndarray, np.ndarray]:

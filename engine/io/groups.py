@@ -12,11 +12,11 @@ from ..results import Finding, Groups
 from ._files import wrap_unexpected
 from .cells import cell_text, is_missing_marker
 from .layout import trimmed_levels
+from .repeats import duplicate_rows
 from .screening import (
     MAX_LISTED_EXCLUSIONS,
     Exclusion,
     ScreeningReport,
-    duplicate_rows,
     identifier_candidates,
     paired_sign,
     possible_slips,
@@ -184,6 +184,7 @@ def _make_groups(table, *, values, group, pick, set_aside) -> Intake:
         if group == names[0]:
             raise ColumnProblem(f"Column '{group}' cannot hold both the groups and the values.")
         _check_measurements(table, names[0])
+    if group is not None:
         cells, other_rows = _long_cells(table, names[0], group, pick, findings, extra)
     else:
         cells = _wide_cells(table, names, pick)
@@ -343,8 +344,11 @@ def _screen(table, cells, group, other_rows, set_aside, findings, extra) -> Inta
             for row, text in items[:MAX_LISTED_EXCLUSIONS]:
                 listed.append((row, c.column, c.label, reason, text))
         findings.extend(_exclusion_findings(table, c, k, per_group))
-        used_values.append(numbers[used])
-        used_rows.append(np.array(c.frame_rows[used], dtype=np.int64))
+        values = numbers if clean else numbers[used]
+        values.setflags(write=False)  # an owned, read-only array passes into Groups uncopied
+        used_values.append(values)
+        rows = c.frame_rows if clean else c.frame_rows[used]
+        used_rows.append(rows.astype(np.int64, copy=False))
     labels = (cells[0].label, cells[1].label)
     n_used = (int(used_values[0].size), int(used_values[1].size))
     for k in (0, 1):
@@ -354,8 +358,8 @@ def _screen(table, cells, group, other_rows, set_aside, findings, extra) -> Inta
                 f"'{cells[k].column}' of {table.path.name}; at least 2 are needed.")
     slips: list[Finding] = []
     for k in (0, 1):
-        slips.extend(possible_slips(used_values[k], used_rows[k] + offset, label=labels[k],
-                                    group=k, column=cells[k].column))
+        slips.extend(possible_slips(used_values[k], used_rows[k], label=labels[k], group=k,
+                                    column=cells[k].column, row_offset=offset))
     def counted() -> np.ndarray:
         keep = np.ones(len(frame), dtype=bool)
         for c in cells:  # rows whose value cell is blank repeat each other without meaning

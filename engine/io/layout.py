@@ -45,21 +45,11 @@ def trimmed_levels(table: Table, column: str) -> tuple[list[str], np.ndarray, di
 
 def _trimmed_levels(table: Table, column: str) -> tuple[list[str], np.ndarray, dict[str, set[str]]]:
     codes, texts = table.factors(column)
-    if len(texts) <= 64:
-        firsts = []
-        for k in range(len(texts)):
-            hits = codes == k
-            firsts.append(int(hits.argmax()) if hits.any() else codes.size)
-    else:
-        firsts = [codes.size] * len(texts)
-        present, where = np.unique(codes, return_index=True)
-        for k, first in zip(present, where):
-            if k >= 0:
-                firsts[int(k)] = int(first)
+    firsts = _first_rows(codes, len(texts))
     labels: list[str] = []
     index: dict[str, int] = {}
     spellings: dict[str, set[str]] = {}
-    remap = np.full(len(texts) + 1, -1, dtype=np.int64)  # the last slot serves code -1
+    remap = np.full(len(texts) + 1, -1, dtype=np.min_scalar_type(-len(texts) - 1))  # the last slot serves code -1
     for k in sorted(range(len(texts)), key=lambda k: firsts[k]):
         label = texts[k].strip()
         if not label or firsts[k] == codes.size:
@@ -72,13 +62,31 @@ def _trimmed_levels(table: Table, column: str) -> tuple[list[str], np.ndarray, d
     return labels, remap[codes], spellings
 
 
-def _integer_codes(values: np.ndarray) -> bool:
-    head = values[:1000]
-    head = head[np.isfinite(head)]
-    if head.size and not np.all(head == np.round(head)):
-        return False
-    finite = values[np.isfinite(values)]
-    return finite.size > 0 and bool(np.all(finite == np.round(finite)))
+def _first_rows(codes: np.ndarray, count: int) -> list[int]:
+    """The first position of each code 0..count-1 (``codes.size`` for a code never used).
+
+    Labels usually all turn up near the top, so the first rows are searched first and the
+    whole column only for the codes not seen there.
+    """
+    firsts = [codes.size] * count
+    missing = list(range(count))
+    for part in (codes[:4096], codes):
+        if not missing:
+            break
+        if count > 64:
+            present, where = np.unique(part, return_index=True)
+            found = dict(zip(present.tolist(), where.tolist()))
+        else:
+            found = {}
+            for k in missing:
+                hits = part == k
+                if hits.any():
+                    found[k] = int(hits.argmax())
+        for k in missing:
+            if k in found:
+                firsts[k] = int(found[k])
+        missing = [k for k in missing if k not in found]
+    return firsts
 
 
 def _value_like(table: Table, name: str) -> bool:
@@ -154,21 +162,34 @@ def propose_layout(table: Table) -> LayoutProposal:
 
 
 def _is_identifier(table: Table, name: str) -> bool:
-    values = table.numbers(name)
-    if looks_like_id_name(name):
-        return _integer_codes(values)
-    if not _integer_codes(values):
+    """Whole numbers named like an identifier, or whole numbers that are all different."""
+    if not table.whole_numbers(name):
         return False
+    if looks_like_id_name(name):
+        return True
+    values = table.numbers(name)
+    head = values[:1000]
+    head = head[np.isfinite(head)]
+    if np.unique(head).size < head.size:
+        return False  # a repeated value in the first rows: not all different
+    if values.size >= 3 and table.strictly_rising(name):
+        return True  # a running number: one comparison pass
     finite = values[np.isfinite(values)]
     if finite.size < 3:
         return False
-    if np.all(np.diff(finite) > 0):
-        return True
-    head = finite[:1000]
-    if np.unique(head).size < head.size:
-        return False  # a repeated value in the first rows: not all different
     ordered = np.sort(finite)
     return bool(np.all(np.diff(ordered) > 0))
+
+
+def _two_codes(values: np.ndarray) -> bool:
+    """True if the column's finite values take exactly two distinct values."""
+    head = values[:1000]
+    codes = np.unique(head[np.isfinite(head)])
+    if codes.size > 2:
+        return False  # more than two codes in the first rows already
+    if codes.size == 2:
+        return bool(np.all((values == codes[0]) | (values == codes[1]) | ~np.isfinite(values)))
+    return np.unique(values[np.isfinite(values)]).size == 2
 
 
 def _best_grouping(table: Table, names: list[str], measures: list[str]) -> tuple[str | None, list[str], str]:
@@ -178,14 +199,9 @@ def _best_grouping(table: Table, names: list[str], measures: list[str]) -> tuple
         if kind == "empty" or looks_like_id_name(name):
             continue
         if kind == "number":
-            values = table.numbers(name)
-            if not _integer_codes(values) or len(measures) < 2 and name in measures:
+            if not table.whole_numbers(name) or len(measures) < 2 and name in measures:
                 continue
-            finite = values[np.isfinite(values)]
-            if np.unique(finite[:1000]).size > 2:
-                continue  # more than two codes in the first rows already
-            distinct = np.unique(finite)
-            if distinct.size != 2:
+            if not _two_codes(table.numbers(name)):
                 continue
         elif _value_like(table, name):
             continue

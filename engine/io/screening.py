@@ -21,7 +21,6 @@ __all__ = [
     "EXCLUSION_REASONS",
     "MAX_LISTED_EXCLUSIONS",
     "FAR_OUT_IQR",
-    "duplicate_rows",
     "possible_slips",
     "paired_sign",
     "identifier_candidates",
@@ -71,91 +70,6 @@ class ScreeningReport:
         object.__setattr__(self, "findings", tuple(self.findings))
 
 
-def duplicate_rows(table, *, counted=None) -> np.ndarray:
-    """Frame rows that repeat an earlier row in every column.
-
-    Only rows where ``counted()`` (a function giving a boolean mask) is True are reported (the
-    caller leaves out rows whose value cells are blank, which repeat each other without meaning
-    anything); blank rows never count.
-
-    Notes
-    -----
-    A number column that never repeats a value (a running number, or unrounded measurements)
-    settles it at once. Otherwise each row gets a 64-bit hash of its cells (float bits with -0.0 and NaN made canonical,
-    integers, and the column's factor codes for text). Rows whose hash is unique cannot repeat
-    another row; the rest, usually few, are compared cell by cell, so the answer is exact. The
-    first filter counts hashes in about four million bins, which costs a fraction of a full
-    hash-table pass over a million rows.
-    """
-    frame = table.frame
-    n = len(frame)
-    if n < 2 or frame.shape[1] == 0:
-        return np.empty(0, dtype=np.int64)
-    part = frame
-    if n > 50_000:
-        if _some_column_never_repeats(table):
-            return np.empty(0, dtype=np.int64)
-        candidates = _rows_sharing_a_hash(table)
-        if candidates.size == 0:
-            return np.empty(0, dtype=np.int64)
-        part = frame.iloc[candidates]
-    repeated = part.duplicated(keep="first").to_numpy()
-    rows = part.index.to_numpy()[repeated]
-    if counted is not None and rows.size:
-        rows = rows[counted()[rows]]
-    if rows.size:
-        blank = frame.loc[rows].isna().all(axis=1).to_numpy()
-        rows = rows[~blank]
-    return rows.astype(np.int64)
-
-
-def _some_column_never_repeats(table) -> bool:
-    """True when a number column holds no value twice (then no row can repeat another)."""
-    frame = table.frame
-    numbers = [name for name in frame.columns if frame[name].dtype.kind in "fi"]
-    if any(table.strictly_rising(name) for name in numbers):
-        return True  # a running number: one comparison pass
-    for name in numbers[:1]:  # one sort is worth trying; more rarely pay off
-        ordered = np.sort(frame[name].to_numpy())
-        if not np.any(ordered[1:] == ordered[:-1]) and not np.isnan(ordered[-2:]).all():
-            return True
-    return False
-
-
-_MIX = np.uint64(0x9E3779B97F4A7C15)  # 2^64 / golden ratio, the usual multiplicative mixer
-_BIN_BITS = 22
-
-
-def _rows_sharing_a_hash(table) -> np.ndarray:
-    """Positions of the rows whose row hash occurs more than once (in ascending order)."""
-    frame = table.frame
-    combined = np.zeros(len(frame), dtype=np.uint64)
-    spare = np.empty_like(combined)
-    with np.errstate(over="ignore"):
-        for name in frame.columns:
-            column = frame[name]
-            if column.dtype == np.float64:
-                values = np.add(column.to_numpy(), 0.0)  # a copy in which -0.0 is 0.0
-                values[np.isnan(values)] = np.nan
-                bits = values.view(np.uint64)
-            elif column.dtype.kind in "iub":
-                bits = column.to_numpy().astype(np.uint64)
-            else:
-                bits = table.factors(name)[0].astype(np.uint64)
-            np.multiply(combined, _MIX, out=combined)
-            np.add(combined, bits, out=combined)
-        np.right_shift(combined, np.uint64(29), out=spare)
-        np.bitwise_xor(combined, spare, out=combined)
-        np.multiply(combined, _MIX, out=spare)
-        bins = np.right_shift(spare, np.uint64(64 - _BIN_BITS), out=spare)
-    crowded = np.bincount(bins.astype(np.intp), minlength=1 << _BIN_BITS)[bins] > 1
-    positions = np.flatnonzero(crowded)
-    if positions.size == 0:
-        return positions
-    shared = pd.Series(combined[positions]).duplicated(keep=False).to_numpy()
-    return positions[shared]
-
-
 def _fences(values: np.ndarray) -> tuple[float, float, float, float] | None:
     if values.size < 5:
         return None
@@ -176,6 +90,7 @@ def possible_slips(
     label: str,
     group: int,
     column: str,
+    row_offset: int = 0,
 ) -> list[Finding]:
     """Values that look like data-entry slips: flagged, never removed.
 
@@ -184,9 +99,11 @@ def possible_slips(
     values : numpy.ndarray
         The group's usable values.
     file_rows : numpy.ndarray
-        The file row of each value, for the messages.
+        The file row of each value, less ``row_offset``, for the messages.
     label, group, column
         The group's label and index (0 or 1) and the column name, for the messages.
+    row_offset : int
+        Added to ``file_rows`` (frame rows can be passed with the table's offset).
 
     Returns
     -------
@@ -219,7 +136,7 @@ def possible_slips(
     findings: list[Finding] = []
     for i in flagged[:MAX_SLIPS_LISTED]:
         value = float(values[i])
-        where = f"Row {int(file_rows[i])} of '{column}'" + (f" (group '{label}')" if label != column else "")
+        where = f"Row {int(file_rows[i]) + row_offset} of '{column}'" + (f" (group '{label}')" if label != column else "")
         if shift[i]:
             power = 10 ** abs(int(shift[i]))
             times = f"{power} times" if shift[i] > 0 else f"1/{power} of"
@@ -303,12 +220,6 @@ def identifier_candidates(table, skip: Sequence[str]) -> list[str]:
         if looks_like_id_name(name):
             names.append(name)
             continue
-        if table.column_kinds[name] == "number":
-            values = table.numbers(name)
-            head = values[:1000]
-            head = head[np.isfinite(head)]
-            if head.size and np.all(head == np.round(head)):
-                finite = values[np.isfinite(values)]
-                if finite.size and np.all(finite == np.round(finite)):
-                    names.append(name)
+        if table.column_kinds[name] == "number" and table.whole_numbers(name):
+            names.append(name)
     return names[:3]

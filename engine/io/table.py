@@ -46,6 +46,7 @@ class Table:
         object.__setattr__(self, "_numbers", {})
         object.__setattr__(self, "_factors", {})
         object.__setattr__(self, "_rising", {})
+        object.__setattr__(self, "_whole", {})
         object.__setattr__(self, "_levels", {})
 
     def file_row(self, frame_row: int) -> int:
@@ -73,9 +74,23 @@ class Table:
             rising = False
             if self.column_kinds[column] == "number" and len(self.frame) > 1:
                 values = self.frame[column].to_numpy()
-                rising = bool(values[0] < values[1] and (values[1:] > values[:-1]).all())
+                head = values[:1000]
+                rising = bool((head[1:] > head[:-1]).all() and (values[1:] > values[:-1]).all())
             self._rising[column] = rising
         return self._rising[column]
+    def whole_numbers(self, column: str) -> bool:
+        """True if the column holds at least one finite number and every finite number in it is
+        a whole number (codes, counts, identifiers); cached per column."""
+        if column not in self._whole:
+            values = self.numbers(column)
+            head = values[:1000]
+            whole = bool(np.all((head == np.trunc(head)) | np.isnan(head)))
+            if whole:  # trunc leaves infinities alone and turns no finite fraction whole
+                missing = int(np.count_nonzero(np.isnan(values)))
+                whole = int(np.count_nonzero(values == np.trunc(values))) == values.size - missing
+                whole = whole and missing < values.size and bool(np.isfinite(values).any())
+            self._whole[column] = whole
+        return self._whole[column]
 
     def factors(self, column: str) -> tuple[np.ndarray, list[str]]:
         """Integer codes of the column's cells (-1 for a missing cell) and the distinct cell

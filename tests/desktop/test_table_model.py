@@ -114,3 +114,12 @@ def test_scrolling_a_view_to_the_end_of_a_million_rows_is_quick(qtbot, million):
     view.viewport().repaint()
     assert time.perf_counter() - started < 1.0
     assert view.rowAt(view.viewport().height() - 2) > 999_900
+
+
+def test_a_label_column_read_as_categories_shows_its_texts_and_blanks():
+    frame = pd.DataFrame({"site": pd.Categorical(["upper field", None, "lower field"]),
+                          "yield_t_ha": [7.1, 6.8, np.nan]})
+    model = FrameModel()
+    model.set_table(make_table(frame, {"site": "text", "yield_t_ha": "number"}))
+    shown = [[model.data(model.index(r, c)) for c in range(2)] for r in range(3)]
+    assert shown == [["upper field", "7.1"], ["", "6.8"], ["lower field", ""]]

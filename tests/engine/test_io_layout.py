@@ -83,3 +83,17 @@ def test_identifier_names_are_not_values(tmp_path, name):
     proposal = propose_layout(_table(tmp_path, f"{name},group,value\n" + rows))
     assert name not in proposal.value_columns
     assert proposal.value_columns == ("value",)
+
+
+def test_labels_that_first_appear_far_down_are_listed_in_order(tmp_path):
+    # reference: the order of first appearance, counted by hand from the rows written
+    rows = ["slow,7.5"] * 5000 + ["split,7.1"] * 3 + ["slow ,7.9"] + ["late,6.0"] * 2
+    table = _table(tmp_path, "regime,yield\n" + "\n".join(rows) + "\n")
+    assert propose_layout(table).levels == ("slow", "split", "late")
+
+
+def test_whole_numbers_allow_blanks_and_infinities_but_not_fractions(tmp_path):
+    table = _table(tmp_path, "plot,lot,dose\n" + "".join(
+        f"{i},{'' if i % 10 == 0 else ('inf' if i == 7 else i % 4)},{i / 4}\n" for i in range(1, 3000)))
+    assert table.whole_numbers("plot") and table.whole_numbers("lot")
+    assert not table.whole_numbers("dose")  # 0.25, 0.5, ... (whole from row 4 on, now and then)

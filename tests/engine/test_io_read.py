@@ -284,3 +284,17 @@ def test_sheet_cells_match_pandas_calamine(tmp_path):
 
     assert [plain(v) for v in table.frame["cure"]] == [plain(v) for v in expected["cure"]]
     assert table.frame["batch"].isna().tolist() == expected["batch"].isna().tolist()
+
+
+def test_label_columns_stay_categories_and_read_back_as_their_texts(tmp_path):
+    # a label column is held as codes into its few distinct texts, not as a text per cell;
+    # reference: the texts as written
+    labels = ["north forge", "south forge", "north forge", "", "south forge"] * 200
+    rows = "".join(f"{label},{800 + i % 7}.5\n" for i, label in enumerate(labels))
+    path = tmp_path / "labels.csv"
+    path.write_text("supplier,strength\n" + rows, encoding="utf-8")
+    table = read_table(path)
+    cells = table.frame["supplier"]
+    assert isinstance(cells.dtype, pd.CategoricalDtype)
+    assert table.column_kinds["supplier"] == "text"
+    assert [("" if pd.isna(v) else v) for v in cells.to_numpy(dtype=object)] == labels
