@@ -19,7 +19,6 @@ from __future__ import annotations
 import argparse
 import json
 import os
-import resource
 import statistics
 import subprocess
 import sys
@@ -96,6 +95,17 @@ def _rss_bytes() -> int:
         return int(handle.read().split()[1]) * os.sysconf("SC_PAGE_SIZE")
 
 
+def _peak_rss_bytes() -> int:
+    """This process's peak resident set (VmHWM). Not ``ru_maxrss``: Linux carries that over
+    from the parent at fork and across exec, so a child of a large parent reports the
+    parent's size."""
+    with open("/proc/self/status") as handle:
+        for line in handle:
+            if line.startswith("VmHWM:"):
+                return int(line.split()[1]) * 1024
+    raise RuntimeError("no VmHWM line in /proc/self/status")
+
+
 def child(path: Path, which: str) -> None:
     """Run one load in this fresh process and print its peak memory as JSON."""
     import tracemalloc
@@ -108,7 +118,7 @@ def child(path: Path, which: str) -> None:
         pd.read_csv(path)
     _, peak = tracemalloc.get_traced_memory()
     tracemalloc.stop()
-    grown = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss * 1024 - before
+    grown = _peak_rss_bytes() - before
     print(json.dumps({"tracemalloc_peak": peak, "rss_growth": grown}))
 
 
