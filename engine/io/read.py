@@ -14,7 +14,7 @@ from ..results import Finding
 from ._files import HEAD_BYTES, SHEET_KINDS, check_path, one_line, read_head, wrap_unexpected
 from .cells import settle_column
 from .sniff import DELIMITER_NAMES, TextFormat, sniff_text
-from .table import Table, remember_factors, with_rows_above
+from .table import Table, line_breaks, remember_factors, with_rows_above
 
 __all__ = ["read_table"]
 
@@ -77,8 +77,9 @@ def _read_text(path: Path, kind: str, head: bytes, *, truncated: bool, sheet: st
         frame = _parse(path, fmt, encoding)
     if sheet is not None:
         notes.append(f"A sheet ('{sheet}') was asked for, but a text file has no sheets.")
+    header_lines = 1 + sum(line_breaks(str(name)) for name in frame.columns) if fmt.header else 0
     return build_table(path, kind, frame, fmt=fmt, encoding=encoding, notes=notes,
-                       rows_above=fmt.skip_rows + (1 if fmt.header else 0))
+                       rows_above=fmt.skip_rows + header_lines)
 
 
 def _parse(path: Path, fmt: TextFormat, encoding: str) -> pd.DataFrame:
@@ -132,7 +133,7 @@ def _clean_names(names: list[object], header: bool) -> tuple[list[str], list[str
         text = "" if raw is None or (isinstance(raw, float) and np.isnan(raw)) else str(raw)
         if isinstance(raw, float) and raw.is_integer():
             text = str(int(raw))
-        name = text.strip()
+        name = " ".join(text.split()) if ("\n" in text or "\r" in text) else text.strip()
         if not header or not name or name.startswith("Unnamed: "):
             name = f"column {j + 1}"
             if header:
@@ -142,7 +143,11 @@ def _clean_names(names: list[object], header: bool) -> tuple[list[str], list[str
             name = f"{base} ({k})"
             k += 1
         if header and name != text and text and not text.startswith("Unnamed: "):
-            notes.append(f"Column name '{text}' is used as '{name}'.")
+            if line_breaks(text):
+                notes.append(f"The name of column {j + 1} is written on {line_breaks(text) + 1} "
+                             f"lines; it is used as '{name}'.")
+            else:
+                notes.append(f"Column name '{text}' is used as '{name}'.")
         seen.add(name)
         clean.append(name)
     return clean, notes

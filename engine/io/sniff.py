@@ -20,6 +20,7 @@ __all__ = ["TextFormat", "detect_encoding", "sniff_text", "has_header", "DELIMIT
 DELIMITER_NAMES = {",": "comma", ";": "semicolon", "\t": "tab", "|": "pipe", " ": "spaces"}
 _CANDIDATES = (",", ";", "\t", "|")
 _SAMPLE_LINES = 200
+_MAX_TITLE_ROWS = 20
 # zip (xlsx, ods), PDF, OLE2 (xls, doc), PNG, JPEG, GIF, gzip
 _BINARY_SIGNATURES = (b"PK\x03\x04", b"%PDF", b"\xd0\xcf\x11\xe0", b"\x89PNG", b"\xff\xd8\xff", b"GIF8", b"\x1f\x8b")
 
@@ -45,7 +46,7 @@ class TextFormat:
     decimal: str
     thousands: str | None
     header: bool
-    skip_rows: int              # blank lines before the first row
+    skip_rows: int              # lines before the first row (blank lines, title lines)
     text_columns: tuple[int, ...]  # columns whose sampled cells are words with few distinct values
     notes: tuple[str, ...]      # plain sentences about the choices, for Table.notes
 
@@ -132,6 +133,40 @@ def _choose_delimiter(text: str, kind: str) -> tuple[str, list[list[str]]]:
         best = "\t" if kind == "tsv" else ","
         best_rows = _rows(text, best)
     return best, best_rows or []
+
+
+def _title_rows(body: str, delimiter: str, rows: list[list[str]]) -> tuple[list[str], int, int]:
+    """Title lines above the table (a report name, an operator, a date): their texts, the
+    number of sample rows and the number of file lines they take, blank lines included.
+
+    A title row has fewer cells than the table's usual width, or at most one filled cell; the
+    table starts at the first row that has the usual width and two or more filled cells.
+    Up to 20 such rows are looked for; the caller keeps them unless column names follow.
+    """
+    if delimiter == " " or len(rows) < 3:
+        return [], 0, 0
+    _, width = _delimiter_score(rows)
+    if width < 2:
+        return [], 0, 0
+    start = 0
+    while start < min(len(rows) - 2, _MAX_TITLE_ROWS):
+        row = rows[start]
+        if len(row) == width and sum(1 for cell in row if cell.strip()) >= 2:
+            break
+        start += 1
+    else:
+        return [], 0, 0
+    if start == 0:
+        return [], 0, 0
+    reader = csv.reader(io.StringIO(body), delimiter=delimiter, quotechar='"')
+    for _ in range(start):
+        next(reader)
+    texts = [" ".join(cell.strip() for cell in row if cell.strip()) for row in rows[:start]]
+    return [t for t in texts if t], start, reader.line_num
+
+
+def _shorten(text: str, limit: int = 40) -> str:
+    return text if len(text) <= limit else text[: limit - 3].rstrip() + "..."
 
 
 def _number_tokens(rows: list[list[str]]) -> list[str]:
@@ -293,8 +328,15 @@ def sniff_text(head: bytes, *, name: str, kind: str, truncated: bool) -> TextFor
     if not body.strip():
         raise FileProblem(f"{name} holds no data (only blank lines).")
     delimiter, rows = _choose_delimiter(body, kind)
+    titles, title_rows, title_lines = _title_rows(body, delimiter, rows)
+    rows = rows[title_rows:]
     decimal, thousands, decimal_notes = _choose_decimal(_number_tokens(rows), delimiter)
     header, why = has_header(rows, decimal, thousands)
+    if titles and not header:  # titles sit above column names; above bare data, keep every row
+        titles, title_lines = [], 0
+        delimiter, rows = _choose_delimiter(body, kind)
+        decimal, thousands, decimal_notes = _choose_decimal(_number_tokens(rows), delimiter)
+        header, why = has_header(rows, decimal, thousands)
     notes = [f"Read as {encoding_name} text with cells separated by "
              f"{DELIMITER_NAMES[delimiter]}s." if delimiter != " " else
              f"Read as {encoding_name} text with cells separated by spaces."]
@@ -304,9 +346,14 @@ def sniff_text(head: bytes, *, name: str, kind: str, truncated: bool) -> TextFor
         notes.append(f"'{thousands}' is read as a thousands separator (for example 1{thousands}250 "
                      "is one thousand two hundred and fifty).")
     notes.extend(decimal_notes)
-    notes.append(("The first row holds column names: " if header else
-                  "The first row is data, not column names: ") + why + ".")
+    first = f"Line {skip + title_lines + 1}" if titles else "The first row"
+    notes.append((f"{first} holds column names: " if header else
+                  f"{first} is data, not column names: ") + why + ".")
     if skip:
         notes.append(f"{skip} blank line(s) at the top of the file were passed over.")
-    return TextFormat(codec, delimiter, decimal, thousands, header, skip,
+    if titles:
+        shown = "; ".join(f"'{_shorten(t)}'" for t in titles[:2]) + ("; ..." if len(titles) > 2 else "")
+        notes.append(f"{title_lines} line(s) of title above the column names were passed over "
+                     f"({shown}).")
+    return TextFormat(codec, delimiter, decimal, thousands, header, skip + title_lines,
                       _text_columns(rows, header, decimal, thousands), tuple(notes))

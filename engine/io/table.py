@@ -47,14 +47,24 @@ class Table:
         object.__setattr__(self, "_factors", {})
         object.__setattr__(self, "_rising", {})
         object.__setattr__(self, "_whole", {})
+        object.__setattr__(self, "_lines", {})
         object.__setattr__(self, "_levels", {})
 
     def file_row(self, frame_row: int) -> int:
-        """The 1-based row number a user sees for ``frame_row`` in a spreadsheet or text editor.
+        """The 1-based row number a user sees for ``frame_row`` in a spreadsheet, or the line
+        where the row starts in a text editor.
 
-        Exact unless a quoted cell spans several lines above that row.
+        In a text file a quoted cell may hold line breaks; each one moves the rows below it
+        down a line (worked out from the cells, once, on the first call).
         """
-        return int(frame_row) + 1 + self._rows_above
+        line = int(frame_row) + 1 + self._rows_above
+        if "breaks" not in self._lines:
+            self._lines["breaks"] = _rows_with_line_breaks(self) if self.kind in _TEXT_KINDS else None
+        breaks = self._lines["breaks"]
+        if breaks is None:
+            return line
+        rows, before = breaks
+        return line + int(before[np.searchsorted(rows, frame_row, side="left")])
 
     def numbers(self, column: str):
         """The column as float64, NaN where a cell is not a number (cached per column)."""
@@ -101,6 +111,32 @@ class Table:
             codes, uniques = pd.factorize(self.frame[column], use_na_sentinel=True)
             self._factors[column] = (codes, [cell_text(u) for u in uniques])
         return self._factors[column]
+
+
+_TEXT_KINDS = frozenset({"csv", "tsv", "txt"})
+
+
+def line_breaks(text: str) -> int:
+    """How many line breaks a cell's text holds (CR LF, LF and a lone CR each count once)."""
+    return text.count("\n") + text.count("\r") - text.count("\r\n")
+
+
+def _rows_with_line_breaks(table: Table) -> tuple[np.ndarray, np.ndarray] | None:
+    """Frame rows whose cells hold line breaks (ascending) and, for each position in that list
+    and one past it, the breaks in the rows before it; None when no cell holds one."""
+    per_row = None
+    for name in table.frame.columns:
+        if table.frame[name].dtype == np.float64:
+            continue
+        codes, texts = table.factors(name)
+        counts = np.array([line_breaks(t) for t in texts] + [0], dtype=np.int64)  # last: code -1
+        if counts.any():
+            per_row = counts[codes] if per_row is None else per_row + counts[codes]
+    if per_row is None:
+        return None
+    rows = np.flatnonzero(per_row)
+    before = np.concatenate([[0], np.cumsum(per_row[rows])])
+    return rows, before
 
 
 def with_rows_above(table: Table, rows_above: int) -> Table:

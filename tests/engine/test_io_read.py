@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import csv
 import hashlib
 import os
 from pathlib import Path
@@ -298,3 +299,46 @@ def test_label_columns_stay_categories_and_read_back_as_their_texts(tmp_path):
     assert isinstance(cells.dtype, pd.CategoricalDtype)
     assert table.column_kinds["supplier"] == "text"
     assert [("" if pd.isna(v) else v) for v in cells.to_numpy(dtype=object)] == labels
+
+
+def test_title_lines_above_the_column_names_are_passed_over_with_a_note(tmp_path):
+    # an instrument export with a report title, an operator line (padded with commas, as a
+    # spreadsheet saves it) and a blank line above the column names
+    text = ("Tensile test export\nOperator: bench 2,,\n\nsupplier,strength,lot\n"
+            "north,812.5,3\nsouth,799.1,3\nnorth,845.2,4\n")
+    path = tmp_path / "export.csv"
+    path.write_text(text, encoding="utf-8")
+    table = read_table(path)
+    assert list(table.frame.columns) == ["supplier", "strength", "lot"]
+    assert table.frame["strength"].tolist() == [812.5, 799.1, 845.2]
+    assert table.file_row(0) == 5  # reference: the line numbers of the file as written
+    note = " ".join(n.text for n in table.notes)
+    assert "3 line(s) of title" in note and "Tensile test export" in note
+
+
+def test_a_first_row_with_one_filled_cell_above_bare_data_is_kept(tmp_path):
+    # no column names below it, so the short first row is data, not a title
+    path = tmp_path / "bare.csv"
+    path.write_text("north,\nnorth,812.5\nsouth,799.1\nsouth,830.7\nnorth,845.2\n", encoding="utf-8")
+    table = read_table(path)
+    assert len(table.frame) == 5 and table.file_row(0) == 1
+
+
+def test_row_numbers_count_the_lines_of_quoted_cells_that_span_lines(tmp_path):
+    rng = np.random.default_rng(31)
+    notes = ["ok", "two\nlines", "three\r\nof\nthem", "", "cr\ronly"]
+    rows = [f"{'north' if i % 2 else 'south'},{800 + i}.5,\"{notes[rng.integers(0, 5)]}\"" for i in range(60)]
+    path = tmp_path / "notes.csv"
+    path.write_bytes(('"supplier\nname",strength,note\n' + "\n".join(rows) + "\n").encode("utf-8"))
+    table = read_table(path)
+    # reference: Python's csv module, the line on which each record starts
+    with open(path, newline="", encoding="utf-8") as handle:
+        reader = csv.reader(handle)
+        starts = []
+        while True:
+            line = reader.line_num + 1
+            if next(reader, None) is None:
+                break
+            starts.append(line)
+    assert [table.file_row(r) for r in range(len(table.frame))] == starts[1:]
+    assert list(table.frame.columns)[0] == "supplier name"
