@@ -124,7 +124,9 @@ def propose_layout(table: Table) -> LayoutProposal:
     A column of text (or whole-number codes) with 2 to 30 distinct labels, none of them an
     identifier, is a group column; two labels beat more. Columns of numbers that are not
     identifiers (named like id/subject/sample, or whole numbers all different) are value
-    columns. With no group column and at least two value columns the layout is wide.
+    columns; in the long layout those with fractions come before whole-number columns (codes,
+    counts). With no group column and at least two value columns the layout is wide, its
+    columns in file order.
 
     References
     ----------
@@ -141,7 +143,9 @@ def propose_layout(table: Table) -> LayoutProposal:
     group, levels, why_group = _best_grouping(table, names, measures)
     reasons: list[str] = []
     if group is not None:
-        value_columns = tuple(n for n in measures if n != group)
+        # measurements with fractions before whole-number columns (codes, batch numbers, counts)
+        value_columns = tuple(sorted((n for n in measures if n != group),
+                                     key=lambda n: table.column_kinds[n] == "number" and table.whole_numbers(n)))
         if value_columns:
             reasons.append(why_group)
             reasons.append(f"'{value_columns[0]}' holds numbers, so it is taken as the measurements.")

@@ -97,3 +97,16 @@ def test_whole_numbers_allow_blanks_and_infinities_but_not_fractions(tmp_path):
         f"{i},{'' if i % 10 == 0 else ('inf' if i == 7 else i % 4)},{i / 4}\n" for i in range(1, 3000)))
     assert table.whole_numbers("plot") and table.whole_numbers("lot")
     assert not table.whole_numbers("dose")  # 0.25, 0.5, ... (whole from row 4 on, now and then)
+
+
+def test_measurements_with_fractions_are_proposed_before_whole_number_codes(tmp_path):
+    # a batch number that repeats is neither an identifier nor the likely measurement
+    rows = "".join(f"{b},{'north' if b % 2 else 'south'},{812.5 + b / 10}\n" for b in [3, 7, 3, 9, 7, 4])
+    proposal = propose_layout(_table(tmp_path, "batch_no,supplier,strength\n" + rows))
+    assert proposal.group_column == "supplier"
+    assert proposal.value_columns == ("strength", "batch_no")
+
+
+def test_wide_columns_keep_their_file_order(tmp_path):
+    proposal = propose_layout(_table(tmp_path, "before,after\n12,12.5\n15,14.1\n12,11.9\n11,12.2\n"))
+    assert proposal.layout == "wide" and proposal.value_columns == ("before", "after")
