@@ -184,7 +184,6 @@ def _make_groups(table, *, values, group, pick, set_aside) -> Intake:
         if group == names[0]:
             raise ColumnProblem(f"Column '{group}' cannot hold both the groups and the values.")
         _check_measurements(table, names[0])
-    if group is not None:
         cells, other_rows = _long_cells(table, names[0], group, pick, findings, extra)
     else:
         cells = _wide_cells(table, names, pick)

@@ -49,7 +49,8 @@ def _trimmed_levels(table: Table, column: str) -> tuple[list[str], np.ndarray, d
     labels: list[str] = []
     index: dict[str, int] = {}
     spellings: dict[str, set[str]] = {}
-    remap = np.full(len(texts) + 1, -1, dtype=np.min_scalar_type(-len(texts) - 1))  # the last slot serves code -1
+    # label index per code, in the smallest integer type; the last slot serves code -1
+    remap = np.full(len(texts) + 1, -1, dtype=np.min_scalar_type(-len(texts) - 1))
     for k in sorted(range(len(texts)), key=lambda k: firsts[k]):
         label = texts[k].strip()
         if not label or firsts[k] == codes.size:
@@ -144,8 +145,8 @@ def propose_layout(table: Table) -> LayoutProposal:
     reasons: list[str] = []
     if group is not None:
         # measurements with fractions before whole-number columns (codes, batch numbers, counts)
-        value_columns = tuple(sorted((n for n in measures if n != group),
-                                     key=lambda n: table.column_kinds[n] == "number" and table.whole_numbers(n)))
+        whole = {n: table.column_kinds[n] == "number" and table.whole_numbers(n) for n in measures}
+        value_columns = tuple(sorted((n for n in measures if n != group), key=whole.__getitem__))
         if value_columns:
             reasons.append(why_group)
             reasons.append(f"'{value_columns[0]}' holds numbers, so it is taken as the measurements.")

@@ -121,10 +121,10 @@ def _sieve(hashes: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     -----
     Each stage counts the hashes of the rows still in play in bins taken from a fresh slice of
     the hash bits (2**21 bins, then 2**20; for fewer rows two to four bins per row), and keeps
-    only the rows that share their bin. A
-    repeated hash always shares its bin, so no repeat is lost. Counting in bins that fit the
-    processor's cache is several times faster than a pass of a hash table. Of a million
-    distinct rows about 38, 11 and 1 per cent survive the three stages.
+    only the rows that share their bin. A repeated hash always shares its bin, so no repeat is
+    lost. Counting in bins that fit the processor's cache is several times faster than a pass
+    of a hash table. Of a million distinct rows about 38, 11 and 1 per cent survive the three
+    stages.
     """
     rows = None  # all rows
     keys = hashes
@@ -133,7 +133,7 @@ def _sieve(hashes: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     for most in _SIEVE_BITS:
         if keys.size <= _SIEVE_STOP:
             break
-        width = min(most, max(16, 2 * keys.size).bit_length())  # about two bins per row at most
+        width = min(most, max(16, 2 * keys.size).bit_length())  # two to four bins per row
         part = bins[:keys.size]
         slice_ = part.view(np.uint64)
         np.right_shift(keys, _U(shift), out=slice_)

@@ -88,6 +88,7 @@ class Table:
                 rising = bool((head[1:] > head[:-1]).all() and (values[1:] > values[:-1]).all())
             self._rising[column] = rising
         return self._rising[column]
+
     def whole_numbers(self, column: str) -> bool:
         """True if the column holds at least one finite number and every finite number in it is
         a whole number (codes, counts, identifiers); cached per column."""
