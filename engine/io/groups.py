@@ -382,13 +382,12 @@ def _screen(table, cells, group, other_rows, set_aside, findings, extra) -> Inta
     skip += [c.column for c in cells]
     candidates = []
     for name in identifier_candidates(table, skip):
-        ids = frame[name]
-        if table.column_kinds[name] == "number":
-            if not wide and table.strictly_rising(name):
-                continue  # every row has its own ID: nothing is measured twice
-            ids = table.numbers(name)
-        else:
-            ids = ids.to_numpy(dtype=object)
+        number = table.column_kinds[name] == "number"
+        if number and not wide and table.strictly_rising(name):
+            continue  # every row has its own ID: nothing is measured twice
+        if _repeats_near_the_top(table, name, used_rows[0]):
+            continue  # group 1 holds an ID twice: not one row per unit, so no sign of pairing
+        ids = table.numbers(name) if number else frame[name].to_numpy(dtype=object)
         first, second = ids[used_rows[0]], ids[used_rows[1]]
         candidates.append((name, _drop_blank(first), _drop_blank(second)))
     paired = paired_sign(candidates, labels=labels, n_used=n_used, wide=wide)
@@ -419,6 +418,20 @@ def _filled_text(table: Table, cells: _Cells) -> np.ndarray:
     raw = table.frame[cells.column]
     keep = [g for g in gaps if cell_text(raw.iat[int(cells.frame_rows[g])]).strip()]
     return np.array(keep, dtype=np.int64)
+
+
+def _repeats_near_the_top(table: Table, column: str, rows: np.ndarray) -> bool:
+    """True if the first thousand of a group's rows hold some ID of ``column`` twice (blank
+    cells aside): a quick way to rule the column out before comparing whole groups."""
+    if table.column_kinds[column] == "number":
+        head = table.numbers(column)[rows[:1000]]
+        head = head[~np.isnan(head)]
+    else:
+        codes, texts = table.factors(column)
+        blank = np.array([not t.strip() for t in texts] + [True])  # the last serves code -1
+        head = codes[rows[:1000]]
+        head = head[~blank[head]]
+    return np.unique(head).size < head.size
 
 
 def _drop_blank(ids: np.ndarray) -> np.ndarray:
