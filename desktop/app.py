@@ -54,6 +54,9 @@ def _application() -> Any:
     app.setOrganizationName("Twofold")
     app.setApplicationDisplayName("Twofold")
     app.setDesktopFileName("twofold")
+    from .collector import collect_on_gui_thread
+
+    collect_on_gui_thread(app)  # no cycle collection in worker threads (see desktop/collector.py)
     return app
 
 

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import gc
 import os
 
 os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")  # before anything imports Qt
@@ -28,6 +29,21 @@ def pytest_generate_tests(metafunc):
     """A test that takes ``demo_path`` runs once per demo file."""
     if "demo_path" in metafunc.fixturenames:
         metafunc.parametrize("demo_path", demo_files(), ids=lambda p: p.name)
+
+
+@pytest.fixture(autouse=True)
+def _collect_only_between_tests():
+    """No automatic cycle collection while a test runs: it could start in a worker thread and
+    free an earlier test's widgets there, which can deadlock Qt (see desktop/collector.py).
+    After each test, on the main thread, the generations that are due are collected."""
+    from desktop.collector import collect_due
+
+    was_enabled = gc.isenabled()
+    gc.disable()
+    yield
+    collect_due()
+    if was_enabled:
+        gc.enable()
 
 
 @pytest.fixture(autouse=True)
