@@ -527,19 +527,39 @@ def _summary_rows(analysis, decimals: int | None) -> tuple[list[str], list[list[
 _CELL = "border: 1px solid #999; padding: 2px 8px; text-align: left;"
 _NUMBER_CELL = "border: 1px solid #999; padding: 2px 8px; text-align: right;"
 _TABLE = "border-collapse: collapse; margin: 6px 0;"
+# Short cells keep to one line and each column asks for the width of its longest text: a word
+# processor pasting the table otherwise narrows the columns until "Mean" or "32" breaks in two
+# (seen in LibreOffice Writer 7.4, which reads the width attribute but not the nowrap style).
+_ONE_LINE = ' nowrap style="white-space: nowrap; '
+
+
+_BOLD = 1.25  # a bold character is about a quarter wider
+
+
+def _shares(columns) -> list[str]:
+    """Width attributes in per cent of the table for columns of (plain texts, bold texts), in
+    proportion to each column's longest text (at most 40 characters, as a long text wraps,
+    and three more for the padding), so that the table fits the page."""
+    weights = [min(40, max([len(t) for t in plain] + [_BOLD * len(t) for t in bold])) + 3
+               for plain, bold in columns]
+    return [f' width="{100 * w / sum(weights):.0f}%"' for w in weights]
 
 
 def _html(paragraph: str, rows, head, body) -> str:
     e = html.escape
-    out = [f"<p>{e(paragraph)}</p>", f'<table style="{_TABLE}">']
+    one_line = f'{_ONE_LINE}{_CELL}"'
+    names, values = _shares([((), [name for name, _ in rows]), ([value for _, value in rows], ())])
+    out = [f"<p>{e(paragraph)}</p>", f'<table width="100%" style="{_TABLE}">']
     for name, value in rows:
-        out.append(f'<tr><th style="{_CELL}">{e(name)}</th><td style="{_CELL}">{e(value)}</td></tr>')
+        out.append(f'<tr><th{names}{one_line}>{e(name)}</th><td{values} style="{_CELL}">{e(value)}</td></tr>')
     out.append("</table>")
-    out.append(f'<table style="{_TABLE}">')
-    out.append("<tr>" + "".join(f'<th style="{_CELL}">{e(h)}</th>' for h in head) + "</tr>")
+    out.append("<p>&nbsp;</p>")  # keeps the two tables apart when pasted
+    out.append(f'<table width="100%" style="{_TABLE}">')
+    widths = _shares([([line[j] for line in body], [h]) for j, h in enumerate(head)])
+    out.append("<tr>" + "".join(f"<th{w}{one_line}>{e(h)}</th>" for w, h in zip(widths, head)) + "</tr>")
     for line in body:
-        cells = [f'<td style="{_CELL}">{e(line[0])}</td>']
-        cells += [f'<td style="{_NUMBER_CELL}">{e(cell)}</td>' for cell in line[1:]]
+        cells = [f"<td{one_line}>{e(line[0])}</td>"]
+        cells += [f'<td{_ONE_LINE}{_NUMBER_CELL}">{e(cell)}</td>' for cell in line[1:]]
         out.append("<tr>" + "".join(cells) + "</tr>")
     out.append("</table>")
     out.append(f'<p style="font-size: smaller;">{e(CAUTION_LINE)}</p>')

@@ -1,5 +1,6 @@
 """The report text: rounding, p-values, the paragraph per procedure, the HTML and plain tables."""
 
+import re
 from html.parser import HTMLParser
 
 import numpy as np
@@ -303,6 +304,24 @@ def test_html_is_well_formed_with_tables_and_escaped_labels(groups, key):
     text = "".join(parsed.text)
     assert "adhesive <new> & co" in text  # unescaped back by the parser: the label survives intact
     assert "not the size of an effect" in text
+
+
+def test_html_tables_share_the_width_and_keep_short_cells_on_one_line(groups):
+    # pasted into a word processor, a table takes the column widths it asks for; LibreOffice
+    # Writer 7.4, which reads width attributes but not the nowrap style, was the check by eye
+    fragment = render(_analysis(groups)).html
+    tables = fragment.split("<table")[1:]
+    assert len(tables) == 2
+    for table in tables:
+        first_row = table.split("<tr>", 1)[1].split("</tr>")[0]
+        shares = [int(w) for w in re.findall(r'width="(\d+)%"', first_row)]
+        assert len(shares) >= 2 and abs(sum(shares) - 100) <= len(shares)
+    summary = tables[1]
+    assert summary.count("<td nowrap") == summary.count("<td") == 14  # two groups of seven
+    assert len(re.findall(r"<th[^>]* nowrap", summary)) == 7
+    heading, *_ = re.findall(r'<th[^>]*width="(\d+)%"[^>]*>n</th>', summary)
+    # on a page some 640 px wide, 5% (32 px) holds two digits and the cell's 16 px of padding
+    assert int(heading) >= 5
 
 
 def test_result_table_rows_hold_the_numbers(groups):
