@@ -82,3 +82,32 @@ def test_generated_long_tables(groups, values):
         # every row of the two picked groups is either used or excluded, and counted once
         assert sum(report.n_used) + sum(report.excluded_counts.values()) + report.other_group_rows \
             == report.rows_read
+
+
+_WORD = st.text(alphabet="abcdefghijklmnopqrstuvwxyz_", min_size=1, max_size=8)
+_TITLE = st.text(alphabet="ABCDEFGHIJKLMNOPQRSTUVWXYZ abcdefghij:-/0123456789", min_size=1, max_size=30)
+
+
+@pytest.mark.slow
+@settings(max_examples=80, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@given(names=st.lists(_WORD, min_size=2, max_size=5, unique=True),
+       values=st.lists(st.lists(st.floats(-1e6, 1e6, allow_nan=False), min_size=5, max_size=5),
+                       min_size=3, max_size=30),
+       titles=st.lists(st.one_of(_TITLE, st.just("")), min_size=1, max_size=4),
+       delimiter=st.sampled_from([",", ";", "\t"]), padded=st.booleans())
+def test_title_lines_above_column_names_leave_the_table_as_it_is(names, values, titles, delimiter, padded):
+    # reference: the same table written without the title lines
+    width = len(names)
+    body = [delimiter.join(names)] + [delimiter.join(f"{v:.3f}" for v in row[:width]) for row in values]
+    pad = delimiter * (width - 1) if padded else ""
+    titled = [t.strip(" ") + (pad if t.strip(" ") else "") for t in titles]
+    if not titled[0]:
+        titled[0] = "Report" + pad  # blank lines at the very top are counted apart
+    with tempfile.TemporaryDirectory() as folder:
+        plain, with_titles = Path(folder) / "plain.csv", Path(folder) / "titled.csv"
+        plain.write_text("\n".join(body) + "\n", encoding="utf-8")
+        with_titles.write_text("\n".join(titled + body) + "\n", encoding="utf-8")
+        expected, table = read_table(plain), read_table(with_titles)
+    assert list(table.frame.columns) == list(expected.frame.columns)
+    assert table.frame.equals(expected.frame)
+    assert table.file_row(0) == expected.file_row(0) + len(titled)
