@@ -23,12 +23,19 @@ __all__ = [
     "file_checksum",
     "one_line",
     "wrap_unexpected",
+    "available_memory",
+    "check_memory",
+    "TEXT_MEMORY_FACTOR",
 ]
 
 SUPPORTED_EXTENSIONS: tuple[str, ...] = (".csv", ".tsv", ".txt", ".xlsx", ".xls", ".ods")
 TEXT_KINDS: tuple[str, ...] = ("csv", "tsv", "txt")
 SHEET_KINDS: tuple[str, ...] = ("xlsx", "xls", "ods")
 HEAD_BYTES = 64 * 1024  # the sample that format detection looks at
+# Memory a text file needs while it is read, as a multiple of its size: the peak measured by
+# tests/benchmarks/bench_io.py was 0.7 to 2.5 times the file (tracemalloc), so twice the size
+# refuses only files that could not fit.
+TEXT_MEMORY_FACTOR = 2.0
 
 
 def one_line(text: object, limit: int = 160) -> str:
@@ -57,6 +64,34 @@ def check_path(path: str | Path) -> tuple[Path, str]:
     if path.is_dir():
         raise FileProblem(f"{path.name} is a folder, not a file.")
     return path, extension[1:]
+
+
+def available_memory() -> int | None:
+    """Bytes of memory the system can still give out (Linux ``MemAvailable``); None elsewhere."""
+    try:
+        with open("/proc/meminfo", encoding="ascii") as handle:
+            for line in handle:
+                if line.startswith("MemAvailable:"):
+                    return int(line.split()[1]) * 1024
+    except (OSError, ValueError, IndexError):
+        return None
+    return None
+
+
+def check_memory(path: Path, size: int, factor: float, free: int | None) -> None:
+    """Refuse a file whose reading needs more memory than is free, before it is read."""
+    need = size * factor
+    if free is not None and need > free:
+        raise FileProblem(
+            f"{path.name} is {_amount(size)}; reading it needs about {_amount(need)} of memory "
+            f"and {_amount(free)} are free. Close other programs, or split the file.")
+
+
+def _amount(size: float) -> str:
+    if size >= 1e9:
+        return f"{size / 1e9:.1f} GB"
+    megabytes = max(size / 1e6, 0.1)
+    return f"{megabytes:.0f} MB" if megabytes >= 10 else f"{megabytes:.1f} MB"
 
 
 def _open_failure(path: Path, error: OSError) -> FileProblem:

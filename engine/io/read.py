@@ -11,7 +11,17 @@ import pandas as pd
 
 from ..errors import ColumnProblem, FileProblem
 from ..results import Finding
-from ._files import HEAD_BYTES, SHEET_KINDS, check_path, one_line, read_head, wrap_unexpected
+from ._files import (
+    HEAD_BYTES,
+    SHEET_KINDS,
+    TEXT_MEMORY_FACTOR,
+    available_memory,
+    check_memory,
+    check_path,
+    one_line,
+    read_head,
+    wrap_unexpected,
+)
 from .cells import settle_column
 from .sniff import DELIMITER_NAMES, TextFormat, sniff_text
 from .table import Table, line_breaks, remember_factors, with_rows_above
@@ -57,6 +67,8 @@ def read_table(path: str | Path, *, sheet: str | None = None) -> Table:
     head, size = read_head(path)
     if size == 0 or (kind not in SHEET_KINDS and not head.strip(b" \t\r\n\x00\xef\xbb\xbf\xff\xfe")):
         raise FileProblem(f"{path.name} is empty.")
+    if kind not in SHEET_KINDS and size > HEAD_BYTES:
+        check_memory(path, size, TEXT_MEMORY_FACTOR, available_memory())
     with wrap_unexpected(path.name, "read"):
         if kind in SHEET_KINDS:
             from .sheets import read_sheet

@@ -238,3 +238,29 @@ def test_unclosed_quote_names_the_row(tmp_path):
     path = _csv(tmp_path, 'g,v\nA,1\n"B,2\nA,3\n', "quote.csv")
     with pytest.raises(FileProblem, match=r"^quote\.csv, row 3: a quote mark opens a cell that is never closed"):
         read_table(path)
+
+
+def test_a_file_too_large_for_the_free_memory_is_refused_before_reading(tmp_path, monkeypatch):
+    from engine.io import read as reader
+
+    path = _csv(tmp_path, "g,v\n" + "A,1.5\nB,2.5\n" * 20_000)  # larger than the 64 KiB sample
+    size = path.stat().st_size
+    parsed = []
+    monkeypatch.setattr(pd, "read_csv", lambda *a, **k: parsed.append(1))
+    monkeypatch.setattr(reader, "available_memory", lambda: int(size * 1.5))
+    with pytest.raises(FileProblem) as error:
+        read_table(path)
+    message = _one_line(error)
+    shown = lambda amount: f"{amount / 1e6:.1f} MB"  # noqa: E731
+    assert message.startswith(f"data.csv is {shown(size)}; reading it needs about {shown(2 * size)} "
+                              f"of memory and {shown(int(size * 1.5))} are free.")
+    assert "Close other programs, or split the file." in message and not parsed
+
+
+def test_enough_free_memory_or_no_figure_lets_the_file_be_read(tmp_path, monkeypatch):
+    from engine.io import read as reader
+
+    path = _csv(tmp_path, "g,v\n" + "A,1.5\nB,2.5\n" * 20_000)
+    for free in (path.stat().st_size * 3, None):
+        monkeypatch.setattr(reader, "available_memory", lambda free=free: free)
+        assert len(read_table(path).frame) == 40_000
