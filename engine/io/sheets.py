@@ -10,7 +10,7 @@ import pandas as pd
 from ..errors import ColumnProblem, FileProblem
 from ._files import one_line
 from .cells import cell_text
-from .sniff import has_header
+from .sniff import has_header, title_note, title_rows, title_texts
 
 __all__ = ["read_sheet", "sheet_names"]
 
@@ -104,8 +104,16 @@ def read_sheet(path: Path, kind: str, sheet: str | None):
              + (f" (of {len(names)}: {', '.join(repr(n) for n in names)})." if len(names) > 1 else ".")]
     if top:
         notes.append(f"The first {top} row(s) of the sheet are blank and were passed over.")
-    notes.append(("The first row holds column names: " if header else
-                  "The first row is data, not column names: ") + why + ".")
+    titles = title_rows(sample, body.shape[1])
+    if titles:
+        below = has_header(sample[titles:], ".", None)
+        if below[0]:  # titles sit above column names; above bare data, every row is kept
+            notes.append(title_note(title_texts(sample[:titles]), titles, "row(s)"))
+            header, why = below
+            body, sample, top = body.iloc[titles:], sample[titles:], top + titles
+    first = f"Row {top + 1}" if top else "The first row"
+    notes.append((f"{first} holds column names: " if header else
+                  f"{first} is data, not column names: ") + why + ".")
     if header:
         columns = list(body.iloc[0])
         body = body.iloc[1:]

@@ -15,7 +15,8 @@ from dataclasses import dataclass
 
 from ..errors import FileProblem
 
-__all__ = ["TextFormat", "detect_encoding", "sniff_text", "has_header", "DELIMITER_NAMES", "looks_numeric"]
+__all__ = ["TextFormat", "detect_encoding", "sniff_text", "has_header", "DELIMITER_NAMES", "looks_numeric",
+           "title_rows", "title_texts", "title_note"]
 
 DELIMITER_NAMES = {",": "comma", ";": "semicolon", "\t": "tab", "|": "pipe", " ": "spaces"}
 _CANDIDATES = (",", ";", "\t", "|")
@@ -135,34 +136,47 @@ def _choose_delimiter(text: str, kind: str) -> tuple[str, list[list[str]]]:
     return best, best_rows or []
 
 
-def _title_rows(body: str, delimiter: str, rows: list[list[str]]) -> tuple[list[str], int, int]:
-    """Title lines above the table (a report name, an operator, a date): their texts, the
-    number of sample rows and the number of file lines they take, blank lines included.
+def title_rows(rows: list[list[str]], width: int) -> int:
+    """How many rows at the top of ``rows`` are title rows (a report name, an operator, a date,
+    blank rows among them): 0 if none.
 
-    A title row has fewer cells than the table's usual width, or at most one filled cell; the
-    table starts at the first row that has the usual width and two or more filled cells.
-    Up to 20 such rows are looked for; the caller keeps them unless column names follow.
+    A title row has fewer than ``width`` cells, or at most one filled cell; the table starts at
+    the first row that has ``width`` cells, two or more of them filled. Up to 20 title rows are
+    looked for, and two rows must follow them; the caller keeps them unless column names follow.
     """
-    if delimiter == " " or len(rows) < 3:
-        return [], 0, 0
-    _, width = _delimiter_score(rows)
-    if width < 2:
-        return [], 0, 0
-    start = 0
-    while start < min(len(rows) - 2, _MAX_TITLE_ROWS):
+    if width < 2 or len(rows) < 3:
+        return 0
+    for start in range(min(len(rows) - 2, _MAX_TITLE_ROWS)):
         row = rows[start]
         if len(row) == width and sum(1 for cell in row if cell.strip()) >= 2:
-            break
-        start += 1
-    else:
+            return start
+    return 0
+
+
+def title_texts(rows: list[list[str]]) -> list[str]:
+    """The filled title rows as one line of text each, for a note."""
+    texts = [" ".join(cell.strip() for cell in row if cell.strip()) for row in rows]
+    return [t for t in texts if t]
+
+
+def title_note(texts: list[str], rows: int, what: str) -> str:
+    """The note that says which title rows (``rows`` lines of them) were passed over."""
+    shown = "; ".join(f"'{_shorten(t)}'" for t in texts[:2]) + ("; ..." if len(texts) > 2 else "")
+    return f"{rows} {what} of title above the column names were passed over ({shown})."
+
+
+def _title_rows(body: str, delimiter: str, rows: list[list[str]]) -> tuple[list[str], int, int]:
+    """Title lines above a text table: their texts, the number of sample rows and the number of
+    file lines they take (see :func:`title_rows`)."""
+    if delimiter == " ":
         return [], 0, 0
+    start = title_rows(rows, _delimiter_score(rows)[1])
     if start == 0:
         return [], 0, 0
     reader = csv.reader(io.StringIO(body), delimiter=delimiter, quotechar='"')
     for _ in range(start):
         next(reader)
-    texts = [" ".join(cell.strip() for cell in row if cell.strip()) for row in rows[:start]]
-    return [t for t in texts if t], start, reader.line_num
+    return title_texts(rows[:start]), start, reader.line_num
 
 
 def _shorten(text: str, limit: int = 40) -> str:
@@ -352,8 +366,6 @@ def sniff_text(head: bytes, *, name: str, kind: str, truncated: bool) -> TextFor
     if skip:
         notes.append(f"{skip} blank line(s) at the top of the file were passed over.")
     if titles:
-        shown = "; ".join(f"'{_shorten(t)}'" for t in titles[:2]) + ("; ..." if len(titles) > 2 else "")
-        notes.append(f"{title_lines} line(s) of title above the column names were passed over "
-                     f"({shown}).")
+        notes.append(title_note(titles, title_lines, "line(s)"))
     return TextFormat(codec, delimiter, decimal, thousands, header, skip + title_lines,
                       _text_columns(rows, header, decimal, thousands), tuple(notes))

@@ -342,3 +342,27 @@ def test_row_numbers_count_the_lines_of_quoted_cells_that_span_lines(tmp_path):
             starts.append(line)
     assert [table.file_row(r) for r in range(len(table.frame))] == starts[1:]
     assert list(table.frame.columns)[0] == "supplier name"
+
+
+@pytest.mark.parametrize("extension, engine", [(".xlsx", "openpyxl"), (".ods", "odf")])
+def test_a_title_above_the_column_names_of_a_sheet_is_passed_over(tmp_path, extension, engine):
+    # a lab sheet: a title in the first cell, a blank row, then the table
+    path = tmp_path / f"tensile{extension}"
+    rows = [["Tensile tests, press line 2", None], [None, None], ["supplier", "strength"]]
+    rows += [[s, v] for s, v in zip(SUPPLIERS, STRENGTHS)]
+    pd.DataFrame(rows).to_excel(path, index=False, header=False, engine=engine)
+    table = read_table(path)
+    assert list(table.frame.columns) == ["supplier", "strength"]
+    assert table.frame["strength"].tolist() == STRENGTHS
+    assert table.file_row(0) == 4  # reference: the row numbers the spreadsheet shows
+    notes = " ".join(n.text for n in table.notes)
+    assert "2 row(s) of title" in notes and "Tensile tests, press line 2" in notes
+    assert "Row 3 holds column names" in notes
+
+
+def test_a_lone_value_above_bare_data_in_a_sheet_is_kept(tmp_path):
+    path = tmp_path / "bare.xlsx"
+    pd.DataFrame([[812.5, None], [799.0, 801.5], [845.25, 830.75], [833.0, 829.5]]).to_excel(
+        path, index=False, header=False, engine="openpyxl")
+    table = read_table(path)
+    assert len(table.frame) == 4 and table.file_row(0) == 1
