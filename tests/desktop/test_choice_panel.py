@@ -60,6 +60,22 @@ def test_shape_figures_match_scipy(panel, groups):
         assert groups.labels[index] in panel.shape_cards[index].title.text()
 
 
+def test_a_symmetric_sample_shows_no_skewness_rather_than_rounding_noise(qtbot):
+    # equally spaced values: scipy.stats.skew(values, bias=False) is 0 up to rounding (~1e-15)
+    values = np.arange(1.0, 13.0) / 10 + 7.0
+    assert abs(stats.skew(values, bias=False)) < 1e-12
+    session = Session()
+    widget = ChoicePanel(session)
+    qtbot.addWidget(widget)
+    session.store("analysis", analyze(Groups(("slow", "split"), values, values + 0.1),
+                                      Options(n_resamples=200, seed=1)))
+    figures = _figures(widget.shape_cards[0])
+    assert figures[1] == "skewness 0.00"
+    # reference: scipy.stats.kurtosis(values, bias=False) = -1.2 for twelve equally spaced values
+    assert figures[2] == f"excess kurtosis {report.format_number(stats.kurtosis(values, bias=False), digits=2)}"
+    widget.cleanup()
+
+
 def test_spread_figures_match_scipy(panel, groups):
     figures = _figures(panel.spread_card)
     # reference: scipy.stats.levene(x, y, center="mean") and center="median" (Brown-Forsythe)
