@@ -479,19 +479,11 @@ def _shape_figures(shape) -> list[tuple[str, str]]:
         shapiro = f"Shapiro-Wilk W = {fmt(shape.shapiro_w)}, {report.p_clause(shape.shapiro_p)}"
     return [
         (shapiro, CHECK_TIPS["shapiro"]),
-        (f"skewness {_shape_number(shape.skewness)}", CHECK_TIPS["skewness"]),
-        (f"excess kurtosis {_shape_number(shape.excess_kurtosis)}", CHECK_TIPS["kurtosis"]),
+        (f"skewness {report.format_shape(shape.skewness)}", CHECK_TIPS["skewness"]),
+        (f"excess kurtosis {report.format_shape(shape.excess_kurtosis)}", CHECK_TIPS["kurtosis"]),
         (f"apart from the rest: {len(shape.mild_outliers)} mild, {len(shape.far_outliers)} far",
          CHECK_TIPS["outliers"]),
     ]
-
-
-def _shape_number(value: float) -> str:
-    """A skewness or kurtosis to two significant digits; below 0.005 either way it is shown as
-    0.00 (a symmetric sample computes to some 1e-15, which is rounding, not shape)."""
-    if value is not None and abs(value) < 0.005:  # NaN compares False and stays "n/a"
-        return "0.00"
-    return report.format_number(value, digits=2)
 
 
 def _spread_figures(spread) -> list[tuple[str, str]]:

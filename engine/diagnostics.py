@@ -15,7 +15,7 @@ import numpy as np
 from scipy import special, stats
 
 from .errors import DataProblem
-from .report import format_number, p_clause
+from .report import format_number, format_shape, p_clause
 from .results import Finding, Groups, readonly_array
 from .summary import sorted_values
 
@@ -389,7 +389,7 @@ def _skew_finding(shape: GroupShape, name: str, index: int) -> Finding:
         return Finding("skewness", "info",
                        f"{name}: too few values, or values that do not vary, to measure lopsidedness (skewness).", index)
     side = "right (a long tail of high values)" if g1 > 0 else "left (a long tail of low values)"
-    figures = f"skewness {format_number(g1, digits=2)}, standard error {format_number(shape.skewness_se, digits=2)}"
+    figures = f"skewness {format_shape(g1)}, standard error {format_number(shape.skewness_se, digits=2)}"
     if is_clearly_skewed(shape):
         severity = "warning" if abs(g1) > 2 * SKEW_MATERIAL else "note"
         return Finding("skewness", severity,
@@ -403,7 +403,7 @@ def _tail_finding(shape: GroupShape, name: str, index: int) -> Finding:
     if not np.isfinite(g2):
         return Finding("tails", "info",
                        f"{name}: too few values, or values that do not vary, to measure tail weight (kurtosis).", index)
-    figures = (f"excess kurtosis {format_number(g2, digits=2)}, standard error "
+    figures = (f"excess kurtosis {format_shape(g2)}, standard error "
                f"{format_number(shape.kurtosis_se, digits=2)}; 0 for a normal distribution")
     if is_heavy_tailed(shape):
         return Finding("tails", "warning",

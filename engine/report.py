@@ -11,7 +11,7 @@ import textwrap
 from dataclasses import dataclass
 
 __all__ = ["ReportText", "DisplayNumbers", "render", "display_numbers", "format_p", "format_number",
-           "format_interval", "p_clause"]
+           "format_shape", "format_interval", "p_clause"]
 
 # Below this a p-value is written as "< 0.001" (common practice in journals).
 P_FLOOR = 0.001
@@ -206,6 +206,15 @@ def _fixed(value: float | None, decimals: int | None, digits: int = DIGITS) -> s
         return format_number(value, digits=digits)
     text = f"{value:.{decimals}f}"
     return text[1:] if text.startswith("-") and float(text) == 0 else text
+
+
+def format_shape(value: float | None) -> str:
+    """A skewness or excess kurtosis for display: two significant digits, and "0.00" for a
+    size below 0.005 (a symmetric sample computes to some 1e-15, which is rounding, not
+    shape)."""
+    if value is not None and abs(value) < 0.005:  # NaN compares False and stays "n/a"
+        return "0.00"
+    return format_number(value, digits=2)
 
 
 def format_interval(interval, *, decimals: int | None = None, digits: int = DIGITS) -> str | None:
