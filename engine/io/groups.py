@@ -390,7 +390,7 @@ def _screen(table, cells, group, other_rows, set_aside, findings, extra) -> Inta
         ids = table.numbers(name) if number else frame[name].to_numpy(dtype=object)
         first, second = ids[used_rows[0]], ids[used_rows[1]]
         candidates.append((name, _drop_blank(first), _drop_blank(second)))
-    paired = paired_sign(candidates, labels=labels, n_used=n_used, wide=wide)
+    paired = paired_sign(candidates, labels=labels, wide=wide)
     listed.sort(key=lambda item: item[0])
     exclusions = tuple(
         Exclusion(row, table.file_row(row), column, label, reason, text)

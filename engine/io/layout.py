@@ -122,8 +122,8 @@ def propose_layout(table: Table) -> LayoutProposal:
 
     Notes
     -----
-    A column of text (or whole-number codes) with 2 to 30 distinct labels, none of them an
-    identifier, is a group column; two labels beat more. Columns of numbers that are not
+    A column of text (or whole-number codes) with 2 to 30 distinct labels, some used more than
+    once and none of them an identifier, is a group column; two labels beat more. Columns of numbers that are not
     identifiers (named like id/subject/sample, or whole numbers all different) are value
     columns; in the long layout those with fractions come before whole-number columns (codes,
     counts). With no group column and at least two value columns the layout is wide, its
@@ -210,9 +210,11 @@ def _best_grouping(table: Table, names: list[str], measures: list[str]) -> tuple
                 continue
         elif _value_like(table, name):
             continue
-        labels, _, _ = trimmed_levels(table, name)
+        labels, codes, _ = trimmed_levels(table, name)
         if not 2 <= len(labels) <= MAX_GROUP_LEVELS:
             continue
+        if np.count_nonzero(codes >= 0) <= len(labels):
+            continue  # no label used twice: each row names itself, as an identifier does
         score = (len(labels) == 2, kind != "number", -len(labels), -position)
         if best is None or score > best[0]:
             best = (score, name, labels)

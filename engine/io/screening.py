@@ -175,39 +175,35 @@ def paired_sign(
     candidates: Sequence[tuple[str, np.ndarray, np.ndarray]],
     *,
     labels: tuple[str, str],
-    n_used: tuple[int, int],
     wide: bool,
 ) -> Finding | None:
     """A warning when the data look paired rather than independent.
 
     ``candidates`` holds (column name, IDs of group 1's rows, IDs of group 2's rows) for each
     identifier-like column. In the long layout the sign is that most IDs appear exactly once in
-    each group; in the wide layout (one row holds a value of each group) it is equal group sizes
-    and an identifier column with one ID per row.
+    each group; in the wide layout (one row holds a value of each group) it is an identifier
+    column with one ID per row and most rows (80 per cent) holding a value of both groups.
     """
     for name, first, second in candidates:
-        if wide:
-            if n_used[0] == n_used[1] and len(first) and pd.Series(first).is_unique:
-                return Finding(
-                    "paired", "warning",
-                    f"Each row holds one value of '{labels[0]}' and one of '{labels[1]}', the groups "
-                    f"are the same size ({n_used[0]}) and '{name}' names each row: if both values "
-                    "of a row come from the same unit, the data are paired and procedures for "
-                    "independent groups do not fit.")
-            continue
-        one = pd.Series(first)
-        two = pd.Series(second)
+        one, two = pd.Series(first), pd.Series(second)
         if one.empty or two.empty or not one.is_unique or not two.is_unique:
             continue
         shared = np.intersect1d(one.to_numpy(), two.to_numpy()).size
-        if shared >= 2 and shared >= 0.8 * max(len(one), len(two)):
-            every = shared == len(one) == len(two)
-            amount = "every ID appears" if every else f"{shared} IDs appear"
+        if shared < 2 or shared < 0.8 * max(len(one), len(two)):
+            continue
+        if wide:  # a shared ID is a row that holds a value of both groups
             return Finding(
                 "paired", "warning",
-                f"In column '{name}', {amount} once in group '{labels[0]}' and once in group "
-                f"'{labels[1]}': the same units seem to be measured twice, so the data may be "
-                "paired and procedures for independent groups may not fit.")
+                f"{shared} rows hold a value of '{labels[0]}' and one of '{labels[1]}', and "
+                f"'{name}' names each row: if both values of a row come from the same unit, "
+                "the data are paired and procedures for independent groups do not fit.")
+        every = shared == len(one) == len(two)
+        amount = "every ID appears" if every else f"{shared} IDs appear"
+        return Finding(
+            "paired", "warning",
+            f"In column '{name}', {amount} once in group '{labels[0]}' and once in group "
+            f"'{labels[1]}': the same units seem to be measured twice, so the data may be "
+            "paired and procedures for independent groups may not fit.")
     return None
 
 

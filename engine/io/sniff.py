@@ -107,12 +107,13 @@ def _rows(text: str, delimiter: str) -> list[list[str]]:
 
 
 def _delimiter_score(rows: list[list[str]]) -> tuple[float, int]:
+    """The share of filled rows that have the most common width of two or more cells, and
+    that width (rows of one cell, such as title lines, do not get a say in the width)."""
     counts = [len(r) for r in rows if r and any(cell.strip() for cell in r)]
-    if not counts:
+    split = Counter(c for c in counts if c >= 2)
+    if not split:
         return 0.0, 1
-    width, times = Counter(counts).most_common(1)[0]
-    if width < 2:
-        return 0.0, 1
+    width, times = split.most_common(1)[0]
     return times / len(counts), width
 
 

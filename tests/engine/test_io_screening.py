@@ -307,3 +307,18 @@ def test_large_groups_are_screened_on_a_subsample_of_quartiles(tmp_path):
     assert len(report.possible_slips) == expected
     assert any("412.5" in slip.text and "decimal point" in slip.text for slip in report.possible_slips)
     assert report.duplicate_rows == 0 and report.paired is None
+
+
+def test_paired_sign_in_wide_layout_with_a_blank_cell(tmp_path):
+    # before and after on the same specimens, one reading missing: still paired
+    rows = "".join(f"{i},{50 + i}.5,{'' if i == 3 else f'{51 + i}.25'}\n" for i in range(1, 9))
+    report = make_groups(_table(tmp_path, "specimen,before,after\n" + rows), values=("before", "after")).screening
+    assert report.paired is not None and report.paired.text.startswith("7 rows hold a value of 'before'")
+
+
+def test_a_label_column_with_every_label_once_is_not_a_group_column(tmp_path):
+    # each site is a row of its own: the site names the rows, and the layout is wide
+    table = _table(tmp_path, "site,before,after\nA,12.5,12.9\nB,11.8,12.1\nC,13.0,13.4\nD,12.2,12.6\n")
+    proposal = propose_layout(table)
+    assert proposal.layout == "wide" and proposal.group_column is None
+    assert proposal.value_columns == ("before", "after")
