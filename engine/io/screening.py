@@ -208,14 +208,17 @@ def paired_sign(
 
 
 def identifier_candidates(table, skip: Sequence[str]) -> list[str]:
-    """Columns that may identify units: named like an ID, or whole-number codes."""
+    """Columns that may identify units: named like an ID, whole-number codes, or text with a
+    label of its own in every filled row (site names, specimen codes)."""
     names = []
     for name in table.frame.columns:
-        if name in skip or table.column_kinds[name] == "empty":
+        kind = table.column_kinds[name]
+        if name in skip or kind == "empty":
             continue
-        if looks_like_id_name(name):
+        if looks_like_id_name(name) or (kind == "number" and table.whole_numbers(name)):
             names.append(name)
-            continue
-        if table.column_kinds[name] == "number" and table.whole_numbers(name):
-            names.append(name)
+        elif kind == "text":
+            codes, texts = table.factors(name)
+            if len(texts) >= 2 and len(texts) == np.count_nonzero(codes >= 0):
+                names.append(name)
     return names[:3]

@@ -322,3 +322,9 @@ def test_a_label_column_with_every_label_once_is_not_a_group_column(tmp_path):
     proposal = propose_layout(table)
     assert proposal.layout == "wide" and proposal.group_column is None
     assert proposal.value_columns == ("before", "after")
+
+
+def test_paired_sign_from_a_text_column_that_names_each_row(tmp_path):
+    table = _table(tmp_path, "site,before,after\nA,12.5,12.9\nB,11.8,12.1\nC,13.0,\nD,12.2,12.6\nE,12.9,13.1\n")
+    report = make_groups(table, values=("before", "after")).screening
+    assert report.paired is not None and "'site' names each row" in report.paired.text
