@@ -80,7 +80,10 @@ def settle_column(column: pd.Series, *, decimal: str, thousands: str | None) -> 
     are identifiers and stay text). Columns read as categories stay categories (codes into the
     distinct texts: no per-cell text objects), unless every filled cell is a number. Text columns
     whose every filled cell is a number become float64 ("number"); some numbers -> "mixed";
-    none -> "text"; nothing filled -> "empty".
+    none -> "text"; nothing filled -> "empty". A long column (over 20,000 cells) whose evenly
+    spread sample of 2,000 filled cells holds no number at all is "text" without converting
+    every cell (codes such as "S0000001"); a handful of numbers among its texts would not make
+    it a column of measurements.
     """
     dtype = column.dtype
     if pd.api.types.is_bool_dtype(dtype):
@@ -96,6 +99,8 @@ def settle_column(column: pd.Series, *, decimal: str, thousands: str | None) -> 
         return column, ("empty" if head_blank and np.isnan(values).all() else "number")
     if isinstance(dtype, pd.CategoricalDtype):
         return _settle_categories(column, decimal=decimal, thousands=thousands)
+    if _spread_sample_is_words(column, decimal=decimal, thousands=thousands):
+        return column, "text"
     numbers, filled = _numbers_by_distinct_cell(column, decimal=decimal, thousands=thousands)
     n_filled = int(filled.sum())
     n_numbers = int(np.count_nonzero(~np.isnan(numbers) & filled))
@@ -104,6 +109,24 @@ def settle_column(column: pd.Series, *, decimal: str, thousands: str | None) -> 
     if n_numbers == n_filled:
         return pd.Series(numbers, index=column.index, name=column.name), "number"
     return column, ("text" if n_numbers == 0 else "mixed")
+
+
+_SAMPLED_FROM = 20_000  # cells; longer text columns are first judged on a spread sample
+_SAMPLE_CELLS = 2_000
+
+
+def _spread_sample_is_words(column: pd.Series, *, decimal: str, thousands: str | None) -> bool:
+    """True if the column is long and an evenly spread sample of its filled cells holds no
+    number (the full conversion of a million distinct texts takes seconds)."""
+    if len(column) <= _SAMPLED_FROM:
+        return False
+    positions = np.linspace(0, len(column) - 1, 4 * _SAMPLE_CELLS).astype(np.intp)
+    sample = column.iloc[positions]
+    sample = sample[sample.notna()].iloc[:_SAMPLE_CELLS]
+    if len(sample) < _SAMPLE_CELLS // 2:
+        return False  # mostly blank: let the full check decide
+    numbers = coerce_numbers(sample.reset_index(drop=True), decimal=decimal, thousands=thousands)
+    return bool(np.isnan(numbers).all())
 
 
 def _settle_categories(column: pd.Series, *, decimal: str, thousands: str | None) -> tuple[pd.Series, str]:

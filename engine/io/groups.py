@@ -6,6 +6,7 @@ from dataclasses import dataclass, field
 from typing import Mapping, Sequence
 
 import numpy as np
+import pandas as pd
 
 from ..errors import ColumnProblem, DataProblem, OptionProblem
 from ..results import Finding, Groups
@@ -387,7 +388,7 @@ def _screen(table, cells, group, other_rows, set_aside, findings, extra) -> Inta
             continue  # every row has its own ID: nothing is measured twice
         if _repeats_near_the_top(table, name, used_rows[0]):
             continue  # group 1 holds an ID twice: not one row per unit, so no sign of pairing
-        ids = table.numbers(name) if number else frame[name].to_numpy(dtype=object)
+        ids = table.numbers(name) if number else _text_ids(table, name)
         first, second = ids[used_rows[0]], ids[used_rows[1]]
         candidates.append((name, _drop_blank(first), _drop_blank(second)))
     paired = paired_sign(candidates, labels=labels, wide=wide)
@@ -428,16 +429,34 @@ def _repeats_near_the_top(table: Table, column: str, rows: np.ndarray) -> bool:
         head = head[~np.isnan(head)]
     else:
         codes, texts = table.factors(column)
-        blank = np.array([not t.strip() for t in texts] + [True])  # the last serves code -1
-        head = codes[rows[:1000]]
-        head = head[~blank[head]]
+        head = np.array([c for c in codes[rows[:1000]] if c >= 0 and texts[c].strip()], dtype=np.int64)
     return np.unique(head).size < head.size
 
 
+def _text_ids(table: Table, column: str) -> np.ndarray:
+    """A text ID column as numbers that compare as the trimmed texts do: its factor codes,
+    NaN for a blank cell (so a million IDs are matched as numbers, not as texts). When some
+    text carries spaces at either end, the trimmed texts themselves."""
+    codes, texts = table.factors(column)
+    trimmed = [t.strip() for t in texts]
+    if trimmed != texts:
+        return table.frame[column].to_numpy(dtype=object)
+    blank = np.array([not t for t in trimmed] + [True])  # the last serves code -1
+    ids = codes.astype(float)
+    ids[blank[codes]] = np.nan
+    return ids
+
+
 def _drop_blank(ids: np.ndarray) -> np.ndarray:
+    """IDs without the blank ones; texts trimmed (so "S1 " and "S1" are one ID)."""
     if ids.dtype == object:
-        keep = np.array([cell_text(v).strip() != "" for v in ids], dtype=bool)
-        return np.array([cell_text(v).strip() for v in ids[keep]], dtype=object)
+        texts = pd.Series(ids, dtype=object)
+        if pd.api.types.infer_dtype(texts, skipna=True) == "string":
+            texts = texts.fillna("")
+        else:
+            texts = texts.map(cell_text)
+        texts = texts.str.strip()
+        return texts[texts != ""].to_numpy(dtype=object)
     return ids[np.isfinite(ids)]
 
 

@@ -110,7 +110,11 @@ class Table:
 
         if column not in self._factors:
             codes, uniques = pd.factorize(self.frame[column], use_na_sentinel=True)
-            self._factors[column] = (codes, [cell_text(u) for u in uniques])
+            if pd.api.types.infer_dtype(uniques, skipna=False) == "string":
+                texts = np.asarray(uniques, dtype=object).tolist()  # texts already, none missing
+            else:
+                texts = [cell_text(u) for u in uniques]
+            self._factors[column] = (codes, texts)
         return self._factors[column]
 
 
@@ -122,12 +126,24 @@ def line_breaks(text: str) -> int:
     return text.count("\n") + text.count("\r") - text.count("\r\n")
 
 
+def _may_hold_line_breaks(column: pd.Series) -> bool:
+    """False when no cell of the column holds a line break (one search through all its texts
+    joined, instead of a test per cell)."""
+    if isinstance(column.dtype, pd.CategoricalDtype):
+        texts = [str(c) for c in column.cat.categories]
+    else:
+        texts = [t for t in column.dropna().tolist() if isinstance(t, str)]
+    joined = "".join(texts)
+    return "\n" in joined or "\r" in joined
+
+
 def _rows_with_line_breaks(table: Table) -> tuple[np.ndarray, np.ndarray] | None:
     """Frame rows whose cells hold line breaks (ascending) and, for each position in that list
     and one past it, the breaks in the rows before it; None when no cell holds one."""
     per_row = None
     for name in table.frame.columns:
-        if table.frame[name].dtype == np.float64:
+        column = table.frame[name]
+        if column.dtype == np.float64 or not _may_hold_line_breaks(column):
             continue
         codes, texts = table.factors(name)
         counts = np.array([line_breaks(t) for t in texts] + [0], dtype=np.int64)  # last: code -1

@@ -366,3 +366,21 @@ def test_a_lone_value_above_bare_data_in_a_sheet_is_kept(tmp_path):
         path, index=False, header=False, engine="openpyxl")
     table = read_table(path)
     assert len(table.frame) == 4 and table.file_row(0) == 1
+
+
+def test_a_long_column_of_codes_is_text_and_a_long_measurement_column_with_junk_is_mixed(tmp_path):
+    # 30,000 rows: sample codes (a few look like numbers) and readings with a few junk cells
+    n = 30_000
+    codes = [f"S{i:06d}" for i in range(n)]
+    codes[12_345] = "4711"
+    readings = [f"{7 + (i % 97) / 100:.2f}" for i in range(n)]
+    for i in (10, 20_000, 29_999):
+        readings[i] = "n/a" if i == 10 else "?"
+    path = tmp_path / "codes.csv"
+    path.write_text("code,reading\n" + "".join(f"{c},{r}\n" for c, r in zip(codes, readings)),
+                    encoding="utf-8")
+    table = read_table(path)
+    assert table.column_kinds == {"code": "text", "reading": "mixed"}
+    # the texts stay as written; the one code that reads as a number is still there
+    assert table.frame["code"].iloc[12_345] == "4711" and table.numbers("code")[12_345] == 4711
+    assert np.count_nonzero(np.isnan(table.numbers("reading"))) == 3

@@ -328,3 +328,10 @@ def test_paired_sign_from_a_text_column_that_names_each_row(tmp_path):
     table = _table(tmp_path, "site,before,after\nA,12.5,12.9\nB,11.8,12.1\nC,13.0,\nD,12.2,12.6\nE,12.9,13.1\n")
     report = make_groups(table, values=("before", "after")).screening
     assert report.paired is not None and "'site' names each row" in report.paired.text
+
+
+def test_paired_sign_matches_text_ids_written_with_stray_spaces(tmp_path):
+    rows = "".join(f"S{i:02d},before,{50 + i}.5\n" for i in range(10))
+    rows += "".join(f"S{i:02d} ,after,{52 + i}.5\n" for i in range(10))  # the same IDs, a space after
+    report = make_groups(_table(tmp_path, "subject,stage,load\n" + rows), values="load", group="stage").screening
+    assert report.paired is not None and "every ID appears once" in report.paired.text
