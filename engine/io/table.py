@@ -142,8 +142,8 @@ def _rows_with_line_breaks(table: Table) -> tuple[np.ndarray, np.ndarray] | None
     and one past it, the breaks in the rows before it; None when no cell holds one."""
     per_row = None
     for name in table.frame.columns:
-        column = table.frame[name]
-        if column.dtype == np.float64 or not _may_hold_line_breaks(column):
+        cells = table.frame[name]
+        if cells.dtype == np.float64 or not _may_hold_line_breaks(cells):
             continue
         codes, texts = table.factors(name)
         counts = np.array([line_breaks(t) for t in texts] + [0], dtype=np.int64)  # last: code -1
