@@ -539,7 +539,8 @@ _TABLE = "border-collapse: collapse; margin: 6px 0;"
 # Short cells keep to one line and each column asks for the width of its longest text: a word
 # processor pasting the table otherwise narrows the columns until "Mean" or "32" breaks in two
 # (seen in LibreOffice Writer 7.4, which reads the width attribute but not the nowrap style).
-_ONE_LINE = ' nowrap style="white-space: nowrap; '
+_ONE_LINE = f' nowrap style="white-space: nowrap; {_CELL}"'
+_ONE_LINE_NUMBER = f' nowrap style="white-space: nowrap; {_NUMBER_CELL}"'
 
 
 _BOLD = 1.25  # a bold character is about a quarter wider
@@ -556,19 +557,18 @@ def _shares(columns) -> list[str]:
 
 def _html(paragraph: str, rows, head, body) -> str:
     e = html.escape
-    one_line = f'{_ONE_LINE}{_CELL}"'
     names, values = _shares([((), [name for name, _ in rows]), ([value for _, value in rows], ())])
     out = [f"<p>{e(paragraph)}</p>", f'<table width="100%" style="{_TABLE}">']
     for name, value in rows:
-        out.append(f'<tr><th{names}{one_line}>{e(name)}</th><td{values} style="{_CELL}">{e(value)}</td></tr>')
+        out.append(f'<tr><th{names}{_ONE_LINE}>{e(name)}</th><td{values} style="{_CELL}">{e(value)}</td></tr>')
     out.append("</table>")
     out.append("<p>&nbsp;</p>")  # keeps the two tables apart when pasted
     out.append(f'<table width="100%" style="{_TABLE}">')
     widths = _shares([([line[j] for line in body], [h]) for j, h in enumerate(head)])
-    out.append("<tr>" + "".join(f"<th{w}{one_line}>{e(h)}</th>" for w, h in zip(widths, head)) + "</tr>")
+    out.append("<tr>" + "".join(f"<th{w}{_ONE_LINE}>{e(h)}</th>" for w, h in zip(widths, head)) + "</tr>")
     for line in body:
-        cells = [f"<td{one_line}>{e(line[0])}</td>"]
-        cells += [f'<td{_ONE_LINE}{_NUMBER_CELL}">{e(cell)}</td>' for cell in line[1:]]
+        cells = [f"<td{_ONE_LINE}>{e(line[0])}</td>"]
+        cells += [f"<td{_ONE_LINE_NUMBER}>{e(cell)}</td>" for cell in line[1:]]
         out.append("<tr>" + "".join(cells) + "</tr>")
     out.append("</table>")
     out.append(f'<p style="font-size: smaller;">{e(CAUTION_LINE)}</p>')

@@ -296,6 +296,12 @@ def _text_columns(rows: list[list[str]], header: bool, decimal: str, thousands: 
     return tuple(chosen)
 
 
+def _marks_and_header(rows: list[list[str]], delimiter: str):
+    """The decimal mark, thousands separator and their notes, then the header decision."""
+    marks = _choose_decimal(_number_tokens(rows), delimiter)
+    return marks, has_header(rows, marks[0], marks[1])
+
+
 def sniff_text(head: bytes, *, name: str, kind: str, truncated: bool) -> TextFormat:
     """Detect encoding, delimiter, decimal mark, thousands separator and header on a sample.
 
@@ -343,15 +349,12 @@ def sniff_text(head: bytes, *, name: str, kind: str, truncated: bool) -> TextFor
     if not body.strip():
         raise FileProblem(f"{name} holds no data (only blank lines).")
     delimiter, rows = _choose_delimiter(body, kind)
-    titles, title_rows, title_lines = _title_rows(body, delimiter, rows)
-    rows = rows[title_rows:]
-    decimal, thousands, decimal_notes = _choose_decimal(_number_tokens(rows), delimiter)
-    header, why = has_header(rows, decimal, thousands)
+    titles, skipped, title_lines = _title_rows(body, delimiter, rows)
+    (decimal, thousands, decimal_notes), (header, why) = _marks_and_header(rows[skipped:], delimiter)
     if titles and not header:  # titles sit above column names; above bare data, keep every row
-        titles, title_lines = [], 0
-        delimiter, rows = _choose_delimiter(body, kind)
-        decimal, thousands, decimal_notes = _choose_decimal(_number_tokens(rows), delimiter)
-        header, why = has_header(rows, decimal, thousands)
+        titles, skipped, title_lines = [], 0, 0
+        (decimal, thousands, decimal_notes), (header, why) = _marks_and_header(rows, delimiter)
+    rows = rows[skipped:]
     notes = [f"Read as {encoding_name} text with cells separated by "
              f"{DELIMITER_NAMES[delimiter]}s." if delimiter != " " else
              f"Read as {encoding_name} text with cells separated by spaces."]

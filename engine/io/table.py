@@ -10,6 +10,7 @@ import numpy as np
 import pandas as pd
 
 from ..results import Finding, frozen_mapping
+from ._files import TEXT_KINDS
 
 __all__ = ["Table", "with_rows_above", "remember_factors"]
 
@@ -47,7 +48,7 @@ class Table:
         object.__setattr__(self, "_factors", {})
         object.__setattr__(self, "_rising", {})
         object.__setattr__(self, "_whole", {})
-        object.__setattr__(self, "_lines", {})
+        object.__setattr__(self, "_breaks", _NOT_YET)  # rows with line breaks, found on first use
         object.__setattr__(self, "_levels", {})
 
     def file_row(self, frame_row: int) -> int:
@@ -58,9 +59,10 @@ class Table:
         down a line (worked out from the cells, once, on the first call).
         """
         line = int(frame_row) + 1 + self._rows_above
-        if "breaks" not in self._lines:
-            self._lines["breaks"] = _rows_with_line_breaks(self) if self.kind in _TEXT_KINDS else None
-        breaks = self._lines["breaks"]
+        if self._breaks is _NOT_YET:
+            found = _rows_with_line_breaks(self) if self.kind in TEXT_KINDS else None
+            object.__setattr__(self, "_breaks", found)
+        breaks = self._breaks
         if breaks is None:
             return line
         rows, before = breaks
@@ -118,7 +120,7 @@ class Table:
         return self._factors[column]
 
 
-_TEXT_KINDS = frozenset({"csv", "tsv", "txt"})
+_NOT_YET = object()
 
 
 def line_breaks(text: str) -> int:
