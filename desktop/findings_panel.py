@@ -332,18 +332,20 @@ class FindingsPanel(QWidget):
 
 
 def _agreement_text(robustness) -> str:
-    rows = robustness.rows
+    rows = robustness.voting
     level = export.level_text(robustness.level)
     finding = [row.name for row in rows if row.finds_difference]
+    aside = [row.name for row in robustness.rows if not row.votes]
+    note = (f" Not counted: {', '.join(aside)} (see the reason beside each)." if aside else "")
     if not rows:
-        return "No procedure gave an interval or a p-value."
+        return "No procedure gave a test that holds for these data." + note
     if robustness.agree:
         verdict = "all find a difference" if finding else "none finds a clear difference"
-        return f"The {len(rows)} procedures agree at the {level} level: {verdict}."
+        return f"The {len(rows)} tests counted agree at the {level} level: {verdict}.{note}"
     others = [row.name for row in rows if not row.finds_difference]
     return (f"The procedures disagree at the {level} level. A difference is found by "
             f"{', '.join(finding)}, but not by {', '.join(others)}; the answer depends on the "
-            "procedure, so lean on the size of the difference and its interval.")
+            f"procedure, so lean on the size of the difference and its interval.{note}")
 
 
 def _document_image(plot, draw) -> QImage:

@@ -17,6 +17,7 @@ import numpy as np
 
 from . import diagnostics as checks
 from .analysis import PROCEDURE_NAMES, RESAMPLING_MAX_VALUES
+from .procedures.resampling import BOOTSTRAP_MIN_N
 from .report import format_number
 from .results import Groups, frozen_mapping
 
@@ -24,9 +25,11 @@ __all__ = [
     "ConsideredOption",
     "Recommendation",
     "recommend",
+    "spreads_differ",
     "ASSUMPTIONS",
     "SMALL_GROUP_N",
     "KNOWN_SD_MISMATCH",
+    "FENCE_RULE",
     "RESAMPLING_MAX_VALUES",
 ]
 
@@ -41,6 +44,16 @@ KNOWN_SD_MISMATCH = checks.SD_RATIO_WARNING
 
 WELCH_SOURCES = ("Ruxton 2006, Behavioral Ecology 17:688; Delacre, Lakens and Leys 2017, "
                  "International Review of Social Psychology 30:92")
+
+# How surprising a value beyond the far fence must be, for a normal sample of the group's size,
+# before it changes the suggestion (the diagnostics' generalized ESD test; common practice: 1%).
+FENCE_RULE = (
+    "A value beyond the far fence (more than 3 interquartile ranges past the quartiles) changes "
+    "the suggestion only when a normal sample of the group's size gives one that extreme less than "
+    f"{checks.OUTLIER_SURPRISE:.0%} of the time (Rosner's generalized ESD test). In small groups the "
+    "fence alone flags ordinary values often, and switching procedures on a pre-test's verdict "
+    "has costs of its own (Rochon, Gondan and Kieser 2012, BMC Medical Research Methodology "
+    "12:81).")
 
 TIES_HANDLED = ("the rank test allows for ties: its exact version counts them as they are, and "
                 "its large-sample formula carries the usual correction for them.")
@@ -57,14 +70,20 @@ ASSUMPTIONS: Mapping[str, str] = frozen_mapping({
     "mann_whitney": ("Assumes independent values that can be put in order; it compares whether "
                      "values of one group tend to be larger, and its shift estimate (Hodges-"
                      "Lehmann) reads best when the two groups have the same shape and spread."),
-    "permutation_mean": ("Assumes independent values and that, if the groups did not differ, "
-                         "their labels could be swapped freely (the same distribution, spread "
-                         "included, in both)."),
-    "permutation_median": ("Assumes independent values and that, if the groups did not differ, "
-                           "their labels could be swapped freely; it compares medians."),
+    "permutation_mean": ("Assumes independent values, and tests that the two groups are "
+                         "interchangeable (the same distribution, spread and shape included), "
+                         "not only that the means are equal: with different spreads, above all "
+                         "with unequal group sizes, it can report a difference when the means are "
+                         "equal (Romano 1990, JASA 85:686)."),
+    "permutation_median": ("Assumes independent values, and tests that the two groups are "
+                           "interchangeable (the same distribution, spread and shape included), "
+                           "not that the medians are equal: with different spreads it can report "
+                           "a difference when the medians are equal (Romano 1990, JASA 85:686)."),
     "bootstrap_mean": ("Assumes independent values and that each group is large enough to stand "
                        "in for its population; it gives an interval for the difference in means "
-                       "but no p-value."),
+                       "but no p-value, and with fewer than about 10 values in a group the interval "
+                       "is too narrow (it misses the true difference more often than stated; "
+                       "Hesterberg 2015, The American Statistician 69:371)."),
     "bootstrap_median": ("Assumes independent values and groups large enough to stand in for their "
                          "populations; it gives an interval for the difference in medians but no "
                          "p-value, and is coarse when there are many ties."),
@@ -120,9 +139,11 @@ class _Situation:
     labels: tuple[str, str]
     skewed: tuple[bool, bool]
     heavy: tuple[bool, bool]
-    far: tuple[bool, bool]
+    far: tuple[bool, bool]  # values beyond the far fence that are surprising for a normal sample
+    fenced: tuple[bool, bool]  # values beyond the far fence that a normal sample of n gives often
     sd_ratio: float
     n_ratio: float
+    iqr_ratio: float
     ties: float
     resampling_runs: bool
 
@@ -146,8 +167,25 @@ class _Situation:
     @property
     def pooling_risky(self) -> bool:
         """The data argue against one common SD (the rule of thumb of the SD and n ratios)."""
-        return self.spreads_differ or (self.sd_ratio >= checks.SD_RATIO_NOTE
-                                       and self.n_ratio >= checks.N_RATIO_NOTE)
+        return _pooling_risky(self.sd_ratio, self.n_ratio)
+
+    @property
+    def robust_ratio(self) -> bool:
+        """Whether the spreads are compared by their interquartile ranges: when extreme values
+        inflate a standard deviation, the SD ratio says more about them than about the spread."""
+        return self.extremes and np.isfinite(self.iqr_ratio)
+
+    @property
+    def unequal_spreads(self) -> bool:
+        """The spreads argue against treating the groups as interchangeable (the pooling rule
+        of thumb, on the IQR ratio when extreme values distort the SDs)."""
+        ratio = self.iqr_ratio if self.robust_ratio else self.sd_ratio
+        return _pooling_risky(ratio, self.n_ratio)
+
+    def ratio_words(self) -> str:
+        if self.robust_ratio:
+            return f"ratio of the interquartile ranges {format_number(self.iqr_ratio, digits=2)}"
+        return f"SD ratio {format_number(self.sd_ratio, digits=2)}"
 
     def describe_shape(self) -> str:
         """Which groups look how, in words: "group 'A' is clearly lopsided and has far outliers"."""
@@ -159,6 +197,19 @@ class _Situation:
             if traits:
                 parts.append(f"group '{label}' " + _join(traits))
         return "; ".join(parts)
+
+
+def _pooling_risky(sd_ratio: float, n_ratio: float) -> bool:
+    return (not np.isfinite(sd_ratio) or sd_ratio >= checks.SD_RATIO_WARNING
+            or (sd_ratio >= checks.SD_RATIO_NOTE and n_ratio >= checks.N_RATIO_NOTE))
+
+
+def spreads_differ(diagnostics, groups: Groups) -> bool:
+    """Whether the spreads argue against treating the two groups as interchangeable: an SD ratio
+    of ``SD_RATIO_WARNING`` or more, or of ``SD_RATIO_NOTE`` with a size ratio of
+    ``N_RATIO_NOTE`` or more (common practice); judged on the interquartile ranges when heavy
+    tails or surprising far values distort the SDs."""
+    return _situation(diagnostics, groups).unequal_spreads
 
 
 def _join(words: list[str]) -> str:
@@ -173,9 +224,11 @@ def _situation(diagnostics, groups: Groups) -> _Situation:
         labels=tuple(groups.labels),
         skewed=tuple(checks.is_clearly_skewed(s) for s in shapes),
         heavy=tuple(checks.is_heavy_tailed(s) for s in shapes),
-        far=tuple(len(s.far_outliers) > 0 for s in shapes),
+        far=tuple(bool(s.far_surprising) for s in shapes),
+        fenced=tuple(len(s.far_outliers) > 0 and not s.far_surprising for s in shapes),
         sd_ratio=float(diagnostics.spread.sd_ratio),
         n_ratio=float(diagnostics.spread.n_ratio),
+        iqr_ratio=float(getattr(diagnostics.spread, "iqr_ratio", float("nan"))),
         ties=float(diagnostics.pooled_tie_share),
         resampling_runs=sum(sizes) <= RESAMPLING_MAX_VALUES,
     )
@@ -234,6 +287,8 @@ def _small_and_doubtful(s: _Situation) -> tuple[str, list[str]]:
     base = (f"The smallest group has {smallest} values, fewer than {SMALL_GROUP_N}, and "
             f"{s.describe_shape()}. With groups this small the central limit theorem cannot be "
             "relied on to rescue a t-test (the cut-off is common practice, not a sharp rule).")
+    if s.unequal_spreads:
+        return _doubtful_with_unequal_spreads(s, base)
     if s.extremes or not s.resampling_runs:
         reasons = [base,
                    "The Mann-Whitney procedure works with the order of the values, so a few extreme "
@@ -243,21 +298,41 @@ def _small_and_doubtful(s: _Situation) -> tuple[str, list[str]]:
         if s.ties >= checks.HEAVY_TIES:
             reasons.append(f"Many values are tied; {TIES_HANDLED}")
         return "mann_whitney", reasons
-    if s.spreads_differ:
-        return "bootstrap_mean", [
-            base,
-            "The mean is still a sensible summary here (no far outliers or heavy tails), but the "
-            f"spreads differ by a factor of {format_number(s.sd_ratio, digits=2)}. The bootstrap "
-            "resamples each group on its own, so its interval for the difference in means does not "
-            "assume equal spreads or a bell shape. It gives an interval, not a p-value.",
-        ]
     return "permutation_mean", [
         base,
         "The mean is still a sensible summary here (no far outliers or heavy tails) and the spreads "
-        "are similar, so the permutation test compares the means directly: it reshuffles the group "
-        "labels many times and needs no bell shape. Its p-value carries a small Monte Carlo error, "
-        "reported with it.",
+        "are similar, so the permutation test can stand in for the t-test: it reshuffles the group "
+        "labels many times and needs no bell shape. Strictly it tests that the two groups are "
+        "interchangeable (the same distribution); with similar spreads and shapes that comes down "
+        "to comparing the means. Its p-value carries a small Monte Carlo error, reported with it.",
     ]
+
+
+def _doubtful_with_unequal_spreads(s: _Situation, base: str) -> tuple[str, list[str]]:
+    """Small groups, a doubtful shape and spreads that differ: Welch's t-test for now.
+
+    The permutation tests and the Mann-Whitney test treat the groups as interchangeable when
+    they do not differ, so a difference in spread alone moves them; Welch's test allows it.
+    A rank test built for unequal spreads (Brunner-Munzel) is the natural choice here when
+    extreme values make the means fragile (``s.extremes``): its rule belongs at the top of this
+    function, returning its key before the Welch default below.
+    """
+    reasons = [
+        base,
+        f"The spreads differ as well ({s.ratio_words()}, size ratio "
+        f"{format_number(s.n_ratio, digits=2)}). The permutation tests and the Mann-Whitney test "
+        "assume that, if the groups did not differ, their values could be swapped freely; a "
+        "difference in spread alone then makes them report a difference that is not in the means "
+        "or the typical values (Romano 1990, JASA 85:686; Pratt 1964, JASA 59:665).",
+        "Welch's t-test allows the spreads to differ. With small groups that are not bell-shaped "
+        "its p-value and interval are approximate; bootstrap intervals do no better at these sizes "
+        "and give no p-value (Hesterberg 2015, The American Statistician 69:371), so Welch's test "
+        "is the safer of the procedures at hand.",
+    ]
+    if s.extremes:
+        reasons.append("Some values lie far from the rest and pull the means: check that they are "
+                       "real measurements before reading the difference in means.")
+    return "welch_t", reasons
 
 
 # -- the alternatives -----------------------------------------------------------------------------
@@ -287,31 +362,41 @@ def _why_not(key: str, chosen: str, s: _Situation, *, equal_spread_known: bool, 
                 "that and loses almost nothing when the spreads are equal.")
     if key == "z":
         return "The z-test needs standard deviations known from outside the data; none were given."
+    unequal_small = s.small and s.shape_doubtful and s.unequal_spreads and not ordinal
     if key == "mann_whitney":
+        if unequal_small:
+            return ("With spreads this different it no longer asks only whether one group tends "
+                    "to be higher: a difference in spread alone moves it (Pratt 1964, JASA 59:665).")
         if chosen in ("welch_t", "pooled_t", "z"):
             return ("It answers a different question (whether values of one group tend to be higher) "
                     "rather than comparing means; nothing in the data forces that change.")
         return ("It compares the order of values, not the means; with no far outliers or heavy "
                 "tails the mean can be kept as the quantity of interest.")
+    if key in ("permutation_mean", "bootstrap_mean", "permutation_median", "bootstrap_median") \
+            and not s.resampling_runs:
+        return "Resampling is not run for this many values; the large-sample procedures are accurate."
+    if key.startswith("permutation") and s.unequal_spreads:
+        return (f"It tests that the groups are interchangeable, spread and shape included, not only "
+                f"that the {'means' if key.endswith('mean') else 'medians'} are equal; with "
+                f"spreads this different ({s.ratio_words()}) it can "
+                "report a difference that is not there (Romano 1990, JASA 85:686).")
+    if key == "bootstrap_mean" and s.small:
+        if min(s.sizes) < BOOTSTRAP_MIN_N:
+            return (f"With fewer than {BOOTSTRAP_MIN_N} values in a group its interval is too "
+                    "narrow (it misses the true difference more often than stated) and it gives "
+                    "no p-value (Hesterberg 2015, The American Statistician 69:371).")
+        return ("It gives no p-value, and with groups this small its interval covers the true "
+                "difference no better than Welch's (Hesterberg 2015, The American Statistician "
+                "69:371).")
     if key in ("permutation_mean", "bootstrap_mean"):
-        if not s.resampling_runs:
-            return "Resampling is not run for this many values; the large-sample procedures are accurate."
         if ordinal:
             return "It compares means, which assumes equal steps between the scale points."
         if chosen == "mann_whitney":
             return ("Far outliers or heavy tails pull a mean strongly, so a comparison of means is "
                     "fragile here however its p-value is found.")
-        if key == "permutation_mean" and chosen == "bootstrap_mean":
-            return ("Reshuffling labels assumes the groups spread out alike if they do not differ, "
-                    "and here the spreads differ.")
-        if key == "bootstrap_mean" and chosen == "permutation_mean":
-            return ("It gives an interval but no p-value, and its intervals tend to be a little too "
-                    "narrow with small groups.")
         return ("It answers the same question as the t-test without the bell-shape assumption; "
                 "nothing in these data calls for that, so it serves as a cross-check.")
     if key in ("permutation_median", "bootstrap_median"):
-        if not s.resampling_runs:
-            return "Resampling is not run for this many values; the large-sample procedures are accurate."
         coarse = (" Medians of data with many ties move in jumps, which makes it coarse."
                   if s.ties >= checks.HEAVY_TIES else "")
         return ("A difference in medians is a different quantity from the one compared here, and it "
@@ -396,6 +481,11 @@ def recommend(diagnostics, groups: Groups, *, equal_spread_known: bool = False, 
     s = _situation(diagnostics, groups)
     flags = dict(equal_spread_known=equal_spread_known, ordinal=ordinal, known_sd=known_sd)
     key, reasons = _choose(s, **flags)
+    if key != "z" and not ordinal and (any(s.far) or any(s.fenced)):
+        calm = [f"group '{label}'" for label, fenced in zip(s.labels, s.fenced) if fenced]
+        note = (f" Here the values beyond the fence in {_join(calm)} are not that surprising, so "
+                "they did not count." if calm else "")
+        reasons.append(FENCE_RULE + note)
     candidates = [k for k in PROCEDURE_NAMES if k != key and (k != "z" or known_sd is not None)]
     considered = tuple(ConsideredOption(k, PROCEDURE_NAMES[k], _why_not(k, key, s, **flags))
                        for k in candidates)

@@ -121,8 +121,11 @@ def _readable(analysis, report_text: str) -> str:
     for row in analysis.robustness.rows:
         verdict = "finds a difference" if row.finds_difference else "finds no clear difference"
         p = "" if row.p_value is None else f", p = {row.p_value:.4g}"
+        if not row.votes:
+            verdict += f" (not counted: {row.not_voting_because})"
         lines.append(f"  {row.name}: {row.estimate_name} {row.estimate:.6g}{p}; {verdict}")
-    lines.append("  They agree." if analysis.robustness.agree else "  They do not all agree: read the reasons above.")
+    lines.append("  The tests counted agree." if analysis.robustness.agree
+                 else "  The tests counted do not all agree: read the reasons above.")
     return "\n".join(lines) + "\n"
 
 

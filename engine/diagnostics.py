@@ -28,6 +28,7 @@ __all__ = [
     "kurtosis_se",
     "is_clearly_skewed",
     "is_heavy_tailed",
+    "extreme_value_test",
     "SHAPIRO_MIN_N",
     "SHAPIRO_MAX_N",
     "SHAPIRO_SMALL_N",
@@ -38,6 +39,7 @@ __all__ = [
     "NORMAL_MILD_SHARE",
     "NORMAL_FAR_SHARE",
     "OUTLIER_SURPRISE",
+    "EXTREME_TEST_MAX_STEPS",
     "CHECK_ALPHA",
     "SKEW_SE_MULTIPLE",
     "SKEW_MATERIAL",
@@ -76,6 +78,9 @@ _QUARTILE_Z = float(stats.norm.ppf(0.75))
 NORMAL_MILD_SHARE = float(2 * stats.norm.sf(_QUARTILE_Z * (1 + 2 * MILD_FENCE)))
 NORMAL_FAR_SHARE = float(2 * stats.norm.sf(_QUARTILE_Z * (1 + 2 * FAR_FENCE)))
 OUTLIER_SURPRISE = 0.01
+# Most steps of the many-outlier test (one value removed per step); enough for any group in
+# which far values are a handful of slips, and it bounds the work on huge groups.
+EXTREME_TEST_MAX_STEPS = 1000
 # Share of tied values from which ties are "heavy" (common practice for rating scales).
 HEAVY_TIES = 0.25
 # Ratio of the larger to the smaller SD worth a note, and one that is a warning for the pooled
@@ -94,6 +99,9 @@ class GroupShape:
     says why. ``skewness`` and ``excess_kurtosis`` are the adjusted Fisher-Pearson G1 and G2
     (NaN where n is too small or the values do not vary). Outliers are at Tukey's fences.
     ``tie_share`` is the share of values equal to another value of the same group.
+    ``far_surprising`` says whether the far outliers are more extreme than a normal sample of
+    this size gives by chance (:func:`extreme_value_test` at ``OUTLIER_SURPRISE``);
+    ``extreme_p`` is that test's smallest p-value over the far outliers (NaN with none).
     ``qq_theoretical`` and ``qq_observed`` are normal Q-Q coordinates (Blom positions).
     """
 
@@ -110,6 +118,8 @@ class GroupShape:
     tie_share: float
     qq_theoretical: np.ndarray
     qq_observed: np.ndarray
+    far_surprising: bool = False
+    extreme_p: float = float("nan")
 
 
 @dataclass(frozen=True)
@@ -122,6 +132,7 @@ class SpreadCheck:
     brown_forsythe_p: float
     sd_ratio: float
     n_ratio: float
+    iqr_ratio: float = float("nan")  # larger over smaller interquartile range; NaN if one is 0
 
 
 @dataclass(frozen=True, eq=False)
@@ -314,6 +325,92 @@ def is_heavy_tailed(shape: GroupShape) -> bool:
                 and g2 > SKEW_SE_MULTIPLE * se and g2 > KURTOSIS_MATERIAL)
 
 
+def extreme_value_test(ordered: np.ndarray, count: int) -> tuple[float, ...]:
+    """How surprising the ``count`` most extreme values are for a normal sample of this size.
+
+    Parameters
+    ----------
+    ordered : numpy.ndarray
+        The group's values, sorted.
+    count : int
+        How many of the most extreme values to test (at most ``n - 2``).
+
+    Returns
+    -------
+    tuple of float
+        One p-value per step of Rosner's generalized ESD procedure: step i removes the i - 1
+        values tested before and asks whether the value farthest from the mean of the rest is
+        more extreme than a normal sample of that size gives. Fewer than ``count`` p-values
+        when the values run out (fewer than three left, or no spread left).
+
+    Notes
+    -----
+    With m values left, R = max |x - mean| / s. Its critical value at level alpha is
+    lambda = (m - 1) t / sqrt((m - 2 + t^2) m), t the 1 - alpha / (2 m) point of Student's t with
+    m - 2 degrees of freedom; solving for alpha gives the p-value
+    p = min(1, 2 m P(T > t)) with t = R sqrt(m (m - 2) / ((m - 1)^2 - m R^2)). The procedure
+    finds at least one outlier at level alpha exactly when some p is below alpha. For one value
+    this is Grubbs' test, whose Bonferroni form is exact for the levels used here.
+
+    References
+    ----------
+    Grubbs, F. E. (1969). Procedures for detecting outlying observations in samples.
+    Technometrics 11(1), 1-21.
+    Rosner, B. (1983). Percentage points for a generalized ESD many-outlier procedure.
+    Technometrics 25(2), 165-172.
+    NIST/SEMATECH e-Handbook of Statistical Methods, section 1.3.5.17.3 (generalized ESD test).
+    """
+    values = np.asarray(ordered, dtype=float)
+    n = values.size
+    steps = min(max(0, int(count)), n - 2, EXTREME_TEST_MAX_STEPS)
+    if steps <= 0:
+        return ()
+    # Sums over the values still in play, ordered[low:high], built outwards from the median so
+    # that no removed extreme value enters them (a running total minus the removed values would
+    # lose the small remaining spread to rounding when the extremes are huge).
+    middle = n // 2
+    centre = float(values[middle])
+    deviations = values - centre
+    left = deviations[:middle][::-1]
+    right = deviations[middle:]
+    zero = np.zeros(1)
+    sums_left = np.concatenate((zero, np.cumsum(left)))
+    squares_left = np.concatenate((zero, np.cumsum(left * left)))
+    sums_right = np.concatenate((zero, np.cumsum(right)))
+    squares_right = np.concatenate((zero, np.cumsum(right * right)))
+    low, high = 0, n
+    ratios: list[float] = []
+    sizes: list[int] = []
+    for _ in range(steps):
+        m = high - low
+        if m < 3 or low > middle or high < middle:
+            break
+        s1 = sums_left[middle - low] + sums_right[high - middle]
+        s2 = squares_left[middle - low] + squares_right[high - middle]
+        mean = s1 / m
+        variance = max(0.0, (s2 - s1 * mean) / (m - 1))
+        below, above = mean - deviations[low], deviations[high - 1] - mean
+        widest = max(below, above)
+        if not variance > 0 or np.sqrt(variance) <= np.finfo(float).eps * max(widest, abs(centre)):
+            break
+        ratios.append(widest / np.sqrt(variance))
+        sizes.append(m)
+        if above >= below:
+            high -= 1
+        else:
+            low += 1
+    if not ratios:
+        return ()
+    r, m = np.array(ratios), np.array(sizes, dtype=float)
+    room = (m - 1.0) ** 2 - m * r * r
+    with np.errstate(divide="ignore", invalid="ignore"):
+        t = r * np.sqrt(m * (m - 2.0) / room)
+        p = np.minimum(1.0, 2.0 * m * stats.t.sf(t, m - 2.0))
+    # the largest R that m values allow (room <= 0 after rounding): no normal sample reaches it
+    p = np.where(room > 0, p, 0.0)
+    return tuple(float(v) for v in p)
+
+
 def _shape(label: str, values: np.ndarray, index: int, ordered: np.ndarray | None = None
            ) -> tuple[GroupShape, list[Finding], np.ndarray, float]:
     """The shape of one group, its findings, its sorted values and its median."""
@@ -368,8 +465,12 @@ def _shape(label: str, values: np.ndarray, index: int, ordered: np.ndarray | Non
     far = tuple(ordered[far_mask].tolist())
     ties = _tie_share(ordered)
     qq_x, qq_y = _qq(ordered)
+    surprise = extreme_value_test(ordered, min(len(far), n - 2)) if far else ()
+    extreme_p = min(surprise) if surprise else float("nan")
+    # a far value that the test cannot judge (too few values left) keeps the fence's verdict
+    surprising = bool(far) and (not surprise or extreme_p < OUTLIER_SURPRISE)
     shape = GroupShape(label, n, shapiro_w, shapiro_p, skew, ses, kurt, sek, mild, far, ties,
-                       qq_x, qq_y)
+                       qq_x, qq_y, surprising, extreme_p)
 
     findings.append(_skew_finding(shape, name, index))
     findings.append(_tail_finding(shape, name, index))
@@ -423,11 +524,19 @@ def _outlier_finding(shape: GroupShape, name: str, index: int) -> Finding:
     far, mild, n = len(shape.far_outliers), len(shape.mild_outliers), shape.n
     counts = (f"{far} value(s) more than {FAR_FENCE:g} times the interquartile range beyond the "
               f"quartiles and {mild} more beyond {MILD_FENCE:g} times")
-    if _more_than_normal(far, n, NORMAL_FAR_SHARE):
+    if far and shape.far_surprising:
+        odds = ("" if not np.isfinite(shape.extreme_p) else
+                f" (a normal sample of {n} gives values this extreme with {p_clause(shape.extreme_p)})")
         return Finding("outliers", "warning",
-                       f"{name} has values far from the rest: {counts}. Check they are real "
+                       f"{name} has values far from the rest: {counts}{odds}. Check they are real "
                        "measurements before relying on a mean, which they pull strongly.", index)
-    if far or _more_than_normal(mild, n, NORMAL_MILD_SHARE):
+    if far:
+        return Finding("outliers", "note",
+                       f"{name} has values apart from the rest: {counts}. For a normal sample of "
+                       f"{n} values that is not surprising ({p_clause(shape.extreme_p)} for the "
+                       "most extreme; a small group's quartiles are themselves uncertain), so it "
+                       "does not change the suggestion.", index)
+    if _more_than_normal(mild, n, NORMAL_MILD_SHARE):
         return Finding("outliers", "note",
                        f"{name} has values apart from the rest: {counts}.", index)
     if mild:
@@ -451,7 +560,14 @@ def _tie_finding(shape: GroupShape, name: str, index: int) -> Finding:
     return Finding("ties", "info", f"No two values of {_lower(name)} are equal.", index)
 
 
-def _spread(x: np.ndarray, y: np.ndarray, medians: tuple[float, float]) -> SpreadCheck:
+def _ratio(a: float, b: float) -> float:
+    """Larger over smaller of two positive spreads; NaN unless both are positive and finite."""
+    small, large = min(a, b), max(a, b)
+    return float(large / small) if np.isfinite(large) and small > 0 else float("nan")
+
+
+def _spread(x: np.ndarray, y: np.ndarray, medians: tuple[float, float],
+            iqrs: tuple[float, float] = (float("nan"), float("nan"))) -> SpreadCheck:
     levene = _anova_of_deviations((x, y), (float(x.mean()), float(y.mean())))
     brown_forsythe = _anova_of_deviations((x, y), medians)
     sds = [float(np.std(v, ddof=1)) if v.size > 1 else float("nan") for v in (x, y)]
@@ -464,7 +580,7 @@ def _spread(x: np.ndarray, y: np.ndarray, medians: tuple[float, float]) -> Sprea
         sd_ratio = large / small
     n_ratio = max(x.size, y.size) / min(x.size, y.size)
     return SpreadCheck(levene[0], levene[1], brown_forsythe[0], brown_forsythe[1], sd_ratio,
-                       float(n_ratio))
+                       float(n_ratio), _ratio(*iqrs))
 
 
 def _spread_findings(spread: SpreadCheck, labels: tuple[str, str]) -> list[Finding]:
@@ -546,7 +662,8 @@ def diagnose(groups: Groups, *, sorted_x: np.ndarray | None = None,
     _check_groups(groups)
     shape_x, found_x, x_sorted, x_median = _shape(groups.labels[0], groups.x, 0, sorted_x)
     shape_y, found_y, y_sorted, y_median = _shape(groups.labels[1], groups.y, 1, sorted_y)
-    spread = _spread(groups.x, groups.y, (x_median, y_median))
+    iqrs = tuple(_quantile_sorted(o, 0.75) - _quantile_sorted(o, 0.25) for o in (x_sorted, y_sorted))
+    spread = _spread(groups.x, groups.y, (x_median, y_median), iqrs)
     pooled = _pooled_tie_share(x_sorted, y_sorted)
     findings = found_x + found_y + _spread_findings(spread, groups.labels)
     if pooled >= HEAVY_TIES:

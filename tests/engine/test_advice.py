@@ -143,3 +143,69 @@ def test_thresholds_are_named_constants_marked_as_common_practice():
     source = inspect.getsource(advice)
     assert advice.SMALL_GROUP_N == 30
     assert "common practice" in source.split("SMALL_GROUP_N = 30")[0].rsplit("\n\n", 1)[-1]
+
+
+def test_normal_groups_of_five_rarely_get_a_rank_suggestion():
+    # A seeded simulation of the pre-test's false alarms: normal data, 5 values per group. With
+    # a value beyond the 3 IQR fence switching on its own, about 26% of such data sets were sent
+    # to Mann-Whitney; through the surprise test only heavy tails or a value a normal sample of
+    # 5 rarely gives do it (the larger run's figures are in tests/benchmarks/sim_advice.py).
+    rng = np.random.default_rng(20261203)
+    keys = [_suggest(rng.normal(10, 1, 5), rng.normal(10, 1, 5)).key for _ in range(300)]
+    assert keys.count("mann_whitney") / len(keys) < 0.10
+    assert "bootstrap_mean" not in keys
+
+
+def test_the_fence_alone_does_not_switch_and_the_rule_is_stated():
+    a = [10.35, 10.82, 10.33, 8.70, 10.91]
+    b = [10.45, 9.46, 10.58, 10.36, 10.29]
+    suggestion = _suggest(a, b)
+    assert suggestion.key != "mann_whitney"
+    text = " ".join(suggestion.reasons)
+    assert "far from the rest" not in text
+    assert advice.FENCE_RULE in text and "Rochon" in text
+
+
+def test_small_doubtful_groups_with_unequal_spreads_get_welch_not_resampling(rng):
+    # scenario H of the review: the small group (8) four times as spread as the large one (25),
+    # here with a lopsided shape; permutation tests and bootstrap intervals are not suggested
+    seen = set()
+    for _ in range(60):
+        x = rng.lognormal(0, 1.2, 8)
+        y = rng.lognormal(0, 0.4, 25)
+        suggestion = _suggest(x, y)
+        seen.add(suggestion.key)
+        if suggestion.key == "welch_t" and any("Romano" in r for r in suggestion.reasons):
+            considered = {c.key: c.why_not for c in suggestion.considered}
+            assert "interchangeable" in considered["permutation_mean"]
+            assert "Hesterberg" in considered["bootstrap_mean"]
+    assert not seen & {"permutation_mean", "permutation_median", "bootstrap_mean", "bootstrap_median"}
+
+
+def test_permutation_tests_are_described_as_tests_of_interchangeable_groups():
+    # Romano (1990), JASA 85:686: a permutation test of means or medians tests that the groups
+    # have one distribution, not that the means or medians are equal
+    for key in ("permutation_mean", "permutation_median"):
+        assert "interchangeable" in advice.ASSUMPTIONS[key]
+        assert "Romano 1990" in advice.ASSUMPTIONS[key]
+
+
+def test_bootstrap_is_never_suggested_for_small_groups():
+    rng = np.random.default_rng(77)
+    for _ in range(60):
+        n1, n2 = rng.integers(5, 30, 2)
+        x = rng.lognormal(0, rng.uniform(0.3, 1.5), n1)
+        y = rng.lognormal(0.3, rng.uniform(0.3, 1.5), n2)
+        assert _suggest(x, y).key != "bootstrap_mean"
+
+
+def test_one_outlier_judges_the_spreads_by_their_quartiles():
+    # the outlier inflates one SD (SD ratio far above 2) while the middle halves spread alike:
+    # the rank procedure stays the suggestion
+    rng = np.random.default_rng(2026)
+    x = np.r_[rng.lognormal(0, 1, 14), 80.0]
+    y = rng.lognormal(0.5, 1, 15)
+    groups = Groups(("plot A", "plot B"), x, y)
+    checks = diagnose(groups)
+    assert checks.spread.sd_ratio > 2 and checks.spread.iqr_ratio < 2
+    assert advice.recommend(checks, groups).key == "mann_whitney"

@@ -67,7 +67,7 @@ def test_robustness_rows_follow_the_chosen_level(groups):
         result = analysis.procedures[row.key]
         if result.p_value is not None:
             assert row.finds_difference == (result.p_value < 0.01)
-    verdicts = {row.finds_difference for row in analysis.robustness.rows}
+    verdicts = {row.finds_difference for row in analysis.robustness.rows if row.votes}
     assert analysis.robustness.agree == (len(verdicts) == 1)
 
 
@@ -80,3 +80,30 @@ def test_robustness_rows_follow_the_chosen_level(groups):
 def test_bad_options_are_refused_with_a_sentence(options, message):
     with pytest.raises(OptionProblem, match=message):
         Options(**options)
+
+
+def test_an_interval_without_a_test_is_shown_but_does_not_vote():
+    # the review's example: Welch p = 0.15 and the exact permutation p = 1/3, while the bootstrap
+    # interval excludes 0 (4 values have only a handful of distinct resamples)
+    groups = Groups(("A", "B"), np.array([1.0, 2.0]), np.array([3.0, 4.5]))
+    analysis = analyze(groups, Options(n_resamples=2000, seed=1))
+    # reference: scipy.stats.ttest_ind(equal_var=False)
+    assert analysis.procedures["welch_t"].p_value == pytest.approx(
+        stats.ttest_ind([1.0, 2.0], [3.0, 4.5], equal_var=False).pvalue, rel=1e-10)
+    rows = {row.key: row for row in analysis.robustness.rows}
+    assert rows["bootstrap_mean"].finds_difference  # the interval itself is still reported
+    assert not rows["bootstrap_mean"].votes and "no test" in rows["bootstrap_mean"].not_voting_because
+    assert all(row.votes for row in analysis.robustness.rows if row.p_value is not None)
+    assert analysis.robustness.agree
+
+
+def test_permutation_tests_do_not_vote_when_the_spreads_differ():
+    # scenario H: SDs 4:1, sizes 8 and 25; the permutation tests test interchangeable groups
+    rng = np.random.default_rng(12)
+    groups = Groups(("A", "B"), rng.normal(0, 4, 8), rng.normal(0, 1, 25))
+    analysis = analyze(groups, Options(n_resamples=500, seed=2))
+    rows = {row.key: row for row in analysis.robustness.rows}
+    assert not rows["permutation_mean"].votes and not rows["permutation_median"].votes
+    assert rows["welch_t"].votes and rows["mann_whitney"].votes
+    verdicts = {row.finds_difference for row in analysis.robustness.voting}
+    assert analysis.robustness.agree == (len(verdicts) <= 1)

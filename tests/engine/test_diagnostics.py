@@ -236,3 +236,65 @@ def test_diagnose_with_sorted_copies_is_identical():
         assert (a.skewness, a.mild_outliers, a.far_outliers, a.tie_share) == \
             (b.skewness, b.mild_outliers, b.far_outliers, b.tie_share)
         assert np.array_equal(a.qq_observed, b.qq_observed)
+
+
+# Rosner's example (Technometrics 25:165, 1983), as worked in the NIST/SEMATECH e-Handbook,
+# section 1.3.5.17.3: 54 values, up to 10 outliers tested at alpha = 0.05.
+ROSNER_DATA = [-0.25, 0.68, 0.94, 1.15, 1.20, 1.26, 1.26, 1.34, 1.38, 1.43, 1.49, 1.49, 1.55, 1.56,
+               1.58, 1.65, 1.69, 1.70, 1.76, 1.77, 1.81, 1.91, 1.94, 1.96, 1.99, 2.06, 2.09, 2.10,
+               2.14, 2.15, 2.23, 2.24, 2.26, 2.35, 2.37, 2.40, 2.47, 2.54, 2.62, 2.64, 2.90, 2.92,
+               2.92, 2.93, 3.21, 3.26, 3.30, 3.59, 3.68, 4.30, 4.64, 5.34, 5.42, 6.01]
+
+
+def test_extreme_value_test_reproduces_the_handbook_example_of_the_generalized_esd():
+    p = dg.extreme_value_test(np.sort(ROSNER_DATA), 10)
+    assert len(p) == 10
+    # the handbook's table (recalled from memory): R_i against lambda_i for i = 1..10 is
+    # 3.118/3.158, 2.942/3.151, 3.179/3.143, then R below lambda; so only step 3 rejects at 0.05
+    # and the procedure declares 3 outliers
+    assert [v < 0.05 for v in p] == [False, False, True] + [False] * 7
+    # the p-value of a step is the level at which R_i equals its critical value lambda_i
+    x = list(np.sort(ROSNER_DATA))
+    for i, expected_r in enumerate((3.118, 2.942, 3.179)):
+        values = np.array(x)
+        r = np.max(np.abs(values - values.mean())) / values.std(ddof=1)
+        assert r == pytest.approx(expected_r, abs=2e-3)
+        m = values.size
+        t = stats.t.ppf(1 - p[i] / (2 * m), m - 2)
+        lam = (m - 1) * t / np.sqrt((m - 2 + t * t) * m)
+        assert lam == pytest.approx(r, rel=1e-6)
+        x.pop(int(np.argmax(np.abs(values - values.mean()))))
+
+
+def test_extreme_value_test_keeps_its_precision_next_to_huge_values():
+    # the remaining spread is tiny beside the removed value; a running total would lose it
+    p = dg.extreme_value_test(np.array([1.0, 2.0, 3.0, 4.0, 5.0, 1e12]), 2)
+    assert p[0] == 0.0
+    # step 2 is Grubbs' test on 1..5 alone: reference, the same formula on those values
+    alone = dg.extreme_value_test(np.array([1.0, 2.0, 3.0, 4.0, 5.0]), 1)
+    assert p[1] == pytest.approx(alone[0], rel=1e-12)
+
+
+def test_a_value_past_the_far_fence_in_a_normal_group_of_five_is_not_a_warning():
+    # drawn from a normal with SD 1: the 3 IQR fence flags 8.70, but a normal sample of 5
+    # gives a value that extreme often (Grubbs p about 0.06)
+    a = [10.35, 10.82, 10.33, 8.70, 10.91]
+    result = diagnose(_groups(a, [10.45, 9.46, 10.58, 10.36, 10.29]))
+    shape = result.shapes[0]
+    assert shape.far_outliers == (8.70,) and not shape.far_surprising
+    assert 0.01 < shape.extreme_p < 0.1
+    assert result.finding("outliers", 0).severity != "warning"
+    assert "not surprising" in result.finding("outliers", 0).text
+    # a real slip in a group of five is still surprising
+    slip = diagnose(_groups([10.1, 10.3, 9.9, 10.2, 31.0], [10.45, 9.46, 10.58, 10.36, 10.29]))
+    assert slip.shapes[0].far_surprising
+    assert slip.finding("outliers", 0).severity == "warning"
+
+
+def test_iqr_ratio_against_numpy_percentiles():
+    rng = np.random.default_rng(31)
+    x, y = rng.normal(0, 4, 8), rng.normal(0, 1, 25)
+    spread = diagnose(_groups(x, y)).spread
+    # reference: numpy.percentile with linear interpolation
+    iqr = [np.subtract(*np.percentile(v, [75, 25])) for v in (x, y)]
+    assert spread.iqr_ratio == pytest.approx(max(iqr) / min(iqr), rel=1e-12)

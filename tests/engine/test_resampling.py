@@ -389,7 +389,7 @@ def test_bootstrap_of_constant_groups_warns_instead_of_nan():
     result = bootstrap_interval([2.0, 2.0, 2.0], [1.0, 1.0, 1.0, 1.0], n_resamples=200,
                                 rng=np.random.default_rng(26))
     assert result.interval.low == result.interval.high == pytest.approx(1.0)
-    assert result.warnings and "same difference" in result.warnings[0]
+    assert any("same difference" in w for w in result.warnings)
     assert not any(math.isnan(v) for v in (result.interval.low, result.interval.high))
 
 
@@ -468,3 +468,13 @@ def test_large_permutation_run_is_correct_and_bounded():
     width = t_ci.high - t_ci.low
     assert abs(ours.interval.low - t_ci.low) < 0.02 * width
     assert abs(ours.interval.high - t_ci.high) < 0.02 * width
+
+
+def test_bootstrap_warns_below_ten_values_per_group():
+    # Hesterberg (2015), The American Statistician 69:371: bootstrap intervals are too narrow for
+    # small samples (BCa covered about 0.88 at a stated 0.95 with 5 and 6 normal values)
+    rng = np.random.default_rng(41)
+    small = bootstrap_interval(rng.normal(size=9), rng.normal(size=30), n_resamples=300, rng=rng)
+    assert any("fewer than 10 values" in w and "Hesterberg" in w for w in small.warnings)
+    enough = bootstrap_interval(rng.normal(size=10), rng.normal(size=30), n_resamples=300, rng=rng)
+    assert not any("fewer than 10" in w for w in enough.warnings)
