@@ -209,3 +209,29 @@ def test_one_outlier_judges_the_spreads_by_their_quartiles():
     checks = diagnose(groups)
     assert checks.spread.sd_ratio > 2 and checks.spread.iqr_ratio < 2
     assert advice.recommend(checks, groups).key == "mann_whitney"
+
+
+def test_few_whole_numbers_prompt_the_ratings_statement(rng):
+    # a 1-7 rating file read as plain numbers: the suggestion asks whether they are ratings
+    x, y = rng.integers(1, 8, 60), rng.integers(2, 8, 55)
+    suggestion = _suggest(x, y)
+    assert suggestion.looks_like_ratings
+    assert any("ordinal ratings" in r and "whole numbers from 1 to 7" in r for r in suggestion.reasons)
+    # once stated, the prompt is gone and the rank procedure is suggested
+    stated = _suggest(x, y, ordinal=True)
+    assert stated.key == "mann_whitney" and not any("whole numbers" in r for r in stated.reasons)
+    # measurements, a wide range of counts, or a yes/no outcome are not asked about
+    assert not _suggest(rng.normal(10, 2, 40), rng.normal(11, 2, 40)).looks_like_ratings
+    assert not _suggest(rng.integers(0, 100, 40), rng.integers(0, 100, 40)).looks_like_ratings
+    assert not _suggest(rng.integers(0, 2, 40), rng.integers(0, 2, 40)).looks_like_ratings
+    assert advice.looks_like_ratings(Groups(("a", "b"), np.array([0.0, 5, 10]), np.array([3.0, 4])))
+
+
+def test_shape_based_effect_sizes_carry_a_caution_when_groups_are_lopsided():
+    # scenario LN of the review: lognormal (sdlog 1), 15 per group; Algina, Keselman and
+    # Penfield (2005), Psychological Methods 10:317, on d's interval under non-normality
+    rng = np.random.default_rng(15)
+    lopsided = _suggest(rng.lognormal(0, 1, 15), rng.lognormal(0.5, 1, 15))
+    assert any("Glass's delta" in c and "Algina" in c for c in lopsided.cautions)
+    bell = _suggest(rng.normal(10, 2, 40), rng.normal(11, 2, 40))
+    assert not any("Algina" in c for c in bell.cautions)
