@@ -549,14 +549,15 @@ def _outlier_finding(shape: GroupShape, name: str, index: int) -> Finding:
 def _tie_finding(shape: GroupShape, name: str, index: int) -> Finding:
     share = shape.tie_share
     if share >= HEAVY_TIES:
-        return Finding("ties", "note",
+        return Finding("ties", "info",
                        f"{format_number(100 * share, digits=2)}% of the values of {_lower(name)} "
-                       "repeat another value (ties), as on a rating scale or a coarse gauge.",
-                       index)
+                       "equal another value (ties), as values recorded to a few digits give. The "
+                       "t procedures are not affected; the rank procedures count the ties exactly, "
+                       "and a median moves in steps.", index)
     if share > 0:
         return Finding("ties", "info",
                        f"{format_number(100 * share, digits=2)}% of the values of {_lower(name)} "
-                       "repeat another value (ties).", index)
+                       "equal another value (ties).", index)
     return Finding("ties", "info", f"No two values of {_lower(name)} are equal.", index)
 
 
@@ -667,13 +668,13 @@ def diagnose(groups: Groups, *, sorted_x: np.ndarray | None = None,
     pooled = _pooled_tie_share(x_sorted, y_sorted)
     findings = found_x + found_y + _spread_findings(spread, groups.labels)
     if pooled >= HEAVY_TIES:
-        findings.append(Finding("pooled_ties", "note",
-                                f"{format_number(100 * pooled, digits=2)}% of all values repeat "
-                                "another value in either group; rank procedures handle such ties "
-                                "exactly, but a rank test's simple large-sample formula needs a "
-                                "correction for them."))
+        findings.append(Finding("pooled_ties", "info",
+                                f"{format_number(100 * pooled, digits=2)}% of all values equal "
+                                "another value in either group; the rank test counts such ties "
+                                "exactly, and its large-sample formula carries the correction "
+                                "for them."))
     else:
         findings.append(Finding("pooled_ties", "info",
-                                f"{format_number(100 * pooled, digits=2)}% of all values repeat "
+                                f"{format_number(100 * pooled, digits=2)}% of all values equal "
                                 "another value in either group."))
     return Diagnostics((shape_x, shape_y), spread, pooled, tuple(findings))

@@ -14,6 +14,7 @@ from ._files import wrap_unexpected
 from .cells import cell_text, is_missing_marker
 from .layout import trimmed_levels
 from .repeats import duplicate_rows
+from .screening import repeated_rows_finding
 from .screening import (
     MAX_LISTED_EXCLUSIONS,
     Exclusion,
@@ -370,10 +371,7 @@ def _screen(table, cells, group, other_rows, set_aside, findings, extra) -> Inta
 
     repeated = duplicate_rows(table, counted=counted)
     if repeated.size:
-        findings.append(Finding(
-            "duplicate_rows", "note",
-            f"{repeated.size} row(s) repeat an earlier row exactly ({_rows_text(table, repeated)}); "
-            "check that no data were copied in twice."))
+        findings.append(repeated_rows_finding(table, repeated, counted, _rows_text(table, repeated)))
     if other_rows:
         findings.append(Finding(
             "other_groups", "info",

@@ -8,7 +8,13 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
-__all__ = ["duplicate_rows", "row_hashes"]
+__all__ = ["duplicate_rows", "row_hashes", "pairs_by_chance", "repeats_surprising",
+           "surprising_below", "REPEAT_SURPRISE"]
+
+# How unlikely the observed number of repeated rows must be, given the pairs of equal rows that
+# chance gives for columns like these, before the screening asks whether data were copied twice
+# (common practice: 1%, the level of the outlier check too).
+REPEAT_SURPRISE = 0.01
 
 _DIRECT_UP_TO = 50_000  # rows; up to here pandas compares the rows directly
 _HASH_BLOCK = 1 << 16  # rows hashed at a time: a few buffers of 512 KiB
@@ -182,3 +188,108 @@ def _repeats_by_hash(table, hashes: np.ndarray) -> np.ndarray:
     involved = rows[clash[codes]]
     settled = involved[frame.iloc[involved].duplicated(keep="first").to_numpy()]
     return np.sort(np.concatenate([candidates[same & ~clash[codes[later]]], settled]))
+
+
+def _cells(table, position: int, name, rows: np.ndarray) -> tuple[np.ndarray, np.ndarray | None]:
+    """Codes of the column's cells in ``rows`` (equal cells, equal codes) and, for a number
+    column, the numbers themselves."""
+    column = table.frame.iloc[:, position]
+    if column.dtype == np.float64:
+        values = column.to_numpy()[rows] + 0.0  # -0.0 + 0.0 is 0.0, as the row check has it
+        return pd.factorize(values, use_na_sentinel=False)[0], values
+    return table.factors(name)[0][rows], None
+
+
+def _equal_chance(codes: np.ndarray, values: np.ndarray | None, step: float,
+                  first: np.ndarray) -> float:
+    """Chance that two rows of one stratum agree in one column, by the birthday problem."""
+    if codes.size < 2:
+        return 1.0
+    kept = codes[first]
+    if kept.size > 2 and 2 * kept.size >= codes.size and np.unique(kept).size == kept.size:
+        return 0.0  # an identifier: apart from the (fewer) repeated rows, no value comes twice
+    if values is not None and np.isfinite(step) and step > 0:
+        finite = values[np.isfinite(values)]
+        sd = float(np.std(finite)) if finite.size > 1 else 0.0
+        if sd > 0:
+            # values on a grid of ``step`` from a bell curve of SD sd: sum p^2 = step / (2 sqrt(pi) sd)
+            return float(min(1.0, step / (2.0 * np.sqrt(np.pi) * sd)))
+    shares = np.bincount(codes - codes.min()).astype(float) / codes.size
+    return float(np.dot(shares, shares))
+
+
+def _step(values: np.ndarray | None) -> float:
+    """The recording step of a number column: the least gap between its distinct values."""
+    if values is None:
+        return float("nan")
+    distinct = np.unique(values[np.isfinite(values)])
+    if distinct.size < 2:
+        return float("nan")
+    return float(np.min(np.diff(distinct)))
+
+
+def pairs_by_chance(table, rows: np.ndarray, repeated: np.ndarray | None = None) -> float:
+    """Expected number of pairs of equal rows among ``rows`` if the rows were drawn at random.
+
+    Parameters
+    ----------
+    table : engine.io.Table
+    rows : numpy.ndarray
+        The frame rows taking part (those the repeated-row check counts).
+    repeated : numpy.ndarray, optional
+        The rows found to repeat an earlier row; a column counts as an identifier when its
+        values are all different apart from these.
+
+    Notes
+    -----
+    The birthday problem: n rows drawn independently give C(n, 2) sum_c p_c^2 pairs of equal
+    rows in expectation (p_c the chance of the cell combination c), and the number of rows that
+    repeat an earlier row is at most that. Rows are split by the column with the fewest
+    distinct values (in a long layout the group label: values differ between groups) and the
+    other columns are taken as independent within each part, so E = sum_l C(n_l, 2) prod_j q_lj.
+    The chance q that two rows agree in a column is 0 for an identifier (every value
+    different apart from the repeated rows, which are under half of the rows); step / (2 sqrt(pi) sd) for numbers recorded to a
+    step (the least gap between distinct values) with standard deviation sd, the sum of p^2 of
+    a bell curve on that grid; and the sum of squared shares of each value otherwise. Fine
+    resolution, many columns or an identifier make E small; a label and a coarse value make it
+    large.
+    """
+    rows = np.asarray(rows, dtype=np.int64)
+    n = rows.size
+    frame = table.frame
+    if n < 2 or frame.shape[1] == 0:
+        return 0.0
+    first = ~np.isin(rows, np.asarray(repeated if repeated is not None else [], dtype=np.int64))
+    columns = [_cells(table, position, name, rows) for position, name in enumerate(frame.columns)]
+    distinct = [int(codes.max()) + 1 for codes, _ in columns]
+    strata = int(np.argmin(distinct))
+    level = columns[strata][0]
+    steps = [_step(values) for _, values in columns]
+    expected = 0.0
+    for value in np.unique(level):
+        inside = level == value
+        size = int(np.count_nonzero(inside))
+        chance = 1.0
+        for j, (codes, values) in enumerate(columns):
+            if j == strata or chance == 0.0:
+                continue
+            chance *= _equal_chance(codes[inside], None if values is None else values[inside],
+                                    steps[j], first[inside])
+        expected += size * (size - 1) / 2 * chance
+    return float(expected)
+
+
+def surprising_below(observed: int) -> float:
+    """The expected pairs below which ``observed`` repeated rows are surprising: a Poisson count
+    of mean E reaches ``observed`` with chance below ``REPEAT_SURPRISE`` exactly when E is below
+    the ``REPEAT_SURPRISE`` quantile of a Gamma(observed, 1) law."""
+    from scipy import stats
+
+    return float(stats.gamma.ppf(REPEAT_SURPRISE, observed)) if observed > 0 else 0.0
+
+
+def repeats_surprising(observed: int, expected_pairs: float) -> bool:
+    """Whether ``observed`` repeated rows are well above what chance gives: a Poisson count with
+    mean ``expected_pairs`` (which bounds the expected repeated rows) reaches it with chance
+    below ``REPEAT_SURPRISE``."""
+    return observed > 0 and expected_pairs < surprising_below(observed)

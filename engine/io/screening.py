@@ -24,6 +24,7 @@ __all__ = [
     "possible_slips",
     "paired_sign",
     "identifier_candidates",
+    "repeated_rows_finding",
 ]
 
 EXCLUSION_REASONS: tuple[str, ...] = ("missing", "non_numeric", "infinite", "set_aside")
@@ -222,3 +223,31 @@ def identifier_candidates(table, skip: Sequence[str]) -> list[str]:
             if len(texts) >= 2 and len(texts) == np.count_nonzero(codes >= 0):
                 names.append(name)
     return names[:3]
+
+
+def repeated_rows_finding(table, repeated: np.ndarray, counted, where: str) -> Finding:
+    """The finding on rows that repeat an earlier row: a note asking about copying only when
+    that many repeats are unlikely by chance for columns like these (see
+    :func:`engine.io.repeats.pairs_by_chance`), else a line for the record."""
+    from .repeats import pairs_by_chance, surprising_below
+
+    count = int(repeated.size)
+    rows = np.flatnonzero(counted() & ~table.frame.isna().all(axis=1).to_numpy())
+    threshold = surprising_below(count)
+    expected = pairs_by_chance(table, rows, repeated)
+    rows_word = "row repeats" if count == 1 else "rows repeat"
+    if expected < threshold:
+        chance = "almost none" if expected < 0.05 else f"about {_about(expected)}"
+        return Finding(
+            "duplicate_rows", "note",
+            f"{count:,} {rows_word} an earlier row exactly ({where}); with values like these, "
+            f"chance gives {chance}, so check that no data were copied in twice.")
+    return Finding(
+        "duplicate_rows", "info",
+        f"{count:,} {rows_word} an earlier row exactly; the rows hold few different values, so "
+        f"repeats are expected by chance (about {_about(expected)} pairs of equal rows) and are "
+        "no sign of copying.")
+
+
+def _about(value: float) -> str:
+    return f"{value:,.0f}" if value >= 10 else f"{value:.2g}"

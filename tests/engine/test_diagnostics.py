@@ -298,3 +298,14 @@ def test_iqr_ratio_against_numpy_percentiles():
     # reference: numpy.percentile with linear interpolation
     iqr = [np.subtract(*np.percentile(v, [75, 25])) for v in (x, y)]
     assert spread.iqr_ratio == pytest.approx(max(iqr) / min(iqr), rel=1e-12)
+
+
+def test_ties_are_read_by_their_consequence_not_as_a_rating_scale():
+    # 400 yields recorded to 0.1 kg: most values tie, which matters to no procedure's validity
+    rng = np.random.default_rng(400)
+    result = diagnose(_groups(np.round(rng.normal(52, 1.5, 200), 1), np.round(rng.normal(53, 1.5, 200), 1)))
+    ties = result.finding("ties", 0)
+    assert result.shapes[0].tie_share >= dg.HEAVY_TIES
+    assert ties.severity == "info" and "rating" not in ties.text
+    assert "rank procedures count the ties exactly" in ties.text
+    assert result.finding("pooled_ties").severity == "info"

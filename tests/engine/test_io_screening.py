@@ -335,3 +335,62 @@ def test_paired_sign_matches_text_ids_written_with_stray_spaces(tmp_path):
     rows += "".join(f"S{i:02d} ,after,{52 + i}.5\n" for i in range(10))  # the same IDs, a space after
     report = make_groups(_table(tmp_path, "subject,stage,load\n" + rows), values="load", group="stage").screening
     assert report.paired is not None and "every ID appears once" in report.paired.text
+
+
+def test_repeats_of_a_label_and_a_rating_are_expected_by_chance(tmp_path):
+    # a two-column 1-7 rating file: with 2 x 7 possible rows, most of 200 rows repeat another
+    rng = np.random.default_rng(86)
+    frame = pd.DataFrame({"group": rng.choice(["A", "B"], 200), "score": rng.integers(1, 8, 200)})
+    path = tmp_path / "ratings.csv"
+    frame.to_csv(path, index=False)
+    report = make_groups(read_table(path), values="score", group="group").screening
+    assert report.duplicate_rows == int(frame.duplicated().sum()) > 100  # reference: pandas
+    finding = next(f for f in report.findings if f.key == "duplicate_rows")
+    assert finding.severity == "info" and "copied" not in finding.text
+    assert "expected by chance" in finding.text
+
+
+@pytest.mark.parametrize("kind", ["identifier", "fine values"])
+def test_repeats_that_chance_does_not_give_ask_about_copying(tmp_path, kind):
+    rng = np.random.default_rng(87)
+    n = 300
+    frame = pd.DataFrame({"group": rng.choice(["A", "B"], n), "yield": np.round(rng.normal(50, 5, n), 5)})
+    if kind == "identifier":
+        frame.insert(0, "plot", np.arange(1, n + 1))
+        frame["yield"] = np.round(frame["yield"], 0)  # coarse values: only the ID rules chance out
+    frame = pd.concat([frame, frame.iloc[[5, 17]]], ignore_index=True)  # two rows pasted again
+    path = tmp_path / "pasted.csv"
+    frame.to_csv(path, index=False)
+    report = make_groups(read_table(path), values="yield", group="group").screening
+    assert report.duplicate_rows == int(frame.duplicated().sum()) == 2  # reference: pandas
+    finding = next(f for f in report.findings if f.key == "duplicate_rows")
+    assert finding.severity == "note" and "copied in twice" in finding.text
+
+
+def test_pairs_by_chance_is_the_birthday_count():
+    # a label with two equal halves and a text value spread evenly over 7 levels in each half:
+    # the birthday problem gives 2 * C(n/2, 2) / 7 expected pairs of equal rows
+    from engine.io import repeats
+
+    class _Frame:  # the least a table offers the function
+        def __init__(self, frame):
+            self.frame = frame
+
+        def factors(self, name):
+            return pd.factorize(self.frame[name])[0], None
+
+    n = 140
+    frame = pd.DataFrame({"g": ["A"] * (n // 2) + ["B"] * (n // 2),
+                          "v": np.tile(list("abcdefg"), n // 7)})
+    expected = repeats.pairs_by_chance(_Frame(frame), np.arange(n))
+    assert expected == pytest.approx(2 * (n // 2) * (n // 2 - 1) / 2 / 7, rel=1e-12)
+    # numbers on a grid of step h from a bell curve: sum p^2 = h / (2 sqrt(pi) sd), the
+    # integral of the squared normal density times h (a textbook identity)
+    rng = np.random.default_rng(5)
+    frame = pd.DataFrame({"g": ["A"] * 1000, "v": np.round(rng.normal(0, 2, 1000), 1)})
+    sd = np.std(frame["v"])
+    assert repeats.pairs_by_chance(_Frame(frame), np.arange(1000)) == pytest.approx(
+        1000 * 999 / 2 * 0.1 / (2 * np.sqrt(np.pi) * sd), rel=1e-6)
+    # an identifier column rules chance out
+    frame["id"] = np.arange(1000)
+    assert repeats.pairs_by_chance(_Frame(frame), np.arange(1000)) == 0.0
