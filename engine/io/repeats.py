@@ -193,9 +193,9 @@ def _repeats_by_hash(table, hashes: np.ndarray) -> np.ndarray:
 def _cells(table, position: int, name, rows: np.ndarray) -> tuple[np.ndarray, np.ndarray | None]:
     """Codes of the column's cells in ``rows`` (equal cells, equal codes) and, for a number
     column, the numbers themselves."""
-    column = table.frame.iloc[:, position]
-    if column.dtype == np.float64:
-        values = column.to_numpy()[rows] + 0.0  # -0.0 + 0.0 is 0.0, as the row check has it
+    cells = table.frame.iloc[:, position]
+    if cells.dtype == np.float64:
+        values = cells.to_numpy()[rows] + 0.0  # -0.0 + 0.0 is 0.0, as the row check has it
         return pd.factorize(values, use_na_sentinel=False)[0], values
     return table.factors(name)[0][rows], None
 
