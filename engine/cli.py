@@ -114,6 +114,8 @@ def _readable(analysis, report_text: str) -> str:
     if screening is not None:
         for finding in screening.findings:
             lines.append(f"  [{finding.severity}] {finding.text}")
+    for note in analysis.notes:
+        lines.append(f"  [{note.severity}] {note.text}")
     lines.append("")
     lines.append(report_text.rstrip())
     lines.append("")
