@@ -236,12 +236,12 @@ def _noncentrality_limits(t_observed: float, df: float,
 
 
 def _pooled_sd(pair: _Pair) -> float:
-    """The pooled SD in units of ``pair.moments.unit`` (itself in units of its ``scale``)."""
+    """The pooled SD in units of 2**``pair.moments.unit_exponent``."""
     m = pair.moments
     if m.constant_1 and m.constant_2:
         raise DataProblem("Every value within each group is the same, so the pooled standard "
                           "deviation is zero and a standardised difference is not defined.")
-    var_x, var_y = (m.sd_1 / m.unit) ** 2, (m.sd_2 / m.unit) ** 2
+    var_x, var_y = m.sd_1**2, m.sd_2**2
     pooled = ((pair.n1 - 1) * var_x + (pair.n2 - 1) * var_y) / (pair.n1 + pair.n2 - 2)
     if pooled == 0:
         raise DataProblem("The spread within the groups is too small beside the size of the "
@@ -268,7 +268,7 @@ def _standardised(pair: _Pair, level: float, alternative: str, *, correct: bool)
     df = n1 + n2 - 2
     sd = _pooled_sd(pair)
     m = pair.moments
-    d = (m.difference / m.unit) / sd
+    d = m.in_sd_units(m.difference) / sd
     scale = math.sqrt(1 / n1 + 1 / n2)
     key, name = ("hedges_g", "Hedges' g") if correct else ("cohen_d", "Cohen's d")
     nc_low, nc_high, integrated = _limits(name, d / scale, df, level, alternative)
@@ -283,7 +283,7 @@ def _standardised(pair: _Pair, level: float, alternative: str, *, correct: bool)
                 "distribution (exact for bell-shaped groups with equal spreads"
               + (", and not multiplied by J)" if correct else ")")
               + (_BY_INTEGRAL if integrated else ""))
-    details = dict(pooled_sd=sd * m.unit * m.scale, df=df, t=d / scale,
+    details = dict(pooled_sd=m.absolute(sd), df=df, t=d / scale,
                    noncentrality_interval=(nc_low, nc_high),
                    interval_estimates="population standardised difference (delta)",
                    interval_by_integration=integrated)
@@ -426,8 +426,11 @@ def _glass(pair: _Pair, level: float, alternative: str) -> EffectSize:
     if m.sd_2 == 0:
         raise DataProblem("The spread of group 2 is too small beside the size of the values to be "
                           "measured in floating point, so Glass's delta cannot be computed.")
-    delta = m.difference / m.sd_2
+    delta = m.in_sd_units(m.difference) / m.sd_2
     scale = math.hypot(m.sd_1 / m.sd_2 / math.sqrt(pair.n1), 1 / math.sqrt(pair.n2))
+    if not math.isfinite(scale):
+        raise DataProblem("The spread of group 2 is too small beside that of group 1 to be "
+                          "measured in floating point, so Glass's delta cannot be computed.")
     df = pair.n2 - 1
     nc_low, nc_high, integrated = _limits("Glass's delta", delta / scale, df, level, alternative)
     return EffectSize(
@@ -436,7 +439,7 @@ def _glass(pair: _Pair, level: float, alternative: str) -> EffectSize:
         method=("difference in means over group 2's standard deviation; interval from a "
                 f"noncentral t approximation with {df} degrees of freedom"
                 + (_BY_INTEGRAL if integrated else "")),
-        details=dict(reference_sd=m.sd_2 * m.scale, df=df, scale=scale,
+        details=dict(reference_sd=m.absolute(m.sd_2), df=df, scale=scale,
                      interval_by_integration=integrated),
     )
 

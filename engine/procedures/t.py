@@ -134,13 +134,32 @@ def _result(
     )
 
 
+def _shifted(value: float, exponent: int) -> float:
+    """value * 2**exponent, infinite or zero (never an error) beyond the float range."""
+    try:
+        return math.ldexp(value, exponent)
+    except OverflowError:
+        return math.copysign(math.inf, value)
+
+
+def _exponent(power_of_two: float) -> int:
+    return math.frexp(power_of_two)[1] - 1
+
+
+def _sd_parts(values: np.ndarray) -> tuple[float, int]:
+    """(a, k) with SD = a * 2**k, a at most about 3: the SD whatever the size of the values."""
+    own = common_scale(values)
+    return centred_sd(values / own if own != 1.0 else values), _exponent(own)
+
+
 @dataclass(frozen=True)
 class Moments:
-    """Means, difference and SDs of two groups, in units of ``scale`` (a power of two).
+    """Means and difference of two groups in units of ``scale``; their SDs in units of 2**``unit_exponent``.
 
-    ``unit`` is a second power of two near the larger SD (in units of ``scale``), in which the
-    variances of the t procedures are squared; ``constant_1`` and ``constant_2`` say whether
-    every value of a group is the same number.
+    ``scale`` is a power of two near the largest |value| (1.0 for values of ordinary size) and
+    2**``unit_exponent`` one near the larger SD, so that ``sd_1`` and ``sd_2`` lie in [0, 2)
+    and may be squared, and squared again, without overflow or underflow. ``constant_1`` and
+    ``constant_2`` say whether every value of a group is the same number.
     """
 
     scale: float
@@ -149,9 +168,21 @@ class Moments:
     difference: float
     sd_1: float
     sd_2: float
-    unit: float
+    unit_exponent: int
     constant_1: bool
     constant_2: bool
+
+    def in_sd_units(self, value: float) -> float:
+        """A value in units of ``scale`` (the difference, say) in units of 2**unit_exponent."""
+        return _shifted(value, _exponent(self.scale) - self.unit_exponent)
+
+    def in_scale_units(self, value: float) -> float:
+        """A value in units of 2**unit_exponent (a standard error) in units of ``scale``."""
+        return _shifted(value, self.unit_exponent - _exponent(self.scale))
+
+    def absolute(self, value: float) -> float:
+        """A value in units of 2**unit_exponent (an SD) in the units of the data."""
+        return _shifted(value, self.unit_exponent)
 
 
 def moments(x: np.ndarray, y: np.ndarray) -> Moments:
@@ -161,18 +192,21 @@ def moments(x: np.ndarray, y: np.ndarray) -> Moments:
     -----
     The values are divided by their common power of two (:func:`engine.summary.common_scale`),
     which rounds nothing, so data of ordinary size give exactly the numbers of the plain
-    formulas. Squares are then taken of SDs divided by ``unit``, a power of two near the larger
-    SD, so that neither the variances nor the squared variances of the Welch degrees of freedom
-    overflow (spreads near 1e80 and beyond) or underflow (distinct values near 1e-300).
+    formulas; the means and their difference are found on the scaled values. Each SD is found
+    on its own group's scale and expressed in units of a power of two near the larger SD, so
+    that neither the variances nor the squared variances of the Welch degrees of freedom
+    overflow (spreads near 1e80 and beyond) or underflow (distinct values near 1e-300), even when
+    the two groups differ in size by hundreds of orders of magnitude.
     """
     scale = common_scale(x, y)
     xs, ys = (x / scale, y / scale) if scale != 1.0 else (x, y)
     mean_1, mean_2, difference = _mean_difference(xs, ys)
-    sd_1, sd_2 = centred_sd(xs), centred_sd(ys)
-    larger = max(sd_1, sd_2)
-    unit = math.ldexp(1.0, math.frexp(larger)[1] - 1) if larger > 0 else 1.0
-    return Moments(scale, mean_1, mean_2, difference, sd_1, sd_2, unit,
-                   bool(x.min() == x.max()), bool(y.min() == y.max()))
+    (a_1, k_1), (a_2, k_2) = _sd_parts(x), _sd_parts(y)
+    exponents = [math.frexp(a)[1] + k for a, k in ((a_1, k_1), (a_2, k_2)) if a > 0]
+    unit_exponent = max(exponents) if exponents else 0
+    return Moments(scale, mean_1, mean_2, difference,
+                   _shifted(a_1, k_1 - unit_exponent), _shifted(a_2, k_2 - unit_exponent),
+                   unit_exponent, bool(x.min() == x.max()), bool(y.min() == y.max()))
 
 
 def _prepare(x: Any, y: Any, alternative: Any, confidence_level: Any):
@@ -275,19 +309,20 @@ def pooled_t(
     warnings = _check_spread(m)
     n_x, n_y = x.size, y.size
     df = n_x + n_y - 2
-    # variances in units of m.unit squared
-    var_x, var_y = (m.sd_1 / m.unit) ** 2, (m.sd_2 / m.unit) ** 2
+    # variances in units of 2**m.unit_exponent squared
+    var_x, var_y = m.sd_1**2, m.sd_2**2
     pooled = ((n_x - 1) * var_x + (n_y - 1) * var_y) / df
     standard_error = math.sqrt(pooled * (1 / n_x + 1 / n_y))
     return _result(
-        "pooled_t", estimate=m.difference, standard_error=standard_error * m.unit, df=df,
-        alternative=alternative, level=level, scale=m.scale,
-        statistic=(m.difference / m.unit) / standard_error,
+        "pooled_t", estimate=m.difference, standard_error=m.in_scale_units(standard_error),
+        df=df, alternative=alternative, level=level, scale=m.scale,
+        statistic=m.in_sd_units(m.difference) / standard_error,
         method="Student t distribution with n1 + n2 - 2 degrees of freedom, one variance "
                "pooled from both groups",
         details=dict(n_1=n_x, n_2=n_y, mean_1=m.mean_1 * m.scale, mean_2=m.mean_2 * m.scale,
-                     variance_1=_squared(m.sd_1 * m.scale), variance_2=_squared(m.sd_2 * m.scale),
-                     pooled_variance=_squared(math.sqrt(pooled) * m.unit * m.scale)),
+                     variance_1=_squared(m.absolute(m.sd_1)),
+                     variance_2=_squared(m.absolute(m.sd_2)),
+                     pooled_variance=_squared(m.absolute(math.sqrt(pooled)))),
         warnings=warnings,
     )
 
@@ -336,18 +371,20 @@ def welch_t(
     m = moments(x, y)
     warnings = _check_spread(m)
     n_x, n_y = x.size, y.size
-    # v_i = s_i^2 / n_i in units of m.unit squared: at most 4, so v_i^2 cannot overflow
-    v_x, v_y = (m.sd_1 / m.unit) ** 2 / n_x, (m.sd_2 / m.unit) ** 2 / n_y
+    # v_i = s_i^2 / n_i in units of 2**m.unit_exponent squared: below 4, and the larger at
+    # least 1 / (4 n_i), so v_i^2 neither overflows nor leaves both terms zero
+    v_x, v_y = m.sd_1**2 / n_x, m.sd_2**2 / n_y
     df = (v_x + v_y) ** 2 / (v_x**2 / (n_x - 1) + v_y**2 / (n_y - 1))
     standard_error = math.sqrt(v_x + v_y)
     return _result(
-        "welch_t", estimate=m.difference, standard_error=standard_error * m.unit, df=df,
-        alternative=alternative, level=level, scale=m.scale,
-        statistic=(m.difference / m.unit) / standard_error,
+        "welch_t", estimate=m.difference, standard_error=m.in_scale_units(standard_error),
+        df=df, alternative=alternative, level=level, scale=m.scale,
+        statistic=m.in_sd_units(m.difference) / standard_error,
         method="Student t distribution with Welch-Satterthwaite degrees of freedom, each "
                "group with its own variance",
         details=dict(n_1=n_x, n_2=n_y, mean_1=m.mean_1 * m.scale, mean_2=m.mean_2 * m.scale,
-                     variance_1=_squared(m.sd_1 * m.scale), variance_2=_squared(m.sd_2 * m.scale)),
+                     variance_1=_squared(m.absolute(m.sd_1)),
+                     variance_2=_squared(m.absolute(m.sd_2))),
         warnings=warnings,
     )
 

@@ -253,3 +253,15 @@ def test_distinct_values_near_1e_minus_300_are_not_called_constant():
     reference = stats.ttest_ind([1.0, 2.0, 3.0], [4.0, 6.0, 5.0], equal_var=False)
     assert result.statistic == pytest.approx(reference.statistic, rel=1e-12)
     assert result.df == pytest.approx(reference.df, rel=1e-12)
+
+
+def test_groups_hundreds_of_orders_apart_keep_both_spreads():
+    # hand computation (Welch 1947 formulas): group 1 constant at 1e200, group 2 = 1e-100 and
+    # 3e-100 (SD sqrt(2) 1e-100), so SE = sqrt(2e-200 / 2) = 1e-100, t = 1e200 / 1e-100 = 1e300
+    # and df = n2 - 1 = 1; on a common scale alone group 2's spread would underflow to zero
+    result = welch_t([1e200, 1e200, 1e200], [1e-100, 3e-100])
+    assert result.statistic == pytest.approx(1e300, rel=1e-12)
+    assert result.df == pytest.approx(1.0, rel=1e-12)
+    assert result.details["variance_2"] == pytest.approx(2e-200, rel=1e-12)
+    assert result.warnings == ("All values in group 1 are equal, so its spread is zero; the result "
+                               "rests on the spread of the other group alone.",)
