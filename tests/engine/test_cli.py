@@ -122,3 +122,19 @@ def test_huge_values_print_no_numpy_warning(tmp_path):
     assert done.returncode == 0, done.stderr
     assert done.stderr == ""
     assert "sd 7.07107e+307" in done.stdout
+
+
+def test_a_failed_suggested_procedure_leaves_the_rest_reported(monkeypatch):
+    from engine.procedures import t
+
+    def broken(*args, **kwargs):
+        raise ValueError("a solver gave up")
+
+    monkeypatch.setattr(t, "welch_t", broken)
+    monkeypatch.setattr(t, "pooled_t", broken)
+    code, out, err = run("analyze", str(DEMO / "bolt_strength.csv"), "--value", "strength_mpa",
+                         "--group", "supplier", "--resamples", "200", "--seed", "1")
+    assert code == 0, err
+    assert "[warning] The Welch t-test could not be computed: a solver gave up." in out
+    assert "[warning] The pooled t-test could not be computed: a solver gave up." in out
+    assert "Mann-Whitney" in out
