@@ -7,11 +7,11 @@ knows the list of procedures, so adding one means adding it here (see DEVELOPERS
 from __future__ import annotations
 
 from dataclasses import dataclass, field
-from typing import Any, Callable, Mapping
+from typing import Any, Callable, Mapping, TypeVar
 
 import numpy as np
 
-from .errors import Cancelled, OptionProblem
+from .errors import Cancelled, OptionProblem, TwofoldError
 from .results import (ALTERNATIVES, EffectSize, Finding, GroupSummary, Groups, Interval, ProcedureResult,
                       frozen_mapping)
 from .summary import summarize
@@ -23,6 +23,7 @@ __all__ = ["Options", "RobustnessRow", "Robustness", "Analysis", "analyze", "PRO
 # A practical limit of this program, not a statistical rule.
 RESAMPLING_MAX_VALUES = 200_000
 
+T = TypeVar("T")
 Progress = Callable[[float, str], None]
 CancelCheck = Callable[[], bool]
 
@@ -169,6 +170,27 @@ def _robustness(procedures: Mapping[str, ProcedureResult], level: float, *,
     return Robustness(tuple(rows), agree=len(verdicts) <= 1, level=level)
 
 
+def _part(name: str, run: Callable[[], T], notes: list[Finding]) -> T | None:
+    """``run()``, or None with a note that says why when it fails in a way nobody foresaw.
+
+    One part of the analysis (a procedure, the effect sizes) that raises an unexpected error
+    must not take the others down: the failure becomes a warning note naming the part, and the
+    rest is reported. Problems with the data or the options (``TwofoldError``), a stop asked
+    for by the user and a lack of memory still end the whole analysis with their own message.
+    Floating-point warnings are kept from the terminal: every part checks its own numbers.
+    """
+    try:
+        with np.errstate(all="ignore"):
+            return run()
+    except (TwofoldError, MemoryError):
+        raise
+    except Exception as problem:  # noqa: BLE001 - any other failure is reported, not raised
+        reason = str(problem).strip().rstrip(".") or type(problem).__name__
+        notes.append(Finding("part_not_computed", "warning",
+                             f"The {name} could not be computed: {reason}."))
+        return None
+
+
 def analyze(
     groups: Groups,
     options: Options = Options(),
@@ -196,21 +218,29 @@ def analyze(
         report(fraction, what)
 
     common = dict(alternative=options.alternative, confidence_level=options.confidence_level)
+    notes: list[Finding] = []
     # Each group is sorted once; the summaries, checks, rank test and effect sizes share the copies.
     ordered = dict(sorted_x=np.sort(x), sorted_y=np.sort(y))
-    summaries = (summarize(groups.labels[0], x, ordered=ordered["sorted_x"]),
-                 summarize(groups.labels[1], y, ordered=ordered["sorted_y"]))
-    step(0.02, "checking shape and spread")
-    checks = diagnostics.diagnose(groups, **ordered)
+    with np.errstate(all="ignore"):
+        summaries = (summarize(groups.labels[0], x, ordered=ordered["sorted_x"]),
+                     summarize(groups.labels[1], y, ordered=ordered["sorted_y"]))
+        step(0.02, "checking shape and spread")
+        checks = diagnostics.diagnose(groups, **ordered)
     procedures: dict[str, ProcedureResult] = {}
+
+    def run(key: str, compute: Callable[[], ProcedureResult]) -> None:
+        result = _part(PROCEDURE_NAMES[key], compute, notes)
+        if result is not None:
+            procedures[key] = result
+
     step(0.08, "t procedures")
-    procedures["welch_t"] = t.welch_t(x, y, **common)
-    procedures["pooled_t"] = t.pooled_t(x, y, **common)
+    run("welch_t", lambda: t.welch_t(x, y, **common))
+    run("pooled_t", lambda: t.pooled_t(x, y, **common))
     if options.known_sd is not None:
-        procedures["z"] = t.z_test(x, y, sd=options.known_sd, **common)
+        run("z", lambda: t.z_test(x, y, sd=options.known_sd, **common))
     step(0.12, "rank procedure")
-    procedures["mann_whitney"] = ranks.mann_whitney(x, y, method=options.rank_method, **common,
-                                                    cancelled=stop, **ordered)
+    run("mann_whitney", lambda: ranks.mann_whitney(x, y, method=options.rank_method, **common,
+                                                   cancelled=stop, **ordered))
 
     rng = np.random.default_rng(options.seed)
     resampled = [
@@ -219,7 +249,6 @@ def analyze(
         ("bootstrap_mean", resampling.bootstrap_interval, "mean"),
         ("bootstrap_median", resampling.bootstrap_interval, "median"),
     ]
-    notes: list[Finding] = []
     if x.size + y.size > RESAMPLING_MAX_VALUES:
         notes.append(Finding(
             "resampling_left_out", "note",
@@ -227,21 +256,27 @@ def analyze(
             "the large-sample procedures are accurate, and resampling would take minutes."))
         resampled = []
     start, span = 0.2, 0.7 / max(len(resampled), 1)
-    for i, (key, run, statistic) in enumerate(resampled):
+    for i, (key, compute, statistic) in enumerate(resampled):
         begin = start + i * span
         step(begin, PROCEDURE_NAMES[key])
-        procedures[key] = run(
+        run(key, lambda compute=compute, statistic=statistic, begin=begin, key=key: compute(
             x, y, statistic=statistic, n_resamples=options.n_resamples, rng=rng, **common,
             progress=lambda f, what="", b=begin, k=key: report(b + f * span, PROCEDURE_NAMES[k]),
             cancelled=stop,
-        )
+        ))
     step(0.92, "effect sizes")
-    sizes = effects.all_effect_sizes(x, y, **common, **ordered,
-                                     u1=procedures["mann_whitney"].details["U1"])
-    recommendation = advice.recommend(
-        checks, groups, equal_spread_known=options.equal_spread_known, ordinal=options.ordinal,
-        known_sd=options.known_sd,
-    )
+    rank_test = procedures.get("mann_whitney")
+    found = _part("effect sizes", lambda: effects.effect_sizes_with_reasons(
+        x, y, **common, **ordered, u1=None if rank_test is None else rank_test.details["U1"]),
+        notes)
+    sizes, missing = found if found is not None else ({}, {})
+    for reason in missing.values():
+        notes.append(Finding("effect_size_left_out", "note", reason))
+    with np.errstate(all="ignore"):
+        recommendation = advice.recommend(
+            checks, groups, equal_spread_known=options.equal_spread_known, ordinal=options.ordinal,
+            known_sd=options.known_sd,
+        )
     step(1.0, "done")
     return Analysis(
         groups=groups,

@@ -102,7 +102,12 @@ def _analyze(args, out: TextIO) -> None:
         json.dump(analysis_document(analysis), out, indent=2, allow_nan=False)
         out.write("\n")
         return
-    out.write(_readable(analysis, render(analysis).plain))
+    # the suggested procedure is reported; should it have failed (a note then says why), the
+    # first one that did not is reported instead, so that the rest still reaches the user
+    key = analysis.recommendation.key
+    if key not in analysis.procedures:
+        key = next(iter(analysis.procedures))
+    out.write(_readable(analysis, render(analysis, procedure=key).plain))
 
 
 def _readable(analysis, report_text: str) -> str:
@@ -114,6 +119,8 @@ def _readable(analysis, report_text: str) -> str:
     if screening is not None:
         for finding in screening.findings:
             lines.append(f"  [{finding.severity}] {finding.text}")
+    for note in analysis.notes:
+        lines.append(f"  [{note.severity}] {note.text}")
     lines.append("")
     lines.append(report_text.rstrip())
     lines.append("")

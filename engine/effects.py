@@ -18,9 +18,9 @@ from scipy import optimize, special, stats
 from .errors import DataProblem, OptionProblem
 from .procedures._checks import check_alternative, check_confidence_level, check_samples
 from .procedures.ranks import pair_counts
-from .procedures.t import mean_difference
+from .procedures.t import Moments, moments
 from .results import EffectSize, Interval
-from .summary import centred_variance, sorted_values
+from .summary import sorted_values
 
 __all__ = [
     "cohen_d",
@@ -29,6 +29,7 @@ __all__ = [
     "rank_biserial",
     "common_language",
     "all_effect_sizes",
+    "effect_sizes_with_reasons",
     "hedges_correction",
     "mann_whitney_u1",
 ]
@@ -46,12 +47,9 @@ class _Pair:
             self.__dict__["u1"] = float(u1)  # given by the caller: the cached value
 
     @cached_property
-    def variances(self) -> tuple[float, float]:
-        return centred_variance(self.x), centred_variance(self.y)
-
-    @cached_property
-    def difference(self) -> float:
-        return mean_difference(self.x, self.y)[2]
+    def moments(self) -> Moments:
+        """Means, difference and SDs, scaled so that no square overflows or underflows."""
+        return moments(self.x, self.y)
 
     @cached_property
     def u1(self) -> float:
@@ -89,56 +87,206 @@ def hedges_correction(df: float) -> float:
     return math.exp(special.gammaln(df / 2) - special.gammaln((df - 1) / 2)) / math.sqrt(df / 2)
 
 
-def _noncentrality_limits(t_observed: float, df: float, tail: float) -> tuple[float, float]:
+class _NoInterval(ArithmeticError):
+    """The noncentral t limits could not be found; the message says why, in plain words."""
+
+
+# The integral over Z in :func:`_nct_cdf_integral` stops at this many standard deviations: the
+# normal mass beyond is below 1e-32, far under any tail a confidence level asks for.
+_Z_REACH = 12.0
+# Composite Gauss-Legendre rule: 16 nodes on each of 32 panels (and a panel edge at the kink).
+_GAUSS_NODES, _GAUSS_WEIGHTS = np.polynomial.legendre.leggauss(16)
+_PANELS = 32
+# Above this |t| scipy's series for the noncentral t is slow and gives NaN far out (checked with
+# scipy 1.17 at 1e6): the integral, within 1e-8 of it at 1e4, is used at once.
+_SERIES_REACH = 1e4
+
+
+def _integrate(integrand: Callable[[np.ndarray], np.ndarray], low: float, high: float,
+               kink: float | None) -> float:
+    """Integral of a smooth ``integrand`` (vectorised) over [low, high], split at ``kink``."""
+    edges = np.linspace(low, high, _PANELS + 1)
+    if kink is not None and low < kink < high:
+        edges = np.sort(np.append(edges, kink))
+    half = np.diff(edges)[:, None] / 2
+    points = (edges[:-1, None] + half) + half * _GAUSS_NODES[None, :]
+    return float(np.sum(integrand(points) * (half * _GAUSS_WEIGHTS[None, :])))
+
+
+def _nct_cdf_integral(t: float, df: float, nc: float) -> float:
+    """P(T <= t) for T noncentral t (df, nc), by numerical integration; finite for any finite input.
+
+    Notes
+    -----
+    T = (Z + nc) / S with Z standard normal and S = sqrt(V / df), V chi-squared with df degrees
+    of freedom, so P(T <= t) = P(t S - Z >= nc). When |t| is large against the spread of S the
+    integrand is smooth in z: P = integral of phi(z) P(t S >= nc + z) dz, with the chi-squared
+    tail in closed form; otherwise it is smooth in s: P = integral of Phi(t s - nc) f_S(s) ds,
+    summed on the log scale (``log_ndtr`` plus the log density) so that no factor underflows
+    before the product. As |t| grows the first form tends to the chi-squared tail at nc / t, the
+    asymptotic limit, with no separate approximation. A composite Gauss-Legendre rule with an
+    edge at the kink of the integrand gives about 1e-12 absolute accuracy (checked against
+    scipy's series where that answers).
+    """
+    with np.errstate(all="ignore"):
+        if abs(t) * math.sqrt(0.5 / df) > 1:
+            def integrand(z: np.ndarray) -> np.ndarray:
+                ratio = (nc + z) / t
+                squared = df * ratio * ratio
+                tail = special.chdtrc(df, squared) if t > 0 else special.chdtr(df, squared)
+                tail = np.where(ratio > 0, tail, 1.0 if t > 0 else 0.0)
+                return tail * np.exp(-0.5 * z * z - 0.5 * math.log(2 * math.pi))
+
+            total = _integrate(integrand, -_Z_REACH, _Z_REACH, -nc)
+        else:
+            log_norm = (math.log(2.0) + 0.5 * df * math.log(0.5 * df)
+                        - float(special.gammaln(0.5 * df)))
+
+            def integrand(s: np.ndarray) -> np.ndarray:
+                return np.exp(special.log_ndtr(t * s - nc) + log_norm + (df - 1) * np.log(s)
+                              - 0.5 * df * s * s)
+
+            # the 1e-17 and 1 - 1e-17 quantiles of S: the mass left outside is below 2e-17
+            low = math.sqrt(2 * float(special.gammaincinv(0.5 * df, 1e-17)) / df)
+            high = math.sqrt(2 * float(special.gammainccinv(0.5 * df, 1e-17)) / df)
+            total = _integrate(integrand, low, high, nc / t if t != 0 else None)
+    return min(1.0, max(0.0, total))
+
+
+def _nct_cdf(t: float, df: float, nc: float) -> tuple[float, bool]:
+    """P(T <= t) for T noncentral t (df, nc), and whether the integral stood in for scipy's.
+
+    scipy's series answers in the usual range; far in the tails or for very large t it returns
+    NaN (no number), and the integral then gives the value.
+    """
+    if abs(t) < _SERIES_REACH:
+        with np.errstate(all="ignore"):
+            value = float(special.nctdtr(df, nc, t))
+        if math.isfinite(value) and 0.0 <= value <= 1.0:
+            return value, False
+    return _nct_cdf_integral(t, df, nc), True
+
+
+def _noncentrality_limits(t_observed: float, df: float,
+                          tail: float) -> tuple[float, float, bool]:
     """Noncentrality parameters whose noncentral t puts ``t_observed`` at 1 - tail and tail.
 
-    The noncentral t cdf at a fixed point falls as the noncentrality grows, so each limit is
-    the single root of cdf(t_observed; df, nc) - p, found by brentq in a widening bracket.
+    Returns the lower limit, the upper limit and whether any value came from the integral of
+    :func:`_nct_cdf_integral` instead of scipy's series.
+
+    Notes
+    -----
+    The noncentral t cdf at a fixed point falls as the noncentrality grows, so each limit is the
+    single root of cdf(t_observed; df, nc) - p. Since nc = t S - Z at the root, nc / t lies near
+    a quantile of S when |t| is large: the search then runs over r = nc / t (bounded whatever the
+    size of t, so nothing overflows) and over nc itself when |t| < 1. The bracket starts around
+    nc = t and doubles its reach until the cdf crosses p on both sides; brentq then finds the root.
+
+    Raises
+    ------
+    _NoInterval
+        If t is not finite or no bracket is found (neither happens for finite data).
     """
-    spread = math.sqrt(1 + t_observed**2 / (2 * df))
+    if not (math.isfinite(t_observed) and math.isfinite(df) and df > 0):
+        raise _NoInterval("the t statistic behind it is not a finite number")
+    unit = t_observed if abs(t_observed) >= 1 else 1.0
+    centre = 1.0 if abs(t_observed) >= 1 else t_observed
+    reach = 4 * (math.sqrt(0.5 / df) + 1 / abs(unit)) if abs(t_observed) >= 1 else 4.0
+    integrated = False
+    known: dict[float, float] = {}
+
+    def falling(u: float, p: float) -> float:
+        nonlocal integrated
+        if u not in known:
+            value, by_integral = _nct_cdf(t_observed, df, u * unit)
+            integrated = integrated or by_integral
+            known[u] = value
+        gap = known[u] - p
+        return gap if unit > 0 else -gap  # falls as u grows, whichever the sign of t
 
     def root(p: float) -> float:
-        def gap(nc: float) -> float:
-            return float(stats.nct.cdf(t_observed, df, nc)) - p
-
-        low, high = t_observed - 4 * spread, t_observed + 4 * spread
-        step = 4 * spread
-        while gap(low) < 0:
+        low, high = centre - reach, centre + reach
+        step = reach
+        for _ in range(80):
+            if falling(low, p) >= 0:
+                break
             step *= 2
             low -= step
-        while gap(high) > 0:
+        else:
+            raise _NoInterval("no lower end was found for its search")
+        step = reach
+        for _ in range(80):
+            if falling(high, p) <= 0:
+                break
             step *= 2
             high += step
-        return float(optimize.brentq(gap, low, high, xtol=1e-14 * max(1.0, abs(t_observed)),
-                                     rtol=1e-13, maxiter=500))
+        else:
+            raise _NoInterval("no upper end was found for its search")
+        if falling(low, p) == 0:
+            return low * unit
+        if falling(high, p) == 0:
+            return high * unit
+        return unit * float(optimize.brentq(falling, low, high, args=(p,), xtol=1e-14,
+                                            rtol=4 * np.finfo(float).eps, maxiter=500))
 
-    return root(1 - tail), root(tail)
+    first, second = root(1 - tail), root(tail)
+    if not (math.isfinite(first) and math.isfinite(second)):
+        raise _NoInterval("its ends lie beyond the largest number a computer float can hold")
+    return first, second, integrated
 
 
 def _pooled_sd(pair: _Pair) -> float:
-    var_x, var_y = pair.variances
-    pooled = ((pair.n1 - 1) * var_x + (pair.n2 - 1) * var_y) / (pair.n1 + pair.n2 - 2)
-    if pooled == 0:
+    """The pooled SD in units of 2**``pair.moments.unit_exponent``."""
+    m = pair.moments
+    if m.constant_1 and m.constant_2:
         raise DataProblem("Every value within each group is the same, so the pooled standard "
                           "deviation is zero and a standardised difference is not defined.")
+    var_x, var_y = m.sd_1**2, m.sd_2**2
+    pooled = ((pair.n1 - 1) * var_x + (pair.n2 - 1) * var_y) / (pair.n1 + pair.n2 - 2)
+    if pooled == 0:
+        raise DataProblem("The spread within the groups is too small beside the size of the "
+                          "values to be measured in floating point, so a standardised "
+                          "difference cannot be computed.")
     return math.sqrt(pooled)
+
+
+_BY_INTEGRAL = ("; this far out the noncentral t distribution was found by numerical "
+                "integration, as the usual series gives no number there")
+
+
+def _limits(name: str, t_observed: float, df: float, level: float,
+            alternative: str) -> tuple[float, float, bool]:
+    """The noncentrality limits, or a DataProblem that says why the interval of ``name`` is missing."""
+    try:
+        return _noncentrality_limits(t_observed, df, _tail(level, alternative))
+    except (_NoInterval, ArithmeticError, ValueError) as problem:
+        raise DataProblem(f"The interval of {name} could not be computed: {problem}.") from None
 
 
 def _standardised(pair: _Pair, level: float, alternative: str, *, correct: bool) -> EffectSize:
     n1, n2 = pair.n1, pair.n2
     df = n1 + n2 - 2
     sd = _pooled_sd(pair)
-    d = pair.difference / sd
+    m = pair.moments
+    d = m.in_sd_units(m.difference) / sd
     scale = math.sqrt(1 / n1 + 1 / n2)
-    nc_low, nc_high = _noncentrality_limits(d / scale, df, _tail(level, alternative))
-    factor = hedges_correction(df) if correct else 1.0
-    interval = Interval.for_alternative(factor * nc_low * scale, factor * nc_high * scale,
-                                        level, alternative)
     key, name = ("hedges_g", "Hedges' g") if correct else ("cohen_d", "Cohen's d")
+    nc_low, nc_high, integrated = _limits(name, d / scale, df, level, alternative)
+    factor = hedges_correction(df) if correct else 1.0
+    # The interval is the same for d and g: the noncentral t interval of the population
+    # standardised difference delta, exact for normal groups with equal SDs. Multiplying it by J
+    # would make it an interval for J delta, which covers delta less often than stated.
+    interval = Interval.for_alternative(nc_low * scale, nc_high * scale, level, alternative)
     method = ("difference in means over the pooled standard deviation"
               + (", times the exact small-sample factor J" if correct else "")
-              + "; interval from the noncentral t distribution")
-    details = dict(pooled_sd=sd, df=df, t=d / scale, noncentrality_interval=(nc_low, nc_high))
+              + "; interval for the population standardised difference from the noncentral t "
+                "distribution (exact for bell-shaped groups with equal spreads"
+              + (", and not multiplied by J)" if correct else ")")
+              + (_BY_INTEGRAL if integrated else ""))
+    details = dict(pooled_sd=m.absolute(sd), df=df, t=d / scale,
+                   noncentrality_interval=(nc_low, nc_high),
+                   interval_estimates="population standardised difference (delta)",
+                   interval_by_integration=integrated)
     if correct:
         details.update(correction=factor, cohen_d=d)
     return EffectSize(key=key, name=name, value=factor * d, interval=interval, method=method,
@@ -175,7 +323,10 @@ def cohen_d(x: Any, y: Any, *, confidence_level: float = 0.95,
     distribution with n1 + n2 - 2 degrees of freedom and noncentrality
     delta / sqrt(1/n1 + 1/n2). The interval holds the delta whose noncentral t puts the observed
     t at the 1 - alpha/2 and alpha/2 points of its distribution (alpha for one-sided), found by
-    root finding, then scaled back by sqrt(1/n1 + 1/n2).
+    root finding, then scaled back by sqrt(1/n1 + 1/n2). Where scipy's series for the
+    noncentral t gives no number (far in the tails, or |t| above 1e4, as for groups that do not
+    overlap) the distribution is integrated numerically instead, and
+    ``details["interval_by_integration"]`` is True.
 
     References
     ----------
@@ -208,7 +359,10 @@ def hedges_g(x: Any, y: Any, *, confidence_level: float = 0.95,
     -----
     g = J(df) d with df = n1 + n2 - 2 and J(df) = Gamma(df/2) / (sqrt(df/2) Gamma((df-1)/2)),
     which makes g unbiased for delta under normality (J is about 1 - 3 / (4 df - 1)). The
-    interval is the noncentral t interval of d (see :func:`cohen_d`) multiplied by J.
+    interval is the noncentral t interval for the population delta (see :func:`cohen_d`),
+    which is exact for normal groups with equal SDs; it is not multiplied by J, since J times
+    it would be an interval for J delta and cover delta less often than stated (93.5% instead
+    of 95% at n = 3 and 3 with delta = 1). ``details["interval_estimates"]`` says so.
 
     References
     ----------
@@ -216,6 +370,8 @@ def hedges_g(x: Any, y: Any, *, confidence_level: float = 0.95,
     estimators. Journal of Educational Statistics 6(2), 107-128.
     Hedges, L. V. and Olkin, I. (1985). Statistical Methods for Meta-Analysis. Academic Press,
     chapter 5.
+    Steiger, J. H. and Fouladi, R. T. (1997). Noncentrality interval estimation and the
+    evaluation of statistical models. In What If There Were No Significance Tests?, Erlbaum.
     """
     return _hedges(*_prepare(x, y, confidence_level, alternative))
 
@@ -271,21 +427,28 @@ def _hedges(pair: _Pair, level: float, alternative: str) -> EffectSize:
 
 
 def _glass(pair: _Pair, level: float, alternative: str) -> EffectSize:
-    var_x, var_y = pair.variances
-    if var_y == 0:
+    m = pair.moments
+    if m.constant_2:
         raise DataProblem("Every value in group 2 is the same, so its standard deviation is zero "
                           "and Glass's delta is not defined.")
-    sd = math.sqrt(var_y)
-    delta = pair.difference / sd
-    scale = math.sqrt(var_x / (var_y * pair.n1) + 1 / pair.n2)
+    if m.sd_2 == 0:
+        raise DataProblem("The spread of group 2 is too small beside the size of the values to be "
+                          "measured in floating point, so Glass's delta cannot be computed.")
+    delta = m.in_sd_units(m.difference) / m.sd_2
+    scale = math.hypot(m.sd_1 / m.sd_2 / math.sqrt(pair.n1), 1 / math.sqrt(pair.n2))
+    if not math.isfinite(scale):
+        raise DataProblem("The spread of group 2 is too small beside that of group 1 to be "
+                          "measured in floating point, so Glass's delta cannot be computed.")
     df = pair.n2 - 1
-    nc_low, nc_high = _noncentrality_limits(delta / scale, df, _tail(level, alternative))
+    nc_low, nc_high, integrated = _limits("Glass's delta", delta / scale, df, level, alternative)
     return EffectSize(
         key="glass_delta", name="Glass's delta", value=delta,
         interval=Interval.for_alternative(nc_low * scale, nc_high * scale, level, alternative),
         method=("difference in means over group 2's standard deviation; interval from a "
-                f"noncentral t approximation with {df} degrees of freedom"),
-        details=dict(reference_sd=sd, df=df, scale=scale),
+                f"noncentral t approximation with {df} degrees of freedom"
+                + (_BY_INTEGRAL if integrated else "")),
+        details=dict(reference_sd=m.absolute(m.sd_2), df=df, scale=scale,
+                     interval_by_integration=integrated),
     )
 
 
@@ -460,6 +623,7 @@ def all_effect_sizes(x: Any, y: Any, *, confidence_level: float = 0.95,
 
     An effect size the data cannot support (a standardised difference when the reference SD is
     zero) is left out rather than given as NaN; the rank-based ones always exist.
+    :func:`effect_sizes_with_reasons` also says why each one left out is missing.
 
     Notes
     -----
@@ -469,16 +633,43 @@ def all_effect_sizes(x: Any, y: Any, *, confidence_level: float = 0.95,
     ----------
     See each function.
     """
+    return effect_sizes_with_reasons(x, y, confidence_level=confidence_level,
+                                     alternative=alternative, sorted_x=sorted_x,
+                                     sorted_y=sorted_y, u1=u1)[0]
+
+
+def effect_sizes_with_reasons(x: Any, y: Any, *, confidence_level: float = 0.95,
+                              alternative: str = "two-sided", sorted_x: np.ndarray | None = None,
+                              sorted_y: np.ndarray | None = None, u1: float | None = None,
+                              ) -> tuple[dict[str, EffectSize], dict[str, str]]:
+    """:func:`all_effect_sizes` and, for each one left out, a sentence that says why.
+
+    Returns
+    -------
+    (dict, dict)
+        The effect sizes by key, and the keys left out with the reason in plain words. A size
+        that fails in arithmetic (an overflow, a root not found) is left out with its reason
+        like one the data cannot support; the others are still given.
+    """
     pair, level, alternative = _prepare(x, y, confidence_level, alternative, sorted_x, sorted_y,
                                         u1)
     sizes: dict[str, EffectSize] = {}
+    reasons: dict[str, str] = {}
     for key, build in _BUILDERS:
         try:
-            sizes[key] = build(pair, level, alternative)
-        except DataProblem:
-            continue
-    return sizes
+            with np.errstate(all="ignore"):
+                sizes[key] = build(pair, level, alternative)
+        except DataProblem as problem:
+            reasons[key] = problem.message
+        except (ArithmeticError, ValueError) as problem:
+            reasons[key] = (f"The {_NAMES[key]} could not be computed: "
+                            f"{str(problem).strip().rstrip('.') or type(problem).__name__}.")
+    return sizes, reasons
 
+
+_NAMES = {"cohen_d": "Cohen's d", "hedges_g": "Hedges' g", "glass_delta": "Glass's delta",
+          "rank_biserial": "rank-biserial correlation",
+          "common_language": "common-language effect size"}
 
 _BUILDERS: tuple[tuple[str, Callable[[_Pair, float, str], EffectSize]], ...] = (
     ("cohen_d", _cohen), ("hedges_g", _hedges), ("glass_delta", _glass),

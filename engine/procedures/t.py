@@ -8,6 +8,7 @@ distribution (z) or a Student t distribution (pooled, Welch).
 from __future__ import annotations
 
 import math
+from dataclasses import dataclass
 from typing import Any
 
 import numpy as np
@@ -16,10 +17,10 @@ from scipy import stats
 from ..analysis import PROCEDURE_NAMES
 from ..errors import DataProblem, OptionProblem
 from ..results import Interval, ProcedureResult
-from ..summary import centred_variance
+from ..summary import centred_sd, common_scale
 from ._checks import check_alternative, check_confidence_level, check_samples
 
-__all__ = ["z_test", "pooled_t", "welch_t", "mean_difference"]
+__all__ = ["z_test", "pooled_t", "welch_t", "mean_difference", "Moments", "moments"]
 
 
 def mean_difference(x: np.ndarray, y: np.ndarray) -> tuple[float, float, float]:
@@ -30,8 +31,17 @@ def mean_difference(x: np.ndarray, y: np.ndarray) -> tuple[float, float, float]:
     Both samples are first shifted by a common reference c (the mean of all values), so the
     difference is mean(x - c) - mean(y - c). When the values share many leading digits (as in the
     NIST StRD AtmWtAg set) the shifted values are small and exact, and the difference keeps
-    digits that mean(x) - mean(y) would lose to rounding.
+    digits that mean(x) - mean(y) would lose to rounding. Values near the ends of the float range
+    are divided by a power of two first (:func:`engine.summary.common_scale`), so that their sum
+    cannot overflow.
     """
+    scale = common_scale(x, y)
+    if scale != 1.0:
+        return tuple(part * scale for part in _mean_difference(x / scale, y / scale))
+    return _mean_difference(x, y)
+
+
+def _mean_difference(x: np.ndarray, y: np.ndarray) -> tuple[float, float, float]:
     centre = float(np.concatenate((x, y)).mean())
     dx, dy = x - centre, y - centre
     shift_x, shift_y = float(dx.mean()), float(dy.mean())
@@ -54,14 +64,18 @@ def _check_known_sd(sd: Any) -> tuple[float, float]:
     return first, second
 
 
-def _check_spread(var_x: float, var_y: float) -> tuple[str, ...]:
-    """Refuse two constant groups; warn when one group is constant."""
-    if var_x == 0 and var_y == 0:
+def _check_spread(m: "Moments") -> tuple[str, ...]:
+    """Refuse two constant groups; warn when one group is constant.
+
+    "Constant" means every value is the same number, checked on the values themselves: a spread
+    too small to square in floating point (distinct values near 1e-300) is still a spread.
+    """
+    if m.constant_1 and m.constant_2:
         raise DataProblem(
             "Every value within group 1 is the same and so is every value within group 2; "
             "with no spread at all the t-tests cannot be computed.")
-    for which, var in (("group 1", var_x), ("group 2", var_y)):
-        if var == 0:
+    for which, constant in (("group 1", m.constant_1), ("group 2", m.constant_2)):
+        if constant:
             return (f"All values in {which} are equal, so its spread is zero; the result rests "
                     f"on the spread of the other group alone.",)
     return ()
@@ -86,20 +100,27 @@ def _result(
     method: str,
     details: dict[str, Any],
     warnings: tuple[str, ...] = (),
+    scale: float = 1.0,
+    statistic: float | None = None,
 ) -> ProcedureResult:
+    """The result from the estimate and its standard error, both in units of ``scale``.
+
+    ``statistic``, if given, is estimate / standard error found without their own underflow.
+    """
     distribution = stats.norm() if df is None else stats.t(df)
-    statistic = estimate / standard_error
+    if statistic is None:
+        statistic = estimate / standard_error
     p_value = _tail_p(statistic, alternative, distribution)
     tail = (1 - level) / 2 if alternative == "two-sided" else 1 - level
     critical = float(distribution.isf(tail))
     half_width = critical * standard_error
-    interval = Interval.for_alternative(estimate - half_width, estimate + half_width, level,
-                                        alternative)
-    details = dict(details, standard_error=standard_error, critical_value=critical)
+    interval = Interval.for_alternative((estimate - half_width) * scale,
+                                        (estimate + half_width) * scale, level, alternative)
+    details = dict(details, standard_error=standard_error * scale, critical_value=critical)
     return ProcedureResult(
         key=key,
         name=PROCEDURE_NAMES[key],
-        estimate=estimate,
+        estimate=estimate * scale,
         estimate_name="difference in means",
         statistic=float(statistic),
         statistic_name="z" if df is None else "t",
@@ -111,6 +132,81 @@ def _result(
         details=details,
         warnings=warnings,
     )
+
+
+def _shifted(value: float, exponent: int) -> float:
+    """value * 2**exponent, infinite or zero (never an error) beyond the float range."""
+    try:
+        return math.ldexp(value, exponent)
+    except OverflowError:
+        return math.copysign(math.inf, value)
+
+
+def _exponent(power_of_two: float) -> int:
+    return math.frexp(power_of_two)[1] - 1
+
+
+def _sd_parts(values: np.ndarray) -> tuple[float, int]:
+    """(a, k) with SD = a * 2**k, a at most about 3: the SD whatever the size of the values."""
+    own = common_scale(values)
+    return centred_sd(values / own if own != 1.0 else values), _exponent(own)
+
+
+@dataclass(frozen=True)
+class Moments:
+    """Means and difference of two groups in units of ``scale``; their SDs in units of 2**``unit_exponent``.
+
+    ``scale`` is a power of two near the largest |value| (1.0 for values of ordinary size) and
+    2**``unit_exponent`` one near the larger SD, so that ``sd_1`` and ``sd_2`` lie in [0, 2)
+    and may be squared, and squared again, without overflow or underflow. ``constant_1`` and
+    ``constant_2`` say whether every value of a group is the same number.
+    """
+
+    scale: float
+    mean_1: float
+    mean_2: float
+    difference: float
+    sd_1: float
+    sd_2: float
+    unit_exponent: int
+    constant_1: bool
+    constant_2: bool
+
+    def in_sd_units(self, value: float) -> float:
+        """A value in units of ``scale`` (the difference, say) in units of 2**unit_exponent."""
+        return _shifted(value, _exponent(self.scale) - self.unit_exponent)
+
+    def in_scale_units(self, value: float) -> float:
+        """A value in units of 2**unit_exponent (a standard error) in units of ``scale``."""
+        return _shifted(value, self.unit_exponent - _exponent(self.scale))
+
+    def absolute(self, value: float) -> float:
+        """A value in units of 2**unit_exponent (an SD) in the units of the data."""
+        return _shifted(value, self.unit_exponent)
+
+
+def moments(x: np.ndarray, y: np.ndarray) -> Moments:
+    """The means, difference and SDs of two groups, scaled so that nothing overflows.
+
+    Notes
+    -----
+    The values are divided by their common power of two (:func:`engine.summary.common_scale`),
+    which rounds nothing, so data of ordinary size give exactly the numbers of the plain
+    formulas; the means and their difference are found on the scaled values. Each SD is found
+    on its own group's scale and expressed in units of a power of two near the larger SD, so
+    that neither the variances nor the squared variances of the Welch degrees of freedom
+    overflow (spreads near 1e80 and beyond) or underflow (distinct values near 1e-300), even when
+    the two groups differ in size by hundreds of orders of magnitude.
+    """
+    scale = common_scale(x, y)
+    xs, ys = (x / scale, y / scale) if scale != 1.0 else (x, y)
+    mean_1, mean_2, difference = _mean_difference(xs, ys)
+    (a_1, k_1), (a_2, k_2) = _sd_parts(x), _sd_parts(y)
+    exponents = [math.frexp(a)[1] + k for a, k in ((a_1, k_1), (a_2, k_2)) if a > 0]
+    unit_exponent = max(exponents) if exponents else 0
+    return Moments(scale, mean_1, mean_2, difference,
+                   _shifted(a_1, k_1 - unit_exponent), _shifted(a_2, k_2 - unit_exponent),
+                   unit_exponent, bool(x.min() == x.max()), bool(y.min() == y.max()))
 
 
 def _prepare(x: Any, y: Any, alternative: Any, confidence_level: Any):
@@ -157,10 +253,12 @@ def z_test(
     x, y, alternative, level = _prepare(x, y, alternative, confidence_level)
     sd_x, sd_y = _check_known_sd(sd)
     mean_x, mean_y, estimate = mean_difference(x, y)
-    standard_error = math.sqrt(sd_x**2 / x.size + sd_y**2 / y.size)
+    # in units of the larger SD, so that the squares cannot overflow or underflow
+    unit = max(sd_x, sd_y)
+    standard_error = math.sqrt((sd_x / unit) ** 2 / x.size + (sd_y / unit) ** 2 / y.size)
     return _result(
-        "z", estimate=estimate, standard_error=standard_error, df=None, alternative=alternative,
-        level=level,
+        "z", estimate=estimate / unit, standard_error=standard_error, df=None,
+        alternative=alternative, level=level, scale=unit,
         method="normal distribution, with the standard deviations supplied as known",
         details=dict(n_1=x.size, n_2=y.size, mean_1=mean_x, mean_2=mean_y, known_sd_1=sd_x,
                      known_sd_2=sd_y),
@@ -207,20 +305,24 @@ def pooled_t(
     Snedecor, G. W. and Cochran, W. G. (1989). Statistical Methods, 8th ed., section 6.7.
     """
     x, y, alternative, level = _prepare(x, y, alternative, confidence_level)
-    var_x, var_y = centred_variance(x), centred_variance(y)
-    warnings = _check_spread(var_x, var_y)
+    m = moments(x, y)
+    warnings = _check_spread(m)
     n_x, n_y = x.size, y.size
     df = n_x + n_y - 2
+    # variances in units of 2**m.unit_exponent squared
+    var_x, var_y = m.sd_1**2, m.sd_2**2
     pooled = ((n_x - 1) * var_x + (n_y - 1) * var_y) / df
-    mean_x, mean_y, estimate = mean_difference(x, y)
     standard_error = math.sqrt(pooled * (1 / n_x + 1 / n_y))
     return _result(
-        "pooled_t", estimate=estimate, standard_error=standard_error, df=df,
-        alternative=alternative, level=level,
+        "pooled_t", estimate=m.difference, standard_error=m.in_scale_units(standard_error),
+        df=df, alternative=alternative, level=level, scale=m.scale,
+        statistic=m.in_sd_units(m.difference) / standard_error,
         method="Student t distribution with n1 + n2 - 2 degrees of freedom, one variance "
                "pooled from both groups",
-        details=dict(n_1=n_x, n_2=n_y, mean_1=mean_x, mean_2=mean_y, variance_1=var_x,
-                     variance_2=var_y, pooled_variance=pooled),
+        details=dict(n_1=n_x, n_2=n_y, mean_1=m.mean_1 * m.scale, mean_2=m.mean_2 * m.scale,
+                     variance_1=_squared(m.absolute(m.sd_1)),
+                     variance_2=_squared(m.absolute(m.sd_2)),
+                     pooled_variance=_squared(m.absolute(math.sqrt(pooled)))),
         warnings=warnings,
     )
 
@@ -266,18 +368,27 @@ def welch_t(
     components. Biometrics Bulletin 2(6), 110-114.
     """
     x, y, alternative, level = _prepare(x, y, alternative, confidence_level)
-    var_x, var_y = centred_variance(x), centred_variance(y)
-    warnings = _check_spread(var_x, var_y)
+    m = moments(x, y)
+    warnings = _check_spread(m)
     n_x, n_y = x.size, y.size
-    v_x, v_y = var_x / n_x, var_y / n_y
+    # v_i = s_i^2 / n_i in units of 2**m.unit_exponent squared: below 4, and the larger at
+    # least 1 / (4 n_i), so v_i^2 neither overflows nor leaves both terms zero
+    v_x, v_y = m.sd_1**2 / n_x, m.sd_2**2 / n_y
     df = (v_x + v_y) ** 2 / (v_x**2 / (n_x - 1) + v_y**2 / (n_y - 1))
-    mean_x, mean_y, estimate = mean_difference(x, y)
+    standard_error = math.sqrt(v_x + v_y)
     return _result(
-        "welch_t", estimate=estimate, standard_error=math.sqrt(v_x + v_y), df=df,
-        alternative=alternative, level=level,
+        "welch_t", estimate=m.difference, standard_error=m.in_scale_units(standard_error),
+        df=df, alternative=alternative, level=level, scale=m.scale,
+        statistic=m.in_sd_units(m.difference) / standard_error,
         method="Student t distribution with Welch-Satterthwaite degrees of freedom, each "
                "group with its own variance",
-        details=dict(n_1=n_x, n_2=n_y, mean_1=mean_x, mean_2=mean_y, variance_1=var_x,
-                     variance_2=var_y),
+        details=dict(n_1=n_x, n_2=n_y, mean_1=m.mean_1 * m.scale, mean_2=m.mean_2 * m.scale,
+                     variance_1=_squared(m.absolute(m.sd_1)),
+                     variance_2=_squared(m.absolute(m.sd_2))),
         warnings=warnings,
     )
+
+
+def _squared(value: float) -> float:
+    """value * value, infinite (not an error) where the square exceeds the largest float."""
+    return value * value

@@ -107,3 +107,51 @@ def test_permutation_tests_do_not_vote_when_the_spreads_differ():
     assert rows["welch_t"].votes and rows["mann_whitney"].votes
     verdicts = {row.finds_difference for row in analysis.robustness.voting}
     assert analysis.robustness.agree == (len(verdicts) <= 1)
+
+
+def test_separated_triplicates_give_the_whole_analysis():
+    # invented triplicates far apart: every procedure and every effect size is reported
+    groups = Groups(("low", "high"), [10.1, 10.3, 9.9], [20.2, 19.8, 20.1])
+    analysis = analyze(groups, Options(n_resamples=200, seed=1))
+    assert {"welch_t", "pooled_t", "mann_whitney"} <= set(analysis.procedures)
+    assert set(analysis.effect_sizes) == {"cohen_d", "hedges_g", "glass_delta", "rank_biserial",
+                                          "common_language"}
+    assert not [note for note in analysis.notes if note.key == "part_not_computed"]
+
+
+def test_one_failing_part_is_reported_while_the_rest_stands(groups, monkeypatch):
+    from engine.procedures import t
+
+    def broken(*args, **kwargs):
+        raise ValueError("a solver gave up")
+
+    monkeypatch.setattr(t, "pooled_t", broken)
+    analysis = analyze(groups, Options(n_resamples=200, seed=1))
+    assert "pooled_t" not in analysis.procedures
+    assert "welch_t" in analysis.procedures and "mann_whitney" in analysis.procedures
+    assert analysis.effect_sizes
+    [note] = [note for note in analysis.notes if note.key == "part_not_computed"]
+    assert note.severity == "warning"
+    assert note.text == "The pooled t-test could not be computed: a solver gave up."
+
+
+def test_failing_effect_sizes_leave_the_procedures_standing(groups, monkeypatch):
+    from engine import effects
+
+    def broken(*args, **kwargs):
+        raise OverflowError("math range error")
+
+    monkeypatch.setattr(effects, "effect_sizes_with_reasons", broken)
+    analysis = analyze(groups, Options(n_resamples=200, seed=1))
+    assert not analysis.effect_sizes
+    assert "welch_t" in analysis.procedures
+    assert any(note.text == "The effect sizes could not be computed: math range error."
+               for note in analysis.notes)
+
+
+def test_an_effect_size_left_out_says_why():
+    groups = Groups(("a", "b"), [1.0, 2.0, 3.0, 4.0], [5.0, 5.0, 5.0])
+    analysis = analyze(groups, Options(n_resamples=200, seed=1))
+    assert "glass_delta" not in analysis.effect_sizes
+    assert any(note.key == "effect_size_left_out" and "Glass's delta" in note.text
+               for note in analysis.notes)

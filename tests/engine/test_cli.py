@@ -105,3 +105,36 @@ def test_text_only_value_column_and_tiny_group(tmp_path):
     path.write_text("site,yield\nA,low\nA,high\nB,low\nB,mid\n")
     code, _, err = run("analyze", str(path), "--value", "yield", "--group", "site")
     assert code == 2 and "yield" in err
+
+
+def test_huge_values_print_no_numpy_warning(tmp_path):
+    # 3.5 and 1e308 in one group: the SD (about 7.07e307) fits a float, and the command's stderr
+    # stays empty (no RuntimeWarning reaches the terminal); run as the user runs it
+    import subprocess
+    import sys
+
+    path = tmp_path / "huge.csv"
+    path.write_text("g,v\na,3.5\na,1e308\nb,1\nb,2\nb,3\n")
+    root = Path(__file__).resolve().parents[2]
+    done = subprocess.run([sys.executable, "-m", "engine", "analyze", str(path), "--value", "v",
+                           "--group", "g", "--resamples", "200", "--seed", "1"],
+                          capture_output=True, text=True, cwd=root, timeout=120)
+    assert done.returncode == 0, done.stderr
+    assert done.stderr == ""
+    assert "sd 7.07107e+307" in done.stdout
+
+
+def test_a_failed_suggested_procedure_leaves_the_rest_reported(monkeypatch):
+    from engine.procedures import t
+
+    def broken(*args, **kwargs):
+        raise ValueError("a solver gave up")
+
+    monkeypatch.setattr(t, "welch_t", broken)
+    monkeypatch.setattr(t, "pooled_t", broken)
+    code, out, err = run("analyze", str(DEMO / "bolt_strength.csv"), "--value", "strength_mpa",
+                         "--group", "supplier", "--resamples", "200", "--seed", "1")
+    assert code == 0, err
+    assert "[warning] The Welch t-test could not be computed: a solver gave up." in out
+    assert "[warning] The pooled t-test could not be computed: a solver gave up." in out
+    assert "Mann-Whitney" in out

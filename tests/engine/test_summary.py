@@ -101,3 +101,17 @@ def test_summary_refuses_a_sorted_copy_that_does_not_match(bad):
     ordered = values if bad == "unsorted" else np.sort(values)[:3]
     with pytest.raises(OptionProblem, match="sorted copy of group 'bolts'"):
         summarize("bolts", values, ordered=ordered)
+
+
+def test_sd_of_huge_finite_values_is_finite():
+    # reference: hand computation: the SD of 3.5 and 1e308 is |1e308 - 3.5| / sqrt(2), about
+    # 7.07e307, which fits a float although its square does not
+    import math
+    import warnings
+
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")  # no numpy RuntimeWarning either
+        summary = summarize("a", np.array([3.5, 1e308]))
+    assert summary.sd == pytest.approx(1e308 / math.sqrt(2), rel=1e-15)
+    assert summary.mean == pytest.approx(5e307, rel=1e-15)
+    assert summary.median == pytest.approx(5e307, rel=1e-15)

@@ -215,3 +215,53 @@ def test_result_fields():
     assert result.details["n_1"] == 13 and result.details["n_2"] == 9
     with pytest.raises(TypeError):
         welch_t(x, y, "greater")  # options are keyword-only
+
+
+# --- values at the ends of the float range: scale before squaring ------------------------------
+
+# invented bolt loads, rescaled to extreme units; the results are scale-equivariant: t, df and
+# p unchanged, the difference and its interval multiplied by the scale
+_BOLTS_1 = np.array([31.2, 29.8, 33.5, 30.1, 34.0, 32.2, 28.9])
+_BOLTS_2 = np.array([28.4, 30.2, 27.5, 29.9, 31.0, 26.8, 28.1, 39.4, 20.7])
+
+
+@pytest.mark.parametrize("factor", [1e80, 1e154, 1e200, 1e300, 1e-160, 1e-300, 1e-310])
+@pytest.mark.parametrize("equal_var", [False, True])
+def test_t_is_scale_equivariant_at_the_float_extremes(factor, equal_var):
+    # reference: scipy.stats.ttest_ind on the same data in ordinary units (its Welch df,
+    # statistic and p are unchanged by scale); the interval ends scale with the data
+    compute = pooled_t if equal_var else welch_t
+    reference = stats.ttest_ind(_BOLTS_1, _BOLTS_2, equal_var=equal_var)
+    plain = compute(_BOLTS_1, _BOLTS_2)
+    scaled = compute(_BOLTS_1 * factor, _BOLTS_2 * factor)
+    assert scaled.statistic == pytest.approx(reference.statistic, rel=1e-9)
+    assert scaled.df == pytest.approx(reference.df, rel=1e-9)
+    assert scaled.p_value == pytest.approx(reference.pvalue, rel=1e-8)
+    # subnormal inputs (1e-310) keep fewer digits, hence the looser tolerance there
+    rel = 1e-9 if factor >= 1e-300 else 1e-4
+    assert scaled.estimate == pytest.approx(plain.estimate * factor, rel=rel)
+    assert scaled.interval.low == pytest.approx(plain.interval.low * factor, rel=rel)
+    assert scaled.interval.high == pytest.approx(plain.interval.high * factor, rel=rel)
+    assert not scaled.warnings
+
+
+def test_distinct_values_near_1e_minus_300_are_not_called_constant():
+    # the variance of these values underflows to zero when squared unscaled
+    x = np.array([1.0, 2.0, 3.0]) * 1e-300
+    y = np.array([4.0, 6.0, 5.0]) * 1e-300
+    result = welch_t(x, y)
+    reference = stats.ttest_ind([1.0, 2.0, 3.0], [4.0, 6.0, 5.0], equal_var=False)
+    assert result.statistic == pytest.approx(reference.statistic, rel=1e-12)
+    assert result.df == pytest.approx(reference.df, rel=1e-12)
+
+
+def test_groups_hundreds_of_orders_apart_keep_both_spreads():
+    # hand computation (Welch 1947 formulas): group 1 constant at 1e200, group 2 = 1e-100 and
+    # 3e-100 (SD sqrt(2) 1e-100), so SE = sqrt(2e-200 / 2) = 1e-100, t = 1e200 / 1e-100 = 1e300
+    # and df = n2 - 1 = 1; on a common scale alone group 2's spread would underflow to zero
+    result = welch_t([1e200, 1e200, 1e200], [1e-100, 3e-100])
+    assert result.statistic == pytest.approx(1e300, rel=1e-12)
+    assert result.df == pytest.approx(1.0, rel=1e-12)
+    assert result.details["variance_2"] == pytest.approx(2e-200, rel=1e-12)
+    assert result.warnings == ("All values in group 1 are equal, so its spread is zero; the result "
+                               "rests on the spread of the other group alone.",)
