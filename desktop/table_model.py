@@ -17,6 +17,8 @@ import pandas as pd
 from PySide6.QtCore import QAbstractTableModel, QModelIndex, QPersistentModelIndex, Qt
 from PySide6.QtGui import QColor, QFont, QGuiApplication, QPalette
 
+from .plain_text import tooltip
+
 __all__ = ["FrameModel", "KIND_WORDS", "MARK_EXCLUDED", "MARK_SET_ASIDE", "format_cell", "blend"]
 
 MARK_EXCLUDED = "excluded"
@@ -172,8 +174,8 @@ class FrameModel(QAbstractTableModel):
         kind, reason = marked
         if role == Qt.ItemDataRole.ToolTipRole:
             if kind == MARK_SET_ASIDE:
-                return f"You set this value aside: {reason}"
-            return f"Left out of the comparison: {reason}"
+                return tooltip(f"You set this value aside: {reason}")
+            return tooltip(f"Left out of the comparison: {reason}")
         palette = QGuiApplication.palette()
         if role == Qt.ItemDataRole.BackgroundRole:
             tint = palette.color(QPalette.ColorRole.Highlight) if kind == MARK_SET_ASIDE else \
@@ -201,5 +203,5 @@ class FrameModel(QAbstractTableModel):
         if role == Qt.ItemDataRole.DisplayRole:
             return f"{name}\n{KIND_WORDS[kind][0]}" if kind in KIND_WORDS else name
         if role == Qt.ItemDataRole.ToolTipRole:
-            return KIND_WORDS[kind][1] if kind in KIND_WORDS else f"The column {name}."
+            return KIND_WORDS[kind][1] if kind in KIND_WORDS else tooltip(f"The column {name}.")
         return None
