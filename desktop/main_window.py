@@ -284,7 +284,7 @@ class MainWindow(QMainWindow):
         self.cancel_action.setEnabled(False)
         self.quit_action = self._action("&Quit", "Close Twofold.", self.close, QKeySequence.StandardKey.Quit)
         self.entry_action = self._action("Open data files with a double-click",
-                                         "Register Twofold with your desktop for .csv, .tsv, .xlsx and .ods files.",
+                                         "Register Twofold with your desktop for .csv, .tsv, .txt, .xlsx, .xls and .ods files.",
                                          self.install_desktop_entry)
 
     def _build_menus(self) -> None:

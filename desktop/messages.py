@@ -52,7 +52,9 @@ _DECLARED = (
     Message("saved", "info", "Saved {name}."),
     Message("save_failed", "error", "Could not save {name}: {reason}"),
     Message("part_missing", "warning", "This part of the window is not available in this version."),
-    Message("registered", "info", "Data files now offer Twofold when opened from the desktop ({where})."),
+    Message("registered", "info",
+            "Twofold now appears under Open With for data files ({where}). To make it the default for a "
+            "type, right-click such a file, choose Open With and pick Twofold to use always."),
     Message("window_crashed", "error",
             "Something unexpected went wrong ({reason}). The window carries on; your file was not changed."),
 )
