@@ -54,7 +54,7 @@ _DECLARED = (
     Message("part_missing", "warning", "This part of the window is not available in this version."),
     Message("registered", "info",
             "Twofold now appears under Open With for data files ({where}). To make it the default for a "
-            "type, right-click such a file, choose Open With and pick Twofold to use always."),
+            "type, right-click such a file, choose Open With, pick Twofold and choose to use it always."),
     Message("window_crashed", "error",
             "Something unexpected went wrong ({reason}). The window carries on; your file was not changed."),
 )

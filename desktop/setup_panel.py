@@ -66,7 +66,7 @@ def _fill(combo: QComboBox, items: Sequence[str], current: str | None, *, blank:
         if blank is not None:
             combo.addItem(blank, None)
         for item in items:
-            combo.addItem(item, item)
+            combo.addItem(visible(item), item)  # shown with its control characters as escapes
         at = combo.findData(current) if current is not None else (0 if blank is not None else -1)
         combo.setCurrentIndex(at)
 
@@ -231,7 +231,7 @@ class SetupPanel(QWidget):
         with QSignalBlocker(self.question):
             self.question.clear()
             for key, words in QUESTIONS:
-                self.question.addItem(words.format(a=first, b=second), key)
+                self.question.addItem(words.format(a=visible(first), b=visible(second)), key)
             self.question.setCurrentIndex(max(0, self.question.findData(choices.alternative)))
         with QSignalBlocker(self.confidence):
             self.confidence.setValue(round(choices.confidence_level * 100, 1))

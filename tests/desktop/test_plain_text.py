@@ -103,3 +103,39 @@ def test_html_in_labels_and_names_is_shown_literally(make_window, qtbot, settle,
     bar = window.message_bar
     bar.show_message("open_failed", name=path.name, reason=f"{PICTURE} {HUGE}")
     assert shown_as_text(bar._text, PICTURE) and HUGE in bar.text
+
+
+def test_the_grid_and_the_lists_show_direction_overrides_and_breaks_as_escapes(qtbot, tmp_path):
+    # reference: Unicode Standard Annex #9 - U+202E (RIGHT-TO-LEFT OVERRIDE) shows the text
+    # after it reversed, so "r\u202eo differ?" would read as "r?reffid o" in a list
+    import pandas as pd
+
+    from desktop.setup_panel import SetupPanel
+    from desktop.table_model import FrameModel
+    from engine.io.table import Table
+    from engine.session import Session
+
+    first, second = "r\u202eo", "two\nlines"
+    frame = pd.DataFrame({"site\u202e": [first, second, first, second], "mass": [1.0, 2.0, 3.0, 4.5]})
+    table = Table(path=tmp_path / "made_up.csv", kind="csv", frame=frame, sheet=None, sheet_names=(),
+                  encoding="utf-8", delimiter=",", decimal=".", thousands=None, header=True,
+                  column_kinds={"site\u202e": "text", "mass": "number"}, notes=())
+    model = FrameModel()
+    model.set_table(table)
+    shown = [model.data(model.index(row, 0)) for row in range(4)]
+    assert shown == ["r\\u202eo", "two\\nlines"] * 2
+    assert model.headerData(0, Qt.Orientation.Horizontal).startswith("site\\u202e\n")
+
+    session = Session()
+    session.choose(path=table.path, group_column="site\u202e", value_columns=("mass",),
+                   picked=(first, second))
+    session.store("table", table)
+    panel = SetupPanel(session)
+    qtbot.addWidget(panel)
+    texts = [panel.first_group.itemText(i) for i in range(panel.first_group.count())]
+    assert "r\\u202eo" in texts and "two\\nlines" in texts
+    assert panel.first_group.currentData() == first  # the choice is still the label itself
+    questions = [panel.question.itemText(i) for i in range(panel.question.count())]
+    assert all("\u202e" not in q and "\n" not in q for q in questions)
+    assert any("r\\u202eo" in q for q in questions)
+    panel.cleanup()
