@@ -25,7 +25,8 @@ def build_parser() -> argparse.ArgumentParser:
     parser.add_argument("files", nargs="*", type=Path, metavar="FILE",
                         help="a .csv, .tsv, .txt, .xlsx, .xls or .ods file to open")
     parser.add_argument("--install-desktop-entry", action="store_true",
-                        help="let a double-click on a .csv, .tsv, .xlsx or .ods file open Twofold")
+                        help="offer Twofold for .csv, .tsv, .txt, .xlsx, .xls and .ods files on the desktop "
+                             "(Open With), and say how to make it the default")
     parser.add_argument("--uninstall-desktop-entry", action="store_true",
                         help="undo --install-desktop-entry")
     return parser
@@ -98,14 +99,19 @@ def main(argv: Sequence[str] | None = None) -> int:
     """Run Twofold; the exit code is 0 unless the desktop registration failed."""
     args = build_parser().parse_args(argv)
     if args.install_desktop_entry or args.uninstall_desktop_entry:
-        from .desktop_entry import install, uninstall
+        from engine.text import visible
+
+        from .desktop_entry import install, next_steps, uninstall
 
         try:
             where = install() if args.install_desktop_entry else uninstall()
         except OSError as problem:
-            print(f"twofold: {problem}", file=sys.stderr)
+            print(f"twofold: {visible(problem)}", file=sys.stderr)
             return 1
-        print(where)
+        if args.install_desktop_entry:
+            print("\n".join(next_steps(where)))
+        else:
+            print(f"Twofold is no longer registered with the desktop (removed from {visible(where)}).")
         return 0
     window = start(argv)
     _keep_running(window)

@@ -11,7 +11,6 @@ Run on its own for a quick look: ``python -m desktop.choice_panel``.
 
 from __future__ import annotations
 
-import html
 from typing import Any
 
 from PySide6.QtCore import QPoint, QRect, QSize, Qt
@@ -21,7 +20,9 @@ from PySide6.QtWidgets import (QBoxLayout, QCheckBox, QComboBox, QFormLayout, QF
                                QToolButton, QVBoxLayout, QWidget)
 
 from engine import report
+from engine.text import visible, visible_html
 
+from .plain_text import plain_label
 from .plots import BoxPlot, QQPlot, ShapePlot
 
 __all__ = ["ChoicePanel", "CHECK_TIPS", "FlowLayout", "disclosure_button", "heading", "hint_and_body", "main_reading",
@@ -73,8 +74,8 @@ def text_label(text: str = "", *, rich: bool = False) -> QLabel:
 
 
 def heading(text: str) -> QLabel:
-    """A bold, slightly larger label for the parts of a panel."""
-    label = QLabel(text)
+    """A bold, slightly larger label for the parts of a panel (plain text: it may name a group)."""
+    label = plain_label(text)
     font = label.font()
     font.setBold(True)
     font.setPointSizeF(font.pointSizeF() * 1.1)
@@ -89,7 +90,7 @@ def hint_and_body(panel: QWidget, hint: str) -> tuple[QLabel, QScrollArea, QVBox
     """
     outer = QVBoxLayout(panel)
     outer.setContentsMargins(0, 0, 0, 0)
-    label = QLabel(hint)
+    label = plain_label(hint)
     label.setWordWrap(True)
     label.setAlignment(Qt.AlignmentFlag.AlignCenter)
     outer.addWidget(label)
@@ -216,15 +217,15 @@ class _CheckCard(QFrame):
             if item.widget() is not None:
                 item.widget().deleteLater()
         for text, tip in figures:
-            label = QLabel(text)
+            label = plain_label(text)
             label.setToolTip(tip)
             self.figures.addWidget(label)
 
     def show_findings(self, findings) -> None:
         lead = main_reading(findings)
-        self.reading.setText("" if lead is None else _SEVERITY_WORD[lead.severity] + lead.text)
+        self.reading.setText("" if lead is None else _SEVERITY_WORD[lead.severity] + visible(lead.text))
         others = [f for f in findings if f is not lead]
-        self.more.setText("\n".join(f"- {_SEVERITY_WORD[f.severity]}{f.text}" for f in others))
+        self.more.setText("\n".join(f"- {_SEVERITY_WORD[f.severity]}{visible(f.text)}" for f in others))
         self.more_button.setVisible(bool(others))
 
 
@@ -297,7 +298,7 @@ class ChoicePanel(QWidget):
         self.sd_box.toggled.connect(self._sd_toggled)
         sd_form = QFormLayout(self.sd_box)
         self.sd_edits = [QLineEdit(), QLineEdit()]
-        self.sd_labels = [QLabel(), QLabel()]
+        self.sd_labels = [plain_label(), plain_label()]
         for edit, label in zip(self.sd_edits, self.sd_labels):
             validator = QDoubleValidator(0.0, 1e300, 12, edit)
             validator.setNotation(QDoubleValidator.Notation.ScientificNotation)
@@ -353,7 +354,7 @@ class ChoicePanel(QWidget):
         values = (groups.x, groups.y)
         for index, (card, (shape_plot, qq_plot)) in enumerate(zip(self.shape_cards, self.shape_plots)):
             summary, shape = analysis.summaries[index], checks.shapes[index]
-            card.title.setText(f"Shape of {groups.labels[index]} ({summary.n:,} values)")
+            card.title.setText(f"Shape of {visible(groups.labels[index])} ({summary.n:,} values)")
             shape_plot.set_title("histogram and normal curve")
             shape_plot.show_group(values[index], mean=summary.mean, sd=summary.sd, group=index)
             qq_plot.set_title("normal Q-Q plot")
@@ -371,12 +372,13 @@ class ChoicePanel(QWidget):
 
     def _show_suggestion(self, analysis) -> None:
         suggested = analysis.recommendation
-        parts = [f"<p>Suggested: <b>{html.escape(suggested.name)}</b></p>"]
+        e = visible_html  # the reasons may quote a group's label
+        parts = [f"<p>Suggested: <b>{e(suggested.name)}</b></p>"]
         if suggested.reasons:
-            parts.append("<p>Why:</p><ul>" + "".join(f"<li>{html.escape(r)}</li>" for r in suggested.reasons) + "</ul>")
+            parts.append("<p>Why:</p><ul>" + "".join(f"<li>{e(r)}</li>" for r in suggested.reasons) + "</ul>")
         if suggested.considered:
             parts.append("<p>Also weighed:</p><ul>" + "".join(
-                f"<li><b>{html.escape(c.name)}</b>: {html.escape(c.why_not)}</li>" for c in suggested.considered)
+                f"<li><b>{e(c.name)}</b>: {e(c.why_not)}</li>" for c in suggested.considered)
                 + "</ul>")
         self.suggestion.setText("".join(parts))
 
@@ -391,7 +393,7 @@ class ChoicePanel(QWidget):
             self._syncing = False
         labels = analysis.groups.labels
         for label, text in zip(self.sd_labels, labels):
-            label.setText(f"SD of {text}:")
+            label.setText(f"SD of {visible(text)}:")
 
     def _sync_choices(self) -> None:
         """Make the widgets show the session's choices without writing anything back."""
@@ -421,12 +423,12 @@ class ChoicePanel(QWidget):
         sentence = suggested.assumptions.get(key)
         name = analysis.procedures[key].name if key in analysis.procedures else key
         if sentence:
-            self.assumes.setText(f"<b>What this pick assumes</b> ({html.escape(name, quote=False)}): {html.escape(sentence, quote=False)}")
+            self.assumes.setText(f"<b>What this pick assumes</b> ({visible_html(name)}): {visible_html(sentence)}")
         else:
             self.assumes.setText("")
         picked = self.session.choices.procedure
         if picked is not None and picked not in analysis.procedures:
-            self.assumes.setText(f"The procedure picked before ({html.escape(picked)}) is not available "
+            self.assumes.setText(f"The procedure picked before ({visible_html(picked)}) is not available "
                                  "for these data; the findings follow the suggestion.")
 
     # -- writing back --------------------------------------------------------------------------

@@ -10,7 +10,6 @@ Run on its own for a quick look: ``python -m desktop.data_panel demo_files/bolt_
 
 from __future__ import annotations
 
-import html
 import sys
 from typing import Any, Callable, Mapping
 
@@ -31,6 +30,9 @@ from PySide6.QtWidgets import (
     QWidget,
 )
 
+from engine.text import visible, visible_html
+
+from .plain_text import make_plain
 from .table_model import MARK_SET_ASIDE, FrameModel
 
 __all__ = ["DataPanel", "screening_html", "aside_order", "MAX_COPY_CELLS"]
@@ -51,7 +53,7 @@ AskReason = Callable[[str], "str | None"]
 
 
 def _escape(text: object) -> str:
-    return html.escape(str(text))
+    return visible_html(text)  # text from the file, never markup
 
 
 def _pairs(mapping: Any) -> list[tuple[Any, Any]]:
@@ -128,10 +130,14 @@ def _groups_html(screening: Any) -> str:
 
 def _ask_reason(parent: QWidget) -> AskReason:
     def ask(where: str) -> str | None:
-        text, ok = QInputDialog.getText(
-            parent, "Set a value aside",
-            f"Why should {where} be left out? (The reason goes into the findings.)",
-            text="suspected slip when the value was written down")
+        dialog = QInputDialog(parent)
+        dialog.setWindowTitle("Set a value aside")
+        dialog.setLabelText(f"Why should {visible(where)} be left out? (The reason goes into the findings.)")
+        make_plain(*dialog.findChildren(QLabel))  # ``where`` names a column of the file
+        dialog.setTextValue("suspected slip when the value was written down")
+        ok = dialog.exec() == QInputDialog.DialogCode.Accepted
+        text = dialog.textValue()
+        dialog.deleteLater()
         return text.strip() or "set aside" if ok else None
     return ask
 
@@ -164,6 +170,7 @@ class DataPanel(QWidget):
         self.model = FrameModel(self)
 
         self.heading = QLabel("Open a data file to begin.", self)
+        self.heading.setTextFormat(Qt.TextFormat.RichText)  # its file name is escaped
         self.heading.setWordWrap(True)
         self.grid = QTableView(self)
         self.grid.setVerticalHeader(RowNumbers(self.model, self.grid))

@@ -2,18 +2,22 @@
 
 On Linux and other freedesktop systems :func:`install_linux` writes, under ``$XDG_DATA_HOME``
 (by default ``~/.local/share``), a desktop entry ``applications/twofold.desktop`` that accepts
-one file (``%f``) of the four types, a shared-MIME package ``mime/packages/twofold.xml`` with
-their file-name patterns, and the icon ``icons/hicolor/scalable/apps/twofold.svg``; then it runs
-``update-desktop-database`` and ``update-mime-database`` where they are installed. On Windows
-:func:`windows_registry_entries` lists the per-user file associations (a ProgID under
-``HKCU\\Software\\Classes`` and an ``OpenWithProgids`` value for each extension) and
-:func:`install_windows` writes them with ``winreg``. Nothing needs administrator rights, and
-nothing becomes the default program for a type unless the user makes it so.
+one file (``%f``) of the six types and the icon ``icons/hicolor/scalable/apps/twofold.svg``;
+then it runs ``update-desktop-database`` where it is installed. The six types are all defined by
+the system's shared MIME database, so no MIME package is written: the user's database keeps
+every other program's names and patterns for them. On Windows :func:`windows_registry_entries`
+lists the per-user file associations (a ProgID under ``HKCU\\Software\\Classes`` and an
+``OpenWithProgids`` value for each extension) and :func:`install_windows` writes them with
+``winreg``. Nothing needs administrator rights, and nothing becomes the default program for a
+type unless the user makes it so; :func:`next_steps` says how.
 
 References
 ----------
 freedesktop.org, "Desktop Entry Specification", version 1.5 (the Exec key and its quoting).
-freedesktop.org, "Shared MIME-info Database", version 0.21 (the package XML format).
+freedesktop.org, "Shared MIME-info Database", version 0.21, and the freedesktop.org.xml it ships
+(the six types and their file-name patterns).
+freedesktop.org, "Association between MIME types and applications", version 1.0.1
+(``mimeapps.list`` and its ``[Default Applications]`` group).
 Microsoft, "File Types and File Associations" and "OpenWithProgids" (Win32 shell documentation).
 """
 
@@ -23,13 +27,17 @@ import os
 import shutil
 import subprocess
 import sys
+import unicodedata
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Mapping, Sequence
 
+from engine.text import visible
+
 __all__ = [
     "FILE_TYPES",
     "PROG_ID",
+    "RegistrationProblem",
     "RegistryValue",
     "data_home",
     "launch_command",
@@ -43,15 +51,20 @@ __all__ = [
     "uninstall_windows",
     "install",
     "uninstall",
+    "next_steps",
 ]
 
-# extension -> (MIME type, what the type is called)
+# extension -> (MIME type, what the type is called): every kind of file Twofold reads
 FILE_TYPES: Mapping[str, tuple[str, str]] = {
     ".csv": ("text/csv", "comma-separated values"),
     ".tsv": ("text/tab-separated-values", "tab-separated values"),
+    ".txt": ("text/plain", "plain text"),
     ".xlsx": ("application/vnd.openxmlformats-officedocument.spreadsheetml.sheet", "spreadsheet workbook"),
+    ".xls": ("application/vnd.ms-excel", "older spreadsheet workbook"),
     ".ods": ("application/vnd.oasis.opendocument.spreadsheet", "OpenDocument spreadsheet"),
 }
+# a MIME package that earlier versions wrote; it is removed on the next install or uninstall
+_OLD_MIME_PACKAGE = "mime/packages/twofold.xml"
 PROG_ID = "Twofold.DataFile"
 APP_ID = "twofold"
 _ROOT = Path(__file__).resolve().parent.parent
@@ -102,8 +115,33 @@ def launch_command(*, windowed: bool = False) -> list[str]:
 _RESERVED = set(" \t\n\"'\\><~|&;$*?#()`")
 
 
+class RegistrationProblem(OSError):
+    """The registration cannot be written as it stands; the message says why and what to do."""
+
+
+def _check_argument(argument: str) -> None:
+    """Refuse what a desktop entry cannot hold: a value is one line of UTF-8 text without control
+    characters (Desktop Entry Specification 1.5, "Possible value types")."""
+    for character in argument:
+        category = unicodedata.category(character)
+        if category not in ("Cc", "Cs"):
+            continue
+        if character in "\n\r":
+            what = "a line break"
+        elif category == "Cs":
+            what = "bytes that are not UTF-8 text"
+        else:
+            what = f"a control character (U+{ord(character):04X})"
+        place = str(_ROOT) if str(_ROOT) in argument else argument
+        raise RegistrationProblem(
+            f"the path {visible(place)} holds {what}, which a desktop entry cannot hold. "
+            "Move Twofold to a folder whose name is plain text on one line, then run "
+            "twofold --install-desktop-entry again.")
+
+
 def _exec_quote(argument: str) -> str:
     """One argument quoted by the desktop-entry rules (then escaped as a string value)."""
+    _check_argument(argument)
     argument = argument.replace("%", "%%")
     if argument and not (_RESERVED & set(argument)):
         quoted = argument
@@ -114,7 +152,11 @@ def _exec_quote(argument: str) -> str:
 
 
 def exec_line(command: Sequence[str]) -> str:
-    """The ``Exec`` value: the command, quoted, followed by ``%f`` (one local file)."""
+    """The ``Exec`` value: the command, quoted, followed by ``%f`` (one local file).
+
+    Raises :class:`RegistrationProblem` when a part holds a line break, another control
+    character or bytes that are not UTF-8: the format has no way to write them.
+    """
     return " ".join(_exec_quote(part) for part in command) + " %f"
 
 
@@ -138,18 +180,6 @@ def _desktop_entry(command: Sequence[str]) -> str:
     ])
 
 
-def _mime_package() -> str:
-    lines = ['<?xml version="1.0" encoding="UTF-8"?>',
-             '<mime-info xmlns="http://www.freedesktop.org/standards/shared-mime-info">']
-    for extension, (mime, name) in FILE_TYPES.items():
-        lines += [f'  <mime-type type="{mime}">',
-                  f"    <comment>{name}</comment>",
-                  f'    <glob pattern="*{extension}"/>',
-                  "  </mime-type>"]
-    lines += ["</mime-info>", ""]
-    return "\n".join(lines)
-
-
 _FALLBACK_ICON = ('<svg xmlns="http://www.w3.org/2000/svg" viewBox="0 0 64 64">'
                   '<rect x="12" y="24" width="14" height="28"/><rect x="38" y="14" width="14" height="38"/></svg>\n')
 
@@ -159,14 +189,25 @@ def linux_files(command: Sequence[str] | None = None) -> dict[str, str]:
     icon = _ICON.read_text(encoding="utf-8") if _ICON.is_file() else _FALLBACK_ICON
     return {
         f"applications/{APP_ID}.desktop": _desktop_entry(command or launch_command()),
-        f"mime/packages/{APP_ID}.xml": _mime_package(),
         f"icons/hicolor/scalable/apps/{APP_ID}.svg": icon,
     }
 
 
-def _refresh_linux(home: Path) -> None:
+def _drop_old_mime_package(home: Path) -> bool:
+    """Remove the MIME package an earlier version wrote (it renamed common types); True if it was there."""
+    old = home / _OLD_MIME_PACKAGE
+    if not old.is_file():
+        return False
+    old.unlink()
+    return True
+
+
+def _refresh_linux(home: Path, *, mime: bool = False) -> None:
     """Rebuild the desktop's caches where the tools exist; their absence is harmless."""
-    for tool, folder in (("update-desktop-database", home / "applications"), ("update-mime-database", home / "mime")):
+    tools = [("update-desktop-database", home / "applications")]
+    if mime:
+        tools.append(("update-mime-database", home / "mime"))
+    for tool, folder in tools:
         program = shutil.which(tool)
         if program is None:
             continue
@@ -177,22 +218,26 @@ def _refresh_linux(home: Path) -> None:
 
 
 def install_linux(home: Path | None = None, *, command: Sequence[str] | None = None) -> Path:
-    """Write the desktop entry, the MIME package and the icon; returns the desktop entry's path."""
+    """Write the desktop entry and the icon; returns the desktop entry's path.
+
+    Nothing is written when the entry cannot be (:class:`RegistrationProblem`).
+    """
     home = home or data_home()
-    for relative, text in linux_files(command).items():
+    files = linux_files(command)  # refuses a command the entry cannot hold, before any writing
+    for relative, text in files.items():
         target = home / relative
         target.parent.mkdir(parents=True, exist_ok=True)
         target.write_text(text, encoding="utf-8")
-    _refresh_linux(home)
+    _refresh_linux(home, mime=_drop_old_mime_package(home))
     return home / "applications" / f"{APP_ID}.desktop"
 
 
 def uninstall_linux(home: Path | None = None) -> Path:
-    """Remove the three files again (missing ones are fine); returns the data home."""
+    """Remove the files again (missing ones are fine); returns the data home."""
     home = home or data_home()
     for relative in linux_files(["twofold"]):
         (home / relative).unlink(missing_ok=True)
-    _refresh_linux(home)
+    _refresh_linux(home, mime=_drop_old_mime_package(home))
     return home
 
 
@@ -217,7 +262,7 @@ def windows_command_line(command: Sequence[str]) -> str:
 
 
 def windows_registry_entries(command: Sequence[str], *, icon: str | None = None) -> list[RegistryValue]:
-    """The per-user registry values that offer Twofold for the four file types.
+    """The per-user registry values that offer Twofold for the six file types.
 
     A ProgID ``Twofold.DataFile`` with its name, icon and open command, and for each extension
     an empty ``OpenWithProgids`` value naming the ProgID (which adds Twofold to "Open with"
@@ -303,3 +348,57 @@ def uninstall() -> str:
     if sys.platform == "darwin":
         raise OSError("on macOS there is nothing to remove")
     return str(uninstall_linux())
+
+
+def _extensions() -> str:
+    names = list(FILE_TYPES)
+    return ", ".join(names[:-1]) + " and " + names[-1]
+
+
+def _config_home(environ: Mapping[str, str]) -> Path:
+    """``$XDG_CONFIG_HOME``, or ``~/.config`` when it is unset or not absolute."""
+    value = environ.get("XDG_CONFIG_HOME", "")
+    if value and Path(value).is_absolute():
+        return Path(value)
+    return Path(environ.get("HOME") or str(Path.home())) / ".config"
+
+
+def next_steps(where: str, *, platform: str | None = None, environ: Mapping[str, str] | None = None,
+               has_xdg_mime: bool | None = None) -> list[str]:
+    """What to tell the user after :func:`install`, one sentence a line: what was written where,
+    where Twofold now appears, and how to make it the program a double-click opens."""
+    platform = sys.platform if platform is None else platform
+    environ = os.environ if environ is None else environ
+    lines = [f"Twofold is registered for your user only (written to {visible(where)})."]
+    if platform == "win32":
+        return lines + [
+            f"It now appears under Open with for {_extensions()} files; your current program for "
+            "each type stays the default.",
+            "To open a type with a double-click: right-click such a file in Explorer, choose Open with, "
+            "then Choose another app, pick Twofold and tick Always use this app.",
+            "twofold --uninstall-desktop-entry takes the registration away again.",
+        ]
+    lines += [
+        f"It now appears in your applications menu and under Open With for {_extensions()} files "
+        "(some desktops show it only after you log out and back in); your current program for "
+        "each type stays the default.",
+        "To open a type with a double-click: right-click such a file in your file manager, choose "
+        "Open With, pick Twofold and choose to use it always or set it as the default (the words "
+        "differ from one desktop to another).",
+    ]
+    if has_xdg_mime is None:
+        has_xdg_mime = shutil.which("xdg-mime") is not None
+    # the two types that are data tables and nothing else; workbooks and .txt files usually
+    # belong to another program, which the user can change the same way
+    tables = [FILE_TYPES[".csv"][0], FILE_TYPES[".tsv"][0]]
+    if has_xdg_mime:
+        lines.append(f"Or from a terminal, for comma- and tab-separated files: "
+                     f"xdg-mime default {APP_ID}.desktop {' '.join(tables)}")
+    else:
+        mimeapps = _config_home(environ) / "mimeapps.list"
+        entries = " and ".join(f"{mime}={APP_ID}.desktop" for mime in tables)
+        lines.append(f"Or by hand, for comma- and tab-separated files: add the lines {entries} under the "
+                     f"heading [Default Applications] in {visible(mimeapps)} (xdg-mime, the usual tool "
+                     "for this, is not installed here).")
+    lines.append("twofold --uninstall-desktop-entry takes the registration away again.")
+    return lines

@@ -10,7 +10,6 @@ own writer from the same HTML.
 from __future__ import annotations
 
 import base64
-import html as html_text
 from datetime import datetime
 from pathlib import Path
 from typing import Any, Sequence
@@ -19,6 +18,7 @@ from PySide6.QtCore import QBuffer, QByteArray, QIODevice, QMarginsF, QUrl
 from PySide6.QtGui import QImage, QPageLayout, QPageSize, QPdfWriter, QTextDocument
 
 from engine.errors import FileProblem
+from engine.text import visible_html
 
 __all__ = ["level_text", "direction_text", "choice_rows", "set_aside_rows", "report_html",
            "export_report", "REPORT_SUFFIXES"]
@@ -128,7 +128,7 @@ def set_aside_rows(analysis, choices) -> list[tuple[str, str]]:
 
 
 def _escape(text: Any) -> str:
-    return html_text.escape(str(text), quote=True)
+    return visible_html(text)  # labels from the file: no markup, no control or direction characters
 
 
 def _table(rows: Sequence[tuple[str, str]], headings: tuple[str, str]) -> str:

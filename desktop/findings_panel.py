@@ -10,7 +10,6 @@ Run on its own for a quick look: ``python -m desktop.findings_panel``.
 
 from __future__ import annotations
 
-import html
 from pathlib import Path
 from typing import Any
 
@@ -21,6 +20,7 @@ from PySide6.QtWidgets import (QAbstractItemView, QApplication, QFileDialog, QHe
 
 from engine import report
 from engine.errors import FileProblem
+from engine.text import visible, visible_html
 
 from . import clipboard, export
 from .choice_panel import FlowLayout, heading, hint_and_body, text_label
@@ -206,10 +206,10 @@ class FindingsPanel(QWidget):
         notes = [result.method[:1].upper() + result.method[1:] + "."] if result.method else []
         notes += list(result.warnings)
         self.method.setText("\n".join(notes))
-        self.cautions.setText("<ul>" + "".join(f"<li>{html.escape(c)}</li>" for c in self.cautions_list()) + "</ul>")
+        self.cautions.setText("<ul>" + "".join(f"<li>{visible_html(c)}</li>" for c in self.cautions_list()) + "</ul>")
 
     def _fill_table(self, analysis, result) -> None:
-        labels = analysis.groups.labels
+        labels = [visible(label) for label in analysis.groups.labels]
         level = export.level_text(analysis.options.confidence_level)
         shown = report.display_numbers(analysis, result.key)
         missing = report.NOT_AVAILABLE

@@ -35,9 +35,11 @@ from PySide6.QtWidgets import (
 )
 
 from engine.session import Choices, Session
+from engine.text import visible
 
 from .data_panel import DataPanel
 from .messages import MessageBar
+from .plain_text import plain_label, tooltip
 from .recent import RecentFiles
 from .setup_panel import SetupPanel
 from .workers import Worker
@@ -226,7 +228,7 @@ class MainWindow(QMainWindow):
 
     def _build_status(self) -> None:
         bar = self.statusBar()
-        self.busy_label = QLabel(self)
+        self.busy_label = plain_label(parent=self)  # it names the file being opened
         self.progress = QProgressBar(self)
         self.progress.setMaximumWidth(260)
         self.progress.setRange(0, 1000)
@@ -282,7 +284,7 @@ class MainWindow(QMainWindow):
         self.cancel_action.setEnabled(False)
         self.quit_action = self._action("&Quit", "Close Twofold.", self.close, QKeySequence.StandardKey.Quit)
         self.entry_action = self._action("Open data files with a double-click",
-                                         "Register Twofold with your desktop for .csv, .tsv, .xlsx and .ods files.",
+                                         "Register Twofold with your desktop for .csv, .tsv, .txt, .xlsx, .xls and .ods files.",
                                          self.install_desktop_entry)
 
     def _build_menus(self) -> None:
@@ -318,7 +320,7 @@ class MainWindow(QMainWindow):
         paths = self.recent.paths()
         for path in paths:
             action = self.recent_menu.addAction(path.name)
-            action.setToolTip(str(path))
+            action.setToolTip(tooltip(str(path)))
             action.triggered.connect(lambda checked=False, p=path: self.open_recent(p))
         if not paths:
             self.recent_menu.addAction("(no files yet)").setEnabled(False)
@@ -401,7 +403,7 @@ class MainWindow(QMainWindow):
         self._analysis_soon.stop()
         self._groups_soon.stop()
         self._opening = path.name
-        self.busy_label.setText(f"Opening {path.name}…")
+        self.busy_label.setText(f"Opening {visible(path.name)}…")
         ask = sheet is None
 
         def read(progress: Any, cancelled: Any) -> tuple:
@@ -463,7 +465,7 @@ class MainWindow(QMainWindow):
         finally:
             self._quiet = False
             self._seen = self.session.choices
-        self.setWindowTitle(f"{path.name} - Twofold")
+        self.setWindowTitle(f"{visible(path.name)} - Twofold")
         self.recent.add(path)
         # paint the grid first; the groups, the analysis and the late panels follow at once
         self._groups_soon.start()
@@ -473,7 +475,7 @@ class MainWindow(QMainWindow):
         self._load_late_soon()
         if expected:  # the engine's sentence names the file as a rule: say it once
             self.message_bar.show_message("open_failed", reason=message,
-                                          name="the file" if self._opening in message else self._opening)
+                                          name="the file" if visible(self._opening) in message else self._opening)
         else:
             self.message_bar.show_message("open_crashed", name=self._opening, reason=message)
 

@@ -14,6 +14,9 @@ from PySide6.QtCore import Qt, Signal
 from PySide6.QtGui import QColor, QPalette
 from PySide6.QtWidgets import QFrame, QHBoxLayout, QLabel, QStyle, QToolButton, QWidget
 
+from engine.text import visible
+
+from .plain_text import plain_label
 from .table_model import blend
 
 __all__ = ["Message", "MESSAGES", "message_text", "MessageBar"]
@@ -49,7 +52,9 @@ _DECLARED = (
     Message("saved", "info", "Saved {name}."),
     Message("save_failed", "error", "Could not save {name}: {reason}"),
     Message("part_missing", "warning", "This part of the window is not available in this version."),
-    Message("registered", "info", "Data files now offer Twofold when opened from the desktop ({where})."),
+    Message("registered", "info",
+            "Twofold now appears under Open With for data files ({where}). To make it the default for a "
+            "type, right-click such a file, choose Open With, pick Twofold and choose to use it always."),
     Message("window_crashed", "error",
             "Something unexpected went wrong ({reason}). The window carries on; your file was not changed."),
 )
@@ -58,8 +63,12 @@ MESSAGES: Mapping[str, Message] = {message.key: message for message in _DECLARED
 
 
 def message_text(key: str, **values: object) -> str:
-    """The sentence of message ``key`` with its placeholders filled in."""
-    return MESSAGES[key].text.format(**values)
+    """The sentence of message ``key`` with its placeholders filled in.
+
+    The values (a file's name, an error that quotes a label) are shown as text: their control
+    and direction characters are written as escapes, and the bar never reads them as markup.
+    """
+    return MESSAGES[key].text.format(**{name: visible(value) for name, value in values.items()})
 
 
 _TINTS = {"info": QPalette.ColorRole.Highlight, "warning": None, "error": None}
@@ -86,7 +95,7 @@ class MessageBar(QFrame):
         self.setAutoFillBackground(True)
         self._key: str | None = None
         self._icon = QLabel(self)
-        self._text = QLabel(self)
+        self._text = plain_label(parent=self)
         self._text.setWordWrap(True)
         self._text.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
         self._close = QToolButton(self)
@@ -113,7 +122,7 @@ class MessageBar(QFrame):
     def show_message(self, key: str, **values: object) -> None:
         message = MESSAGES[key]
         self._key = key
-        self._text.setText(message.text.format(**values))
+        self._text.setText(message_text(key, **values))
         size = self.style().pixelMetric(QStyle.PixelMetric.PM_SmallIconSize)
         self._icon.setPixmap(self.style().standardIcon(_ICONS[message.level]).pixmap(size, size))
         self._paint(message.level)

@@ -19,6 +19,8 @@ from PySide6.QtCore import QEvent, QPoint, Qt
 from PySide6.QtGui import QColor, QGuiApplication, QImage, QPainter, QPalette
 from PySide6.QtWidgets import QWidget
 
+from engine.text import visible, visible_html
+
 __all__ = [
     "MAX_POINTS",
     "PlotColours",
@@ -191,7 +193,8 @@ class ThemedPlot(pg.PlotWidget):
             return  # laying out a title again takes a noticeable moment
         self._title = text
         self._written["title"] = (text, ink)
-        self.getPlotItem().setTitle(text or None, color=ink, size="9pt")
+        # pyqtgraph draws titles and axis names as HTML: text from the file is escaped
+        self.getPlotItem().setTitle(visible_html(text) if text else None, color=ink, size="9pt")
 
     def set_axis_labels(self, bottom: str = "", left: str = "") -> None:
         """Name the axes; an empty name leaves that axis as it is."""
@@ -199,7 +202,7 @@ class ThemedPlot(pg.PlotWidget):
         for side, text in (("bottom", bottom), ("left", left)):
             if text and self._written.get(side) != (text, ink):
                 self._written[side] = (text, ink)
-                self.getPlotItem().setLabel(side, text, color=ink)
+                self.getPlotItem().setLabel(side, visible_html(text), color=ink)
 
     def redraw(self) -> None:
         """Draw the current data again (after a palette change); subclasses override."""
@@ -334,7 +337,7 @@ class BoxPlot(ThemedPlot):
                 place + jitter, shown, size=4, pen=pg.mkPen(None), brush=_with_alpha(colour, 0.55))
         self._drop_kept(keep=len(self._data), prefixes=("median", "whiskers", "points"))
         axis = self.getPlotItem().getAxis("bottom")
-        axis.setTicks([[(i, group[0]) for i, group in enumerate(self._data)]])
+        axis.setTicks([[(i, visible(group[0])) for i, group in enumerate(self._data)]])
         self.getPlotItem().setXRange(-0.6, len(self._data) - 0.4, padding=0)
         self.set_axis_labels("", "value")
 

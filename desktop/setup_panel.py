@@ -29,6 +29,9 @@ from PySide6.QtWidgets import (
     QWidget,
 )
 
+from engine.text import visible
+
+from .plain_text import plain_label
 from .table_model import format_cell
 
 __all__ = ["SetupPanel", "QUESTIONS", "group_levels", "MAX_LEVELS"]
@@ -63,7 +66,7 @@ def _fill(combo: QComboBox, items: Sequence[str], current: str | None, *, blank:
         if blank is not None:
             combo.addItem(blank, None)
         for item in items:
-            combo.addItem(item, item)
+            combo.addItem(visible(item), item)  # shown with its control characters as escapes
         at = combo.findData(current) if current is not None else (0 if blank is not None else -1)
         combo.setCurrentIndex(at)
 
@@ -115,7 +118,7 @@ class SetupPanel(QWidget):
         self.resamples.setGroupSeparatorShown(True)
         self.resamples.setKeyboardTracking(False)
         self.resamples.setToolTip("How many reshuffles the resampling procedures use: more is steadier but slower.")
-        self.hint = QLabel(self)
+        self.hint = plain_label(parent=self)  # it names a column of the file
         self.hint.setWordWrap(True)
 
         form = QFormLayout()
@@ -228,16 +231,16 @@ class SetupPanel(QWidget):
         with QSignalBlocker(self.question):
             self.question.clear()
             for key, words in QUESTIONS:
-                self.question.addItem(words.format(a=first, b=second), key)
+                self.question.addItem(words.format(a=visible(first), b=visible(second)), key)
             self.question.setCurrentIndex(max(0, self.question.findData(choices.alternative)))
         with QSignalBlocker(self.confidence):
             self.confidence.setValue(round(choices.confidence_level * 100, 1))
         with QSignalBlocker(self.resamples):
             self.resamples.setValue(int(choices.n_resamples))
         if not wide and choices.group_column and len(levels) > 2 and not choices.picked:
-            self.hint.setText(f"{choices.group_column} holds {len(levels)} groups: choose the two to compare.")
+            self.hint.setText(f"{visible(choices.group_column)} holds {len(levels)} groups: choose the two to compare.")
         elif not wide and choices.group_column and len(levels) < 2 and table is not None:
-            self.hint.setText(f"{choices.group_column} holds fewer than two groups: choose another column.")
+            self.hint.setText(f"{visible(choices.group_column)} holds fewer than two groups: choose another column.")
         else:
             self.hint.setText("")
         self.hint.setVisible(bool(self.hint.text()))

@@ -17,6 +17,10 @@ import pandas as pd
 from PySide6.QtCore import QAbstractTableModel, QModelIndex, QPersistentModelIndex, Qt
 from PySide6.QtGui import QColor, QFont, QGuiApplication, QPalette
 
+from engine.text import visible
+
+from .plain_text import tooltip
+
 __all__ = ["FrameModel", "KIND_WORDS", "MARK_EXCLUDED", "MARK_SET_ASIDE", "format_cell", "blend"]
 
 MARK_EXCLUDED = "excluded"
@@ -156,7 +160,7 @@ class FrameModel(QAbstractTableModel):
             return None
         row, column = index.row(), index.column()
         if role == Qt.ItemDataRole.DisplayRole:
-            return format_cell(self._stores[column][row])
+            return visible(format_cell(self._stores[column][row]))  # a line break or override shows as an escape
         if role == Qt.ItemDataRole.TextAlignmentRole:
             if self._kinds.get(self._names[column]) == "number":
                 return int(Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter)
@@ -172,8 +176,8 @@ class FrameModel(QAbstractTableModel):
         kind, reason = marked
         if role == Qt.ItemDataRole.ToolTipRole:
             if kind == MARK_SET_ASIDE:
-                return f"You set this value aside: {reason}"
-            return f"Left out of the comparison: {reason}"
+                return tooltip(f"You set this value aside: {reason}")
+            return tooltip(f"Left out of the comparison: {reason}")
         palette = QGuiApplication.palette()
         if role == Qt.ItemDataRole.BackgroundRole:
             tint = palette.color(QPalette.ColorRole.Highlight) if kind == MARK_SET_ASIDE else \
@@ -199,7 +203,8 @@ class FrameModel(QAbstractTableModel):
         name = self._names[section]
         kind = self._kinds.get(name)
         if role == Qt.ItemDataRole.DisplayRole:
-            return f"{name}\n{KIND_WORDS[kind][0]}" if kind in KIND_WORDS else name
+            shown = visible(name)
+            return f"{shown}\n{KIND_WORDS[kind][0]}" if kind in KIND_WORDS else shown
         if role == Qt.ItemDataRole.ToolTipRole:
-            return KIND_WORDS[kind][1] if kind in KIND_WORDS else f"The column {name}."
+            return KIND_WORDS[kind][1] if kind in KIND_WORDS else tooltip(f"The column {name}.")
         return None

@@ -12,6 +12,7 @@ from pathlib import Path
 from typing import Sequence, TextIO
 
 from .errors import TwofoldError
+from .text import visible
 
 __all__ = ["main", "build_parser"]
 
@@ -107,10 +108,16 @@ def _analyze(args, out: TextIO) -> None:
     key = analysis.recommendation.key
     if key not in analysis.procedures:
         key = next(iter(analysis.procedures))
-    out.write(_readable(analysis, render(analysis, procedure=key).plain))
+    _write_lines(out, _readable(analysis, render(analysis, procedure=key).plain))
 
 
-def _readable(analysis, report_text: str) -> str:
+def _write_lines(out: TextIO, lines: Sequence[str]) -> None:
+    """Print ``lines``, each one line: text from the file quoted in them cannot break a line,
+    move the cursor or turn the text around (see :func:`engine.text.visible`)."""
+    out.write("".join(visible(line) + "\n" for line in lines))
+
+
+def _readable(analysis, report_text: str) -> list[str]:
     lines = [f"File: {analysis.source.get('file')}"]
     for summary in analysis.summaries:
         lines.append(f"  {summary.label}: n = {summary.n}, mean {summary.mean:.6g}, sd {summary.sd:.6g}, "
@@ -122,7 +129,7 @@ def _readable(analysis, report_text: str) -> str:
     for note in analysis.notes:
         lines.append(f"  [{note.severity}] {note.text}")
     lines.append("")
-    lines.append(report_text.rstrip())
+    lines.extend(report_text.rstrip().split("\n"))  # the report's own lines (its texts are escaped)
     lines.append("")
     lines.append("All procedures side by side:")
     for row in analysis.robustness.rows:
@@ -133,7 +140,7 @@ def _readable(analysis, report_text: str) -> str:
         lines.append(f"  {row.name}: {row.estimate_name} {row.estimate:.6g}{p}; {verdict}")
     lines.append("  The tests counted agree." if analysis.robustness.agree
                  else "  The tests counted do not all agree: read the reasons above.")
-    return "\n".join(lines) + "\n"
+    return lines
 
 
 def _columns(args, out: TextIO) -> None:
@@ -141,14 +148,12 @@ def _columns(args, out: TextIO) -> None:
 
     table = io.read_table(args.path, sheet=args.sheet)
     proposal = io.propose_layout(table)
-    out.write(f"{args.path.name}: {len(table.frame)} rows")
-    out.write(f", sheet '{table.sheet}'\n" if table.sheet else "\n")
-    for name, kind in table.column_kinds.items():
-        out.write(f"  {name}: {kind}\n")
-    out.write(f"Suggested layout: {proposal.layout}; group column: {proposal.group_column}; "
-              f"value column(s): {', '.join(proposal.value_columns)}\n")
-    for reason in proposal.reasons:
-        out.write(f"  {reason}\n")
+    lines = [f"{args.path.name}: {len(table.frame)} rows" + (f", sheet '{table.sheet}'" if table.sheet else "")]
+    lines += [f"  {name}: {kind}" for name, kind in table.column_kinds.items()]
+    lines.append(f"Suggested layout: {proposal.layout}; group column: {proposal.group_column}; "
+                 f"value column(s): {', '.join(proposal.value_columns)}")
+    lines += [f"  {reason}" for reason in proposal.reasons]
+    _write_lines(out, lines)
 
 
 def main(argv: Sequence[str] | None = None, *, out: TextIO | None = None, err: TextIO | None = None) -> int:

@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+from .text import visible
+
 __all__ = [
     "TwofoldError",
     "FileProblem",
@@ -21,9 +23,9 @@ class TwofoldError(Exception):
     """
 
     def __init__(self, message: str) -> None:
-        # Labels and cell texts quoted in a message may hold line breaks; the message stays one
-        # line, with each break written as \n.
-        message = message.replace("\r\n", "\\n").replace("\n", "\\n").replace("\r", "\\n")
+        # Labels and cell texts quoted in a message may hold line breaks, terminal escapes or
+        # direction overrides; the message stays one line, with each written as an escape.
+        message = visible(message)
         super().__init__(message)
         self.message = message
 

@@ -10,6 +10,8 @@ import math
 import textwrap
 from dataclasses import dataclass
 
+from .text import visible, visible_html
+
 __all__ = ["ReportText", "DisplayNumbers", "render", "display_numbers", "format_p", "format_number",
            "format_shape", "format_interval", "p_clause"]
 
@@ -556,7 +558,7 @@ def _shares(columns) -> list[str]:
 
 
 def _html(paragraph: str, rows, head, body) -> str:
-    e = html.escape
+    e = visible_html  # labels from the file are text: no markup, no control or direction characters
     names, values = _shares([((), [name for name, _ in rows]), ([value for _, value in rows], ())])
     out = [f"<p>{e(paragraph)}</p>", f'<table width="100%" style="{_TABLE}">']
     for name, value in rows:
@@ -576,6 +578,9 @@ def _html(paragraph: str, rows, head, body) -> str:
 
 
 def _plain(paragraph: str, rows, head, body) -> str:
+    # labels from the file with their control and direction characters written as escapes
+    rows = [(visible(name), visible(value)) for name, value in rows]
+    head, body = [visible(h) for h in head], [[visible(cell) for cell in line] for line in body]
     out = [textwrap.fill(paragraph, PLAIN_WIDTH), ""]
     width = max(len(name) for name, _ in rows)
     for name, value in rows:
@@ -629,7 +634,7 @@ def render(analysis, *, procedure: str | None = None) -> ReportText:
     numbers = display_numbers(analysis, procedure)  # refuses a procedure that was not run
     key = procedure or analysis.recommendation.key
     result = analysis.procedures[key]
-    paragraph = _paragraph(analysis, key, result, numbers)
+    paragraph = visible(_paragraph(analysis, key, result, numbers))  # one line, as it is shown
     rows = _result_rows(analysis, key, result, numbers)
     head, body = _summary_rows(analysis, _summary_decimals(analysis, numbers.decimals))
     return ReportText(paragraph=paragraph, html=_html(paragraph, rows, head, body),

@@ -3,8 +3,8 @@
 from __future__ import annotations
 
 import configparser
+import re
 import shlex
-import xml.etree.ElementTree as ElementTree
 
 import pytest
 
@@ -12,21 +12,26 @@ from desktop import desktop_entry
 from desktop.desktop_entry import (
     FILE_TYPES,
     PROG_ID,
+    RegistrationProblem,
     data_home,
     exec_line,
     install_linux,
     linux_files,
+    next_steps,
     uninstall_linux,
     windows_command_line,
     windows_registry_entries,
 )
 
-# reference: the MIME types registered with IANA for the four formats (RFC 4180 for text/csv;
-# IANA media-type registry for the others)
+# reference: the MIME types registered with IANA for the six formats (RFC 4180 for text/csv;
+# RFC 2046 for text/plain; IANA media-type registry for the others); each is also defined, with
+# its file-name pattern, in shared-mime-info's freedesktop.org.xml
 IANA_TYPES = {
     ".csv": "text/csv",
     ".tsv": "text/tab-separated-values",
+    ".txt": "text/plain",
     ".xlsx": "application/vnd.openxmlformats-officedocument.spreadsheetml.sheet",
+    ".xls": "application/vnd.ms-excel",
     ".ods": "application/vnd.oasis.opendocument.spreadsheet",
 }
 
@@ -46,7 +51,7 @@ def test_data_home_follows_xdg_rules(tmp_path):
     assert str(data_home({"XDG_DATA_HOME": "relative/dir", "HOME": "/home/x"})) == "/home/x/.local/share"
 
 
-def test_install_writes_the_three_files(tmp_path, monkeypatch):
+def test_install_writes_the_entry_and_the_icon(tmp_path, monkeypatch):
     monkeypatch.setenv("XDG_DATA_HOME", str(tmp_path / "share"))
     monkeypatch.setattr(desktop_entry.shutil, "which", lambda name: None)  # no cache tools here
     entry_path = install_linux(data_home(), command=["/opt/tf/bin/twofold"])
@@ -64,20 +69,14 @@ def test_install_writes_the_three_files(tmp_path, monkeypatch):
     assert entry["MimeType"].endswith(";")
     assert set(entry["MimeType"].rstrip(";").split(";")) == set(IANA_TYPES.values())
 
-    package = ElementTree.parse(share / "mime" / "packages" / "twofold.xml").getroot()
-    namespace = "{http://www.freedesktop.org/standards/shared-mime-info}"
-    # reference: Shared MIME-info Database 0.21 - <mime-info> root, <mime-type type=...><glob pattern=.../>
-    assert package.tag == f"{namespace}mime-info"
-    globs = {t.get("type"): [g.get("pattern") for g in t.findall(f"{namespace}glob")]
-             for t in package.findall(f"{namespace}mime-type")}
-    assert globs == {mime: [f"*{ext}"] for ext, mime in IANA_TYPES.items()}
+    # the types are the system's own: nothing in the user's MIME database renames them
+    assert not (share / "mime").exists()
 
     icon = share / "icons" / "hicolor" / "scalable" / "apps" / "twofold.svg"
     assert icon.read_text(encoding="utf-8").lstrip().startswith("<svg")
 
     uninstall_linux(data_home())
     assert not entry_path.exists() and not icon.exists()
-    assert not (share / "mime" / "packages" / "twofold.xml").exists()
 
 
 def test_install_runs_the_cache_tools_when_present(tmp_path, monkeypatch):
@@ -85,8 +84,23 @@ def test_install_runs_the_cache_tools_when_present(tmp_path, monkeypatch):
     monkeypatch.setattr(desktop_entry.shutil, "which", lambda name: f"/usr/bin/{name}")
     monkeypatch.setattr(desktop_entry.subprocess, "run", lambda args, **kw: calls.append(args))
     install_linux(tmp_path, command=["twofold"])
-    assert calls == [["/usr/bin/update-desktop-database", str(tmp_path / "applications")],
-                     ["/usr/bin/update-mime-database", str(tmp_path / "mime")]]
+    assert calls == [["/usr/bin/update-desktop-database", str(tmp_path / "applications")]]
+
+
+def test_the_mime_package_of_earlier_versions_is_taken_away(tmp_path, monkeypatch):
+    # it gave text/csv and the other common types comments of its own, over every other
+    # program's names for them in the user's MIME database
+    calls = []
+    monkeypatch.setattr(desktop_entry.shutil, "which", lambda name: f"/usr/bin/{name}")
+    monkeypatch.setattr(desktop_entry.subprocess, "run", lambda args, **kw: calls.append(args))
+    old = tmp_path / "mime" / "packages" / "twofold.xml"
+    old.parent.mkdir(parents=True)
+    old.write_text('<mime-info><mime-type type="text/csv"><comment>x</comment></mime-type></mime-info>')
+    other = old.with_name("someone-else.xml")
+    other.write_text("<mime-info/>")
+    install_linux(tmp_path, command=["twofold"])
+    assert not old.exists() and other.exists()
+    assert ["/usr/bin/update-mime-database", str(tmp_path / "mime")] in calls
 
 
 def test_file_types_are_the_registered_ones():
@@ -103,6 +117,27 @@ def test_file_types_are_the_registered_ones():
 ])
 def test_exec_line_quoting(command, expected):
     assert exec_line(command) == expected
+
+
+@pytest.mark.parametrize("folder, words", [
+    ("/home/a\nb", "a line break"),
+    ("/home/a\rb", "a line break"),
+    ("/home/a\x1bb", "control character (U+001B)"),
+    ("/home/a\tb", "control character (U+0009)"),
+    ("/home/caf\udce9", "not UTF-8"),  # a Latin-1 byte in a UTF-8 system's file name
+])
+def test_a_path_the_entry_cannot_hold_is_refused_before_anything_is_written(folder, words, tmp_path):
+    # reference: Desktop Entry Specification 1.5, "Possible value types": values are UTF-8 and
+    # hold no control characters; a line break would end the Exec line and start a new key
+    command = [f"{folder}/.venv/bin/python", "-m", "desktop"]
+    with pytest.raises(RegistrationProblem, match=re.escape(words)) as caught:
+        exec_line(command)
+    message = str(caught.value)
+    assert "\n" not in message and "\x1b" not in message and "\udce9" not in message
+    assert "Move Twofold" in message
+    with pytest.raises(OSError):  # what the command and the window catch
+        install_linux(tmp_path / "share", command=command)
+    assert not (tmp_path / "share").exists()
 
 
 def test_exec_line_round_trips_through_a_shell_like_split():
@@ -132,7 +167,7 @@ def test_windows_registry_entries():
     assert by_key[(f"{base}\\{PROG_ID}\\DefaultIcon", "")] == r"C:\Twofold\twofold.ico"
     assert by_key[(f"{base}\\{PROG_ID}\\shell\\open\\command", "")] == \
         r'"C:\Program Files\Python311\pythonw.exe" -m desktop "%1"'
-    for extension in (".csv", ".tsv", ".xlsx", ".ods"):
+    for extension in IANA_TYPES:
         assert by_key[(f"{base}\\{extension}\\OpenWithProgids", PROG_ID)] == ""
     # nothing takes over a type's default program (the .ext key's own default value)
     assert not any(e.key in {f"{base}\\{x}" for x in FILE_TYPES} and e.name == "" for e in entries)
@@ -160,3 +195,24 @@ def test_main_reports_a_failed_registration(monkeypatch, capsys):
     monkeypatch.setattr(desktop_entry.sys, "platform", "darwin")
     assert main(["--install-desktop-entry"]) == 1
     assert "Open With" in capsys.readouterr().err
+
+
+@pytest.mark.parametrize("has_xdg_mime", [True, False])
+def test_next_steps_say_where_it_appears_and_how_to_make_it_the_default(has_xdg_mime):
+    lines = next_steps("/home/x/.local/share/applications/twofold.desktop", platform="linux",
+                       environ={"HOME": "/home/x"}, has_xdg_mime=has_xdg_mime)
+    text = "\n".join(lines)
+    assert "/home/x/.local/share/applications/twofold.desktop" in lines[0]
+    assert "Open With" in text and "applications menu" in text and "default" in text
+    for extension in IANA_TYPES:
+        assert extension in text
+    if has_xdg_mime:
+        assert "xdg-mime default twofold.desktop text/csv text/tab-separated-values" in text
+    else:
+        # reference: "Association between MIME types and applications" 1.0.1 - defaults are
+        # "type=entry.desktop" lines under [Default Applications] in $XDG_CONFIG_HOME/mimeapps.list
+        assert "xdg-mime" in text and "not installed" in text
+        assert "text/csv=twofold.desktop" in text and "[Default Applications]" in text
+        assert "/home/x/.config/mimeapps.list" in text
+    windows = "\n".join(next_steps("HKEY_CURRENT_USER\\Software\\Classes\\Twofold.DataFile", platform="win32"))
+    assert "Open with" in windows and "Always use this app" in windows and "xdg" not in windows
