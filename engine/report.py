@@ -13,15 +13,8 @@ from dataclasses import dataclass
 __all__ = ["ReportText", "DisplayNumbers", "render", "display_numbers", "format_p", "format_number",
            "format_shape", "format_interval", "p_clause"]
 
-# Below this a p-value is written as "< 0.001" (common practice in journals).
-P_FLOOR = 0.001
-# Significant digits kept in a p-value at or above the floor (common practice: two).
-P_DIGITS = 2
-# Plain numbers outside [SMALL, LARGE) in size are written in scientific notation.
-SCIENTIFIC_SMALL = 1e-4
-SCIENTIFIC_LARGE = 1e9
-NOT_AVAILABLE = "n/a"
-
+from .rounding import (NOT_AVAILABLE, P_CEILING, P_FLOOR, SCIENTIFIC_LARGE, SCIENTIFIC_SMALL, fixed,
+                       format_number, format_p, format_shape, p_clause, shared_decimals)
 
 @dataclass(frozen=True)
 class ReportText:
@@ -32,101 +25,11 @@ class ReportText:
     plain: str
 
 
-def format_p(p: float | None) -> str:
-    """A p-value for display: two significant digits, or "< 0.001" below 0.001.
-
-    Parameters
-    ----------
-    p : float or None
-        The p-value; None or NaN gives "n/a".
-
-    Returns
-    -------
-    str
-        For example "0.031", "0.0042", "0.27", "1.0" or "< 0.001".
-
-    Notes
-    -----
-    A value is compared with 0.001 before rounding, so 0.0009999 is "< 0.001" and 0.001 is
-    "0.0010". Values are rounded to two significant digits and written with fixed decimals.
-
-    References
-    ----------
-    American Psychological Association (2020). Publication Manual, 7th ed., section 6.36
-    (exact p-values, "< .001" below one in a thousand).
-    """
-    if p is None or not math.isfinite(p):
-        return NOT_AVAILABLE
-    p = min(max(float(p), 0.0), 1.0)
-    if p < P_FLOOR:
-        return f"< {P_FLOOR:g}"
-    return _fixed_significant(p, P_DIGITS)
-
-
-def p_clause(p: float | None) -> str:
-    """"p = 0.031" or "p < 0.001" (the p-value as it sits in a sentence)."""
-    text = format_p(p)
-    return f"p {text}" if text.startswith("<") else f"p = {text}"
-
-
-def format_number(value: float | None, *, digits: int = 3) -> str:
-    """A number rounded to ``digits`` significant digits for display.
-
-    Parameters
-    ----------
-    value : float or None
-        The number; None or NaN gives "n/a", infinities "infinity"/"-infinity".
-    digits : int, keyword-only
-        Significant digits kept (at least 1). Digits left of the decimal point are never
-        dropped: 1234.56 with three digits is "1235".
-
-    Returns
-    -------
-    str
-        Fixed-point text such as "4.12", "0.0123" or "-7.00"; scientific ("1.23e-05") for
-        magnitudes below 1e-4 or from 1e9 up.
-
-    Notes
-    -----
-    With e = floor(log10 |v|) the number of decimals is max(0, digits - 1 - e), computed after
-    rounding so that 9.996 becomes "10.0" rather than "10.00".
-    """
-    if value is None or (isinstance(value, float) and math.isnan(value)):
-        return NOT_AVAILABLE
-    value = float(value)
-    if math.isnan(value):
-        return NOT_AVAILABLE
-    if math.isinf(value):
-        return "infinity" if value > 0 else "-infinity"
-    digits = max(1, int(digits))
-    if value == 0:
-        return "0"
-    size = abs(value)
-    if size < SCIENTIFIC_SMALL or size >= SCIENTIFIC_LARGE:
-        return f"{value:.{digits - 1}e}"
-    return _fixed_significant(value, digits)
-
-
-def _decimals_for(value: float, digits: int) -> int:
-    """Decimals that show ``value`` to ``digits`` significant digits (after rounding)."""
-    if value == 0:
-        return 0
-    rounded = float(f"{value:.{digits - 1}e}")
-    exponent = math.floor(math.log10(abs(rounded)))
-    return max(0, digits - 1 - exponent)
-
-
-def _fixed_significant(value: float, digits: int) -> str:
-    text = f"{value:.{_decimals_for(value, digits)}f}"
-    return text[1:] if text.startswith("-") and float(text) == 0 else text
-
-
 # -- the report -----------------------------------------------------------------------------------
 
 # Standardised effect sizes are shown with two decimals (common practice), more when a narrow
 # interval would otherwise show the same number at both ends (very large groups).
 EFFECT_DECIMALS = 2
-EFFECT_DECIMALS_MAX = 4
 # Significant digits of estimates, intervals and statistics in the text.
 DIGITS = 3
 # Width at which the plain-text paragraph is wrapped.
@@ -190,31 +93,12 @@ def _level(level: float) -> str:
 
 
 def _decimals_shared(values, digits: int = DIGITS) -> int | None:
-    """Decimals that show the largest of ``values`` to ``digits`` significant digits (None: use
-    scientific notation for each)."""
-    finite = [abs(v) for v in values if v is not None and math.isfinite(v)]
-    if not finite or max(finite) == 0:
-        return 0
-    largest = max(finite)
-    if largest < SCIENTIFIC_SMALL or largest >= SCIENTIFIC_LARGE:
-        return None
-    return _decimals_for(largest, digits)
+    """Decimals for numbers shown together (see :func:`engine.rounding.shared_decimals`)."""
+    return shared_decimals(values, digits)
 
 
 def _fixed(value: float | None, decimals: int | None, digits: int = DIGITS) -> str:
-    if value is None or not math.isfinite(value) or decimals is None:
-        return format_number(value, digits=digits)
-    text = f"{value:.{decimals}f}"
-    return text[1:] if text.startswith("-") and float(text) == 0 else text
-
-
-def format_shape(value: float | None) -> str:
-    """A skewness or excess kurtosis for display: two significant digits, and "0.00" for a
-    size below 0.005 (a symmetric sample computes to some 1e-15, which is rounding, not
-    shape)."""
-    if value is not None and abs(value) < 0.005:  # NaN compares False and stays "n/a"
-        return "0.00"
-    return format_number(value, digits=2)
+    return fixed(value, decimals, digits=digits)
 
 
 def format_interval(interval, *, decimals: int | None = None, digits: int = DIGITS) -> str | None:
@@ -261,14 +145,11 @@ def _statistic_text(key: str, value: float | None) -> str | None:
 
 
 def _effect_decimals(effect) -> int:
-    """Two decimals, or more (up to ``EFFECT_DECIMALS_MAX``) until the interval's ends differ."""
-    low, high = effect.interval.low, effect.interval.high
-    decimals = EFFECT_DECIMALS
-    if low is None or high is None or not (math.isfinite(low) and math.isfinite(high)):
-        return decimals
-    while decimals < EFFECT_DECIMALS_MAX and f"{low:.{decimals}f}" == f"{high:.{decimals}f}":
-        decimals += 1
-    return decimals
+    """Two decimals, or more until the value and the interval's ends that differ read
+    differently."""
+    values = [effect.value, effect.interval.low, effect.interval.high]
+    decimals = shared_decimals(values, start=EFFECT_DECIMALS)
+    return EFFECT_DECIMALS if decimals is None else decimals
 
 
 def _effect_for(analysis, key: str):
@@ -305,8 +186,9 @@ def display_numbers(analysis, procedure: str | None = None) -> DisplayNumbers:
     Notes
     -----
     The estimate and both interval ends share one number of decimals: enough to show the largest
-    of them to three significant digits. Standardised effect sizes get two decimals, more (up to
-    four) while the two ends of their interval would otherwise read alike. p-values follow
+    of them to three significant digits, more while two of them that differ would read alike
+    (:func:`engine.rounding.shared_decimals`). Standardised effect sizes get two decimals, more
+    while the value and the ends of their interval would otherwise read alike. p-values follow
     :func:`format_p`.
 
     References

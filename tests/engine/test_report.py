@@ -402,7 +402,7 @@ def test_the_paragraph_says_what_the_result_means_at_the_chosen_level(shift, alt
         assert "do not give clear evidence" in text and "does not show the groups are the same" in text
 
 
-@pytest.mark.parametrize("value, text", [(-9.2e-15, "0.00"), (0.0049, "0.00"), (-0.0051, "-0.0051"),
+@pytest.mark.parametrize("value, text", [(-9.2e-15, "0.00"), (0.0049, "0.0049"), (-0.0051, "-0.0051"),
                                          (4.567, "4.6"), (-1.2, "-1.2"), (21.3, "21"), (float("nan"), "n/a")])
 def test_format_shape_hides_rounding_noise_only(value, text):
     assert report.format_shape(value) == text
