@@ -21,6 +21,7 @@ from PySide6.QtWidgets import (QAbstractItemView, QApplication, QFileDialog, QHe
 
 from engine import report
 from engine.errors import FileProblem
+from engine.side_by_side import NO_INTERVAL_WHY
 
 from . import clipboard, export
 from .choice_panel import FlowLayout, heading, hint_and_body, text_label
@@ -29,12 +30,8 @@ from .plots import BoxPlot, IntervalPlot, document_palette, plot_image, save_plo
 
 __all__ = ["FindingsPanel", "GENERAL_CAUTIONS", "STATISTIC_TIPS"]
 
-# Shown after the suggestion's own cautions (which already cover p-values, passing checks and
-# regulated work).
-GENERAL_CAUTIONS = (
-    "These procedures assume two independent groups; paired or repeated measurements need a "
-    "paired procedure.",
-)
+# Shown after the suggestion's own cautions (worded in the engine, shared with the report).
+GENERAL_CAUTIONS = report.GENERAL_CAUTIONS
 
 # One sentence per statistic, shown when the pointer rests on a row of the table.
 STATISTIC_TIPS = {
@@ -137,6 +134,9 @@ class FindingsPanel(QWidget):
                              "estimate; the dashed line is no difference. The highlighted line is "
                              "the procedure the findings follow.")
         layout.addWidget(self.plot)
+        self.no_interval = text_label()  # why a row of the plot has a dot but no line
+        self.no_interval.setVisible(False)
+        layout.addWidget(self.no_interval)
 
         layout.addWidget(heading("About this procedure"))
         self.method = text_label()
@@ -178,8 +178,7 @@ class FindingsPanel(QWidget):
     def cautions_list(self) -> list[str]:
         """The suggestion's own cautions, then the ones that hold for every comparison."""
         analysis = self.session.analysis
-        own = list(analysis.recommendation.cautions) if analysis is not None else []
-        return own + list(GENERAL_CAUTIONS)
+        return report.cautions(analysis) if analysis is not None else list(GENERAL_CAUTIONS)
 
     def refresh(self) -> None:
         """Show the current analysis (or the hint when there is none)."""
@@ -265,7 +264,11 @@ class FindingsPanel(QWidget):
         labels = analysis.groups.labels
         self.plot.show_rows(robustness.rows, picked=key,
                             axis_label=f"difference, {labels[0]} minus {labels[1]}")
-        self.agreement.setText(_agreement_text(robustness))
+        self.agreement.setText(report.agreement(analysis))
+        why = [NO_INTERVAL_WHY.get(row.key, "") for row in robustness.rows if row.interval is None]
+        why = [text for text in dict.fromkeys(why) if text]
+        self.no_interval.setText(" ".join(why))
+        self.no_interval.setVisible(bool(why))
 
     # -- into a document -----------------------------------------------------------------------
     def copy_findings(self) -> None:
@@ -329,21 +332,6 @@ class FindingsPanel(QWidget):
         else:
             self.status.setText(f"Saved {Path(written).name}.")
         self.status.setVisible(True)
-
-
-def _agreement_text(robustness) -> str:
-    rows = robustness.rows
-    level = export.level_text(robustness.level)
-    finding = [row.name for row in rows if row.finds_difference]
-    if not rows:
-        return "No procedure gave an interval or a p-value."
-    if robustness.agree:
-        verdict = "all find a difference" if finding else "none finds a clear difference"
-        return f"The {len(rows)} procedures agree at the {level} level: {verdict}."
-    others = [row.name for row in rows if not row.finds_difference]
-    return (f"The procedures disagree at the {level} level. A difference is found by "
-            f"{', '.join(finding)}, but not by {', '.join(others)}; the answer depends on the "
-            "procedure, so lean on the size of the difference and its interval.")
 
 
 def _document_image(plot, draw) -> QImage:

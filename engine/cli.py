@@ -106,23 +106,24 @@ def _analyze(args, out: TextIO) -> None:
 
 
 def _readable(analysis, report_text: str) -> str:
+    """The plain summary: the file and its screening, the report of the suggested procedure
+    (which carries every procedure side by side, the reasons for the suggestion and the
+    alternatives weighed, and the checks), then the cautions."""
+    from .report import cautions
+
     lines = [f"File: {analysis.source.get('file')}"]
-    for summary in analysis.summaries:
-        lines.append(f"  {summary.label}: n = {summary.n}, mean {summary.mean:.6g}, sd {summary.sd:.6g}, "
-                     f"median {summary.median:.6g}, range {summary.min:.6g} to {summary.max:.6g}")
     screening = analysis.screening
     if screening is not None:
         for finding in screening.findings:
             lines.append(f"  [{finding.severity}] {finding.text}")
     lines.append("")
+    lines.append(f"Suggested procedure: {analysis.recommendation.name}")
+    lines.append("")
     lines.append(report_text.rstrip())
     lines.append("")
-    lines.append("All procedures side by side:")
-    for row in analysis.robustness.rows:
-        verdict = "finds a difference" if row.finds_difference else "finds no clear difference"
-        p = "" if row.p_value is None else f", p = {row.p_value:.4g}"
-        lines.append(f"  {row.name}: {row.estimate_name} {row.estimate:.6g}{p}; {verdict}")
-    lines.append("  They agree." if analysis.robustness.agree else "  They do not all agree: read the reasons above.")
+    lines.append("Before relying on this")
+    lines.append("")
+    lines += [f"- {caution}" for caution in cautions(analysis)]
     return "\n".join(lines) + "\n"
 
 

@@ -1,4 +1,4 @@
-"""A finished analysis as words: one paragraph, an HTML fragment with a table, and plain text.
+"""A finished analysis as words: one paragraph, an HTML fragment with tables, and plain text.
 
 This is the only module that rounds numbers for display (``format_number``, ``format_p``).
 """
@@ -7,14 +7,18 @@ from __future__ import annotations
 
 import html
 import math
-import textwrap
 from dataclasses import dataclass
 
 __all__ = ["ReportText", "DisplayNumbers", "render", "display_numbers", "format_p", "format_number",
-           "format_shape", "format_interval", "p_clause"]
+           "format_shape", "format_interval", "p_clause", "plural", "agreement", "cautions",
+           "GLOSSES", "GENERAL_CAUTIONS"]
 
 from .rounding import (NOT_AVAILABLE, P_CEILING, P_FLOOR, SCIENTIFIC_LARGE, SCIENTIFIC_SMALL, fixed,
                        format_number, format_p, format_shape, p_clause, shared_decimals)
+from .side_by_side import (against_question, against_sentence, agreement_text, procedure_table,
+                           question_claim, reverse_is_clear)
+from .wording import GLOSSES, gloss_line, plural
+
 
 @dataclass(frozen=True)
 class ReportText:
@@ -32,8 +36,6 @@ class ReportText:
 EFFECT_DECIMALS = 2
 # Significant digits of estimates, intervals and statistics in the text.
 DIGITS = 3
-# Width at which the plain-text paragraph is wrapped.
-PLAIN_WIDTH = 88
 
 # The effect size that goes with each procedure's question.
 EFFECT_FOR: dict[str, tuple[str, ...]] = {
@@ -335,16 +337,17 @@ def _verdict(analysis, key: str, result, numbers: DisplayNumbers) -> str:
     """What the result says at the chosen level, so that a sample difference is not read as a
     finding when the data cannot tell it from chance (and the reverse)."""
     row = next((r for r in analysis.robustness.rows if r.key == key), None)
-    if row is None:
+    labels = analysis.groups.labels
+    against = against_question(result.alternative, result.estimate)
+    if row is None and not against:
         return ""
-    first, second = analysis.groups.labels
-    if result.alternative == "two-sided":
-        claim = "a difference between the groups"
-    else:
-        word = "higher" if result.alternative == "greater" else "lower"
-        claim = f"{first} being {word} than {second}"
-    if row.finds_difference:
+    claim = question_claim(result.alternative, labels)
+    if row is not None and row.finds_difference:
         return f"At {numbers.level} confidence the data give clear evidence of {claim}."
+    if against:
+        clear = reverse_is_clear(result.p_value, analysis.options.confidence_level)
+        return (f"At {numbers.level} confidence the data give no evidence of {claim}, the "
+                f"direction asked about. {against_sentence(result.alternative, labels, clear)}")
     return (f"At {numbers.level} confidence the data do not give clear evidence of {claim}; "
             "that does not show the groups are the same.")
 
@@ -381,8 +384,10 @@ def _paragraph(analysis, key: str, result, numbers: DisplayNumbers) -> str:
 
 def _result_rows(analysis, key: str, result, numbers: DisplayNumbers) -> list[tuple[str, str]]:
     sided = "one-sided " if result.alternative != "two-sided" else ""
+    first, second = analysis.groups.labels
     rows = [("Procedure", result.name),
-            (result.estimate_name[:1].upper() + result.estimate_name[1:], numbers.estimate)]
+            (f"{result.estimate_name[:1].upper()}{result.estimate_name[1:]}, {first} minus {second}",
+             numbers.estimate)]
     if numbers.interval is not None:
         rows.append((f"{sided}{numbers.level} confidence interval".capitalize(), numbers.interval))
     label = STATISTIC_LABEL.get(key)
@@ -437,39 +442,155 @@ def _shares(columns) -> list[str]:
     return [f' width="{100 * w / sum(weights):.0f}%"' for w in weights]
 
 
-def _html(paragraph: str, rows, head, body) -> str:
+# Tables keep their rows whole across pages (a word processor otherwise splits a row and may
+# leave an empty one behind).
+_KEEP = "page-break-inside: avoid;"
+
+
+def _html_pairs(rows) -> list[str]:
     e = html.escape
     names, values = _shares([((), [name for name, _ in rows]), ([value for _, value in rows], ())])
-    out = [f"<p>{e(paragraph)}</p>", f'<table width="100%" style="{_TABLE}">']
+    out = [f'<table width="100%" style="{_TABLE}">']
     for name, value in rows:
-        out.append(f'<tr><th{names}{_ONE_LINE}>{e(name)}</th><td{values} style="{_CELL}">{e(value)}</td></tr>')
+        out.append(f'<tr style="{_KEEP}"><th{names}{_ONE_LINE}>{e(name)}</th>'
+                   f'<td{values} style="{_CELL}">{e(value)}</td></tr>')
     out.append("</table>")
-    out.append("<p>&nbsp;</p>")  # keeps the two tables apart when pasted
-    out.append(f'<table width="100%" style="{_TABLE}">')
+    return out
+
+
+def _html_grid(head, body, text_columns: int, wrap: bool) -> list[str]:
+    """A table with a heading row; the first ``text_columns`` columns are text (left-aligned),
+    the rest numbers (right-aligned, on one line); ``wrap`` lets the text cells wrap."""
+    e = html.escape
+    text_cell = f' style="{_CELL}"' if wrap else _ONE_LINE
     widths = _shares([([line[j] for line in body], [h]) for j, h in enumerate(head)])
-    out.append("<tr>" + "".join(f"<th{w}{_ONE_LINE}>{e(h)}</th>" for w, h in zip(widths, head)) + "</tr>")
+    out = [f'<table width="100%" style="{_TABLE}">',
+           f'<thead><tr style="{_KEEP}">' + "".join(f"<th{w}{text_cell if wrap else _ONE_LINE}>{e(h)}</th>"
+                                                    for w, h in zip(widths, head)) + "</tr></thead>",
+           "<tbody>"]
     for line in body:
-        cells = [f"<td{_ONE_LINE}>{e(line[0])}</td>"]
-        cells += [f"<td{_ONE_LINE_NUMBER}>{e(cell)}</td>" for cell in line[1:]]
-        out.append("<tr>" + "".join(cells) + "</tr>")
-    out.append("</table>")
-    out.append(f'<p style="font-size: smaller;">{e(CAUTION_LINE)}</p>')
+        cells = [f"<td{text_cell}>{e(cell)}</td>" for cell in line[:text_columns]]
+        cells += [f"<td{_ONE_LINE_NUMBER}>{e(cell)}</td>" for cell in line[text_columns:]]
+        out.append(f'<tr style="{_KEEP}">' + "".join(cells) + "</tr>")
+    out += ["</tbody>", "</table>"]
+    return out
+
+
+def _html(blocks) -> str:
+    """The report's blocks as an HTML fragment (paragraphs, headings, lists and tables)."""
+    e = html.escape
+    out: list[str] = []
+    for kind, *content in blocks:
+        if kind == "p":
+            out.append(f"<p>{e(content[0])}</p>")
+        elif kind == "small":
+            out.append(f'<p style="font-size: smaller;">{e(content[0])}</p>')
+        elif kind == "h":
+            out.append(f"<h3>{e(content[0])}</h3>")
+        elif kind == "list":
+            out.append("<ul>" + "".join(f"<li>{e(item)}</li>" for item in content[0]) + "</ul>")
+        elif kind == "pairs":
+            out += _html_pairs(content[0])
+        elif kind == "grid":
+            out += _html_grid(*content)
     return "\n".join(out)
 
 
-def _plain(paragraph: str, rows, head, body) -> str:
-    out = [textwrap.fill(paragraph, PLAIN_WIDTH), ""]
-    width = max(len(name) for name, _ in rows)
-    for name, value in rows:
-        out.append(f"{name.ljust(width)}  {value}")
-    out.append("")
+def _plain_grid(head, body, text_columns: int) -> list[str]:
     widths = [max(len(line[i]) for line in [head, *body]) for i in range(len(head))]
+    out = []
     for line in [head, *body]:
-        cells = [line[0].ljust(widths[0])] + [cell.rjust(w) for cell, w in zip(line[1:], widths[1:])]
+        cells = [cell.ljust(w) for cell, w in zip(line[:text_columns], widths)]
+        cells += [cell.rjust(w) for cell, w in zip(line[text_columns:], widths[text_columns:])]
         out.append("  ".join(cells).rstrip())
-    out.append("")
-    out.append(textwrap.fill(CAUTION_LINE, PLAIN_WIDTH))
-    return "\n".join(out) + "\n"
+    return out
+
+
+def _plain(blocks) -> str:
+    """The report's blocks as plain text: one line per paragraph (a document or a mail program
+    wraps it to its own width) and tables aligned in columns."""
+    out: list[str] = []
+    for kind, *content in blocks:
+        if kind in ("p", "small"):
+            out += [content[0], ""]
+        elif kind == "h":
+            out += [content[0], ""]
+        elif kind == "list":
+            out += [f"- {item}" for item in content[0]] + [""]
+        elif kind == "pairs":
+            width = max(len(name) for name, _ in content[0])
+            out += [f"{name.ljust(width)}  {value}" for name, value in content[0]] + [""]
+        elif kind == "grid":
+            out += _plain_grid(*content[:3]) + [""]
+    return "\n".join(out).rstrip("\n") + "\n"
+
+
+# Shown after the suggestion's own cautions (which already cover p-values, passing checks and
+# regulated work).
+GENERAL_CAUTIONS = (
+    "These procedures assume two independent groups; paired or repeated measurements need a "
+    "paired procedure.",
+)
+
+
+def cautions(analysis) -> list[str]:
+    """What to keep in mind before relying on the findings: the suggestion's own cautions, then
+    the ones that hold for every comparison."""
+    return list(analysis.recommendation.cautions) + list(GENERAL_CAUTIONS)
+
+
+def agreement(analysis) -> str:
+    """Whether every applicable procedure gives the same answer, in one to three sentences."""
+    robustness = analysis.robustness
+    return agreement_text(robustness, analysis.options.alternative, analysis.groups.labels,
+                          _level(robustness.level))
+
+
+def _side_by_side_blocks(analysis) -> list[tuple]:
+    rows = analysis.robustness.rows
+    if not rows:
+        return []
+    head, body, notes = procedure_table(
+        analysis.robustness, analysis.options.alternative, analysis.groups.labels,
+        _level(analysis.robustness.level),
+        lambda key: _numbers(analysis, key, analysis.procedures[key]))
+    blocks = [("h", "Every applicable procedure side by side"), ("p", agreement(analysis)),
+              ("grid", head, body, 2, True)]
+    blocks += [("small", note) for note in dict.fromkeys(notes)]
+    return blocks
+
+
+def _reason_blocks(analysis, key: str) -> list[tuple]:
+    suggestion = analysis.recommendation
+    title = (f"Why the {suggestion.name}" if key == suggestion.key
+             else f"Why the {suggestion.name} was suggested")
+    blocks = [("h", title)]
+    if suggestion.reasons:
+        blocks.append(("list", list(suggestion.reasons)))
+    weighed = [f"{option.name}: {option.why_not}" for option in suggestion.considered]
+    if weighed:
+        blocks += [("h", "Also weighed"), ("list", weighed)]
+    return blocks
+
+
+def _check_blocks(analysis) -> list[tuple]:
+    diagnostics = analysis.diagnostics
+    readings = [finding.text for finding in getattr(diagnostics, "findings", ())]
+    readings += [note.text for note in getattr(analysis, "notes", ())]
+    if not readings:
+        return []
+    return [("h", "Shape and spread of the groups"), ("list", readings),
+            ("small", gloss_line("skewness", "excess kurtosis", "interquartile range"))]
+
+
+def _blocks(analysis, key: str, paragraph: str, rows, head, body) -> list[tuple]:
+    blocks: list[tuple] = [("p", paragraph), ("pairs", rows), ("h", "The groups"),
+                           ("grid", head, body, 1, False)]
+    blocks += _side_by_side_blocks(analysis)
+    blocks += _reason_blocks(analysis, key)
+    blocks += _check_blocks(analysis)
+    blocks.append(("small", CAUTION_LINE))
+    return blocks
 
 
 def _check_procedure(analysis, key: str) -> None:
@@ -494,8 +615,12 @@ def render(analysis, *, procedure: str | None = None) -> ReportText:
     ReportText
         A paragraph in the usual reporting convention (groups with their summaries, the estimate
         with its interval, the test statistic with degrees of freedom and the p-value, the effect
-        size with its interval, values left out), an HTML fragment with the paragraph and two
-        compact tables, and a plain-text version with aligned tables.
+        size with its interval, values left out); an HTML fragment and a plain-text version
+        that carry what a reviewer asks for: the paragraph, the result and the groups as
+        tables, every applicable procedure side by side (estimate with the direction of the
+        difference, interval, p-value, reading), the reasons for the suggested procedure and
+        the alternatives weighed, and the shape and spread readings with a plain gloss of their
+        terms. Plain-text paragraphs are single lines.
 
     Notes
     -----
@@ -514,5 +639,5 @@ def render(analysis, *, procedure: str | None = None) -> ReportText:
     paragraph = _paragraph(analysis, key, result, numbers)
     rows = _result_rows(analysis, key, result, numbers)
     head, body = _summary_rows(analysis, _summary_decimals(analysis, numbers.decimals))
-    return ReportText(paragraph=paragraph, html=_html(paragraph, rows, head, body),
-                      plain=_plain(paragraph, rows, head, body))
+    blocks = _blocks(analysis, key, paragraph, rows, head, body)
+    return ReportText(paragraph=paragraph, html=_html(blocks), plain=_plain(blocks))

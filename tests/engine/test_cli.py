@@ -105,3 +105,20 @@ def test_text_only_value_column_and_tiny_group(tmp_path):
     path.write_text("site,yield\nA,low\nA,high\nB,low\nB,mid\n")
     code, _, err = run("analyze", str(path), "--value", "yield", "--group", "site")
     assert code == 2 and "yield" in err
+
+
+def test_plain_output_shows_the_suggestion_its_reasons_alternatives_and_cautions():
+    code, out, err = run("analyze", str(DEMO / "bolt_strength.csv"), "--resamples", "300", "--seed", "1")
+    assert code == 0, err
+    document = run_json("analyze", str(DEMO / "bolt_strength.csv"))
+    recommendation = document["recommendation"]
+    lines = out.splitlines()
+    assert f"Suggested procedure: {recommendation['name']}" in lines
+    for reason in recommendation["reasons"]:
+        assert f"- {reason}" in lines
+    for caution in recommendation["cautions"]:
+        assert f"- {caution}" in lines
+    for name in document["procedures"]:
+        assert document["procedures"][name]["name"] in out
+    assert "read the reasons above" not in out
+    assert "north_forge minus south_forge" in out
