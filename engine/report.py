@@ -433,11 +433,11 @@ _ONE_LINE_NUMBER = f' nowrap style="white-space: nowrap; {_NUMBER_CELL}"'
 _BOLD = 1.25  # a bold character is about a quarter wider
 
 
-def _shares(columns) -> list[str]:
+def _shares(columns, padding: int = 3) -> list[str]:
     """Width attributes in per cent of the table for columns of (plain texts, bold texts), in
     proportion to each column's longest text (at most 40 characters, as a long text wraps,
-    and three more for the padding), so that the table fits the page."""
-    weights = [min(40, max([len(t) for t in plain] + [_BOLD * len(t) for t in bold])) + 3
+    and ``padding`` more for the cell's padding), so that the table fits the page."""
+    weights = [min(40, max([len(t) for t in plain] + [_BOLD * len(t) for t in bold])) + padding
                for plain, bold in columns]
     return [f' width="{100 * w / sum(weights):.0f}%"' for w in weights]
 
@@ -447,32 +447,52 @@ def _shares(columns) -> list[str]:
 _KEEP = "page-break-inside: avoid;"
 
 
+# Room a number is given beyond its characters in a wrapping table (Qt's layout breaks a number
+# that does not fit its share, non-breaking spaces or not).
+_NUMBER_ROOM = "   "
+# Characters of a text column of a wrapping table counted for its width (it wraps beyond).
+_WRAP_TEXT = 16
+# A name longer than this may wrap in its cell (it would otherwise squeeze the value column).
+_ONE_LINE_NAME = 32
+
+
 def _html_pairs(rows) -> list[str]:
     e = html.escape
     names, values = _shares([((), [name for name, _ in rows]), ([value for _, value in rows], ())])
     out = [f'<table width="100%" style="{_TABLE}">']
     for name, value in rows:
-        out.append(f'<tr style="{_KEEP}"><th{names}{_ONE_LINE}>{e(name)}</th>'
+        keep = _ONE_LINE if len(name) <= _ONE_LINE_NAME else f' style="{_CELL}"'
+        out.append(f'<tr style="{_KEEP}"><th{names}{keep}>{e(name)}</th>'
                    f'<td{values} style="{_CELL}">{e(value)}</td></tr>')
     out.append("</table>")
     return out
 
 
-def _html_grid(head, body, text_columns: int, wrap: bool) -> list[str]:
-    """A table with a heading row; the first ``text_columns`` columns are text (left-aligned),
-    the rest numbers (right-aligned, on one line); ``wrap`` lets the text cells wrap."""
+def _html_grid(head, body, text_columns: int, wrap: bool, number_columns: int | None = None) -> list[str]:
+    """A table with a heading row: the first ``text_columns`` columns are text (left-aligned),
+    the next ``number_columns`` (default: all the rest) numbers, right-aligned on one line, and
+    any after them text again. With ``wrap`` the headings and text cells may wrap; without it
+    every cell keeps to one line."""
     e = html.escape
     text_cell = f' style="{_CELL}"' if wrap else _ONE_LINE
-    widths = _shares([([line[j] for line in body], [h]) for j, h in enumerate(head)])
+    numbers = range(text_columns, len(head) if number_columns is None else text_columns + number_columns)
+    if wrap:  # a number needs its whole length, a heading its longest word, a text wraps
+        widths = _shares([([line[j] + _NUMBER_ROOM for line in body], h.split()) if j in numbers
+                          else ([line[j][:_WRAP_TEXT] for line in body], h.split()[:1])
+                          for j, h in enumerate(head)], padding=5)
+    else:
+        widths = _shares([([line[j] for line in body], [h]) for j, h in enumerate(head)])
     out = [f'<table width="100%" style="{_TABLE}">',
-           f'<thead><tr style="{_KEEP}">' + "".join(f"<th{w}{text_cell if wrap else _ONE_LINE}>{e(h)}</th>"
-                                                    for w, h in zip(widths, head)) + "</tr></thead>",
-           "<tbody>"]
+           f'<tr style="{_KEEP}">' + "".join(f"<th{w}{text_cell}>{e(h)}</th>"
+                                             for w, h in zip(widths, head)) + "</tr>"]
+    # Beside cells that wrap, a number keeps to one line by its non-breaking spaces: a nowrap
+    # cell there takes the spare width from the text columns in Qt's layout (the PDF).
+    number_cell = _ONE_LINE_NUMBER if not wrap else f' style="{_NUMBER_CELL}"'
     for line in body:
-        cells = [f"<td{text_cell}>{e(cell)}</td>" for cell in line[:text_columns]]
-        cells += [f"<td{_ONE_LINE_NUMBER}>{e(cell)}</td>" for cell in line[text_columns:]]
+        cells = [f"<td{number_cell}>{e(cell).replace(' ', '&nbsp;')}</td>" if j in numbers
+                 else f"<td{text_cell}>{e(cell)}</td>" for j, cell in enumerate(line)]
         out.append(f'<tr style="{_KEEP}">' + "".join(cells) + "</tr>")
-    out += ["</tbody>", "</table>"]
+    out.append("</table>")
     return out
 
 
@@ -496,12 +516,14 @@ def _html(blocks) -> str:
     return "\n".join(out)
 
 
-def _plain_grid(head, body, text_columns: int) -> list[str]:
+def _plain_grid(head, body, text_columns: int, wrap: bool = False, number_columns: int | None = None
+                ) -> list[str]:
+    numbers = range(text_columns, len(head) if number_columns is None else text_columns + number_columns)
     widths = [max(len(line[i]) for line in [head, *body]) for i in range(len(head))]
     out = []
     for line in [head, *body]:
-        cells = [cell.ljust(w) for cell, w in zip(line[:text_columns], widths)]
-        cells += [cell.rjust(w) for cell, w in zip(line[text_columns:], widths[text_columns:])]
+        cells = [cell.rjust(w) if j in numbers else cell.ljust(w)
+                 for j, (cell, w) in enumerate(zip(line, widths))]
         out.append("  ".join(cells).rstrip())
     return out
 
@@ -521,7 +543,7 @@ def _plain(blocks) -> str:
             width = max(len(name) for name, _ in content[0])
             out += [f"{name.ljust(width)}  {value}" for name, value in content[0]] + [""]
         elif kind == "grid":
-            out += _plain_grid(*content[:3]) + [""]
+            out += _plain_grid(*content) + [""]
     return "\n".join(out).rstrip("\n") + "\n"
 
 
@@ -555,7 +577,7 @@ def _side_by_side_blocks(analysis) -> list[tuple]:
         _level(analysis.robustness.level),
         lambda key: _numbers(analysis, key, analysis.procedures[key]))
     blocks = [("h", "Every applicable procedure side by side"), ("p", agreement(analysis)),
-              ("grid", head, body, 2, True)]
+              ("grid", head, body, 2, True, 3)]
     blocks += [("small", note) for note in dict.fromkeys(notes)]
     return blocks
 

@@ -14,7 +14,7 @@ from .rounding import format_p
 from .wording import plural
 
 __all__ = ["against_question", "reverse_is_clear", "question_claim", "row_reading",
-           "agreement_text", "against_sentence", "procedure_table", "NO_INTERVAL_WHY"]
+           "agreement_text", "against_sentence", "procedure_table", "NO_INTERVAL_WHY", "NO_P_VALUE_WHY"]
 
 # Why a procedure gives a p-value but no interval, for the rows that have none.
 NO_INTERVAL_WHY = {
@@ -23,6 +23,9 @@ NO_INTERVAL_WHY = {
                            "same shape and spread; the bootstrap interval of medians gives one."),
 }
 _NO_INTERVAL_DEFAULT = "This procedure gives a p-value but no interval."
+# Why the bootstrap rows have no p-value, and how they are read without one.
+NO_P_VALUE_WHY = ("A bootstrap gives an interval but no p-value; its row reads as finding a "
+                  "difference when the interval leaves out zero.")
 
 
 def against_question(alternative: str, estimate: float | None) -> bool:
@@ -119,7 +122,7 @@ def procedure_table(robustness, alternative: str, labels: tuple[str, str], level
     ``numbers_for(key)`` gives the procedure's :class:`engine.report.DisplayNumbers`. Columns:
     the procedure, what it estimates, the estimate (labelled with the direction of the
     difference), its interval, the p-value and the reading at the chosen level. A row without an
-    interval says why in a note.
+    interval or a p-value says "none", and why in a note under the table.
     """
     sided = "one-sided " if alternative != "two-sided" else ""
     head = ["Procedure", "Estimates", f"Estimate, {labels[0]} minus {labels[1]}",
@@ -129,11 +132,15 @@ def procedure_table(robustness, alternative: str, labels: tuple[str, str], level
     for row in robustness.rows:
         numbers = numbers_for(row.key)
         if numbers.interval is None:
-            interval = "none (see below)"
+            interval = "none"
             notes.append(NO_INTERVAL_WHY.get(row.key, _NO_INTERVAL_DEFAULT))
         else:
             interval = numbers.interval
-        p = "none (interval only)" if row.p_value is None else format_p(row.p_value)
+        if row.p_value is None:
+            p = "none"
+            notes.append(NO_P_VALUE_WHY)
+        else:
+            p = format_p(row.p_value)
         body.append([row.name, row.estimate_name, numbers.estimate, interval, p,
                      row_reading(row, alternative, labels)])
     return head, body, notes

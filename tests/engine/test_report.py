@@ -434,7 +434,7 @@ def test_the_report_carries_every_procedure_the_reasons_and_the_checks(full_anal
     analysis = full_analysis
     text = getattr(render(analysis), form)
     if form == "html":
-        text = "".join(_parse(text).text)
+        text = "".join(_parse(text).text).replace("\xa0", " ")  # numbers keep to one line
     assert "Estimate, north_forge minus south_forge" in text
     assert "Difference in means, north_forge minus south_forge" in text
     for row in analysis.robustness.rows:
@@ -461,7 +461,7 @@ def test_a_row_without_an_interval_says_why(full_analysis):
     assert full_analysis.procedures["permutation_median"].interval is None
     plain = render(full_analysis).plain
     row = next(line for line in plain.splitlines() if line.startswith("permutation test, difference in medians"))
-    assert "none (see below)" in row
+    assert " none " in row
     assert "gives a p-value but no interval" in plain
 
 
