@@ -11,6 +11,7 @@ Run on its own for a quick look: ``python -m desktop.findings_panel``.
 from __future__ import annotations
 
 import html
+from dataclasses import replace
 from pathlib import Path
 from typing import Any
 
@@ -262,7 +263,7 @@ class FindingsPanel(QWidget):
     def _show_robustness(self, analysis, key: str) -> None:
         robustness = analysis.robustness
         labels = analysis.groups.labels
-        self.plot.show_rows(robustness.rows, picked=key,
+        self.plot.show_rows(_labelled_rows(robustness.rows), picked=key,
                             axis_label=f"difference, {labels[0]} minus {labels[1]}")
         self.agreement.setText(report.agreement(analysis))
         why = [NO_INTERVAL_WHY.get(row.key, "") for row in robustness.rows if row.interval is None]
@@ -334,6 +335,11 @@ class FindingsPanel(QWidget):
         self.status.setVisible(True)
 
 
+def _labelled_rows(rows) -> list:
+    """The side-by-side rows with their names as labels (a capital first letter)."""
+    return [replace(row, name=report.capital(row.name)) for row in rows]
+
+
 def _document_image(plot, draw) -> QImage:
     """``plot`` drawn off screen in black on white (as a printed page has it) by ``draw(plot)``."""
     plot.setAttribute(Qt.WidgetAttribute.WA_DontShowOnScreen, True)
@@ -358,7 +364,7 @@ def _report_images(analysis, key: str) -> list[tuple[str, QImage]]:
              (groups.labels[1], groups.y, analysis.summaries[1])]
     return [
         ("Every applicable procedure: the difference and its interval",
-         _document_image(IntervalPlot(), lambda plot: plot.show_rows(analysis.robustness.rows, picked=key,
+         _document_image(IntervalPlot(), lambda plot: plot.show_rows(_labelled_rows(analysis.robustness.rows), picked=key,
                                                                      axis_label=axis))),
         ("The two groups: boxes and the values",
          _document_image(BoxPlot(), lambda plot: plot.show_groups(boxes))),

@@ -12,6 +12,7 @@ from pathlib import Path
 from typing import Sequence, TextIO
 
 from .errors import TwofoldError
+from .wording import plural
 
 __all__ = ["main", "build_parser"]
 
@@ -137,7 +138,8 @@ def _columns(args, out: TextIO) -> None:
     for name, kind in table.column_kinds.items():
         out.write(f"  {name}: {kind}\n")
     out.write(f"Suggested layout: {proposal.layout}; group column: {proposal.group_column}; "
-              f"value column(s): {', '.join(proposal.value_columns)}\n")
+              f"{plural(len(proposal.value_columns), 'value column', number=False)}: "
+              f"{', '.join(proposal.value_columns)}\n")
     for reason in proposal.reasons:
         out.write(f"  {reason}\n")
 

@@ -10,14 +10,14 @@ import math
 from dataclasses import dataclass
 
 __all__ = ["ReportText", "DisplayNumbers", "render", "display_numbers", "format_p", "format_number",
-           "format_shape", "format_interval", "p_clause", "plural", "agreement", "cautions",
+           "format_shape", "format_interval", "p_clause", "plural", "capital", "agreement", "cautions",
            "GLOSSES", "GENERAL_CAUTIONS"]
 
 from .rounding import (NOT_AVAILABLE, P_CEILING, P_FLOOR, SCIENTIFIC_LARGE, SCIENTIFIC_SMALL, fixed,
                        format_number, format_p, format_shape, p_clause, shared_decimals)
 from .side_by_side import (against_question, against_sentence, agreement_text, procedure_table,
                            question_claim, reverse_is_clear)
-from .wording import GLOSSES, gloss_line, plural
+from .wording import GLOSSES, capital, gloss_line, plural
 
 
 @dataclass(frozen=True)
@@ -385,7 +385,7 @@ def _paragraph(analysis, key: str, result, numbers: DisplayNumbers) -> str:
 def _result_rows(analysis, key: str, result, numbers: DisplayNumbers) -> list[tuple[str, str]]:
     sided = "one-sided " if result.alternative != "two-sided" else ""
     first, second = analysis.groups.labels
-    rows = [("Procedure", result.name),
+    rows = [("Procedure", capital(result.name)),
             (f"{result.estimate_name[:1].upper()}{result.estimate_name[1:]}, {first} minus {second}",
              numbers.estimate)]
     if numbers.interval is not None:
@@ -589,7 +589,7 @@ def _reason_blocks(analysis, key: str) -> list[tuple]:
     blocks = [("h", title)]
     if suggestion.reasons:
         blocks.append(("list", list(suggestion.reasons)))
-    weighed = [f"{option.name}: {option.why_not}" for option in suggestion.considered]
+    weighed = [f"{capital(option.name)}: {option.why_not}" for option in suggestion.considered]
     if weighed:
         blocks += [("h", "Also weighed"), ("list", weighed)]
     return blocks

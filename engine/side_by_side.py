@@ -11,7 +11,7 @@ from __future__ import annotations
 from typing import Callable
 
 from .rounding import format_p
-from .wording import plural
+from .wording import capital, plural
 
 __all__ = ["against_question", "reverse_is_clear", "question_claim", "row_reading",
            "agreement_text", "against_sentence", "procedure_table", "NO_INTERVAL_WHY", "NO_P_VALUE_WHY"]
@@ -141,6 +141,6 @@ def procedure_table(robustness, alternative: str, labels: tuple[str, str], level
             notes.append(NO_P_VALUE_WHY)
         else:
             p = format_p(row.p_value)
-        body.append([row.name, row.estimate_name, numbers.estimate, interval, p,
+        body.append([capital(row.name), capital(row.estimate_name), numbers.estimate, interval, p,
                      row_reading(row, alternative, labels)])
     return head, body, notes

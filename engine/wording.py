@@ -6,7 +6,7 @@ glosses of the technical words the checks use.
 
 from __future__ import annotations
 
-__all__ = ["plural", "GLOSSES", "gloss_line"]
+__all__ = ["plural", "capital", "GLOSSES", "gloss_line"]
 
 # Nouns whose plural is not the singular with an "s".
 _IRREGULAR = {"was": "were", "is": "are", "has": "have", "does": "do", "this": "these",
@@ -30,6 +30,12 @@ def plural(count: int, singular: str, plural_form: str | None = None, *, number:
     many = plural_form or _IRREGULAR.get(singular, singular + "s")
     word = singular if count == 1 else many
     return f"{count:,} {word}" if number else word
+
+
+def capital(text: str) -> str:
+    """``text`` with a capital first letter, the style of every label, table cell and list item
+    ("Pooled t-test" beside "Welch t-test"); inside a sentence names stay as they are."""
+    return text[:1].upper() + text[1:]
 
 
 # One short plain explanation per technical word of the checks, for the report and for the

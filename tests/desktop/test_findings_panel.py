@@ -101,7 +101,7 @@ def test_a_pick_switches_the_findings_to_that_procedure(panel, analysis, groups)
 def test_robustness_rows_and_agreement(panel, analysis):
     panel.session.store("analysis", analysis)
     rows = analysis.robustness.rows
-    assert panel.plot.row_names() == [row.name for row in rows]
+    assert panel.plot.row_names() == [report.capital(row.name) for row in rows]
     verdict = "agree" if analysis.robustness.agree else "disagree"
     assert verdict in panel.agreement.text()
     for caution in analysis.recommendation.cautions:

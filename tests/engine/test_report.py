@@ -439,7 +439,7 @@ def test_the_report_carries_every_procedure_the_reasons_and_the_checks(full_anal
     assert "Difference in means, north_forge minus south_forge" in text
     for row in analysis.robustness.rows:
         shown = report.display_numbers(analysis, row.key)
-        assert row.name in text and shown.estimate in text
+        assert report.capital(row.name) in text and shown.estimate in text
         if shown.interval is not None:
             assert shown.interval in text
         if shown.p is not None:
@@ -450,7 +450,7 @@ def test_the_report_carries_every_procedure_the_reasons_and_the_checks(full_anal
     for reason in analysis.recommendation.reasons:
         assert reason in text
     for option in analysis.recommendation.considered:
-        assert option.name in text and option.why_not in text
+        assert report.capital(option.name) in text and option.why_not in text
     for finding in analysis.diagnostics.findings:
         assert finding.text in text
     assert "interquartile range (IQR) is the width of the middle half" in text
@@ -460,7 +460,7 @@ def test_the_report_carries_every_procedure_the_reasons_and_the_checks(full_anal
 def test_a_row_without_an_interval_says_why(full_analysis):
     assert full_analysis.procedures["permutation_median"].interval is None
     plain = render(full_analysis).plain
-    row = next(line for line in plain.splitlines() if line.startswith("permutation test, difference in medians"))
+    row = next(line for line in plain.splitlines() if line.startswith("Permutation test, difference in medians"))
     assert " none " in row
     assert "gives a p-value but no interval" in plain
 
