@@ -153,8 +153,8 @@ def _cell(value: Any) -> str:
 
 
 def _table(rows: Sequence[tuple[str, str]], headings: tuple[str, str], *, short_names: bool = False) -> str:
-    """A two-column table; with ``short_names`` the names keep to one line (beside a checksum,
-    which does, a name that may wrap is squeezed to a letter a line)."""
+    """A table of names and values; with ``short_names`` the names keep to one line (beside a
+    checksum, which does, a name that may wrap is squeezed to a letter a line)."""
     name = "<td nowrap style='white-space: nowrap;'>" if short_names else "<td>"
     head = "".join(f"<th align='left'>{_escape(h)}</th>" for h in headings)
     body = "".join(f"<tr style='{_KEEP}'>{name}{_escape(a)}</td>{_cell(b)}</tr>" for a, b in rows)
@@ -232,7 +232,8 @@ def _pdf_page_setup(writer: QPdfWriter) -> None:
     writer.setResolution(300)
 
 
-def pdf_document(document_html: str, images: Sequence[tuple[str, QImage]], writer: QPdfWriter) -> QTextDocument:
+def pdf_document(document_html: str, images: Sequence[tuple[str, QImage]],
+                 writer: QPdfWriter) -> QTextDocument:
     """The document a PDF is printed from, laid out on the writer's own device (its fonts at
     their point size, its text area in device pixels), so that ``pageCount()`` is the number
     of pages printed."""

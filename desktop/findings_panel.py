@@ -364,7 +364,8 @@ def _report_images(analysis, key: str) -> list[tuple[str, QImage]]:
              (groups.labels[1], groups.y, analysis.summaries[1])]
     return [
         ("Every applicable procedure: the difference and its interval",
-         _document_image(IntervalPlot(), lambda plot: plot.show_rows(_labelled_rows(analysis.robustness.rows), picked=key,
+         _document_image(IntervalPlot(), lambda plot: plot.show_rows(_labelled_rows(analysis.robustness.rows),
+                                                                     picked=key,
                                                                      axis_label=axis))),
         ("The two groups: boxes and the values",
          _document_image(BoxPlot(), lambda plot: plot.show_groups(boxes))),

@@ -375,7 +375,8 @@ def _screen(table, cells, group, other_rows, set_aside, findings, extra) -> Inta
     if repeated.size:
         findings.append(Finding(
             "duplicate_rows", "note",
-            f"{plural(repeated.size, 'row')} {plural(repeated.size, 'repeats', number=False)} an earlier row exactly ({_rows_text(table, repeated)}); "
+            f"{plural(repeated.size, 'row')} {plural(repeated.size, 'repeats', number=False)} an earlier "
+            f"row exactly ({_rows_text(table, repeated)}); "
             "check that no data were copied in twice."))
     if other_rows:
         findings.append(Finding(
