@@ -449,7 +449,7 @@ _KEEP = "page-break-inside: avoid;"
 
 # Room a number is given beyond its characters in a wrapping table (Qt's layout breaks a number
 # that does not fit its share, non-breaking spaces or not).
-_NUMBER_ROOM = "   "
+_NUMBER_ROOM = "      "
 # Characters of a text column of a wrapping table counted for its width (it wraps beyond).
 _WRAP_TEXT = 16
 # A name longer than this may wrap in its cell (it would otherwise squeeze the value column).
@@ -509,10 +509,10 @@ def _html(blocks) -> str:
             out.append(f"<h3>{e(content[0])}</h3>")
         elif kind == "list":
             out.append("<ul>" + "".join(f"<li>{e(item)}</li>" for item in content[0]) + "</ul>")
-        elif kind == "pairs":
-            out += _html_pairs(content[0])
+        elif kind == "pairs":  # no text between a table's rows: a word processor may show it as a row
+            out.append("".join(_html_pairs(content[0])))
         elif kind == "grid":
-            out += _html_grid(*content)
+            out.append("".join(_html_grid(*content)))
     return "\n".join(out)
 
 
@@ -577,7 +577,7 @@ def _side_by_side_blocks(analysis) -> list[tuple]:
         _level(analysis.robustness.level),
         lambda key: _numbers(analysis, key, analysis.procedures[key]))
     blocks = [("h", "Every applicable procedure side by side"), ("p", agreement(analysis)),
-              ("grid", head, body, 2, True, 3)]
+              ("grid", head, body, 1, True, 3)]
     blocks += [("small", note) for note in dict.fromkeys(notes)]
     return blocks
 

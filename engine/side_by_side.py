@@ -120,12 +120,12 @@ def procedure_table(robustness, alternative: str, labels: tuple[str, str], level
     """The side-by-side table: a heading row, one row per procedure, and notes under it.
 
     ``numbers_for(key)`` gives the procedure's :class:`engine.report.DisplayNumbers`. Columns:
-    the procedure, what it estimates, the estimate (labelled with the direction of the
-    difference), its interval, the p-value and the reading at the chosen level. A row without an
+    the procedure (with what it estimates, where its name does not say), the estimate (labelled
+    with the direction of the difference), its interval, the p-value and the reading at the chosen level. A row without an
     interval or a p-value says "none", and why in a note under the table.
     """
     sided = "one-sided " if alternative != "two-sided" else ""
-    head = ["Procedure", "Estimates", f"Estimate, {labels[0]} minus {labels[1]}",
+    head = ["Procedure", f"Estimate, {labels[0]} minus {labels[1]}",
             f"{sided}{level_text} interval".capitalize(), "p-value" if not sided else "One-sided p-value",
             f"At {level_text}"]
     body, notes = [], []
@@ -141,6 +141,9 @@ def procedure_table(robustness, alternative: str, labels: tuple[str, str], level
             notes.append(NO_P_VALUE_WHY)
         else:
             p = format_p(row.p_value)
-        body.append([capital(row.name), capital(row.estimate_name), numbers.estimate, interval, p,
+        name = capital(row.name)
+        if row.estimate_name.lower() not in row.name.lower():  # what it estimates, if not named
+            name += f" ({row.estimate_name})"
+        body.append([name, numbers.estimate, interval, p,
                      row_reading(row, alternative, labels)])
     return head, body, notes

@@ -163,3 +163,34 @@ def test_the_checksum_copied_out_of_the_pdf_is_the_files(panel, data_file, tmp_p
     assert hashlib.sha256(data_file.read_bytes()).hexdigest() in text.splitlines()
     pages = text.split("\f")[:-1]  # each page ends with a form feed
     assert pages and all(page.strip() for page in pages)  # no blank page
+
+
+def test_report_table_rows_stay_whole_and_hold_no_stray_text(panel, tmp_path):
+    # a word processor opening the page splits a row across pages, and may show text between
+    # rows as a row of its own; checked by eye in LibreOffice Writer 7.4 (HTML import, to PDF)
+    from html.parser import HTMLParser
+
+    class Rows(HTMLParser):
+        def __init__(self):
+            super().__init__()
+            self.stack, self.rows, self.stray = [], [], []
+
+        def handle_starttag(self, tag, attrs):
+            if tag == "tr":
+                self.rows.append(dict(attrs).get("style", ""))
+            if tag not in ("img", "br"):
+                self.stack.append(tag)
+
+        def handle_endtag(self, tag):
+            while self.stack and self.stack.pop() != tag:
+                pass
+
+        def handle_data(self, data):
+            if self.stack and self.stack[-1] in ("table", "tr", "thead", "tbody"):
+                self.stray.append(data)
+
+    parser = Rows()
+    parser.feed(panel.export_report(tmp_path / "report.html").read_text(encoding="utf-8"))
+    assert len(parser.rows) > 20
+    assert all("page-break-inside: avoid" in style for style in parser.rows)
+    assert not [text for text in parser.stray if text.strip() or text]
