@@ -69,3 +69,13 @@ def test_a_possible_slip_gives_both_quartiles_with_the_same_decimals(tmp_path):
 def test_glosses_are_plain_sentences():
     for word in ("skewness", "excess kurtosis", "interquartile range", "density"):
         assert GLOSSES[word].endswith(".") and len(GLOSSES[word]) < 260
+
+
+def test_a_possible_slip_is_shown_as_written_near_a_billion(tmp_path):
+    values = [1e9 + v for v in (10.5, 11.25, 9.75, 10.0, 10.75, 11.0, 9.5, 10.25)] + [999999970.125]
+    path = tmp_path / "offset.csv"
+    path.write_text("g,v\n" + "".join(f"A,{v!r}\nB,{v + 1!r}\n" for v in values), encoding="utf-8")
+    slips = make_groups(read_table(path), values="v", group="g").screening.possible_slips
+    assert slips and "999999970.125 lies" in slips[0].text  # not "1e+09"
+    first, second = re.search(r"quartiles (\S+) and (\S+)\)", slips[0].text).groups()
+    assert first != second
