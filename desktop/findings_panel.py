@@ -220,7 +220,8 @@ class FindingsPanel(QWidget):
             (f"Test statistic ({result.statistic_name})" if result.statistic_name else "Test statistic",
              shown.statistic, "", STATISTIC_TIPS["statistic"]),
             ("Degrees of freedom", shown.df, "", STATISTIC_TIPS["df"]),
-            ("p-value", shown.p, "", STATISTIC_TIPS["p"]),
+            ("p-value" if result.alternative == "two-sided" else "One-sided p-value", shown.p, "",
+             STATISTIC_TIPS["p"]),
         ]
         rows = [row for row in rows if row[1] is not None]  # what a procedure does not give takes no row
         if shown.mc_se is not None:

@@ -147,6 +147,7 @@ def test_a_one_sided_question_against_the_data_reads_as_such(panel):
     assert "none finds a clear difference" not in panel.agreement.text()
     assert "the other way" in panel.agreement.text()
     assert "the other way" in panel.headline.text()
+    assert "One-sided p-value" in [row[0] for row in _cells(panel)]
 
 
 def test_a_dot_without_an_interval_is_explained(panel, analysis):
