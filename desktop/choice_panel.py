@@ -37,12 +37,9 @@ _SPREAD_KEYS = ("spread", "sizes", "pooled_ties")
 CHECK_TIPS = {
     "shapiro": "Shapiro-Wilk W is near 1 for values that look bell-shaped; a small p-value "
                "means the shape departs from a normal distribution.",
-    "skewness": "Skewness measures lopsidedness: 0 for a symmetric shape, positive for a long "
-                "tail of high values, negative for a long tail of low values.",
-    "kurtosis": "Excess kurtosis measures tail weight: 0 for a normal distribution, positive "
-                "when extreme values are more common than that.",
-    "outliers": "Values more than 1.5 (mild) or 3 (far) interquartile ranges beyond the "
-                "quartiles, a common rule of thumb.",
+    "skewness": report.GLOSSES["skewness"],
+    "kurtosis": report.GLOSSES["excess kurtosis"],
+    "outliers": report.GLOSSES["interquartile range"],
     "sd_ratio": "The larger standard deviation divided by the smaller; 1 means the groups vary "
                 "equally.",
     "levene": "Levene's check compares the spread of the groups around their means; a small "
@@ -51,6 +48,10 @@ CHECK_TIPS = {
                       "stays reliable when the values are not bell-shaped.",
     "n_ratio": "The larger group's size divided by the smaller's.",
 }
+
+# The histogram's height axis reads "density": said in plain words when the pointer rests on it.
+SHAPE_PLOT_TIP = ("Bars: how the group's values spread out; the curve: a bell curve with the "
+                  "group's mean and SD. " + report.GLOSSES["density"])
 
 _HINT = "Pick the columns and the two groups; the checks and the suggested procedure appear here."
 
@@ -254,6 +255,8 @@ class ChoicePanel(QWidget):
 
         layout.addWidget(heading("1. How the values look"))
         self.shape_plots = [(ShapePlot(), QQPlot()) for _ in range(2)]
+        for shape_plot, _qq in self.shape_plots:
+            shape_plot.setToolTip(SHAPE_PLOT_TIP)
         self.shape_cards = [_CheckCard(list(pair)) for pair in self.shape_plots]
         for card in self.shape_cards:
             layout.addWidget(card)
@@ -373,12 +376,12 @@ class ChoicePanel(QWidget):
     def _show_suggestion(self, analysis) -> None:
         suggested = analysis.recommendation
         e = visible_html  # the reasons may quote a group's label
-        parts = [f"<p>Suggested: <b>{e(suggested.name)}</b></p>"]
+        parts = [f"<p>Suggested: <b>{e(report.capital(suggested.name))}</b></p>"]
         if suggested.reasons:
             parts.append("<p>Why:</p><ul>" + "".join(f"<li>{e(r)}</li>" for r in suggested.reasons) + "</ul>")
         if suggested.considered:
             parts.append("<p>Also weighed:</p><ul>" + "".join(
-                f"<li><b>{e(c.name)}</b>: {e(c.why_not)}</li>" for c in suggested.considered)
+                f"<li><b>{e(report.capital(c.name))}</b>: {e(c.why_not)}</li>" for c in suggested.considered)
                 + "</ul>")
         self.suggestion.setText("".join(parts))
 
@@ -388,7 +391,7 @@ class ChoicePanel(QWidget):
             self.picker.clear()
             self.picker.addItem(f"Follow the suggestion ({analysis.recommendation.name})", None)
             for key, result in analysis.procedures.items():
-                self.picker.addItem(result.name, key)
+                self.picker.addItem(report.capital(result.name), key)
         finally:
             self._syncing = False
         labels = analysis.groups.labels
@@ -483,9 +486,18 @@ def _shape_figures(shape) -> list[tuple[str, str]]:
         (shapiro, CHECK_TIPS["shapiro"]),
         (f"skewness {report.format_shape(shape.skewness)}", CHECK_TIPS["skewness"]),
         (f"excess kurtosis {report.format_shape(shape.excess_kurtosis)}", CHECK_TIPS["kurtosis"]),
-        (f"apart from the rest: {len(shape.mild_outliers)} mild, {len(shape.far_outliers)} far",
-         CHECK_TIPS["outliers"]),
+        (_apart_text(len(shape.mild_outliers), len(shape.far_outliers)), CHECK_TIPS["outliers"]),
     ]
+
+
+def _apart_text(mild: int, far: int) -> str:
+    """ "none apart from the rest", or "3 values apart from the rest, 1 of them far"."""
+    if not mild and not far:
+        return "none apart from the rest"
+    text = f"{report.plural(mild + far, 'value')} apart from the rest"
+    if far and mild:
+        return f"{text}, {far:,} of them far"
+    return f"{text}, far" if far else text
 
 
 def _spread_figures(spread) -> list[tuple[str, str]]:

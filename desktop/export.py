@@ -14,16 +14,20 @@ from datetime import datetime
 from pathlib import Path
 from typing import Any, Sequence
 
-from PySide6.QtCore import QBuffer, QByteArray, QIODevice, QMarginsF, QUrl
+from PySide6.QtCore import QBuffer, QByteArray, QIODevice, QMarginsF, QSizeF, QUrl
 from PySide6.QtGui import QImage, QPageLayout, QPageSize, QPdfWriter, QTextDocument
 
 from engine.errors import FileProblem
 from engine.text import visible_html
 
 __all__ = ["level_text", "direction_text", "choice_rows", "set_aside_rows", "report_html",
-           "export_report", "REPORT_SUFFIXES"]
+           "export_report", "pdf_document", "pdf_text_width", "REPORT_SUFFIXES", "CHECKSUM_NAME"]
 
 REPORT_SUFFIXES = (".html", ".pdf")
+# The checksum's row names its algorithm, so that a reader can recompute it.
+CHECKSUM_NAME = "SHA-256 checksum"
+# Width of the pictures in an HTML report, in pixels (a PDF takes the width of its text).
+HTML_IMAGE_WIDTH = 640
 
 _DIRECTIONS = {
     "two-sided": "do the two groups differ (either way)?",
@@ -131,11 +135,31 @@ def _escape(text: Any) -> str:
     return visible_html(text)  # labels from the file: no markup, no control or direction characters
 
 
-def _table(rows: Sequence[tuple[str, str]], headings: tuple[str, str]) -> str:
+# A checksum is set in a monospace font (no ligatures: copied out of a PDF it reads back
+# exactly) on one line, a little smaller so that its 64 characters fit beside their name.
+_CODE = "font-family: monospace; font-size: 8pt; white-space: nowrap;"
+# Rows stay whole across pages (a word processor otherwise splits one and may leave it empty).
+_KEEP = "page-break-inside: avoid;"
+
+
+class _Code(str):
+    """A table value set as code: monospace, on one line (a checksum)."""
+
+
+def _cell(value: Any) -> str:
+    if isinstance(value, _Code):
+        return f"<td nowrap style='{_CODE}'>{_escape(value)}</td>"
+    return f"<td>{_escape(value)}</td>"
+
+
+def _table(rows: Sequence[tuple[str, str]], headings: tuple[str, str], *, short_names: bool = False) -> str:
+    """A table of names and values; with ``short_names`` the names keep to one line (beside a
+    checksum, which does, a name that may wrap is squeezed to a letter a line)."""
+    name = "<td nowrap style='white-space: nowrap;'>" if short_names else "<td>"
     head = "".join(f"<th align='left'>{_escape(h)}</th>" for h in headings)
-    body = "".join(f"<tr><td>{_escape(a)}</td><td>{_escape(b)}</td></tr>" for a, b in rows)
-    return (f"<table border='1' cellspacing='0' cellpadding='4'><thead><tr>{head}</tr></thead>"
-            f"<tbody>{body}</tbody></table>")
+    body = "".join(f"<tr style='{_KEEP}'>{name}{_escape(a)}</td>{_cell(b)}</tr>" for a, b in rows)
+    return (f"<table border='1' cellspacing='0' cellpadding='4'><tr style='{_KEEP}'>{head}</tr>"
+            f"{body}</table>")
 
 
 def _file_rows(analysis, choices) -> list[tuple[str, str]]:
@@ -147,9 +171,9 @@ def _file_rows(analysis, choices) -> list[tuple[str, str]]:
     if path is not None and Path(path).is_file():
         from engine.io import file_checksum
 
-        rows.append(("Checksum of the file", str(file_checksum(path))))
+        rows.append((CHECKSUM_NAME, _Code(file_checksum(path))))
     else:
-        rows.append(("Checksum of the file", "not available: the file was not found when the report was written"))
+        rows.append((CHECKSUM_NAME, "not available: the file was not found when the report was written"))
     return rows
 
 
@@ -164,18 +188,20 @@ def _png_base64(image: QImage) -> str:
 
 def report_html(analysis, choices, *, procedure: str, findings_html: str, cautions: Sequence[str],
                 images: Sequence[tuple[str, QImage]] = (), when: datetime | None = None,
-                embed_images: bool = True) -> str:
+                embed_images: bool = True, image_width: float = HTML_IMAGE_WIDTH) -> str:
     """The whole report as one HTML document.
 
     ``images`` are (caption, image) pairs. With ``embed_images`` each image is a ``data:`` URL
     (one self-contained file); without it the ``src`` is ``plot<i>.png`` for a resource loader.
+    Each image is drawn at most ``image_width`` wide, its caption in a paragraph of its own
+    (a line as tall as the picture would leave a gap under it).
     """
     when = when or datetime.now().astimezone()
     labels = analysis.groups.labels
     title = f"Comparison of {labels[0]} and {labels[1]}"
     parts = [f"<h1>{_escape(title)}</h1>",
              f"<p>Written on {_escape(when.strftime('%Y-%m-%d %H:%M %Z').strip())} by Twofold.</p>",
-             "<h2>The data</h2>", _table(_file_rows(analysis, choices), ("What", "Record")),
+             "<h2>The data</h2>", _table(_file_rows(analysis, choices), ("What", "Record"), short_names=True),
              "<h2>Choices made</h2>", _table(choice_rows(analysis, choices, procedure=procedure),
                                             ("What", "Choice")),
              "<h2>Values set aside</h2>"]
@@ -186,32 +212,58 @@ def report_html(analysis, choices, *, procedure: str, findings_html: str, cautio
         src = f"data:image/png;base64,{_png_base64(image)}" if embed_images else f"plot{number}.png"
         ratio = max(image.devicePixelRatio(), 1.0)
         width, height = image.width() / ratio, image.height() / ratio
-        shrink = min(1.0, 640 / width) if width else 1.0
-        parts.append(f"<p><img src='{src}' width='{round(width * shrink)}' "
-                     f"height='{round(height * shrink)}' alt='{_escape(caption)}'><br>"
-                     f"<i>{_escape(caption)}</i></p>")
+        scale = image_width / width if width else 1.0
+        parts.append(f"<p style='line-height: 100%; {_KEEP}'><img src='{src}' width='{round(width * scale)}' "
+                     f"height='{round(height * scale)}' alt='{_escape(caption)}'></p>"
+                     f"<p><i>{_escape(caption)}</i></p>")
     parts.append("<h2>Before relying on this</h2><ul>")
     parts += [f"<li>{_escape(c)}</li>" for c in cautions]
     parts.append("</ul>")
-    body = "\n".join(parts)
+    body = "".join(parts)  # no text between blocks: a PDF page must not end in an empty one
     return (f'<!DOCTYPE html>\n<html><head><meta charset="utf-8"><title>{_escape(title)}</title>'
             "<style>body{font-family:sans-serif;max-width:48em;margin:1.5em auto;line-height:1.4}"
             "table{border-collapse:collapse}td,th{padding:4px 8px;vertical-align:top}</style>"
-            f"</head><body>\n{body}\n</body></html>\n")
+            f"</head><body>{body}</body></html>")
 
 
-def _write_pdf(path: Path, document_html: str, images: Sequence[tuple[str, QImage]]) -> None:
-    document = QTextDocument()
-    for number, (_caption, image) in enumerate(images):
-        document.addResource(QTextDocument.ResourceType.ImageResource, QUrl(f"plot{number}.png"), image)
-    document.setHtml(document_html)
-    writer = QPdfWriter(str(path))
+def _pdf_page_setup(writer: QPdfWriter) -> None:
     writer.setPageSize(QPageSize(QPageSize.PageSizeId.A4))
     writer.setPageMargins(QMarginsF(18, 18, 18, 18), QPageLayout.Unit.Millimeter)
     writer.setResolution(300)
+
+
+def pdf_document(document_html: str, images: Sequence[tuple[str, QImage]],
+                 writer: QPdfWriter) -> QTextDocument:
+    """The document a PDF is printed from, laid out on the writer's own device (its fonts at
+    their point size, its text area in device pixels), so that ``pageCount()`` is the number
+    of pages printed."""
+    document = QTextDocument()
+    document.documentLayout().setPaintDevice(writer)
+    for number, (_caption, image) in enumerate(images):
+        document.addResource(QTextDocument.ResourceType.ImageResource, QUrl(f"plot{number}.png"), image)
+    document.setHtml(document_html)
+    area = writer.pageLayout().paintRectPixels(writer.resolution())
+    document.setPageSize(QSizeF(area.width(), area.height()))
+    return document
+
+
+# Qt's text layout sizes an image in pixels of 96 per inch, whatever the device.
+_IMAGE_DPI = 96
+
+
+def pdf_text_width() -> float:
+    """The width of a PDF report's text in the pixels an image's width is given in."""
+    writer = QPdfWriter(QBuffer())
+    _pdf_page_setup(writer)
+    return writer.pageLayout().paintRect(QPageLayout.Unit.Inch).width() * _IMAGE_DPI
+
+
+def _write_pdf(path: Path, document_html: str, images: Sequence[tuple[str, QImage]]) -> None:
+    writer = QPdfWriter(str(path))
+    _pdf_page_setup(writer)
+    document = pdf_document(document_html, images, writer)
     writer.setTitle(document.metaInformation(QTextDocument.MetaInformation.DocumentTitle))
     writer.setCreator("Twofold")
-    # with no page size of its own the document is laid out on the writer's page, in points
     document.print_(writer)
 
 
@@ -228,8 +280,10 @@ def export_report(path: str | Path, analysis, choices, *, procedure: str, findin
     if suffix not in REPORT_SUFFIXES:
         raise FileProblem(f"A report is written as .html or .pdf, not '{path.suffix or path.name}'.")
     embed = suffix == ".html"
+    width = HTML_IMAGE_WIDTH if embed else pdf_text_width()
     document = report_html(analysis, choices, procedure=procedure, findings_html=findings_html,
-                           cautions=cautions, images=images, when=when, embed_images=embed)
+                           cautions=cautions, images=images, when=when, embed_images=embed,
+                           image_width=width)
     try:
         if embed:
             path.write_text(document, encoding="utf-8")

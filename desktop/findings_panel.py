@@ -10,6 +10,7 @@ Run on its own for a quick look: ``python -m desktop.findings_panel``.
 
 from __future__ import annotations
 
+from dataclasses import replace
 from pathlib import Path
 from typing import Any
 
@@ -21,6 +22,7 @@ from PySide6.QtWidgets import (QAbstractItemView, QApplication, QFileDialog, QHe
 from engine import report
 from engine.errors import FileProblem
 from engine.text import visible, visible_html
+from engine.side_by_side import NO_INTERVAL_WHY
 
 from . import clipboard, export
 from .choice_panel import FlowLayout, heading, hint_and_body, text_label
@@ -29,12 +31,8 @@ from .plots import BoxPlot, IntervalPlot, document_palette, plot_image, save_plo
 
 __all__ = ["FindingsPanel", "GENERAL_CAUTIONS", "STATISTIC_TIPS"]
 
-# Shown after the suggestion's own cautions (which already cover p-values, passing checks and
-# regulated work).
-GENERAL_CAUTIONS = (
-    "These procedures assume two independent groups; paired or repeated measurements need a "
-    "paired procedure.",
-)
+# Shown after the suggestion's own cautions (worded in the engine, shared with the report).
+GENERAL_CAUTIONS = report.GENERAL_CAUTIONS
 
 # One sentence per statistic, shown when the pointer rests on a row of the table.
 STATISTIC_TIPS = {
@@ -137,6 +135,9 @@ class FindingsPanel(QWidget):
                              "estimate; the dashed line is no difference. The highlighted line is "
                              "the procedure the findings follow.")
         layout.addWidget(self.plot)
+        self.no_interval = text_label()  # why a row of the plot has a dot but no line
+        self.no_interval.setVisible(False)
+        layout.addWidget(self.no_interval)
 
         layout.addWidget(heading("About this procedure"))
         self.method = text_label()
@@ -178,8 +179,7 @@ class FindingsPanel(QWidget):
     def cautions_list(self) -> list[str]:
         """The suggestion's own cautions, then the ones that hold for every comparison."""
         analysis = self.session.analysis
-        own = list(analysis.recommendation.cautions) if analysis is not None else []
-        return own + list(GENERAL_CAUTIONS)
+        return report.cautions(analysis) if analysis is not None else list(GENERAL_CAUTIONS)
 
     def refresh(self) -> None:
         """Show the current analysis (or the hint when there is none)."""
@@ -220,7 +220,8 @@ class FindingsPanel(QWidget):
             (f"Test statistic ({result.statistic_name})" if result.statistic_name else "Test statistic",
              shown.statistic, "", STATISTIC_TIPS["statistic"]),
             ("Degrees of freedom", shown.df, "", STATISTIC_TIPS["df"]),
-            ("p-value", shown.p, "", STATISTIC_TIPS["p"]),
+            ("p-value" if result.alternative == "two-sided" else "One-sided p-value", shown.p, "",
+             STATISTIC_TIPS["p"]),
         ]
         rows = [row for row in rows if row[1] is not None]  # what a procedure does not give takes no row
         if shown.mc_se is not None:
@@ -263,9 +264,13 @@ class FindingsPanel(QWidget):
     def _show_robustness(self, analysis, key: str) -> None:
         robustness = analysis.robustness
         labels = analysis.groups.labels
-        self.plot.show_rows(robustness.rows, picked=key,
+        self.plot.show_rows(_labelled_rows(robustness.rows), picked=key,
                             axis_label=f"difference, {labels[0]} minus {labels[1]}")
-        self.agreement.setText(_agreement_text(robustness))
+        self.agreement.setText(report.agreement(analysis))
+        why = [NO_INTERVAL_WHY.get(row.key, "") for row in robustness.rows if row.interval is None]
+        why = [text for text in dict.fromkeys(why) if text]
+        self.no_interval.setText(" ".join(why))
+        self.no_interval.setVisible(bool(why))
 
     # -- into a document -----------------------------------------------------------------------
     def copy_findings(self) -> None:
@@ -331,21 +336,9 @@ class FindingsPanel(QWidget):
         self.status.setVisible(True)
 
 
-def _agreement_text(robustness) -> str:
-    rows = robustness.voting
-    level = export.level_text(robustness.level)
-    finding = [row.name for row in rows if row.finds_difference]
-    aside = [row.name for row in robustness.rows if not row.votes]
-    note = (f" Not counted: {', '.join(aside)} (see the reason beside each)." if aside else "")
-    if not rows:
-        return "No procedure gave a test that holds for these data." + note
-    if robustness.agree:
-        verdict = "all find a difference" if finding else "none finds a clear difference"
-        return f"The {len(rows)} tests counted agree at the {level} level: {verdict}.{note}"
-    others = [row.name for row in rows if not row.finds_difference]
-    return (f"The procedures disagree at the {level} level. A difference is found by "
-            f"{', '.join(finding)}, but not by {', '.join(others)}; the answer depends on the "
-            f"procedure, so lean on the size of the difference and its interval.{note}")
+def _labelled_rows(rows) -> list:
+    """The side-by-side rows with their names as labels (a capital first letter)."""
+    return [replace(row, name=report.capital(row.name)) for row in rows]
 
 
 def _document_image(plot, draw) -> QImage:
@@ -372,7 +365,8 @@ def _report_images(analysis, key: str) -> list[tuple[str, QImage]]:
              (groups.labels[1], groups.y, analysis.summaries[1])]
     return [
         ("Every applicable procedure: the difference and its interval",
-         _document_image(IntervalPlot(), lambda plot: plot.show_rows(analysis.robustness.rows, picked=key,
+         _document_image(IntervalPlot(), lambda plot: plot.show_rows(_labelled_rows(analysis.robustness.rows),
+                                                                     picked=key,
                                                                      axis_label=axis))),
         ("The two groups: boxes and the values",
          _document_image(BoxPlot(), lambda plot: plot.show_groups(boxes))),

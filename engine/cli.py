@@ -13,6 +13,7 @@ from typing import Sequence, TextIO
 
 from .errors import TwofoldError
 from .text import visible
+from .wording import plural
 
 __all__ = ["main", "build_parser"]
 
@@ -118,10 +119,12 @@ def _write_lines(out: TextIO, lines: Sequence[str]) -> None:
 
 
 def _readable(analysis, report_text: str) -> list[str]:
+    """The plain summary: the file and its screening, the report of the suggested procedure
+    (which carries every procedure side by side, the reasons for the suggestion and the
+    alternatives weighed, and the checks), then the cautions."""
+    from .report import cautions
+
     lines = [f"File: {analysis.source.get('file')}"]
-    for summary in analysis.summaries:
-        lines.append(f"  {summary.label}: n = {summary.n}, mean {summary.mean:.6g}, sd {summary.sd:.6g}, "
-                     f"median {summary.median:.6g}, range {summary.min:.6g} to {summary.max:.6g}")
     screening = analysis.screening
     if screening is not None:
         for finding in screening.findings:
@@ -129,17 +132,13 @@ def _readable(analysis, report_text: str) -> list[str]:
     for note in analysis.notes:
         lines.append(f"  [{note.severity}] {note.text}")
     lines.append("")
+    lines.append(f"Suggested procedure: {analysis.recommendation.name}")
+    lines.append("")
     lines.extend(report_text.rstrip().split("\n"))  # the report's own lines (its texts are escaped)
     lines.append("")
-    lines.append("All procedures side by side:")
-    for row in analysis.robustness.rows:
-        verdict = "finds a difference" if row.finds_difference else "finds no clear difference"
-        p = "" if row.p_value is None else f", p = {row.p_value:.4g}"
-        if not row.votes:
-            verdict += f" (not counted: {row.not_voting_because})"
-        lines.append(f"  {row.name}: {row.estimate_name} {row.estimate:.6g}{p}; {verdict}")
-    lines.append("  The tests counted agree." if analysis.robustness.agree
-                 else "  The tests counted do not all agree: read the reasons above.")
+    lines.append("Before relying on this")
+    lines.append("")
+    lines += [f"- {caution}" for caution in cautions(analysis)]
     return lines
 
 
@@ -151,7 +150,8 @@ def _columns(args, out: TextIO) -> None:
     lines = [f"{args.path.name}: {len(table.frame)} rows" + (f", sheet '{table.sheet}'" if table.sheet else "")]
     lines += [f"  {name}: {kind}" for name, kind in table.column_kinds.items()]
     lines.append(f"Suggested layout: {proposal.layout}; group column: {proposal.group_column}; "
-                 f"value column(s): {', '.join(proposal.value_columns)}")
+                 f"{plural(len(proposal.value_columns), 'value column', number=False)}: "
+                 f"{', '.join(proposal.value_columns)}")
     lines += [f"  {reason}" for reason in proposal.reasons]
     _write_lines(out, lines)
 

@@ -16,6 +16,7 @@ from scipy import special, stats
 
 from .errors import DataProblem
 from .report import format_number, format_shape, p_clause
+from .wording import plural
 from .results import Finding, Groups, readonly_array
 from .summary import sorted_values
 
@@ -424,7 +425,7 @@ def _shape(label: str, values: np.ndarray, index: int, ordered: np.ndarray | Non
     constant = n > 0 and ordered[0] == ordered[-1]
     if n < SHAPIRO_MIN_N:
         findings.append(Finding("normality", "note",
-            f"{name} has {n} value(s), too few for the Shapiro-Wilk check of a bell shape "
+            f"{name} has {plural(n, 'value')}, too few for the Shapiro-Wilk check of a bell shape "
             f"(it needs at least {SHAPIRO_MIN_N}).", index))
     elif n > SHAPIRO_MAX_N:
         findings.append(Finding("normality", "info",
@@ -520,15 +521,31 @@ def _more_than_normal(count: int, n: int, share: float) -> bool:
     return bool(stats.poisson.sf(count - 1, n * share) < OUTLIER_SURPRISE)
 
 
+def _values(count: int) -> str:
+    return "a value" if count == 1 else "values"
+
+
+def _outlier_counts(far: int, mild: int) -> str:
+    """ "2 values more than 3 times the interquartile range beyond the quartiles and 1 more
+    beyond 1.5 times", leaving out a count that is zero."""
+    iqr = "the interquartile range (the width of the middle half of the values)"
+    if far and mild:
+        return (f"{plural(far, 'value')} more than {FAR_FENCE:g} times {iqr} beyond the quartiles "
+                f"and {mild:,} more beyond {MILD_FENCE:g} times")
+    if far:
+        return f"{plural(far, 'value')} more than {FAR_FENCE:g} times {iqr} beyond the quartiles"
+    return (f"{plural(mild, 'value')} more than {MILD_FENCE:g} times {iqr} beyond the quartiles, "
+            f"none beyond {FAR_FENCE:g} times")
+
+
 def _outlier_finding(shape: GroupShape, name: str, index: int) -> Finding:
     far, mild, n = len(shape.far_outliers), len(shape.mild_outliers), shape.n
-    counts = (f"{far} value(s) more than {FAR_FENCE:g} times the interquartile range beyond the "
-              f"quartiles and {mild} more beyond {MILD_FENCE:g} times")
+    counts = _outlier_counts(far, mild)
     if far and shape.far_surprising:
         odds = ("" if not np.isfinite(shape.extreme_p) else
                 f" (a normal sample of {n} gives values this extreme with {p_clause(shape.extreme_p)})")
         return Finding("outliers", "warning",
-                       f"{name} has values far from the rest: {counts}{odds}. Check they are real "
+                       f"{name} has {_values(far + mild)} far from the rest: {counts}{odds}. Check they are real "
                        "measurements before relying on a mean, which they pull strongly.", index)
     if far:
         return Finding("outliers", "note",
@@ -538,7 +555,7 @@ def _outlier_finding(shape: GroupShape, name: str, index: int) -> Finding:
                        "does not change the suggestion.", index)
     if _more_than_normal(mild, n, NORMAL_MILD_SHARE):
         return Finding("outliers", "note",
-                       f"{name} has values apart from the rest: {counts}.", index)
+                       f"{name} has {_values(far + mild)} apart from the rest: {counts}.", index)
     if mild:
         return Finding("outliers", "info",
                        f"{name} has {counts}, about as many as a bell-shaped distribution gives "
@@ -596,7 +613,10 @@ def _spread_findings(spread: SpreadCheck, labels: tuple[str, str]) -> list[Findi
         spread_finding = Finding("spread", "warning",
                                  f"One group's standard deviation is {format_number(ratio, digits=2)} "
                                  f"times the other's, and {bf}. Procedures that assume equal "
-                                 "spread are unsafe here.")
+                                 "spread, such as the pooled t-test, are unsafe here. With spreads "
+                                 "this different a rank result reads as a tendency: how often a "
+                                 "value of one group exceeds a value of the other, not a shift of "
+                                 "one group against the other.")
     elif ratio >= SD_RATIO_NOTE or spread.brown_forsythe_p < CHECK_ALPHA:
         spread_finding = Finding("spread", "note",
                                  f"The standard deviations differ by a factor of "

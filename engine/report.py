@@ -1,28 +1,24 @@
-"""A finished analysis as words: one paragraph, an HTML fragment with a table, and plain text.
+"""A finished analysis as words: one paragraph, an HTML fragment with tables, and plain text.
 
 This is the only module that rounds numbers for display (``format_number``, ``format_p``).
 """
 
 from __future__ import annotations
 
-import html
 import math
-import textwrap
 from dataclasses import dataclass
 
 from .text import visible, visible_html
 
 __all__ = ["ReportText", "DisplayNumbers", "render", "display_numbers", "format_p", "format_number",
-           "format_shape", "format_interval", "p_clause"]
+           "format_shape", "format_interval", "p_clause", "plural", "capital", "agreement", "cautions",
+           "GLOSSES", "GENERAL_CAUTIONS"]
 
-# Below this a p-value is written as "< 0.001" (common practice in journals).
-P_FLOOR = 0.001
-# Significant digits kept in a p-value at or above the floor (common practice: two).
-P_DIGITS = 2
-# Plain numbers outside [SMALL, LARGE) in size are written in scientific notation.
-SCIENTIFIC_SMALL = 1e-4
-SCIENTIFIC_LARGE = 1e9
-NOT_AVAILABLE = "n/a"
+from .rounding import (NOT_AVAILABLE, P_CEILING, P_FLOOR, SCIENTIFIC_LARGE, SCIENTIFIC_SMALL, fixed,
+                       format_number, format_p, format_shape, p_clause, shared_decimals)
+from .side_by_side import (against_question, against_sentence, agreement_text, procedure_table,
+                           question_claim, reverse_is_clear)
+from .wording import GLOSSES, capital, gloss_line, plural
 
 
 @dataclass(frozen=True)
@@ -34,105 +30,13 @@ class ReportText:
     plain: str
 
 
-def format_p(p: float | None) -> str:
-    """A p-value for display: two significant digits, or "< 0.001" below 0.001.
-
-    Parameters
-    ----------
-    p : float or None
-        The p-value; None or NaN gives "n/a".
-
-    Returns
-    -------
-    str
-        For example "0.031", "0.0042", "0.27", "1.0" or "< 0.001".
-
-    Notes
-    -----
-    A value is compared with 0.001 before rounding, so 0.0009999 is "< 0.001" and 0.001 is
-    "0.0010". Values are rounded to two significant digits and written with fixed decimals.
-
-    References
-    ----------
-    American Psychological Association (2020). Publication Manual, 7th ed., section 6.36
-    (exact p-values, "< .001" below one in a thousand).
-    """
-    if p is None or not math.isfinite(p):
-        return NOT_AVAILABLE
-    p = min(max(float(p), 0.0), 1.0)
-    if p < P_FLOOR:
-        return f"< {P_FLOOR:g}"
-    return _fixed_significant(p, P_DIGITS)
-
-
-def p_clause(p: float | None) -> str:
-    """"p = 0.031" or "p < 0.001" (the p-value as it sits in a sentence)."""
-    text = format_p(p)
-    return f"p {text}" if text.startswith("<") else f"p = {text}"
-
-
-def format_number(value: float | None, *, digits: int = 3) -> str:
-    """A number rounded to ``digits`` significant digits for display.
-
-    Parameters
-    ----------
-    value : float or None
-        The number; None or NaN gives "n/a", infinities "infinity"/"-infinity".
-    digits : int, keyword-only
-        Significant digits kept (at least 1). Digits left of the decimal point are never
-        dropped: 1234.56 with three digits is "1235".
-
-    Returns
-    -------
-    str
-        Fixed-point text such as "4.12", "0.0123" or "-7.00"; scientific ("1.23e-05") for
-        magnitudes below 1e-4 or from 1e9 up.
-
-    Notes
-    -----
-    With e = floor(log10 |v|) the number of decimals is max(0, digits - 1 - e), computed after
-    rounding so that 9.996 becomes "10.0" rather than "10.00".
-    """
-    if value is None or (isinstance(value, float) and math.isnan(value)):
-        return NOT_AVAILABLE
-    value = float(value)
-    if math.isnan(value):
-        return NOT_AVAILABLE
-    if math.isinf(value):
-        return "infinity" if value > 0 else "-infinity"
-    digits = max(1, int(digits))
-    if value == 0:
-        return "0"
-    size = abs(value)
-    if size < SCIENTIFIC_SMALL or size >= SCIENTIFIC_LARGE:
-        return f"{value:.{digits - 1}e}"
-    return _fixed_significant(value, digits)
-
-
-def _decimals_for(value: float, digits: int) -> int:
-    """Decimals that show ``value`` to ``digits`` significant digits (after rounding)."""
-    if value == 0:
-        return 0
-    rounded = float(f"{value:.{digits - 1}e}")
-    exponent = math.floor(math.log10(abs(rounded)))
-    return max(0, digits - 1 - exponent)
-
-
-def _fixed_significant(value: float, digits: int) -> str:
-    text = f"{value:.{_decimals_for(value, digits)}f}"
-    return text[1:] if text.startswith("-") and float(text) == 0 else text
-
-
 # -- the report -----------------------------------------------------------------------------------
 
 # Standardised effect sizes are shown with two decimals (common practice), more when a narrow
 # interval would otherwise show the same number at both ends (very large groups).
 EFFECT_DECIMALS = 2
-EFFECT_DECIMALS_MAX = 4
 # Significant digits of estimates, intervals and statistics in the text.
 DIGITS = 3
-# Width at which the plain-text paragraph is wrapped.
-PLAIN_WIDTH = 88
 
 # The effect size that goes with each procedure's question.
 EFFECT_FOR: dict[str, tuple[str, ...]] = {
@@ -192,31 +96,12 @@ def _level(level: float) -> str:
 
 
 def _decimals_shared(values, digits: int = DIGITS) -> int | None:
-    """Decimals that show the largest of ``values`` to ``digits`` significant digits (None: use
-    scientific notation for each)."""
-    finite = [abs(v) for v in values if v is not None and math.isfinite(v)]
-    if not finite or max(finite) == 0:
-        return 0
-    largest = max(finite)
-    if largest < SCIENTIFIC_SMALL or largest >= SCIENTIFIC_LARGE:
-        return None
-    return _decimals_for(largest, digits)
+    """Decimals for numbers shown together (see :func:`engine.rounding.shared_decimals`)."""
+    return shared_decimals(values, digits)
 
 
 def _fixed(value: float | None, decimals: int | None, digits: int = DIGITS) -> str:
-    if value is None or not math.isfinite(value) or decimals is None:
-        return format_number(value, digits=digits)
-    text = f"{value:.{decimals}f}"
-    return text[1:] if text.startswith("-") and float(text) == 0 else text
-
-
-def format_shape(value: float | None) -> str:
-    """A skewness or excess kurtosis for display: two significant digits, and "0.00" for a
-    size below 0.005 (a symmetric sample computes to some 1e-15, which is rounding, not
-    shape)."""
-    if value is not None and abs(value) < 0.005:  # NaN compares False and stays "n/a"
-        return "0.00"
-    return format_number(value, digits=2)
+    return fixed(value, decimals, digits=digits)
 
 
 def format_interval(interval, *, decimals: int | None = None, digits: int = DIGITS) -> str | None:
@@ -263,14 +148,11 @@ def _statistic_text(key: str, value: float | None) -> str | None:
 
 
 def _effect_decimals(effect) -> int:
-    """Two decimals, or more (up to ``EFFECT_DECIMALS_MAX``) until the interval's ends differ."""
-    low, high = effect.interval.low, effect.interval.high
-    decimals = EFFECT_DECIMALS
-    if low is None or high is None or not (math.isfinite(low) and math.isfinite(high)):
-        return decimals
-    while decimals < EFFECT_DECIMALS_MAX and f"{low:.{decimals}f}" == f"{high:.{decimals}f}":
-        decimals += 1
-    return decimals
+    """Two decimals, or more until the value and the interval's ends that differ read
+    differently."""
+    values = [effect.value, effect.interval.low, effect.interval.high]
+    decimals = shared_decimals(values, start=EFFECT_DECIMALS)
+    return EFFECT_DECIMALS if decimals is None else decimals
 
 
 def _effect_for(analysis, key: str):
@@ -307,8 +189,9 @@ def display_numbers(analysis, procedure: str | None = None) -> DisplayNumbers:
     Notes
     -----
     The estimate and both interval ends share one number of decimals: enough to show the largest
-    of them to three significant digits. Standardised effect sizes get two decimals, more (up to
-    four) while the two ends of their interval would otherwise read alike. p-values follow
+    of them to three significant digits, more while two of them that differ would read alike
+    (:func:`engine.rounding.shared_decimals`). Standardised effect sizes get two decimals, more
+    while the value and the ends of their interval would otherwise read alike. p-values follow
     :func:`format_p`.
 
     References
@@ -455,16 +338,17 @@ def _verdict(analysis, key: str, result, numbers: DisplayNumbers) -> str:
     """What the result says at the chosen level, so that a sample difference is not read as a
     finding when the data cannot tell it from chance (and the reverse)."""
     row = next((r for r in analysis.robustness.rows if r.key == key), None)
-    if row is None:
+    labels = analysis.groups.labels
+    against = against_question(result.alternative, result.estimate)
+    if row is None and not against:
         return ""
-    first, second = analysis.groups.labels
-    if result.alternative == "two-sided":
-        claim = "a difference between the groups"
-    else:
-        word = "higher" if result.alternative == "greater" else "lower"
-        claim = f"{first} being {word} than {second}"
-    if row.finds_difference:
+    claim = question_claim(result.alternative, labels)
+    if row is not None and row.finds_difference:
         return f"At {numbers.level} confidence the data give clear evidence of {claim}."
+    if against:
+        clear = reverse_is_clear(result.p_value, analysis.options.confidence_level)
+        return (f"At {numbers.level} confidence the data give no evidence of {claim}, the "
+                f"direction asked about. {against_sentence(result.alternative, labels, clear)}")
     return (f"At {numbers.level} confidence the data do not give clear evidence of {claim}; "
             "that does not show the groups are the same.")
 
@@ -501,8 +385,10 @@ def _paragraph(analysis, key: str, result, numbers: DisplayNumbers) -> str:
 
 def _result_rows(analysis, key: str, result, numbers: DisplayNumbers) -> list[tuple[str, str]]:
     sided = "one-sided " if result.alternative != "two-sided" else ""
-    rows = [("Procedure", result.name),
-            (result.estimate_name[:1].upper() + result.estimate_name[1:], numbers.estimate)]
+    first, second = analysis.groups.labels
+    rows = [("Procedure", capital(result.name)),
+            (f"{result.estimate_name[:1].upper()}{result.estimate_name[1:]}, {first} minus {second}",
+             numbers.estimate)]
     if numbers.interval is not None:
         rows.append((f"{sided}{numbers.level} confidence interval".capitalize(), numbers.interval))
     label = STATISTIC_LABEL.get(key)
@@ -548,51 +434,200 @@ _ONE_LINE_NUMBER = f' nowrap style="white-space: nowrap; {_NUMBER_CELL}"'
 _BOLD = 1.25  # a bold character is about a quarter wider
 
 
-def _shares(columns) -> list[str]:
+def _shares(columns, padding: int = 3) -> list[str]:
     """Width attributes in per cent of the table for columns of (plain texts, bold texts), in
     proportion to each column's longest text (at most 40 characters, as a long text wraps,
-    and three more for the padding), so that the table fits the page."""
-    weights = [min(40, max([len(t) for t in plain] + [_BOLD * len(t) for t in bold])) + 3
+    and ``padding`` more for the cell's padding), so that the table fits the page."""
+    weights = [min(40, max([len(t) for t in plain] + [_BOLD * len(t) for t in bold])) + padding
                for plain, bold in columns]
     return [f' width="{100 * w / sum(weights):.0f}%"' for w in weights]
 
 
-def _html(paragraph: str, rows, head, body) -> str:
+# Tables keep their rows whole across pages (a word processor otherwise splits a row and may
+# leave an empty one behind).
+_KEEP = "page-break-inside: avoid;"
+
+
+# Room a number is given beyond its characters in a wrapping table (Qt's layout breaks a number
+# that does not fit its share, non-breaking spaces or not).
+_NUMBER_ROOM = "      "
+# Characters of a text column of a wrapping table counted for its width (it wraps beyond).
+_WRAP_TEXT = 16
+# A name longer than this may wrap in its cell (it would otherwise squeeze the value column).
+_ONE_LINE_NAME = 32
+
+
+def _html_pairs(rows) -> list[str]:
     e = visible_html  # labels from the file are text: no markup, no control or direction characters
     names, values = _shares([((), [name for name, _ in rows]), ([value for _, value in rows], ())])
-    out = [f"<p>{e(paragraph)}</p>", f'<table width="100%" style="{_TABLE}">']
+    out = [f'<table width="100%" style="{_TABLE}">']
     for name, value in rows:
-        out.append(f'<tr><th{names}{_ONE_LINE}>{e(name)}</th><td{values} style="{_CELL}">{e(value)}</td></tr>')
+        keep = _ONE_LINE if len(name) <= _ONE_LINE_NAME else f' style="{_CELL}"'
+        out.append(f'<tr style="{_KEEP}"><th{names}{keep}>{e(name)}</th>'
+                   f'<td{values} style="{_CELL}">{e(value)}</td></tr>')
     out.append("</table>")
-    out.append("<p>&nbsp;</p>")  # keeps the two tables apart when pasted
-    out.append(f'<table width="100%" style="{_TABLE}">')
-    widths = _shares([([line[j] for line in body], [h]) for j, h in enumerate(head)])
-    out.append("<tr>" + "".join(f"<th{w}{_ONE_LINE}>{e(h)}</th>" for w, h in zip(widths, head)) + "</tr>")
+    return out
+
+
+def _html_grid(head, body, text_columns: int, wrap: bool, number_columns: int | None = None) -> list[str]:
+    """A table with a heading row: the first ``text_columns`` columns are text (left-aligned),
+    the next ``number_columns`` (default: all the rest) numbers, right-aligned on one line, and
+    any after them text again. With ``wrap`` the headings and text cells may wrap; without it
+    every cell keeps to one line."""
+    e = visible_html  # labels from the file are text: no markup, no control or direction characters
+    text_cell = f' style="{_CELL}"' if wrap else _ONE_LINE
+    numbers = range(text_columns, len(head) if number_columns is None else text_columns + number_columns)
+    if wrap:  # a number needs its whole length, a heading its longest word, a text wraps
+        widths = _shares([([line[j] + _NUMBER_ROOM for line in body], h.split()) if j in numbers
+                          else ([line[j][:_WRAP_TEXT] for line in body], h.split()[:1])
+                          for j, h in enumerate(head)], padding=5)
+    else:
+        widths = _shares([([line[j] for line in body], [h]) for j, h in enumerate(head)])
+    out = [f'<table width="100%" style="{_TABLE}">',
+           f'<tr style="{_KEEP}">' + "".join(f"<th{w}{text_cell}>{e(h)}</th>"
+                                             for w, h in zip(widths, head)) + "</tr>"]
+    # Beside cells that wrap, a number keeps to one line by its non-breaking spaces: a nowrap
+    # cell there takes the spare width from the text columns in Qt's layout (the PDF).
+    number_cell = _ONE_LINE_NUMBER if not wrap else f' style="{_NUMBER_CELL}"'
     for line in body:
-        cells = [f"<td{_ONE_LINE}>{e(line[0])}</td>"]
-        cells += [f"<td{_ONE_LINE_NUMBER}>{e(cell)}</td>" for cell in line[1:]]
-        out.append("<tr>" + "".join(cells) + "</tr>")
+        cells = [f"<td{number_cell}>{e(cell).replace(' ', '&nbsp;')}</td>" if j in numbers
+                 else f"<td{text_cell}>{e(cell)}</td>" for j, cell in enumerate(line)]
+        out.append(f'<tr style="{_KEEP}">' + "".join(cells) + "</tr>")
     out.append("</table>")
-    out.append(f'<p style="font-size: smaller;">{e(CAUTION_LINE)}</p>')
+    return out
+
+
+def _html(blocks) -> str:
+    """The report's blocks as an HTML fragment (paragraphs, headings, lists and tables)."""
+    e = visible_html  # labels from the file are text: no markup, no control or direction characters
+    out: list[str] = []
+    for kind, *content in blocks:
+        if kind == "p":
+            out.append(f"<p>{e(content[0])}</p>")
+        elif kind == "small":
+            out.append(f'<p style="font-size: smaller;">{e(content[0])}</p>')
+        elif kind == "h":
+            out.append(f"<h3>{e(content[0])}</h3>")
+        elif kind == "list":
+            out.append("<ul>" + "".join(f"<li>{e(item)}</li>" for item in content[0]) + "</ul>")
+        elif kind == "pairs":  # no text between a table's rows: a word processor may show it as a row
+            out.append("".join(_html_pairs(content[0])))
+        elif kind == "grid":
+            out.append("".join(_html_grid(*content)))
     return "\n".join(out)
 
 
-def _plain(paragraph: str, rows, head, body) -> str:
-    # labels from the file with their control and direction characters written as escapes
-    rows = [(visible(name), visible(value)) for name, value in rows]
-    head, body = [visible(h) for h in head], [[visible(cell) for cell in line] for line in body]
-    out = [textwrap.fill(paragraph, PLAIN_WIDTH), ""]
-    width = max(len(name) for name, _ in rows)
-    for name, value in rows:
-        out.append(f"{name.ljust(width)}  {value}")
-    out.append("")
+def _plain_grid(head, body, text_columns: int, wrap: bool = False, number_columns: int | None = None
+                ) -> list[str]:
+    numbers = range(text_columns, len(head) if number_columns is None else text_columns + number_columns)
     widths = [max(len(line[i]) for line in [head, *body]) for i in range(len(head))]
+    out = []
     for line in [head, *body]:
-        cells = [line[0].ljust(widths[0])] + [cell.rjust(w) for cell, w in zip(line[1:], widths[1:])]
+        cells = [cell.rjust(w) if j in numbers else cell.ljust(w)
+                 for j, (cell, w) in enumerate(zip(line, widths))]
         out.append("  ".join(cells).rstrip())
-    out.append("")
-    out.append(textwrap.fill(CAUTION_LINE, PLAIN_WIDTH))
-    return "\n".join(out) + "\n"
+    return out
+
+
+def _visible_block(block: tuple) -> tuple:
+    """A report block with every text in it passed through :func:`engine.text.visible`."""
+    def clean(item):
+        if isinstance(item, str):
+            return visible(item)
+        if isinstance(item, (list, tuple)):
+            return type(item)(clean(part) for part in item)
+        return item
+    kind, *content = block
+    return (kind, *(clean(part) for part in content))
+
+
+def _plain(blocks) -> str:
+    """The report's blocks as plain text: one line per paragraph (a document or a mail program
+    wraps it to its own width) and tables aligned in columns."""
+    # labels from the file with their control and direction characters written as escapes
+    blocks = [_visible_block(block) for block in blocks]
+    out: list[str] = []
+    for kind, *content in blocks:
+        if kind in ("p", "small"):
+            out += [content[0], ""]
+        elif kind == "h":
+            out += [content[0], ""]
+        elif kind == "list":
+            out += [f"- {item}" for item in content[0]] + [""]
+        elif kind == "pairs":
+            width = max(len(name) for name, _ in content[0])
+            out += [f"{name.ljust(width)}  {value}" for name, value in content[0]] + [""]
+        elif kind == "grid":
+            out += _plain_grid(*content) + [""]
+    return "\n".join(out).rstrip("\n") + "\n"
+
+
+# Shown after the suggestion's own cautions (which already cover p-values, passing checks and
+# regulated work).
+GENERAL_CAUTIONS = (
+    "These procedures assume two independent groups; paired or repeated measurements need a "
+    "paired procedure.",
+)
+
+
+def cautions(analysis) -> list[str]:
+    """What to keep in mind before relying on the findings: the suggestion's own cautions, then
+    the ones that hold for every comparison."""
+    return list(analysis.recommendation.cautions) + list(GENERAL_CAUTIONS)
+
+
+def agreement(analysis) -> str:
+    """Whether every applicable procedure gives the same answer, in one to three sentences."""
+    robustness = analysis.robustness
+    return agreement_text(robustness, analysis.options.alternative, analysis.groups.labels,
+                          _level(robustness.level))
+
+
+def _side_by_side_blocks(analysis) -> list[tuple]:
+    rows = analysis.robustness.rows
+    if not rows:
+        return []
+    head, body, notes = procedure_table(
+        analysis.robustness, analysis.options.alternative, analysis.groups.labels,
+        _level(analysis.robustness.level),
+        lambda key: _numbers(analysis, key, analysis.procedures[key]))
+    blocks = [("h", "Every applicable procedure side by side"), ("p", agreement(analysis)),
+              ("grid", head, body, 1, True, 3)]
+    blocks += [("small", note) for note in dict.fromkeys(notes)]
+    return blocks
+
+
+def _reason_blocks(analysis, key: str) -> list[tuple]:
+    suggestion = analysis.recommendation
+    title = (f"Why the {suggestion.name}" if key == suggestion.key
+             else f"Why the {suggestion.name} was suggested")
+    blocks = [("h", title)]
+    if suggestion.reasons:
+        blocks.append(("list", list(suggestion.reasons)))
+    weighed = [f"{capital(option.name)}: {option.why_not}" for option in suggestion.considered]
+    if weighed:
+        blocks += [("h", "Also weighed"), ("list", weighed)]
+    return blocks
+
+
+def _check_blocks(analysis) -> list[tuple]:
+    diagnostics = analysis.diagnostics
+    readings = [finding.text for finding in getattr(diagnostics, "findings", ())]
+    readings += [note.text for note in getattr(analysis, "notes", ())]
+    if not readings:
+        return []
+    return [("h", "Shape and spread of the groups"), ("list", readings),
+            ("small", gloss_line("skewness", "excess kurtosis", "interquartile range"))]
+
+
+def _blocks(analysis, key: str, paragraph: str, rows, head, body) -> list[tuple]:
+    blocks: list[tuple] = [("p", paragraph), ("pairs", rows), ("h", "The groups"),
+                           ("grid", head, body, 1, False)]
+    blocks += _side_by_side_blocks(analysis)
+    blocks += _reason_blocks(analysis, key)
+    blocks += _check_blocks(analysis)
+    blocks.append(("small", CAUTION_LINE))
+    return blocks
 
 
 def _check_procedure(analysis, key: str) -> None:
@@ -617,8 +652,12 @@ def render(analysis, *, procedure: str | None = None) -> ReportText:
     ReportText
         A paragraph in the usual reporting convention (groups with their summaries, the estimate
         with its interval, the test statistic with degrees of freedom and the p-value, the effect
-        size with its interval, values left out), an HTML fragment with the paragraph and two
-        compact tables, and a plain-text version with aligned tables.
+        size with its interval, values left out); an HTML fragment and a plain-text version
+        that carry what a reviewer asks for: the paragraph, the result and the groups as
+        tables, every applicable procedure side by side (estimate with the direction of the
+        difference, interval, p-value, reading), the reasons for the suggested procedure and
+        the alternatives weighed, and the shape and spread readings with a plain gloss of their
+        terms. Plain-text paragraphs are single lines.
 
     Notes
     -----
@@ -637,5 +676,5 @@ def render(analysis, *, procedure: str | None = None) -> ReportText:
     paragraph = visible(_paragraph(analysis, key, result, numbers))  # one line, as it is shown
     rows = _result_rows(analysis, key, result, numbers)
     head, body = _summary_rows(analysis, _summary_decimals(analysis, numbers.decimals))
-    return ReportText(paragraph=paragraph, html=_html(paragraph, rows, head, body),
-                      plain=_plain(paragraph, rows, head, body))
+    blocks = _blocks(analysis, key, paragraph, rows, head, body)
+    return ReportText(paragraph=paragraph, html=_html(blocks), plain=_plain(blocks))

@@ -10,6 +10,7 @@ import pandas as pd
 
 from ..errors import ColumnProblem, DataProblem, OptionProblem
 from ..results import Finding, Groups
+from ..wording import plural
 from ._files import wrap_unexpected
 from .cells import cell_text, is_missing_marker
 from .layout import trimmed_levels
@@ -243,7 +244,8 @@ def _long_cells(table, value, group, pick, findings, extra):
         shown = _rows_text(table, unlabelled)
         findings.append(Finding(
             "no_label", "note",
-            f"{unlabelled.size} row(s) have no group label in '{group}' and were left out ({shown})."))
+            f"{plural(unlabelled.size, 'row')} {plural(unlabelled.size, 'has', number=False)} no group label in "
+            f"'{group}' and {plural(unlabelled.size, 'was', number=False)} left out ({shown})."))
     return cells, other_rows
 
 
@@ -302,7 +304,8 @@ def _set_aside_cells(cells, set_aside, findings) -> tuple[list[np.ndarray], dict
     if unused:
         findings.append(Finding(
             "set_aside_unused", "info",
-            f"{unused} cell(s) set aside are not among the values of the two groups and changed nothing."))
+            f"{plural(unused, 'cell')} set aside {plural(unused, 'is', number=False)} not among the values of "
+            "the two groups and changed nothing."))
     return masks, reasons
 
 
@@ -375,7 +378,8 @@ def _screen(table, cells, group, other_rows, set_aside, findings, extra) -> Inta
     if other_rows:
         findings.append(Finding(
             "other_groups", "info",
-            f"{other_rows} row(s) belong to other groups in '{group}' and were not used."))
+            f"{plural(other_rows, 'row')} {plural(other_rows, 'belongs', number=False)} to other groups in "
+            f"'{group}' and {plural(other_rows, 'was', number=False)} not used."))
     wide = group is None
     skip = [group] if group else []
     skip += [c.column for c in cells]
@@ -477,12 +481,13 @@ def _exclusion_findings(table, cells: _Cells, k: int, per_group) -> list[Finding
             as_text = (" or hold " + ", ".join(f"'{t}'" for t in marked[:_SHOWN])) if marked else ""
             out.append(Finding(
                 "missing", "note",
-                f"{rows.size} cell(s) of {where} are blank{as_text} and were left out "
+                f"{plural(rows.size, 'cell')} of {where} {plural(rows.size, 'is', number=False)} blank{as_text} and "
+                f"{plural(rows.size, 'was', number=False)} left out "
                 f"({_rows_text(table, rows)}).", k))
         if tail.size:
             out.append(Finding(
                 "shorter_column", "info",
-                f"Column '{cells.column}' ends {tail.size} row(s) before the longest column; its "
+                f"Column '{cells.column}' ends {plural(tail.size, 'row')} before the longest column; its "
                 f"blank cells below file row {table.file_row(cells.trailing_from) - 1} are counted as "
                 "missing, as expected when the groups differ in size.", k))
     texts = per_group["non_numeric"]
@@ -491,17 +496,21 @@ def _exclusion_findings(table, cells: _Cells, k: int, per_group) -> list[Finding
         more = f" and {len(texts) - _SHOWN} more" if len(texts) > _SHOWN else ""
         out.append(Finding(
             "non_numeric", "warning",
-            f"{len(texts)} cell(s) of {where} are not numbers and were left out: {shown}{more}.", k))
+            f"{plural(len(texts), 'cell')} of {where} {plural(len(texts), 'is', number=False)} not "
+            f"{plural(len(texts), 'a number', 'numbers', number=False)} and "
+            f"{plural(len(texts), 'was', number=False)} left out: {shown}{more}.", k))
     infinite = per_group["infinite"]
     if infinite:
         shown = ", ".join(f"row {table.file_row(row)} '{text}'" for row, text in infinite[:_SHOWN])
         out.append(Finding(
             "infinite", "warning",
-            f"{len(infinite)} cell(s) of {where} hold an infinite value and were left out: {shown}.", k))
+            f"{plural(len(infinite), 'cell')} of {where} {plural(len(infinite), 'holds', 'hold', number=False)} "
+            f"an infinite value and {plural(len(infinite), 'was', number=False)} left out: {shown}.", k))
     aside = per_group["set_aside"]
     if aside:
         shown = ", ".join(f"row {table.file_row(row)}" + (f" ({why})" if why else "") for row, why in aside[:_SHOWN])
         out.append(Finding(
             "set_aside", "note",
-            f"{len(aside)} value(s) of {where} were set aside by hand: {shown}.", k))
+            f"{plural(len(aside), 'value')} of {where} {plural(len(aside), 'was', number=False)} set aside by "
+            f"hand: {shown}.", k))
     return out

@@ -10,6 +10,7 @@ import numpy as np
 import pandas as pd
 
 from ..errors import ColumnProblem, FileProblem
+from ..wording import plural
 from ..results import Finding
 from ._files import (
     HEAD_BYTES,
@@ -195,7 +196,8 @@ def build_table(
     notes = notes + name_notes
     frame, trailing = _trim_blank_tail(frame)
     if trailing:
-        notes.append(f"{trailing} blank row(s) at the end were passed over.")
+        notes.append(f"{plural(trailing, 'blank row')} at the end {plural(trailing, 'was', number=False)} "
+                     "passed over.")
     if len(frame) == 0:
         where = f"sheet '{sheet}' of {path.name}" if sheet else path.name
         raise FileProblem(f"{where} has column names but no rows of data." if header

@@ -13,6 +13,7 @@ import numpy as np
 import pandas as pd
 
 from ..results import Finding, frozen_mapping
+from ..rounding import fixed, shared_decimals
 from .layout import looks_like_id_name
 
 __all__ = [
@@ -141,12 +142,15 @@ def possible_slips(
         if shift[i]:
             power = 10 ** abs(int(shift[i]))
             times = f"{power} times" if shift[i] > 0 else f"1/{power} of"
-            text = (f"{where}: {value:g} is about {times} the group median ({median:g}); it may "
+            text = (f"{where}: {value:.15g} is about {times} the group median "
+                    f"({fixed(median, shared_decimals([median]))}); it may "
                     "have a misplaced decimal point. It was kept.")
         else:
             side = "above the upper" if value > far_high else "below the lower"
-            text = (f"{where}: {value:g} lies more than 3 IQR {side} quartile (quartiles "
-                    f"{q1:g} and {q3:g}); check it for a typing slip. It was kept.")
+            shared = shared_decimals([q1, q3])
+            text = (f"{where}: {value:.15g} lies more than 3 interquartile ranges (the width of the "
+                    f"middle half of the values) {side} quartile (quartiles {fixed(q1, shared)} "
+                    f"and {fixed(q3, shared)}); check it for a typing slip. It was kept.")
         findings.append(Finding("possible_slip", "note", text, group))
     if flagged.size > MAX_SLIPS_LISTED:
         findings.append(Finding(

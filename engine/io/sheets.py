@@ -8,6 +8,7 @@ import numpy as np
 import pandas as pd
 
 from ..errors import ColumnProblem, FileProblem
+from ..wording import plural
 from ._files import one_line
 from .cells import cell_text
 from .sniff import has_header, title_note, title_rows, title_texts
@@ -103,12 +104,13 @@ def read_sheet(path: Path, kind: str, sheet: str | None):
     notes = [f"Read {_KIND_NAMES[kind]}, sheet '{chosen}'"
              + (f" (of {len(names)}: {', '.join(repr(n) for n in names)})." if len(names) > 1 else ".")]
     if top:
-        notes.append(f"The first {top} row(s) of the sheet are blank and were passed over.")
+        notes.append(f"The first {plural(top, 'row')} of the sheet {plural(top, 'is', number=False)} blank "
+                     f"and {plural(top, 'was', number=False)} passed over.")
     titles = title_rows(sample, body.shape[1])
     if titles:
         below = has_header(sample[titles:], ".", None)
         if below[0]:  # titles sit above column names; above bare data, every row is kept
-            notes.append(title_note(title_texts(sample[:titles]), titles, "row(s)"))
+            notes.append(title_note(title_texts(sample[:titles]), titles, "row"))
             header, why = below
             body, sample, top = body.iloc[titles:], sample[titles:], top + titles
     first = f"Row {top + 1}" if top else "The first row"

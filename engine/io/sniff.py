@@ -14,6 +14,7 @@ from collections import Counter
 from dataclasses import dataclass
 
 from ..errors import FileProblem
+from ..wording import plural
 
 __all__ = ["TextFormat", "detect_encoding", "sniff_text", "has_header", "DELIMITER_NAMES", "looks_numeric",
            "title_rows", "title_texts", "title_note"]
@@ -161,9 +162,11 @@ def title_texts(rows: list[list[str]]) -> list[str]:
 
 
 def title_note(texts: list[str], rows: int, what: str) -> str:
-    """The note that says which title rows (``rows`` lines of them) were passed over."""
+    """The note that says which title rows (``rows`` of them, each a ``what``: "line" or "row")
+    were passed over."""
     shown = "; ".join(f"'{_shorten(t)}'" for t in texts[:2]) + ("; ..." if len(texts) > 2 else "")
-    return f"{rows} {what} of title above the column names were passed over ({shown})."
+    return (f"{plural(rows, what)} of title above the column names {plural(rows, 'was', number=False)} "
+            f"passed over ({shown}).")
 
 
 def _title_rows(body: str, delimiter: str, rows: list[list[str]]) -> tuple[list[str], int, int]:
@@ -368,8 +371,9 @@ def sniff_text(head: bytes, *, name: str, kind: str, truncated: bool) -> TextFor
     notes.append((f"{first} holds column names: " if header else
                   f"{first} is data, not column names: ") + why + ".")
     if skip:
-        notes.append(f"{skip} blank line(s) at the top of the file were passed over.")
+        notes.append(f"{plural(skip, 'blank line')} at the top of the file {plural(skip, 'was', number=False)} "
+                     "passed over.")
     if titles:
-        notes.append(title_note(titles, title_lines, "line(s)"))
+        notes.append(title_note(titles, title_lines, "line"))
     return TextFormat(codec, delimiter, decimal, thousands, header, skip + title_lines,
                       _text_columns(rows, header, decimal, thousands), tuple(notes))

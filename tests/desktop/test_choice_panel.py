@@ -117,8 +117,9 @@ def test_each_card_leads_with_its_most_severe_finding(panel):
 def test_suggestion_shows_reasons_and_alternatives(panel):
     suggested = panel.session.analysis.recommendation
     text = panel.suggestion.text()
-    assert suggested.name in text
-    assert all(option.name in text for option in suggested.considered)
+    # every name as a label: with a capital first letter, one style for all
+    assert report.capital(suggested.name) in text
+    assert all(report.capital(option.name) in text for option in suggested.considered)
 
 
 def test_picking_writes_the_choice_and_says_what_it_assumes(panel):
@@ -175,3 +176,17 @@ def test_what_the_user_knows_goes_into_the_choices(panel):
     assert session.choices.known_sd == (1.5, 2.25)
     panel.sd_box.setChecked(False)
     assert session.choices.known_sd is None
+
+
+def test_check_figures_read_in_words_with_plain_hover_help(panel):
+    from desktop.choice_panel import CHECK_TIPS, SHAPE_PLOT_TIP, _apart_text
+
+    assert _apart_text(0, 0) == "none apart from the rest"
+    assert _apart_text(1, 0) == "1 value apart from the rest"
+    assert _apart_text(2, 1) == "3 values apart from the rest, 1 of them far"
+    assert "width of the middle half" in CHECK_TIPS["outliers"]
+    assert "heavy the tails" in CHECK_TIPS["kurtosis"]
+    assert "Density is" in SHAPE_PLOT_TIP
+    assert all(plot.toolTip() == SHAPE_PLOT_TIP for plot, _ in panel.shape_plots)
+    names = [panel.picker.itemText(i) for i in range(panel.picker.count())]
+    assert all(name[:1].isupper() for name in names)

@@ -120,3 +120,24 @@ def test_the_program_ends_cleanly_with_findings_on_the_clipboard(tmp_path):
     done = subprocess.run([sys.executable, str(script)], cwd=root, capture_output=True, timeout=60,
                           env={**os.environ, "PYTHONPATH": str(root)})
     assert done.returncode == 0, done.stderr.decode(errors="replace")[-500:]
+
+
+def test_copied_findings_carry_what_a_reviewer_asks_for(ready_panel):
+    panel, groups = ready_panel
+    panel.copy_findings()
+    data = QApplication.clipboard().mimeData()
+    analysis = panel.session.analysis
+    labels = analysis.groups.labels
+    parser = _Cells()
+    parser.feed(data.html())
+    assert parser.tables >= 3  # the result, the groups, every procedure side by side
+    plain = data.text()
+    assert f"Estimate, {labels[0]} minus {labels[1]}" in plain
+    for row in analysis.robustness.rows:
+        assert report.capital(row.name) in plain
+    for reason in analysis.recommendation.reasons:
+        assert reason in plain
+    for finding in analysis.diagnostics.findings:
+        assert finding.text in plain
+    # paragraphs are single lines, for the document to wrap
+    assert report.render(analysis).paragraph in plain.splitlines()

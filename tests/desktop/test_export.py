@@ -112,3 +112,85 @@ def test_report_date_is_the_one_given(panel):
     page = export.report_html(analysis, panel.session.choices, procedure="welch_t",
                               findings_html="<p>x</p>", cautions=["be careful"], when=when)
     assert "2026-03-04 05:06 UTC" in page and "<li>be careful</li>" in page
+
+
+def test_the_checksum_is_named_and_set_to_copy_back_exactly(panel, data_file, tmp_path):
+    text = panel.export_report(tmp_path / "report.html").read_text(encoding="utf-8")
+    digest = hashlib.sha256(data_file.read_bytes()).hexdigest()  # reference: hashlib
+    cell = re.search(r"<td([^>]*)>" + digest + "</td>", text)
+    assert cell is not None
+    # one line, monospace (no ligatures such as "ff" to break a copy), the algorithm named
+    assert "nowrap" in cell.group(1) and "monospace" in cell.group(1)
+    assert "SHA-256" in text
+
+
+def test_pdf_pictures_fill_the_text_width_and_no_page_is_left_empty(panel, tmp_path, qapp):
+    from PySide6.QtGui import QPdfWriter
+
+    analysis = panel.session.analysis
+    key = panel.procedure_key()
+    from desktop.findings_panel import _report_images
+
+    images = _report_images(analysis, key)
+    width = export.pdf_text_width()
+    html = export.report_html(analysis, panel.session.choices, procedure=key,
+                              findings_html=report.render(analysis, procedure=key).html,
+                              cautions=panel.cautions_list(), images=images, embed_images=False,
+                              image_width=width)
+    # every picture as wide as the text, its caption in a paragraph of its own
+    assert [round(float(w)) for w in re.findall(r"<img [^>]*width='(\d+)'", html)] == [round(width)] * 2
+    assert not re.search(r"<img[^>]*><br>", html)
+    writer = QPdfWriter(str(tmp_path / "layout.pdf"))
+    export._pdf_page_setup(writer)
+    document = export.pdf_document(html, images, writer)
+    layout = document.documentLayout()
+    page = document.pageSize().height()
+    last = document.lastBlock()
+    while last.isValid() and not last.text().strip():
+        last = last.previous()
+    bottom = layout.blockBoundingRect(last).bottom()
+    # the last page holds the last words (an empty block would have opened a page of its own)
+    assert document.pageCount() == int(bottom // page) + 1
+
+
+@pytest.mark.skipif(not __import__("shutil").which("pdftotext"), reason="needs pdftotext (poppler-utils)")
+def test_the_checksum_copied_out_of_the_pdf_is_the_files(panel, data_file, tmp_path):
+    import subprocess
+
+    path = panel.export_report(tmp_path / "report.pdf")
+    text = subprocess.run(["pdftotext", str(path), "-"], capture_output=True, text=True, check=True).stdout
+    # reference: hashlib.sha256 of the file's bytes, found whole on one line of the PDF's text
+    assert hashlib.sha256(data_file.read_bytes()).hexdigest() in text.splitlines()
+    pages = text.split("\f")[:-1]  # each page ends with a form feed
+    assert pages and all(page.strip() for page in pages)  # no blank page
+
+
+def test_report_table_rows_stay_whole_and_hold_no_stray_text(panel, tmp_path):
+    # a word processor opening the page splits a row across pages, and may show text between
+    # rows as a row of its own; checked by eye in LibreOffice Writer 7.4 (HTML import, to PDF)
+    from html.parser import HTMLParser
+
+    class Rows(HTMLParser):
+        def __init__(self):
+            super().__init__()
+            self.stack, self.rows, self.stray = [], [], []
+
+        def handle_starttag(self, tag, attrs):
+            if tag == "tr":
+                self.rows.append(dict(attrs).get("style", ""))
+            if tag not in ("img", "br"):
+                self.stack.append(tag)
+
+        def handle_endtag(self, tag):
+            while self.stack and self.stack.pop() != tag:
+                pass
+
+        def handle_data(self, data):
+            if self.stack and self.stack[-1] in ("table", "tr", "thead", "tbody"):
+                self.stray.append(data)
+
+    parser = Rows()
+    parser.feed(panel.export_report(tmp_path / "report.html").read_text(encoding="utf-8"))
+    assert len(parser.rows) > 20
+    assert all("page-break-inside: avoid" in style for style in parser.rows)
+    assert not [text for text in parser.stray if text.strip() or text]

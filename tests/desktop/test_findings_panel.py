@@ -101,7 +101,7 @@ def test_a_pick_switches_the_findings_to_that_procedure(panel, analysis, groups)
 def test_robustness_rows_and_agreement(panel, analysis):
     panel.session.store("analysis", analysis)
     rows = analysis.robustness.rows
-    assert panel.plot.row_names() == [row.name for row in rows]
+    assert panel.plot.row_names() == [report.capital(row.name) for row in rows]
     verdict = "agree" if analysis.robustness.agree else "disagree"
     assert verdict in panel.agreement.text()
     for caution in analysis.recommendation.cautions:
@@ -137,3 +137,21 @@ def test_the_panels_own_save_button_says_how_it_went(panel, analysis, tmp_path, 
     target = tmp_path / "report.odt"
     panel.export_button.click()
     assert not target.exists() and ".html or .pdf" in panel.status.text()
+
+
+def test_a_one_sided_question_against_the_data_reads_as_such(panel):
+    rng = np.random.default_rng(8)
+    groups = Groups(("a", "b"), rng.normal(10, 1, 20), rng.normal(12, 1, 20))
+    analysis = analyze(groups, Options(alternative="greater", n_resamples=300, seed=1))
+    panel.session.store("analysis", analysis)
+    assert "none finds a clear difference" not in panel.agreement.text()
+    assert "the other way" in panel.agreement.text()
+    assert "the other way" in panel.headline.text()
+    assert "One-sided p-value" in [row[0] for row in _cells(panel)]
+
+
+def test_a_dot_without_an_interval_is_explained(panel, analysis):
+    panel.session.store("analysis", analysis)
+    assert analysis.procedures["permutation_median"].interval is None
+    assert not panel.no_interval.isHidden()
+    assert "permutation test of medians gives a p-value but no interval" in panel.no_interval.text()

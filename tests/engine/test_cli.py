@@ -121,7 +121,7 @@ def test_huge_values_print_no_numpy_warning(tmp_path):
                           capture_output=True, text=True, cwd=root, timeout=120)
     assert done.returncode == 0, done.stderr
     assert done.stderr == ""
-    assert "sd 7.07107e+307" in done.stdout
+    assert "SD 7.07e+307" in done.stdout  # the true SD of 3.5 and 1e308, not infinity
 
 
 def test_a_failed_suggested_procedure_leaves_the_rest_reported(monkeypatch):
@@ -138,3 +138,20 @@ def test_a_failed_suggested_procedure_leaves_the_rest_reported(monkeypatch):
     assert "[warning] The Welch t-test could not be computed: a solver gave up." in out
     assert "[warning] The pooled t-test could not be computed: a solver gave up." in out
     assert "Mann-Whitney" in out
+
+
+def test_plain_output_shows_the_suggestion_its_reasons_alternatives_and_cautions():
+    code, out, err = run("analyze", str(DEMO / "bolt_strength.csv"), "--resamples", "300", "--seed", "1")
+    assert code == 0, err
+    document = run_json("analyze", str(DEMO / "bolt_strength.csv"))
+    recommendation = document["recommendation"]
+    lines = out.splitlines()
+    assert f"Suggested procedure: {recommendation['name']}" in lines
+    for reason in recommendation["reasons"]:
+        assert f"- {reason}" in lines
+    for caution in recommendation["cautions"]:
+        assert f"- {caution}" in lines
+    for name in document["procedures"]:
+        assert document["procedures"][name]["name"].lower() in out.lower()
+    assert "read the reasons above" not in out
+    assert "north_forge minus south_forge" in out

@@ -313,7 +313,7 @@ def test_title_lines_above_the_column_names_are_passed_over_with_a_note(tmp_path
     assert table.frame["strength"].tolist() == [812.5, 799.1, 845.2]
     assert table.file_row(0) == 5  # reference: the line numbers of the file as written
     note = " ".join(n.text for n in table.notes)
-    assert "3 line(s) of title" in note and "Tensile test export" in note
+    assert "3 lines of title" in note and "Tensile test export" in note
 
 
 def test_a_first_row_with_one_filled_cell_above_bare_data_is_kept(tmp_path):
@@ -356,7 +356,7 @@ def test_a_title_above_the_column_names_of_a_sheet_is_passed_over(tmp_path, exte
     assert table.frame["strength"].tolist() == STRENGTHS
     assert table.file_row(0) == 4  # reference: the row numbers the spreadsheet shows
     notes = " ".join(n.text for n in table.notes)
-    assert "2 row(s) of title" in notes and "Tensile tests, press line 2" in notes
+    assert "2 rows of title" in notes and "Tensile tests, press line 2" in notes
     assert "Row 3 holds column names" in notes
 
 

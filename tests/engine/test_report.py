@@ -300,7 +300,7 @@ def test_html_is_well_formed_with_tables_and_escaped_labels(groups, key):
     assert parsed.tags.count("table") == 2
     assert "&lt;new&gt; &amp; co" in fragment and "<new>" not in fragment
     assert "glue &lt;trial&gt;.csv" in fragment
-    assert set(parsed.tags) <= {"p", "table", "tr", "th", "td"}
+    assert set(parsed.tags) <= {"p", "h3", "ul", "li", "table", "thead", "tbody", "tr", "th", "td"}
     text = "".join(parsed.text)
     assert "adhesive <new> & co" in text  # unescaped back by the parser: the label survives intact
     assert "not the size of an effect" in text
@@ -313,7 +313,7 @@ def test_html_tables_share_the_width_and_keep_short_cells_on_one_line(groups):
     tables = fragment.split("<table")[1:]
     assert len(tables) == 2
     for table in tables:
-        first_row = table.split("<tr>", 1)[1].split("</tr>")[0]
+        first_row = re.split(r"<tr[^>]*>", table, maxsplit=1)[1].split("</tr>")[0]
         shares = [int(w) for w in re.findall(r'width="(\d+)%"', first_row)]
         assert len(shares) >= 2 and abs(sum(shares) - 100) <= len(shares)
     summary = tables[1]
@@ -402,7 +402,88 @@ def test_the_paragraph_says_what_the_result_means_at_the_chosen_level(shift, alt
         assert "do not give clear evidence" in text and "does not show the groups are the same" in text
 
 
-@pytest.mark.parametrize("value, text", [(-9.2e-15, "0.00"), (0.0049, "0.00"), (-0.0051, "-0.0051"),
+@pytest.mark.parametrize("value, text", [(-9.2e-15, "0.00"), (0.0049, "0.0049"), (-0.0051, "-0.0051"),
                                          (4.567, "4.6"), (-1.2, "-1.2"), (21.3, "21"), (float("nan"), "n/a")])
 def test_format_shape_hides_rounding_noise_only(value, text):
     assert report.format_shape(value) == text
+
+
+# -- what a reviewer asks for ---------------------------------------------------------------------
+
+@pytest.fixture
+def full_analysis():
+    from engine.analysis import analyze
+
+    rng = np.random.default_rng(12)
+    groups = Groups(("north_forge", "south_forge"), rng.normal(840, 15, 32), rng.normal(818, 27, 30))
+    return analyze(groups, Options(n_resamples=400, seed=2))
+
+
+def test_plain_paragraphs_are_single_lines(full_analysis):
+    text = render(full_analysis)
+    lines = text.plain.splitlines()
+    assert len(text.paragraph) > 120 and text.paragraph in lines
+    assert report.CAUTION_LINE in lines
+    assert report.agreement(full_analysis) in lines
+    for reason in full_analysis.recommendation.reasons:
+        assert f"- {reason}" in lines
+
+
+@pytest.mark.parametrize("form", ["html", "plain"])
+def test_the_report_carries_every_procedure_the_reasons_and_the_checks(full_analysis, form):
+    analysis = full_analysis
+    text = getattr(render(analysis), form)
+    if form == "html":
+        text = "".join(_parse(text).text).replace("\xa0", " ")  # numbers keep to one line
+    assert "Estimate, north_forge minus south_forge" in text
+    assert "Difference in means, north_forge minus south_forge" in text
+    for row in analysis.robustness.rows:
+        shown = report.display_numbers(analysis, row.key)
+        assert report.capital(row.name) in text and shown.estimate in text
+        if shown.interval is not None:
+            assert shown.interval in text
+        if shown.p is not None:
+            assert shown.p in text
+    # the Welch p-value as scipy gives it (reference: scipy.stats.ttest_ind(equal_var=False))
+    welch = stats.ttest_ind(analysis.groups.x, analysis.groups.y, equal_var=False).pvalue
+    assert format_p(welch) in text
+    for reason in analysis.recommendation.reasons:
+        assert reason in text
+    for option in analysis.recommendation.considered:
+        assert report.capital(option.name) in text and option.why_not in text
+    for finding in analysis.diagnostics.findings:
+        assert finding.text in text
+    assert "interquartile range (IQR) is the width of the middle half" in text
+    assert "Excess kurtosis measures how heavy the tails are" in text
+
+
+def test_a_row_without_an_interval_says_why(full_analysis):
+    assert full_analysis.procedures["permutation_median"].interval is None
+    plain = render(full_analysis).plain
+    row = next(line for line in plain.splitlines() if line.startswith("Permutation test, difference in medians"))
+    assert " none " in row
+    assert "gives a p-value but no interval" in plain
+
+
+def test_a_one_sided_question_against_the_data_is_not_read_as_no_difference():
+    from engine.analysis import analyze
+
+    rng = np.random.default_rng(5)
+    # group 2 clearly higher; the question "is group 1 higher?" (the same as "is group 2 lower?")
+    groups = Groups(("a", "b"), rng.normal(10, 1, 20), rng.normal(12, 1, 20))
+    analysis = analyze(groups, Options(alternative="greater", n_resamples=300, seed=1))
+    # reference: scipy.stats.ttest_ind(x, y, equal_var=False): t far below 0 (about -5.5)
+    two_sided = stats.ttest_ind(groups.x, groups.y, equal_var=False)
+    assert two_sided.statistic < -4
+    text = render(analysis, procedure="welch_t")
+    assert "The data point clearly the other way: here a was lower than b" in text.paragraph
+    assert "two-sided question has to be chosen before the data are seen" in text.paragraph
+    assert "does not show the groups are the same" not in text.paragraph
+    agreement = report.agreement(analysis)
+    assert "none finds a clear difference" not in agreement
+    assert "every one of them puts a lower than b, the other way" in agreement
+    assert "not clear: the data point the other way" in text.plain
+    # asked the right way round, the same data give the ordinary verdict
+    right = analyze(groups, Options(alternative="less", n_resamples=300, seed=1))
+    assert "other way" not in render(right, procedure="welch_t").paragraph
+    assert "all find clear evidence of a being lower than b" in report.agreement(right)

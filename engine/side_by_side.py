@@ -1,0 +1,168 @@
+"""Every applicable procedure side by side: the table of estimates, intervals and p-values, the
+sentence on whether they agree, and what to say when a one-sided question was asked against the
+direction of the data.
+
+GUI-free. The numbers in the table are written by ``engine.report`` (passed in as
+``numbers_for``), so that each row reads exactly as that procedure's own report.
+"""
+
+from __future__ import annotations
+
+from typing import Callable
+
+from .rounding import format_p
+from .wording import capital, plural
+
+__all__ = ["against_question", "reverse_is_clear", "question_claim", "row_reading",
+           "agreement_text", "against_sentence", "procedure_table", "NO_INTERVAL_WHY", "NO_P_VALUE_WHY"]
+
+# Why a procedure gives a p-value but no interval, for the rows that have none.
+NO_INTERVAL_WHY = {
+    "permutation_median": ("The permutation test of medians gives a p-value but no interval: "
+                           "turning it into an interval would take the two groups to have the "
+                           "same shape and spread; the bootstrap interval of medians gives one."),
+}
+_NO_INTERVAL_DEFAULT = "This procedure gives a p-value but no interval."
+# Why the bootstrap rows have no p-value, and how they are read without one.
+NO_P_VALUE_WHY = ("A bootstrap gives an interval but no p-value; its row reads as finding a "
+                  "difference when the interval leaves out zero.")
+
+
+def against_question(alternative: str, estimate: float | None) -> bool:
+    """Whether a one-sided question points the other way from an estimate (group 1 minus
+    group 2): "is group 1 higher?" with group 1 lower in the data, or the reverse."""
+    if estimate is None or estimate != estimate:
+        return False
+    return (alternative == "greater" and estimate < 0) or (alternative == "less" and estimate > 0)
+
+
+def reverse_is_clear(p_value: float | None, level: float) -> bool:
+    """Whether the one-sided question in the other direction would have been clear at the
+    same level: its p-value, 1 - p for a continuous statistic, is below 1 - level."""
+    return p_value is not None and 1.0 - p_value < 1.0 - level
+
+
+def _word(alternative: str) -> str:
+    return "higher" if alternative == "greater" else "lower"
+
+
+def _other(alternative: str) -> str:
+    return "lower" if alternative == "greater" else "higher"
+
+
+def question_claim(alternative: str, labels: tuple[str, str]) -> str:
+    """What the question looks for: "a difference between the groups" or "A being lower than B"."""
+    if alternative == "two-sided":
+        return "a difference between the groups"
+    return f"{labels[0]} being {_word(alternative)} than {labels[1]}"
+
+
+def against_sentence(alternative: str, labels: tuple[str, str], clear: bool) -> str:
+    """The sentences for a one-sided question asked against the direction of the data."""
+    first, second = labels
+    strength = "clearly " if clear else ""
+    return (f"The data point {strength}the other way: here {first} was {_other(alternative)} than "
+            f"{second}, while the question asked whether {first} is {_word(alternative)}. A "
+            "one-sided question cannot find a difference in the direction it did not ask about, "
+            "so this result is no sign that the groups are alike; to look for a difference either "
+            "way, the two-sided question has to be chosen before the data are seen.")
+
+
+def row_reading(row, alternative: str, labels: tuple[str, str]) -> str:
+    """The verdict of one side-by-side row in a few words."""
+    if row.finds_difference:
+        if alternative == "two-sided":
+            return "finds a difference"
+        return f"finds {labels[0]} {_word(alternative)}"
+    if against_question(alternative, row.estimate):
+        return "not clear: the data point the other way"
+    return "no clear difference" if alternative == "two-sided" else "not clear"
+
+
+def agreement_text(robustness, alternative: str, labels: tuple[str, str], level_text: str) -> str:
+    """One sentence (or three) on whether the procedures agree at the chosen level.
+
+    A one-sided question that none of them answers while the data point the other way is said
+    so, never read as "no difference".
+    """
+    if not robustness.rows:
+        return "No procedure gave an interval or a p-value."
+    rows = _voting(robustness)
+    aside = [capital(row.name) for row in robustness.rows if row not in rows]
+    note = (f" Not counted: {'; '.join(aside)} (the notes under the table say why)." if aside else "")
+    if not rows:
+        return "No procedure gave a test that holds for these data." + note
+    return _agreement(robustness, rows, alternative, labels, level_text) + note
+
+
+def _voting(robustness) -> tuple:
+    """The rows that count towards whether the procedures agree."""
+    return tuple(getattr(robustness, "voting", robustness.rows))
+
+
+def _agreement(robustness, rows, alternative: str, labels: tuple[str, str], level_text: str) -> str:
+    count = plural(len(rows), "procedure")
+    finding = [row.name for row in rows if row.finds_difference]
+    claim = question_claim(alternative, labels)
+    if not finding and alternative != "two-sided":
+        other = [row for row in rows if against_question(alternative, row.estimate)]
+        if other:
+            every = "every one of them puts" if len(other) == len(rows) else f"{len(other)} of them put"
+            return (f"None of the {count} finds clear evidence of {claim}, the direction asked "
+                    f"about, at the {level_text} level; {every} {labels[0]} "
+                    f"{_other(alternative)} than {labels[1]}, the other way. A one-sided question "
+                    "cannot find that direction: to look for a difference either way, the "
+                    "two-sided question has to be chosen before the data are seen.")
+    if robustness.agree:
+        if finding:
+            verdict = ("all find a difference" if alternative == "two-sided"
+                       else f"all find clear evidence of {claim}")
+        else:
+            verdict = ("none finds a clear difference" if alternative == "two-sided"
+                       else f"none finds clear evidence of {claim}")
+        return f"The {count} agree at the {level_text} level: {verdict}."
+    others = [row.name for row in rows if not row.finds_difference]
+    found = "A difference is found" if alternative == "two-sided" else f"Clear evidence of {claim} is found"
+    return (f"The procedures disagree at the {level_text} level. {found} by "
+            f"{', '.join(finding)}, but not by {', '.join(others)}; the answer depends on the "
+            "procedure, so lean on the size of the difference and its interval.")
+
+
+def procedure_table(robustness, alternative: str, labels: tuple[str, str], level_text: str,
+                    numbers_for: Callable) -> tuple[list[str], list[list[str]], list[str]]:
+    """The side-by-side table: a heading row, one row per procedure, and notes under it.
+
+    ``numbers_for(key)`` gives the procedure's :class:`engine.report.DisplayNumbers`. Columns:
+    the procedure (with what it estimates, where its name does not say), the estimate (labelled
+    with the direction of the difference), its interval, the p-value and the reading at the chosen level. A row without an
+    interval or a p-value says "none", and why in a note under the table.
+    """
+    sided = "one-sided " if alternative != "two-sided" else ""
+    head = ["Procedure", f"Estimate, {labels[0]} minus {labels[1]}",
+            f"{sided}{level_text} interval".capitalize(), "p-value" if not sided else "One-sided p-value",
+            f"At {level_text}"]
+    body, notes = [], []
+    aside: dict[str, list[str]] = {}  # why some rows are not counted -> their names
+    for row in robustness.rows:
+        numbers = numbers_for(row.key)
+        if numbers.interval is None:
+            interval = "none"
+            notes.append(NO_INTERVAL_WHY.get(row.key, _NO_INTERVAL_DEFAULT))
+        else:
+            interval = numbers.interval
+        if row.p_value is None:
+            p = "none"
+            notes.append(NO_P_VALUE_WHY)
+        else:
+            p = format_p(row.p_value)
+        name = capital(row.name)
+        if row.estimate_name.lower() not in row.name.lower():  # what it estimates, if not named
+            name += f" ({row.estimate_name})"
+        reading = row_reading(row, alternative, labels)
+        if not getattr(row, "votes", True):
+            reading += " (not counted)"
+            aside.setdefault(row.not_voting_because, []).append(capital(row.name))
+        body.append([name, numbers.estimate, interval, p, reading])
+    notes += [f"Not counted in whether the procedures agree: {'; '.join(names)}. {because}"
+              for because, names in aside.items()]
+    return head, body, notes
