@@ -167,7 +167,7 @@ def _decimal_shifts(values: np.ndarray, median: float, low: float, high: float) 
     if median == 0 or outside.size == 0:
         return shifts
     candidates = values[outside]
-    with np.errstate(divide="ignore", invalid="ignore"):
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
         ratio = np.log10(candidates / median)
     for k in (1, 2, -1, -2):
         back = candidates / 10.0 ** k
