@@ -392,8 +392,13 @@ class MainWindow(QMainWindow):
         Returns False (with a message) when ``path`` is not a file, else True: the reading has
         started and its outcome arrives as a table in the session or a message in the bar.
         """
+        from engine.errors import FileProblem
+        from engine.io import check_regular
+
         path = Path(path).expanduser()
-        if not path.is_file():
+        try:
+            check_regular(path)  # the check the command makes too: no folder, pipe or device
+        except FileProblem:
             self.message_bar.show_message("not_a_file", name=path.name or str(path))
             return False
         self.groups_worker.cancel()

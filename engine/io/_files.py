@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import contextlib
 import hashlib
+import stat
 from pathlib import Path
 from typing import Iterator
 
@@ -19,6 +20,7 @@ __all__ = [
     "SHEET_KINDS",
     "HEAD_BYTES",
     "check_path",
+    "check_regular",
     "read_head",
     "file_checksum",
     "one_line",
@@ -61,9 +63,25 @@ def check_path(path: str | Path) -> tuple[Path, str]:
             f"{path.name} has {shown}; Twofold reads {', '.join(SUPPORTED_EXTENSIONS)} files.")
     if not path.exists():
         raise FileProblem(f"{path.name} was not found (looked in {path.parent}).")
-    if path.is_dir():
-        raise FileProblem(f"{path.name} is a folder, not a file.")
+    check_regular(path)
     return path, extension[1:]
+
+
+def check_regular(path: Path) -> None:
+    """Refuse a folder, a named pipe, a device or a socket: only a regular file can be read
+    without waiting forever on whatever writes to it (the window and the command share this)."""
+    try:
+        mode = path.stat().st_mode
+    except FileNotFoundError as error:
+        raise FileProblem(f"{path.name} was not found (looked in {path.parent}).") from error
+    except OSError as error:
+        raise _open_failure(path, error) from error
+    if stat.S_ISDIR(mode):
+        raise FileProblem(f"{path.name} is a folder, not a file.")
+    if not stat.S_ISREG(mode):
+        what = ("a named pipe" if stat.S_ISFIFO(mode) else "a socket" if stat.S_ISSOCK(mode)
+                else "a device" if stat.S_ISCHR(mode) or stat.S_ISBLK(mode) else "not a regular file")
+        raise FileProblem(f"{path.name} is {what}, not a saved file; save the data to a file and open that.")
 
 
 def available_memory() -> int | None:
@@ -141,8 +159,7 @@ def file_checksum(path: str | Path) -> str:
     path = Path(path)
     if not path.exists():
         raise FileProblem(f"{path.name} was not found (looked in {path.parent}).")
-    if path.is_dir():
-        raise FileProblem(f"{path.name} is a folder, not a file.")
+    check_regular(path)
     digest = hashlib.sha256()
     try:
         with open(path, "rb") as handle:

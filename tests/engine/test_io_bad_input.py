@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import builtins
+import os
 import zipfile
 
 import pandas as pd
@@ -35,6 +36,17 @@ def test_folder_instead_of_file(tmp_path):
     folder.mkdir()
     with pytest.raises(FileProblem, match=r"looks\.csv is a folder"):
         read_table(folder)
+
+
+@pytest.mark.parametrize("name", ["pipe.csv", "pipe.xlsx"])
+def test_a_named_pipe_is_refused_at_once_not_waited_on(tmp_path, name):
+    # opening a FIFO for reading blocks until a writer comes: the check must not open it
+    path = tmp_path / name
+    os.mkfifo(path)
+    with pytest.raises(FileProblem, match=rf"{name.replace('.', '[.]')} is a named pipe, not a saved file"):
+        read_table(path)
+    with pytest.raises(FileProblem, match="named pipe"):
+        file_checksum(path)
 
 
 @pytest.mark.parametrize("name", ["notes.docx", "table.json", "noextension"])
