@@ -11,7 +11,7 @@ from typing import Any, Callable, Mapping
 
 import numpy as np
 
-from .errors import Cancelled, OptionProblem
+from .errors import Cancelled, OptionProblem, names_its_source
 from .results import (ALTERNATIVES, EffectSize, Finding, GroupSummary, Groups, Interval, ProcedureResult,
                       frozen_mapping)
 from .summary import summarize
@@ -131,6 +131,7 @@ def _robustness(procedures: Mapping[str, ProcedureResult], level: float) -> Robu
     return Robustness(tuple(rows), agree=len(verdicts) <= 1, level=level)
 
 
+@names_its_source
 def analyze(
     groups: Groups,
     options: Options = Options(),

@@ -28,6 +28,7 @@ __all__ = [
     "available_memory",
     "check_memory",
     "TEXT_MEMORY_FACTOR",
+    "amount",
 ]
 
 SUPPORTED_EXTENSIONS: tuple[str, ...] = (".csv", ".tsv", ".txt", ".xlsx", ".xls", ".ods")
@@ -101,11 +102,14 @@ def check_memory(path: Path, size: int, factor: float, free: int | None) -> None
     need = size * factor
     if free is not None and need > free:
         raise FileProblem(
-            f"{path.name} is {_amount(size)}; reading it needs about {_amount(need)} of memory "
-            f"and {_amount(free)} are free. Close other programs, or split the file.")
+            f"{path.name} is {amount(size)}; reading it needs about {amount(need)} of memory "
+            f"and {amount(free)} are free. Close other programs, or split the file.")
 
 
-def _amount(size: float) -> str:
+def amount(size: float) -> str:
+    """Bytes in words a user reads: "0.7 MB", "830 MB", "7.3 GB", "550 TB"."""
+    if size >= 1e12:
+        return f"{size / 1e12:,.1f} TB" if size < 1e13 else f"{size / 1e12:,.0f} TB"
     if size >= 1e9:
         return f"{size / 1e9:.1f} GB"
     megabytes = max(size / 1e6, 0.1)
@@ -179,6 +183,8 @@ def wrap_unexpected(name: str, what: str, kind: type[TwofoldError] = FileProblem
         raise
     except MemoryError as error:
         raise kind(f"{name} is too large to {what} in the memory available.") from error
-    except Exception as error:  # a parser's own error: give the user one line, never a traceback
+    except (KeyboardInterrupt, SystemExit, GeneratorExit):
+        raise
+    except BaseException as error:  # a parser's own error, a Rust panic too: one line, never a traceback
         detail = one_line(error) or type(error).__name__
         raise kind(f"{name} could not be {what}: {detail}") from error

@@ -7,7 +7,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from ..errors import ColumnProblem
+from ..errors import ColumnProblem, about_file, listing, quoted
 from .table import Table
 
 __all__ = ["LayoutProposal", "propose_layout", "looks_like_id_name", "trimmed_levels", "MAX_GROUP_LEVELS"]
@@ -134,10 +134,15 @@ def propose_layout(table: Table) -> LayoutProposal:
     Wickham, H. (2014). Tidy data. Journal of Statistical Software 59(10), 1-23 (long and wide
     arrangements of the same measurements).
     """
+    with about_file(table.path.name, table.sheet):
+        return _propose_layout(table)
+
+
+def _propose_layout(table: Table) -> LayoutProposal:
     names = list(table.frame.columns)
     values = [n for n in names if _value_like(table, n)]
     if not values:
-        kinds = ", ".join(f"'{n}' ({table.column_kinds[n]})" for n in names)
+        kinds = listing([f"{quoted(n)}' ({table.column_kinds[n]}" for n in names])
         raise ColumnProblem(f"No column of {table.path.name} holds numbers; its columns are {kinds}.")
     identifiers = [n for n in values if _is_identifier(table, n)]
     measures = [n for n in values if n not in identifiers] or values
@@ -152,7 +157,7 @@ def propose_layout(table: Table) -> LayoutProposal:
             reasons.append(f"'{value_columns[0]}' holds numbers, so it is taken as the measurements.")
             if identifiers:
                 many = len(identifiers) > 1
-                reasons.append(f"{', '.join(repr(n) for n in identifiers)} "
+                reasons.append(f"{listing(identifiers)} "
                                f"{'look like identifiers' if many else 'looks like an identifier'}, "
                                "not measurements.")
             return LayoutProposal("long", group, value_columns, tuple(levels), tuple(reasons))

@@ -9,7 +9,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from ..errors import ColumnProblem, FileProblem
+from ..errors import ColumnProblem, FileProblem, about_file
 from ..results import Finding
 from ._files import (
     HEAD_BYTES,
@@ -69,7 +69,7 @@ def read_table(path: str | Path, *, sheet: str | None = None) -> Table:
         raise FileProblem(f"{path.name} is empty.")
     if kind not in SHEET_KINDS and size > HEAD_BYTES:
         check_memory(path, size, TEXT_MEMORY_FACTOR, available_memory())
-    with wrap_unexpected(path.name, "read"):
+    with about_file(path.name), wrap_unexpected(path.name, "read"):
         if kind in SHEET_KINDS:
             from .sheets import read_sheet
 

@@ -105,3 +105,20 @@ def test_text_only_value_column_and_tiny_group(tmp_path):
     path.write_text("site,yield\nA,low\nA,high\nB,low\nB,mid\n")
     code, _, err = run("analyze", str(path), "--value", "yield", "--group", "site")
     assert code == 2 and "yield" in err
+
+
+class PanicException(BaseException):
+    """Stands for pyo3_runtime.PanicException, a BaseException that a Rust panic raises."""
+
+
+def test_an_unforeseen_error_is_one_line_naming_the_file(monkeypatch):
+    import engine.io
+
+    def panics(path, sheet=None):
+        raise PanicException("index out of bounds: the len is 3 but the index is " + "9" * 5000)
+
+    monkeypatch.setattr(engine.io, "read_table", panics)
+    code, out, err = run("analyze", str(DEMO / "bolt_strength.csv"))
+    assert code == 1 and out == ""
+    assert err.count("\n") == 1 and "bolt_strength.csv" in err and "PanicException" in err
+    assert len(err) < 400 and "Traceback" not in err
