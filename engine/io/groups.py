@@ -217,11 +217,9 @@ def _long_cells(table, value, group, pick, findings, extra):
                 "labels_trimmed", "note",
                 f"Labels {shown} in '{group}' were taken as one group '{label}' (spaces around "
                 "labels are ignored)."))
-    lowered = {}
-    for label in labels:
-        lowered.setdefault(label.lower(), []).append(label)
+    lowered = pd.Series(labels, dtype=object).str.lower().to_numpy(dtype=object)
     for label in pick:
-        twins = [t for t in lowered[label.lower()] if t != label]
+        twins = [labels[k] for k in np.flatnonzero(lowered == label.lower()) if labels[k] != label]
         if twins:
             findings.append(Finding(
                 "labels_case", "note",

@@ -6,6 +6,7 @@ import re
 from dataclasses import dataclass
 
 import numpy as np
+import pandas as pd
 
 from ..errors import ColumnProblem, about_file, listing, quoted
 from .table import Table
@@ -35,7 +36,7 @@ class LayoutProposal:
     reasons: tuple[str, ...]
 
 
-def trimmed_levels(table: Table, column: str) -> tuple[list[str], np.ndarray, dict[str, set[str]]]:
+def trimmed_levels(table: Table, column: str) -> tuple[list[str], np.ndarray, "_Spellings"]:
     """Trimmed labels in order of first appearance, each row's label index (-1 for a blank
     label), and the raw spellings merged under each trimmed label (cached per column)."""
     if column not in table._levels:
@@ -43,51 +44,44 @@ def trimmed_levels(table: Table, column: str) -> tuple[list[str], np.ndarray, di
     return table._levels[column]
 
 
-def _trimmed_levels(table: Table, column: str) -> tuple[list[str], np.ndarray, dict[str, set[str]]]:
+def _trimmed_levels(table: Table, column: str) -> tuple[list[str], np.ndarray, "_Spellings"]:
     codes, texts = table.factors(column)
-    firsts = _first_rows(codes, len(texts))
-    labels: list[str] = []
-    index: dict[str, int] = {}
-    spellings: dict[str, set[str]] = {}
+    count = len(texts)
+    # the first row of each distinct text (codes.size for a text never used), in one sort
+    firsts = np.full(count, codes.size, dtype=np.int64)
+    used, where = np.unique(codes, return_index=True)
+    keep = used >= 0
+    firsts[used[keep]] = where[keep]
+    trimmed = [t.strip() for t in texts]
+    stripped = np.empty(count, dtype=object)
+    stripped[:] = trimmed
+    order = np.argsort(firsts, kind="stable")
+    order = order[(firsts[order] < codes.size) & (stripped[order] != "")]
+    in_order = stripped[order]
+    if trimmed == texts:  # nothing to trim (a list comparison in C)
+        label_codes, labels = np.arange(order.size), in_order.tolist()  # distinct texts already
+    else:  # labels numbered by first appearance: factorize keeps the order it meets them in
+        label_codes, uniques = pd.factorize(in_order) if order.size else (np.array([], dtype=np.intp), [])
+        labels = list(uniques)
     # label index per code, in the smallest integer type; the last slot serves code -1
-    remap = np.full(len(texts) + 1, -1, dtype=np.min_scalar_type(-len(texts) - 1))
-    for k in sorted(range(len(texts)), key=lambda k: firsts[k]):
-        label = texts[k].strip()
-        if not label or firsts[k] == codes.size:
-            continue
-        if label not in index:
-            index[label] = len(labels)
-            labels.append(label)
-        remap[k] = index[label]
-        spellings.setdefault(label, set()).add(texts[k])
-    return labels, remap[codes], spellings
+    remap = np.full(count + 1, -1, dtype=np.min_scalar_type(-count - 1))
+    remap[order] = label_codes
+    return labels, remap[codes], _Spellings(texts, remap[:-1], labels)
 
 
-def _first_rows(codes: np.ndarray, count: int) -> list[int]:
-    """The first position of each code 0..count-1 (``codes.size`` for a code never used).
+class _Spellings:
+    """The raw spellings merged under each trimmed label, worked out for a label when asked
+    (a column of a million labels needs none of them)."""
 
-    Labels usually all turn up near the top, so the first rows are searched first and the
-    whole column only for the codes not seen there.
-    """
-    firsts = [codes.size] * count
-    missing = list(range(count))
-    for part in (codes[:4096], codes):
-        if not missing:
-            break
-        if count > 64:
-            present, where = np.unique(part, return_index=True)
-            found = dict(zip(present.tolist(), where.tolist()))
-        else:
-            found = {}
-            for k in missing:
-                hits = part == k
-                if hits.any():
-                    found[k] = int(hits.argmax())
-        for k in missing:
-            if k in found:
-                firsts[k] = int(found[k])
-        missing = [k for k in missing if k not in found]
-    return firsts
+    def __init__(self, texts: list[str], remap: np.ndarray, labels: list[str]) -> None:
+        self._texts, self._remap, self._labels = texts, remap, labels
+
+    def __getitem__(self, label: str) -> set[str]:
+        try:
+            index = self._labels.index(label)
+        except ValueError:
+            raise KeyError(label) from None
+        return {self._texts[k] for k in np.flatnonzero(self._remap == index)}
 
 
 def _value_like(table: Table, name: str) -> bool:
@@ -202,6 +196,17 @@ def _two_codes(values: np.ndarray) -> bool:
     return np.unique(values[np.isfinite(values)]).size == 2
 
 
+def _few_texts(table: Table, name: str) -> bool:
+    """False when the column's cells, trimmed, hold more distinct texts than a group column can."""
+    head = table.frame[name].iloc[:4096].dropna()
+    if len({str(v).strip() for v in head}) > MAX_GROUP_LEVELS + 1:  # a blank counts among them
+        return False  # the first rows alone hold too many (a million labels need no factorizing)
+    _, texts = table.factors(name)
+    if len(texts) <= MAX_GROUP_LEVELS + 1:
+        return True
+    return len({t.strip() for t in texts}) <= MAX_GROUP_LEVELS + 1
+
+
 def _best_grouping(table: Table, names: list[str], measures: list[str]) -> tuple[str | None, list[str], str]:
     best: tuple | None = None
     for position, name in enumerate(names):
@@ -215,6 +220,8 @@ def _best_grouping(table: Table, names: list[str], measures: list[str]) -> tuple
                 continue
         elif _value_like(table, name):
             continue
+        if not _few_texts(table, name):
+            continue  # more distinct texts than group labels can be, even once trimmed
         labels, codes, _ = trimmed_levels(table, name)
         if not 2 <= len(labels) <= MAX_GROUP_LEVELS:
             continue
@@ -226,7 +233,7 @@ def _best_grouping(table: Table, names: list[str], measures: list[str]) -> tuple
     if best is None:
         return None, [], ""
     _, name, labels = best
-    shown = ", ".join(f"'{label}'" for label in labels[:6]) + (", ..." if len(labels) > 6 else "")
+    shown = listing(labels, 6)
     why = f"'{name}' holds {len(labels)} labels ({shown}), so it is taken as the group column."
     if len(labels) > 2:
         why += " Pick the two groups to compare."

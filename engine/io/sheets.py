@@ -167,7 +167,8 @@ class WorkbookSheets:
 def workbook_sheets(path: str | Path) -> WorkbookSheets:
     """The sheets of a workbook, for a chooser: names, hidden ones, the first with numbers.
 
-    Visible sheets are looked through in order until one holds at least two numbers.
+    With several visible sheets, they are looked through in order until one holds at least two
+    numbers (a lone visible sheet is taken as it is, unread).
     """
     path, kind = check_path(path)
     if kind not in SHEET_KINDS:
@@ -176,9 +177,10 @@ def workbook_sheets(path: str | Path) -> WorkbookSheets:
         with _reader(path, kind) as reader:
             names = tuple(name for name, _ in reader.sheets)
             hidden = tuple(name for name, seen in reader.sheets if seen != "visible")
-            first = None
-            for name in names:
-                if name not in hidden and reader.ask("numbers", name) >= 2:
+            visible = [name for name in names if name not in hidden]
+            first = visible[0] if len(visible) == 1 else None
+            for name in visible if len(visible) > 1 else ():
+                if reader.ask("numbers", name) >= 2:
                     first = name
                     break
     return WorkbookSheets(names, hidden, first)
