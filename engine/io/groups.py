@@ -131,7 +131,7 @@ def make_groups(
 
 
 def _check_columns(table: Table, names: Sequence[str]) -> None:
-    existing = list(table.frame.columns)
+    existing = table.column_kinds
     for name in names:
         if name not in existing:
             raise ColumnProblem(f"{table.path.name} has no column '{quoted(name)}'; its columns are "
