@@ -102,6 +102,8 @@ class _Reader:
         self._errors.seek(0)
         said = self._errors.read(64 * 1024).decode("utf-8", "replace")
         asked = re.search(r"memory allocation of (\d+) bytes failed", said)
+        if asked and int(asked.group(1)) < self.limit // 2:  # the last of many: the reader grew too large
+            return self._failed(sheet, "memory", "")
         if asked:
             return FileProblem(
                 f"{self._where(sheet)} asks for {amount(int(asked.group(1)))} of memory to be read "

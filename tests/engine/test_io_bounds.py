@@ -188,3 +188,29 @@ def test_a_message_about_a_sheet_names_the_sheet(tmp_path):
         table = read_table(path, sheet="Notes")
         make_groups(table, values=propose_layout(table).value_columns[:2])
     assert "'Notes'" in str(error.value) and "season.xlsx" in str(error.value)
+
+
+def test_an_ods_with_a_billion_repeated_cells_is_refused_naming_the_file(tmp_path):
+    # one cell repeated across every column of every row: 17 billion cells from 800 bytes
+    path = tmp_path / "repeated.ods"
+    cell = ('<table:table-cell table:number-columns-repeated="16384" office:value-type="float" '
+            'office:value="1"><text:p>1</text:p></table:table-cell>')
+    content = ('<?xml version="1.0" encoding="UTF-8"?><office:document-content '
+               'xmlns:office="urn:oasis:names:tc:opendocument:xmlns:office:1.0" '
+               'xmlns:table="urn:oasis:names:tc:opendocument:xmlns:table:1.0" '
+               'xmlns:text="urn:oasis:names:tc:opendocument:xmlns:text:1.0" office:version="1.2">'
+               '<office:body><office:spreadsheet><table:table table:name="data">'
+               f'<table:table-row table:number-rows-repeated="1048576">{cell}</table:table-row>'
+               '</table:table></office:spreadsheet></office:body></office:document-content>')
+    with zipfile.ZipFile(path, "w") as archive:
+        archive.writestr("mimetype", "application/vnd.oasis.opendocument.spreadsheet")
+        archive.writestr("META-INF/manifest.xml", (
+            '<?xml version="1.0" encoding="UTF-8"?><manifest:manifest '
+            'xmlns:manifest="urn:oasis:names:tc:opendocument:xmlns:manifest:1.0">'
+            '<manifest:file-entry manifest:full-path="/" '
+            'manifest:media-type="application/vnd.oasis.opendocument.spreadsheet"/>'
+            '<manifest:file-entry manifest:full-path="content.xml" manifest:media-type="text/xml"/>'
+            '</manifest:manifest>'))
+        archive.writestr("content.xml", content, compress_type=zipfile.ZIP_DEFLATED)
+    with pytest.raises(FileProblem, match=r"repeated\.ods could not be read .*17179869184 cells"):
+        read_table(path)
