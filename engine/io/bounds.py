@@ -213,7 +213,7 @@ def sheet_extent(path: Path, sheet: str, limit: int) -> tuple[int, int] | None:
         if part is None:
             return None
         try:
-            whole = archive.getinfo(part).file_size <= 8 * _CHUNK
+            whole = archive.getinfo(part).file_size <= 64 * _CHUNK  # else unpacked twice, as a stream
             blocks = [b"".join(_part_blocks(archive, part))] if whole else None
             columns = 0
             for text in blocks or _part_blocks(archive, part):

@@ -63,15 +63,23 @@ class _Reader:
         self.sheets: tuple[tuple[str, str], ...] = tuple((str(n), str(v)) for n, v in answer[1])
 
     def ask(self, command: str, name: str):
+        """Send one command about sheet ``name`` and return the child's answer."""
+        self.send(command, name)
+        return self.receive(name)
+
+    def receive(self, name: str):
+        """The child's answer to the command sent last."""
+        return self._answer(name)[1]
+
+    def send(self, command: str, name: str) -> None:
         """Send one command about sheet ``name`` (sent as its position: a hostile name may hold
-        a line break) and return the child's answer."""
+        a line break); the child starts on it at once."""
         try:
             index = next(i for i, (n, _) in enumerate(self.sheets) if n == name)
             self._child.stdin.write(f"{command} {index}\n".encode("ascii"))
             self._child.stdin.flush()
         except OSError:
-            pass  # the child ended: its reason is read below
-        return self._answer(name)[1]
+            pass  # the child ended: its reason is read with the answer
 
     def _answer(self, sheet: str | None):
         try:
@@ -117,8 +125,10 @@ class _Reader:
         detail = one_line(last[-1], 100) if last else f"the reader stopped with code {self._child.returncode}"
         return self._failed(sheet, "stopped", detail)
 
-    def close(self) -> None:
+    def close(self, *, at_once: bool = False) -> None:
         child = self._child
+        if at_once and child.poll() is None:
+            child.kill()
         try:
             if child.stdin:
                 child.stdin.close()
@@ -136,8 +146,8 @@ class _Reader:
     def __enter__(self) -> "_Reader":
         return self
 
-    def __exit__(self, *exc) -> None:
-        self.close()
+    def __exit__(self, kind, *exc) -> None:
+        self.close(at_once=kind is not None)  # an error here: the child's work is not wanted
 
 
 def _reader(path: Path, kind: str) -> _Reader:
@@ -230,8 +240,9 @@ def read_sheet(path: Path, kind: str, sheet: str | None):
         names = tuple(name for name, _ in reader.sheets)
         hidden = tuple(name for name, seen in reader.sheets if seen != "visible")
         chosen = _pick_sheet(path, names, hidden, sheet)
-        check_sheet(path, kind, chosen, reader.limit)
-        raw = _cells(reader.ask("read", chosen))
+        reader.send("read", chosen)  # the child parses while the sheet's extent is checked here;
+        check_sheet(path, kind, chosen, reader.limit)  # a refusal ends the child unanswered
+        raw = _cells(reader.receive(chosen))
     others = [n for n in names if n != chosen]
     if raw.empty or raw.isna().all().all():
         hint = f"; the other sheets are {listing(others)}" if others else ""
