@@ -188,10 +188,17 @@ def _part_blocks(archive: zipfile.ZipFile, part: str):
             end = text.rfind(b">") + 1
             if end == 0 or len(text) - end > _CHUNK:  # no element ends for a megabyte: take it whole
                 end = len(text)
-            yield text[:end].translate(_SPACES)
+            yield _spaced(text[:end])
             carry = text[end:]
         if carry:
-            yield carry.translate(_SPACES)
+            yield _spaced(carry)
+
+
+def _spaced(text: bytes) -> bytes:
+    """``text`` with tabs and line breaks made spaces, where one stands before an ``r=``."""
+    if b'\tr="' in text or b'\nr="' in text or b'\rr="' in text:
+        return text.translate(_SPACES)
+    return text
 
 
 def sheet_extent(path: Path, sheet: str, limit: int) -> tuple[int, int] | None:

@@ -214,3 +214,11 @@ def test_an_ods_with_a_billion_repeated_cells_is_refused_naming_the_file(tmp_pat
         archive.writestr("content.xml", content, compress_type=zipfile.ZIP_DEFLATED)
     with pytest.raises(FileProblem, match=r"repeated\.ods could not be read .*17179869184 cells"):
         read_table(path)
+
+
+def test_a_reference_after_a_tab_or_line_break_is_seen_too():
+    # XML allows any white space between attributes; the reader takes them all
+    for gap in (b" ", b"\t", b"\n", b"\r"):
+        text = bounds._spaced(b"<row" + gap + b'r="1048576"><c' + gap + b'r="XFD1048576"><v>1</v></c></row>')
+        assert bounds._columns_at_most(text, 0) == 16_384
+        assert bounds._rows_above(1_000_000).search(text)
