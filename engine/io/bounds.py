@@ -133,7 +133,7 @@ def _sheet_part(archive: zipfile.ZipFile, sheet: str) -> str | None:
 _SPACES = bytes.maketrans(b"\t\n\r", b"   ")
 _ANY_REF = re.compile(rb' r="([A-Za-z]*)0*(\d+)"')
 _COLUMN_3 = re.compile(rb' r="([A-Za-z]{3,})\d')
-_COLUMN_2 = re.compile(rb' r="[A-Za-z]{2}\d')
+_COLUMN_2 = re.compile(rb' r="[A-Za-z]{2}')
 _COLUMN_1 = re.compile(rb' r="[A-Za-z]\d')
 
 
@@ -147,10 +147,12 @@ def _column_number(letters: bytes) -> int:
 def _columns_at_most(text: bytes, columns: int) -> int:
     """An upper bound of the columns ``text`` refers to, given the bound so far: exact for
     three-letter columns, else 702 (ZZ) or 26 (Z); a couple of passes over the bytes."""
+    if columns < 702 and not _COLUMN_2.search(text):  # no column of two letters or more (one pass)
+        return 26 if columns < 26 and _COLUMN_1.search(text) else columns
     long_columns = _COLUMN_3.findall(text)
     if long_columns:
         return max(columns, max(_column_number(c) for c in set(long_columns)))
-    if columns < 702 and _COLUMN_2.search(text):
+    if columns < 702:
         return 702
     if columns < 26 and _COLUMN_1.search(text):
         return 26
