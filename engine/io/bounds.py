@@ -12,6 +12,7 @@ with its sizes in the message. The reader then runs in a child process whose mem
 from __future__ import annotations
 
 import re
+import struct
 import zipfile
 from pathlib import Path, PurePosixPath
 from xml.etree import ElementTree
@@ -19,7 +20,7 @@ from xml.etree import ElementTree
 from ..errors import FileProblem, quoted
 from ._files import amount, available_memory
 
-__all__ = ["check_workbook", "check_sheet", "CELL_BYTES", "sheet_extent"]
+__all__ = ["check_workbook", "check_sheet", "CELL_BYTES", "sheet_extent", "xls_extents"]
 
 # Memory per cell of a sheet's rectangle while it is read: the reader's 32-byte cell, the Python
 # object and list slot it becomes, and the frame built from it (measured on a 100,000-row sheet
@@ -49,7 +50,8 @@ def check_workbook(path: Path, kind: str) -> int:
     """Refuse a workbook whose declared sizes cannot be read in the memory there is; return the
     memory limit (bytes) for its reader.
 
-    For .xlsx and .ods the sizes are the unpacked sizes in the zip directory.
+    For .xlsx and .ods the sizes are the unpacked sizes in the zip directory; for .xls the
+    rectangle each sheet's cell records span.
     """
     size = path.stat().st_size
     parsed = size
@@ -71,6 +73,10 @@ def check_workbook(path: Path, kind: str) -> int:
                 f"{amount(2 * parsed)} of memory and {amount(free)} are free. Close other "
                 "programs, or save the data as a smaller file.")
         limit = min(limit, max(int(free * 0.8), LIMIT_FLOOR // 4))
+    if kind == "xls":  # the reader builds every sheet as it opens the file
+        for name, extent in xls_extents(path):
+            where = f"Sheet '{quoted(name)}' of {path.name}" if name else f"A sheet of {path.name}"
+            _check_extent(where, extent, limit)
     return limit
 
 
@@ -247,3 +253,127 @@ def _measure(archive: zipfile.ZipFile, part: str, blocks: list[bytes] | None) ->
         more_rows, more_columns = _exact_extent(text)
         rows, columns = max(rows, more_rows), max(columns, more_columns)
     return rows, max(columns, 1)
+
+
+# -- .xls ------------------------------------------------------------------------------------
+_CFB_SIGNATURE = b"\xd0\xcf\x11\xe0\xa1\xb1\x1a\xe1"
+_END_OF_CHAIN = 0xFFFFFFFA  # sector numbers from here on mark ends and free sectors
+# BIFF8 records that place a cell with a value; blank cells (formatting only) are left out, as the
+# reader leaves them out of a sheet's rectangle
+_CELL_RECORDS = {0x0203, 0x027E, 0x00FD, 0x0204, 0x0205, 0x0006, 0x00D6}
+_MULTI_RECORDS = {0x00BD}  # MULRK: row, first column, ..., last column
+_BOF, _EOF, _SHEET = 0x0809, 0x000A, 0x0085
+
+
+def _cfb_stream(data: bytes, names: tuple[str, ...]) -> bytes | None:
+    """The named stream of a compound file (the container of an .xls), or None if the bytes are
+    not one or the stream is missing; every chain is followed at most once per sector."""
+    if len(data) < 512 or not data.startswith(_CFB_SIGNATURE):
+        return None
+    shift, mini_shift = struct.unpack_from("<HH", data, 0x1E)
+    if not 7 <= shift <= 16 or not 2 <= mini_shift < shift:
+        return None
+    size = 1 << shift
+    first_dir, = struct.unpack_from("<I", data, 0x30)
+    mini_cutoff, first_minifat, _n_minifat, first_difat, n_difat = struct.unpack_from("<IIIII", data, 0x38)
+    sectors = max((len(data) - size) // size, 0)
+
+    def sector(n: int) -> bytes:
+        return data[(n + 1) * size: (n + 2) * size]
+
+    fat_sectors = [n for n in struct.unpack_from("<109I", data, 0x4C) if n < _END_OF_CHAIN]
+    difat, seen = first_difat, set()
+    while difat < _END_OF_CHAIN and difat not in seen and len(seen) <= n_difat:
+        seen.add(difat)
+        entries = struct.unpack(f"<{size // 4}I", sector(difat).ljust(size, b"\xff"))
+        fat_sectors += [n for n in entries[:-1] if n < _END_OF_CHAIN]
+        difat = entries[-1]
+    fat = []
+    for n in fat_sectors:
+        fat.extend(struct.unpack(f"<{size // 4}I", sector(n).ljust(size, b"\xff")))
+
+    def chain(start: int, table: list[int], read) -> bytes:
+        parts, seen_here, n = [], set(), start
+        while n < _END_OF_CHAIN and n not in seen_here and n < len(table) and len(seen_here) <= sectors * 64:
+            seen_here.add(n)
+            parts.append(read(n))
+            n = table[n]
+        return b"".join(parts)
+
+    directory = chain(first_dir, fat, sector)
+    root_start, stream = None, None
+    for at in range(0, len(directory) - 127, 128):
+        length, kind = struct.unpack_from("<HB", directory, at + 0x40)
+        name = directory[at: at + max(min(length, 64) - 2, 0)].decode("utf-16-le", "replace")
+        start, stream_size = struct.unpack_from("<II", directory, at + 0x74)
+        if kind == 5:
+            root_start = start
+        elif kind == 2 and name in names and stream is None:
+            stream = (start, stream_size)
+    if stream is None:
+        return None
+    start, stream_size = stream
+    if stream_size >= mini_cutoff or root_start is None:
+        return chain(start, fat, sector)[:stream_size]
+    mini_size = 1 << mini_shift
+    container = chain(root_start, fat, sector)
+    minifat_bytes = chain(first_minifat, fat, sector)
+    minifat = list(struct.unpack(f"<{len(minifat_bytes) // 4}I", minifat_bytes[: len(minifat_bytes) // 4 * 4]))
+    return chain(start, minifat, lambda n: container[n * mini_size: (n + 1) * mini_size])[:stream_size]
+
+
+def xls_extents(path: Path) -> list[tuple[str, tuple[int, int]]]:
+    """Each sheet's name and the (rows, columns) of the rectangle its cells span in an .xls
+    file (name "" where the records do not tell), from the cell
+    records themselves (the DIMENSIONS record a writer declares counts formatted blank cells,
+    which the reader leaves out, so it is not what the reader allocates)."""
+    try:
+        with open(path, "rb") as handle:
+            data = handle.read()
+    except OSError:
+        return []
+    try:
+        book = _cfb_stream(data, ("Workbook", "Book"))
+    except struct.error:
+        return []
+    if not book:
+        return []
+    extents, box, names, starts, biff8 = [], None, {}, [], True
+    at, end = 0, len(book)
+    while at + 4 <= end:
+        kind, length = struct.unpack_from("<HH", book, at)
+        body = at + 4
+        at = body + length
+        if kind == _SHEET and length >= 8:
+            names[struct.unpack_from("<I", book, body)[0]] = _sheet_name(book[body + 6: body + length], biff8)
+        if kind == _BOF:
+            if not starts and length >= 2:
+                biff8 = struct.unpack_from("<H", book, body)[0] == 0x0600
+            starts.append(body - 4)
+            box = None
+        elif kind == _EOF:
+            if box is not None:
+                extents.append((box[1] - box[0] + 1, box[3] - box[2] + 1))
+            box = None
+        elif (kind in _CELL_RECORDS and length >= 4) or (kind in _MULTI_RECORDS and length >= 6):
+            row, first = struct.unpack_from("<HH", book, body)
+            last = struct.unpack_from("<H", book, body + length - 2)[0] if kind in _MULTI_RECORDS else first
+            last = max(last, first)
+            box = ((row, row, first, last) if box is None else
+                   (min(box[0], row), max(box[1], row), min(box[2], first), max(box[3], last)))
+    if box is not None:
+        extents.append((box[1] - box[0] + 1, box[3] - box[2] + 1))
+    # a sheet's substream starts where its BOUNDSHEET record says; the globals have no cells
+    sheet_starts = [start for start in starts if start in names]
+    return [(names.get(start, ""), extent) for start, extent in zip(sheet_starts, extents)] if (
+        len(sheet_starts) == len(extents)) else [("", extent) for extent in extents]
+
+
+def _sheet_name(text: bytes, biff8: bool) -> str:
+    """A short string: its length, in BIFF8 a flag byte (bit 0: two bytes a character), then the
+    characters (BIFF5 and 7: one byte each, no flag)."""
+    if len(text) < 2:
+        return ""
+    count, wide = text[0], (text[1] & 1 if biff8 else 0)
+    raw = text[(2 if biff8 else 1):][: count * (2 if wide else 1)]
+    return raw.decode("utf-16-le" if wide else "latin-1", "replace")

@@ -222,3 +222,31 @@ def test_a_reference_after_a_tab_or_line_break_is_seen_too():
         text = bounds._spaced(b"<row" + gap + b'r="1048576"><c' + gap + b'r="XFD1048576"><v>1</v></c></row>')
         assert bounds._columns_at_most(text, 0) == 16_384
         assert bounds._rows_above(1_000_000).search(text)
+
+
+def _far_cell_xls(tmp_path) -> Path:
+    """The installed .xls with one number moved to row 65,536 and column 65,536 (a column
+    number BIFF8 should never hold): the reader would span 4 billion cells."""
+    import struct
+
+    data = bytearray(_statsmodels_xls().read_bytes())
+    stream = bounds._cfb_stream(bytes(data), ("Workbook", "Book"))
+    at = 0
+    while at + 4 <= len(stream):
+        kind, length = struct.unpack_from("<HH", stream, at)
+        if kind in bounds._CELL_RECORDS:  # a cell with a value: row, column, ...
+            record = stream[at: at + 4 + length]
+            break
+        at += 4 + length
+    where = bytes(data).index(record)
+    data[where + 4: where + 8] = struct.pack("<HH", 0xFFFF, 0xFFFF)
+    path = tmp_path / "far.xls"
+    path.write_bytes(bytes(data))
+    return path
+
+
+def test_an_xls_sheet_spanning_billions_of_cells_is_refused_before_reading(tmp_path):
+    assert bounds.xls_extents(_statsmodels_xls()) == [("spec", (6, 8))]  # as calamine reads it
+    path = _far_cell_xls(tmp_path)
+    with pytest.raises(FileProblem, match=r"Sheet 'spec' of far\.xls spans 65,53\d rows by 65,53\d columns"):
+        read_table(path)
