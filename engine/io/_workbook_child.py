@@ -9,7 +9,8 @@ The conversation runs over stdin and stdout; every answer is one pickled tuple:
 
 1. the child opens the workbook and answers ``("sheets", [(name, visibility), ...])``;
 2. it then reads commands, one a line, until an empty line or the end of stdin:
-   ``read INDEX`` answers ``("rows", rows)`` with the sheet's cells row by row (blank cells "");
+   ``read INDEX`` answers ``("rows", rows)`` with the sheet's cells row by row (blank cells "")
+   and ends the child;
    ``numbers INDEX`` answers ``("numbers", count)``, how many cells of the sheet hold a number,
    counted up to 2.
 
@@ -17,6 +18,7 @@ Any failure is answered ``("error", kind, text)`` and ends the conversation; a p
 of the reader leaves its text on stderr, which the parent keeps for the message.
 """
 
+import os
 import pickle
 import sys
 
@@ -68,6 +70,7 @@ def main() -> None:
                 _send(out, ("numbers", _count_numbers(rows)))
             else:
                 _send(out, ("rows", rows))
+                os._exit(0)  # a read is the last command: leave without freeing every cell
             del rows
     except MemoryError:
         _send(out, ("error", "memory", ""))
