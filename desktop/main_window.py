@@ -87,19 +87,21 @@ def _proposed_picks(proposal: Any) -> tuple[str, str] | None:
     return None
 
 
-def _workbook_sheets(path: Path) -> tuple[str, ...]:
-    """The sheet names of a workbook (empty for a text file or a workbook that cannot be read:
-    reading it then says what is wrong)."""
+def _workbook_sheets(path: Path) -> tuple[tuple[str, ...], str | None]:
+    """The visible sheets of a workbook and the one to offer first (the first that holds
+    numbers); nothing for a text file or a workbook that cannot be read: reading it then says
+    what is wrong."""
     kind = path.suffix.lower().lstrip(".")
     if kind not in WORKBOOK_KINDS:
-        return ()
+        return (), None
     from engine.errors import TwofoldError
-    from engine.io.sheets import sheet_names
+    from engine.io.sheets import workbook_sheets
 
     try:
-        return tuple(sheet_names(path, kind))
+        sheets = workbook_sheets(path)
     except TwofoldError:
-        return ()
+        return (), None
+    return sheets.visible, sheets.first_with_numbers
 
 
 class MainWindow(QMainWindow):
@@ -394,8 +396,13 @@ class MainWindow(QMainWindow):
         Returns False (with a message) when ``path`` is not a file, else True: the reading has
         started and its outcome arrives as a table in the session or a message in the bar.
         """
+        from engine.errors import FileProblem
+        from engine.io import check_regular
+
         path = Path(path).expanduser()
-        if not path.is_file():
+        try:
+            check_regular(path)  # the check the command makes too: no folder, pipe or device
+        except FileProblem:
             self.message_bar.show_message("not_a_file", name=path.name or str(path))
             return False
         self.groups_worker.cancel()
@@ -410,9 +417,9 @@ class MainWindow(QMainWindow):
             from engine import io
 
             if ask:
-                names = _workbook_sheets(path)
+                names, first = _workbook_sheets(path)
                 if len(names) > 1:
-                    return ("sheets", path, names)
+                    return ("sheets", path, names, first)
             table = io.read_table(path, sheet=sheet)
             return ("table", path, table, io.propose_layout(table))
 
@@ -444,8 +451,8 @@ class MainWindow(QMainWindow):
             if not self.isVisible():  # at start-up: ask once the window is on the screen
                 QTimer.singleShot(0, lambda: self._on_loaded(result))
                 return
-            _, path, names = result
-            wanted = self._ask_sheet(list(names), names[0])
+            _, path, names, first = result
+            wanted = self._ask_sheet(list(names), first if first in names else names[0])
             if wanted:
                 self.open_file(path, sheet=wanted)
             return

@@ -49,7 +49,7 @@ class _Run(QRunnable):
             self._relay.progress.emit(self._ticket, float(fraction), str(what))
 
     def run(self) -> None:  # runs in a pool thread
-        from engine.errors import Cancelled, TwofoldError
+        from engine.errors import Cancelled, TwofoldError, quoted
 
         try:
             result = self._job(self._progress, self._stop.is_set)
@@ -59,8 +59,11 @@ class _Run(QRunnable):
             self._relay.failed.emit(self._ticket, str(problem), True)
         except MemoryError:
             self._relay.failed.emit(self._ticket, "there is not enough memory for this much data", True)
-        except Exception as problem:  # noqa: BLE001 - an unexpected failure must never end the program
-            self._relay.failed.emit(self._ticket, f"{type(problem).__name__}: {problem}", False)
+        except BaseException as problem:  # noqa: BLE001 - a Rust panic too: the window must hear back
+            said = " ".join(str(problem).split())
+            self._relay.failed.emit(self._ticket, quoted(f"{type(problem).__name__}: {said}", 300), False)
+            if isinstance(problem, (KeyboardInterrupt, SystemExit)):
+                raise
         else:
             if self._stop.is_set():
                 self._relay.stopped.emit(self._ticket)

@@ -11,7 +11,7 @@ from typing import Any, Callable, Mapping, TypeVar
 
 import numpy as np
 
-from .errors import Cancelled, OptionProblem, TwofoldError
+from .errors import Cancelled, OptionProblem, TwofoldError, names_its_source
 from .results import (ALTERNATIVES, EffectSize, Finding, GroupSummary, Groups, Interval, ProcedureResult,
                       frozen_mapping)
 from .summary import summarize
@@ -191,6 +191,7 @@ def _part(name: str, run: Callable[[], T], notes: list[Finding]) -> T | None:
         return None
 
 
+@names_its_source
 def analyze(
     groups: Groups,
     options: Options = Options(),

@@ -11,13 +11,14 @@ import sys
 from pathlib import Path
 from typing import Sequence, TextIO
 
-from .errors import TwofoldError
+from .errors import TwofoldError, quoted
 from .text import visible
 from .wording import plural
 
 __all__ = ["main", "build_parser"]
 
 EXIT_BAD_INPUT = 2
+EXIT_UNEXPECTED = 1  # as an uncaught error would exit, but with one line instead of a traceback
 
 
 class _Parser(argparse.ArgumentParser):
@@ -159,6 +160,7 @@ def _columns(args, out: TextIO) -> None:
 def main(argv: Sequence[str] | None = None, *, out: TextIO | None = None, err: TextIO | None = None) -> int:
     out = out or sys.stdout
     err = err or sys.stderr
+    args = None
     try:
         args = build_parser().parse_args(argv)
         if args.command == "analyze":
@@ -171,4 +173,19 @@ def main(argv: Sequence[str] | None = None, *, out: TextIO | None = None, err: T
     except MemoryError:
         err.write("The file is too large for the memory of this computer.\n")
         return EXIT_BAD_INPUT
+    except (KeyboardInterrupt, SystemExit):
+        raise
+    except BaseException as problem:  # noqa: BLE001 - a library's own error or a Rust panic
+        err.write(_unexpected(args, problem) + "\n")
+        return EXIT_UNEXPECTED
     return 0
+
+
+def _unexpected(args, problem: BaseException) -> str:
+    """One line for an error the engine did not foresee, naming the file, never a traceback."""
+    name = getattr(getattr(args, "path", None), "name", None)
+    said = quoted(" ".join(str(problem).split()), 200)
+    detail = f"{type(problem).__name__}: {said}" if said else type(problem).__name__
+    where = f" while working on {name}" if name else ""
+    return (f"Twofold stopped on an unexpected error{where} ({detail}). The file was not changed; "
+            "please report this error.")

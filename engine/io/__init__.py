@@ -5,7 +5,7 @@ hold the groups and the values, and ``make_groups`` builds the two groups the us
 report of everything left out or worth a second look. Files are only ever opened read-only.
 """
 
-from ._files import SUPPORTED_EXTENSIONS, file_checksum
+from ._files import SUPPORTED_EXTENSIONS, check_regular, file_checksum
 from .groups import Intake, make_groups
 from .layout import LayoutProposal, propose_layout
 from .read import read_table
@@ -18,6 +18,7 @@ __all__ = [
     "propose_layout",
     "make_groups",
     "file_checksum",
+    "check_regular",
     "Table",
     "LayoutProposal",
     "Intake",

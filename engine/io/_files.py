@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import contextlib
 import hashlib
+import stat
 from pathlib import Path
 from typing import Iterator
 
@@ -19,6 +20,7 @@ __all__ = [
     "SHEET_KINDS",
     "HEAD_BYTES",
     "check_path",
+    "check_regular",
     "read_head",
     "file_checksum",
     "one_line",
@@ -26,6 +28,7 @@ __all__ = [
     "available_memory",
     "check_memory",
     "TEXT_MEMORY_FACTOR",
+    "amount",
 ]
 
 SUPPORTED_EXTENSIONS: tuple[str, ...] = (".csv", ".tsv", ".txt", ".xlsx", ".xls", ".ods")
@@ -61,9 +64,25 @@ def check_path(path: str | Path) -> tuple[Path, str]:
             f"{path.name} has {shown}; Twofold reads {', '.join(SUPPORTED_EXTENSIONS)} files.")
     if not path.exists():
         raise FileProblem(f"{path.name} was not found (looked in {path.parent}).")
-    if path.is_dir():
-        raise FileProblem(f"{path.name} is a folder, not a file.")
+    check_regular(path)
     return path, extension[1:]
+
+
+def check_regular(path: Path) -> None:
+    """Refuse a folder, a named pipe, a device or a socket: only a regular file can be read
+    without waiting forever on whatever writes to it (the window and the command share this)."""
+    try:
+        mode = path.stat().st_mode
+    except FileNotFoundError as error:
+        raise FileProblem(f"{path.name} was not found (looked in {path.parent}).") from error
+    except OSError as error:
+        raise _open_failure(path, error) from error
+    if stat.S_ISDIR(mode):
+        raise FileProblem(f"{path.name} is a folder, not a file.")
+    if not stat.S_ISREG(mode):
+        what = ("a named pipe" if stat.S_ISFIFO(mode) else "a socket" if stat.S_ISSOCK(mode)
+                else "a device" if stat.S_ISCHR(mode) or stat.S_ISBLK(mode) else "not a regular file")
+        raise FileProblem(f"{path.name} is {what}, not a saved file; save the data to a file and open that.")
 
 
 def available_memory() -> int | None:
@@ -83,11 +102,14 @@ def check_memory(path: Path, size: int, factor: float, free: int | None) -> None
     need = size * factor
     if free is not None and need > free:
         raise FileProblem(
-            f"{path.name} is {_amount(size)}; reading it needs about {_amount(need)} of memory "
-            f"and {_amount(free)} are free. Close other programs, or split the file.")
+            f"{path.name} is {amount(size)}; reading it needs about {amount(need)} of memory "
+            f"and {amount(free)} are free. Close other programs, or split the file.")
 
 
-def _amount(size: float) -> str:
+def amount(size: float) -> str:
+    """Bytes in words a user reads: "0.7 MB", "830 MB", "7.3 GB", "550 TB"."""
+    if size >= 1e12:
+        return f"{size / 1e12:,.1f} TB" if size < 1e13 else f"{size / 1e12:,.0f} TB"
     if size >= 1e9:
         return f"{size / 1e9:.1f} GB"
     megabytes = max(size / 1e6, 0.1)
@@ -141,8 +163,7 @@ def file_checksum(path: str | Path) -> str:
     path = Path(path)
     if not path.exists():
         raise FileProblem(f"{path.name} was not found (looked in {path.parent}).")
-    if path.is_dir():
-        raise FileProblem(f"{path.name} is a folder, not a file.")
+    check_regular(path)
     digest = hashlib.sha256()
     try:
         with open(path, "rb") as handle:
@@ -162,6 +183,8 @@ def wrap_unexpected(name: str, what: str, kind: type[TwofoldError] = FileProblem
         raise
     except MemoryError as error:
         raise kind(f"{name} is too large to {what} in the memory available.") from error
-    except Exception as error:  # a parser's own error: give the user one line, never a traceback
+    except (KeyboardInterrupt, SystemExit, GeneratorExit):
+        raise
+    except BaseException as error:  # a parser's own error, a Rust panic too: one line, never a traceback
         detail = one_line(error) or type(error).__name__
         raise kind(f"{name} could not be {what}: {detail}") from error

@@ -8,7 +8,7 @@ from typing import Mapping, Sequence
 import numpy as np
 import pandas as pd
 
-from ..errors import ColumnProblem, DataProblem, OptionProblem
+from ..errors import ColumnProblem, DataProblem, OptionProblem, about_file, listing, quoted
 from ..results import Finding, Groups
 from ..wording import plural
 from ._files import wrap_unexpected
@@ -126,27 +126,27 @@ def make_groups(
     Tukey, J. W. (1977). Exploratory Data Analysis. Addison-Wesley (screening by fences).
     """
     name = getattr(getattr(table, "path", None), "name", "the table")
-    with wrap_unexpected(name, "split into groups", DataProblem):
+    with about_file(name, getattr(table, "sheet", None)), wrap_unexpected(name, "split into groups", DataProblem):
         if not isinstance(table, Table):
             raise OptionProblem("make_groups needs a table read by read_table.")
         return _make_groups(table, values=values, group=group, pick=pick, set_aside=set_aside)
 
 
 def _check_columns(table: Table, names: Sequence[str]) -> None:
-    existing = list(table.frame.columns)
+    existing = table.column_kinds
     for name in names:
         if name not in existing:
-            listed = ", ".join(f"'{c}'" for c in existing)
-            raise ColumnProblem(f"{table.path.name} has no column '{name}'; its columns are {listed}.")
+            raise ColumnProblem(f"{table.path.name} has no column '{quoted(name)}'; its columns are "
+                                f"{listing(existing)}.")
 
 
 def _check_measurements(table: Table, name: str) -> None:
     kind = table.column_kinds[name]
     if kind == "text":
         cells = table.frame[name]
-        examples = ", ".join(f"'{cell_text(v)}'" for v in cells.dropna().unique()[:3])
+        examples = listing(cell_text(v) for v in cells.dropna().unique()[:3])
         raise ColumnProblem(
-            f"Column '{name}' of {table.path.name} holds only text ({examples}), not numbers.")
+            f"Column '{quoted(name)}' of {table.path.name} holds only text ({examples}), not numbers.")
     if kind == "empty":
         raise ColumnProblem(f"Column '{name}' of {table.path.name} is empty.")
 
@@ -203,15 +203,15 @@ def _long_cells(table, value, group, pick, findings, extra):
             raise DataProblem(
                 f"Column '{group}' of {table.path.name} holds only one group ('{labels[0]}'); two are needed.")
         if len(labels) > 2:
-            listed = ", ".join(f"'{label}'" for label in labels[:30])
             raise ColumnProblem(
-                f"Column '{group}' of {table.path.name} holds {len(labels)} groups ({listed}); pick two to compare.")
+                f"Column '{quoted(group)}' of {table.path.name} holds {len(labels):,} groups "
+                f"({listing(labels)}); pick two to compare.")
         pick = (labels[0], labels[1])
     for label in pick:
         if label not in labels:
-            listed = ", ".join(f"'{item}'" for item in labels[:30])
             raise ColumnProblem(
-                f"Column '{group}' of {table.path.name} has no group '{label}'; its groups are {listed}.")
+                f"Column '{quoted(group)}' of {table.path.name} has no group '{quoted(label)}'; its groups "
+                f"are {listing(labels)}.")
     for label in pick:
         if len(spellings[label]) > 1:
             shown = " and ".join(f"'{s}'" for s in sorted(spellings[label])[:4])
@@ -219,15 +219,13 @@ def _long_cells(table, value, group, pick, findings, extra):
                 "labels_trimmed", "note",
                 f"Labels {shown} in '{group}' were taken as one group '{label}' (spaces around "
                 "labels are ignored)."))
-    lowered = {}
-    for label in labels:
-        lowered.setdefault(label.lower(), []).append(label)
+    lowered = pd.Series(labels, dtype=object).str.lower().to_numpy(dtype=object)
     for label in pick:
-        twins = [t for t in lowered[label.lower()] if t != label]
+        twins = [labels[k] for k in np.flatnonzero(lowered == label.lower()) if labels[k] != label]
         if twins:
             findings.append(Finding(
                 "labels_case", "note",
-                f"Label '{label}' differs from {', '.join(repr(t) for t in twins)} only in capital "
+                f"Label '{quoted(label)}' differs from {listing(twins)} only in capital "
                 "letters; they are kept as different groups."))
     numbers = table.numbers(value)
     cells = []
@@ -257,8 +255,7 @@ def _wide_cells(table, names, pick):
         _check_columns(table, pick)
         chosen = pick
     elif len(names) > 2:
-        listed = ", ".join(f"'{n}'" for n in names)
-        raise ColumnProblem(f"{len(names)} value columns were named ({listed}); pick two to compare.")
+        raise ColumnProblem(f"{len(names)} value columns were named ({listing(names)}); pick two to compare.")
     else:
         chosen = (names[0], names[1])
     if chosen[0] == chosen[1]:

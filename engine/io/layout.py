@@ -6,8 +6,9 @@ import re
 from dataclasses import dataclass
 
 import numpy as np
+import pandas as pd
 
-from ..errors import ColumnProblem
+from ..errors import ColumnProblem, about_file, listing, quoted
 from .table import Table
 
 __all__ = ["LayoutProposal", "propose_layout", "looks_like_id_name", "trimmed_levels", "MAX_GROUP_LEVELS"]
@@ -35,7 +36,7 @@ class LayoutProposal:
     reasons: tuple[str, ...]
 
 
-def trimmed_levels(table: Table, column: str) -> tuple[list[str], np.ndarray, dict[str, set[str]]]:
+def trimmed_levels(table: Table, column: str) -> tuple[list[str], np.ndarray, "_Spellings"]:
     """Trimmed labels in order of first appearance, each row's label index (-1 for a blank
     label), and the raw spellings merged under each trimmed label (cached per column)."""
     if column not in table._levels:
@@ -43,51 +44,44 @@ def trimmed_levels(table: Table, column: str) -> tuple[list[str], np.ndarray, di
     return table._levels[column]
 
 
-def _trimmed_levels(table: Table, column: str) -> tuple[list[str], np.ndarray, dict[str, set[str]]]:
+def _trimmed_levels(table: Table, column: str) -> tuple[list[str], np.ndarray, "_Spellings"]:
     codes, texts = table.factors(column)
-    firsts = _first_rows(codes, len(texts))
-    labels: list[str] = []
-    index: dict[str, int] = {}
-    spellings: dict[str, set[str]] = {}
+    count = len(texts)
+    # the first row of each distinct text (codes.size for a text never used), in one sort
+    firsts = np.full(count, codes.size, dtype=np.int64)
+    used, where = np.unique(codes, return_index=True)
+    keep = used >= 0
+    firsts[used[keep]] = where[keep]
+    trimmed = [t.strip() for t in texts]
+    stripped = np.empty(count, dtype=object)
+    stripped[:] = trimmed
+    order = np.argsort(firsts, kind="stable")
+    order = order[(firsts[order] < codes.size) & (stripped[order] != "")]
+    in_order = stripped[order]
+    if trimmed == texts:  # nothing to trim (a list comparison in C)
+        label_codes, labels = np.arange(order.size), in_order.tolist()  # distinct texts already
+    else:  # labels numbered by first appearance: factorize keeps the order it meets them in
+        label_codes, uniques = pd.factorize(in_order) if order.size else (np.array([], dtype=np.intp), [])
+        labels = list(uniques)
     # label index per code, in the smallest integer type; the last slot serves code -1
-    remap = np.full(len(texts) + 1, -1, dtype=np.min_scalar_type(-len(texts) - 1))
-    for k in sorted(range(len(texts)), key=lambda k: firsts[k]):
-        label = texts[k].strip()
-        if not label or firsts[k] == codes.size:
-            continue
-        if label not in index:
-            index[label] = len(labels)
-            labels.append(label)
-        remap[k] = index[label]
-        spellings.setdefault(label, set()).add(texts[k])
-    return labels, remap[codes], spellings
+    remap = np.full(count + 1, -1, dtype=np.min_scalar_type(-count - 1))
+    remap[order] = label_codes
+    return labels, remap[codes], _Spellings(texts, remap[:-1], labels)
 
 
-def _first_rows(codes: np.ndarray, count: int) -> list[int]:
-    """The first position of each code 0..count-1 (``codes.size`` for a code never used).
+class _Spellings:
+    """The raw spellings merged under each trimmed label, worked out for a label when asked
+    (a column of a million labels needs none of them)."""
 
-    Labels usually all turn up near the top, so the first rows are searched first and the
-    whole column only for the codes not seen there.
-    """
-    firsts = [codes.size] * count
-    missing = list(range(count))
-    for part in (codes[:4096], codes):
-        if not missing:
-            break
-        if count > 64:
-            present, where = np.unique(part, return_index=True)
-            found = dict(zip(present.tolist(), where.tolist()))
-        else:
-            found = {}
-            for k in missing:
-                hits = part == k
-                if hits.any():
-                    found[k] = int(hits.argmax())
-        for k in missing:
-            if k in found:
-                firsts[k] = int(found[k])
-        missing = [k for k in missing if k not in found]
-    return firsts
+    def __init__(self, texts: list[str], remap: np.ndarray, labels: list[str]) -> None:
+        self._texts, self._remap, self._labels = texts, remap, labels
+
+    def __getitem__(self, label: str) -> set[str]:
+        try:
+            index = self._labels.index(label)
+        except ValueError:
+            raise KeyError(label) from None
+        return {self._texts[k] for k in np.flatnonzero(self._remap == index)}
 
 
 def _value_like(table: Table, name: str) -> bool:
@@ -134,10 +128,15 @@ def propose_layout(table: Table) -> LayoutProposal:
     Wickham, H. (2014). Tidy data. Journal of Statistical Software 59(10), 1-23 (long and wide
     arrangements of the same measurements).
     """
+    with about_file(table.path.name, table.sheet):
+        return _propose_layout(table)
+
+
+def _propose_layout(table: Table) -> LayoutProposal:
     names = list(table.frame.columns)
     values = [n for n in names if _value_like(table, n)]
     if not values:
-        kinds = ", ".join(f"'{n}' ({table.column_kinds[n]})" for n in names)
+        kinds = listing([f"{quoted(n)}' ({table.column_kinds[n]}" for n in names])
         raise ColumnProblem(f"No column of {table.path.name} holds numbers; its columns are {kinds}.")
     identifiers = [n for n in values if _is_identifier(table, n)]
     measures = [n for n in values if n not in identifiers] or values
@@ -152,7 +151,7 @@ def propose_layout(table: Table) -> LayoutProposal:
             reasons.append(f"'{value_columns[0]}' holds numbers, so it is taken as the measurements.")
             if identifiers:
                 many = len(identifiers) > 1
-                reasons.append(f"{', '.join(repr(n) for n in identifiers)} "
+                reasons.append(f"{listing(identifiers)} "
                                f"{'look like identifiers' if many else 'looks like an identifier'}, "
                                "not measurements.")
             return LayoutProposal("long", group, value_columns, tuple(levels), tuple(reasons))
@@ -197,19 +196,34 @@ def _two_codes(values: np.ndarray) -> bool:
     return np.unique(values[np.isfinite(values)]).size == 2
 
 
+def _few_texts(table: Table, name: str) -> bool:
+    """False when the column's cells, trimmed, hold more distinct texts than a group column can."""
+    head = table.frame[name].iloc[:4096].dropna()
+    if len({str(v).strip() for v in head}) > MAX_GROUP_LEVELS + 1:  # a blank counts among them
+        return False  # the first rows alone hold too many (a million labels need no factorizing)
+    _, texts = table.factors(name)
+    if len(texts) <= MAX_GROUP_LEVELS + 1:
+        return True
+    return len({t.strip() for t in texts}) <= MAX_GROUP_LEVELS + 1
+
+
 def _best_grouping(table: Table, names: list[str], measures: list[str]) -> tuple[str | None, list[str], str]:
     best: tuple | None = None
     for position, name in enumerate(names):
         kind = table.column_kinds[name]
-        if kind == "empty" or looks_like_id_name(name):
+        if kind == "empty" or kind == "number" and not table.whole_numbers(name):
+            continue  # (the cheap test first: on 100,000 columns of measurements it settles all)
+        if looks_like_id_name(name):
             continue
         if kind == "number":
-            if not table.whole_numbers(name) or len(measures) < 2 and name in measures:
+            if len(measures) < 2 and name in measures:
                 continue
             if not _two_codes(table.numbers(name)):
                 continue
         elif _value_like(table, name):
             continue
+        if not _few_texts(table, name):
+            continue  # more distinct texts than group labels can be, even once trimmed
         labels, codes, _ = trimmed_levels(table, name)
         if not 2 <= len(labels) <= MAX_GROUP_LEVELS:
             continue
@@ -221,7 +235,7 @@ def _best_grouping(table: Table, names: list[str], measures: list[str]) -> tuple
     if best is None:
         return None, [], ""
     _, name, labels = best
-    shown = ", ".join(f"'{label}'" for label in labels[:6]) + (", ..." if len(labels) > 6 else "")
+    shown = listing(labels, 6)
     why = f"'{name}' holds {len(labels)} labels ({shown}), so it is taken as the group column."
     if len(labels) > 2:
         why += " Pick the two groups to compare."

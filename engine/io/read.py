@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import csv
 import re
 import warnings
 from pathlib import Path
@@ -9,7 +10,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from ..errors import ColumnProblem, FileProblem
+from ..errors import ColumnProblem, FileProblem, about_file
 from ..wording import plural
 from ..results import Finding
 from ._files import (
@@ -70,7 +71,7 @@ def read_table(path: str | Path, *, sheet: str | None = None) -> Table:
         raise FileProblem(f"{path.name} is empty.")
     if kind not in SHEET_KINDS and size > HEAD_BYTES:
         check_memory(path, size, TEXT_MEMORY_FACTOR, available_memory())
-    with wrap_unexpected(path.name, "read"):
+    with about_file(path.name), wrap_unexpected(path.name, "read"):
         if kind in SHEET_KINDS:
             from .sheets import read_sheet
 
@@ -82,12 +83,13 @@ def _read_text(path: Path, kind: str, head: bytes, *, truncated: bool, sheet: st
     fmt = sniff_text(head, name=path.name, kind=kind, truncated=truncated)
     notes = list(fmt.notes)
     encoding = fmt.encoding
+    wide = _field_count(head, fmt) > WIDE_COLUMNS
     try:
-        frame = _parse(path, fmt, encoding)
+        frame = _parse(path, fmt, encoding, wide=wide)
     except UnicodeDecodeError:
         encoding = "cp1252"
         notes.append("Part of the file is not valid UTF-8; it was read as Windows Western (cp1252).")
-        frame = _parse(path, fmt, encoding)
+        frame = _parse(path, fmt, encoding, wide=wide)
     if sheet is not None:
         notes.append(f"A sheet ('{sheet}') was asked for, but a text file has no sheets.")
     header_lines = 1 + sum(line_breaks(str(name)) for name in frame.columns) if fmt.header else 0
@@ -95,7 +97,22 @@ def _read_text(path: Path, kind: str, head: bytes, *, truncated: bool, sheet: st
                        rows_above=fmt.skip_rows + header_lines)
 
 
-def _parse(path: Path, fmt: TextFormat, encoding: str) -> pd.DataFrame:
+WIDE_COLUMNS = 1_000  # fields in the first line from which a file is read row by row (see _parse_wide)
+
+
+def _field_count(head: bytes, fmt: TextFormat) -> int:
+    """A quick count of the fields on the first line of the head (quotes not considered)."""
+    try:
+        text = head.decode(fmt.encoding.replace("-sig", ""), errors="ignore")
+    except LookupError:
+        return 0
+    lines = text.splitlines()[fmt.skip_rows: fmt.skip_rows + 1]
+    return lines[0].count(fmt.delimiter) + 1 if lines and fmt.delimiter != " " else 0
+
+
+def _parse(path: Path, fmt: TextFormat, encoding: str, *, wide: bool = False) -> pd.DataFrame:
+    if wide:
+        return _parse_wide(path, fmt, encoding)
     options = dict(
         header=0 if fmt.header else None,
         skiprows=fmt.skip_rows or None,
@@ -119,6 +136,54 @@ def _parse(path: Path, fmt: TextFormat, encoding: str) -> pd.DataFrame:
             raise FileProblem(f"{path.name} holds no data.") from error
         except pd.errors.ParserError as error:
             raise FileProblem(_parser_message(path.name, error, fmt)) from error
+
+
+def _parse_wide(path: Path, fmt: TextFormat, encoding: str) -> pd.DataFrame:
+    """A file of thousands of columns, parsed row by row into one block of floats.
+
+    pandas' parser makes and settles one array per column, which costs seconds on 100,000
+    columns; here the cells of all columns are converted at once, and only columns with a cell
+    that is not a number stay text. Short rows are padded with blanks, as pandas does; a long
+    row is refused with its line, as pandas does.
+    """
+    with open(path, encoding=encoding, newline="") as handle:
+        for _ in range(fmt.skip_rows):
+            handle.readline()
+        rows = list(csv.reader(handle, delimiter=fmt.delimiter, quotechar='"'))
+    while rows and not any(cell.strip() for cell in rows[-1]):
+        rows.pop()  # trailing blank lines
+    if not rows:
+        raise FileProblem(f"{path.name} holds no data.")
+    names = rows[0] if fmt.header else None
+    body = rows[1:] if fmt.header else rows
+    width = max(len(names) if names is not None else 0, max((len(r) for r in body), default=0))
+    if names is not None:
+        for line, row in enumerate(body, start=fmt.skip_rows + 2):
+            if len(row) > len(names):
+                raise FileProblem(f"{path.name}, row {line}: {len(row)} cells where the rows above have "
+                                  f"{len(names)}; check for a stray {DELIMITER_NAMES.get(fmt.delimiter, 'separator')} "
+                                  "or a missing quote.")
+    cells = np.full((len(body), width), "", dtype=object)
+    for i, row in enumerate(body):
+        cells[i, : len(row)] = row
+    text = pd.Series(cells.ravel(), dtype=object).str.strip()
+    if fmt.thousands:
+        text = text.str.replace(fmt.thousands, "", regex=False)
+    if fmt.decimal == ",":
+        text = text.str.replace(",", ".", regex=False)
+    blank = (text == "").to_numpy().reshape(cells.shape)
+    numbers = pd.to_numeric(text.where(~blank.ravel(), "nan"), errors="coerce").to_numpy(dtype=float, copy=True).reshape(cells.shape)
+    is_text = (np.isnan(numbers) & ~blank).any(axis=0)
+    numbers[blank] = np.nan
+    labels = list(names) + [f"Unnamed: {j}" for j in range(len(names), width)] if names is not None else list(range(width))
+    frame = pd.DataFrame(numbers, columns=pd.RangeIndex(width))
+    if is_text.any():
+        texts = np.where(blank, np.nan, cells).astype(object)
+        positions = np.flatnonzero(is_text)
+        frame = pd.concat([frame.drop(columns=positions),
+                           pd.DataFrame(texts[:, positions], columns=positions)], axis=1)[list(range(width))]
+    frame.columns = labels
+    return frame
 
 
 def _parser_message(name: str, error: Exception, fmt: TextFormat) -> str:
@@ -205,13 +270,23 @@ def build_table(
     frame = frame.set_axis(names, axis=1)
     kinds: dict[str, str] = {}
     factors: dict[str, tuple[np.ndarray, list[str]]] = {}
+    floats = (frame.dtypes == np.float64).to_numpy(copy=True)
+    if floats.sum() > WIDE_COLUMNS:  # thousands of float columns: judged at once, not one by one
+        blank = np.isnan(frame.iloc[:, np.flatnonzero(floats)].to_numpy()).all(axis=0)
+        for position, empty in zip(np.flatnonzero(floats), blank):
+            kinds[names[position]] = "empty" if empty else "number"
+    else:
+        floats[:] = False
     for position, name in enumerate(names):
+        if floats[position]:
+            continue
         column = frame.iloc[:, position]
         if isinstance(column.dtype, pd.CategoricalDtype):
             factors[name] = (column.cat.codes.to_numpy(), [str(c) for c in column.cat.categories])
         settled, kinds[name] = settle_column(column, decimal=decimal, thousands=thousands)
         if settled is not column:
             frame.isetitem(position, settled)
+    kinds = {name: kinds[name] for name in names}  # in file order
     if not isinstance(frame.index, pd.RangeIndex) or frame.index.start != 0:
         frame = frame.reset_index(drop=True)
     clean = frame

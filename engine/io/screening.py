@@ -216,8 +216,9 @@ def identifier_candidates(table, skip: Sequence[str]) -> list[str]:
     """Columns that may identify units: named like an ID, whole-number codes, or text with a
     label of its own in every filled row (site names, specimen codes)."""
     names = []
-    for name in table.frame.columns:
-        kind = table.column_kinds[name]
+    for name, kind in table.column_kinds.items():
+        if len(names) == 3:
+            break
         if name in skip or kind == "empty":
             continue
         if looks_like_id_name(name) or (kind == "number" and table.whole_numbers(name)):

@@ -213,6 +213,34 @@ def test_a_workbook_with_several_sheets_asks_which(make_window, qtbot, tmp_path,
     assert window.data_panel.model.rowCount() == 8
 
 
+def test_the_sheet_offered_first_holds_numbers_and_hidden_ones_are_not_offered(make_window, qtbot, tmp_path):
+    openpyxl = pytest.importorskip("openpyxl")
+    book = openpyxl.Workbook()
+    book.active.title = "Notes"
+    book.active.append(["Bolts from two forges, tested in May."])
+    old = book.create_sheet("old")
+    old.append(["supplier", "strength"])
+    old.append(["east", 1.0])
+    old.append(["west", 2.0])
+    old.sheet_state = "hidden"
+    data = book.create_sheet("bolts")
+    data.append(["supplier", "strength"])
+    for k in range(8):
+        data.append(["east" if k % 2 else "west", 800 + 7 * k])
+    path = tmp_path / "forges.xlsx"
+    book.save(path)
+    offered = []
+
+    def ask(names, current):
+        offered.append((list(names), current))
+        return current
+
+    window = make_window([path], ask_sheet=ask)
+    qtbot.waitUntil(lambda: window.session.table is not None, timeout=20_000)
+    assert offered == [(["Notes", "bolts"], "bolts")]
+    assert window.session.table.sheet == "bolts"
+
+
 def test_a_drop_opens_the_file(make_window, qtbot, two_groups_csv):
     window = make_window()
     mime = QMimeData()

@@ -52,6 +52,30 @@ def test_engine_error_is_expected_and_other_errors_are_not(qtbot, worker):
     assert expected is False and "KeyError" in message
 
 
+class PanicException(BaseException):
+    """Stands for pyo3_runtime.PanicException: a Rust panic reaches Python as a BaseException."""
+
+
+def test_a_base_exception_from_a_job_is_reported_not_left_hanging(qtbot, worker):
+    def panics(progress, cancelled):
+        raise PanicException("range start index 2264925837 out of range for slice of length 4946")
+
+    with qtbot.waitSignal(worker.failed, timeout=5000) as blocker:
+        worker.run(panics)
+    message, expected = blocker.args
+    assert expected is False and message.startswith("PanicException: range start index")
+    assert not worker.busy
+
+
+def test_an_unexpected_failure_is_reported_in_at_most_a_few_hundred_characters(qtbot, worker):
+    def wordy(progress, cancelled):
+        raise ValueError("x" * 100_000)
+
+    with qtbot.waitSignal(worker.failed, timeout=5000) as blocker:
+        worker.run(wordy)
+    assert len(blocker.args[0]) < 400
+
+
 def test_cancel_stops_a_long_run(qtbot, worker):
     ended = threading.Event()
 

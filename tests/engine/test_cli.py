@@ -155,3 +155,20 @@ def test_plain_output_shows_the_suggestion_its_reasons_alternatives_and_cautions
         assert document["procedures"][name]["name"].lower() in out.lower()
     assert "read the reasons above" not in out
     assert "north_forge minus south_forge" in out
+
+
+class PanicException(BaseException):
+    """Stands for pyo3_runtime.PanicException, a BaseException that a Rust panic raises."""
+
+
+def test_an_unforeseen_error_is_one_line_naming_the_file(monkeypatch):
+    import engine.io
+
+    def panics(path, sheet=None):
+        raise PanicException("index out of bounds: the len is 3 but the index is " + "9" * 5000)
+
+    monkeypatch.setattr(engine.io, "read_table", panics)
+    code, out, err = run("analyze", str(DEMO / "bolt_strength.csv"))
+    assert code == 1 and out == ""
+    assert err.count("\n") == 1 and "bolt_strength.csv" in err and "PanicException" in err
+    assert len(err) < 400 and "Traceback" not in err

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import builtins
+import os
 import zipfile
 
 import pandas as pd
@@ -35,6 +36,17 @@ def test_folder_instead_of_file(tmp_path):
     folder.mkdir()
     with pytest.raises(FileProblem, match=r"looks\.csv is a folder"):
         read_table(folder)
+
+
+@pytest.mark.parametrize("name", ["pipe.csv", "pipe.xlsx"])
+def test_a_named_pipe_is_refused_at_once_not_waited_on(tmp_path, name):
+    # opening a FIFO for reading blocks until a writer comes: the check must not open it
+    path = tmp_path / name
+    os.mkfifo(path)
+    with pytest.raises(FileProblem, match=rf"{name.replace('.', '[.]')} is a named pipe, not a saved file"):
+        read_table(path)
+    with pytest.raises(FileProblem, match="named pipe"):
+        file_checksum(path)
 
 
 @pytest.mark.parametrize("name", ["notes.docx", "table.json", "noextension"])
@@ -264,3 +276,37 @@ def test_enough_free_memory_or_no_figure_lets_the_file_be_read(tmp_path, monkeyp
     for free in (path.stat().st_size * 3, None):
         monkeypatch.setattr(reader, "available_memory", lambda free=free: free)
         assert len(read_table(path).frame) == 40_000
+
+
+def test_a_missing_column_among_100000_is_one_short_line(tmp_path):
+    path = tmp_path / "wide.csv"
+    path.write_text(",".join(f"c{j}" for j in range(100_000)) + "\n" + ",".join(["1.5"] * 100_000) + "\n")
+    table = read_table(path)
+    with pytest.raises(ColumnProblem, match=r"wide\.csv has no column 'strength'; its columns are 'c0', .* and 99,992 more") as error:
+        make_groups(table, values="strength", group="c0")
+    assert len(_one_line(error)) < 300
+
+
+def test_an_analysis_error_names_the_file(tmp_path):
+    # the t procedures refuse two groups without spread; their message is made to name the file
+    from engine.analysis import analyze
+
+    table = read_table(_csv(tmp_path, "g,v\nA,1\nA,1\nA,1\nB,2\nB,2\nB,2\n", "flat.csv"))
+    intake = make_groups(table, values="v", group="g")
+    with pytest.raises(DataProblem, match=r"^flat\.csv: Every value within group 1 is the same"):
+        analyze(intake.groups, source={"file": "flat.csv", "sheet": None})
+
+
+def test_an_error_about_a_sheet_names_it(tmp_path):
+    import openpyxl
+
+    path = tmp_path / "season.xlsx"
+    book = openpyxl.Workbook()
+    book.active.title = "yields"
+    book.active.append(["regime", "yield"])
+    book.active.append(["slow", 7.5])
+    book.active.append(["split", 7.25])
+    book.save(path)
+    table = read_table(path)
+    with pytest.raises(ColumnProblem, match=r"^Sheet 'yields' of season\.xlsx has no column 'weight'"):
+        make_groups(table, values="weight", group="regime")

@@ -384,3 +384,33 @@ def test_a_long_column_of_codes_is_text_and_a_long_measurement_column_with_junk_
     # the texts stay as written; the one code that reads as a number is still there
     assert table.frame["code"].iloc[12_345] == "4711" and table.numbers("code")[12_345] == 4711
     assert np.count_nonzero(np.isnan(table.numbers("reading"))) == 3
+
+
+def test_a_file_of_thousands_of_columns_reads_as_pandas_reads_it(tmp_path):
+    # past 1,000 columns the file is parsed row by row into one block of floats; pandas' own
+    # parser is the reference for every cell
+    rng = np.random.default_rng(11)
+    frame = pd.DataFrame(np.round(rng.normal(50, 5, (6, 1500)), 3), columns=[f"plot {j}" for j in range(1500)])
+    frame.insert(0, "regime", ["slow", "split"] * 3)
+    frame.iloc[2, 5] = np.nan
+    frame.iloc[:, 7] = np.nan
+    path = tmp_path / "wide.csv"
+    frame.to_csv(path, index=False)
+    table = read_table(path)
+    reference = pd.read_csv(path)
+    assert list(table.frame.columns) == list(reference.columns)
+    assert table.column_kinds["regime"] == "text" and table.column_kinds["plot 0"] == "number"
+    assert table.column_kinds["plot 6"] == "empty"
+    assert table.frame["regime"].tolist() == reference["regime"].tolist()
+    np.testing.assert_array_equal(table.frame.iloc[:, 1:].to_numpy(dtype=float),
+                                  reference.iloc[:, 1:].to_numpy(dtype=float))
+
+
+def test_a_long_row_in_a_wide_file_names_its_line(tmp_path):
+    from engine.errors import FileProblem
+
+    path = tmp_path / "wide.csv"
+    header = ",".join(f"c{j}" for j in range(1200))
+    path.write_text(header + "\n" + ",".join(["1"] * 1200) + "\n" + ",".join(["2"] * 1201) + "\n")
+    with pytest.raises(FileProblem, match=r"wide\.csv, row 3: 1201 cells where the rows above have 1200"):
+        read_table(path)
