@@ -112,7 +112,9 @@ def test_scrolling_a_view_to_the_end_of_a_million_rows_is_quick(qtbot, million):
     model.set_table(million)
     view.scrollToBottom()
     view.viewport().repaint()
-    assert time.perf_counter() - started < 1.0
+    # a guard against a pass over every row (tens of seconds in Python), not a speed target:
+    # the figure itself is measured by tests/benchmarks/bench_startup.py
+    assert time.perf_counter() - started < 3.0
     assert view.rowAt(view.viewport().height() - 2) > 999_900
 
 
