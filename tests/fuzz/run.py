@@ -39,7 +39,16 @@ def main() -> int:
     parser.add_argument("--keep", type=Path, help="copy files that crash, hang or change here")
     parser.add_argument("--log", type=Path, help="write every result as a JSON line here")
     parser.add_argument("--show", action="store_true", help="print each problem as it is found")
+    parser.add_argument("--from-log", type=Path, help="count the results of an earlier --log again")
     args = parser.parse_args()
+
+    if args.from_log:
+        counts = Tally()
+        with open(args.from_log) as log:
+            for line in log:
+                counts.add(json.loads(line))
+        print(counts.report())
+        return 0
 
     if args.case or args.file:
         indices = args.case or []

@@ -56,8 +56,17 @@ def run_command(command: tuple[str, ...], path: Path) -> dict:
 
     out, err = io.StringIO(), io.StringIO()
     argv = [command[0], str(path), *command[1:]]
-    with warnings.catch_warnings(record=True) as caught:
+    caught: set[str] = set()
+
+    def record(message, category, filename, lineno, file=None, line=None):
+        # the engine's frames at the moment of the warning say which part of ours let it out
+        ours = [f"{Path(f.filename).name}:{f.name}" for f in traceback.extract_stack()
+                if "/engine/" in f.filename]
+        caught.add(f"{category.__name__}: {message} ({Path(filename).name}) [{' > '.join(ours[-3:])}]")
+
+    with warnings.catch_warnings():
         warnings.simplefilter("always")
+        warnings.showwarning = record
         try:
             code = main(argv, out=out, err=err)
         except KeyboardInterrupt:
@@ -80,8 +89,7 @@ def run_command(command: tuple[str, ...], path: Path) -> dict:
                     outcome = {"result": "crash", "type": "invalid JSON output", "message": str(error),
                                "where": "", "traceback": out.getvalue()[:2000]}
     outcome["command"] = command[0]
-    outcome["warnings"] = sorted({f"{w.category.__name__}: {w.message} ({Path(w.filename).name}:{w.lineno})"
-                                  for w in caught})
+    outcome["warnings"] = sorted(caught)
     return outcome
 
 
