@@ -262,6 +262,9 @@ def _qq(ordered: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     return readonly_array(special.ndtri(positions)), readonly_array(ordered[index])
 
 
+_SAFE_TO_SQUARE = (1e-150, 1e150)  # magnitudes whose squares and sums of squares stay normal floats
+
+
 def _anova_of_deviations(groups: tuple[np.ndarray, np.ndarray], centres: tuple[float, float]
                          ) -> tuple[float, float]:
     """One-way ANOVA F of absolute deviations from each group's centre, and its p-value.
@@ -272,13 +275,16 @@ def _anova_of_deviations(groups: tuple[np.ndarray, np.ndarray], centres: tuple[f
     Zbar_i)^2), referred to F(k - 1, N - k). Centre = mean gives Levene's test, centre = median
     the Brown-Forsythe variant.
     """
-    deviations = [np.abs(values - centre) for values, centre in zip(groups, centres)]
-    # F does not depend on the scale: deviations near 1e300 are brought to about 1 so that their
-    # squares do not overflow
+    with np.errstate(over="ignore"):
+        deviations = [np.abs(values - centre) for values, centre in zip(groups, centres)]
     largest = max(float(d.max()) if d.size else 0.0 for d in deviations)
-    if np.isfinite(largest) and largest > 0:
-        for d in deviations:
-            d /= largest
+    if not _SAFE_TO_SQUARE[0] < largest < _SAFE_TO_SQUARE[1]:
+        # F does not depend on the scale: values whose deviations would overflow (or vanish)
+        # when squared are brought to about 1 first
+        magnitude = max(max(float(v.max()), -float(v.min())) if v.size else 0.0 for v in groups)
+        if np.isfinite(magnitude) and magnitude > 0:
+            deviations = [np.abs(values / magnitude - centre / magnitude)
+                          for values, centre in zip(groups, centres)]
     sizes = np.array([d.size for d in deviations], dtype=float)
     total = sizes.sum()
     k = len(deviations)

@@ -124,14 +124,16 @@ def test_spread_checks_match_the_reference_library(center, field):
 
 
 
+@pytest.mark.parametrize("scale", [1e200, 1e-200])
 @pytest.mark.parametrize("center, field", [("mean", "levene"), ("median", "brown_forsythe")])
-def test_spread_checks_at_a_huge_scale_match_the_reference_at_scale_one(center, field):
+def test_spread_checks_at_huge_and_tiny_scales_match_the_reference_at_scale_one(center, field, scale):
     # reference: scipy.stats.levene(x, y, center=center) at scale 1; the F of the absolute
-    # deviations does not depend on the scale, but their squares overflow near 1e200
+    # deviations does not depend on the scale, but their squares overflow near 1e200 and
+    # vanish near 1e-200
     rng = np.random.default_rng(12)
     x, y = rng.normal(10, 1.0, 25), rng.normal(10, 2.2, 37)
     with np.errstate(all="ignore"):  # the SD ratio beside it is another matter
-        spread = diagnose(_groups(x * 1e200, y * 1e200)).spread
+        spread = diagnose(_groups(x * scale, y * scale)).spread
     expected = stats.levene(x, y, center=center)
     assert getattr(spread, f"{field}_stat") == pytest.approx(expected.statistic, rel=1e-9)
     assert getattr(spread, f"{field}_p") == pytest.approx(expected.pvalue, rel=1e-9)
