@@ -35,23 +35,27 @@ _SPECIAL_NUMBERS = [
 ]
 
 
-def write_case(seed: int, index: int, folder: Path) -> tuple[Path, str]:
-    """Write case ``index`` of the run seeded ``seed`` into ``folder``; return (path, tag)."""
+def write_case(seed: int, index: int, folder: Path, *, max_columns: int | None = None) -> tuple[Path, str]:
+    """Write case ``index`` of the run seeded ``seed`` into ``folder``; return (path, tag).
+
+    ``max_columns`` caps the width of the table and the number of group labels, for a run that
+    must stay short (a capped case is otherwise drawn as the uncapped one, as far as it can be).
+    """
     rng = random.Random(seed * 1_000_003 + index)
     kind = rng.choices(CASE_KINDS, _KIND_WEIGHTS)[0]
     if kind.startswith("text"):
-        data, extension, tag = _text_file(rng)
+        data, extension, tag = _text_file(rng, max_columns)
         if kind == "text-mutated":
             data, how = _mutate_bytes(rng, data)
             tag += f" {how}"
     elif kind.startswith("xlsx"):
-        data, tag = _xlsx(rng), "xlsx"
+        data, tag = _xlsx(rng, max_columns)
         extension = ".xlsx"
         if kind == "xlsx-mutated":
             data, how = _mutate_workbook(rng, data)
             tag += f" {how}"
     elif kind.startswith("ods"):
-        data, tag = _ods(rng), "ods"
+        data, tag = _ods(rng, max_columns)
         extension = ".ods"
         if kind == "ods-mutated":
             data, how = _mutate_workbook(rng, data)
@@ -88,7 +92,8 @@ def _scale(rng: random.Random) -> tuple[float, float]:
     return rng.uniform(0, 10), rng.uniform(0, 1e-9)  # nearly identical
 
 
-def _table(rng: random.Random, cells: int = 200_000) -> tuple[list[object], list[list[object]]]:
+def _table(rng: random.Random, cells: int = 200_000, max_columns: int | None = None
+           ) -> tuple[list[object], list[list[object]]]:
     """A long (label, value) or wide (one column per group) table, with the usual troubles.
 
     ``cells`` bounds the size: very wide tables get fewer rows.
@@ -98,7 +103,7 @@ def _table(rng: random.Random, cells: int = 200_000) -> tuple[list[object], list
     n_groups = rng.choice([1, 2, 2, 2, 2, 3, 5]) if rng.random() < 0.3 else 2
     labels = list(label_pool) + [f"G{i}" for i in range(n_groups - 2)] if n_groups >= 2 else label_pool[:1]
     if rng.random() < 0.02:  # very many labels
-        labels = [f"L{i}" for i in range(rng.choice([50, 3000]))]
+        labels = [f"L{i}" for i in range(rng.choice([50, 3000]))][:max_columns]
     sizes = [rng.choice([0, 1, 1, 2, 3, 3, 5, 10, 30, 200, 2000]) if rng.random() < 0.5
              else rng.choice([5, 8, 12, 20]) for _ in labels]
     scales = [_scale(rng) for _ in labels]
@@ -135,6 +140,8 @@ def _table(rng: random.Random, cells: int = 200_000) -> tuple[list[object], list
         if rng.random() < 0.5:
             rng.shuffle(rows)
     extra = rng.choice([0, 0, 0, 1, 3, 50, 2000]) if rng.random() < 0.3 else 0
+    if max_columns is not None:
+        extra = min(extra, max_columns)
     if extra:
         rows = rows[:max(3, cells // (extra + 2))]
         header = header + [f"extra{i}" for i in range(extra)]
@@ -185,8 +192,8 @@ def _quote(rng: random.Random, cell: str, delimiter: str, quoting: str) -> str:
     return cell
 
 
-def _text_file(rng: random.Random) -> tuple[bytes, str, str]:
-    header, rows = _table(rng)
+def _text_file(rng: random.Random, max_columns: int | None) -> tuple[bytes, str, str]:
+    header, rows = _table(rng, max_columns=max_columns)
     decimal_comma = rng.random() < 0.2
     delimiter = rng.choice([";", "\t"] if decimal_comma and rng.random() < 0.8 else [",", ",", ";", "\t", "|", " "])
     style = rng.choice(["repr", "fixed", "sci", "g"])
@@ -265,10 +272,10 @@ def _cell_value(rng: random.Random, value: object) -> object:
     return value
 
 
-def _xlsx(rng: random.Random) -> bytes:
+def _xlsx(rng: random.Random, max_columns: int | None) -> tuple[bytes, str]:
     from openpyxl import Workbook
 
-    header, rows = _table(rng, cells=20_000)
+    header, rows = _table(rng, cells=20_000, max_columns=max_columns)
     book = Workbook()
     sheet = book.active
     sheet.title = rng.choice(["Data", "Sheet1", "Notes", "日本", "a" * 31])
@@ -295,7 +302,7 @@ def _xlsx(rng: random.Random) -> bytes:
         sheet.merge_cells(start_row=1 + offset, start_column=1, end_row=2 + offset, end_column=2)
     out = io.BytesIO()
     book.save(out)
-    return out.getvalue()
+    return out.getvalue(), f"xlsx rows={len(rows)} cols={len(header)}"
 
 
 def _clean_xml(value: object) -> object:
@@ -305,12 +312,12 @@ def _clean_xml(value: object) -> object:
     return "".join(c for c in value if c in "\t\n\r" or ord(c) >= 32)[:32767]
 
 
-def _ods(rng: random.Random) -> bytes:
+def _ods(rng: random.Random, max_columns: int | None) -> tuple[bytes, str]:
     from odf.opendocument import OpenDocumentSpreadsheet
     from odf.table import Table, TableCell, TableRow
     from odf.text import P
 
-    header, rows = _table(rng, cells=2_000)
+    header, rows = _table(rng, cells=2_000, max_columns=max_columns)
     document = OpenDocumentSpreadsheet()
     table = Table(name=rng.choice(["Data", "Sheet1", "Notes"]))
     for row in [header] + rows:
@@ -328,7 +335,7 @@ def _ods(rng: random.Random) -> bytes:
     document.spreadsheet.addElement(table)
     out = io.BytesIO()
     document.write(out)
-    return out.getvalue()
+    return out.getvalue(), f"ods rows={len(rows)} cols={len(header)}"
 
 
 def _mutate_workbook(rng: random.Random, data: bytes) -> tuple[bytes, str]:

@@ -79,7 +79,8 @@ def problems_of(result: dict) -> list[Problem]:
             for key in _message_problems(outcome["message"], path):
                 add("message", key, outcome["message"][:300])
         for warning in outcome["warnings"]:
-            add("warning", _normalise(warning), warning)
+            text, _, stack = warning.partition(" [")
+            add("warning", _normalise(text) + (f" [{stack}" if stack else ""), warning)
     return found
 
 
@@ -100,14 +101,26 @@ class Known:
     matches: Callable[[Problem], bool]
 
 
-def _crash_in(problem: Problem, types: tuple[str, ...], module: str) -> bool:
-    return problem.kind == "crash" and problem.key.split(":")[0] in types and f"[engine/{module}" in problem.key
+def _crash_in(problem: Problem, types: tuple[str, ...], where: str) -> bool:
+    """A crash of one of ``types`` whose innermost frame of ours is in ``where`` (folder/file)."""
+    return problem.kind == "crash" and problem.key.split(":")[0] in types and f"[{where}:" in problem.key
+
+
+def _widest(tag: str) -> int:
+    return max((int(n) for n in re.findall(r"cols=(\d+)", tag)), default=0)
 
 
 KNOWN_ELSEWHERE: tuple[Known, ...] = (
     # the noncentral-t search for the effect-size intervals fails on well-separated groups
     Known("effect-size interval search (engine/effects.py)",
-          lambda p: _crash_in(p, ("builtins.ValueError", "builtins.OverflowError"), "effects.py")),
+          lambda p: _crash_in(p, ("builtins.ValueError", "builtins.OverflowError"), "engine/effects.py")),
+    # squares of values near 1e154 and beyond overflow in the Welch degrees of freedom
+    Known("huge or tiny numbers: SD and Welch df",
+          lambda p: _crash_in(p, ("builtins.OverflowError",), "procedures/t.py")),
+    # numpy's floating-point warnings inside the analysis reach the terminal
+    Known("huge or tiny numbers: numpy warnings in the analysis",
+          lambda p: p.kind == "warning" and p.key.startswith("RuntimeWarning: ")
+          and "analysis.py:analyze" in p.key),
     # python-calamine raises a BaseException on some damaged workbooks
     Known("python-calamine PanicException",
           lambda p: p.kind == "crash" and p.key.startswith("pyo3_runtime.PanicException")),
@@ -116,6 +129,9 @@ KNOWN_ELSEWHERE: tuple[Known, ...] = (
           lambda p: p.extension in _WORKBOOKS and (
               (p.kind == "crash" and ("memory allocation of" in p.detail or "MemoryError" in p.key))
               or (p.kind == "message" and p.detail.startswith("The file is too large for the memory")))),
+    # per-column work makes files of thousands of columns (or group labels) take a minute
+    Known("thousands of columns or labels: slow",
+          lambda p: p.kind == "hang" and _widest(p.tag) >= 1000),
     Known("error message without the file name",
           lambda p: p.kind == "message" and p.key == "error message without the file name"),
     Known("error message too long",

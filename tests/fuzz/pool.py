@@ -82,12 +82,14 @@ class FuzzPool:
 
     ``memory`` is each worker's address-space limit in bytes (0: none), ``timeout`` the seconds a
     case may take. ``keep``, if given, is a folder that receives a copy of every file that
-    crashed, hung or changed. ``files`` replaces generated cases with existing files.
+    crashed, hung or changed. ``max_columns`` caps the width of generated tables (see
+    ``cases.write_case``).
     """
 
     def __init__(self, seed: int, *, workers: int = 2, memory: int = 3 << 30, timeout: float = 30.0,
-                 keep: Path | None = None) -> None:
+                 keep: Path | None = None, max_columns: int | None = None) -> None:
         self.seed, self.memory, self.timeout, self.keep = seed, memory, timeout, keep
+        self.max_columns = max_columns
         self.n_workers = workers
         self.folder = Path(tempfile.mkdtemp(prefix="twofold-fuzz-"))
         self.workers: list[_Worker] = []
@@ -98,10 +100,10 @@ class FuzzPool:
         return _Worker(self, self.started_workers)
 
     def run(self, indices: Iterable[int] = (), files: Iterable[Path] = ()) -> Iterator[dict]:
-        """Yield one result per case as it finishes (not in order)."""
+        """Yield one result per case as it finishes (not in order); ``files`` are run as cases too."""
         import json
 
-        pending = deque([{"index": i} for i in indices] +
+        pending = deque([{"index": i, "max_columns": self.max_columns} for i in indices] +
                         [{"index": -1 - n, "path": str(Path(p).resolve())} for n, p in enumerate(files)])
         self.workers = [self._spawn() for _ in range(min(self.n_workers, max(len(pending), 1)))]
         try:

@@ -36,6 +36,7 @@ def main() -> int:
     parser.add_argument("--workers", type=int, default=2)
     parser.add_argument("--memory-gb", type=float, default=3.0, help="address-space limit per worker")
     parser.add_argument("--timeout", type=float, default=60.0, help="seconds per case")
+    parser.add_argument("--max-columns", type=int, help="cap the width of generated tables")
     parser.add_argument("--keep", type=Path, help="copy files that crash, hang or change here")
     parser.add_argument("--log", type=Path, help="write every result as a JSON line here")
     parser.add_argument("--show", action="store_true", help="print each problem as it is found")
@@ -55,7 +56,7 @@ def main() -> int:
     else:
         indices = range(args.start, args.start + args.cases)
     pool = FuzzPool(args.seed, workers=args.workers, memory=int(args.memory_gb * (1 << 30)),
-                    timeout=args.timeout, keep=args.keep)
+                    timeout=args.timeout, keep=args.keep, max_columns=args.max_columns)
     counts = Tally()
     log = open(args.log, "w") if args.log else None
     began = time.monotonic()

@@ -1,8 +1,8 @@
 """One fuzz worker process: writes cases, runs the headless commands on each, reports outcomes.
 
 Started by ``pool.FuzzPool`` as ``python tests/fuzz/worker.py SEED FOLDER MEMORY_BYTES``. It reads
-one JSON request per line on stdin (``{"index": N}`` to write case N, or ``{"index": N, "path": P}``
-to run an existing file) and answers on stdout with two JSON lines per case: ``ready`` (the file
+one JSON request per line on stdin (``{"index": N, "max_columns": M}`` to write case N, or
+``{"index": N, "path": P}`` to run an existing file) and answers on stdout with two JSON lines per case: ``ready`` (the file
 and its SHA-256, before anything reads it) and ``done`` (the outcome of each command). Whatever
 the engine might print goes to stderr, which the pool keeps in a file to read after a crash.
 """
@@ -62,7 +62,7 @@ def run_command(command: tuple[str, ...], path: Path) -> dict:
         # the engine's frames at the moment of the warning say which part of ours let it out
         ours = [f"{Path(f.filename).name}:{f.name}" for f in traceback.extract_stack()
                 if "/engine/" in f.filename]
-        caught.add(f"{category.__name__}: {message} ({Path(filename).name}) [{' > '.join(ours[-3:])}]")
+        caught.add(f"{category.__name__}: {message} ({Path(filename).name}) [{' > '.join(ours[1:])}]")
 
     with warnings.catch_warnings():
         warnings.simplefilter("always")
@@ -114,7 +114,7 @@ def _serve(seed: int, folder: Path, memory: int) -> None:
         else:
             for old in folder.iterdir():
                 old.unlink()
-            path, tag = cases.write_case(seed, index, folder)
+            path, tag = cases.write_case(seed, index, folder, max_columns=request.get("max_columns"))
         protocol.write(json.dumps({"event": "ready", "index": index, "path": str(path), "tag": tag,
                                    "sha256": sha256(path)}) + "\n")
         outcomes = [run_command(command, path) for command in COMMANDS]
