@@ -48,16 +48,11 @@ def write_case(seed: int, index: int, folder: Path, *, max_columns: int | None =
         if kind == "text-mutated":
             data, how = _mutate_bytes(rng, data)
             tag += f" {how}"
-    elif kind.startswith("xlsx"):
-        data, tag = _xlsx(rng, max_columns)
-        extension = ".xlsx"
-        if kind == "xlsx-mutated":
-            data, how = _mutate_workbook(rng, data)
-            tag += f" {how}"
-    elif kind.startswith("ods"):
-        data, tag = _ods(rng, max_columns)
-        extension = ".ods"
-        if kind == "ods-mutated":
+    elif kind.startswith(("xlsx", "ods")):
+        book = kind.split("-")[0]
+        data, tag = (_xlsx if book == "xlsx" else _ods)(rng, max_columns)
+        extension = f".{book}"
+        if kind.endswith("-mutated"):
             data, how = _mutate_workbook(rng, data)
             tag += f" {how}"
     else:

@@ -15,6 +15,7 @@ from __future__ import annotations
 import argparse
 import json
 import resource
+import signal
 import sys
 import time
 from pathlib import Path
@@ -51,6 +52,9 @@ def main() -> int:
         print(counts.report())
         return 0
 
+    # a run started in the background ignores Ctrl-C by default: stop cleanly on either signal
+    signal.signal(signal.SIGINT, signal.default_int_handler)
+    signal.signal(signal.SIGTERM, lambda *_: sys.exit(1))
     if args.case or args.file:
         indices = args.case or []
     else:
