@@ -99,12 +99,19 @@ class FuzzPool:
         self.started_workers += 1
         return _Worker(self, self.started_workers)
 
-    def run(self, indices: Iterable[int] = (), files: Iterable[Path] = ()) -> Iterator[dict]:
-        """Yield one result per case as it finishes (not in order); ``files`` are run as cases too."""
+    def run(self, indices: Iterable[int] = (), files: Iterable[Path] = (),
+            faults: Iterable[tuple[Path, str]] = ()) -> Iterator[dict]:
+        """Yield one result per case as it finishes (not in order).
+
+        ``files`` are run as cases too; ``faults`` pairs a file with a failure made on purpose
+        ("abort", "hang", "change", "raise"), to check the guard itself.
+        """
         import json
 
+        given = [(path, None) for path in files] + list(faults)
         pending = deque([{"index": i, "max_columns": self.max_columns} for i in indices] +
-                        [{"index": -1 - n, "path": str(Path(p).resolve())} for n, p in enumerate(files)])
+                        [{"index": -1 - n, "path": str(Path(p).resolve()), "fault": fault}
+                         for n, (p, fault) in enumerate(given)])
         self.workers = [self._spawn() for _ in range(min(self.n_workers, max(len(pending), 1)))]
         try:
             while pending or any(w.request for w in self.workers):
@@ -124,8 +131,9 @@ class FuzzPool:
                         while b"\n" in worker.buffer and worker.request is not None:
                             line, worker.buffer = worker.buffer.split(b"\n", 1)
                             message = json.loads(line)
-                            if message["event"] == "ready":
+                            if message["event"] == "ready":  # the time limit counts from here
                                 worker.ready = message
+                                worker.deadline = time.monotonic() + self.timeout
                             else:
                                 yield self._finish(worker, done=message)
                     elif time.monotonic() > worker.deadline:

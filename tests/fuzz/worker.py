@@ -2,19 +2,21 @@
 
 Started by ``pool.FuzzPool`` as ``python tests/fuzz/worker.py SEED FOLDER MEMORY_BYTES``. It reads
 one JSON request per line on stdin (``{"index": N, "max_columns": M}`` to write case N, or
-``{"index": N, "path": P}`` to run an existing file) and answers on stdout with two JSON lines per case: ``ready`` (the file
+``{"index": N, "path": P}`` to run an existing file; ``"fault"`` makes it fail on purpose) and answers on stdout with two JSON lines per case: ``ready`` (the file
 and its SHA-256, before anything reads it) and ``done`` (the outcome of each command). Whatever
 the engine might print goes to stderr, which the pool keeps in a file to read after a crash.
 """
 
 from __future__ import annotations
 
+import contextlib
 import hashlib
 import io
 import json
 import os
 import resource
 import sys
+import time
 import traceback
 import warnings
 from pathlib import Path
@@ -93,6 +95,33 @@ def run_command(command: tuple[str, ...], path: Path) -> dict:
     return outcome
 
 
+@contextlib.contextmanager
+def _fault(fault: str | None, path: Path):
+    """Faults on purpose, so that a test can check the guard sees each kind of failure."""
+    if fault == "abort":
+        os.abort()
+    elif fault == "hang":
+        while True:
+            time.sleep(60)
+    elif fault == "change":
+        with open(path, "ab") as handle:
+            handle.write(b"\n")
+    elif fault == "raise":
+        import engine.cli
+
+        def broken(args, out):
+            raise RuntimeError("a fault on purpose")
+
+        kept = engine.cli._columns, engine.cli._analyze
+        engine.cli._columns = engine.cli._analyze = broken
+        try:
+            yield
+        finally:
+            engine.cli._columns, engine.cli._analyze = kept
+        return
+    yield
+
+
 def _serve(seed: int, folder: Path, memory: int) -> None:
     protocol = os.fdopen(os.dup(1), "w", buffering=1)
     os.dup2(2, 1)  # anything printed lands in the stderr file, not in the protocol
@@ -117,7 +146,8 @@ def _serve(seed: int, folder: Path, memory: int) -> None:
             path, tag = cases.write_case(seed, index, folder, max_columns=request.get("max_columns"))
         protocol.write(json.dumps({"event": "ready", "index": index, "path": str(path), "tag": tag,
                                    "sha256": sha256(path)}) + "\n")
-        outcomes = [run_command(command, path) for command in COMMANDS]
+        with _fault(request.get("fault"), path):
+            outcomes = [run_command(command, path) for command in COMMANDS]
         peak_kib = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss
         protocol.write(json.dumps({"event": "done", "index": index, "outcomes": outcomes,
                                    "peak_kib": peak_kib}) + "\n")
