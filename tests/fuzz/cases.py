@@ -1,8 +1,9 @@
 """Generated input files for the fuzz run: text tables and workbooks, then mutated.
 
 ``write_case(seed, index, folder)`` writes one file and returns its path and a short tag that says
-how it was made. The same (seed, index) always gives the same bytes, so a case found by the big
-run can be written again on its own (``tests/fuzz/run.py --case N``).
+how it was made. The same (seed, index) always gives the same file (workbooks differ only in the
+time stamps their writers put in), so a case found by the big run can be written again on its own
+(``tests/fuzz/run.py --case N``); ``--keep`` keeps the very bytes of every failing case.
 """
 
 from __future__ import annotations
@@ -190,7 +191,8 @@ def _quote(rng: random.Random, cell: str, delimiter: str, quoting: str) -> str:
 def _text_file(rng: random.Random, max_columns: int | None) -> tuple[bytes, str, str]:
     header, rows = _table(rng, max_columns=max_columns)
     decimal_comma = rng.random() < 0.2
-    delimiter = rng.choice([";", "\t"] if decimal_comma and rng.random() < 0.8 else [",", ",", ";", "\t", "|", " "])
+    plain = [",", ",", ";", "\t", "|", " "]
+    delimiter = rng.choice([";", "\t"] if decimal_comma and rng.random() < 0.8 else plain)
     style = rng.choice(["repr", "fixed", "sci", "g"])
     quoting = rng.choice(["minimal", "minimal", "all", "none"])
     lines = []
@@ -373,13 +375,15 @@ def _mutate_xml(rng: random.Random, content: bytes) -> bytes:
             at = content.find(old, rng.randrange(len(content) + 1))
             if at >= 0:
                 at += len(old)
-                return content[:at] + rng.choice([b"1e999", b"NaN", b"-", b"", b"1e-400", b"abc"]) + content[at:]
+                odd = rng.choice([b"1e999", b"NaN", b"-", b"", b"1e-400", b"abc"])
+                return content[:at] + odd + content[at:]
         return content
     if how == "attribute":  # a reference or count made wrong
         for old in (b'r="', b'ref="', b'count="', b'table:number-columns-repeated="'):
             at = content.find(old)
             if at >= 0:
                 at += len(old)
-                return content[:at] + rng.choice([b"ZZ9", b"A0", b"-1", b"99999", b"A1048576", b"XFD"]) + content[at:]
+                wrong = rng.choice([b"ZZ9", b"A0", b"-1", b"99999", b"A1048576", b"XFD"])
+                return content[:at] + wrong + content[at:]
         return content
     return content.replace(b"<", b"<x", 1)

