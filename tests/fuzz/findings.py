@@ -71,6 +71,8 @@ def problems_of(result: dict) -> list[Problem]:
         add("crash", f"worker died ({what}): {_normalise(last[0])}", died["stderr"])
     if result.get("sha256_after") and result["sha256_after"] != result["sha256_before"]:
         add("changed", "the input file changed")
+    if result.get("written_beside"):
+        add("changed", "a file was written beside the input", ", ".join(result["written_beside"]))
     for outcome in result["outcomes"] or ():
         if outcome["result"] == "crash":
             add("crash", f"{outcome['type']}: {_normalise(outcome['message'])} [{outcome['where']}]",

@@ -152,6 +152,7 @@ class FuzzPool:
                   "hung": hung, "peak_kib": None}
         if done is not None:
             result["outcomes"], result["peak_kib"] = done["outcomes"], done["peak_kib"]
+            result["written_beside"] = done.get("written_beside", [])
         if died or hung:
             if hung:
                 os.killpg(worker.process.pid, signal.SIGKILL)

@@ -150,8 +150,9 @@ def _serve(seed: int, folder: Path, memory: int) -> None:
         with _fault(request.get("fault"), path):
             outcomes = [run_command(command, path) for command in COMMANDS]
         peak_kib = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss
+        written = sorted(p.name for p in path.parent.iterdir() if p != path) if path.parent == folder else []
         protocol.write(json.dumps({"event": "done", "index": index, "outcomes": outcomes,
-                                   "peak_kib": peak_kib}) + "\n")
+                                   "peak_kib": peak_kib, "written_beside": written}) + "\n")
 
 
 if __name__ == "__main__":
