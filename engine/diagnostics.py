@@ -193,12 +193,22 @@ def _moments(values: np.ndarray) -> tuple[float, float]:
     n = values.size
     if n < 3:
         return float("nan"), float("nan")
-    deviations = values - values.mean()
+    # G1 and G2 do not depend on the scale: the values are brought to about 1 (by the largest
+    # magnitude), and the deviations once more, so that squares and cubes neither overflow near
+    # 1e308 nor vanish near 1e-300.
+    magnitude = max(float(values.max()), -float(values.min()))
+    if not np.isfinite(magnitude) or magnitude == 0:
+        return float("nan"), float("nan")
+    deviations = values / magnitude
+    deviations -= deviations.mean()
+    scale = max(float(deviations.max()), -float(deviations.min()))
+    if scale == 0:
+        return float("nan"), float("nan")
+    deviations /= scale
     squares = deviations * deviations
     m2 = squares.mean()
-    scale = float(np.max(np.abs(deviations)))
     # Values that do not vary (up to rounding) have no shape to speak of.
-    if m2 <= 0 or scale == 0 or m2 <= (np.finfo(float).eps * scale) ** 2:
+    if m2 <= np.finfo(float).eps ** 2:
         return float("nan"), float("nan")
     m3 = float(np.dot(squares, deviations)) / n
     g1 = m3 / m2 ** 1.5
@@ -264,6 +274,9 @@ def _qq(ordered: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     return readonly_array(special.ndtri(positions)), readonly_array(ordered[index])
 
 
+_SAFE_TO_SQUARE = (1e-150, 1e150)  # magnitudes whose squares and sums of squares stay normal floats
+
+
 def _anova_of_deviations(groups: tuple[np.ndarray, np.ndarray], centres: tuple[float, float]
                          ) -> tuple[float, float]:
     """One-way ANOVA F of absolute deviations from each group's centre, and its p-value.
@@ -274,7 +287,16 @@ def _anova_of_deviations(groups: tuple[np.ndarray, np.ndarray], centres: tuple[f
     Zbar_i)^2), referred to F(k - 1, N - k). Centre = mean gives Levene's test, centre = median
     the Brown-Forsythe variant.
     """
-    deviations = [np.abs(values - centre) for values, centre in zip(groups, centres)]
+    with np.errstate(over="ignore"):
+        deviations = [np.abs(values - centre) for values, centre in zip(groups, centres)]
+    largest = max(float(d.max()) if d.size else 0.0 for d in deviations)
+    if not _SAFE_TO_SQUARE[0] < largest < _SAFE_TO_SQUARE[1]:
+        # F does not depend on the scale: values whose deviations would overflow (or vanish)
+        # when squared are brought to about 1 first
+        magnitude = max(max(float(v.max()), -float(v.min())) if v.size else 0.0 for v in groups)
+        if np.isfinite(magnitude) and magnitude > 0:
+            deviations = [np.abs(values / magnitude - centre / magnitude)
+                          for values, centre in zip(groups, centres)]
     sizes = np.array([d.size for d in deviations], dtype=float)
     total = sizes.sum()
     k = len(deviations)
@@ -438,7 +460,10 @@ def _shape(label: str, values: np.ndarray, index: int, ordered: np.ndarray | Non
             f"All values of {lower} are equal, so the Shapiro-Wilk check of a bell shape cannot "
             "be run.", index))
     else:
-        result = stats.shapiro(ordered)
+        # W and its p-value do not depend on the scale. Brought to about 1 first: scipy's routine
+        # gives up (with a warning) on a range below 1e-19, and its sums of squares overflow
+        # near 1e308.
+        result = stats.shapiro(ordered / max(abs(ordered[0]), abs(ordered[-1])))
         shapiro_w, shapiro_p = float(result.statistic), float(result.pvalue)
         figures = f"W = {format_number(shapiro_w, digits=3)}, {p_clause(shapiro_p)}"
         if shapiro_p < CHECK_ALPHA:

@@ -182,7 +182,8 @@ def _is_identifier(table: Table, name: str) -> bool:
     if finite.size < 3:
         return False
     ordered = np.sort(finite)
-    return bool(np.all(np.diff(ordered) > 0))
+    # compared, not subtracted: the gap between -1e308 and 1e308 is beyond the largest float
+    return bool(np.all(ordered[1:] > ordered[:-1]))
 
 
 def _two_codes(values: np.ndarray) -> bool:

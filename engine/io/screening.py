@@ -79,7 +79,8 @@ def _fences(values: np.ndarray) -> tuple[float, float, float, float] | None:
     if values.size > _EXACT_QUARTILES_UP_TO:  # an evenly spread subsample: quartiles to ~0.3 %
         sample = values[:: values.size // _EXACT_QUARTILES_UP_TO]
     q1, median, q3 = np.quantile(sample, [0.25, 0.5, 0.75])
-    iqr = q3 - q1
+    with np.errstate(over="ignore"):  # an IQR beyond the largest float: fences at infinity
+        iqr = q3 - q1
     if not iqr > 0:
         return None
     return q1, median, q3, iqr
@@ -130,8 +131,11 @@ def possible_slips(
     if fences is None:
         return []
     q1, median, q3, iqr = fences
-    inner_low, inner_high = q1 - INNER_IQR * iqr, q3 + INNER_IQR * iqr
-    far_low, far_high = q1 - FAR_OUT_IQR * iqr, q3 + FAR_OUT_IQR * iqr
+    # near 1e308 a fence may lie beyond the largest float: infinite then, and rightly so, since
+    # no value can lie beyond it
+    with np.errstate(over="ignore"):
+        inner_low, inner_high = q1 - INNER_IQR * iqr, q3 + INNER_IQR * iqr
+        far_low, far_high = q1 - FAR_OUT_IQR * iqr, q3 + FAR_OUT_IQR * iqr
     shift = _decimal_shifts(values, median, inner_low, inner_high)
     far = (values < far_low) | (values > far_high)
     flagged = np.flatnonzero(far | (shift != 0))
@@ -167,12 +171,13 @@ def _decimal_shifts(values: np.ndarray, median: float, low: float, high: float) 
     if median == 0 or outside.size == 0:
         return shifts
     candidates = values[outside]
+    # a ratio or a shifted value beyond the largest float is infinite and so no shift: right
     with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
         ratio = np.log10(candidates / median)
-    for k in (1, 2, -1, -2):
-        back = candidates / 10.0 ** k
-        hit = (np.abs(ratio - k) < _SHIFT_TOLERANCE) & (back >= low) & (back <= high)
-        shifts[outside[hit & (shifts[outside] == 0)]] = k
+        for k in (1, 2, -1, -2):
+            back = candidates / 10.0 ** k
+            hit = (np.abs(ratio - k) < _SHIFT_TOLERANCE) & (back >= low) & (back <= high)
+            shifts[outside[hit & (shifts[outside] == 0)]] = k
     return shifts
 
 

@@ -439,7 +439,14 @@ def _shift(a, b, cancelled) -> float:
     if total % 2:
         return float(_select(a, b, [total // 2], cancelled=cancelled)[0])
     pair = _select(a, b, [total // 2 - 1, total // 2], cancelled=cancelled)
-    return float((pair[0] + pair[1]) / 2)
+    return _midpoint(float(pair[0]), float(pair[1]))
+
+
+def _midpoint(low: float, high: float) -> float:
+    """(low + high) / 2 for low <= high, without overflow when both lie near the largest float."""
+    if (low < 0) != (high < 0):
+        return (low + high) / 2
+    return low + (high - low) / 2
 
 
 # --- the test --------------------------------------------------------------------------------
@@ -693,7 +700,7 @@ def mann_whitney(
         groups.pop(1)
     found = _Matrix(xs, negated, MATERIALIZE_LIMIT, cancelled).select_groups(groups)
     pair = found[0]
-    estimate = float(pair[0]) if total % 2 else float((pair[0] + pair[1]) / 2)
+    estimate = float(pair[0]) if total % 2 else _midpoint(float(pair[0]), float(pair[1]))
     low = float(found[1][0]) if alternative != "less" else -math.inf
     high = float(found[-1][0]) if alternative != "greater" else math.inf
     details.update(interval_rank=k, interval_coverage=coverage)

@@ -555,14 +555,28 @@ class _Sample:
 
 
 def _acceleration(jackknives: list[np.ndarray]) -> float:
-    numerator = denominator = 0.0
+    """The BCa acceleration from the leave-one-out values of each group.
+
+    The ratio sum(u**3) / (6 * sum(u**2)**1.5) does not change when every u is divided by the
+    same number, so the values are first brought to about 1 (by the largest magnitude), and the
+    u once more: cubes of values near 1e150 would overflow and squares of values near 1e-200
+    underflow to zero.
+    """
+    largest = max((float(np.max(np.abs(values))) for values in jackknives if values.size), default=0.0)
+    if not math.isfinite(largest) or largest == 0:
+        return math.nan
+    deviations = []
     for values in jackknives:
-        n = values.size
-        u = (n - 1) * (values.mean() - values)
+        scaled = values / largest
+        deviations.append((values.size, (values.size - 1) * (scaled.mean() - scaled)))
+    spread = max(float(np.max(np.abs(u))) for _, u in deviations)
+    if spread == 0:
+        return math.nan
+    numerator = denominator = 0.0
+    for n, u in deviations:
+        u = u / spread
         numerator += float(np.sum(u**3)) / n**3
         denominator += float(np.sum(u**2)) / n**2
-    if denominator == 0:
-        return math.nan
     return numerator / (6 * denominator**1.5)
 
 

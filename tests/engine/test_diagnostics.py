@@ -1,6 +1,7 @@
 """Shape, spread, outlier and tie checks, against scipy, numpy and the textbook formulas."""
 
 import time
+import warnings
 
 import numpy as np
 import pytest
@@ -72,6 +73,25 @@ def test_shapiro_wilk_matches_the_reference_library():
         assert shape.shapiro_p == pytest.approx(expected.pvalue, rel=1e-10)
 
 
+
+@pytest.mark.parametrize("scale", [1e-30, 1e-300, 1e150])
+def test_shape_checks_at_tiny_and_huge_scales_match_the_reference_at_scale_one(scale):
+    # reference: scipy.stats.shapiro, skew and kurtosis (bias=False) of the same values at scale
+    # 1; none depends on the scale (Shapiro and Wilk 1965; Joanes and Gill 1998), but scipy's
+    # Shapiro-Wilk routine warns "range zero" below a range of 1e-19, cubes overflow near 1e150
+    # and squares vanish near 1e-300
+    rng = np.random.default_rng(64)
+    x, y = rng.gamma(2.0, 3.0, 25), rng.normal(10, 2, 30)
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        shapes = diagnose(_groups(x * scale, y * scale)).shapes
+    for shape, values in zip(shapes, (x, y)):
+        reference = stats.shapiro(values)
+        assert shape.shapiro_w == pytest.approx(reference.statistic, rel=1e-9)
+        assert shape.shapiro_p == pytest.approx(reference.pvalue, rel=1e-7)
+        assert shape.skewness == pytest.approx(stats.skew(values, bias=False), rel=1e-9)
+        assert shape.excess_kurtosis == pytest.approx(stats.kurtosis(values, bias=False), rel=1e-9)
+
 def test_shapiro_wilk_is_not_run_outside_its_valid_range_and_says_why():
     rng = np.random.default_rng(4)
     result = diagnose(_groups(rng.normal(size=2), rng.normal(size=6000)))
@@ -102,6 +122,21 @@ def test_spread_checks_match_the_reference_library(center, field):
     assert getattr(spread, f"{field}_stat") == pytest.approx(expected.statistic, rel=1e-10)
     assert getattr(spread, f"{field}_p") == pytest.approx(expected.pvalue, rel=1e-9)
 
+
+
+@pytest.mark.parametrize("scale", [1e200, 1e-200])
+@pytest.mark.parametrize("center, field", [("mean", "levene"), ("median", "brown_forsythe")])
+def test_spread_checks_at_huge_and_tiny_scales_match_the_reference_at_scale_one(center, field, scale):
+    # reference: scipy.stats.levene(x, y, center=center) at scale 1; the F of the absolute
+    # deviations does not depend on the scale, but their squares overflow near 1e200 and
+    # vanish near 1e-200
+    rng = np.random.default_rng(12)
+    x, y = rng.normal(10, 1.0, 25), rng.normal(10, 2.2, 37)
+    with np.errstate(all="ignore"):  # the SD ratio beside it is another matter
+        spread = diagnose(_groups(x * scale, y * scale)).spread
+    expected = stats.levene(x, y, center=center)
+    assert getattr(spread, f"{field}_stat") == pytest.approx(expected.statistic, rel=1e-9)
+    assert getattr(spread, f"{field}_p") == pytest.approx(expected.pvalue, rel=1e-9)
 
 def test_sd_and_size_ratios():
     rng = np.random.default_rng(12)

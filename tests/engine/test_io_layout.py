@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import warnings
+
 import pandas as pd
 import pytest
 
@@ -84,6 +86,19 @@ def test_identifier_names_are_not_values(tmp_path, name):
     assert name not in proposal.value_columns
     assert proposal.value_columns == ("value",)
 
+
+def test_distinct_whole_numbers_near_the_largest_float_are_an_identifier(tmp_path):
+    # reference: the rule of _is_identifier, by hand: the codes are whole numbers, all different
+    # and not in rising order, so the column is taken for an identifier; the gap between -1e308
+    # and 1e308 overflowed when the sorted codes were subtracted
+    codes = ["1e308", "-1e308", "1.5e308", "-1.5e308", "1.7e308", "-1.7e308", "1.1e308", "-1.1e308"]
+    rows = "".join(f"{code},{'AB'[i % 2]},{i * 0.7 + 3}\n" for i, code in enumerate(codes))
+    table = _table(tmp_path, "code,group,value\n" + rows)
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        proposal = propose_layout(table)
+    assert proposal.value_columns == ("value",)
+    assert any("'code' looks like an identifier" in reason for reason in proposal.reasons)
 
 def test_labels_that_first_appear_far_down_are_listed_in_order(tmp_path):
     # reference: the order of first appearance, counted by hand from the rows written

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import warnings
 from pathlib import Path
 
 import numpy as np
@@ -207,6 +208,22 @@ def test_shifted_decimal_point_is_flagged(tmp_path):
     assert "10 times the group median" in report.possible_slips[0].text
     assert "misplaced decimal point" in report.possible_slips[0].text
 
+
+
+@pytest.mark.parametrize("scale", [1.0, 1e306])
+def test_slips_near_the_largest_float_are_found_as_at_scale_one(tmp_path, scale):
+    # reference: the rule of possible_slips' docstring worked by hand at scale 1 (numpy's type 7
+    # quartiles 0.9925 and 1.045): 100.0 is 100 times the median and shifted back falls inside
+    # the fences; every other value lies inside them. Near 1e308 the fences and the shifted
+    # values go past the largest float, which numpy reported as overflow warnings.
+    values = [1.00, 1.02, 0.98, 1.01, 0.99, 1.03, 0.97, 100.0, 1.05, 1.1]
+    rows = "".join(f"A,{v * scale!r}\n" for v in values) + "".join(f"B,{v * scale!r}\n" for v in values[:7])
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        report = make_groups(_table(tmp_path, "g,v\n" + rows), values="v", group="g").screening
+    assert len(report.possible_slips) == 1
+    assert "Row 9 " in report.possible_slips[0].text
+    assert "100 times the group median" in report.possible_slips[0].text
 
 def test_no_slips_in_clean_normal_data(tmp_path):
     rng = np.random.default_rng(8)

@@ -8,6 +8,8 @@ recursion for the count of U, and a table of critical values of U.
 from __future__ import annotations
 
 import itertools
+import warnings
+from fractions import Fraction
 from math import comb
 
 import numpy as np
@@ -196,6 +198,17 @@ def test_hodges_lehmann_against_brute_force(n1, n2, decimals):
         x, y = np.round(x, decimals), np.round(y, decimals)
     # reference: the median of every pairwise difference, formed outright
     assert hodges_lehmann(x, y) == np.median(np.subtract.outer(x, y))
+
+
+def test_hodges_lehmann_near_the_largest_float_is_the_exact_midpoint():
+    # reference: the median of the four differences 1.5e308, 1.5e308, 1.6e308, 1.6e308 worked
+    # exactly with fractions.Fraction; the plain (a + b) / 2 overflowed to infinity
+    x, y = np.array([1.5e308, 1.6e308]), np.array([0.0, 0.0])
+    expected = float((Fraction(1.5e308) + Fraction(1.6e308)) / 2)
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        assert hodges_lehmann(x, y) == expected
+        assert mann_whitney(x, y).estimate == expected
 
 
 @pytest.mark.parametrize("decimals", (None, 2, 0))

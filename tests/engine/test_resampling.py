@@ -405,6 +405,23 @@ def test_bootstrap_median_with_constant_jackknife_warns_and_drops_the_accelerati
     assert result.interval.low is not None and not math.isnan(result.interval.low)
 
 
+
+@pytest.mark.parametrize("statistic", ["mean", "median"])
+@pytest.mark.parametrize("scale", [1e150, 1e-200])
+def test_bca_acceleration_is_the_same_at_huge_and_tiny_scales(statistic, scale):
+    # reference: the acceleration of Efron and Tibshirani 1993 eq. 14.15 is a ratio of a sum of
+    # cubes to a sum of squares to the power 1.5, so it does not change when every value is
+    # multiplied by one number; at scale 1 ours matches scipy (test above). Cubes near 1e450
+    # overflowed, squares near 1e-400 underflowed to zero.
+    rng = np.random.default_rng(31)
+    x, y = rng.lognormal(0, 0.7, 23), rng.lognormal(0.4, 0.5, 17)
+    plain = bootstrap_interval(x, y, statistic=statistic, n_resamples=500, rng=np.random.default_rng(32))
+    scaled = bootstrap_interval(x * scale, y * scale, statistic=statistic, n_resamples=500,
+                                rng=np.random.default_rng(32))
+    assert scaled.details["acceleration"] == pytest.approx(plain.details["acceleration"], rel=1e-9)
+    assert scaled.details["interval_kind"] == plain.details["interval_kind"] == "BCa"
+
+
 # --- progress, cancelling and bad input --------------------------------------------------------
 
 @pytest.mark.parametrize("run", [permutation_test, bootstrap_interval])
