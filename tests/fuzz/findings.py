@@ -112,35 +112,7 @@ def _widest(tag: str) -> int:
     return max((int(n) for n in re.findall(r"cols=(\d+)", tag)), default=0)
 
 
-KNOWN_ELSEWHERE: tuple[Known, ...] = (
-    # the noncentral-t search for the effect-size intervals fails on well-separated groups
-    Known("effect-size interval search (engine/effects.py)",
-          lambda p: _crash_in(p, ("builtins.ValueError", "builtins.OverflowError"), "engine/effects.py")),
-    # squares of values near 1e154 and beyond overflow in the Welch degrees of freedom
-    Known("huge or tiny numbers: SD and Welch df",
-          lambda p: _crash_in(p, ("builtins.OverflowError",), "procedures/t.py")),
-    # numpy's floating-point warnings inside the analysis reach the terminal
-    Known("huge or tiny numbers: numpy warnings in the analysis",
-          lambda p: p.kind == "warning" and p.key.startswith("RuntimeWarning: ")
-          and "analysis.py:analyze" in p.key),
-    # python-calamine raises a BaseException on some damaged workbooks
-    Known("python-calamine PanicException",
-          lambda p: p.kind == "crash" and p.key.startswith("pyo3_runtime.PanicException")),
-    # a workbook's declared size or inflated size exhausts memory before any check
-    Known("workbook memory blowup",
-          lambda p: p.extension in _WORKBOOKS and (
-              (p.kind == "crash" and ("memory allocation of" in p.detail or "MemoryError" in p.key))
-              or (p.kind == "message" and p.detail.startswith("The file is too large for the memory")))),
-    # per-column work makes files of thousands of columns (or group labels) take a minute
-    Known("thousands of columns or labels: slow",
-          lambda p: p.kind == "hang" and _widest(p.tag) >= 1000),
-    Known("error message without the file name",
-          lambda p: p.kind == "message" and p.key == "error message without the file name"),
-    Known("error message too long",
-          lambda p: p.kind == "message" and p.key == f"error message over {MESSAGE_LIMIT} characters"),
-    Known("control and bidi characters in messages",
-          lambda p: p.kind == "message" and p.key == "error message with control or bidi characters"),
-)
+KNOWN_ELSEWHERE: tuple[Known, ...] = ()
 
 
 def known_as(problem: Problem) -> str | None:
