@@ -54,9 +54,17 @@ ASSUMPTIONS: Mapping[str, str] = frozen_mapping({
                  "spread (standard deviation) in both groups."),
     "z": ("Assumes independent values, a mean close to normally distributed, and that the two "
           "standard deviations given are the true ones, known from outside these data."),
-    "mann_whitney": ("Assumes independent values that can be put in order; it compares whether "
-                     "values of one group tend to be larger, and its shift estimate (Hodges-"
-                     "Lehmann) reads best when the two groups have the same shape and spread."),
+    "mann_whitney": ("Assumes independent values that can be put in order, and that the two "
+                     "groups have the same shape and spread if they do not differ: only then does "
+                     "a small p-value mean that values of one group tend to be larger, since with "
+                     "unequal spreads it can reject although neither group tends to be larger "
+                     "(Pratt 1964, JASA 59:665); its shift estimate (Hodges-Lehmann) also reads "
+                     "best for groups of the same shape and spread."),
+    "brunner_munzel": ("Assumes independent values that can be put in order; it tests whether a "
+                       "value of one group is more likely to be the larger than a value of the "
+                       "other, allows the groups different spreads and shapes (Brunner and "
+                       "Munzel 2000, Biometrical Journal 42:17), and gives an approximate "
+                       "p-value with fewer than about 10 values in a group."),
     "permutation_mean": ("Assumes independent values and that, if the groups did not differ, "
                          "their labels could be swapped freely (the same distribution, spread "
                          "included, in both)."),
@@ -260,6 +268,62 @@ def _small_and_doubtful(s: _Situation) -> tuple[str, list[str]]:
     ]
 
 
+# -- the rank test when spreads differ -------------------------------------------------------------
+
+def _quartile_spread_ratio(groups: Groups) -> float:
+    """Larger over smaller interquartile range; the SD ratio's role for rank procedures, where
+    the far values that led to a rank procedure would inflate a ratio of SDs. NaN when both
+    ranges are zero."""
+    ranges = [float(np.subtract(*np.percentile(v, [75, 25]))) for v in (groups.x, groups.y)]
+    small, large = min(ranges), max(ranges)
+    if large == 0:
+        return float("nan")
+    return large / small if small > 0 else float("inf")
+
+
+def _rank_test_for_unequal_spreads(key: str, reasons: list[str], s: _Situation,
+                                   groups: Groups) -> tuple[str, list[str]]:
+    """Brunner-Munzel in place of Mann-Whitney when the spreads differ (the rest unchanged).
+
+    Under unequal spreads the Mann-Whitney test is not a test of P(X > Y) = 1/2 alone (Pratt
+    1964); the Brunner-Munzel test is, whatever the spreads (Brunner and Munzel 2000). The
+    spreads count as different when both the SDs and the interquartile ranges differ by
+    ``diagnostics.SD_RATIO_WARNING`` or more (common practice for SDs): far values alone inflate
+    the SD ratio, and the quartiles of ratings alone move in coarse steps. When both
+    interquartile ranges are zero (many ties) the SD ratio decides.
+    """
+    if key != "mann_whitney":
+        return key, reasons
+    quartile_ratio = _quartile_spread_ratio(groups)
+    ratio = s.sd_ratio if np.isnan(quartile_ratio) else min(s.sd_ratio, quartile_ratio)
+    if not (ratio >= checks.SD_RATIO_WARNING or np.isnan(ratio)):
+        return key, reasons
+    kept = [r for r in reasons if "Mann-Whitney" not in r and TIES_HANDLED not in r]
+    if s.ties >= checks.HEAVY_TIES:
+        kept.append("Many values are tied; the Brunner-Munzel test counts a tie as half a pair "
+                    "either way (mid-ranks), so ties need no separate correction.")
+    return "brunner_munzel", kept + [
+        "A rank procedure fits these data, and the spreads differ (both the standard deviations "
+        f"and the middle halves of the groups, by a factor of {format_number(ratio, digits=2)} or more). With unequal spreads the Mann-Whitney test can "
+        "reject although neither group tends to be higher (Pratt 1964, JASA 59:665). The "
+        "Brunner-Munzel test allows for different spreads: it answers whether a value of one "
+        "group is more likely to be the larger than a value of the other, with an interval for "
+        "that probability (Brunner and Munzel 2000, Biometrical Journal 42:17).",
+    ]
+
+
+def _why_not_brunner_munzel(chosen: str, s: _Situation) -> str:
+    if chosen == "mann_whitney":
+        return ("It asks the same question as the Mann-Whitney test without assuming equal "
+                "spreads; with similar spreads both agree closely, and Mann-Whitney adds an "
+                "estimate of the shift.")
+    if chosen in ("welch_t", "pooled_t", "z", "permutation_mean", "bootstrap_mean"):
+        return ("It answers a different question (whether a value of one group is more likely "
+                "to be the larger) rather than comparing means; it serves as a cross-check.")
+    return ("It answers whether a value of one group is more likely to be the larger, which is "
+            "a different quantity from the one compared here.")
+
+
 # -- the alternatives -----------------------------------------------------------------------------
 
 def _why_not(key: str, chosen: str, s: _Situation, *, equal_spread_known: bool, ordinal: bool,
@@ -288,17 +352,22 @@ def _why_not(key: str, chosen: str, s: _Situation, *, equal_spread_known: bool, 
     if key == "z":
         return "The z-test needs standard deviations known from outside the data; none were given."
     if key == "mann_whitney":
+        if chosen == "brunner_munzel":
+            return ("With unequal spreads it does not test whether one group tends to be higher: "
+                    "it can reject when neither does (Pratt 1964, JASA 59:665).")
         if chosen in ("welch_t", "pooled_t", "z"):
             return ("It answers a different question (whether values of one group tend to be higher) "
                     "rather than comparing means; nothing in the data forces that change.")
         return ("It compares the order of values, not the means; with no far outliers or heavy "
                 "tails the mean can be kept as the quantity of interest.")
+    if key == "brunner_munzel":
+        return _why_not_brunner_munzel(chosen, s)
     if key in ("permutation_mean", "bootstrap_mean"):
         if not s.resampling_runs:
             return "Resampling is not run for this many values; the large-sample procedures are accurate."
         if ordinal:
             return "It compares means, which assumes equal steps between the scale points."
-        if chosen == "mann_whitney":
+        if chosen in ("mann_whitney", "brunner_munzel"):
             return ("Far outliers or heavy tails pull a mean strongly, so a comparison of means is "
                     "fragile here however its p-value is found.")
         if key == "permutation_mean" and chosen == "bootstrap_mean":
@@ -337,8 +406,10 @@ def _cautions(chosen: str, s: _Situation, diagnostics, groups: Groups, *, equal_
                                f"({format_number(sd)}) is far from the known value "
                                f"({format_number(known)}); check that the known value applies.")
     if chosen == "mann_whitney" and s.spreads_differ:
-        out.append("The spreads differ a lot; the rank test then tells whether one group tends to be "
-                   "higher, but the shift estimate is less meaningful as one number.")
+        out.append("The spreads differ a lot; the Mann-Whitney test then does not tell whether one "
+                   "group tends to be higher (it can reject when neither does, Pratt 1964), and the "
+                   "shift estimate is less meaningful as one number. The Brunner-Munzel test "
+                   "answers that question with unequal spreads.")
     if chosen in ("welch_t", "pooled_t", "z") and any(s.far):
         out.append("Some values lie far from the rest and pull the means; check that they are real "
                    "measurements, and compare with the rank and median procedures.")
@@ -396,6 +467,7 @@ def recommend(diagnostics, groups: Groups, *, equal_spread_known: bool = False, 
     s = _situation(diagnostics, groups)
     flags = dict(equal_spread_known=equal_spread_known, ordinal=ordinal, known_sd=known_sd)
     key, reasons = _choose(s, **flags)
+    key, reasons = _rank_test_for_unequal_spreads(key, reasons, s, groups)
     candidates = [k for k in PROCEDURE_NAMES if k != key and (k != "z" or known_sd is not None)]
     considered = tuple(ConsideredOption(k, PROCEDURE_NAMES[k], _why_not(k, key, s, **flags))
                        for k in candidates)

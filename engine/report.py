@@ -140,6 +140,7 @@ EFFECT_FOR: dict[str, tuple[str, ...]] = {
     "permutation_mean": ("hedges_g", "cohen_d"),
     "bootstrap_mean": ("hedges_g", "cohen_d"),
     "mann_whitney": ("rank_biserial", "common_language"),
+    "brunner_munzel": (),  # its estimate and interval are the common-language effect size
     "permutation_median": ("rank_biserial", "common_language"),
     "bootstrap_median": ("rank_biserial", "common_language"),
 }
@@ -149,12 +150,17 @@ STATISTIC_LABEL: dict[str, str | None] = {
     "pooled_t": "pooled t",
     "z": "z",
     "mann_whitney": "Mann-Whitney U",
+    "brunner_munzel": "Brunner-Munzel W",
     "permutation_mean": None,
     "permutation_median": None,
     "bootstrap_mean": None,
     "bootstrap_median": None,
 }
-RANK_KEYS = ("mann_whitney",)
+RANK_KEYS = ("mann_whitney", "brunner_munzel")
+# Procedures whose estimate is a probability, not a difference of group 1 minus group 2.
+PROBABILITY_KEYS = ("brunner_munzel",)
+# Procedures whose statistic is U, a whole or half number.
+U_KEYS = ("mann_whitney",)
 MEDIAN_KEYS = ("permutation_median", "bootstrap_median")
 
 CAUTION_LINE = ("A p-value is not the size of an effect; a check that passes does not prove an "
@@ -255,7 +261,7 @@ def _df_text(df: float | None) -> str | None:
 def _statistic_text(key: str, value: float | None) -> str | None:
     if value is None or not math.isfinite(value):
         return None
-    if key in RANK_KEYS and abs(value * 2 - round(value * 2)) < 1e-9:
+    if key in U_KEYS and abs(value * 2 - round(value * 2)) < 1e-9:
         return f"{value:.1f}".removesuffix(".0")  # U is a whole or half number
     return format_number(value, digits=DIGITS)
 
@@ -377,6 +383,39 @@ def _summary_decimals(analysis, numbers_decimals: int | None) -> int | None:
     return max(own, numbers_decimals)
 
 
+def _pair_share(share: float) -> str:
+    """A share of pairs as a percentage that never reads as one half unless it is one half."""
+    for decimals in range(0, 4):
+        text = f"{100 * share:.{decimals}f}"
+        if share == 0.5 or float(text) != 50:
+            return text + "%"
+    return ("just over" if share > 0.5 else "just under") + " 50%"
+
+
+def _rank_direction(analysis, key: str, a: str, b: str) -> str:
+    """Who tended to be higher, from U (the share of pairs in which group 1 is the larger, ties
+    counting half), not from the shift estimate: a claim when the test is clear, otherwise a
+    description of the samples."""
+    result = analysis.procedures[key]
+    n1, n2 = analysis.groups.n
+    u1 = result.details.get("U1")
+    if u1 is None:
+        from .effects import mann_whitney_u1
+        u1 = mann_whitney_u1(analysis.groups.x, analysis.groups.y)
+    share = u1 / (n1 * n2)
+    # the robustness view's rule: the test is clear when p is below 1 - level
+    clear = (result.p_value is not None
+             and result.p_value < 1 - analysis.options.confidence_level)
+    if clear and share != 0.5:
+        word = "higher" if share > 0.5 else "lower"
+        return f"Values of {a} tended to be {word} than those of {b}"
+    if share == 0.5:
+        return (f"In these samples, values of {a} were higher than those of {b} in as many "
+                "pairs as they were lower")
+    return (f"In these samples, values of {a} were higher than those of {b} in "
+            f"{_pair_share(share)} of pairs (ties counting half)")
+
+
 def _direction(analysis, key: str, estimate: float, result_decimals: int | None) -> str:
     """The opening clause: who was higher, in the words of the procedure's quantity."""
     first, second = analysis.summaries
@@ -384,11 +423,7 @@ def _direction(analysis, key: str, estimate: float, result_decimals: int | None)
     measure = _measure(analysis)
     a, b = _group_phrase(first, key, decimals), _group_phrase(second, key, decimals)
     if key in RANK_KEYS:
-        if estimate > 0:
-            return f"Values of {a} tended to be higher than those of {b}"
-        if estimate < 0:
-            return f"Values of {a} tended to be lower than those of {b}"
-        return f"Values of {a} tended to be neither higher nor lower than those of {b}"
+        return _rank_direction(analysis, key, a, b)
     quantity = "median" if key in MEDIAN_KEYS else "mean"
     quantity = f"{quantity} {measure}" if measure else quantity
     if estimate > 0:
