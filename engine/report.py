@@ -243,10 +243,14 @@ def format_interval(interval, *, decimals: int | None = None, digits: int = DIGI
         decimals = _decimals_shared([low, high], digits)
     if low is None and high is None:
         return "unbounded"
+    low_open, high_open = getattr(interval, "low_open", False), getattr(interval, "high_open", False)
     if high is None:
-        return f"at least {_fixed(low, decimals)}"
+        return f"{'above' if low_open else 'at least'} {_fixed(low, decimals)}"
     if low is None:
-        return f"at most {_fixed(high, decimals)}"
+        return f"{'below' if high_open else 'at most'} {_fixed(high, decimals)}"
+    if low_open or high_open:  # an end the test rejects is left out of the interval
+        return (f"from {'above ' if low_open else ''}{_fixed(low, decimals)} to "
+                f"{'below ' if high_open else ''}{_fixed(high, decimals)}")
     return f"{_fixed(low, decimals)} to {_fixed(high, decimals)}"
 
 

@@ -62,3 +62,12 @@ def test_a_share_near_one_half_never_reads_fifty_percent():
     assert report._pair_share(0.501) == "50.1%"
     assert report._pair_share(0.49996) == "49.996%"
     assert report._pair_share(0.5 + 1e-9) == "just over 50%"
+
+
+def test_an_interval_end_the_test_rejects_is_written_as_left_out():
+    x, y = [4.0] * 16 + [5.0] * 4, [3.0] * 4 + [4.0] * 16
+    text = report.render(_analysis(x, y, ordinal=True), procedure="mann_whitney").paragraph
+    assert "Hodges-Lehmann shift 0.00, 95% CI from above 0.00 to below 1.00" in text
+    one_sided = report.render(_analysis(x, y, ordinal=True, alternative="greater"),
+                              procedure="mann_whitney").paragraph
+    assert "one-sided 95% CI above 0;" in one_sided
