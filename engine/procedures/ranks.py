@@ -631,12 +631,16 @@ def mann_whitney(
     The interval for the shift is [D_(k), D_(n1 n2 + 1 - k)] of the ordered differences, with k
     the largest integer such that P(U <= k - 1) <= (1 - level) / 2 (one-sided: 1 - level, one
     end open). P(U <= k - 1) is taken from the tie-free exact distribution when the p-value is
-    exact and from its normal approximation (with continuity correction) otherwise. The
-    tie-free distribution is used even when the data hold ties: for a shift that is not itself
-    a pairwise difference the shifted samples share no values, and the coverage is then at
-    least the nominal level for continuous data; with many ties it is approximate. When no k >= 1
-    reaches the level (very small samples) the widest interval [D_(1), D_(n1 n2)] is returned
-    with its actual coverage and a warning.
+    exact and from its normal approximation (with continuity correction) otherwise; without
+    ties this is exactly the set of shifts d at which the test of x - d against y does not
+    reject. With ties it is not, so the test actually used (tie-aware exact count or tie-
+    corrected normal approximation) is inverted over the shifts instead
+    (:func:`engine.procedures.shift_interval.invert_rank_test`): 0 then lies in the interval
+    exactly when p >= 1 - level, and an end that the test itself rejects is marked open
+    (``Interval.low_open`` / ``high_open``). ``details["interval_inverted"]`` says which was
+    done; an exact count too long to repeat keeps the tie-free interval with a warning. When no
+    interval reaches the level (very small samples) the widest one [D_(1), D_(n1 n2)] is
+    returned with a warning.
 
     References
     ----------
@@ -720,7 +724,14 @@ def mann_whitney(
     high = float(found[-1][0]) if alternative != "greater" else math.inf
     details.update(interval_rank=k, interval_coverage=coverage, interval_inverted=False)
     ends_open = (False, False)
-    if ties and not all_tied:
+    # Inverting the exact test counts its distribution some ten times over; past the work an
+    # automatic choice would allow for one count, the tie-free interval is kept and flagged.
+    too_long = used == "exact" and ties and _tied_work(n1, n2, sizes)[0] > EXACT_WORK_AUTO
+    if too_long and not all_tied:
+        warnings.append("Counting the interval for the shift with the ties kept would take too "
+                        "long, so it uses the tie-free ranks; at its ends it may disagree with "
+                        "the test.")
+    if ties and not all_tied and not too_long:
         from .shift_interval import invert_rank_test  # it builds on this module's counts
 
         inverted = invert_rank_test(

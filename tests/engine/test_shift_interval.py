@@ -106,3 +106,13 @@ def test_without_ties_the_classical_interval_stands(n1, n2, seed, alternative):
         assert result.interval.low == ordered[k - 1]
     if alternative != "greater":
         assert result.interval.high == ordered[-k]
+
+
+def test_an_exact_count_too_long_to_repeat_keeps_the_tie_free_interval_and_says_so(monkeypatch):
+    from engine.procedures import ranks
+
+    x, y = [4.0] * 16 + [5.0] * 4, [3.0] * 4 + [4.0] * 16
+    monkeypatch.setattr(ranks, "EXACT_WORK_AUTO", 1.0)  # every count now counts as long
+    result = ranks.mann_whitney(x, y, method="exact")
+    assert result.details["method"] == "exact" and not result.details["interval_inverted"]
+    assert any("tie-free ranks" in w for w in result.warnings)
