@@ -726,8 +726,9 @@ def mann_whitney(
     ends_open = (False, False)
     # Inverting the exact test counts its distribution some ten times over; past the work an
     # automatic choice would allow for one count, the tie-free interval is kept and flagged.
-    too_long = used == "exact" and ties and _tied_work(n1, n2, sizes)[0] > EXACT_WORK_AUTO
-    if too_long and not all_tied:
+    too_long = (not all_tied and used == "exact" and ties
+                and _tied_work(n1, n2, sizes)[0] > EXACT_WORK_AUTO)
+    if too_long:
         warnings.append("Counting the interval for the shift with the ties kept would take too "
                         "long, so it uses the tie-free ranks; at its ends it may disagree with "
                         "the test.")
