@@ -270,41 +270,25 @@ def _small_and_doubtful(s: _Situation) -> tuple[str, list[str]]:
 
 # -- the rank test when spreads differ -------------------------------------------------------------
 
-def _quartile_spread_ratio(groups: Groups) -> float:
-    """Larger over smaller interquartile range; the SD ratio's role for rank procedures, where
-    the far values that led to a rank procedure would inflate a ratio of SDs. NaN when both
-    ranges are zero."""
-    ranges = [float(np.subtract(*np.percentile(v, [75, 25]))) for v in (groups.x, groups.y)]
-    small, large = min(ranges), max(ranges)
-    if large == 0:
-        return float("nan")
-    return large / small if small > 0 else float("inf")
-
-
-def _rank_test_for_unequal_spreads(key: str, reasons: list[str], s: _Situation,
-                                   groups: Groups) -> tuple[str, list[str]]:
+def _rank_test_for_unequal_spreads(key: str, reasons: list[str],
+                                   s: _Situation) -> tuple[str, list[str]]:
     """Brunner-Munzel in place of Mann-Whitney when the spreads differ (the rest unchanged).
 
     Under unequal spreads the Mann-Whitney test is not a test of P(X > Y) = 1/2 alone (Pratt
     1964); the Brunner-Munzel test is, whatever the spreads (Brunner and Munzel 2000). The
-    spreads count as different when both the SDs and the interquartile ranges differ by
-    ``diagnostics.SD_RATIO_WARNING`` or more (common practice for SDs): far values alone inflate
-    the SD ratio, and the quartiles of ratings alone move in coarse steps. When both
-    interquartile ranges are zero (many ties) the SD ratio decides.
+    spreads count as different by the SD-ratio rule the rest of the advice uses
+    (``_Situation.spreads_differ``, common practice). Far values inflate that ratio, which then
+    errs toward Brunner-Munzel, which is also valid when the spreads are equal.
     """
-    if key != "mann_whitney":
-        return key, reasons
-    quartile_ratio = _quartile_spread_ratio(groups)
-    ratio = s.sd_ratio if np.isnan(quartile_ratio) else min(s.sd_ratio, quartile_ratio)
-    if not (ratio >= checks.SD_RATIO_WARNING or np.isnan(ratio)):
+    if key != "mann_whitney" or not s.spreads_differ:
         return key, reasons
     kept = [r for r in reasons if "Mann-Whitney" not in r and TIES_HANDLED not in r]
     if s.ties >= checks.HEAVY_TIES:
         kept.append("Many values are tied; the Brunner-Munzel test counts a tie as half a pair "
                     "either way (mid-ranks), so ties need no separate correction.")
     return "brunner_munzel", kept + [
-        "A rank procedure fits these data, and the spreads differ (both the standard deviations "
-        f"and the middle halves of the groups, by a factor of {format_number(ratio, digits=2)} or more). With unequal spreads the Mann-Whitney test can "
+        "A rank procedure fits these data, and the standard deviations differ by a factor of "
+        f"{format_number(s.sd_ratio, digits=2)}. With unequal spreads the Mann-Whitney test can "
         "reject although neither group tends to be higher (Pratt 1964, JASA 59:665). The "
         "Brunner-Munzel test allows for different spreads: it answers whether a value of one "
         "group is more likely to be the larger than a value of the other, with an interval for "
@@ -467,7 +451,7 @@ def recommend(diagnostics, groups: Groups, *, equal_spread_known: bool = False, 
     s = _situation(diagnostics, groups)
     flags = dict(equal_spread_known=equal_spread_known, ordinal=ordinal, known_sd=known_sd)
     key, reasons = _choose(s, **flags)
-    key, reasons = _rank_test_for_unequal_spreads(key, reasons, s, groups)
+    key, reasons = _rank_test_for_unequal_spreads(key, reasons, s)
     candidates = [k for k in PROCEDURE_NAMES if k != key and (k != "z" or known_sd is not None)]
     considered = tuple(ConsideredOption(k, PROCEDURE_NAMES[k], _why_not(k, key, s, **flags))
                        for k in candidates)
