@@ -214,7 +214,8 @@ class FindingsPanel(QWidget):
         shown = report.display_numbers(analysis, result.key)
         missing = report.NOT_AVAILABLE
         rows = [
-            (f"{result.estimate_name[:1].upper()}{result.estimate_name[1:]} ({labels[0]} minus {labels[1]})",
+            (f"{result.estimate_name[:1].upper()}{result.estimate_name[1:]}"
+             + ("" if result.key in report.PROBABILITY_KEYS else f" ({labels[0]} minus {labels[1]})"),
              shown.estimate, shown.interval or "none given",
              STATISTIC_TIPS["difference"] + " " + STATISTIC_TIPS["interval"]),
             (f"Test statistic ({result.statistic_name})" if result.statistic_name else "Test statistic",
@@ -264,7 +265,7 @@ class FindingsPanel(QWidget):
     def _show_robustness(self, analysis, key: str) -> None:
         robustness = analysis.robustness
         labels = analysis.groups.labels
-        self.plot.show_rows(_labelled_rows(robustness.rows), picked=key,
+        self.plot.show_rows(_difference_rows(robustness), picked=key,
                             axis_label=f"difference, {labels[0]} minus {labels[1]}")
         self.agreement.setText(report.agreement(analysis))
         why = [NO_INTERVAL_WHY.get(row.key, "") for row in robustness.rows if row.interval is None]
@@ -336,9 +337,11 @@ class FindingsPanel(QWidget):
         self.status.setVisible(True)
 
 
-def _labelled_rows(rows) -> list:
-    """The side-by-side rows with their names as labels (a capital first letter)."""
-    return [replace(row, name=report.capital(row.name)) for row in rows]
+def _difference_rows(robustness) -> list:
+    """The rows whose estimate is a difference (the plot's axis), with their names as labels (a
+    capital first letter); a probability is left out."""
+    return [replace(row, name=report.capital(row.name)) for row in robustness.rows
+            if row.key not in report.PROBABILITY_KEYS]
 
 
 def _document_image(plot, draw) -> QImage:
@@ -365,7 +368,7 @@ def _report_images(analysis, key: str) -> list[tuple[str, QImage]]:
              (groups.labels[1], groups.y, analysis.summaries[1])]
     return [
         ("Every applicable procedure: the difference and its interval",
-         _document_image(IntervalPlot(), lambda plot: plot.show_rows(_labelled_rows(analysis.robustness.rows),
+         _document_image(IntervalPlot(), lambda plot: plot.show_rows(_difference_rows(analysis.robustness),
                                                                      picked=key,
                                                                      axis_label=axis))),
         ("The two groups: boxes and the values",

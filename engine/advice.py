@@ -73,9 +73,17 @@ ASSUMPTIONS: Mapping[str, str] = frozen_mapping({
                  "spread (standard deviation) in both groups."),
     "z": ("Assumes independent values, a mean close to normally distributed, and that the two "
           "standard deviations given are the true ones, known from outside these data."),
-    "mann_whitney": ("Assumes independent values that can be put in order; it compares whether "
-                     "values of one group tend to be larger, and its shift estimate (Hodges-"
-                     "Lehmann) reads best when the two groups have the same shape and spread."),
+    "mann_whitney": ("Assumes independent values that can be put in order, and that the two "
+                     "groups have the same shape and spread if they do not differ: only then does "
+                     "a small p-value mean that values of one group tend to be larger, since with "
+                     "unequal spreads it can reject although neither group tends to be larger "
+                     "(Pratt 1964, JASA 59:665); its shift estimate (Hodges-Lehmann) also reads "
+                     "best for groups of the same shape and spread."),
+    "brunner_munzel": ("Assumes independent values that can be put in order; it tests whether a "
+                       "value of one group is more likely to be the larger than a value of the "
+                       "other, allows the groups different spreads and shapes (Brunner and "
+                       "Munzel 2000, Biometrical Journal 42:17), and gives an approximate "
+                       "p-value with fewer than about 10 values in a group."),
     "permutation_mean": ("Assumes independent values, and tests that the two groups are "
                          "interchangeable (the same distribution, spread and shape included), "
                          "not only that the means are equal: with different spreads, above all "
@@ -340,13 +348,13 @@ def _small_and_doubtful(s: _Situation) -> tuple[str, list[str]]:
 
 
 def _doubtful_with_unequal_spreads(s: _Situation, base: str) -> tuple[str, list[str]]:
-    """Small groups, a doubtful shape and spreads that differ: Welch's t-test for now.
+    """Small groups, a doubtful shape and spreads that differ: Brunner-Munzel when extreme
+    values make the means fragile, else Welch's t-test.
 
     The permutation tests and the Mann-Whitney test treat the groups as interchangeable when
-    they do not differ, so a difference in spread alone moves them; Welch's test allows it.
-    A rank test built for unequal spreads (Brunner-Munzel) is the natural choice here when
-    extreme values make the means fragile (``s.extremes``): its rule belongs at the top of this
-    function, returning its key before the Welch default below.
+    they do not differ, so a difference in spread alone moves them. Welch's test allows unequal
+    spreads for means; the Brunner-Munzel test allows them for the order of the values (Brunner
+    and Munzel 2000), which far values or heavy tails cannot pull (``s.extremes``).
     """
     reasons = [
         base,
@@ -355,15 +363,61 @@ def _doubtful_with_unequal_spreads(s: _Situation, base: str) -> tuple[str, list[
         "assume that, if the groups did not differ, their values could be swapped freely; a "
         "difference in spread alone then makes them report a difference that is not in the means "
         "or the typical values (Romano 1990, JASA 85:686; Pratt 1964, JASA 59:665).",
+    ]
+    if s.extremes:
+        return "brunner_munzel", reasons + [
+            "Some values lie far from the rest or the tails are heavy, so the means are fragile. "
+            "The Brunner-Munzel test works with the order of the values, which such values cannot "
+            "pull far, and allows the spreads and shapes to differ: it answers whether a value of "
+            "one group is more likely to be the larger than a value of the other, with an interval "
+            "for that probability (Brunner and Munzel 2000, Biometrical Journal 42:17).",
+        ]
+    return "welch_t", reasons + [
         "Welch's t-test allows the spreads to differ. With small groups that are not bell-shaped "
         "its p-value and interval are approximate; bootstrap intervals do no better at these sizes "
         "and give no p-value (Hesterberg 2015, The American Statistician 69:371), so Welch's test "
         "is the safer of the procedures at hand.",
     ]
-    if s.extremes:
-        reasons.append("Some values lie far from the rest and pull the means: check that they are "
-                       "real measurements before reading the difference in means.")
-    return "welch_t", reasons
+
+
+# -- the rank test when spreads differ -------------------------------------------------------------
+
+def _rank_test_for_unequal_spreads(key: str, reasons: list[str],
+                                   s: _Situation) -> tuple[str, list[str]]:
+    """Brunner-Munzel in place of Mann-Whitney when the spreads differ (the rest unchanged).
+
+    Under unequal spreads the Mann-Whitney test is not a test of P(X > Y) = 1/2 alone (Pratt
+    1964); the Brunner-Munzel test is, whatever the spreads (Brunner and Munzel 2000). The
+    spreads count as different by the SD-ratio rule the rest of the advice uses
+    (``_Situation.spreads_differ``, common practice). Far values inflate that ratio, which then
+    errs toward Brunner-Munzel, which is also valid when the spreads are equal.
+    """
+    if key != "mann_whitney" or not s.spreads_differ:
+        return key, reasons
+    kept = [r for r in reasons if "Mann-Whitney" not in r and TIES_HANDLED not in r]
+    if s.ties >= checks.HEAVY_TIES:
+        kept.append("Many values are tied; the Brunner-Munzel test counts a tie as half a pair "
+                    "either way (mid-ranks), so ties need no separate correction.")
+    return "brunner_munzel", kept + [
+        "A rank procedure fits these data, and the standard deviations differ by a factor of "
+        f"{format_number(s.sd_ratio, digits=2)}. With unequal spreads the Mann-Whitney test can "
+        "reject although neither group tends to be higher (Pratt 1964, JASA 59:665). The "
+        "Brunner-Munzel test allows for different spreads: it answers whether a value of one "
+        "group is more likely to be the larger than a value of the other, with an interval for "
+        "that probability (Brunner and Munzel 2000, Biometrical Journal 42:17).",
+    ]
+
+
+def _why_not_brunner_munzel(chosen: str, s: _Situation) -> str:
+    if chosen == "mann_whitney":
+        return ("It asks the same question as the Mann-Whitney test without assuming equal "
+                "spreads; with similar spreads both agree closely, and Mann-Whitney adds an "
+                "estimate of the shift.")
+    if chosen in ("welch_t", "pooled_t", "z", "permutation_mean", "bootstrap_mean"):
+        return ("It answers a different question (whether a value of one group is more likely "
+                "to be the larger) rather than comparing means; it serves as a cross-check.")
+    return ("It answers whether a value of one group is more likely to be the larger, which is "
+            "a different quantity from the one compared here.")
 
 
 # -- the alternatives -----------------------------------------------------------------------------
@@ -395,14 +449,16 @@ def _why_not(key: str, chosen: str, s: _Situation, *, equal_spread_known: bool, 
         return "The z-test needs standard deviations known from outside the data; none were given."
     unequal_small = s.small and s.shape_doubtful and s.unequal_spreads and not ordinal
     if key == "mann_whitney":
-        if unequal_small:
-            return ("With spreads this different it no longer asks only whether one group tends "
-                    "to be higher: a difference in spread alone moves it (Pratt 1964, JASA 59:665).")
+        if chosen == "brunner_munzel" or unequal_small:
+            return ("With unequal spreads it does not test whether one group tends to be higher: "
+                    "a difference in spread alone can make it reject (Pratt 1964, JASA 59:665).")
         if chosen in ("welch_t", "pooled_t", "z"):
             return ("It answers a different question (whether values of one group tend to be higher) "
                     "rather than comparing means; nothing in the data forces that change.")
         return ("It compares the order of values, not the means; with no far outliers or heavy "
                 "tails the mean can be kept as the quantity of interest.")
+    if key == "brunner_munzel":
+        return _why_not_brunner_munzel(chosen, s)
     if key in ("permutation_mean", "bootstrap_mean", "permutation_median", "bootstrap_median") \
             and not s.resampling_runs:
         return "Resampling is not run for this many values; the large-sample procedures are accurate."
@@ -422,7 +478,7 @@ def _why_not(key: str, chosen: str, s: _Situation, *, equal_spread_known: bool, 
     if key in ("permutation_mean", "bootstrap_mean"):
         if ordinal:
             return "It compares means, which assumes equal steps between the scale points."
-        if chosen == "mann_whitney":
+        if chosen in ("mann_whitney", "brunner_munzel"):
             return ("Far outliers or heavy tails pull a mean strongly, so a comparison of means is "
                     "fragile here however its p-value is found.")
         return ("It answers the same question as the t-test without the bell-shape assumption; "
@@ -453,8 +509,10 @@ def _cautions(chosen: str, s: _Situation, diagnostics, groups: Groups, *, equal_
                                f"({format_number(sd)}) is far from the known value "
                                f"({format_number(known)}); check that the known value applies.")
     if chosen == "mann_whitney" and s.spreads_differ:
-        out.append("The spreads differ a lot; the rank test then tells whether one group tends to be "
-                   "higher, but the shift estimate is less meaningful as one number.")
+        out.append("The spreads differ a lot; the Mann-Whitney test then does not tell whether one "
+                   "group tends to be higher (it can reject when neither does, Pratt 1964), and the "
+                   "shift estimate is less meaningful as one number. The Brunner-Munzel test "
+                   "answers that question with unequal spreads.")
     if chosen in ("welch_t", "pooled_t", "z") and any(s.far):
         out.append("Some values lie far from the rest and pull the means; check that they are real "
                    "measurements, and compare with the rank and median procedures.")
@@ -523,6 +581,7 @@ def recommend(diagnostics, groups: Groups, *, equal_spread_known: bool = False, 
     s = _situation(diagnostics, groups)
     flags = dict(equal_spread_known=equal_spread_known, ordinal=ordinal, known_sd=known_sd)
     key, reasons = _choose(s, **flags)
+    key, reasons = _rank_test_for_unequal_spreads(key, reasons, s)
     if s.levels is not None and not ordinal and known_sd is None:
         low, high, count = s.levels
         reasons.append(

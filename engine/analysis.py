@@ -33,6 +33,7 @@ PROCEDURE_NAMES: Mapping[str, str] = frozen_mapping({
     "pooled_t": "pooled t-test",
     "z": "z-test with known SDs",
     "mann_whitney": "Mann-Whitney U with Hodges-Lehmann shift",
+    "brunner_munzel": "Brunner-Munzel test, probability of a larger value",
     "permutation_mean": "permutation test, difference in means",
     "permutation_median": "permutation test, difference in medians",
     "bootstrap_mean": "bootstrap interval, difference in means",
@@ -207,7 +208,7 @@ def analyze(
     True answer raises :class:`engine.errors.Cancelled`.
     """
     from . import advice, diagnostics, effects
-    from .procedures import ranks, resampling, t
+    from .procedures import brunner_munzel, ranks, resampling, t
 
     x, y = groups.x, groups.y
     report = progress or (lambda fraction, what: None)
@@ -242,6 +243,7 @@ def analyze(
     step(0.12, "rank procedure")
     run("mann_whitney", lambda: ranks.mann_whitney(x, y, method=options.rank_method, **common,
                                                    cancelled=stop, **ordered))
+    run("brunner_munzel", lambda: brunner_munzel.brunner_munzel(x, y, **common, **ordered))
 
     rng = np.random.default_rng(options.seed)
     resampled = [

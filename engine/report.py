@@ -16,7 +16,7 @@ __all__ = ["ReportText", "DisplayNumbers", "render", "display_numbers", "format_
 
 from .rounding import (NOT_AVAILABLE, P_CEILING, P_FLOOR, SCIENTIFIC_LARGE, SCIENTIFIC_SMALL, fixed,
                        format_number, format_p, format_shape, p_clause, shared_decimals)
-from .side_by_side import (against_question, against_sentence, agreement_text, procedure_table,
+from .side_by_side import (PROBABILITY_KEYS, against_question, against_sentence, agreement_text, procedure_table,
                            question_claim, reverse_is_clear)
 from .wording import GLOSSES, capital, gloss_line, plural
 
@@ -46,6 +46,7 @@ EFFECT_FOR: dict[str, tuple[str, ...]] = {
     "permutation_mean": ("hedges_g", "cohen_d"),
     "bootstrap_mean": ("hedges_g", "cohen_d"),
     "mann_whitney": ("rank_biserial", "common_language"),
+    "brunner_munzel": (),  # its estimate and interval are the common-language effect size
     "permutation_median": ("rank_biserial", "common_language"),
     "bootstrap_median": ("rank_biserial", "common_language"),
 }
@@ -55,12 +56,15 @@ STATISTIC_LABEL: dict[str, str | None] = {
     "pooled_t": "pooled t",
     "z": "z",
     "mann_whitney": "Mann-Whitney U",
+    "brunner_munzel": "Brunner-Munzel W",
     "permutation_mean": None,
     "permutation_median": None,
     "bootstrap_mean": None,
     "bootstrap_median": None,
 }
-RANK_KEYS = ("mann_whitney",)
+RANK_KEYS = ("mann_whitney", "brunner_munzel")
+# Procedures whose statistic is U, a whole or half number.
+U_KEYS = ("mann_whitney",)
 MEDIAN_KEYS = ("permutation_median", "bootstrap_median")
 
 CAUTION_LINE = ("A p-value is not the size of an effect; a check that passes does not prove an "
@@ -124,10 +128,14 @@ def format_interval(interval, *, decimals: int | None = None, digits: int = DIGI
         decimals = _decimals_shared([low, high], digits)
     if low is None and high is None:
         return "unbounded"
+    low_open, high_open = getattr(interval, "low_open", False), getattr(interval, "high_open", False)
     if high is None:
-        return f"at least {_fixed(low, decimals)}"
+        return f"{'above' if low_open else 'at least'} {_fixed(low, decimals)}"
     if low is None:
-        return f"at most {_fixed(high, decimals)}"
+        return f"{'below' if high_open else 'at most'} {_fixed(high, decimals)}"
+    if low_open or high_open:  # an end the test rejects is left out of the interval
+        return (f"from {'above ' if low_open else ''}{_fixed(low, decimals)} to "
+                f"{'below ' if high_open else ''}{_fixed(high, decimals)}")
     return f"{_fixed(low, decimals)} to {_fixed(high, decimals)}"
 
 
@@ -142,7 +150,7 @@ def _df_text(df: float | None) -> str | None:
 def _statistic_text(key: str, value: float | None) -> str | None:
     if value is None or not math.isfinite(value):
         return None
-    if key in RANK_KEYS and abs(value * 2 - round(value * 2)) < 1e-9:
+    if key in U_KEYS and abs(value * 2 - round(value * 2)) < 1e-9:
         return f"{value:.1f}".removesuffix(".0")  # U is a whole or half number
     return format_number(value, digits=DIGITS)
 
@@ -262,6 +270,39 @@ def _summary_decimals(analysis, numbers_decimals: int | None) -> int | None:
     return max(own, numbers_decimals)
 
 
+def _pair_share(share: float) -> str:
+    """A share of pairs as a percentage that never reads as one half unless it is one half."""
+    for decimals in range(0, 4):
+        text = f"{100 * share:.{decimals}f}"
+        if share == 0.5 or float(text) != 50:
+            return text + "%"
+    return ("just over" if share > 0.5 else "just under") + " 50%"
+
+
+def _rank_direction(analysis, key: str, a: str, b: str) -> str:
+    """Who tended to be higher, from U (the share of pairs in which group 1 is the larger, ties
+    counting half), not from the shift estimate: a claim when the test is clear, otherwise a
+    description of the samples."""
+    result = analysis.procedures[key]
+    n1, n2 = analysis.groups.n
+    u1 = result.details.get("U1")
+    if u1 is None:
+        from .effects import mann_whitney_u1
+        u1 = mann_whitney_u1(analysis.groups.x, analysis.groups.y)
+    share = u1 / (n1 * n2)
+    # the robustness view's rule: the test is clear when p is below 1 - level
+    clear = (result.p_value is not None
+             and result.p_value < 1 - analysis.options.confidence_level)
+    if clear and share != 0.5:
+        word = "higher" if share > 0.5 else "lower"
+        return f"Values of {a} tended to be {word} than those of {b}"
+    if share == 0.5:
+        return (f"In these samples, values of {a} were higher than those of {b} in as many "
+                "pairs as they were lower")
+    return (f"In these samples, values of {a} were higher than those of {b} in "
+            f"{_pair_share(share)} of pairs (ties counting half)")
+
+
 def _direction(analysis, key: str, estimate: float, result_decimals: int | None) -> str:
     """The opening clause: who was higher, in the words of the procedure's quantity."""
     first, second = analysis.summaries
@@ -269,11 +310,7 @@ def _direction(analysis, key: str, estimate: float, result_decimals: int | None)
     measure = _measure(analysis)
     a, b = _group_phrase(first, key, decimals), _group_phrase(second, key, decimals)
     if key in RANK_KEYS:
-        if estimate > 0:
-            return f"Values of {a} tended to be higher than those of {b}"
-        if estimate < 0:
-            return f"Values of {a} tended to be lower than those of {b}"
-        return f"Values of {a} tended to be neither higher nor lower than those of {b}"
+        return _rank_direction(analysis, key, a, b)
     quantity = "median" if key in MEDIAN_KEYS else "mean"
     quantity = f"{quantity} {measure}" if measure else quantity
     if estimate > 0:
@@ -339,7 +376,7 @@ def _verdict(analysis, key: str, result, numbers: DisplayNumbers) -> str:
     finding when the data cannot tell it from chance (and the reverse)."""
     row = next((r for r in analysis.robustness.rows if r.key == key), None)
     labels = analysis.groups.labels
-    against = against_question(result.alternative, result.estimate)
+    against = against_question(result.alternative, result.estimate, key)
     if row is None and not against:
         return ""
     claim = question_claim(result.alternative, labels)

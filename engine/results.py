@@ -47,11 +47,17 @@ def readonly_array(values: Any) -> np.ndarray:
 
 @dataclass(frozen=True)
 class Interval:
-    """A confidence interval. ``None`` marks the open end of a one-sided interval."""
+    """A confidence interval. ``None`` marks the open end of a one-sided interval.
+
+    ``low_open`` / ``high_open`` mark a finite end that is itself excluded (the interval of a
+    test inverted over shifts can stop just short of a value the test rejects).
+    """
 
     low: float | None
     high: float | None
     level: float
+    low_open: bool = False
+    high_open: bool = False
 
     @classmethod
     def for_alternative(cls, low: float, high: float, level: float, alternative: str) -> "Interval":
@@ -67,8 +73,8 @@ class Interval:
         return cls(float(low), float(high), level)
 
     def contains(self, value: float) -> bool:
-        above = self.low is None or self.low <= value
-        below = self.high is None or value <= self.high
+        above = self.low is None or self.low < value or (self.low == value and not self.low_open)
+        below = self.high is None or value < self.high or (value == self.high and not self.high_open)
         return above and below
 
 

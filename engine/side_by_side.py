@@ -13,7 +13,7 @@ from typing import Callable
 from .rounding import format_p
 from .wording import capital, plural
 
-__all__ = ["against_question", "reverse_is_clear", "question_claim", "row_reading",
+__all__ = ["PROBABILITY_KEYS", "against_question", "reverse_is_clear", "question_claim", "row_reading",
            "agreement_text", "against_sentence", "procedure_table", "NO_INTERVAL_WHY", "NO_P_VALUE_WHY"]
 
 # Why a procedure gives a p-value but no interval, for the rows that have none.
@@ -28,12 +28,20 @@ NO_P_VALUE_WHY = ("A bootstrap gives an interval but no p-value; its row reads a
                   "difference when the interval leaves out zero.")
 
 
-def against_question(alternative: str, estimate: float | None) -> bool:
+# Procedures whose estimate is a probability (of a value of group 1 being the larger), centred
+# on 1/2 when the groups do not differ, where the others estimate a difference centred on 0.
+PROBABILITY_KEYS = ("brunner_munzel",)
+
+
+def against_question(alternative: str, estimate: float | None, key: str | None = None) -> bool:
     """Whether a one-sided question points the other way from an estimate (group 1 minus
-    group 2): "is group 1 higher?" with group 1 lower in the data, or the reverse."""
+    group 2, or for ``PROBABILITY_KEYS`` the chance that group 1's value is the larger):
+    "is group 1 higher?" with group 1 lower in the data, or the reverse."""
     if estimate is None or estimate != estimate:
         return False
-    return (alternative == "greater" and estimate < 0) or (alternative == "less" and estimate > 0)
+    centre = 0.5 if key in PROBABILITY_KEYS else 0.0
+    return ((alternative == "greater" and estimate < centre)
+            or (alternative == "less" and estimate > centre))
 
 
 def reverse_is_clear(p_value: float | None, level: float) -> bool:
@@ -74,7 +82,7 @@ def row_reading(row, alternative: str, labels: tuple[str, str]) -> str:
         if alternative == "two-sided":
             return "finds a difference"
         return f"finds {labels[0]} {_word(alternative)}"
-    if against_question(alternative, row.estimate):
+    if against_question(alternative, row.estimate, row.key):
         return "not clear: the data point the other way"
     return "no clear difference" if alternative == "two-sided" else "not clear"
 
@@ -105,7 +113,7 @@ def _agreement(robustness, rows, alternative: str, labels: tuple[str, str], leve
     finding = [row.name for row in rows if row.finds_difference]
     claim = question_claim(alternative, labels)
     if not finding and alternative != "two-sided":
-        other = [row for row in rows if against_question(alternative, row.estimate)]
+        other = [row for row in rows if against_question(alternative, row.estimate, row.key)]
         if other:
             every = "every one of them puts" if len(other) == len(rows) else f"{len(other)} of them put"
             return (f"None of the {count} finds clear evidence of {claim}, the direction asked "

@@ -483,6 +483,36 @@ def _tail_p(cdf_at: float, sf_at: float, alternative: str) -> float:
     return min(1.0, 2 * min(cdf_at, sf_at))
 
 
+def tied_pmf(sizes: np.ndarray, n1: int, n2: int, *,
+             cancelled: CancelCheck | None = None) -> np.ndarray:
+    """Null probabilities of 2 U1 = 0, 1, ..., 2 n1 n2 given the tie blocks ``sizes``."""
+    pmf = tied_rank_sum_distribution(sizes, min(n1, n2), cancelled=cancelled)
+    return pmf[::-1] if n1 > n2 else pmf  # the count was for group 2: 2 U1 = 2 n1 n2 - 2 U2
+
+
+def exact_p(pmf: np.ndarray, observed: int, alternative: str) -> float:
+    """The p-value of ``observed`` (an index of ``pmf``: U, or 2 U with ties)."""
+    return _tail_p(float(pmf[: observed + 1].sum()), float(pmf[observed:].sum()), alternative)
+
+
+def normal_p(u1: float, n1: int, n2: int, tie_term: float, alternative: str,
+             continuity: bool) -> tuple[float, float]:
+    """The p-value and z of U1 by the normal approximation with tie (and continuity) correction."""
+    total_n = n1 + n2
+    mean = n1 * n2 / 2
+    sd = math.sqrt(n1 * n2 / 12 * ((total_n + 1) - tie_term / (total_n * (total_n - 1))))
+    correction = 0.5 if continuity else 0.0
+    deviation = u1 - mean
+    if alternative == "greater":
+        z = (deviation - correction) / sd
+        return float(stats.norm.sf(z)), z
+    if alternative == "less":
+        z = (deviation + correction) / sd
+        return float(stats.norm.cdf(z)), z
+    z = math.copysign(max(abs(deviation) - correction, 0.0), deviation) / sd
+    return min(1.0, float(2 * stats.norm.sf((abs(deviation) - correction) / sd))), z
+
+
 def _tie_term(xs: np.ndarray, ys: np.ndarray, equal_in_y: np.ndarray) -> float:
     """sum(t^3 - t) over the tie blocks of the combined sample.
 
@@ -547,6 +577,13 @@ def _interval_rank(n1, n2, level, alternative, pmf):
     return k, 1 - sides * below
 
 
+def _shift_interval(low, high, level, alternative, ends_open) -> Interval:
+    closed = Interval.for_alternative(low, high, level, alternative)
+    return Interval(closed.low, closed.high, level,
+                    low_open=ends_open[0] and closed.low is not None,
+                    high_open=ends_open[1] and closed.high is not None)
+
+
 def mann_whitney(
     x: Any,
     y: Any,
@@ -601,12 +638,16 @@ def mann_whitney(
     The interval for the shift is [D_(k), D_(n1 n2 + 1 - k)] of the ordered differences, with k
     the largest integer such that P(U <= k - 1) <= (1 - level) / 2 (one-sided: 1 - level, one
     end open). P(U <= k - 1) is taken from the tie-free exact distribution when the p-value is
-    exact and from its normal approximation (with continuity correction) otherwise. The
-    tie-free distribution is used even when the data hold ties: for a shift that is not itself
-    a pairwise difference the shifted samples share no values, and the coverage is then at
-    least the nominal level for continuous data; with many ties it is approximate. When no k >= 1
-    reaches the level (very small samples) the widest interval [D_(1), D_(n1 n2)] is returned
-    with its actual coverage and a warning.
+    exact and from its normal approximation (with continuity correction) otherwise; without
+    ties this is exactly the set of shifts d at which the test of x - d against y does not
+    reject. With ties it is not, so the test actually used (tie-aware exact count or tie-
+    corrected normal approximation) is inverted over the shifts instead
+    (:func:`engine.procedures.shift_interval.invert_rank_test`): 0 then lies in the interval
+    exactly when p >= 1 - level, and an end that the test itself rejects is marked open
+    (``Interval.low_open`` / ``high_open``). ``details["interval_inverted"]`` says which was
+    done; an exact count too long to repeat keeps the tie-free interval with a warning. When no
+    interval reaches the level (very small samples) the widest one [D_(1), D_(n1 n2)] is
+    returned with a warning.
 
     References
     ----------
@@ -648,9 +689,7 @@ def mann_whitney(
         if switch:
             warnings.append(switch)
         if used == "exact" and ties:
-            pmf = tied_rank_sum_distribution(sizes, min(n1, n2), cancelled=cancelled)
-            if n1 > n2:
-                pmf = pmf[::-1]  # the count was for group 2: 2 U1 = 2 n1 n2 - 2 U2
+            pmf = tied_pmf(sizes, n1, n2, cancelled=cancelled)
             observed = doubled_u1
             description = ("exact permutation distribution of the rank sum, ties kept as "
                            "mid-ranks")
@@ -659,22 +698,9 @@ def mann_whitney(
             observed = doubled_u1 // 2
             description = "exact distribution of U, counting every split of the values"
         if used == "exact":
-            p_value = _tail_p(float(pmf[: observed + 1].sum()), float(pmf[observed:].sum()),
-                              alternative)
+            p_value = exact_p(pmf, observed, alternative)
         else:
-            mean = n1 * n2 / 2
-            sd = math.sqrt(n1 * n2 / 12 * ((total_n + 1) - tie_term / (total_n * (total_n - 1))))
-            correction = 0.5 if continuity else 0.0
-            deviation = u1 - mean
-            if alternative == "greater":
-                z = (deviation - correction) / sd
-                p_value = float(stats.norm.sf(z))
-            elif alternative == "less":
-                z = (deviation + correction) / sd
-                p_value = float(stats.norm.cdf(z))
-            else:
-                z = math.copysign(max(abs(deviation) - correction, 0.0), deviation) / sd
-                p_value = min(1.0, float(2 * stats.norm.sf((abs(deviation) - correction) / sd)))
+            p_value, z = normal_p(u1, n1, n2, tie_term, alternative, continuity)
             details["z"] = z
             description = ("normal approximation to U with tie correction"
                            + (" and continuity correction" if continuity else ""))
@@ -703,7 +729,39 @@ def mann_whitney(
     estimate = float(pair[0]) if total % 2 else _midpoint(float(pair[0]), float(pair[1]))
     low = float(found[1][0]) if alternative != "less" else -math.inf
     high = float(found[-1][0]) if alternative != "greater" else math.inf
-    details.update(interval_rank=k, interval_coverage=coverage)
+    details.update(interval_rank=k, interval_coverage=coverage, interval_inverted=False)
+    ends_open = (False, False)
+    # Inverting the exact test counts its distribution some ten times over; past the work an
+    # automatic choice would allow for one count, the tie-free interval is kept and flagged.
+    too_long = (not all_tied and used == "exact" and ties
+                and _tied_work(n1, n2, sizes)[0] > EXACT_WORK_AUTO)
+    if too_long:
+        warnings.append("Counting the interval for the shift with the ties kept would take too "
+                        "long, so it uses the tie-free ranks; at its ends it may disagree with "
+                        "the test.")
+    if ties and not all_tied and not too_long:
+        from .shift_interval import invert_rank_test  # it builds on this module's counts
+
+        inverted = invert_rank_test(
+            xs, ys, alternative=alternative, level=level, method=used, continuity=continuity,
+            start=(low, high), centre=estimate, cancelled=cancelled)
+        if inverted is not None:
+            low, high = inverted.low, inverted.high
+            ends_open = (inverted.low_open, inverted.high_open)
+            details.update(interval_rank=None, interval_coverage=None, interval_inverted=True)
+            widest_note = next((w for w in warnings if "widest" in w), None)
+            if widest_note is not None and not inverted.widest:
+                warnings.remove(widest_note)
+                widest_note = None
+            if not Interval(low, high, level, *ends_open).contains(estimate):
+                warnings.append(
+                    "With this many ties the shift estimate falls on a value the test rejects; "
+                    "the interval holds the shifts the test does not reject.")
+            if inverted.widest and widest_note is None:
+                warnings.append(
+                    f"With {n1} and {n2} values no interval for the shift reaches the requested "
+                    "confidence; the widest one, from the smallest to the largest difference, "
+                    "is shown.")
     return ProcedureResult(
         key="mann_whitney",
         name=PROCEDURE_NAMES["mann_whitney"],
@@ -713,9 +771,11 @@ def mann_whitney(
         statistic_name="U",
         df=None,
         p_value=p_value,
-        interval=Interval.for_alternative(low, high, level, alternative),
+        interval=_shift_interval(low, high, level, alternative, ends_open),
         alternative=alternative,
-        method=description + "; interval for the shift from ordered pairwise differences",
+        method=description + ("; interval for the shift: the shifts this test does not reject"
+                              if details["interval_inverted"] else
+                              "; interval for the shift from ordered pairwise differences"),
         details=details,
         warnings=tuple(warnings),
     )

@@ -101,11 +101,22 @@ def test_a_pick_switches_the_findings_to_that_procedure(panel, analysis, groups)
 def test_robustness_rows_and_agreement(panel, analysis):
     panel.session.store("analysis", analysis)
     rows = analysis.robustness.rows
-    assert panel.plot.row_names() == [report.capital(row.name) for row in rows]
+    # every difference on the plot's axis; the Brunner-Munzel probability is not a difference
+    assert panel.plot.row_names() == [report.capital(row.name) for row in rows
+                                      if row.key != "brunner_munzel"]
+    assert any(row.key == "brunner_munzel" for row in rows)
     verdict = "agree" if analysis.robustness.agree else "disagree"
     assert verdict in panel.agreement.text()
     for caution in analysis.recommendation.cautions:
         assert caution in panel.cautions_list()
+
+
+def test_a_probability_estimate_is_not_labelled_as_a_difference(panel, analysis):
+    panel.session.store("analysis", analysis)
+    panel.session.choose(procedure="brunner_munzel")
+    first = _cells(panel)[0][0]
+    assert first.startswith("Probability that the first group's value is the larger")
+    assert "minus" not in first
 
 
 def test_save_plot_by_suffix_and_refuse_others(panel, analysis, tmp_path):
