@@ -498,8 +498,8 @@ def exact_p(pmf: np.ndarray, observed: int, alternative: str) -> float:
 def normal_p(u1: float, n1: int, n2: int, tie_term: float, alternative: str,
              continuity: bool) -> tuple[float, float]:
     """The p-value and z of U1 by the normal approximation with tie (and continuity) correction."""
-    total_n = n1 + n2
     mean = n1 * n2 / 2
+    total_n = n1 + n2
     sd = math.sqrt(n1 * n2 / 12 * ((total_n + 1) - tie_term / (total_n * (total_n - 1))))
     correction = 0.5 if continuity else 0.0
     deviation = u1 - mean
@@ -672,7 +672,6 @@ def mann_whitney(
     tie_term = _tie_term(xs, ys, at_or_below - below)
     del below, at_or_below  # not needed by the selection below; frees 16 bytes a value
     ties = tie_term > 0
-    total_n = n1 + n2
     warnings: list[str] = []
     details: dict[str, Any] = dict(
         U1=u1, U2=u2, rank_sum_1=u1 + n1 * (n1 + 1) / 2, rank_sum_2=u2 + n2 * (n2 + 1) / 2,
