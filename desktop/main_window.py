@@ -9,7 +9,10 @@ choice of procedure only changes what is shown, so it runs nothing. A newer run 
 one; a failure shows in the message bar and leaves the window as it was.
 
 The procedure and findings panels load after the window is first painted, because their plotting
-library and the engine's statistics take about two seconds to import.
+library and the engine's statistics take about two seconds to import. A worker imports the
+statistics (no Qt in them); the panels and pyqtgraph are imported on the GUI thread, because a
+module that defines Qt classes must never be imported in another thread (see
+:data:`WARM_IN_WORKER`).
 """
 
 from __future__ import annotations
@@ -42,7 +45,8 @@ from .recent import RecentFiles
 from .setup_panel import SetupPanel
 from .workers import Worker
 
-__all__ = ["MainWindow", "OPEN_FILTER", "GROUP_FIELDS", "ANALYSIS_FIELDS", "LATE_PANELS", "PROBLEM_KEYS"]
+__all__ = ["MainWindow", "OPEN_FILTER", "GROUP_FIELDS", "ANALYSIS_FIELDS", "LATE_PANELS", "PROBLEM_KEYS",
+           "WARM_IN_WORKER"]
 
 OPEN_FILTER = "Data files (*.csv *.tsv *.txt *.xlsx *.xls *.ods);;All files (*)"
 WORKBOOK_KINDS = ("xlsx", "xls", "ods")
@@ -64,6 +68,14 @@ LATE_PANELS = (
     ("findings_panel", "desktop.findings_panel", "FindingsPanel", "Findings",
      "The result in words and numbers, ready to copy into a report."),
 )
+
+# What the import worker loads ahead of the late panels: the slow, Qt-free part of their imports.
+# Nothing that defines a Qt class may be imported off the GUI thread: each new Qt subclass is
+# entered in a table of PySide6's that the GUI thread reads without a lock whenever Qt asks a
+# widget made from Python for its meta-object (as the destructor of a layout animation of the
+# main window does), and a concurrent entry crashed about one start in twenty.
+WARM_IN_WORKER = ("scipy.stats", "engine.analysis", "engine.advice", "engine.diagnostics", "engine.effects",
+                  "engine.procedures.ranks", "engine.procedures.resampling", "engine.procedures.t", "engine.report")
 
 SCREEN_SHARE = 0.9  # of the available screen, each way, that the window opens at
 LEFT_SHARE = 0.47   # of the window's width for the data and set-up; the rest for the checks and findings
@@ -339,13 +351,14 @@ class MainWindow(QMainWindow):
             QTimer.singleShot(LATE_DELAY_MS, self.load_late_panels)
 
     def load_late_panels(self) -> None:
-        """Import the two late panels in a worker, then put them in their tabs."""
+        """Import the statistics of the two late panels in a worker, then the panels themselves
+        (on the GUI thread) and put them in their tabs."""
         self.apply_icons()
         if self.choice_panel is not None or self.import_worker.busy:
             return
 
         def warm_up(progress: Any, cancelled: Any) -> None:
-            for _attribute, module, *_ in LATE_PANELS:
+            for module in WARM_IN_WORKER:
                 try:
                     importlib.import_module(module)
                 except ImportError:
