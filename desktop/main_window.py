@@ -58,6 +58,13 @@ GROUP_FIELDS = ("layout", "group_column", "value_columns", "picked", "set_aside"
 ANALYSIS_FIELDS = ("alternative", "confidence_level", "n_resamples", "seed", "known_sd",
                    "equal_spread_known", "ordinal")
 
+# The settings of the comparison that each new file starts from afresh (the defaults of
+# ``Choices``) unless the user ticks "Keep these settings for the next file"; and the statements
+# about one file's data, which never carry over to another file.
+CARRIED_FIELDS = ("alternative", "confidence_level", "n_resamples", "seed")
+DATA_STATEMENT_FIELDS = ("known_sd", "equal_spread_known", "ordinal")
+KEEP_SETTINGS_KEY = "comparison/keep_settings"
+
 # Messages that say why there is no comparison; the bar drops them once the session's problem is gone.
 PROBLEM_KEYS = ("groups_problem", "groups_crashed", "analysis_failed", "analysis_crashed")
 
@@ -97,6 +104,19 @@ def _proposed_picks(proposal: Any) -> tuple[str, str] | None:
     return None
 
 
+def settings_words(choices: Choices) -> str:
+    """The carried settings of ``choices`` in a few words, e.g. "one-sided (group 1 lower), 90 %"."""
+    sides = {"two-sided": "two-sided", "less": "one-sided (group 1 lower)",
+             "greater": "one-sided (group 1 higher)"}
+    words = [sides.get(choices.alternative, choices.alternative), f"{choices.confidence_level * 100:g} %"]
+    usual = Choices()
+    if choices.n_resamples != usual.n_resamples:
+        words.append(f"{choices.n_resamples:,} resampling rounds")
+    if choices.seed != usual.seed:
+        words.append(f"seed {choices.seed}")
+    return ", ".join(words)
+
+
 def _workbook_sheets(path: Path) -> tuple[str, ...]:
     """The sheet names of a workbook (empty for a text file or a workbook that cannot be read:
     reading it then says what is wrong)."""
@@ -119,7 +139,8 @@ class MainWindow(QMainWindow):
                  ask_sheet: AskSheet | None = None, ask_reason: Callable[[str], str | None] | None = None) -> None:
         super().__init__()
         self.session = session or Session()
-        self.recent = RecentFiles(settings or QSettings("Twofold", "Twofold"))
+        self.settings = settings or QSettings("Twofold", "Twofold")
+        self.recent = RecentFiles(self.settings)
         self._ask_sheet = ask_sheet or self._choose_sheet
         self._quiet = False
         self._seen = self.session.choices
@@ -290,6 +311,13 @@ class MainWindow(QMainWindow):
                                              "as a picture file.", self.save_plot)
         self.redo_action = self._action("&Redo the comparison", "Run the comparison again with the current set-up.",
                                         self.run_analysis, "F5")
+        self.keep_settings_action = self._action(
+            "&Keep these settings for the next file",
+            "When ticked, the next file opened is compared with the same question, confidence level "
+            "and resampling as this one; when not, each new file starts from two-sided at 95 %.",
+            self._keep_settings_toggled)
+        self.keep_settings_action.setCheckable(True)
+        self.keep_settings_action.setChecked(self.settings.value(KEEP_SETTINGS_KEY, False, type=bool))
         self.cancel_action = self._action("&Stop", "Stop the work in progress.", self.cancel, "Esc")
         self.cancel_action.setEnabled(False)
         self.quit_action = self._action("&Quit", "Close Twofold.", self.close, QKeySequence.StandardKey.Quit)
@@ -318,12 +346,18 @@ class MainWindow(QMainWindow):
         run_menu = menus.addMenu("&Comparison")
         run_menu.addAction(self.redo_action)
         run_menu.addAction(self.cancel_action)
+        run_menu.addSeparator()
+        run_menu.addAction(self.keep_settings_action)
         tools = self.addToolBar("Main")
         tools.setObjectName("main_tools")
         tools.setMovable(False)
         tools.setToolButtonStyle(Qt.ToolButtonStyle.ToolButtonTextBesideIcon)
         for action in (self.open_action, self.copy_action, self.export_action):
             tools.addAction(action)
+
+    def _keep_settings_toggled(self) -> None:
+        self.settings.setValue(KEEP_SETTINGS_KEY, self.keep_settings_action.isChecked())
+        self.settings.sync()
 
     def _fill_recent(self) -> None:
         self.recent_menu.clear()
@@ -462,6 +496,11 @@ class MainWindow(QMainWindow):
             return
         _, path, table, proposal = result
         self.message_bar.clear()
+        before = self.session.choices
+        keep = self.keep_settings_action.isChecked()
+        usual = Choices()
+        fresh = {} if keep else {name: getattr(usual, name) for name in CARRIED_FIELDS}
+        fresh.update({name: getattr(usual, name) for name in DATA_STATEMENT_FIELDS})
         self._quiet = True
         try:
             for name in ("analysis", "intake", "problem"):
@@ -471,16 +510,33 @@ class MainWindow(QMainWindow):
                 group_column=proposal.group_column if proposal.layout == "long" else None,
                 value_columns=tuple(proposal.value_columns)[: 1 if proposal.layout == "long" else 2],
                 picked=_proposed_picks(proposal),
-                set_aside=None, procedure=None)
+                set_aside=None, procedure=None, **fresh)
             self.session.store("table", table)
         finally:
             self._quiet = False
             self._seen = self.session.choices
+        self._say_which_settings(before, path.name, keep)
+        for panel in (self.choice_panel, self.findings_panel):
+            scroll = getattr(panel, "scroll", None)
+            if scroll is not None:  # a new file is read from the top
+                scroll.verticalScrollBar().setValue(0)
         self.setWindowTitle(f"{path.name} - Twofold")
         self.recent.add(path)
         # paint the grid first; the groups, the analysis and the late panels follow at once
         self._groups_soon.start()
         self._load_late_soon()
+
+    def _say_which_settings(self, before: Choices, name: str, kept: bool) -> None:
+        """Say in the message bar which settings the new file is compared with, when the last
+        file's differed from the usual ones (otherwise there is nothing to choose between)."""
+        usual = Choices()
+        if before.path is None or not _changed(before, usual, CARRIED_FIELDS):
+            return
+        if kept:
+            self.message_bar.show_message("settings_kept", name=name, settings=settings_words(self.session.choices))
+        else:
+            self.message_bar.show_message("settings_fresh", name=name, settings=settings_words(usual),
+                                          before=settings_words(before))
 
     def _on_load_failed(self, message: str, expected: bool) -> None:
         self._load_late_soon()

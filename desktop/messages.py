@@ -35,6 +35,13 @@ _DECLARED = (
             "Something unexpected stopped the opening of {name} ({reason}). Your file was not changed."),
     Message("not_a_file", "warning", "{name} is not a file that can be opened."),
     Message("recent_gone", "warning", "{name} is no longer there, so it was taken off the recent list."),
+    # the settings a new file starts with
+    Message("settings_fresh", "info",
+            "{name} is compared with the usual settings ({settings}); the last file's were {before}. "
+            "To carry settings over to the next file, tick Comparison > Keep these settings for the next file."),
+    Message("settings_kept", "info",
+            "{name} is compared with the settings kept from the last file ({settings}); "
+            "Comparison > Keep these settings for the next file turns this off."),
     # forming the two groups
     Message("groups_problem", "warning", "{reason}"),
     Message("groups_crashed", "error", "Something unexpected stopped the forming of the groups ({reason})."),

@@ -227,8 +227,8 @@ def test_a_drop_opens_the_file(make_window, qtbot, two_groups_csv):
 def test_recent_files(make_window, qtbot, two_groups_csv, three_groups_csv):
     window = make_window([two_groups_csv])
     wait_for_table(qtbot, window)
-    window.open_file(three_groups_csv)
-    qtbot.waitUntil(lambda: window.session.choices.path == three_groups_csv, timeout=20_000)
+    window.open_file(other)
+    qtbot.waitUntil(lambda: window.session.choices.path == other, timeout=20_000)
     assert window.recent.paths()[:2] == [three_groups_csv.resolve(), two_groups_csv.resolve()]
     window._fill_recent()
     assert [a.text() for a in window.recent_menu.actions()][:2] == [three_groups_csv.name, two_groups_csv.name]
@@ -315,3 +315,40 @@ def test_message_bar_follows_the_palette(make_window):
     assert (shown.lightness() > 127) == (base.lightness() > 127)
     bar.clear()
     assert bar.key is None and not bar.isVisibleTo(window)
+
+
+def test_each_new_file_starts_from_the_usual_settings_unless_kept(make_window, qtbot, two_groups_csv, csv_file):
+    other = csv_file("kilns.csv", [("old", 3.1 + i / 10) for i in range(8)] + [("new", 3.5 + i / 9) for i in range(8)],
+                     ("kiln", "shrinkage_pct"))
+    window = make_window([two_groups_csv])
+    qtbot.waitUntil(lambda: window.session.analysis is not None, timeout=60_000)
+    window.session.choose(alternative="less", confidence_level=0.9, ordinal=True)
+    qtbot.waitUntil(lambda: window.session.analysis.options.alternative == "less" and not window.busy,
+                    timeout=60_000)
+    assert not window.keep_settings_action.isChecked()  # the default: every file starts afresh
+    window.open_file(other)
+    qtbot.waitUntil(lambda: window.session.choices.path == other, timeout=20_000)
+    assert window.message_bar.key == "settings_fresh"
+    assert "two-sided, 95 %" in window.message_bar.text
+    assert "one-sided (group 1 lower), 90 %" in window.message_bar.text
+    qtbot.waitUntil(lambda: window.session.analysis is not None and not window.busy, timeout=60_000)
+    options = window.session.analysis.options
+    assert (options.alternative, options.confidence_level) == ("two-sided", 0.95)
+    assert window.setup_panel.confidence.value() == 95.0
+    assert window.setup_panel.question.currentData() == "two-sided"
+    assert not window.session.choices.ordinal  # a statement about one file's data never carries over
+
+    window.keep_settings_action.trigger()
+    assert window.keep_settings_action.isChecked()
+    window.session.choose(alternative="greater", confidence_level=0.9, ordinal=True)
+    qtbot.waitUntil(lambda: window.session.analysis.options.alternative == "greater" and not window.busy,
+                    timeout=60_000)
+    window.open_file(two_groups_csv)
+    qtbot.waitUntil(lambda: window.session.choices.path == two_groups_csv, timeout=20_000)
+    assert window.message_bar.key == "settings_kept"
+    assert "one-sided (group 1 higher), 90 %" in window.message_bar.text
+    qtbot.waitUntil(lambda: window.session.analysis is not None and not window.busy, timeout=60_000)
+    options = window.session.analysis.options
+    assert (options.alternative, options.confidence_level) == ("greater", 0.9)
+    assert not window.session.choices.ordinal
+    assert window.settings.value("comparison/keep_settings", type=bool)  # remembered for next time
