@@ -41,7 +41,7 @@ from engine.session import Choices, Session
 
 from .data_panel import DataPanel
 from .messages import MessageBar
-from .recent import RecentFiles
+from .recent import RecentFiles, menu_labels
 from .setup_panel import SetupPanel
 from .workers import Worker
 
@@ -130,6 +130,14 @@ def _workbook_sheets(path: Path) -> tuple[str, ...]:
         return tuple(sheet_names(path, kind))
     except TwofoldError:
         return ()
+
+
+def _open_folder(folder: Path) -> None:
+    """Show ``folder`` in the desktop's file manager."""
+    from PySide6.QtCore import QUrl
+    from PySide6.QtGui import QDesktopServices
+
+    QDesktopServices.openUrl(QUrl.fromLocalFile(str(folder)))
 
 
 class MainWindow(QMainWindow):
@@ -362,8 +370,8 @@ class MainWindow(QMainWindow):
     def _fill_recent(self) -> None:
         self.recent_menu.clear()
         paths = self.recent.paths()
-        for path in paths:
-            action = self.recent_menu.addAction(path.name)
+        for path, label in zip(paths, menu_labels(paths)):
+            action = self.recent_menu.addAction(label)
             action.setToolTip(str(path))
             action.triggered.connect(lambda checked=False, p=path: self.open_recent(p))
         if not paths:
@@ -550,6 +558,8 @@ class MainWindow(QMainWindow):
     def _on_session(self, name: str, value: Any) -> None:
         if name == "problem":
             self._show_problem(value)
+        if name in ("choices", "analysis", "table") and self.message_bar.key == "copied":
+            self.message_bar.clear()  # what was copied no longer matches what is shown
         if name != "choices" or self._quiet:
             return
         old, self._seen = self._seen, value
@@ -720,7 +730,9 @@ class MainWindow(QMainWindow):
     def _save(self, path: str | Path | None, title: str, name_filter: str, suffix: str,
               write: Callable[[Path], Any]) -> bool:
         if path is None:
-            start = self.session.choices.path.with_suffix(suffix) if self.session.choices.path else Path(f"findings{suffix}")
+            from .export import save_start
+
+            start = save_start(self.settings, self.session.choices.path, suffix)
             chosen, _ = QFileDialog.getSaveFileName(self, title, str(start), name_filter)
             if not chosen:
                 return False
@@ -735,7 +747,12 @@ class MainWindow(QMainWindow):
         except Exception as problem:  # noqa: BLE001 - a failed save must never end the program
             self.message_bar.show_message("save_failed", name=path.name, reason=str(problem))
             return False
-        self.message_bar.show_message("saved", name=path.name)
+        from .export import remember_save_folder
+
+        remember_save_folder(self.settings, path)
+        folder = path.resolve().parent
+        self.message_bar.show_message("saved", name=path.name, folder=str(folder),
+                                      action=("Open the folder", lambda: _open_folder(folder)))
         return True
 
     def export_report(self, path: str | Path | None = None) -> bool:

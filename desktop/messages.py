@@ -8,11 +8,11 @@ so the wording lives here alone and tests can check which message appeared.
 from __future__ import annotations
 
 from dataclasses import dataclass
-from typing import Mapping
+from typing import Callable, Mapping
 
 from PySide6.QtCore import Qt, Signal
 from PySide6.QtGui import QColor, QPalette
-from PySide6.QtWidgets import QFrame, QHBoxLayout, QLabel, QStyle, QToolButton, QWidget
+from PySide6.QtWidgets import QFrame, QHBoxLayout, QLabel, QPushButton, QStyle, QToolButton, QWidget
 
 from .table_model import blend
 
@@ -53,7 +53,7 @@ _DECLARED = (
     # copy and export
     Message("nothing_yet", "info", "There is nothing to copy or save yet: open a file and set up the comparison."),
     Message("copied", "info", "Copied {what} to the clipboard."),
-    Message("saved", "info", "Saved {name}."),
+    Message("saved", "info", "Saved {name} in {folder}."),
     Message("save_failed", "error", "Could not save {name}: {reason}"),
     Message("part_missing", "warning", "This part of the window is not available in this version."),
     Message("registered", "info", "Data files now offer Twofold when opened from the desktop ({where})."),
@@ -96,6 +96,10 @@ class MessageBar(QFrame):
         self._text = QLabel(self)
         self._text.setWordWrap(True)
         self._text.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
+        self._action = QPushButton(self)  # a step the message offers, such as opening a folder
+        self._action.hide()
+        self._action.clicked.connect(lambda: self._act and self._act())
+        self._act: Callable[[], object] | None = None
         self._close = QToolButton(self)
         self._close.setAutoRaise(True)
         self._close.setIcon(self.style().standardIcon(QStyle.StandardPixmap.SP_TitleBarCloseButton))
@@ -105,6 +109,7 @@ class MessageBar(QFrame):
         row.setContentsMargins(8, 4, 4, 4)
         row.addWidget(self._icon)
         row.addWidget(self._text, 1)
+        row.addWidget(self._action)
         row.addWidget(self._close)
         self.hide()
 
@@ -117,9 +122,20 @@ class MessageBar(QFrame):
     def text(self) -> str:
         return self._text.text() if self._key else ""
 
-    def show_message(self, key: str, **values: object) -> None:
+    @property
+    def action_text(self) -> str:
+        """The text of the button the message offers, or "" when it offers none."""
+        return self._action.text() if self._act is not None else ""
+
+    def show_message(self, key: str, *, action: tuple[str, Callable[[], object]] | None = None,
+                     **values: object) -> None:
+        """Show message ``key`` with ``values`` in its placeholders; ``action`` is an optional
+        (button text, callback) pair for a step the message offers."""
         message = MESSAGES[key]
         self._key = key
+        self._act = action[1] if action else None
+        self._action.setText(action[0] if action else "")
+        self._action.setVisible(action is not None)
         self._text.setText(message.text.format(**values))
         size = self.style().pixelMetric(QStyle.PixelMetric.PM_SmallIconSize)
         self._icon.setPixmap(self.style().standardIcon(_ICONS[message.level]).pixmap(size, size))
@@ -130,6 +146,8 @@ class MessageBar(QFrame):
     def clear(self) -> None:
         was_showing = self._key is not None
         self._key = None
+        self._act = None
+        self._action.hide()
         self._text.clear()
         self.hide()
         if was_showing:
