@@ -109,16 +109,22 @@ def _one_start(number: int, seed: int, script: Path, path: Path, timeout: float,
                keep: Path, on_display: bool) -> tuple[str, float, str]:
     with tempfile.TemporaryDirectory() as home:
         started = time.monotonic()
+        child = subprocess.Popen([sys.executable, "-X", "faulthandler", str(script), str(path), str(ROOT),
+                                  str(seed), "1" if quit_early else "0"],
+                                 stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True,
+                                 env=_environment(home, on_display), cwd=home)
         try:
-            done = subprocess.run([sys.executable, "-X", "faulthandler", str(script), str(path), str(ROOT),
-                                   str(seed), "1" if quit_early else "0"],
-                                  capture_output=True, text=True, timeout=timeout, env=_environment(home, on_display),
-                                  cwd=home)
-        except subprocess.TimeoutExpired as expired:
-            out = (expired.stdout or b"").decode(errors="replace") if isinstance(expired.stdout, bytes) \
-                else (expired.stdout or "")
-            (keep / f"start_{number:04d}_hung.txt").write_text(out)
+            stdout, stderr = child.communicate(timeout=timeout)
+        except subprocess.TimeoutExpired:
+            child.send_signal(signal.SIGABRT)  # the fault handler prints every thread's stack
+            try:
+                stdout, stderr = child.communicate(timeout=30)
+            except subprocess.TimeoutExpired:
+                child.kill()
+                stdout, stderr = child.communicate()
+            (keep / f"start_{number:04d}_hung.txt").write_text(stdout + "\n----- stderr -----\n" + stderr)
             return "hung", time.monotonic() - started, ""
+        done = subprocess.CompletedProcess(child.args, child.returncode, stdout, stderr)
     took = time.monotonic() - started
     if done.returncode < 0:
         name = signal.Signals(-done.returncode).name
