@@ -61,8 +61,11 @@ def _application() -> Any:
     return app
 
 
-def _keep_running(window: Any) -> None:
-    """Show an unexpected error of the window's own code in its message bar instead of a crash."""
+def _keep_running(window: Any) -> Any:
+    """Show an unexpected error of the window's own code in its message bar instead of a crash.
+
+    Returns the hook it replaced, for :func:`_tear_down` to put back.
+    """
     previous = sys.excepthook
 
     def hook(kind: type, error: BaseException, trace: Any) -> None:
@@ -75,6 +78,26 @@ def _keep_running(window: Any) -> None:
             previous(kind, error, trace)
 
     sys.excepthook = hook
+    return previous
+
+
+def _tear_down(window: Any, excepthook: Any) -> None:
+    """End in a fixed order while the application still exists, all on the GUI thread.
+
+    The workers stop first; then the window and every widget waiting for a deferred delete are
+    deleted; then the reference cycles left over are collected. Left to the interpreter's exit,
+    the window (kept alive by the error hook) and the cycles would go after the application,
+    in whatever order the interpreter tears its modules down.
+    """
+    import gc
+
+    from PySide6.QtCore import QCoreApplication, QEvent
+
+    sys.excepthook = excepthook
+    window.cleanup()
+    window.deleteLater()
+    QCoreApplication.sendPostedEvents(None, QEvent.Type.DeferredDelete)
+    gc.collect()
 
 
 def start(argv: Sequence[str] | None = None, **window_options: Any) -> Any:
@@ -114,8 +137,11 @@ def main(argv: Sequence[str] | None = None) -> int:
             print(f"Twofold is no longer registered with the desktop (removed from {visible(where)}).")
         return 0
     window = start(argv)
-    _keep_running(window)
-    return _application().exec()
+    excepthook = _keep_running(window)
+    try:
+        return _application().exec()
+    finally:
+        _tear_down(window, excepthook)
 
 
 def run_panel(panel_class: type, argv: Sequence[str]) -> int:  # pragma: no cover - a manual look

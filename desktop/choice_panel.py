@@ -132,6 +132,7 @@ class FlowLayout(QLayout):
 
     def addItem(self, item) -> None:  # noqa: N802 - Qt's name
         self._items.append(item)
+        self.invalidate()  # the layouts around this one must ask for its new size
 
     def count(self) -> int:
         return len(self._items)
@@ -140,7 +141,10 @@ class FlowLayout(QLayout):
         return self._items[index] if 0 <= index < len(self._items) else None
 
     def takeAt(self, index: int):  # noqa: N802 - Qt's name
-        return self._items.pop(index) if 0 <= index < len(self._items) else None
+        if not 0 <= index < len(self._items):
+            return None
+        self.invalidate()
+        return self._items.pop(index)
 
     def expandingDirections(self) -> Qt.Orientation:  # noqa: N802 - Qt's name
         return Qt.Orientation(0)
@@ -213,14 +217,25 @@ class _CheckCard(QFrame):
                                    else QBoxLayout.Direction.TopToBottom)
 
     def show_figures(self, figures: list[tuple[str, str]]) -> None:
-        while self.figures.count():
-            item = self.figures.takeAt(0)
-            if item.widget() is not None:
-                item.widget().deleteLater()
-        for text, tip in figures:
-            label = plain_label(text)
+        """Write ``figures`` (text, tooltip) into the row of figures, reusing its labels.
+
+        A label no longer needed is hidden and taken off the card at once: left to a deferred
+        delete it stayed on show under the new ones until the event loop got round to it.
+        """
+        labels = [self.figures.itemAt(i).widget() for i in range(self.figures.count())]
+        for place, (text, tip) in enumerate(figures):
+            if place < len(labels):
+                label = labels[place]
+            else:
+                label = plain_label(parent=self)
+                self.figures.addWidget(label)
+            label.setText(text)
             label.setToolTip(tip)
-            self.figures.addWidget(label)
+        while self.figures.count() > len(figures):
+            spare = self.figures.takeAt(self.figures.count() - 1).widget()
+            spare.hide()
+            spare.setParent(None)
+        self.figures.invalidate()
 
     def show_findings(self, findings) -> None:
         lead = main_reading(findings)

@@ -21,13 +21,15 @@ from engine.errors import FileProblem
 from engine.text import visible_html
 
 __all__ = ["level_text", "direction_text", "choice_rows", "set_aside_rows", "report_html",
-           "export_report", "pdf_document", "pdf_text_width", "REPORT_SUFFIXES", "CHECKSUM_NAME"]
+           "export_report", "pdf_document", "pdf_text_width", "REPORT_SUFFIXES", "CHECKSUM_NAME",
+           "save_start", "remember_save_folder", "SAVE_FOLDER_KEY"]
 
 REPORT_SUFFIXES = (".html", ".pdf")
 # The checksum's row names its algorithm, so that a reader can recompute it.
 CHECKSUM_NAME = "SHA-256 checksum"
 # Width of the pictures in an HTML report, in pixels (a PDF takes the width of its text).
 HTML_IMAGE_WIDTH = 640
+SAVE_FOLDER_KEY = "export/folder"  # in the user's settings: the folder of the last report or plot saved
 
 _DIRECTIONS = {
     "two-sided": "do the two groups differ (either way)?",
@@ -297,3 +299,23 @@ def export_report(path: str | Path, analysis, choices, *, procedure: str, findin
         reason = error.strerror or str(error)
         raise FileProblem(f"Could not write the report to {path}: {reason}.") from None
     return path
+
+
+def save_start(settings: Any, data_path: Path | None, suffix: str) -> Path:
+    """Where a save dialog opens: the folder of the last save if it is still there, else the data
+    file's folder, else the home folder; the name is the data file's with ``suffix``."""
+    remembered = settings.value(SAVE_FOLDER_KEY, "") or ""
+    if remembered and Path(remembered).is_dir():
+        folder = Path(remembered)
+    elif data_path is not None:
+        folder = data_path.parent
+    else:
+        folder = Path.home()
+    name = data_path.with_suffix(suffix).name if data_path is not None else f"findings{suffix}"
+    return folder / name
+
+
+def remember_save_folder(settings: Any, written: Path) -> None:
+    """Open the next save dialog in the folder ``written`` went to."""
+    settings.setValue(SAVE_FOLDER_KEY, str(Path(written).resolve().parent))
+    settings.sync()

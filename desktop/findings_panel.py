@@ -313,8 +313,19 @@ class FindingsPanel(QWidget):
         return export.export_report(path, analysis, self.session.choices, procedure=self.procedure_key(),
                                     findings_html=text.html, cautions=self.cautions_list(), images=images)
 
+    def _window_saves(self, name: str) -> bool:
+        """Let the window do a save (it remembers the folder and says where the file went)."""
+        owner = self.window()
+        save = getattr(owner, name, None) if owner is not self else None
+        if save is None:
+            return False
+        save()
+        return True
+
     def ask_save_plot(self) -> None:
         """Ask where to save the plot, then save it (the outcome shows under the buttons)."""
+        if self._window_saves("save_plot"):
+            return
         path, _ = QFileDialog.getSaveFileName(self, "Save the plot", "difference.png",
                                               "PNG picture (*.png);;SVG drawing (*.svg)")
         if path:
@@ -322,6 +333,8 @@ class FindingsPanel(QWidget):
 
     def ask_export_report(self) -> None:
         """Ask where to write the report, then write it (the outcome shows under the buttons)."""
+        if self._window_saves("export_report"):
+            return
         path, _ = QFileDialog.getSaveFileName(self, "Export the report", "comparison.html",
                                               "HTML page (*.html);;PDF document (*.pdf)")
         if path:
@@ -333,7 +346,7 @@ class FindingsPanel(QWidget):
         except FileProblem as error:
             self.status.setText(error.message)
         else:
-            self.status.setText(f"Saved {Path(written).name}.")
+            self.status.setText(f"Saved {Path(written).name} in {Path(written).resolve().parent}.")
         self.status.setVisible(True)
 
 

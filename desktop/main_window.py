@@ -9,7 +9,10 @@ choice of procedure only changes what is shown, so it runs nothing. A newer run 
 one; a failure shows in the message bar and leaves the window as it was.
 
 The procedure and findings panels load after the window is first painted, because their plotting
-library and the engine's statistics take about two seconds to import.
+library and the engine's statistics take about two seconds to import. A worker imports the
+statistics (no Qt in them); the panels and pyqtgraph are imported on the GUI thread, because a
+module that defines Qt classes must never be imported in another thread (see
+:data:`WARM_IN_WORKER`).
 """
 
 from __future__ import annotations
@@ -40,11 +43,12 @@ from engine.text import visible
 from .data_panel import DataPanel
 from .messages import MessageBar
 from .plain_text import plain_label, tooltip
-from .recent import RecentFiles
+from .recent import RecentFiles, menu_labels
 from .setup_panel import SetupPanel
 from .workers import Worker
 
-__all__ = ["MainWindow", "OPEN_FILTER", "GROUP_FIELDS", "ANALYSIS_FIELDS", "LATE_PANELS", "PROBLEM_KEYS"]
+__all__ = ["MainWindow", "OPEN_FILTER", "GROUP_FIELDS", "ANALYSIS_FIELDS", "LATE_PANELS", "PROBLEM_KEYS",
+           "WARM_IN_WORKER"]
 
 OPEN_FILTER = "Data files (*.csv *.tsv *.txt *.xlsx *.xls *.ods);;All files (*)"
 WORKBOOK_KINDS = ("xlsx", "xls", "ods")
@@ -56,6 +60,13 @@ GROUP_FIELDS = ("layout", "group_column", "value_columns", "picked", "set_aside"
 ANALYSIS_FIELDS = ("alternative", "confidence_level", "n_resamples", "seed", "known_sd",
                    "equal_spread_known", "ordinal")
 
+# The settings of the comparison that each new file starts from afresh (the defaults of
+# ``Choices``) unless the user ticks "Keep these settings for the next file"; and the statements
+# about one file's data, which never carry over to another file.
+CARRIED_FIELDS = ("alternative", "confidence_level", "n_resamples", "seed")
+DATA_STATEMENT_FIELDS = ("known_sd", "equal_spread_known", "ordinal")
+KEEP_SETTINGS_KEY = "comparison/keep_settings"
+
 # Messages that say why there is no comparison; the bar drops them once the session's problem is gone.
 PROBLEM_KEYS = ("groups_problem", "groups_crashed", "analysis_failed", "analysis_crashed")
 
@@ -66,6 +77,14 @@ LATE_PANELS = (
     ("findings_panel", "desktop.findings_panel", "FindingsPanel", "Findings",
      "The result in words and numbers, ready to copy into a report."),
 )
+
+# What the import worker loads ahead of the late panels: the slow, Qt-free part of their imports.
+# Nothing that defines a Qt class may be imported off the GUI thread: each new Qt subclass is
+# entered in a table of PySide6's that the GUI thread reads without a lock whenever Qt asks a
+# widget made from Python for its meta-object (as the destructor of a layout animation of the
+# main window does), and a concurrent entry crashed about one start in twenty.
+WARM_IN_WORKER = ("scipy.stats", "engine.analysis", "engine.advice", "engine.diagnostics", "engine.effects",
+                  "engine.procedures.ranks", "engine.procedures.resampling", "engine.procedures.t", "engine.report")
 
 SCREEN_SHARE = 0.9  # of the available screen, each way, that the window opens at
 LEFT_SHARE = 0.47   # of the window's width for the data and set-up; the rest for the checks and findings
@@ -87,6 +106,19 @@ def _proposed_picks(proposal: Any) -> tuple[str, str] | None:
     return None
 
 
+def settings_words(choices: Choices) -> str:
+    """The carried settings of ``choices`` in a few words, e.g. "one-sided (group 1 lower), 90 %"."""
+    sides = {"two-sided": "two-sided", "less": "one-sided (group 1 lower)",
+             "greater": "one-sided (group 1 higher)"}
+    words = [sides.get(choices.alternative, choices.alternative), f"{choices.confidence_level * 100:g} %"]
+    usual = Choices()
+    if choices.n_resamples != usual.n_resamples:
+        words.append(f"{choices.n_resamples:,} resampling rounds")
+    if choices.seed != usual.seed:
+        words.append(f"seed {choices.seed}")
+    return ", ".join(words)
+
+
 def _workbook_sheets(path: Path) -> tuple[tuple[str, ...], str | None]:
     """The visible sheets of a workbook and the one to offer first (the first that holds
     numbers); nothing for a text file or a workbook that cannot be read: reading it then says
@@ -104,6 +136,14 @@ def _workbook_sheets(path: Path) -> tuple[tuple[str, ...], str | None]:
     return sheets.visible, sheets.first_with_numbers
 
 
+def _open_folder(folder: Path) -> None:
+    """Show ``folder`` in the desktop's file manager."""
+    from PySide6.QtCore import QUrl
+    from PySide6.QtGui import QDesktopServices
+
+    QDesktopServices.openUrl(QUrl.fromLocalFile(str(folder)))
+
+
 class MainWindow(QMainWindow):
     """Twofold's window over one :class:`engine.session.Session`."""
 
@@ -111,7 +151,8 @@ class MainWindow(QMainWindow):
                  ask_sheet: AskSheet | None = None, ask_reason: Callable[[str], str | None] | None = None) -> None:
         super().__init__()
         self.session = session or Session()
-        self.recent = RecentFiles(settings or QSettings("Twofold", "Twofold"))
+        self.settings = settings or QSettings("Twofold", "Twofold")
+        self.recent = RecentFiles(self.settings)
         self._ask_sheet = ask_sheet or self._choose_sheet
         self._quiet = False
         self._seen = self.session.choices
@@ -282,6 +323,13 @@ class MainWindow(QMainWindow):
                                              "as a picture file.", self.save_plot)
         self.redo_action = self._action("&Redo the comparison", "Run the comparison again with the current set-up.",
                                         self.run_analysis, "F5")
+        self.keep_settings_action = self._action(
+            "&Keep these settings for the next file",
+            "When ticked, the next file opened is compared with the same question, confidence level "
+            "and resampling as this one; when not, each new file starts from two-sided at 95 %.",
+            self._keep_settings_toggled)
+        self.keep_settings_action.setCheckable(True)
+        self.keep_settings_action.setChecked(self.settings.value(KEEP_SETTINGS_KEY, False, type=bool))
         self.cancel_action = self._action("&Stop", "Stop the work in progress.", self.cancel, "Esc")
         self.cancel_action.setEnabled(False)
         self.quit_action = self._action("&Quit", "Close Twofold.", self.close, QKeySequence.StandardKey.Quit)
@@ -310,6 +358,8 @@ class MainWindow(QMainWindow):
         run_menu = menus.addMenu("&Comparison")
         run_menu.addAction(self.redo_action)
         run_menu.addAction(self.cancel_action)
+        run_menu.addSeparator()
+        run_menu.addAction(self.keep_settings_action)
         tools = self.addToolBar("Main")
         tools.setObjectName("main_tools")
         tools.setMovable(False)
@@ -317,11 +367,15 @@ class MainWindow(QMainWindow):
         for action in (self.open_action, self.copy_action, self.export_action):
             tools.addAction(action)
 
+    def _keep_settings_toggled(self) -> None:
+        self.settings.setValue(KEEP_SETTINGS_KEY, self.keep_settings_action.isChecked())
+        self.settings.sync()
+
     def _fill_recent(self) -> None:
         self.recent_menu.clear()
         paths = self.recent.paths()
-        for path in paths:
-            action = self.recent_menu.addAction(path.name)
+        for path, label in zip(paths, menu_labels(paths)):
+            action = self.recent_menu.addAction(label.replace("&", "&&"))  # "&" marks a shortcut key
             action.setToolTip(tooltip(str(path)))
             action.triggered.connect(lambda checked=False, p=path: self.open_recent(p))
         if not paths:
@@ -343,13 +397,14 @@ class MainWindow(QMainWindow):
             QTimer.singleShot(LATE_DELAY_MS, self.load_late_panels)
 
     def load_late_panels(self) -> None:
-        """Import the two late panels in a worker, then put them in their tabs."""
+        """Import the statistics of the two late panels in a worker, then the panels themselves
+        (on the GUI thread) and put them in their tabs."""
         self.apply_icons()
         if self.choice_panel is not None or self.import_worker.busy:
             return
 
         def warm_up(progress: Any, cancelled: Any) -> None:
-            for _attribute, module, *_ in LATE_PANELS:
+            for module in WARM_IN_WORKER:
                 try:
                     importlib.import_module(module)
                 except ImportError:
@@ -458,6 +513,11 @@ class MainWindow(QMainWindow):
             return
         _, path, table, proposal = result
         self.message_bar.clear()
+        before = self.session.choices
+        keep = self.keep_settings_action.isChecked()
+        usual = Choices()
+        fresh = {} if keep else {name: getattr(usual, name) for name in CARRIED_FIELDS}
+        fresh.update({name: getattr(usual, name) for name in DATA_STATEMENT_FIELDS})
         self._quiet = True
         try:
             for name in ("analysis", "intake", "problem"):
@@ -467,16 +527,33 @@ class MainWindow(QMainWindow):
                 group_column=proposal.group_column if proposal.layout == "long" else None,
                 value_columns=tuple(proposal.value_columns)[: 1 if proposal.layout == "long" else 2],
                 picked=_proposed_picks(proposal),
-                set_aside=None, procedure=None)
+                set_aside=None, procedure=None, **fresh)
             self.session.store("table", table)
         finally:
             self._quiet = False
             self._seen = self.session.choices
+        self._say_which_settings(before, path.name, keep)
+        for panel in (self.choice_panel, self.findings_panel):
+            scroll = getattr(panel, "scroll", None)
+            if scroll is not None:  # a new file is read from the top
+                scroll.verticalScrollBar().setValue(0)
         self.setWindowTitle(f"{visible(path.name)} - Twofold")
         self.recent.add(path)
         # paint the grid first; the groups, the analysis and the late panels follow at once
         self._groups_soon.start()
         self._load_late_soon()
+
+    def _say_which_settings(self, before: Choices, name: str, kept: bool) -> None:
+        """Say in the message bar which settings the new file is compared with, when the last
+        file's differed from the usual ones (otherwise there is nothing to choose between)."""
+        usual = Choices()
+        if before.path is None or not _changed(before, usual, CARRIED_FIELDS):
+            return
+        if kept:
+            self.message_bar.show_message("settings_kept", name=name, settings=settings_words(self.session.choices))
+        else:
+            self.message_bar.show_message("settings_fresh", name=name, settings=settings_words(usual),
+                                          before=settings_words(before))
 
     def _on_load_failed(self, message: str, expected: bool) -> None:
         self._load_late_soon()
@@ -490,6 +567,8 @@ class MainWindow(QMainWindow):
     def _on_session(self, name: str, value: Any) -> None:
         if name == "problem":
             self._show_problem(value)
+        if name in ("choices", "analysis", "table") and self.message_bar.key == "copied":
+            self.message_bar.clear()  # what was copied no longer matches what is shown
         if name != "choices" or self._quiet:
             return
         old, self._seen = self._seen, value
@@ -660,7 +739,9 @@ class MainWindow(QMainWindow):
     def _save(self, path: str | Path | None, title: str, name_filter: str, suffix: str,
               write: Callable[[Path], Any]) -> bool:
         if path is None:
-            start = self.session.choices.path.with_suffix(suffix) if self.session.choices.path else Path(f"findings{suffix}")
+            from .export import save_start
+
+            start = save_start(self.settings, self.session.choices.path, suffix)
             chosen, _ = QFileDialog.getSaveFileName(self, title, str(start), name_filter)
             if not chosen:
                 return False
@@ -675,7 +756,12 @@ class MainWindow(QMainWindow):
         except Exception as problem:  # noqa: BLE001 - a failed save must never end the program
             self.message_bar.show_message("save_failed", name=path.name, reason=str(problem))
             return False
-        self.message_bar.show_message("saved", name=path.name)
+        from .export import remember_save_folder
+
+        remember_save_folder(self.settings, path)
+        folder = path.resolve().parent
+        self.message_bar.show_message("saved", name=path.name, folder=str(folder),
+                                      action=("Open the folder", lambda: _open_folder(folder)))
         return True
 
     def export_report(self, path: str | Path | None = None) -> bool:

@@ -8,11 +8,11 @@ so the wording lives here alone and tests can check which message appeared.
 from __future__ import annotations
 
 from dataclasses import dataclass
-from typing import Mapping
+from typing import Callable, Mapping
 
 from PySide6.QtCore import Qt, Signal
 from PySide6.QtGui import QColor, QPalette
-from PySide6.QtWidgets import QFrame, QHBoxLayout, QLabel, QStyle, QToolButton, QWidget
+from PySide6.QtWidgets import QFrame, QHBoxLayout, QLabel, QPushButton, QStyle, QToolButton, QWidget
 
 from engine.text import visible
 
@@ -38,6 +38,13 @@ _DECLARED = (
             "Something unexpected stopped the opening of {name} ({reason}). Your file was not changed."),
     Message("not_a_file", "warning", "{name} is not a file that can be opened."),
     Message("recent_gone", "warning", "{name} is no longer there, so it was taken off the recent list."),
+    # the settings a new file starts with
+    Message("settings_fresh", "info",
+            "{name} is compared with the usual settings ({settings}); the last file's were {before}. "
+            "To carry settings over to the next file, tick Comparison > Keep these settings for the next file."),
+    Message("settings_kept", "info",
+            "{name} is compared with the settings kept from the last file ({settings}); "
+            "Comparison > Keep these settings for the next file turns this off."),
     # forming the two groups
     Message("groups_problem", "warning", "{reason}"),
     Message("groups_crashed", "error", "Something unexpected stopped the forming of the groups ({reason})."),
@@ -49,7 +56,7 @@ _DECLARED = (
     # copy and export
     Message("nothing_yet", "info", "There is nothing to copy or save yet: open a file and set up the comparison."),
     Message("copied", "info", "Copied {what} to the clipboard."),
-    Message("saved", "info", "Saved {name}."),
+    Message("saved", "info", "Saved {name} in {folder}."),
     Message("save_failed", "error", "Could not save {name}: {reason}"),
     Message("part_missing", "warning", "This part of the window is not available in this version."),
     Message("registered", "info",
@@ -98,6 +105,10 @@ class MessageBar(QFrame):
         self._text = plain_label(parent=self)
         self._text.setWordWrap(True)
         self._text.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
+        self._action = QPushButton(self)  # a step the message offers, such as opening a folder
+        self._action.hide()
+        self._action.clicked.connect(lambda: self._act and self._act())
+        self._act: Callable[[], object] | None = None
         self._close = QToolButton(self)
         self._close.setAutoRaise(True)
         self._close.setIcon(self.style().standardIcon(QStyle.StandardPixmap.SP_TitleBarCloseButton))
@@ -107,6 +118,7 @@ class MessageBar(QFrame):
         row.setContentsMargins(8, 4, 4, 4)
         row.addWidget(self._icon)
         row.addWidget(self._text, 1)
+        row.addWidget(self._action)
         row.addWidget(self._close)
         self.hide()
 
@@ -119,9 +131,20 @@ class MessageBar(QFrame):
     def text(self) -> str:
         return self._text.text() if self._key else ""
 
-    def show_message(self, key: str, **values: object) -> None:
+    @property
+    def action_text(self) -> str:
+        """The text of the button the message offers, or "" when it offers none."""
+        return self._action.text() if self._act is not None else ""
+
+    def show_message(self, key: str, *, action: tuple[str, Callable[[], object]] | None = None,
+                     **values: object) -> None:
+        """Show message ``key`` with ``values`` in its placeholders; ``action`` is an optional
+        (button text, callback) pair for a step the message offers."""
         message = MESSAGES[key]
         self._key = key
+        self._act = action[1] if action else None
+        self._action.setText(action[0] if action else "")
+        self._action.setVisible(action is not None)
         self._text.setText(message_text(key, **values))
         size = self.style().pixelMetric(QStyle.PixelMetric.PM_SmallIconSize)
         self._icon.setPixmap(self.style().standardIcon(_ICONS[message.level]).pixmap(size, size))
@@ -132,6 +155,8 @@ class MessageBar(QFrame):
     def clear(self) -> None:
         was_showing = self._key is not None
         self._key = None
+        self._act = None
+        self._action.hide()
         self._text.clear()
         self.hide()
         if was_showing:

@@ -31,6 +31,8 @@ __all__ = [
     "histogram",
     "whisker_reach",
     "WHISKER_IQR",
+    "ReadableAxis",
+    "axis_offset",
     "ThemedPlot",
     "ShapePlot",
     "QQPlot",
@@ -149,12 +151,105 @@ def whisker_reach(values: np.ndarray, q1: float, q3: float) -> tuple[float, floa
     return float(kept.min()), float(kept.max()), inside
 
 
+_SUPERSCRIPT = str.maketrans("-0123456789", "⁻⁰¹²³⁴⁵⁶⁷⁸⁹")
+
+
+def _grouped(number: float, places: int) -> str:
+    """``number`` with ``places`` decimals and its thousands set apart by thin spaces (the SI way,
+    which reads the same whatever the decimal mark)."""
+    return f"{number:,.{places}f}".replace(",", "\u2009")
+
+
+def axis_offset(low: float, high: float) -> float:
+    """A round number to take off every tick of an axis from ``low`` to ``high``, or 0.
+
+    Needed when the ticks differ only far to the right of their first digit (values near 1e9
+    that span ten), where every tick would otherwise read the same ("1e+09"). The offset is the
+    roundest number within the span's reach, so the ticks left over are short.
+    """
+    if not (math.isfinite(low) and math.isfinite(high)) or high <= low:
+        return 0.0
+    size, span = max(abs(low), abs(high)), high - low
+    if size < 1e4 or span * 1e3 > size:
+        return 0.0
+    middle = (low + high) / 2
+    for power in range(int(math.floor(math.log10(size))), int(math.floor(math.log10(span))) - 2, -1):
+        offset = round(middle / 10.0 ** power) * 10.0 ** power
+        if max(abs(low - offset), abs(high - offset)) <= 10 * span:
+            return offset
+    return middle
+
+
+def _scale_power(low: float, high: float) -> int:
+    """The power of ten (a multiple of 3) that the ticks are divided by, so that none needs more
+    than five digits before its point or starts with many zeros; 0 for ordinary numbers."""
+    size = max(abs(low), abs(high))
+    if not math.isfinite(size) or size == 0 or 1e-3 <= size < 1e5:
+        return 0
+    return 3 * int(math.floor(math.log10(size) / 3))
+
+
+class ReadableAxis(pg.AxisItem):
+    """An axis whose ticks stay distinct and short at any magnitude.
+
+    Near a large value with a small span the ticks show the distance from a round offset named
+    in the axis label ("value − 1 000 000 000"); very large or small ticks are scaled by a power
+    of ten named there too ("× 10^9"). Ordinary ranges read as pyqtgraph writes them.
+    """
+
+    def __init__(self, orientation: str, **options) -> None:
+        self.offset = 0.0
+        self.power = 0
+        self._name = ""
+        super().__init__(orientation, **options)
+
+    def set_name(self, text: str, **style) -> None:
+        """The axis label before any offset or scale is added to it."""
+        self._name = text
+        self.setLabel(self._label_text(), **style)
+
+    def _label_text(self) -> str:
+        text = self._name
+        if self.offset:
+            places = max(0, -int(math.floor(math.log10(abs(self.offset) or 1))))
+            sign = "−" if self.offset > 0 else "+"
+            text = f"{text} {sign} {_grouped(abs(self.offset), min(places, 12))}".strip()
+        if self.power:
+            text = f"{text} (× 10{str(self.power).translate(_SUPERSCRIPT)})".strip()
+        return text
+
+    def setRange(self, mn: float, mx: float) -> None:  # noqa: N802 - pyqtgraph's name
+        offset = axis_offset(mn, mx)
+        power = _scale_power(mn - offset, mx - offset)
+        if (offset, power) != (self.offset, self.power):
+            self.offset, self.power = offset, power
+            if self._name or offset or power:
+                self.labelText = self._label_text()
+                self.showLabel(True)
+                self._updateLabel()
+        super().setRange(mn, mx)
+
+    def tickStrings(self, values, scale, spacing):  # noqa: N802 - pyqtgraph's name
+        if not self.offset and not self.power:
+            return super().tickStrings(values, scale, spacing)
+        factor = 10.0 ** -self.power
+        step = spacing * scale * factor
+        places = max(0, int(math.ceil(-math.log10(step)))) if step > 0 else 0
+        texts = []
+        for value in values:
+            text = f"{(value * scale - self.offset) * factor:.{min(places, 12)}f}"
+            if text.startswith("-") and not text.strip("-0."):
+                text = text[1:]  # no "-0" for a tick that rounds to zero
+            texts.append(text.replace("-", "−"))
+        return texts
+
+
 class ThemedPlot(pg.PlotWidget):
     """A ``PlotWidget`` whose background, axes and text follow the palette, redrawn on change."""
 
     def __init__(self, parent: QWidget | None = None, *, title: str = "") -> None:
         self._ready = False
-        super().__init__(parent)
+        super().__init__(parent, axisItems={side: ReadableAxis(side) for side in ("left", "bottom")})
         self._kept_items: dict[str, object] = {}
         self._written: dict[str, tuple[str, str]] = {}  # title and axis names as last set, with their ink
         self._title = title
@@ -202,7 +297,11 @@ class ThemedPlot(pg.PlotWidget):
         for side, text in (("bottom", bottom), ("left", left)):
             if text and self._written.get(side) != (text, ink):
                 self._written[side] = (text, ink)
-                self.getPlotItem().setLabel(side, visible_html(text), color=ink)
+                axis = self.getPlotItem().getAxis(side)
+                if isinstance(axis, ReadableAxis):
+                    axis.set_name(visible_html(text), color=ink)
+                else:
+                    self.getPlotItem().setLabel(side, visible_html(text), color=ink)
 
     def redraw(self) -> None:
         """Draw the current data again (after a palette change); subclasses override."""

@@ -6,7 +6,7 @@ from pathlib import Path
 
 from PySide6.QtCore import QSettings
 
-__all__ = ["RecentFiles", "MAX_RECENT"]
+__all__ = ["RecentFiles", "MAX_RECENT", "menu_labels"]
 
 MAX_RECENT = 8
 _KEY = "recent/files"
@@ -38,3 +38,20 @@ class RecentFiles:
 
     def clear(self) -> None:
         self._write([])
+
+
+def menu_labels(paths: list[Path]) -> list[str]:
+    """The text of each path in the recent menu: its name, and where two or more share a name,
+    the end of its folder as well, as far back as it takes to tell them apart."""
+    labels = [path.name for path in paths]
+    for name in {label for label in labels if labels.count(label) > 1}:
+        places = [i for i, path in enumerate(paths) if path.name == name]
+        folders = [paths[i].parent.parts for i in places]
+        depth = 1
+        while depth < max(len(parts) for parts in folders) and \
+                len({parts[-depth:] for parts in folders}) < len(folders):
+            depth += 1
+        for i, parts in zip(places, folders):
+            shown = "/".join(parts[-depth:]).replace("//", "/")
+            labels[i] = f"{name}  ({'…/' if depth < len(parts) else ''}{shown})"
+    return labels

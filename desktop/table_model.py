@@ -21,7 +21,8 @@ from engine.text import visible
 
 from .plain_text import tooltip
 
-__all__ = ["FrameModel", "KIND_WORDS", "MARK_EXCLUDED", "MARK_SET_ASIDE", "format_cell", "blend"]
+__all__ = ["FrameModel", "KIND_WORDS", "MARK_EXCLUDED", "MARK_SET_ASIDE", "format_cell", "number_text",
+           "usual_decimals", "blend"]
 
 MARK_EXCLUDED = "excluded"
 MARK_SET_ASIDE = "set aside"
@@ -51,6 +52,46 @@ def format_cell(value: Any) -> str:
     return str(value)
 
 
+_DECIMALS_SAMPLE = 1000  # values of a long column looked at to find how many decimals it is written with
+
+
+def _decimals(text: str) -> int:
+    return len(text) - text.index(".") - 1 if "." in text else 0
+
+
+def usual_decimals(values: np.ndarray) -> int:
+    """How many decimals the numbers of a column are most often written with (at 15 significant
+    digits; ties go to the fewer). A long column is judged from a sample of its values."""
+    n = len(values)
+    if n > _DECIMALS_SAMPLE:
+        picks = np.linspace(0, n - 1, _DECIMALS_SAMPLE).astype(np.intp)
+        values = values[np.unique(np.concatenate([np.arange(_DECIMALS_SAMPLE // 4), picks]))]
+    counts: dict[int, int] = {}
+    for value in values.tolist():
+        if value == value and not math.isinf(value):
+            text = format(value, ".15g")
+            if "e" not in text:
+                places = _decimals(text)
+                counts[places] = counts.get(places, 0) + 1
+    return max(sorted(counts), key=counts.__getitem__) if counts else 0
+
+
+def number_text(value: float, decimals: int = 0, mark: str = ".") -> str:
+    """A number of a number column as the file wrote it: at least ``decimals`` decimals (so that
+    826.0 in a column written with one decimal keeps its ".0"), never fewer than its own digits
+    at 15 significant digits, with the file's decimal mark."""
+    value = float(value)
+    if math.isnan(value):
+        return ""
+    text = format(value, ".15g")
+    if "e" not in text and decimals > _decimals(text) and not math.isinf(value):
+        whole = len(str(int(abs(value))))
+        places = min(decimals, max(0, 15 - whole))
+        if places > _decimals(text):
+            text = f"{value:.{places}f}"
+    return text.replace(".", mark) if mark != "." else text
+
+
 def _column_store(series: pd.Series) -> Any:
     """The frame's own storage of a column, indexable by position without a per-cell copy."""
     dtype = series.dtype
@@ -78,6 +119,8 @@ class FrameModel(QAbstractTableModel):
         self._kinds: Mapping[str, str] = {}
         self._excluded: Mapping[tuple[int, str], str] = {}
         self._set_aside: Mapping[tuple[int, str], str] = {}
+        self._mark = "."  # the file's decimal mark
+        self._places: dict[int, int | None] = {}  # column -> usual decimals (None: not a float column)
 
     # -- filling -------------------------------------------------------------------------------
     def set_table(self, table: Any) -> None:
@@ -92,6 +135,8 @@ class FrameModel(QAbstractTableModel):
             self._stores = [_column_store(frame.iloc[:, j]) for j in range(frame.shape[1])]
             self._rows = int(frame.shape[0])
             self._kinds = dict(getattr(table, "column_kinds", {}) or {})
+        self._mark = getattr(table, "decimal", ".") or "." if table is not None else "."
+        self._places = {}  # worked out per column when first shown: a wide file has many
         self._excluded, self._set_aside = {}, {}
         self.endResetModel()
 
@@ -135,7 +180,18 @@ class FrameModel(QAbstractTableModel):
         return None
 
     def cell_text(self, row: int, column: int) -> str:
-        return format_cell(self._stores[column][row])
+        """The text the grid shows: a number of a number column as the file wrote it (see
+        :func:`number_text`), anything else as :func:`format_cell` writes it."""
+        places = self._places.get(column, -1)
+        if places == -1:
+            store = self._stores[column]
+            floats = (self._kinds.get(self._names[column]) == "number" and isinstance(store, np.ndarray)
+                      and store.dtype.kind == "f")
+            places = self._places[column] = usual_decimals(store) if floats else None
+        value = self._stores[column][row]
+        if places is None:
+            return format_cell(value)
+        return number_text(value, places, self._mark)
 
     def file_row(self, row: int) -> int:
         """The row number a spreadsheet program would show for frame row ``row``."""
@@ -160,7 +216,7 @@ class FrameModel(QAbstractTableModel):
             return None
         row, column = index.row(), index.column()
         if role == Qt.ItemDataRole.DisplayRole:
-            return visible(format_cell(self._stores[column][row]))  # a line break or override shows as an escape
+            return visible(self.cell_text(row, column))  # a line break or override shows as an escape
         if role == Qt.ItemDataRole.TextAlignmentRole:
             if self._kinds.get(self._names[column]) == "number":
                 return int(Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter)

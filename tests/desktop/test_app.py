@@ -53,3 +53,68 @@ def test_importing_the_window_does_not_load_the_statistics_or_plots():
                           env={"QT_QPA_PLATFORM": "offscreen", "PATH": "/usr/bin:/bin"})
     assert done.returncode == 0, done.stderr
     assert done.stdout.strip() == "[]"
+
+
+# Runs `twofold FILE` as the command does, records the thread of every import, quits once the
+# first analysis is shown and reports what it saw.
+_START_AND_QUIT = r'''
+import sys, threading
+sys.path.insert(0, sys.argv[2])
+imported_off_main = []
+
+
+class Recorder:
+    def find_spec(self, name, path=None, target=None):
+        if threading.current_thread() is not threading.main_thread():
+            imported_off_main.append(name)
+        return None
+
+
+sys.meta_path.insert(0, Recorder())
+import desktop.app as app_module
+
+keep_running = app_module._keep_running
+seen = {}
+
+
+def keep_running_and_watch(window):
+    from PySide6.QtCore import QTimer
+
+    seen["window"] = window
+
+    def check():
+        if window.findings_panel is not None and window.session.analysis is not None and not window.busy:
+            window.quit_action.trigger()
+        else:
+            QTimer.singleShot(20, check)
+
+    check()
+    return keep_running(window)
+
+
+app_module._keep_running = keep_running_and_watch
+code = app_module.main([sys.argv[1]])
+import shiboken6
+qt_made = [n for n in imported_off_main if n.split(".")[0] in ("PySide6", "shiboken6", "pyqtgraph", "desktop")]
+print("QT_MODULES_OFF_MAIN", sorted(set(qt_made)))
+print("WINDOW_ALIVE_AFTER_MAIN", shiboken6.isValid(seen["window"]))
+print("HOOK_RESTORED", sys.excepthook is sys.__excepthook__)
+sys.exit(code)
+'''
+
+
+def test_start_imports_qt_modules_on_the_gui_thread_only_and_quits_clean(tmp_path):
+    # A module that defines Qt classes, imported in a worker, races PySide6's type table against
+    # the GUI thread (a crash in about one start in twenty; tests/benchmarks/bench_start_loop.py
+    # counts them over hundreds of starts). And quitting tears the window down while the
+    # application still exists, not at the interpreter's exit.
+    script = tmp_path / "start_and_quit.py"
+    script.write_text(_START_AND_QUIT, encoding="utf-8")
+    env = {"QT_QPA_PLATFORM": "offscreen", "PATH": "/usr/bin:/bin", "XDG_CONFIG_HOME": str(tmp_path),
+           "PYTHONFAULTHANDLER": "1"}
+    done = subprocess.run([sys.executable, str(script), str(ROOT / "demo_files" / "bolt_strength.csv"), str(ROOT)],
+                          cwd=tmp_path, capture_output=True, text=True, timeout=240, env=env)
+    assert done.returncode == 0, done.stderr
+    assert "QT_MODULES_OFF_MAIN []" in done.stdout, done.stdout
+    assert "WINDOW_ALIVE_AFTER_MAIN False" in done.stdout
+    assert "HOOK_RESTORED True" in done.stdout

@@ -8,7 +8,7 @@ os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
 
 import numpy as np  # noqa: E402
 import pytest  # noqa: E402
-from PySide6.QtWidgets import QLabel  # noqa: E402
+from PySide6.QtWidgets import QApplication, QLabel  # noqa: E402
 from scipy import stats  # noqa: E402
 
 from engine import report  # noqa: E402
@@ -190,3 +190,38 @@ def test_check_figures_read_in_words_with_plain_hover_help(panel):
     assert all(plot.toolTip() == SHAPE_PLOT_TIP for plot, _ in panel.shape_plots)
     names = [panel.picker.itemText(i) for i in range(panel.picker.count())]
     assert all(name[:1].isupper() for name in names)
+
+
+def _shown_figure_labels(card) -> list[QLabel]:
+    """Every visible label of a card's row of figures (not its title, reading or details)."""
+    return [label for label in card.findChildren(QLabel)
+            if label.isVisible() and label not in (card.title, card.reading, card.more)]
+
+
+def _overlapping(widgets) -> list[tuple[str, str]]:
+    return [(a.text(), b.text()) for i, a in enumerate(widgets) for b in widgets[i + 1:]
+            if a.geometry().intersects(b.geometry())]
+
+
+def test_new_figures_replace_the_old_at_once_without_overlap(qtbot, groups):
+    # The spread line was once drawn over itself after Swap, one-sided and 90 %: the old labels
+    # were left to a deferred delete and stayed on show under the new ones.
+    session = Session()
+    widget = ChoicePanel(session)
+    qtbot.addWidget(widget)
+    widget.resize(430, 900)
+    widget.show()
+    swapped = Groups(groups.labels[::-1], groups.y, groups.x)
+    for data, alternative, level in ((groups, "two-sided", 0.95), (swapped, "two-sided", 0.95),
+                                     (swapped, "less", 0.95), (swapped, "less", 0.9)):
+        session.store("analysis", analyze(data, Options(n_resamples=200, seed=3, alternative=alternative,
+                                                        confidence_level=level)))
+        QApplication.processEvents()  # lays out and paints, but runs no deferred delete
+        for card in (*widget.shape_cards, widget.spread_card):
+            labels = _shown_figure_labels(card)
+            assert sorted(label.text() for label in labels) == sorted(_figures(card))
+            assert len(labels) == card.figures.count()
+            assert _overlapping(labels + [card.reading]) == []
+            bottom = max(label.geometry().bottom() for label in labels)
+            assert bottom < card.reading.geometry().top()  # the reading sits below every line
+    widget.cleanup()

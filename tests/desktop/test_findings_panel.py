@@ -144,7 +144,7 @@ def test_the_panels_own_save_button_says_how_it_went(panel, analysis, tmp_path, 
     target = tmp_path / "report.html"
     monkeypatch.setattr(findings_panel.QFileDialog, "getSaveFileName", lambda *a, **k: (str(target), ""))
     panel.export_button.click()
-    assert target.is_file() and panel.status.text() == "Saved report.html."
+    assert target.is_file() and panel.status.text() == f"Saved report.html in {tmp_path.resolve()}."
     target = tmp_path / "report.odt"
     panel.export_button.click()
     assert not target.exists() and ".html or .pdf" in panel.status.text()

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import hashlib
+from pathlib import Path
 
 import numpy as np
 import pytest
@@ -343,3 +344,120 @@ def test_message_bar_follows_the_palette(make_window):
     assert (shown.lightness() > 127) == (base.lightness() > 127)
     bar.clear()
     assert bar.key is None and not bar.isVisibleTo(window)
+
+
+def test_each_new_file_starts_from_the_usual_settings_unless_kept(make_window, qtbot, two_groups_csv, csv_file):
+    other = csv_file("kilns.csv", [("old", 3.1 + i / 10) for i in range(8)] + [("new", 3.5 + i / 9) for i in range(8)],
+                     ("kiln", "shrinkage_pct"))
+    window = make_window([two_groups_csv])
+    qtbot.waitUntil(lambda: window.session.analysis is not None, timeout=60_000)
+    window.session.choose(alternative="less", confidence_level=0.9, ordinal=True)
+    qtbot.waitUntil(lambda: window.session.analysis.options.alternative == "less" and not window.busy,
+                    timeout=60_000)
+    assert not window.keep_settings_action.isChecked()  # the default: every file starts afresh
+    window.open_file(other)
+    qtbot.waitUntil(lambda: window.session.choices.path == other, timeout=20_000)
+    assert window.message_bar.key == "settings_fresh"
+    assert "two-sided, 95 %" in window.message_bar.text
+    assert "one-sided (group 1 lower), 90 %" in window.message_bar.text
+    qtbot.waitUntil(lambda: window.session.analysis is not None and not window.busy, timeout=60_000)
+    options = window.session.analysis.options
+    assert (options.alternative, options.confidence_level) == ("two-sided", 0.95)
+    assert window.setup_panel.confidence.value() == 95.0
+    assert window.setup_panel.question.currentData() == "two-sided"
+    assert not window.session.choices.ordinal  # a statement about one file's data never carries over
+
+    window.keep_settings_action.trigger()
+    assert window.keep_settings_action.isChecked()
+    window.session.choose(alternative="greater", confidence_level=0.9, ordinal=True)
+    qtbot.waitUntil(lambda: window.session.analysis.options.alternative == "greater" and not window.busy,
+                    timeout=60_000)
+    window.open_file(two_groups_csv)
+    qtbot.waitUntil(lambda: window.session.choices.path == two_groups_csv, timeout=20_000)
+    assert window.message_bar.key == "settings_kept"
+    assert "one-sided (group 1 higher), 90 %" in window.message_bar.text
+    qtbot.waitUntil(lambda: window.session.analysis is not None and not window.busy, timeout=60_000)
+    options = window.session.analysis.options
+    assert (options.alternative, options.confidence_level) == ("greater", 0.9)
+    assert not window.session.choices.ordinal
+    assert window.settings.value("comparison/keep_settings", type=bool)  # remembered for next time
+
+
+def test_the_copied_banner_goes_once_the_results_change(make_window, qtbot, two_groups_csv):
+    window = make_window([two_groups_csv])
+    qtbot.waitUntil(lambda: window.session.analysis is not None and window.findings_panel is not None
+                    and not window.busy, timeout=60_000)
+    window.copy_action.trigger()
+    assert window.message_bar.key == "copied"
+    window.session.choose(confidence_level=0.9)  # what was copied no longer matches what is shown
+    assert window.message_bar.key is None
+
+
+def test_recent_files_of_the_same_name_show_their_folders(make_window, qtbot, tmp_path, two_groups_csv):
+    from desktop.recent import menu_labels
+
+    twins = []
+    for year in ("2024", "2025"):
+        (tmp_path / year).mkdir()
+        twins.append(tmp_path / year / "bolts.csv")
+        twins[-1].write_bytes(two_groups_csv.read_bytes())
+    window = make_window([twins[0]])
+    qtbot.waitUntil(lambda: window.session.choices.path == twins[0], timeout=20_000)
+    window.open_file(twins[1])
+    qtbot.waitUntil(lambda: window.session.choices.path == twins[1], timeout=20_000)
+    window._fill_recent()
+    texts = [action.text() for action in window.recent_menu.actions()][:2]
+    assert texts == ["bolts.csv  (…/2025)", "bolts.csv  (…/2024)"]
+    assert menu_labels([Path("/data/a.csv"), Path("/data/b.csv")]) == ["a.csv", "b.csv"]  # only twins
+    assert menu_labels([Path("/a/run/x.csv"), Path("/b/run/x.csv")]) == ["x.csv  (…/a/run)", "x.csv  (…/b/run)"]
+
+
+def test_a_new_file_shows_the_right_panels_from_the_top(make_window, qtbot, two_groups_csv, csv_file):
+    other = csv_file("kilns.csv", [("old", 3.1 + i / 10) for i in range(8)] + [("new", 3.5 + i / 9) for i in range(8)],
+                     ("kiln", "shrinkage_pct"))
+    window = make_window([two_groups_csv])
+    window.resize(900, 500)
+    qtbot.waitUntil(lambda: window.session.analysis is not None and window.choice_panel is not None
+                    and not window.busy, timeout=60_000)
+    bars = [panel.scroll.verticalScrollBar() for panel in (window.choice_panel, window.findings_panel)]
+    for index, bar in enumerate(bars):
+        window.tabs.setCurrentIndex(index)
+        qtbot.waitUntil(lambda bar=bar: bar.maximum() > 0, timeout=10_000)
+        bar.setValue(bar.maximum())
+        assert bar.value() > 0
+    window.open_file(other)
+    qtbot.waitUntil(lambda: window.session.choices.path == other, timeout=20_000)
+    assert [bar.value() for bar in bars] == [0, 0]
+
+
+def test_saving_remembers_the_folder_and_says_where_the_file_went(make_window, qtbot, two_groups_csv, tmp_path,
+                                                                    monkeypatch):
+    from desktop import main_window
+
+    window = make_window([two_groups_csv])
+    qtbot.waitUntil(lambda: window.session.analysis is not None and window.findings_panel is not None,
+                    timeout=60_000)
+    asked = []
+    reports = tmp_path / "reports"
+    reports.mkdir()
+
+    def dialog(parent, title, start, name_filter):
+        asked.append(Path(start))
+        return str(reports / Path(start).name), ""
+
+    monkeypatch.setattr(main_window.QFileDialog, "getSaveFileName", dialog)
+    assert window.export_report()
+    assert asked[-1] == two_groups_csv.parent / "plots.html"  # first time: beside the data
+    written = reports / "plots.html"
+    assert written.is_file()
+    assert window.message_bar.key == "saved"
+    assert window.message_bar.text == f"Saved plots.html in {reports.resolve()}."
+    assert window.message_bar.action_text == "Open the folder"
+    opened = []
+    monkeypatch.setattr(main_window, "_open_folder", opened.append)
+    window.message_bar._action.click()
+    assert opened == [reports.resolve()]
+    window.findings_panel.export_button.click()  # the panel's own button goes the same way
+    assert asked[-1] == reports / "plots.html"  # the next save opens where the last one went
+    window.save_plot()
+    assert asked[-1] == reports / "plots.png"

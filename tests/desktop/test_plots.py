@@ -213,3 +213,51 @@ def test_two_million_values_draw_quickly(qtbot):
     scatters = [item for item in box.getPlotItem().items if isinstance(item, plots.pg.ScatterPlotItem)]
     assert all(len(item.getData()[0]) <= plots.MAX_POINTS for item in scatters)
     assert elapsed < 3.0, f"drawing took {elapsed:.2f} s"
+
+
+def _tick_texts(axis) -> list[list[str]]:
+    """The tick texts of each level, as the axis draws them for its current range."""
+    low, high = axis.range
+    return [axis.tickStrings(values, 1.0, spacing) for spacing, values in axis.tickValues(low, high, 400)]
+
+
+def test_ticks_near_a_billion_are_distinct_and_short(qtbot):
+    from desktop.plots import BoxPlot, QQPlot
+
+    values = 1e9 + np.arange(11.0)
+    summary = type("Summary", (), {"q1": 1e9 + 2.5, "median": 1e9 + 5, "q3": 1e9 + 7.5})()
+    box = BoxPlot()
+    qtbot.addWidget(box)
+    box.resize(300, 400)
+    box.show_groups([("press A", values, summary), ("press B", values + 1, summary)])
+    qq = QQPlot()
+    qtbot.addWidget(qq)
+    qq.resize(300, 400)
+    qq.show_points(np.linspace(-1.5, 1.5, 11), values, mean=1e9 + 5, sd=3.3)
+    for axis in (box.getPlotItem().getAxis("left"), qq.getPlotItem().getAxis("left")):
+        axis.linkedView().updateAutoRange()
+        qtbot.waitUntil(lambda axis=axis: axis.range[0] > 1e8, timeout=5_000)
+        levels = _tick_texts(axis)
+        major = levels[0]
+        assert len(major) >= 2 and len(set(major)) == len(major), major  # "1e+09" on every tick before
+        for texts in levels:
+            assert all("e" not in text and len(text) <= 6 for text in texts), texts
+        # the ticks count from a round number the axis label names
+        assert "1\u2009000\u2009000\u2009000" in axis.labelText and axis.labelText.startswith("value")
+
+
+def test_axis_offset_and_scale_only_where_needed():
+    from desktop.plots import ReadableAxis, axis_offset
+
+    assert axis_offset(826.0, 862.0) == 0.0  # ordinary data read as they are
+    assert axis_offset(0.0, 5e9) == 0.0  # a wide span needs a scale, not an offset
+    assert axis_offset(1e9 - 0.5, 1e9 + 10.5) == 1e9
+    assert axis_offset(-1e9 - 5, -1e9 + 5) == -1e9
+    wide = ReadableAxis("left")
+    wide.set_name("value")
+    wide.setRange(0.0, 5e9)
+    assert wide.labelText == "value (× 10⁹)"
+    assert wide.tickStrings([0.0, 2e9, 4e9], 1.0, 2e9) == ["0", "2", "4"]
+    plain = ReadableAxis("bottom")
+    plain.setRange(826.0, 862.0)
+    assert plain.tickStrings([830.0, 840.0, 850.0], 1.0, 10.0) == ["830", "840", "850"]

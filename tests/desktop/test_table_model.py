@@ -46,8 +46,8 @@ def test_million_rows_answer_the_last_row_without_building_the_others(million):
     tracemalloc.stop()
     assert model.rowCount() == 1_000_000
     assert model.columnCount() == 2
-    # reference: Python's own format spec, 15 significant digits
-    assert text == format(float(million.frame["torque_nm"].iloc[999_999]), ".15g")
+    # reference: Python's own format spec, 15 significant digits (the grid may pad decimals with zeros)
+    assert float(text) == float(format(float(million.frame["torque_nm"].iloc[999_999]), ".15g"))
     assert label == million.frame["line"].iloc[999_999]
     # one Python object per row would cost at least 8 MB for 1,000,000 rows
     assert peak < 1_000_000, f"filling the model allocated {peak} bytes"
@@ -125,3 +125,46 @@ def test_a_label_column_read_as_categories_shows_its_texts_and_blanks():
     model.set_table(make_table(frame, {"site": "text", "yield_t_ha": "number"}))
     shown = [[model.data(model.index(r, c)) for c in range(2)] for r in range(3)]
     assert shown == [["upper field", "7.1"], ["", "6.8"], ["lower field", ""]]
+
+
+def test_numbers_keep_the_decimals_and_the_decimal_mark_the_file_wrote(tmp_path):
+    # "826.0" in a column written with one decimal was shown as "826"; a decimal-comma file
+    # showed its numbers with a point beside its text cells with a comma.
+    from engine import io
+
+    bolts = tmp_path / "bolts.csv"
+    bolts.write_text("forge,strength\nnorth,826.0\nnorth,861.9\nsouth,819.0\nsouth,855.25\nsouth,840.1\nsouth,833.7\n",
+                     encoding="utf-8")
+    model = FrameModel()
+    model.set_table(io.read_table(bolts))
+    assert [model.data(model.index(r, 1)) for r in range(5)] == ["826.0", "861.9", "819.0", "855.25", "840.1"]
+    cure = tmp_path / "cure.csv"
+    cure.write_text("batch;minutes;note\nb17;89,6;12,75\nb18;12,75;fast\nb18;40,5;\n", encoding="utf-8")
+    table = io.read_table(cure)
+    assert table.decimal == ","
+    model.set_table(table)
+    shown = [[model.data(model.index(r, c)) for c in range(3)] for r in range(3)]
+    assert shown == [["b17", "89,6", "12,75"], ["b18", "12,75", "fast"], ["b18", "40,5", ""]]
+    assert not any("." in text for row in shown for text in row)
+
+
+@pytest.mark.parametrize("value, places, mark, text", [
+    (826.0, 1, ".", "826.0"), (826.0, 0, ".", "826"), (12.75, 1, ".", "12.75"), (89.6, 1, ",", "89,6"),
+    (np.nan, 2, ".", ""), (2.5e-12, 3, ".", "2.5e-12"), (1 / 3, 2, ".", "0.333333333333333"),
+    (123456789012.5, 6, ".", "123456789012.500"),
+])
+def test_number_text(value, places, mark, text):
+    from desktop.table_model import number_text
+
+    # reference: Python's format(value, ".15g"), padded with zeros to the column's decimals
+    assert number_text(value, places, mark) == text
+
+
+def test_usual_decimals_is_the_most_common_count():
+    from desktop.table_model import usual_decimals
+
+    assert usual_decimals(np.array([826.0, 861.9, 819.0, 861.2, 834.5])) == 1
+    assert usual_decimals(np.array([12.0, 15.0, 13.5, np.nan])) == 0
+    assert usual_decimals(np.array([np.nan])) == 0
+    long = np.round(np.random.default_rng(3).normal(50, 5, 100_000), 2)
+    assert usual_decimals(long) == 2
