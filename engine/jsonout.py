@@ -1,16 +1,27 @@
-"""Plain JSON-ready structures from the engine's result objects."""
+"""Plain JSON-ready structures from the engine's result objects.
+
+The headless command's ``--json`` document is a public interface: its members are described in
+the JSON Schema ``engine/schema/analysis.schema.json`` (shipped with the package, read by
+:func:`analysis_schema`). Members are added, never renamed or removed; ``SCHEMA_VERSION`` grows
+by one with each release that adds members.
+"""
 
 from __future__ import annotations
 
 import dataclasses
+import json
 import math
 from collections.abc import Mapping
+from importlib.resources import files
 from pathlib import Path
 from typing import Any
 
 import numpy as np
 
-__all__ = ["to_plain", "analysis_document", "intake_document"]
+__all__ = ["SCHEMA_VERSION", "to_plain", "analysis_document", "analysis_schema", "intake_document"]
+
+# the "schema_version" member of the --json document (see the module's note)
+SCHEMA_VERSION = 1
 
 # Arrays kept out of the JSON document: they can be long and are for plotting, not reporting.
 _LEFT_OUT = {"distribution", "qq_theoretical", "qq_observed"}
@@ -64,6 +75,7 @@ def intake_document(intake) -> dict[str, Any]:
 def analysis_document(analysis) -> dict[str, Any]:
     """The whole analysis as one JSON-ready object (the headless command's ``--json``)."""
     document: dict[str, Any] = {
+        "schema_version": SCHEMA_VERSION,
         "groups": list(analysis.groups.labels),
         "n": list(analysis.groups.n),
         "excluded": dict(to_plain(analysis.screening.excluded_counts)) if analysis.screening else {},
@@ -79,3 +91,9 @@ def analysis_document(analysis) -> dict[str, Any]:
         "notes": to_plain(analysis.notes),
     }
     return document
+
+
+def analysis_schema() -> dict[str, Any]:
+    """The JSON Schema of :func:`analysis_document`'s output, as shipped with the package."""
+    text = (files(__package__) / "schema" / "analysis.schema.json").read_text(encoding="utf-8")
+    return json.loads(text)
