@@ -34,6 +34,8 @@ from typing import Mapping, Sequence
 
 from engine.text import visible
 
+from .artwork import svg_file
+
 __all__ = [
     "FILE_TYPES",
     "PROG_ID",
@@ -68,7 +70,6 @@ _OLD_MIME_PACKAGE = "mime/packages/twofold.xml"
 PROG_ID = "Twofold.DataFile"
 APP_ID = "twofold"
 _ROOT = Path(__file__).resolve().parent.parent
-_ICON = _ROOT / "icons" / "app.svg"
 
 
 def data_home(environ: Mapping[str, str] | None = None) -> Path:
@@ -186,7 +187,8 @@ _FALLBACK_ICON = ('<svg xmlns="http://www.w3.org/2000/svg" viewBox="0 0 64 64">'
 
 def linux_files(command: Sequence[str] | None = None) -> dict[str, str]:
     """The files to write, as {path under the data home: text}."""
-    icon = _ICON.read_text(encoding="utf-8") if _ICON.is_file() else _FALLBACK_ICON
+    source = svg_file("app")
+    icon = source.read_text(encoding="utf-8") if source.is_file() else _FALLBACK_ICON
     return {
         f"applications/{APP_ID}.desktop": _desktop_entry(command or launch_command()),
         f"icons/hicolor/scalable/apps/{APP_ID}.svg": icon,

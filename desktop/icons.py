@@ -1,4 +1,4 @@
-"""The program's icons, drawn as SVG files in the top-level ``icons/`` folder.
+"""The program's icons as ``QIcon``s, from the SVG files in :mod:`desktop.artwork`.
 
 Action icons draw their lines in ``currentColor``; :func:`icon` paints that colour from the
 application palette's button text, so the icons stay readable in a light or a dark theme. The
@@ -7,24 +7,15 @@ application icon carries its own colours.
 
 from __future__ import annotations
 
-from pathlib import Path
-
 from PySide6.QtCore import QByteArray, QRectF, Qt
 from PySide6.QtGui import QGuiApplication, QIcon, QPainter, QPalette, QPixmap
 from PySide6.QtSvg import QSvgRenderer
 
-__all__ = ["ICON_DIR", "NAMES", "icon", "icon_path"]
+from .artwork import NAMES, svg_file
 
-ICON_DIR = Path(__file__).resolve().parent.parent / "icons"
-NAMES = ("app", "open", "copy", "export", "cancel")
+__all__ = ["NAMES", "icon"]
+
 _SIZES = (16, 20, 24, 32, 48, 64, 128)
-
-
-def icon_path(name: str) -> Path:
-    """The SVG file of icon ``name``; ``KeyError`` for a name the program does not have."""
-    if name not in NAMES:
-        raise KeyError(f"no icon named '{name}'")
-    return ICON_DIR / f"{name}.svg"
 
 
 def _ink(mode: QPalette.ColorGroup) -> str:
@@ -47,10 +38,10 @@ def icon(name: str) -> QIcon:
     """The icon ``name`` ("app", "open", "copy", "export", "cancel") as a ``QIcon``.
 
     An SVG without ``currentColor`` is handed to Qt's SVG icon engine as it is (sharp at any
-    size). The others are painted in the palette's button-text colour (and its disabled shade)
+    size; the package is installed as files, so the SVG has a path). The others are painted in the palette's button-text colour (and its disabled shade)
     at the usual sizes and at the screen's device pixel ratio.
     """
-    path = icon_path(name)
+    path = svg_file(name)
     svg = path.read_text(encoding="utf-8")
     if "currentColor" not in svg:
         return QIcon(str(path))
