@@ -24,11 +24,12 @@ def build_parser() -> argparse.ArgumentParser:
         prog="twofold", description="Compare two independent groups of measurements from a data file.")
     parser.add_argument("files", nargs="*", type=Path, metavar="FILE",
                         help="a .csv, .tsv, .txt, .xlsx, .xls or .ods file to open")
-    parser.add_argument("--install-desktop-entry", action="store_true",
-                        help="offer Twofold for .csv, .tsv, .txt, .xlsx, .xls and .ods files on the desktop "
-                             "(Open With), and say how to make it the default")
-    parser.add_argument("--uninstall-desktop-entry", action="store_true",
-                        help="undo --install-desktop-entry")
+    registration = parser.add_mutually_exclusive_group()  # both at once would do only one
+    registration.add_argument("--install-desktop-entry", action="store_true",
+                              help="offer Twofold for .csv, .tsv, .txt, .xlsx, .xls and .ods files on the desktop "
+                                   "(Open With), and say how to make it the default")
+    registration.add_argument("--uninstall-desktop-entry", action="store_true",
+                              help="undo --install-desktop-entry")
     return parser
 
 

@@ -161,7 +161,10 @@ def _robustness(procedures: Mapping[str, ProcedureResult], level: float, *,
             if spreads_differ and key.startswith("permutation"):
                 votes, because = False, EXCHANGEABLE_NOTE
         elif result.interval is not None:
-            finds = not result.interval.contains(0.0)
+            # an end that could not be computed (NaN) cannot be said to leave zero out
+            ends = (result.interval.low, result.interval.high)
+            finds = (not any(end is not None and end != end for end in ends)
+                     and not result.interval.contains(0.0))
             votes, because = False, INTERVAL_ONLY_NOTE
         else:
             continue

@@ -424,8 +424,8 @@ def _result_rows(analysis, key: str, result, numbers: DisplayNumbers) -> list[tu
     sided = "one-sided " if result.alternative != "two-sided" else ""
     first, second = analysis.groups.labels
     rows = [("Procedure", capital(result.name)),
-            (f"{result.estimate_name[:1].upper()}{result.estimate_name[1:]}, {first} minus {second}",
-             numbers.estimate)]
+            (capital(result.estimate_name)
+             + ("" if key in PROBABILITY_KEYS else f", {first} minus {second}"), numbers.estimate)]
     if numbers.interval is not None:
         rows.append((f"{sided}{numbers.level} confidence interval".capitalize(), numbers.interval))
     label = STATISTIC_LABEL.get(key)

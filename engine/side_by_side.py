@@ -11,7 +11,7 @@ from __future__ import annotations
 from typing import Callable
 
 from .rounding import format_p
-from .wording import capital, plural
+from .wording import capital, name_list, plural
 
 __all__ = ["PROBABILITY_KEYS", "against_question", "reverse_is_clear", "question_claim", "row_reading",
            "agreement_text", "against_sentence", "procedure_table", "NO_INTERVAL_WHY", "NO_P_VALUE_WHY"]
@@ -132,8 +132,13 @@ def _agreement(robustness, rows, alternative: str, labels: tuple[str, str], leve
     others = [row.name for row in rows if not row.finds_difference]
     found = "A difference is found" if alternative == "two-sided" else f"Clear evidence of {claim} is found"
     return (f"The procedures disagree at the {level_text} level. {found} by "
-            f"{', '.join(finding)}, but not by {', '.join(others)}; the answer depends on the "
-            "procedure, so lean on the size of the difference and its interval.")
+            f"{name_list(finding)}. It is not found by {name_list(others)}. The answer depends "
+            "on the procedure, so lean on the size of the difference and its interval.")
+
+
+def _each(because: str) -> str:
+    """A reason written for one procedure ("It gives ...") said of several ("Each gives ...")."""
+    return "Each" + because[2:] if because.startswith("It ") else because
 
 
 def procedure_table(robustness, alternative: str, labels: tuple[str, str], level_text: str,
@@ -171,6 +176,7 @@ def procedure_table(robustness, alternative: str, labels: tuple[str, str], level
             reading += " (not counted)"
             aside.setdefault(row.not_voting_because, []).append(capital(row.name))
         body.append([name, numbers.estimate, interval, p, reading])
-    notes += [f"Not counted in whether the procedures agree: {'; '.join(names)}. {because}"
+    notes += [f"Not counted in whether the procedures agree: {'; '.join(names)}. "
+              + (because if len(names) == 1 else _each(because))
               for because, names in aside.items()]
     return head, body, notes

@@ -6,7 +6,7 @@ glosses of the technical words the checks use.
 
 from __future__ import annotations
 
-__all__ = ["plural", "capital", "GLOSSES", "gloss_line"]
+__all__ = ["plural", "capital", "name_list", "GLOSSES", "gloss_line"]
 
 # Nouns whose plural is not the singular with an "s".
 _IRREGULAR = {"was": "were", "is": "are", "has": "have", "does": "do", "this": "these",
@@ -36,6 +36,20 @@ def capital(text: str) -> str:
     """``text`` with a capital first letter, the style of every label, table cell and list item
     ("Pooled t-test" beside "Welch t-test"); inside a sentence names stay as they are."""
     return text[:1].upper() + text[1:]
+
+
+def name_list(names) -> str:
+    """``names`` as a list in a sentence: "A", "A and B", "A, B and C".
+
+    A name that holds a comma itself ("permutation test, difference in means") would run into
+    its neighbours, so such lists are parted by semicolons: "A, x; B, y; and C".
+    """
+    names = list(names)
+    if len(names) < 2:
+        return "".join(names)
+    if any("," in name for name in names):
+        return f"{'; '.join(names[:-1])}; and {names[-1]}"
+    return f"{', '.join(names[:-1])} and {names[-1]}"
 
 
 # One short plain explanation per technical word of the checks, for the report and for the

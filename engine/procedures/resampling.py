@@ -12,6 +12,7 @@ random draws and n gathers.
 
 from __future__ import annotations
 
+import dataclasses
 import itertools
 import math
 from numbers import Integral
@@ -49,6 +50,12 @@ BOOTSTRAP_MIN_N = 10
 _BATCH_BYTES = 1 << 22
 # Two statistics closer than this, relative to the data's scale, count as a tie.
 _TIE_TOLERANCE = 1e-12
+
+# Values beyond this size in magnitude are divided by a power of two before the permutation
+# sums: sums and differences of values near the float limit (1.8e308) overflow, and a NaN or
+# infinite relabelling never counts as extreme, so p could fall to 0. A power of two divides
+# exactly, so every comparison is the same as on the unscaled values.
+_LARGE = 2.0 ** 960
 
 _BYTE_VALUES = np.arange(256, dtype=np.uint16)
 _BIT_OF_BYTE = ((_BYTE_VALUES[None, :] >> np.arange(8)[:, None]) & 1).astype(float)  # (8, 256)
@@ -265,6 +272,26 @@ def _accepted_shifts(low: np.ndarray, high: np.ndarray, needed: int):
     return lowest, highest, bool(np.all(after >= needed))
 
 
+def _unit(x: np.ndarray, y: np.ndarray) -> float:
+    """1, or for values beyond ``_LARGE`` a power of two that brings them below 2."""
+    largest = max(float(np.max(np.abs(x))), float(np.max(np.abs(y))))
+    return math.ldexp(1.0, math.frexp(largest)[1] - 1) if largest > _LARGE else 1.0
+
+
+def _median_difference(x: np.ndarray, y: np.ndarray) -> float:
+    """median(x) - median(y) without overflow in the middle of an even group (9e307 and 1e308
+    average to 9.5e307, not infinity); a difference beyond the float limit is infinite."""
+    unit = _unit(x, y)
+    with np.errstate(over="ignore"):
+        return float((np.median(x / unit) - np.median(y / unit)) * unit)
+
+
+def _times(values: np.ndarray, unit: float) -> np.ndarray:
+    """``values * unit``, a product beyond the float limit written as an infinity."""
+    with np.errstate(over="ignore"):
+        return values * unit
+
+
 def _mean_shift_interval(pool: _Pool, null: np.ndarray, own: np.ndarray, observed: float,
                          alternative: str, alpha: float, extra: int, denominator: int,
                          tolerance: float):
@@ -383,7 +410,8 @@ def permutation_test(
         x, y, statistic, alternative, confidence_level, n_resamples, rng)
     key = f"permutation_{statistic}"
     step = _reporter(progress, cancelled, PROCEDURE_NAMES[key])
-    pool = _Pool(x, y, statistic)
+    unit = _unit(x, y)
+    pool = _Pool(x / unit, y / unit, statistic)
     observed = float(pool.statistic_of(pool.observed_mask)[0])
     tolerance = _TIE_TOLERANCE * max(pool.scale, abs(observed))
     splits = math.comb(pool.n, pool.k)
@@ -413,7 +441,7 @@ def permutation_test(
         estimate = mean_difference(x, y)[2]
         estimate_name = "difference in means"
     else:
-        estimate = float(np.median(x) - np.median(y))
+        estimate = _median_difference(x, y)
         estimate_name = "difference in medians"
     tail = {"two-sided": "|T*| >= |T|", "greater": "T* >= T", "less": "T* <= T"}[alternative]
     if exact:
@@ -424,7 +452,8 @@ def permutation_test(
                   f"with b the relabellings with {tail}")
     warnings: list[str] = []
     details: dict[str, Any] = dict(n_1=pool.n1, n_2=pool.n2, exact=exact, n_splits=splits,
-                                   n_extreme=extreme, n_resamples=total, tie_tolerance=tolerance)
+                                   n_extreme=extreme, n_resamples=total,
+                                   tie_tolerance=tolerance * unit)
     if pool.scale == 0:
         warnings.append("Every value is the same in both groups, so every relabelling gives the "
                         "same difference and the test cannot tell the groups apart.")
@@ -433,6 +462,10 @@ def permutation_test(
         lowest, highest, connected = _mean_shift_interval(
             pool, null, own, observed, alternative, alpha, extra, denominator, tolerance)
         interval = _shift_interval(lowest, highest, level, alternative, warnings)
+        if unit != 1.0:  # an end beyond the float limit reads as infinite, as Welch's does
+            interval = dataclasses.replace(
+                interval, low=None if interval.low is None else interval.low * unit,
+                high=None if interval.high is None else interval.high * unit)
         details["accepted_shifts_connected"] = connected
         if not connected:
             warnings.append("The shifts the test accepts do not form one unbroken range; the "
@@ -446,7 +479,7 @@ def permutation_test(
         estimate_name=estimate_name, statistic=float(estimate), statistic_name=estimate_name,
         df=None, p_value=float(p_value), interval=interval, alternative=alternative,
         method=method, details=details, warnings=tuple(warnings), mc_standard_error=mc_se,
-        distribution=null,
+        distribution=null if unit == 1.0 else _times(null, unit),
     )
 
 
@@ -663,7 +696,7 @@ def bootstrap_interval(
         offset = first.centre - second.centre
         estimate_name = "difference in means"
     else:
-        estimate = float(np.median(x) - np.median(y))
+        estimate = _median_difference(x, y)
         offset = 0.0
         estimate_name = "difference in medians"
     batch = max(1, _BATCH_BYTES // (8 * max(first.n, second.n)))

@@ -6,6 +6,8 @@ import subprocess
 import sys
 from pathlib import Path
 
+import pytest
+
 from desktop.app import build_parser, main
 
 ROOT = Path(__file__).resolve().parents[2]
@@ -15,6 +17,17 @@ def test_parser():
     args = build_parser().parse_args(["a.csv"])
     assert args.files == [Path("a.csv")] and not args.install_desktop_entry
     assert build_parser().parse_args(["--install-desktop-entry"]).install_desktop_entry
+
+
+def test_install_and_uninstall_together_are_refused_and_nothing_is_written(tmp_path, monkeypatch,
+                                                                          capsys):
+    share = tmp_path / "share"
+    monkeypatch.setenv("XDG_DATA_HOME", str(share))
+    with pytest.raises(SystemExit) as refused:
+        main(["--install-desktop-entry", "--uninstall-desktop-entry"])
+    assert refused.value.code == 2
+    assert "not allowed with argument" in capsys.readouterr().err  # argparse's own line
+    assert not share.exists()
 
 
 def test_install_and_uninstall_commands(tmp_path, monkeypatch, capsys):

@@ -155,3 +155,21 @@ def test_an_effect_size_left_out_says_why():
     assert "glass_delta" not in analysis.effect_sizes
     assert any(note.key == "effect_size_left_out" and "Glass's delta" in note.text
                for note in analysis.notes)
+
+
+def test_an_interval_whose_ends_could_not_be_computed_finds_nothing():
+    # an interval-only row whose ends came out NaN (replicates that overflow near the float
+    # limit) cannot be said to leave zero out: it reads "no clear difference", not "finds one"
+    from engine.analysis import _robustness
+    from engine.results import Interval, ProcedureResult
+
+    nan = float("nan")
+    result = ProcedureResult(key="bootstrap_mean", name=PROCEDURE_NAMES["bootstrap_mean"],
+                             estimate=1.0, estimate_name="difference in means", statistic=None,
+                             statistic_name=None, df=None, p_value=None,
+                             interval=Interval(nan, nan, 0.95), alternative="two-sided",
+                             method="percentile")
+    shown = Interval(0.5, 1.5, 0.95)
+    clear = ProcedureResult(**{**result.__dict__, "key": "bootstrap_median", "interval": shown})
+    rows = _robustness({"bootstrap_mean": result, "bootstrap_median": clear}, 0.95).rows
+    assert [row.finds_difference for row in rows] == [False, True]

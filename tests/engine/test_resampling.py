@@ -495,3 +495,26 @@ def test_bootstrap_warns_below_ten_values_per_group():
     assert any("fewer than 10 values" in w and "Hesterberg" in w for w in small.warnings)
     enough = bootstrap_interval(rng.normal(size=10), rng.normal(size=30), n_resamples=300, rng=rng)
     assert not any("fewer than 10" in w for w in enough.warnings)
+
+
+@pytest.mark.parametrize("statistic", ["mean", "median"])
+def test_values_near_the_float_limit_give_the_p_value_of_the_same_values_scaled_down(statistic):
+    # sums of values near 1.8e308 overflow; the permutation distribution must still be the one
+    # of the same numbers in smaller units. Reference: scipy.stats.permutation_test on the
+    # values times 1e-300 (all 70 splits of 4 + 4, so exact and free of randomness).
+    x = np.array([1e308, 9e307, 8e307, 1.5e308])
+    y = np.array([-1e308, 2e307, -5e307, 1e308])
+    scale = 1e-300
+    measure = np.mean if statistic == "mean" else np.median
+    expected = stats.permutation_test((x * scale, y * scale),
+                                      lambda a, b: measure(a) - measure(b),
+                                      permutation_type="independent", n_resamples=np.inf).pvalue
+    result = permutation_test(x, y, statistic=statistic, n_resamples=1000,
+                              rng=np.random.default_rng(1))
+    assert result.p_value == pytest.approx(expected, rel=1e-12)
+    assert result.p_value >= 2 / math.comb(8, 4)  # the observed split and its mirror count
+    assert math.isfinite(result.estimate)
+    if statistic == "mean":
+        # the upper end lies beyond the float limit: infinite, not "no limit" for want of splits
+        assert result.interval.low == pytest.approx(-2e307, rel=1e-9)
+        assert result.interval.high == math.inf and not result.warnings
