@@ -196,6 +196,15 @@ def brunner_munzel(
                 "placements is zero and the t approximation cannot be used; the p-value is the "
                 "chance of so complete a separation if the group labels were shuffled.")
             method = "permutation probability of complete separation"
+            if p_value >= 1 - level and not low <= 0.5 <= high:
+                # Newcombe's interval knows nothing of the shuffling behind this p-value; with
+                # so few values the separation is not clear at this level, so the interval is
+                # taken to 1/2 to agree with the test.
+                low, high = min(low, 0.5), max(high, 0.5)
+                warnings.append(
+                    f"With so few values even a complete separation is not clear at the "
+                    f"{100 * level:g}% level (p = {p_value:.3g}), so the interval is extended to "
+                    "1/2 to agree with the test.")
         method += "; interval for the probability by Newcombe's method 5"
     return ProcedureResult(
         key="brunner_munzel",

@@ -196,3 +196,20 @@ def test_similar_spreads_with_far_values_keep_mann_whitney():
     analysis = _analysis(x, y)
     assert analysis.diagnostics.spread.sd_ratio < 2
     assert analysis.recommendation.key == "mann_whitney"
+
+
+@pytest.mark.parametrize("sizes", [(2, 2), (3, 3), (3, 4), (4, 4), (5, 6), (8, 8)])
+@pytest.mark.parametrize("alternative", ["two-sided", "greater"])
+def test_a_complete_separation_gives_an_interval_that_agrees_with_its_test(sizes, alternative):
+    # every value of group 1 above every value of group 2 (the triplicates 10.1, 10.3, 9.9 vs
+    # 20.2, 19.8, 20.1 in reverse): 1/2 lies in the interval exactly when the test does not reject
+    n1, n2 = sizes
+    x = 20.0 + np.arange(n1) / 10
+    y = 10.0 + np.arange(n2) / 10
+    result = brunner_munzel(x, y, alternative=alternative, confidence_level=0.95)
+    # reference: the chance of so complete a separation among all C(n1 + n2, n1) relabellings
+    expected = (1 if alternative == "greater" else 2) / comb(n1 + n2, n1)
+    assert result.p_value == pytest.approx(min(1.0, expected), rel=1e-12)
+    low = result.interval.low if result.interval.low is not None else 0.0
+    high = result.interval.high if result.interval.high is not None else 1.0
+    assert (low <= 0.5 <= high) == (result.p_value >= 0.05)
