@@ -5,6 +5,8 @@ The check is exact and costs a few passes over the columns even on a million row
 
 from __future__ import annotations
 
+import math
+
 import numpy as np
 import pandas as pd
 
@@ -232,8 +234,10 @@ def _equal_chance(codes: np.ndarray, values: np.ndarray | None, step: float,
         scale = common_scale(finite)
         sd = float(np.std(finite / scale)) if finite.size > 1 else 0.0
         if sd > 0:
-            # values on a grid of ``step`` from a bell curve of SD sd: sum p^2 = step / (2 sqrt(pi) sd)
-            return float(min(1.0, step / scale / (2.0 * np.sqrt(np.pi) * sd)))
+            # values on a grid of ``step`` from a bell curve of SD sd: sum p^2 = step / (2 sqrt(pi) sd),
+            # at most 1 (compared before dividing: equal values may leave an sd of rounding only)
+            spread = 2.0 * math.sqrt(math.pi) * sd
+            return 1.0 if step / scale >= spread else step / scale / spread
     shares = np.bincount(codes - codes.min()).astype(float) / codes.size
     return float(np.dot(shares, shares))
 

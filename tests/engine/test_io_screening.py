@@ -435,5 +435,10 @@ def test_pairs_by_chance_for_values_near_the_largest_float_is_the_same_count():
         # two values at the ends of the float range: their gap is no grid step (shares are used)
         ends = repeats.pairs_by_chance(_Frame(pd.DataFrame({"g": ["A"] * 4, "v": [-1.7e308, 1.7e308] * 2})),
                                        np.arange(4))
+        # one group near 1.5e308, the other twelve equal values (whose SD is rounding alone)
+        mixed = pd.DataFrame({"g": ["A"] * 11 + ["B"] * 12,
+                              "v": list(1.37e308 + np.arange(11) * 3e306) + [4.6] * 12})
+        both = repeats.pairs_by_chance(_Frame(mixed), np.arange(23))
     assert expected == pytest.approx(1000 * 999 / 2 * 1.0 / (2 * np.sqrt(np.pi) * np.std(units)), rel=1e-9)
+    assert both >= 12 * 11 / 2  # the twelve equal values agree for sure
     assert ends == pytest.approx(4 * 3 / 2 * 0.5, rel=1e-12)  # two values, half the rows each
