@@ -52,8 +52,10 @@ def listing(items, limit: int = LIST_LIMIT, *, quote: str = "'") -> str:
 def _capped(message: str) -> str:
     if len(message) <= MESSAGE_LIMIT:
         return message
-    cut = len(message) - MESSAGE_LIMIT
-    head, tail = message[: MESSAGE_LIMIT * 3 // 4], message[-(MESSAGE_LIMIT // 4):]
+    # the note of what was cut counts against the limit too (its count is at most the length)
+    room = MESSAGE_LIMIT - len(f" […{len(message):,} characters left out…] ")
+    head, tail = message[: room * 3 // 4], message[len(message) - room // 4:]
+    cut = len(message) - len(head) - len(tail)
     return f"{head} […{cut:,} characters left out…] {tail}"
 
 

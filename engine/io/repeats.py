@@ -5,8 +5,12 @@ The check is exact and costs a few passes over the columns even on a million row
 
 from __future__ import annotations
 
+import math
+
 import numpy as np
 import pandas as pd
+
+from ..summary import common_scale
 
 __all__ = ["duplicate_rows", "row_hashes", "pairs_by_chance", "repeats_surprising",
            "surprising_below", "REPEAT_SURPRISE"]
@@ -226,10 +230,14 @@ def _equal_chance(codes: np.ndarray, values: np.ndarray | None, step: float,
         return 0.0  # an identifier: apart from the (fewer) repeated rows, no value comes twice
     if values is not None and np.isfinite(step) and step > 0:
         finite = values[np.isfinite(values)]
-        sd = float(np.std(finite)) if finite.size > 1 else 0.0
+        # step and sd in units of a power of two, so that values near 1e308 square without overflow
+        scale = common_scale(finite)
+        sd = float(np.std(finite / scale)) if finite.size > 1 else 0.0
         if sd > 0:
-            # values on a grid of ``step`` from a bell curve of SD sd: sum p^2 = step / (2 sqrt(pi) sd)
-            return float(min(1.0, step / (2.0 * np.sqrt(np.pi) * sd)))
+            # values on a grid of ``step`` from a bell curve of SD sd: sum p^2 = step / (2 sqrt(pi) sd),
+            # at most 1 (compared before dividing: equal values may leave an sd of rounding only)
+            spread = 2.0 * math.sqrt(math.pi) * sd
+            return 1.0 if step / scale >= spread else step / scale / spread
     shares = np.bincount(codes - codes.min()).astype(float) / codes.size
     return float(np.dot(shares, shares))
 
@@ -241,7 +249,8 @@ def _step(values: np.ndarray | None) -> float:
     distinct = np.unique(values[np.isfinite(values)])
     if distinct.size < 2:
         return float("nan")
-    return float(np.min(np.diff(distinct)))
+    with np.errstate(over="ignore"):  # a gap wider than the largest float is infinite: no step
+        return float(np.min(np.diff(distinct)))
 
 
 def pairs_by_chance(table, rows: np.ndarray, repeated: np.ndarray | None = None) -> float:

@@ -60,7 +60,11 @@ class _Reader:
             self._errors.close()
             raise FileProblem(f"{path.name} could not be read: the workbook reader did not start "
                               f"({one_line(error, 80)}).") from error
-        answer = self._answer(None)
+        try:
+            answer = self._answer(None)
+        except BaseException:  # a refused or damaged workbook: the child and its pipes end here
+            self.close(at_once=True)
+            raise
         self.sheets: tuple[tuple[str, str], ...] = tuple((str(n), str(v)) for n, v in answer[1])
 
     def ask(self, command: str, name: str):

@@ -48,6 +48,7 @@ class Table:
         object.__setattr__(self, "_factors", {})
         object.__setattr__(self, "_rising", {})
         object.__setattr__(self, "_whole", {})
+        object.__setattr__(self, "_floats_judged", False)  # see _judge_float_columns
         object.__setattr__(self, "_breaks", _NOT_YET)  # rows with line breaks, found on first use
         object.__setattr__(self, "_levels", {})
 
@@ -94,8 +95,8 @@ class Table:
     def whole_numbers(self, column: str) -> bool:
         """True if the column holds at least one finite number and every finite number in it is
         a whole number (codes, counts, identifiers); cached per column."""
-        if column not in self._whole and self.frame.shape[1] > _WIDE:
-            self._judge_float_columns()
+        if column not in self._whole and self.frame.shape[1] > _WIDE and not self._floats_judged:
+            self._judge_float_columns()  # once: a column of text is judged by itself below
         if column not in self._whole:
             values = self.numbers(column)
             head = values[:1000]
@@ -110,6 +111,7 @@ class Table:
     def _judge_float_columns(self) -> None:
         """``whole_numbers`` for every float column at once: on thousands of columns one pass
         over the block beats a pass per column."""
+        object.__setattr__(self, "_floats_judged", True)
         frame = self.frame
         positions = np.flatnonzero((frame.dtypes == np.float64).to_numpy())
         values = frame.iloc[:, positions].to_numpy()

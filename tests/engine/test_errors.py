@@ -28,9 +28,16 @@ def test_no_message_grows_past_the_limit():
     from engine.errors import MESSAGE_LIMIT
 
     problem = DataProblem("start " + "y" * 1_000_000 + " end")
-    assert len(problem.message) < MESSAGE_LIMIT + 60
+    assert len(problem.message) <= MESSAGE_LIMIT  # the note of the cut included
     assert problem.message.startswith("start ") and problem.message.endswith(" end")
     assert "characters left out" in problem.message
+    # names of control characters, each shown as a four-character escape, are capped the same
+    from engine.errors import ColumnProblem, listing
+
+    names = listing(["\x00".join("Group") * 20 + str(j) for j in range(2000)])
+    problem = ColumnProblem(f"No column of data.txt holds numbers; its columns are {names}.")
+    assert len(problem.message) <= MESSAGE_LIMIT and problem.message.endswith("and 1,992 more.")
+    assert problem.message.startswith("No column of data.txt")
 
 
 def test_an_error_from_deep_inside_is_made_to_name_the_file_and_sheet():

@@ -250,3 +250,27 @@ def test_an_xls_sheet_spanning_billions_of_cells_is_refused_before_reading(tmp_p
     path = _far_cell_xls(tmp_path)
     with pytest.raises(FileProblem, match=r"Sheet 'spec' of far\.xls spans 65,53\d rows by 65,53\d columns"):
         read_table(path)
+
+
+@pytest.mark.parametrize("name", ["noise.xlsx", "noise.ods", "cut.xlsx"])
+def test_a_damaged_workbook_leaves_no_process_or_file_open(tmp_path, name):
+    # a workbook the reader refuses as it opens: its process, pipes and error file are all closed
+    # (with ResourceWarning as an error, anything left open prints "Exception ignored ..." lines)
+    path = tmp_path / name
+    if name.startswith("cut"):
+        whole = tmp_path / "whole.xlsx"
+        book = openpyxl.Workbook()
+        book.active.append(["yield", 1.5])
+        book.save(whole)
+        with zipfile.ZipFile(whole) as source, zipfile.ZipFile(path, "w") as damaged:
+            for item in source.infolist():
+                data = source.read(item)
+                damaged.writestr(item, data[: len(data) // 2] if item.filename.endswith("workbook.xml") else data)
+    else:
+        path.write_bytes(b"PK\x03\x04" + bytes(range(256)) * 40)
+    for command in ("columns", "analyze"):
+        done = subprocess.run([sys.executable, "-W", "error::ResourceWarning", "-m", "engine", command,
+                               str(path)], cwd=ROOT, capture_output=True, text=True, timeout=120)
+        assert done.returncode == 2, done.stderr
+        assert done.stderr.count("\n") == 1 and name in done.stderr, done.stderr
+        assert "ResourceWarning" not in done.stderr and "Exception ignored" not in done.stderr

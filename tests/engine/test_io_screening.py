@@ -411,3 +411,34 @@ def test_pairs_by_chance_is_the_birthday_count():
     # an identifier column rules chance out
     frame["id"] = np.arange(1000)
     assert repeats.pairs_by_chance(_Frame(frame), np.arange(1000)) == 0.0
+
+
+def test_pairs_by_chance_for_values_near_the_largest_float_is_the_same_count():
+    # numbers of size 1e307 on a grid of step 1e306: their squares overflow a float, yet the
+    # birthday count is the one of the same numbers in units of 1e306, h / (2 sqrt(pi) sd)
+    # (the textbook identity of the test above), with no overflow warning on the way
+    from engine.io import repeats
+
+    class _Frame:
+        def __init__(self, frame):
+            self.frame = frame
+
+        def factors(self, name):
+            return pd.factorize(self.frame[name])[0], None
+
+    rng = np.random.default_rng(11)
+    units = np.round(rng.normal(0, 20, 1000))
+    frame = pd.DataFrame({"g": ["A"] * 1000, "v": units * 1e306})
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        expected = repeats.pairs_by_chance(_Frame(frame), np.arange(1000))
+        # two values at the ends of the float range: their gap is no grid step (shares are used)
+        ends = repeats.pairs_by_chance(_Frame(pd.DataFrame({"g": ["A"] * 4, "v": [-1.7e308, 1.7e308] * 2})),
+                                       np.arange(4))
+        # one group near 1.5e308, the other twelve equal values (whose SD is rounding alone)
+        mixed = pd.DataFrame({"g": ["A"] * 11 + ["B"] * 12,
+                              "v": list(1.37e308 + np.arange(11) * 3e306) + [4.6] * 12})
+        both = repeats.pairs_by_chance(_Frame(mixed), np.arange(23))
+    assert expected == pytest.approx(1000 * 999 / 2 * 1.0 / (2 * np.sqrt(np.pi) * np.std(units)), rel=1e-9)
+    assert both >= 12 * 11 / 2  # the twelve equal values agree for sure
+    assert ends == pytest.approx(4 * 3 / 2 * 0.5, rel=1e-12)  # two values, half the rows each

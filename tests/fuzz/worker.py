@@ -53,11 +53,41 @@ def _where(error: BaseException) -> str:
     return " <- ".join(parts)
 
 
+def _crash(error: BaseException) -> dict:
+    return {"result": "crash", "type": f"{type(error).__module__}.{type(error).__qualname__}",
+            "message": str(error)[:2000], "where": _where(error),
+            "traceback": "".join(traceback.format_exception(error))[-6000:]}
+
+
+@contextlib.contextmanager
+def _unforeseen_kept(kept: list[BaseException]):
+    """Keep each error the command turns into its one line for an unforeseen error (exit code
+    1): the line is the command's behaviour, but the error is a bug a fuzz run counts as a crash,
+    grouped by its type and the frame of ours it came from."""
+    import engine.cli
+
+    said = engine.cli._unexpected
+
+    def noted(args, problem):
+        kept.append(problem)
+        return said(args, problem)
+
+    engine.cli._unexpected = noted
+    try:
+        yield
+    finally:
+        engine.cli._unexpected = said
+
+
 def run_command(command: tuple[str, ...], path: Path) -> dict:
-    """Run ``python -m engine COMMAND PATH ...`` in this process, as engine.cli.main does."""
-    from engine.cli import main
+    """Run ``python -m engine COMMAND PATH ...`` in this process, as engine.cli.main does.
+
+    Exit code 2 with one line is a typed error (bad input said plainly); exit code 1, the
+    command's line for an error it did not foresee, is a crash, as is any other code."""
+    from engine.cli import EXIT_BAD_INPUT, main
 
     out, err = io.StringIO(), io.StringIO()
+    unforeseen: list[BaseException] = []
     argv = [command[0], str(path), *command[1:]]
     caught: set[str] = set()
 
@@ -71,20 +101,25 @@ def run_command(command: tuple[str, ...], path: Path) -> dict:
         warnings.simplefilter("always")
         warnings.showwarning = record
         try:
-            code = main(argv, out=out, err=err)
+            with _unforeseen_kept(unforeseen):
+                code = main(argv, out=out, err=err)
         except KeyboardInterrupt:
             raise
         except BaseException as error:  # noqa: BLE001 - a fuzz run records everything that escapes
-            outcome = {"result": "crash", "type": f"{type(error).__module__}.{type(error).__qualname__}",
-                       "message": str(error)[:2000], "where": _where(error),
-                       "traceback": "".join(traceback.format_exception(error))[-6000:]}
+            outcome = _crash(error)
         else:
+            message = err.getvalue()
+            message = message[:-1] if message.endswith("\n") else message
             if code == 0:
                 outcome = {"result": "clean"}
+            elif code == EXIT_BAD_INPUT:
+                outcome = {"result": "typed", "code": code, "message": message}
+            elif unforeseen:
+                outcome = _crash(unforeseen[-1])
             else:
-                message = err.getvalue()
-                outcome = {"result": "typed", "code": code, "message": message[:-1] if message.endswith("\n")
-                           else message}
+                outcome = {"result": "crash", "type": f"exit code {code}", "message": message[:2000],
+                           "where": "", "traceback": message[-6000:]}
+            outcome["code"] = code
             if code == 0 and command[0] == "analyze":
                 try:
                     json.loads(out.getvalue())
