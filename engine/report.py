@@ -128,12 +128,16 @@ def format_interval(interval, *, decimals: int | None = None, digits: int = DIGI
         decimals = _decimals_shared([low, high], digits)
     if low is None and high is None:
         return "unbounded"
-    low_open, high_open = getattr(interval, "low_open", False), getattr(interval, "high_open", False)
+    # An end the test rejects is left out of the interval; that is said where it decides the
+    # reading (an end at 0, no difference). Elsewhere the open end lies as close to the value
+    # shown as the rounding allows, and "from above 10.6" would only puzzle a reader.
+    low_open = getattr(interval, "low_open", False) and low == 0
+    high_open = getattr(interval, "high_open", False) and high == 0
     if high is None:
         return f"{'above' if low_open else 'at least'} {_fixed(low, decimals)}"
     if low is None:
         return f"{'below' if high_open else 'at most'} {_fixed(high, decimals)}"
-    if low_open or high_open:  # an end the test rejects is left out of the interval
+    if low_open or high_open:
         return (f"from {'above ' if low_open else ''}{_fixed(low, decimals)} to "
                 f"{'below ' if high_open else ''}{_fixed(high, decimals)}")
     return f"{_fixed(low, decimals)} to {_fixed(high, decimals)}"

@@ -67,7 +67,19 @@ def test_a_share_near_one_half_never_reads_fifty_percent():
 def test_an_interval_end_the_test_rejects_is_written_as_left_out():
     x, y = [4.0] * 16 + [5.0] * 4, [3.0] * 4 + [4.0] * 16
     text = report.render(_analysis(x, y, ordinal=True), procedure="mann_whitney").paragraph
-    assert "Hodges-Lehmann shift 0.00, 95% CI from above 0.00 to below 1.00" in text
+    assert "Hodges-Lehmann shift 0.00, 95% CI from above 0.00 to 1.00" in text
     one_sided = report.render(_analysis(x, y, ordinal=True, alternative="greater"),
                               procedure="mann_whitney").paragraph
     assert "one-sided 95% CI above 0;" in one_sided
+
+
+def test_an_open_end_away_from_zero_reads_as_a_plain_interval():
+    # continuous values: the inverted test leaves an end out, but only an end at 0 (no
+    # difference) changes the reading, so the interval reads "a to b" as it usually would
+    rng = np.random.default_rng(11)
+    x, y = rng.normal(12.0, 1.0, 15), rng.normal(10.0, 1.0, 15)
+    analysis = _analysis(list(x), list(y))
+    result = analysis.procedures["mann_whitney"]
+    text = report.render(analysis, procedure="mann_whitney").paragraph
+    assert " CI from above" not in text and " to below " not in text
+    assert report.format_interval(result.interval) in text
