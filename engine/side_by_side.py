@@ -169,7 +169,7 @@ def procedure_table(robustness, alternative: str, labels: tuple[str, str], level
         else:
             p = format_p(row.p_value)
         name = capital(row.name)
-        if row.estimate_name.lower() not in row.name.lower():  # what it estimates, if not named
+        if row.estimate_name.lower() not in row.name.lower() and row.key not in PROBABILITY_KEYS:  # what it estimates, if not named
             name += f" ({row.estimate_name})"
         reading = row_reading(row, alternative, labels)
         if not getattr(row, "votes", True):

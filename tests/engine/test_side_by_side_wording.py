@@ -72,3 +72,14 @@ def test_the_findings_table_does_not_call_a_probability_a_difference():
     assert "minus" not in row
     welch = render(analysis, procedure="welch_t").plain
     assert any(line.startswith("Difference in means, a minus b") for line in welch.splitlines())
+
+
+def test_the_probability_row_is_named_once_without_a_nested_gloss():
+    # the Brunner-Munzel name already says what it estimates (a probability); the generic
+    # "(what it estimates)" gloss would nest brackets inside brackets
+    rng = np.random.default_rng(3)
+    groups = Groups(("a", "b"), rng.normal(1, 1, 12), rng.normal(0, 1, 12))
+    analysis = analyze(groups, Options(n_resamples=200, seed=1))
+    plain = render(analysis).plain
+    [line] = [line for line in plain.splitlines() if line.startswith("Brunner-Munzel")]
+    assert line.count("(") == 0
