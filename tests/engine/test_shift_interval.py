@@ -8,28 +8,15 @@ duality of tests and confidence sets (Lehmann 1963, Annals of Mathematical Stati
 
 from __future__ import annotations
 
-import itertools
 
 import numpy as np
 import pytest
 from scipy import stats
 
 from engine.procedures.ranks import mann_whitney
+from test_ranks import brute_force_p  # every split of the pooled values, mid-ranks for ties
 
 ALTERNATIVES = ("two-sided", "less", "greater")
-
-
-def brute_force_p(x, y, alternative):
-    """Every split of the pooled values into groups of n1 and n2, mid-ranks for ties."""
-    pooled = np.concatenate((x, y))
-    midranks = stats.rankdata(pooled)
-    observed = midranks[: x.size].sum()
-    sums = np.array([midranks[list(c)].sum()
-                     for c in itertools.combinations(range(pooled.size), x.size)])
-    at_least = np.mean(sums >= observed - 1e-9)
-    at_most = np.mean(sums <= observed + 1e-9)
-    return {"greater": at_least, "less": at_most,
-            "two-sided": min(1.0, 2 * min(at_least, at_most))}[alternative]
 
 
 def _cases():
