@@ -188,16 +188,21 @@ def test_choosing_a_procedure_only_changes_the_view(make_window, qtbot, settle, 
     assert window.session.analysis.options.alternative == "less"
 
 
+def _add_bolts_sheet(book) -> None:
+    """A sheet "bolts" of eight invented strengths from two suppliers."""
+    data = book.create_sheet("bolts")
+    data.append(["supplier", "strength"])
+    for k in range(8):
+        data.append(["east" if k % 2 else "west", 800 + 7 * k])
+
+
 def test_a_workbook_with_several_sheets_asks_which(make_window, qtbot, tmp_path, sheets_asked):
     openpyxl = pytest.importorskip("openpyxl")
     book = openpyxl.Workbook()
     notes = book.active
     notes.title = "notes"
     notes.append(["written by", "the lab"])
-    data = book.create_sheet("bolts")
-    data.append(["supplier", "strength"])
-    for k in range(8):
-        data.append(["east" if k % 2 else "west", 800 + 7 * k])
+    _add_bolts_sheet(book)
     path = tmp_path / "bolts.xlsx"
     book.save(path)
     chosen = []
@@ -224,10 +229,7 @@ def test_the_sheet_offered_first_holds_numbers_and_hidden_ones_are_not_offered(m
     old.append(["east", 1.0])
     old.append(["west", 2.0])
     old.sheet_state = "hidden"
-    data = book.create_sheet("bolts")
-    data.append(["supplier", "strength"])
-    for k in range(8):
-        data.append(["east" if k % 2 else "west", 800 + 7 * k])
+    _add_bolts_sheet(book)
     path = tmp_path / "forges.xlsx"
     book.save(path)
     offered = []
