@@ -56,7 +56,8 @@ def choice_rows(analysis, choices, *, procedure: str) -> list[tuple[str, str]]:
     """(what, choice) pairs describing the decisions behind the analysis."""
     from engine.report import format_number
 
-    options = analysis.options
+    spec = analysis.spec
+    statements = spec.statements
     labels = analysis.groups.labels
     source = analysis.source
     columns = source.get("columns") or choices.value_columns
@@ -72,17 +73,17 @@ def choice_rows(analysis, choices, *, procedure: str) -> list[tuple[str, str]]:
     if columns:
         rows.append(("Columns used", ", ".join(str(c) for c in columns)))
     rows += [
-        ("Question", direction_text(options.alternative)),
-        ("Confidence level", level_text(options.confidence_level)),
+        ("Question", direction_text(spec.alternative)),
+        ("Confidence level", level_text(spec.level)),
         ("Procedure followed", _procedure_text(analysis, procedure)),
-        ("Spreads known to be equal", _yes_no(options.equal_spread_known)),
-        ("Values are ordinal ratings", _yes_no(options.ordinal)),
+        ("Spreads known to be equal", _yes_no(statements.equal_spread_known)),
+        ("Values are ordinal ratings", _yes_no(statements.ordinal)),
     ]
-    if options.known_sd is not None:
+    if statements.known_sd is not None:
         rows.append(("Known population SDs",
-                     " and ".join(format_number(s, digits=4) for s in options.known_sd)))
+                     " and ".join(format_number(s, digits=4) for s in statements.known_sd)))
     rows.append(("Resamples for permutation and bootstrap",
-                 f"{options.n_resamples} (random seed {options.seed})"))
+                 f"{spec.resamples} (random seed {spec.seed})"))
     return rows
 
 

@@ -210,7 +210,7 @@ class FindingsPanel(QWidget):
 
     def _fill_table(self, analysis, result) -> None:
         labels = [visible(label) for label in analysis.groups.labels]
-        level = export.level_text(analysis.options.confidence_level)
+        level = export.level_text(analysis.spec.level)
         shown = report.display_numbers(analysis, result.key)
         missing = report.NOT_AVAILABLE
         rows = [

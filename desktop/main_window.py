@@ -651,20 +651,16 @@ class MainWindow(QMainWindow):
         intake = self.session.intake
         if intake is None:
             return
-        choices = self.session.choices
-        source = {"file": choices.path.name if choices.path else None, "sheet": choices.sheet,
-                  "columns": list(choices.value_columns) if choices.layout == "wide"
-                  else [choices.group_column, *choices.value_columns],
-                  "group_column": choices.group_column, "value_columns": list(choices.value_columns)}
-        settings = {name: getattr(choices, name) for name in ANALYSIS_FIELDS}
+        from engine.session import spec_of
+
+        spec = spec_of(self.session.choices, self.session.table)
         self.busy_label.setText("Comparing…")
         self.progress.setValue(0)
 
         def compare(progress: Any, cancelled: Any) -> Any:
-            from engine.analysis import Options, analyze
+            from engine import pipeline
 
-            return analyze(intake.groups, Options(**settings), screening=intake.screening, source=source,
-                           progress=progress, cancelled=cancelled)
+            return pipeline.run(intake, spec, progress=progress, cancelled=cancelled)
 
         self.analysis_worker.run(compare)
 

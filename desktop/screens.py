@@ -29,28 +29,18 @@ def prepared_session(path: Path) -> Any:
 
     Runs on the calling thread (for pictures and quick looks, not for the window).
     """
-    from engine import io
-    from engine.analysis import Options, analyze
+    from engine import pipeline
     from engine.session import Session
+    from engine.spec import AnalysisSpec
 
     session = Session()
-    table = io.read_table(path)
-    proposal = io.propose_layout(table)
-    long = proposal.layout == "long"
-    columns = tuple(proposal.value_columns[:1] if long else proposal.value_columns)
-    session.choose(path=Path(path), layout=proposal.layout, group_column=proposal.group_column,
-                   value_columns=columns)
-    session.store("table", table)
-    values = columns[0] if long else columns
-    intake = io.make_groups(table, values=values, group=proposal.group_column)
-    session.store("intake", intake)
-    choices = session.choices
-    options = Options(alternative=choices.alternative, confidence_level=choices.confidence_level,
-                      n_resamples=choices.n_resamples, seed=choices.seed)
-    source = {"file": Path(path).name, "sheet": choices.sheet,
-              "columns": [c for c in (proposal.group_column, *columns) if c],
-              "group_column": proposal.group_column, "value_columns": list(columns)}
-    session.store("analysis", analyze(intake.groups, options, screening=intake.screening, source=source))
+    prepared = pipeline.from_file(path, AnalysisSpec(seed=session.choices.seed))
+    spec = prepared.spec
+    session.choose(path=Path(path), layout=spec.layout, group_column=spec.group_column,
+                   value_columns=spec.value_columns)
+    session.store("table", prepared.table)
+    session.store("intake", prepared.intake)
+    session.store("analysis", prepared.analysis)
     return session
 
 

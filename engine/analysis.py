@@ -11,12 +11,13 @@ from typing import Any, Callable, Mapping, TypeVar
 
 import numpy as np
 
-from .errors import Cancelled, OptionProblem, TwofoldError, names_its_source
-from .results import (ALTERNATIVES, EffectSize, Finding, GroupSummary, Groups, Interval, ProcedureResult,
+from .errors import Cancelled, TwofoldError, names_its_source
+from .results import (EffectSize, Finding, GroupSummary, Groups, Interval, ProcedureResult,
                       frozen_mapping)
+from .spec import AnalysisSpec
 from .summary import summarize
 
-__all__ = ["Options", "RobustnessRow", "Robustness", "Analysis", "analyze", "PROCEDURE_NAMES"]
+__all__ = ["RobustnessRow", "Robustness", "Analysis", "analyze", "PROCEDURE_NAMES"]
 
 # Above this many values in all, resampling is left out (and the user told why): the large-sample
 # procedures are then accurate, and 10,000 resamples of millions of values would take minutes.
@@ -39,38 +40,6 @@ PROCEDURE_NAMES: Mapping[str, str] = frozen_mapping({
     "bootstrap_mean": "bootstrap interval, difference in means",
     "bootstrap_median": "bootstrap interval, difference in medians",
 })
-
-
-@dataclass(frozen=True)
-class Options:
-    """The user's choices that shape the analysis (not the data)."""
-
-    alternative: str = "two-sided"
-    confidence_level: float = 0.95
-    n_resamples: int = 10_000
-    seed: int | None = None
-    known_sd: tuple[float, float] | None = None
-    equal_spread_known: bool = False
-    ordinal: bool = False
-    rank_method: str = "auto"  # "auto", "exact" or "normal" for the Mann-Whitney p-value
-
-    def __post_init__(self) -> None:
-        _check_options(self)
-
-
-def _check_options(options: Options) -> None:
-    if options.alternative not in ALTERNATIVES:
-        raise OptionProblem(
-            f"The direction must be one of {', '.join(ALTERNATIVES)}, not '{options.alternative}'.")
-    if not 0.5 <= options.confidence_level < 1:
-        raise OptionProblem(
-            f"The confidence level must be at least 0.5 and below 1, not {options.confidence_level}.")
-    if options.n_resamples < 100:
-        raise OptionProblem(f"Use at least 100 resamples, not {options.n_resamples}.")
-    if options.known_sd is not None and not all(np.isfinite(s) and s > 0 for s in options.known_sd):
-        raise OptionProblem("Known standard deviations must be positive numbers.")
-    if options.rank_method not in ("auto", "exact", "normal"):
-        raise OptionProblem(f"Unknown rank method '{options.rank_method}'.")
 
 
 @dataclass(frozen=True)
@@ -124,7 +93,7 @@ EXCHANGEABLE_NOTE = ("It tests that the groups are interchangeable, spread inclu
 @dataclass(frozen=True, eq=False)
 class Analysis:
     groups: Groups
-    options: Options
+    spec: AnalysisSpec        # what was asked, with the seed the resampling used
     summaries: tuple[GroupSummary, GroupSummary]
     diagnostics: Any          # engine.diagnostics.Diagnostics
     recommendation: Any       # engine.advice.Recommendation
@@ -198,7 +167,7 @@ def _part(name: str, run: Callable[[], T], notes: list[Finding]) -> T | None:
 @names_its_source
 def analyze(
     groups: Groups,
-    options: Options = Options(),
+    spec: AnalysisSpec = AnalysisSpec(),
     *,
     screening: Any = None,
     source: Mapping[str, Any] | None = None,
@@ -208,8 +177,11 @@ def analyze(
     """Run every applicable procedure, the checks, the effect sizes and the recommendation.
 
     ``progress(fraction, what)`` is called as the work advances; ``cancelled()`` is polled and a
-    True answer raises :class:`engine.errors.Cancelled`.
+    True answer raises :class:`engine.errors.Cancelled`. A spec without a seed gets a fresh
+    one, recorded in ``Analysis.spec``: every analysis can be run again to the same numbers.
     """
+    spec = spec.with_seed()
+    question, statements = spec.question, spec.statements
     from . import advice, diagnostics, effects
     from .procedures import brunner_munzel, ranks, resampling, t
 
@@ -222,7 +194,7 @@ def analyze(
             raise Cancelled()
         report(fraction, what)
 
-    common = dict(alternative=options.alternative, confidence_level=options.confidence_level)
+    common = dict(alternative=question.alternative, confidence_level=question.level)
     notes: list[Finding] = []
     # Each group is sorted once; the summaries, checks, rank test and effect sizes share the copies.
     ordered = dict(sorted_x=np.sort(x), sorted_y=np.sort(y))
@@ -241,14 +213,14 @@ def analyze(
     step(0.08, "t procedures")
     run("welch_t", lambda: t.welch_t(x, y, **common))
     run("pooled_t", lambda: t.pooled_t(x, y, **common))
-    if options.known_sd is not None:
-        run("z", lambda: t.z_test(x, y, sd=options.known_sd, **common))
+    if statements.known_sd is not None:
+        run("z", lambda: t.z_test(x, y, sd=statements.known_sd, **common))
     step(0.12, "rank procedure")
-    run("mann_whitney", lambda: ranks.mann_whitney(x, y, method=options.rank_method, **common,
+    run("mann_whitney", lambda: ranks.mann_whitney(x, y, method=spec.rank_method, **common,
                                                    cancelled=stop, **ordered))
     run("brunner_munzel", lambda: brunner_munzel.brunner_munzel(x, y, **common, **ordered))
 
-    rng = np.random.default_rng(options.seed)
+    rng = np.random.default_rng(spec.seed)
     resampled = [
         ("permutation_mean", resampling.permutation_test, "mean"),
         ("permutation_median", resampling.permutation_test, "median"),
@@ -266,7 +238,7 @@ def analyze(
         begin = start + i * span
         step(begin, PROCEDURE_NAMES[key])
         run(key, lambda compute=compute, statistic=statistic, begin=begin, key=key: compute(
-            x, y, statistic=statistic, n_resamples=options.n_resamples, rng=rng, **common,
+            x, y, statistic=statistic, n_resamples=spec.resamples, rng=rng, **common,
             progress=lambda f, what="", b=begin, k=key: report(b + f * span, PROCEDURE_NAMES[k]),
             cancelled=stop,
         ))
@@ -280,19 +252,19 @@ def analyze(
         notes.append(Finding("effect_size_left_out", "note", reason))
     with np.errstate(all="ignore"):
         recommendation = advice.recommend(
-            checks, groups, equal_spread_known=options.equal_spread_known, ordinal=options.ordinal,
-            known_sd=options.known_sd,
+            checks, groups, equal_spread_known=statements.equal_spread_known,
+            ordinal=statements.ordinal, known_sd=statements.known_sd,
         )
     step(1.0, "done")
     return Analysis(
         groups=groups,
-        options=options,
+        spec=spec,
         summaries=summaries,
         diagnostics=checks,
         recommendation=recommendation,
         procedures=procedures,
         effect_sizes=sizes,
-        robustness=_robustness(procedures, options.confidence_level,
+        robustness=_robustness(procedures, question.level,
                                spreads_differ=advice.spreads_differ(checks, groups)),
         screening=screening,
         source=source or {},

@@ -15,7 +15,7 @@ from .errors import TwofoldError, quoted
 from .text import visible
 from .wording import plural
 
-__all__ = ["main", "build_parser"]
+__all__ = ["main", "build_parser", "spec_from_arguments"]
 
 EXIT_BAD_INPUT = 2
 EXIT_UNEXPECTED = 1  # as an uncaught error would exit, but with one line instead of a traceback
@@ -61,46 +61,30 @@ def build_parser() -> argparse.ArgumentParser:
     return parser
 
 
-def _load(args):
-    from . import io
+def spec_from_arguments(args):
+    """The analysis spec the command's flags describe (columns left open are proposed later)."""
+    from .question import Question
+    from .spec import AnalysisSpec, Source, Statements
 
-    table = io.read_table(args.path, sheet=args.sheet)
-    proposal = io.propose_layout(table)
-    values = args.value
-    group = args.group
-    if not values:
-        if group is None:
-            group = proposal.group_column
-        # long layout: the first proposed value column; wide: the first two columns
-        values = list(proposal.value_columns[:1] if group is not None else proposal.value_columns[:2])
-    if len(values) == 1 and group is None:
-        group = proposal.group_column
-        if group is None:
-            raise TwofoldError(f"{args.path.name}: name the group column with --group, "
-                               "or give --value twice for one column per group.")
-    if len(values) > 2 and group is None:
-        raise TwofoldError(f"{args.path.name}: give exactly two --value columns for one column per group.")
-    if len(values) > 1 and group is not None:
-        raise TwofoldError(f"{args.path.name}: with --group, give one --value column, not {len(values)}.")
-    value_arg = values[0] if group is not None else tuple(values)
-    intake = io.make_groups(table, values=value_arg, group=group,
-                            pick=tuple(args.groups) if args.groups else None)
-    source = {"file": args.path.name, "sheet": table.sheet, "group_column": group,
-              "value_columns": list(values)}
-    return table, intake, source
+    values = tuple(args.value or ())
+    return AnalysisSpec(
+        source=Source(str(args.path), args.sheet),
+        layout="long" if args.group is not None or len(values) == 1 else "wide",
+        group_column=args.group, value_columns=values,
+        groups=tuple(args.groups) if args.groups else None,
+        question=Question.from_alternative(args.alternative, args.confidence),
+        resamples=args.resamples, seed=args.seed,
+        statements=Statements(known_sd=tuple(args.known_sd) if args.known_sd else None,
+                              equal_spread_known=args.equal_spreads_known, ordinal=args.ordinal),
+    )
 
 
 def _analyze(args, out: TextIO) -> None:
-    from .analysis import Options, analyze
+    from . import pipeline
     from .jsonout import analysis_document
     from .report import render
 
-    _table, intake, source = _load(args)
-    options = Options(alternative=args.alternative, confidence_level=args.confidence,
-                      n_resamples=args.resamples, seed=args.seed,
-                      known_sd=tuple(args.known_sd) if args.known_sd else None,
-                      equal_spread_known=args.equal_spreads_known, ordinal=args.ordinal)
-    analysis = analyze(intake.groups, options, screening=intake.screening, source=source)
+    analysis = pipeline.from_file(spec=spec_from_arguments(args)).analysis
     if args.json:
         json.dump(analysis_document(analysis), out, indent=2, allow_nan=False)
         out.write("\n")

@@ -21,7 +21,7 @@ import numpy as np
 __all__ = ["SCHEMA_VERSION", "to_plain", "analysis_document", "analysis_schema", "intake_document"]
 
 # the "schema_version" member of the --json document (see the module's note)
-SCHEMA_VERSION = 1
+SCHEMA_VERSION = 2
 
 # Arrays kept out of the JSON document: they can be long and are for plotting, not reporting.
 _LEFT_OUT = {"distribution", "qq_theoretical", "qq_observed"}
@@ -72,6 +72,22 @@ def intake_document(intake) -> dict[str, Any]:
     }
 
 
+def options_member(spec) -> dict[str, Any]:
+    """The ``options`` member: the analysis settings under the names the command's first
+    documents used (kept so that scripts reading them go on working)."""
+    statements = spec.statements
+    return {
+        "alternative": spec.question.alternative,
+        "confidence_level": spec.question.level,
+        "n_resamples": spec.resamples,
+        "seed": spec.seed,
+        "known_sd": None if statements.known_sd is None else list(statements.known_sd),
+        "equal_spread_known": statements.equal_spread_known,
+        "ordinal": statements.ordinal,
+        "rank_method": spec.rank_method,
+    }
+
+
 def analysis_document(analysis) -> dict[str, Any]:
     """The whole analysis as one JSON-ready object (the headless command's ``--json``)."""
     document: dict[str, Any] = {
@@ -80,7 +96,8 @@ def analysis_document(analysis) -> dict[str, Any]:
         "n": list(analysis.groups.n),
         "excluded": dict(to_plain(analysis.screening.excluded_counts)) if analysis.screening else {},
         "summary": _summary(analysis.summaries),
-        "options": to_plain(analysis.options),
+        "options": options_member(analysis.spec),
+        "spec": analysis.spec.to_dict(),
         "procedures": to_plain(analysis.procedures),
         "effect_sizes": to_plain(analysis.effect_sizes),
         "diagnostics": to_plain(analysis.diagnostics),

@@ -223,7 +223,7 @@ def _numbers(analysis, key: str, result) -> DisplayNumbers:
     effect = _effect_for(analysis, key)
     effect_decimals = EFFECT_DECIMALS if effect is None else _effect_decimals(effect)
     return DisplayNumbers(
-        level=_level(interval.level if interval is not None else analysis.options.confidence_level),
+        level=_level(interval.level if interval is not None else analysis.spec.level),
         estimate=_fixed(result.estimate, decimals),
         interval=format_interval(interval, decimals=decimals),
         statistic=_statistic_text(key, result.statistic) if STATISTIC_LABEL.get(key) else None,
@@ -296,7 +296,7 @@ def _rank_direction(analysis, key: str, a: str, b: str) -> str:
     share = u1 / (n1 * n2)
     # the robustness view's rule: the test is clear when p is below 1 - level
     clear = (result.p_value is not None
-             and result.p_value < 1 - analysis.options.confidence_level)
+             and result.p_value < 1 - analysis.spec.level)
     if clear and share != 0.5:
         word = "higher" if share > 0.5 else "lower"
         return f"Values of {a} tended to be {word} than those of {b}"
@@ -387,7 +387,7 @@ def _verdict(analysis, key: str, result, numbers: DisplayNumbers) -> str:
     if row is not None and row.finds_difference:
         return f"At {numbers.level} confidence the data give clear evidence of {claim}."
     if against:
-        clear = reverse_is_clear(result.p_value, analysis.options.confidence_level)
+        clear = reverse_is_clear(result.p_value, analysis.spec.level)
         return (f"At {numbers.level} confidence the data give no evidence of {claim}, the "
                 f"direction asked about. {against_sentence(result.alternative, labels, clear)}")
     return (f"At {numbers.level} confidence the data do not give clear evidence of {claim}; "
@@ -400,7 +400,7 @@ def _paragraph(analysis, key: str, result, numbers: DisplayNumbers) -> str:
     prefix = "bootstrap " if key.startswith("bootstrap") else ""
     body = f"{estimate_name} {numbers.estimate}, {_interval_phrase(numbers, result.alternative, prefix)}"
     if key.startswith("bootstrap"):
-        body += f" ({analysis.options.n_resamples:,} resamples)"
+        body += f" ({analysis.spec.resamples:,} resamples)"
     test = _test_phrase(analysis, key, result, numbers)
     sentence = f"{opening}: {body}" + (f"; {test}." if test else ".")
     sentences = [sentence]
@@ -620,7 +620,7 @@ def cautions(analysis) -> list[str]:
 def agreement(analysis) -> str:
     """Whether every applicable procedure gives the same answer, in one to three sentences."""
     robustness = analysis.robustness
-    return agreement_text(robustness, analysis.options.alternative, analysis.groups.labels,
+    return agreement_text(robustness, analysis.spec.alternative, analysis.groups.labels,
                           _level(robustness.level))
 
 
@@ -629,7 +629,7 @@ def _side_by_side_blocks(analysis) -> list[tuple]:
     if not rows:
         return []
     head, body, notes = procedure_table(
-        analysis.robustness, analysis.options.alternative, analysis.groups.labels,
+        analysis.robustness, analysis.spec.alternative, analysis.groups.labels,
         _level(analysis.robustness.level),
         lambda key: _numbers(analysis, key, analysis.procedures[key]))
     blocks = [("h", "Every applicable procedure side by side"), ("p", agreement(analysis)),

@@ -11,9 +11,12 @@ from __future__ import annotations
 
 from dataclasses import dataclass, fields, replace
 from pathlib import Path
-from typing import Any, Callable, Mapping
+from typing import TYPE_CHECKING, Any, Callable, Mapping
 
-__all__ = ["Choices", "Session"]
+if TYPE_CHECKING:
+    from .spec import AnalysisSpec
+
+__all__ = ["Choices", "Session", "spec_of"]
 
 Listener = Callable[[str, Any], None]
 
@@ -37,6 +40,24 @@ class Choices:
     equal_spread_known: bool = False
     ordinal: bool = False
     procedure: str | None = None  # None: follow the recommendation
+
+
+def spec_of(choices: Choices, table: Any = None) -> "AnalysisSpec":
+    """The analysis spec these choices describe (cells set aside are recorded by file row when
+    the table they were set aside in is given)."""
+    from .pipeline import set_aside_cells
+    from .question import Question
+    from .spec import AnalysisSpec, Source, Statements
+
+    return AnalysisSpec(
+        source=None if choices.path is None else Source(str(choices.path), choices.sheet),
+        layout=choices.layout, group_column=choices.group_column,
+        value_columns=tuple(choices.value_columns), groups=choices.picked,
+        set_aside=set_aside_cells(table, choices.set_aside) if table is not None and choices.set_aside else (),
+        question=Question.from_alternative(choices.alternative, choices.confidence_level),
+        resamples=choices.n_resamples, seed=choices.seed,
+        statements=Statements(choices.known_sd, choices.equal_spread_known, choices.ordinal),
+        procedure=choices.procedure)
 
 
 class Session:

@@ -16,15 +16,16 @@ import time
 CHILD = r"""
 import resource, sys, time
 import numpy as np
-from engine.analysis import Options, analyze
+from engine.analysis import analyze
+from engine.spec import AnalysisSpec
 from engine.results import Groups
 n = int(sys.argv[1])
 rng = np.random.default_rng(1)
 groups = Groups(("A", "B"), rng.normal(10.2, 2, n), rng.gamma(4, 2.5, n))
-analyze(Groups(("A", "B"), groups.x[:50], groups.y[:50]), Options(n_resamples=200, seed=0))  # warm imports
+analyze(Groups(("A", "B"), groups.x[:50], groups.y[:50]), AnalysisSpec(resamples=200, seed=0))  # warm imports
 before = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss
 start = time.perf_counter()
-analysis = analyze(groups, Options(n_resamples=10_000, seed=2))
+analysis = analyze(groups, AnalysisSpec(resamples=10_000, seed=2))
 elapsed = time.perf_counter() - start
 peak = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss
 print(f"{elapsed:.3f} {peak / 1024:.0f} {len(analysis.procedures)}")

@@ -40,7 +40,8 @@ def main() -> int:
     from PySide6.QtCore import QElapsedTimer, QEventLoop, QSettings, Qt, QTimer
 
     from desktop.app import start
-    from engine.analysis import Options, analyze
+    from engine.analysis import analyze
+    from engine.spec import AnalysisSpec
 
     ticks: list[tuple[float, float]] = []  # (time, gap before it) in ms
     stages: list[tuple[float, str]] = []   # (time, what the analysis reported) in ms
@@ -96,7 +97,7 @@ def main() -> int:
         window.cleanup()
 
     started = time.perf_counter()
-    analyze(intake.groups, Options(n_resamples=args.resamples, seed=1), screening=intake.screening)
+    analyze(intake.groups, AnalysisSpec(resamples=args.resamples, seed=1), screening=intake.screening)
     direct = time.perf_counter() - started
     end = finished_at[-1] if finished_at else float("inf")
     during = [gap for at, gap in ticks if at <= end]

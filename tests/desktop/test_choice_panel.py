@@ -12,7 +12,9 @@ from PySide6.QtWidgets import QApplication, QLabel  # noqa: E402
 from scipy import stats  # noqa: E402
 
 from engine import report  # noqa: E402
-from engine.analysis import Options, analyze  # noqa: E402
+from engine.spec import AnalysisSpec
+from engine.question import Question
+from engine.analysis import analyze  # noqa: E402
 from engine.results import Groups  # noqa: E402
 from engine.session import Session  # noqa: E402
 from desktop.choice_panel import ChoicePanel, main_reading  # noqa: E402
@@ -29,7 +31,7 @@ def panel(qtbot, groups):
     session = Session()
     widget = ChoicePanel(session)
     qtbot.addWidget(widget)
-    session.store("analysis", analyze(groups, Options(n_resamples=300, seed=4)))
+    session.store("analysis", analyze(groups, AnalysisSpec(resamples=300, seed=4)))
     yield widget
     widget.cleanup()
 
@@ -68,7 +70,7 @@ def test_a_symmetric_sample_shows_no_skewness_rather_than_rounding_noise(qtbot):
     widget = ChoicePanel(session)
     qtbot.addWidget(widget)
     session.store("analysis", analyze(Groups(("slow", "split"), values, values + 0.1),
-                                      Options(n_resamples=200, seed=1)))
+                                      AnalysisSpec(resamples=200, seed=1)))
     figures = _figures(widget.shape_cards[0])
     assert figures[1] == "skewness 0.00"
     # reference: scipy.stats.kurtosis(values, bias=False) = -1.2 for twelve equally spaced values
@@ -93,7 +95,7 @@ def test_tiny_p_values_read_p_below_a_thousandth(qtbot):
     session = Session()
     widget = ChoicePanel(session)
     qtbot.addWidget(widget)
-    session.store("analysis", analyze(skewed, Options(n_resamples=200, seed=1)))
+    session.store("analysis", analyze(skewed, AnalysisSpec(resamples=200, seed=1)))
     # reference: scipy.stats.shapiro(y) and scipy.stats.levene(x, y, center="mean") are both
     # below 0.001 for these data, checked here so the test cannot pass by accident
     assert stats.shapiro(skewed.y).pvalue < 0.001
@@ -139,7 +141,7 @@ def test_a_change_from_elsewhere_is_shown_without_writing_back(panel, groups, mo
     calls = []
     monkeypatch.setattr(session, "choose", lambda **changes: calls.append(changes) or original(**changes))
     session.store("analysis", None)
-    session.store("analysis", analyze(groups, Options(n_resamples=300, seed=4)))
+    session.store("analysis", analyze(groups, AnalysisSpec(resamples=300, seed=4)))
     assert calls == []  # refilling the widgets from the session wrote nothing back
     assert panel.picker.currentData() == "mann_whitney"
     assert panel.ordinal.isChecked() and panel.equal_spread.isChecked()
@@ -154,7 +156,7 @@ def test_plots_are_drawn_again_only_for_a_new_analysis(panel, groups, monkeypatc
     assert drawn == []  # the analysis on show is the same object: only the pick's text follows
     assert panel.picker.currentData() == "mann_whitney"
     assert session.analysis.procedures["mann_whitney"].name in panel.assumes.text()
-    session.store("analysis", analyze(groups, Options(n_resamples=300, seed=5)))
+    session.store("analysis", analyze(groups, AnalysisSpec(resamples=300, seed=5)))
     assert len(drawn) == 5 and len(set(map(id, drawn))) == 5  # each plot once
 
 
@@ -214,8 +216,7 @@ def test_new_figures_replace_the_old_at_once_without_overlap(qtbot, groups):
     swapped = Groups(groups.labels[::-1], groups.y, groups.x)
     for data, alternative, level in ((groups, "two-sided", 0.95), (swapped, "two-sided", 0.95),
                                      (swapped, "less", 0.95), (swapped, "less", 0.9)):
-        session.store("analysis", analyze(data, Options(n_resamples=200, seed=3, alternative=alternative,
-                                                        confidence_level=level)))
+        session.store("analysis", analyze(data, AnalysisSpec(question=Question.from_alternative(alternative, level), resamples=200, seed=3)))
         QApplication.processEvents()  # lays out and paints, but runs no deferred delete
         for card in (*widget.shape_cards, widget.spread_card):
             labels = _shown_figure_labels(card)

@@ -14,7 +14,8 @@ from PySide6.QtWidgets import QApplication  # noqa: E402
 from scipy import stats  # noqa: E402
 
 from engine import report  # noqa: E402
-from engine.analysis import Options, analyze  # noqa: E402
+from engine.spec import AnalysisSpec
+from engine.analysis import analyze  # noqa: E402
 from engine.results import Groups  # noqa: E402
 from engine.session import Session  # noqa: E402
 from desktop import clipboard  # noqa: E402
@@ -53,7 +54,7 @@ def ready_panel(qtbot):
     session = Session()
     panel = FindingsPanel(session)
     qtbot.addWidget(panel)
-    session.store("analysis", analyze(groups, Options(n_resamples=300, seed=9)))
+    session.store("analysis", analyze(groups, AnalysisSpec(resamples=300, seed=9)))
     yield panel, groups
     panel.cleanup()
 

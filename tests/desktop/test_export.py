@@ -15,7 +15,8 @@ import numpy as np  # noqa: E402
 import pytest  # noqa: E402
 
 from engine import io, report  # noqa: E402
-from engine.analysis import Options, analyze  # noqa: E402
+from engine.spec import AnalysisSpec
+from engine.analysis import analyze  # noqa: E402
 from engine.errors import FileProblem  # noqa: E402
 from engine.session import Session  # noqa: E402
 from desktop import export  # noqa: E402
@@ -45,7 +46,7 @@ def panel(qtbot, data_file):
                    set_aside=set_aside, n_resamples=300)
     session.store("table", table)
     session.store("intake", intake)
-    options = Options(n_resamples=300, seed=session.choices.seed)
+    options = AnalysisSpec(resamples=300, seed=session.choices.seed)
     session.store("analysis", analyze(intake.groups, options, screening=intake.screening,
                                       source={"file": data_file.name, "columns": ["coating", "hours"]}))
     widget = FindingsPanel(session)

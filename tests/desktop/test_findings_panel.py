@@ -12,7 +12,9 @@ from PySide6.QtGui import QImage  # noqa: E402
 from scipy import stats  # noqa: E402
 
 from engine import report  # noqa: E402
-from engine.analysis import Options, analyze  # noqa: E402
+from engine.spec import AnalysisSpec
+from engine.question import Question
+from engine.analysis import analyze  # noqa: E402
 from engine.errors import FileProblem  # noqa: E402
 from engine.results import Groups  # noqa: E402
 from engine.session import Session  # noqa: E402
@@ -27,7 +29,7 @@ def groups():
 
 @pytest.fixture
 def analysis(groups):
-    return analyze(groups, Options(n_resamples=400, seed=3))
+    return analyze(groups, AnalysisSpec(resamples=400, seed=3))
 
 
 @pytest.fixture
@@ -153,7 +155,7 @@ def test_the_panels_own_save_button_says_how_it_went(panel, analysis, tmp_path, 
 def test_a_one_sided_question_against_the_data_reads_as_such(panel):
     rng = np.random.default_rng(8)
     groups = Groups(("a", "b"), rng.normal(10, 1, 20), rng.normal(12, 1, 20))
-    analysis = analyze(groups, Options(alternative="greater", n_resamples=300, seed=1))
+    analysis = analyze(groups, AnalysisSpec(question=Question.from_alternative("greater"), resamples=300, seed=1))
     panel.session.store("analysis", analysis)
     assert "none finds a clear difference" not in panel.agreement.text()
     assert "the other way" in panel.agreement.text()

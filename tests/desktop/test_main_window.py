@@ -185,7 +185,7 @@ def test_choosing_a_procedure_only_changes_the_view(make_window, qtbot, settle, 
     window.session.choose(alternative="less")
     assert window.busy
     qtbot.waitUntil(lambda: window.session.analysis is not shown and not window.busy, timeout=60_000)
-    assert window.session.analysis.options.alternative == "less"
+    assert window.session.analysis.spec.alternative == "less"
 
 
 def _add_bolts_sheet(book) -> None:
@@ -354,7 +354,7 @@ def test_each_new_file_starts_from_the_usual_settings_unless_kept(make_window, q
     window = make_window([two_groups_csv])
     qtbot.waitUntil(lambda: window.session.analysis is not None, timeout=60_000)
     window.session.choose(alternative="less", confidence_level=0.9, ordinal=True)
-    qtbot.waitUntil(lambda: window.session.analysis.options.alternative == "less" and not window.busy,
+    qtbot.waitUntil(lambda: window.session.analysis.spec.alternative == "less" and not window.busy,
                     timeout=60_000)
     assert not window.keep_settings_action.isChecked()  # the default: every file starts afresh
     window.open_file(other)
@@ -363,8 +363,8 @@ def test_each_new_file_starts_from_the_usual_settings_unless_kept(make_window, q
     assert "two-sided, 95 %" in window.message_bar.text
     assert "one-sided (group 1 lower), 90 %" in window.message_bar.text
     qtbot.waitUntil(lambda: window.session.analysis is not None and not window.busy, timeout=60_000)
-    options = window.session.analysis.options
-    assert (options.alternative, options.confidence_level) == ("two-sided", 0.95)
+    spec = window.session.analysis.spec
+    assert (spec.alternative, spec.level) == ("two-sided", 0.95)
     assert window.setup_panel.confidence.value() == 95.0
     assert window.setup_panel.question.currentData() == "two-sided"
     assert not window.session.choices.ordinal  # a statement about one file's data never carries over
@@ -372,15 +372,15 @@ def test_each_new_file_starts_from_the_usual_settings_unless_kept(make_window, q
     window.keep_settings_action.trigger()
     assert window.keep_settings_action.isChecked()
     window.session.choose(alternative="greater", confidence_level=0.9, ordinal=True)
-    qtbot.waitUntil(lambda: window.session.analysis.options.alternative == "greater" and not window.busy,
+    qtbot.waitUntil(lambda: window.session.analysis.spec.alternative == "greater" and not window.busy,
                     timeout=60_000)
     window.open_file(two_groups_csv)
     qtbot.waitUntil(lambda: window.session.choices.path == two_groups_csv, timeout=20_000)
     assert window.message_bar.key == "settings_kept"
     assert "one-sided (group 1 higher), 90 %" in window.message_bar.text
     qtbot.waitUntil(lambda: window.session.analysis is not None and not window.busy, timeout=60_000)
-    options = window.session.analysis.options
-    assert (options.alternative, options.confidence_level) == ("greater", 0.9)
+    spec = window.session.analysis.spec
+    assert (spec.alternative, spec.level) == ("greater", 0.9)
     assert not window.session.choices.ordinal
     assert window.settings.value("comparison/keep_settings", type=bool)  # remembered for next time
 

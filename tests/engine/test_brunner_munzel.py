@@ -16,7 +16,9 @@ import pytest
 from scipy import stats
 
 from engine import report
-from engine.analysis import Options, analyze
+from engine.analysis import analyze
+from engine.question import Question
+from engine.spec import AnalysisSpec, Statements
 from engine.errors import OptionProblem
 from engine.jsonout import analysis_document
 from engine.procedures.brunner_munzel import brunner_munzel, placements
@@ -148,8 +150,13 @@ def test_interval_covers_and_test_holds_its_level_under_unequal_spreads():
     assert rejected / reps <= 0.085
 
 
+def _spec(alternative="two-sided", **statements):
+    return AnalysisSpec(seed=1, resamples=200, question=Question.from_alternative(alternative),
+                        statements=Statements(**statements))
+
+
 def _analysis(x, y, **options):
-    return analyze(Groups(("batch A", "batch B"), x, y), Options(seed=1, n_resamples=200, **options))
+    return analyze(Groups(("batch A", "batch B"), x, y), _spec(**options))
 
 
 def test_analysis_runs_it_and_the_json_carries_it():

@@ -11,12 +11,19 @@ import pytest
 from scipy import stats
 
 from engine import report
-from engine.analysis import Options, analyze
+from engine.analysis import analyze
+from engine.question import Question
+from engine.spec import AnalysisSpec, Statements
 from engine.results import Groups
 
 
+def _spec(alternative="two-sided", **statements):
+    return AnalysisSpec(seed=1, resamples=200, question=Question.from_alternative(alternative),
+                        statements=Statements(**statements))
+
+
 def _analysis(x, y, **options):
-    return analyze(Groups(("A", "B"), x, y), Options(seed=1, n_resamples=200, **options))
+    return analyze(Groups(("A", "B"), x, y), _spec(**options))
 
 
 def _share(x, y):

@@ -8,8 +8,10 @@ import pytest
 from scipy import stats
 
 from engine import report
+from engine.spec import AnalysisSpec, Statements
+from engine.question import Question
 from engine.advice import recommend
-from engine.analysis import Analysis, Options, PROCEDURE_NAMES, Robustness
+from engine.analysis import Analysis, PROCEDURE_NAMES, Robustness
 from engine.diagnostics import diagnose
 from engine.errors import OptionProblem
 from engine.procedures import t
@@ -101,7 +103,8 @@ def _analysis(groups, *, alternative="two-sided", extra=None, screening=None, so
                                       alternative)}
     checks = diagnose(groups)
     return Analysis(
-        groups=groups, options=Options(alternative=alternative, **flags),
+        groups=groups, spec=AnalysisSpec(question=Question.from_alternative(alternative), seed=1,
+                                          statements=Statements(**flags)),
         summaries=(summarize(groups.labels[0], x), summarize(groups.labels[1], y)),
         diagnostics=checks, recommendation=recommend(checks, groups, **flags),
         procedures=procedures, effect_sizes=sizes, robustness=Robustness((), True, 0.95),
@@ -361,7 +364,7 @@ def test_render_a_full_analysis_from_analyze(groups):
     pytest.importorskip("engine.effects", reason="effect sizes not in place yet")
     from engine.analysis import analyze
 
-    analysis = analyze(groups, Options(n_resamples=500, seed=3))
+    analysis = analyze(groups, AnalysisSpec(resamples=500, seed=3))
     for key in analysis.procedures:
         text = render(analysis, procedure=key)
         assert text.paragraph and not _parse(text.html).problems
@@ -390,7 +393,7 @@ def test_the_paragraph_says_what_the_result_means_at_the_chosen_level(shift, alt
 
     rng = np.random.default_rng(31)
     groups = Groups(("treated", "control"), rng.normal(10 + shift, 2, 30), rng.normal(10, 2, 30))
-    analysis = analyze(groups, Options(n_resamples=200, seed=1, alternative=alternative))
+    analysis = analyze(groups, AnalysisSpec(question=Question.from_alternative(alternative), resamples=200, seed=1))
     text = render(analysis, procedure="welch_t").paragraph
     # reference: scipy.stats.ttest_ind(x, y, equal_var=False) at the 5% level
     p = stats.ttest_ind(groups.x, groups.y, equal_var=False, alternative=alternative).pvalue
@@ -416,7 +419,7 @@ def full_analysis():
 
     rng = np.random.default_rng(12)
     groups = Groups(("north_forge", "south_forge"), rng.normal(840, 15, 32), rng.normal(818, 27, 30))
-    return analyze(groups, Options(n_resamples=400, seed=2))
+    return analyze(groups, AnalysisSpec(resamples=400, seed=2))
 
 
 def test_plain_paragraphs_are_single_lines(full_analysis):
@@ -471,7 +474,7 @@ def test_a_one_sided_question_against_the_data_is_not_read_as_no_difference():
     rng = np.random.default_rng(5)
     # group 2 clearly higher; the question "is group 1 higher?" (the same as "is group 2 lower?")
     groups = Groups(("a", "b"), rng.normal(10, 1, 20), rng.normal(12, 1, 20))
-    analysis = analyze(groups, Options(alternative="greater", n_resamples=300, seed=1))
+    analysis = analyze(groups, AnalysisSpec(question=Question.from_alternative("greater"), resamples=300, seed=1))
     # reference: scipy.stats.ttest_ind(x, y, equal_var=False): t far below 0 (about -5.5)
     two_sided = stats.ttest_ind(groups.x, groups.y, equal_var=False)
     assert two_sided.statistic < -4
@@ -484,6 +487,6 @@ def test_a_one_sided_question_against_the_data_is_not_read_as_no_difference():
     assert "every one of them puts a lower than b, the other way" in agreement
     assert "not clear: the data point the other way" in text.plain
     # asked the right way round, the same data give the ordinary verdict
-    right = analyze(groups, Options(alternative="less", n_resamples=300, seed=1))
+    right = analyze(groups, AnalysisSpec(question=Question.from_alternative("less"), resamples=300, seed=1))
     assert "other way" not in render(right, procedure="welch_t").paragraph
     assert "all find clear evidence of a being lower than b" in report.agreement(right)

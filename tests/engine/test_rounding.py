@@ -8,6 +8,7 @@ from hypothesis import assume, given, settings
 from hypothesis import strategies as st
 
 from engine import report
+from engine.spec import AnalysisSpec
 from engine.rounding import fixed, format_number, format_p, shared_decimals
 
 _FINITE = st.floats(allow_nan=False, allow_infinity=False, min_value=-1e300, max_value=1e300)
@@ -54,12 +55,12 @@ def test_values_near_a_billion_are_told_apart():
 
 
 def test_the_report_tells_the_quartiles_of_offset_data_apart():
-    from engine.analysis import Options, analyze
+    from engine.analysis import analyze
     from engine.results import Groups
 
     rng = np.random.default_rng(4)
     groups = Groups(("line a", "line b"), 1e9 + rng.normal(10, 3, 20), 1e9 + rng.normal(5, 3, 20))
-    analysis = analyze(groups, Options(n_resamples=200, seed=1))
+    analysis = analyze(groups, AnalysisSpec(resamples=200, seed=1))
     text = report.render(analysis, procedure="mann_whitney").paragraph
     first = text.split("line a (", 1)[1].split(")", 1)[0]
     numbers = [part.split()[-1] for part in first.replace(" to ", ", ").split(", ")[:3]]

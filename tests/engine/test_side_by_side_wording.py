@@ -4,7 +4,8 @@ plural, and a probability is not labelled as a difference."""
 
 import numpy as np
 
-from engine.analysis import Options, analyze
+from engine.analysis import analyze
+from engine.spec import AnalysisSpec
 from engine.report import render
 from engine.results import Groups
 from engine.wording import name_list
@@ -28,7 +29,7 @@ def _separated_triplicates():
     # tests cannot reach 0.05 with 3 + 3 values (smallest two-sided exact p = 2/20 = 0.1,
     # the number of ways to choose 3 of 6 is 20: handbook combinatorics)
     return analyze(Groups(("A", "B"), np.array([10.1, 10.3, 9.9]), np.array([20.2, 19.8, 20.1])),
-                   Options(n_resamples=400, seed=1))
+                   AnalysisSpec(resamples=400, seed=1))
 
 
 def test_a_disagreement_names_each_procedure_apart():
@@ -53,7 +54,7 @@ def test_a_single_row_not_counted_keeps_the_singular():
     # spreads far apart, 8 against 25 values: the permutation tests do not vote, the
     # bootstrap does not either; every reason names its rows in the right number
     analysis = analyze(Groups(("x", "y"), rng.normal(10, 5, 8), rng.normal(12, 0.5, 25)),
-                       Options(n_resamples=400, seed=1))
+                       AnalysisSpec(resamples=400, seed=1))
     notes = [line for line in render(analysis).plain.splitlines()
              if line.startswith("Not counted in whether the procedures agree:")]
     assert notes
@@ -66,7 +67,7 @@ def test_a_single_row_not_counted_keeps_the_singular():
 def test_the_findings_table_does_not_call_a_probability_a_difference():
     rng = np.random.default_rng(5)
     analysis = analyze(Groups(("a", "b"), rng.normal(10, 1, 15), rng.normal(11, 1, 15)),
-                       Options(n_resamples=400, seed=1))
+                       AnalysisSpec(resamples=400, seed=1))
     plain = render(analysis, procedure="brunner_munzel").plain
     row = next(line for line in plain.splitlines() if line.startswith("Probability that"))
     assert "minus" not in row
@@ -79,7 +80,7 @@ def test_the_probability_row_is_named_once_without_a_nested_gloss():
     # "(what it estimates)" gloss would nest brackets inside brackets
     rng = np.random.default_rng(3)
     groups = Groups(("a", "b"), rng.normal(1, 1, 12), rng.normal(0, 1, 12))
-    analysis = analyze(groups, Options(n_resamples=200, seed=1))
+    analysis = analyze(groups, AnalysisSpec(resamples=200, seed=1))
     plain = render(analysis).plain
     [line] = [line for line in plain.splitlines() if line.startswith("Brunner-Munzel")]
     assert line.count("(") == 0

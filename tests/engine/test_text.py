@@ -12,7 +12,8 @@ import numpy as np
 import pytest
 
 from engine import io
-from engine.analysis import Options, analyze
+from engine.spec import AnalysisSpec
+from engine.analysis import analyze
 from engine.errors import DataProblem
 from engine.report import render
 from engine.text import visible, visible_html
@@ -159,7 +160,7 @@ def test_the_report_escapes_labels_in_plain_text_and_html(tmp_path):
     proposal = io.propose_layout(table)
     intake = io.make_groups(table, values=proposal.value_columns[0], group=proposal.group_column)
     assert set(intake.groups.labels) == {first, second}  # the data keep the labels as they are
-    analysis = analyze(intake.groups, Options(n_resamples=200, seed=1), screening=intake.screening,
+    analysis = analyze(intake.groups, AnalysisSpec(resamples=200, seed=1), screening=intake.screening,
                        source={"file": path.name, "group_column": proposal.group_column,
                                "value_columns": list(proposal.value_columns[:1])})
     text = render(analysis)
