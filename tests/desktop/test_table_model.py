@@ -36,12 +36,10 @@ def million() -> Table:
 def test_million_rows_answer_the_last_row_without_building_the_others(million):
     model = FrameModel()
     tracemalloc.start()
-    started = time.perf_counter()
     model.set_table(million)
     index = model.index(999_999, 1)
     text = model.data(index)
     label = model.data(model.index(999_999, 0))
-    elapsed = time.perf_counter() - started
     _, peak = tracemalloc.get_traced_memory()
     tracemalloc.stop()
     assert model.rowCount() == 1_000_000
@@ -51,7 +49,6 @@ def test_million_rows_answer_the_last_row_without_building_the_others(million):
     assert label == million.frame["line"].iloc[999_999]
     # one Python object per row would cost at least 8 MB for 1,000,000 rows
     assert peak < 1_000_000, f"filling the model allocated {peak} bytes"
-    assert elapsed < 0.5
 
 
 def test_model_passes_qt_consistency_checks(qtmodeltester):
