@@ -22,6 +22,8 @@ PACKAGES = ("engine", "desktop")
 LAYERS: tuple[tuple[str, ...], ...] = (
     # engine: the words, the errors and the typed results everything else speaks in
     ("engine", "engine.text", "engine.errors", "engine.wording", "engine.results", "engine.rounding"),
+    # what the user asks and decided: plain records the analysis reads
+    ("engine.question", "engine.spec"),
     # statistics helpers of one group (sorted values, the common scale, SD), also used by io
     ("engine.summary",),
     # from a file to a table and two groups; the package's front last, so io's own modules
@@ -39,8 +41,8 @@ LAYERS: tuple[tuple[str, ...], ...] = (
     ("engine.analysis",),
     # an analysis in words, tables and JSON
     ("engine.side_by_side", "engine.report", "engine.jsonout"),
-    # the user's decisions and the path from a file to a report
-    ("engine.session", "engine.spec", "engine.pipeline"),
+    # the path from a file to an analysis, and the window's session over it
+    ("engine.pipeline", "engine.session"),
     # the headless command
     ("engine.cli",),
     ("engine.__main__",),
