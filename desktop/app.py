@@ -12,7 +12,7 @@ import sys
 from pathlib import Path
 from typing import Any, Sequence
 
-__all__ = ["main", "start", "build_parser", "run_panel", "FIRST_PAINT_WAIT_MS"]
+__all__ = ["main", "start", "build_parser", "FIRST_PAINT_WAIT_MS"]
 
 # How long the window waits for the file of the command line before it first shows: a small
 # file then appears with the window; a large one keeps loading with a progress bar.
@@ -144,26 +144,3 @@ def main(argv: Sequence[str] | None = None) -> int:
     finally:
         _tear_down(window, excepthook)
 
-
-def run_panel(panel_class: type, argv: Sequence[str]) -> int:  # pragma: no cover - a manual look
-    """Show one panel on its own over the file ``argv[1]`` (``python -m desktop.<panel> FILE``)."""
-    from engine import io
-    from engine.session import Session
-
-    app = _application()
-    session = Session()
-    if len(argv) > 1:
-        table = io.read_table(Path(argv[1]))
-        proposal = io.propose_layout(table)
-        session.choose(path=Path(argv[1]), layout=proposal.layout, group_column=proposal.group_column,
-                       value_columns=tuple(proposal.value_columns))
-        session.store("table", table)
-        values = proposal.value_columns[0] if proposal.layout == "long" else tuple(proposal.value_columns)
-        try:
-            session.store("intake", io.make_groups(table, values=values, group=proposal.group_column))
-        except Exception as problem:  # noqa: BLE001 - show it, as the window would
-            session.store("problem", str(problem))
-    panel = panel_class(session)
-    panel.resize(900, 600)
-    panel.show()
-    return app.exec()

@@ -387,11 +387,7 @@ class DataPanel(QWidget):
         self._session.unsubscribe(self._on_session)
 
 
-def _run_alone(argv: list[str]) -> int:  # pragma: no cover - a quick manual look
-    from .app import run_panel
+if __name__ == "__main__":  # pragma: no cover - a quick look by hand
+    from .panel_alone import show_alone
 
-    return run_panel(DataPanel, argv)
-
-
-if __name__ == "__main__":  # pragma: no cover
-    sys.exit(_run_alone(sys.argv))
+    sys.exit(show_alone(DataPanel, sys.argv))

@@ -83,10 +83,8 @@ def data_home(environ: Mapping[str, str] | None = None) -> Path:
 
 
 def _installed() -> bool:
-    try:
-        from importlib.metadata import PackageNotFoundError, distribution
-    except ImportError:  # pragma: no cover - always there on Python 3.11
-        return False
+    from importlib.metadata import PackageNotFoundError, distribution
+
     try:
         distribution("twofold")
     except PackageNotFoundError:

@@ -25,8 +25,8 @@ from engine.text import visible, visible_html
 from engine.side_by_side import NO_INTERVAL_WHY
 
 from . import clipboard, export
-from .choice_panel import FlowLayout, heading, hint_and_body, text_label
 from .icons import icon
+from .panel_parts import FlowLayout, heading, hint_and_body, text_label
 from .plots import BoxPlot, IntervalPlot, document_palette, plot_image, save_plot
 
 __all__ = ["FindingsPanel", "GENERAL_CAUTIONS", "STATISTIC_TIPS"]
@@ -392,6 +392,6 @@ def _report_images(analysis, key: str) -> list[tuple[str, QImage]]:
 if __name__ == "__main__":  # pragma: no cover - a quick look by hand
     import sys
 
-    from .screens import show_alone
+    from .panel_alone import show_alone
 
     sys.exit(show_alone(FindingsPanel, sys.argv))

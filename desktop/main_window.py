@@ -253,10 +253,8 @@ class MainWindow(QMainWindow):
     def apply_icons(self) -> None:
         """Give the window and its actions their icons (drawn after the first paint: it takes a
         noticeable moment to render them)."""
-        try:
-            from .icons import icon
-        except ImportError:
-            return
+        from .icons import icon
+
         for target, name in self._icons_wanted:
             try:
                 picture = icon(name)
@@ -405,25 +403,18 @@ class MainWindow(QMainWindow):
 
         def warm_up(progress: Any, cancelled: Any) -> None:
             for module in WARM_IN_WORKER:
-                try:
-                    importlib.import_module(module)
-                except ImportError:
-                    pass
+                importlib.import_module(module)
 
         self.import_worker.run(warm_up)
 
     def _add_late_panels(self) -> None:
+        if all(getattr(self, attribute) is not None for attribute, *_ in LATE_PANELS):
+            return  # already in (asked for early by copy or export)
         for index, (attribute, module, name, title, tip) in enumerate(LATE_PANELS):
             if getattr(self, attribute) is not None:
                 continue
-            try:
-                panel = getattr(importlib.import_module(module), name)(self.session, self)
-            except ImportError:
-                panel = QLabel("This part is not available yet.", self)
-                panel.setAlignment(Qt.AlignmentFlag.AlignCenter)
-                setattr(self, attribute, None)
-            else:
-                setattr(self, attribute, panel)
+            panel = getattr(importlib.import_module(module), name)(self.session, self)
+            setattr(self, attribute, panel)
             old = self.tabs.widget(index)
             self.tabs.removeTab(index)
             old.deleteLater()
@@ -712,12 +703,11 @@ class MainWindow(QMainWindow):
 
     # -- copy and export -----------------------------------------------------------------------
     def _findings(self) -> Any:
-        if self.findings_panel is None:
-            self.message_bar.show_message("part_missing")
-            return None
         if self.session.analysis is None:
             self.message_bar.show_message("nothing_yet")
             return None
+        if self.findings_panel is None:  # asked for before the late panels came in: bring them now
+            self._add_late_panels()
         return self.findings_panel
 
     def copy_findings(self) -> None:

@@ -58,7 +58,6 @@ _DECLARED = (
     Message("copied", "info", "Copied {what} to the clipboard."),
     Message("saved", "info", "Saved {name} in {folder}."),
     Message("save_failed", "error", "Could not save {name}: {reason}"),
-    Message("part_missing", "warning", "This part of the window is not available in this version."),
     Message("registered", "info",
             "Twofold now appears under Open With for data files ({where}). To make it the default for a "
             "type, right-click such a file, choose Open With, pick Twofold and choose to use it always."),

@@ -16,44 +16,13 @@ import time
 from pathlib import Path
 from typing import Any
 
-__all__ = ["SCREEN_DIR", "DEFAULT_FILE", "prepared_session", "dark_palette", "shoot", "show_alone"]
+from .panel_alone import DEFAULT_FILE
+
+__all__ = ["SCREEN_DIR", "DEFAULT_FILE", "dark_palette", "shoot"]
 
 ROOT = Path(__file__).resolve().parent.parent
 SCREEN_DIR = ROOT / "icons" / "screens"
-DEFAULT_FILE = ROOT / "demo_files" / "adhesive_cure_times.csv"
 WINDOW_SIZE = (1440, 900)  # 90% of a 1600 x 1000 screen, as the window opens there
-
-
-def prepared_session(path: Path) -> Any:
-    """A session over ``path`` with the engine's proposed layout and the finished analysis.
-
-    Runs on the calling thread (for pictures and quick looks, not for the window).
-    """
-    from engine import pipeline
-    from engine.session import Session
-    from engine.spec import AnalysisSpec
-
-    session = Session()
-    prepared = pipeline.from_file(path, AnalysisSpec(seed=session.choices.seed))
-    spec = prepared.spec
-    session.choose(path=Path(path), layout=spec.layout, group_column=spec.group_column,
-                   value_columns=spec.value_columns)
-    session.store("table", prepared.table)
-    session.store("intake", prepared.intake)
-    session.store("analysis", prepared.analysis)
-    return session
-
-
-def show_alone(panel_class: type, argv: list[str]) -> int:  # pragma: no cover - a look by hand
-    """Show one panel over the file ``argv[1]`` (default: the demo file) with its analysis."""
-    from PySide6.QtWidgets import QApplication
-
-    app = QApplication.instance() or QApplication(argv[:1])
-    session = prepared_session(Path(argv[1]) if len(argv) > 1 else DEFAULT_FILE)
-    panel = panel_class(session)
-    panel.resize(1000, 900)
-    panel.show()
-    return app.exec()
 
 
 def dark_palette() -> Any:
@@ -94,8 +63,10 @@ def _save(widget: Any, name: str) -> Path:
 
 
 def shoot(path: Path, *, dark: bool = False) -> list[Path]:
-    """Save the window's tabs (or, without the main window, the two panels) as PNG files."""
-    from PySide6.QtWidgets import QApplication, QTabWidget
+    """Save the window's data and set-up, each of its tabs and each late panel in full as PNG files."""
+    from PySide6.QtWidgets import QApplication
+
+    from .main_window import MainWindow
 
     app = QApplication.instance() or QApplication([sys.argv[0]])
     if dark:
@@ -103,46 +74,22 @@ def shoot(path: Path, *, dark: bool = False) -> list[Path]:
         app.setPalette(dark_palette())
     suffix = "-dark" if dark else ""
     written = []
-    try:
-        from .main_window import MainWindow
-    except ImportError:
-        MainWindow = None
-    if MainWindow is not None:
-        window = MainWindow()
-        window.resize(*WINDOW_SIZE)
-        window.show()
-        window.open_file(path)
-        _settle(app, 60, lambda: window.session.analysis is not None and window.findings_panel is not None)
-        _settle(app, 0.5)
-        written.append(_save(window.splitter.widget(0), f"0-your-data{suffix}"))
-        tabs = window.findChild(QTabWidget)
-        if tabs is None:
-            written.append(_save(window, f"window{suffix}"))
-        else:
-            for index in range(tabs.count()):
-                tabs.setCurrentIndex(index)
-                _settle(app, 0.3)
-                name = tabs.tabText(index).replace("&", "").strip().lower().replace(" ", "-")
-                written.append(_save(window, f"{index + 1}-{name}{suffix}"))
-        for name in ("choice_panel", "findings_panel"):
-            panel = getattr(window, name, None)
-            if panel is not None and hasattr(panel, "scroll"):
-                written.append(_save(panel.scroll.widget(), f"{name.replace('_', '-')}-whole{suffix}"))
-        window.cleanup()
-        window.close()
-        return written
-    from .choice_panel import ChoicePanel
-    from .findings_panel import FindingsPanel
-
-    session = prepared_session(path)
-    for number, panel_class in enumerate((ChoicePanel, FindingsPanel), start=3):
-        panel = panel_class(session)
-        panel.resize(*WINDOW_SIZE)
-        panel.show()
+    window = MainWindow()
+    window.resize(*WINDOW_SIZE)
+    window.show()
+    window.open_file(path)
+    _settle(app, 60, lambda: window.session.analysis is not None and window.findings_panel is not None)
+    _settle(app, 0.5)
+    written.append(_save(window.splitter.widget(0), f"0-your-data{suffix}"))
+    for index in range(window.tabs.count()):
+        window.tabs.setCurrentIndex(index)
         _settle(app, 0.3)
-        written.append(_save(panel, f"{number}-{panel_class.__name__.lower()}{suffix}"))
-        panel.cleanup()
-        panel.close()
+        name = window.tabs.tabText(index).replace("&", "").strip().lower().replace(" ", "-")
+        written.append(_save(window, f"{index + 1}-{name}{suffix}"))
+    for name in ("choice_panel", "findings_panel"):
+        written.append(_save(getattr(window, name).scroll.widget(), f"{name.replace('_', '-')}-whole{suffix}"))
+    window.cleanup()
+    window.close()
     return written
 
 

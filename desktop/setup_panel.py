@@ -29,10 +29,10 @@ from PySide6.QtWidgets import (
     QWidget,
 )
 
+from engine.io.layout import trimmed_levels
 from engine.text import visible
 
 from .plain_text import plain_label
-from .table_model import format_cell
 
 __all__ = ["SetupPanel", "QUESTIONS", "group_levels", "MAX_LEVELS"]
 
@@ -51,13 +51,7 @@ def group_levels(table: Any, column: str | None) -> list[str]:
     appearance), at most MAX_LEVELS of them."""
     if table is None or column is None or column not in table.frame.columns:
         return []
-    try:
-        from engine.io.layout import trimmed_levels
-
-        labels = trimmed_levels(table, column)[0]
-    except ImportError:  # an engine without the helper: the same rule, done here
-        labels = list(dict.fromkeys(t for t in (format_cell(v).strip() for v in table.frame[column].unique()) if t))
-    return list(labels[:MAX_LEVELS])
+    return list(trimmed_levels(table, column)[0][:MAX_LEVELS])
 
 
 def _fill(combo: QComboBox, items: Sequence[str], current: str | None, *, blank: str | None = None) -> None:
@@ -329,11 +323,7 @@ class SetupPanel(QWidget):
         self._session.unsubscribe(self._on_session)
 
 
-def _run_alone(argv: list[str]) -> int:  # pragma: no cover - a quick manual look
-    from .app import run_panel
+if __name__ == "__main__":  # pragma: no cover - a quick look by hand
+    from .panel_alone import show_alone
 
-    return run_panel(SetupPanel, argv)
-
-
-if __name__ == "__main__":  # pragma: no cover
-    sys.exit(_run_alone(sys.argv))
+    sys.exit(show_alone(SetupPanel, sys.argv))
