@@ -15,6 +15,7 @@ import pandas as pd
 from ..results import Finding, frozen_mapping
 from ..rounding import fixed, shared_decimals
 from .layout import looks_like_id_name
+from .repeats import pairs_by_chance, surprising_below
 
 __all__ = [
     "Exclusion",
@@ -239,8 +240,6 @@ def repeated_rows_finding(table, repeated: np.ndarray, counted, where: str) -> F
     """The finding on rows that repeat an earlier row: a note asking about copying only when
     that many repeats are unlikely by chance for columns like these (see
     :func:`engine.io.repeats.pairs_by_chance`), else a line for the record."""
-    from .repeats import pairs_by_chance, surprising_below
-
     count = int(repeated.size)
     rows = np.flatnonzero(counted() & ~table.frame.isna().all(axis=1).to_numpy())
     threshold = surprising_below(count)
