@@ -21,6 +21,7 @@ __all__ = [
     "Exclusion",
     "ScreeningReport",
     "EXCLUSION_REASONS",
+    "EXCLUSION_WORDS",
     "MAX_LISTED_EXCLUSIONS",
     "FAR_OUT_IQR",
     "possible_slips",
@@ -29,7 +30,16 @@ __all__ = [
     "repeated_rows_finding",
 ]
 
-EXCLUSION_REASONS: tuple[str, ...] = ("missing", "non_numeric", "infinite", "set_aside")
+# Why a value was left out of its group, in the words every count and list of left-out values
+# uses (the report, the window, the exported report); read after a count ("3 not a number"),
+# as a heading ("not a number: 3") or as the reason beside one cell.
+EXCLUSION_WORDS: Mapping[str, str] = frozen_mapping({
+    "missing": "blank or marked as missing",
+    "non_numeric": "not a number",
+    "infinite": "infinite",
+    "set_aside": "set aside by hand",
+})
+EXCLUSION_REASONS: tuple[str, ...] = tuple(EXCLUSION_WORDS)
 MAX_LISTED_EXCLUSIONS = 1000
 FAR_OUT_IQR = 3.0       # Tukey's "far out" fence: beyond 3 IQR from the quartiles
 INNER_IQR = 1.5         # Tukey's inner fence
