@@ -287,7 +287,8 @@ class DataPanel(QWidget):
             from engine.io.screening import EXCLUSION_WORDS  # loaded with the screening it words
 
             for item in screening.exclusions:
-                excluded[(int(item.frame_row), str(item.column))] = EXCLUSION_WORDS.get(item.reason, item.reason)
+                why = EXCLUSION_WORDS.get(item.reason, item.reason)
+                excluded[(int(item.frame_row), str(item.column))] = f"{why} ('{item.text}')" if item.text else why
         set_aside = dict(self._session.choices.set_aside or {})
         self.model.set_marks(excluded=excluded, set_aside=set_aside)
         self.report.setHtml(screening_html(self._session.table, screening, set_aside=set_aside,

@@ -60,8 +60,11 @@ def test_a_left_out_cell_says_why_in_the_shared_words(qtbot, session):
     qtbot.addWidget(panel)
     try:
         model = panel.model
-        for reason in ("missing", "non_numeric", "infinite"):
-            tip = model.data(model.index(LEFT_OUT[reason], 1), Qt.ItemDataRole.ToolTipRole)
-            assert tip == f"<span>Left out of the comparison: {EXCLUSION_WORDS[reason]}</span>"
+        tips = {reason: model.data(model.index(LEFT_OUT[reason], 1), Qt.ItemDataRole.ToolTipRole)
+                for reason in ("missing", "non_numeric", "infinite")}
+        assert tips["missing"] == f"<span>Left out of the comparison: {EXCLUSION_WORDS['missing']}</span>"
+        for reason, text in (("non_numeric", "broken"), ("infinite", "inf")):  # the cell's text beside
+            assert tips[reason].startswith(f"<span>Left out of the comparison: {EXCLUSION_WORDS[reason]} (")
+            assert text in tips[reason]
     finally:
         panel.cleanup()
