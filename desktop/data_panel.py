@@ -41,14 +41,6 @@ FIT_ROWS = 100  # rows looked at when fitting the column widths
 MAX_COPY_CELLS = 200_000  # a larger selection is copied only up to this many cells
 _BRING_BACK = "bring-back"
 
-# the screening's reasons for leaving a cell out, in the words the report uses
-REASON_WORDS: Mapping[str, str] = {
-    "missing": "blank or marked as missing",
-    "non_numeric": "not a number",
-    "infinite": "infinite",
-    "set_aside": "set aside by you",
-}
-
 AskReason = Callable[[str], "str | None"]
 
 
@@ -110,7 +102,9 @@ def _groups_html(screening: Any) -> str:
         parts.append(f"<p><b>Compared</b> (group 1 first)</p><ul>{rows}</ul>")
     left_out = [(reason, n) for reason, n in _pairs(getattr(screening, "excluded_counts", None)) if n]
     if left_out:
-        rows = "".join(f"<li>{_escape(REASON_WORDS.get(reason, reason))}: {n:,}</li>" for reason, n in left_out)
+        from engine.io.screening import EXCLUSION_WORDS  # loaded with the screening it words
+
+        rows = "".join(f"<li>{_escape(EXCLUSION_WORDS.get(reason, reason))}: {n:,}</li>" for reason, n in left_out)
         parts.append(f"<p><b>Left out</b> (hover over a grey cell to see why)</p><ul>{rows}</ul>")
     others = _count(getattr(screening, "other_group_rows", 0))
     if others:
@@ -289,8 +283,12 @@ class DataPanel(QWidget):
         intake = self._session.intake
         screening = getattr(intake, "screening", None)
         excluded = {}
-        for item in getattr(screening, "exclusions", ()) or ():
-            excluded[(int(item.frame_row), str(item.column))] = item.text or item.reason
+        if screening is not None:
+            from engine.io.screening import EXCLUSION_WORDS  # loaded with the screening it words
+
+            for item in screening.exclusions:
+                why = EXCLUSION_WORDS.get(item.reason, item.reason)
+                excluded[(int(item.frame_row), str(item.column))] = f"{why} ('{item.text}')" if item.text else why
         set_aside = dict(self._session.choices.set_aside or {})
         self.model.set_marks(excluded=excluded, set_aside=set_aside)
         self.report.setHtml(screening_html(self._session.table, screening, set_aside=set_aside,

@@ -95,20 +95,14 @@ def _procedure_text(analysis, procedure: str) -> str:
     return f"{name} (picked by the user; the suggestion was {suggested.name})"
 
 
-_REASONS = {
-    "missing": "empty or marked as missing",
-    "non_numeric": "not a number",
-    "infinite": "an infinite value",
-    "set_aside": "set aside by the user",
-}
-
-
 def set_aside_rows(analysis, choices) -> list[tuple[str, str]]:
     """(where, why) pairs for every value left out of the groups (as the screening lists them).
 
     A value the user set aside carries the reason the user gave. When the screening listed only
     some of the values it left out, a last row gives the count of the others by reason.
     """
+    from engine.io.screening import EXCLUSION_WORDS  # loaded with the screening it words
+
     screening = analysis.screening
     if screening is None:
         return []
@@ -121,7 +115,7 @@ def set_aside_rows(analysis, choices) -> list[tuple[str, str]]:
             where += f", group {item.group}"
         if item.text:
             where += f": '{item.text}'"
-        why = _REASONS.get(item.reason, item.reason)
+        why = EXCLUSION_WORDS.get(item.reason, item.reason)
         if item.reason == "set_aside" and given.get((item.frame_row, item.column)):
             why += f" ({given[(item.frame_row, item.column)]})"
         rows.append((where, why))
@@ -130,7 +124,7 @@ def set_aside_rows(analysis, choices) -> list[tuple[str, str]]:
                 for reason, count in screening.excluded_counts.items() if count > listed.get(reason, 0)}
     if unlisted:
         rows.append(("other rows, not listed one by one",
-                     "; ".join(f"{count} {_REASONS.get(reason, reason)}" for reason, count in unlisted.items())))
+                     "; ".join(f"{count} {EXCLUSION_WORDS.get(reason, reason)}" for reason, count in unlisted.items())))
     return rows
 
 

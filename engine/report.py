@@ -8,6 +8,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
+from .io.screening import EXCLUSION_WORDS
 from .text import visible, visible_html
 
 __all__ = ["ReportText", "DisplayNumbers", "render", "display_numbers", "format_p", "format_number",
@@ -349,17 +350,8 @@ def _test_phrase(analysis, key: str, result, numbers: DisplayNumbers) -> str:
     return ", ".join(parts)
 
 
-# How each reason for leaving a value out is written (engine.io.screening.EXCLUSION_REASONS).
-EXCLUSION_WORDS: dict[str, str] = {
-    "missing": "empty or missing",
-    "non_numeric": "not a number",
-    "infinite": "infinite",
-    "set_aside": "set aside after review",
-}
-
-
 def _exclusions(analysis) -> str:
-    """ "4 values were left out before the comparison (3 empty or missing, 1 not a number)." """
+    """ "4 values were left out before the comparison (3 blank or marked as missing, 1 not a number)." """
     screening = analysis.screening
     counts = getattr(screening, "excluded_counts", None) if screening is not None else None
     if not counts:

@@ -13,7 +13,6 @@ from ..results import Finding, Groups
 from ..wording import plural
 from ._files import wrap_unexpected
 from .cells import cell_text, is_missing_marker
-from .layout import trimmed_levels
 from .repeats import duplicate_rows
 from .screening import repeated_rows_finding
 from .screening import (
@@ -195,7 +194,7 @@ def _make_groups(table, *, values, group, pick, set_aside) -> Intake:
 
 
 def _long_cells(table, value, group, pick, findings, extra):
-    labels, codes, spellings = trimmed_levels(table, group)
+    labels, codes, spellings = table.levels(group)
     if not labels:
         raise DataProblem(f"Column '{group}' of {table.path.name} holds no group labels.")
     if pick is None:

@@ -6,10 +6,9 @@ import re
 from dataclasses import dataclass
 
 import numpy as np
-import pandas as pd
 
 from ..errors import ColumnProblem, about_file, listing, quoted
-from .table import Table
+from .table import Spellings, Table
 
 __all__ = ["LayoutProposal", "propose_layout", "looks_like_id_name", "trimmed_levels", "MAX_GROUP_LEVELS"]
 
@@ -36,52 +35,10 @@ class LayoutProposal:
     reasons: tuple[str, ...]
 
 
-def trimmed_levels(table: Table, column: str) -> tuple[list[str], np.ndarray, "_Spellings"]:
+def trimmed_levels(table: Table, column: str) -> tuple[list[str], np.ndarray, Spellings]:
     """Trimmed labels in order of first appearance, each row's label index (-1 for a blank
-    label), and the raw spellings merged under each trimmed label (cached per column)."""
-    if column not in table._levels:
-        table._levels[column] = _trimmed_levels(table, column)
-    return table._levels[column]
-
-
-def _trimmed_levels(table: Table, column: str) -> tuple[list[str], np.ndarray, "_Spellings"]:
-    codes, texts = table.factors(column)
-    count = len(texts)
-    # the first row of each distinct text (codes.size for a text never used), in one sort
-    firsts = np.full(count, codes.size, dtype=np.int64)
-    used, where = np.unique(codes, return_index=True)
-    keep = used >= 0
-    firsts[used[keep]] = where[keep]
-    trimmed = [t.strip() for t in texts]
-    stripped = np.empty(count, dtype=object)
-    stripped[:] = trimmed
-    order = np.argsort(firsts, kind="stable")
-    order = order[(firsts[order] < codes.size) & (stripped[order] != "")]
-    in_order = stripped[order]
-    if trimmed == texts:  # nothing to trim (a list comparison in C)
-        label_codes, labels = np.arange(order.size), in_order.tolist()  # distinct texts already
-    else:  # labels numbered by first appearance: factorize keeps the order it meets them in
-        label_codes, uniques = pd.factorize(in_order) if order.size else (np.array([], dtype=np.intp), [])
-        labels = list(uniques)
-    # label index per code, in the smallest integer type; the last slot serves code -1
-    remap = np.full(count + 1, -1, dtype=np.min_scalar_type(-count - 1))
-    remap[order] = label_codes
-    return labels, remap[codes], _Spellings(texts, remap[:-1], labels)
-
-
-class _Spellings:
-    """The raw spellings merged under each trimmed label, worked out for a label when asked
-    (a column of a million labels needs none of them)."""
-
-    def __init__(self, texts: list[str], remap: np.ndarray, labels: list[str]) -> None:
-        self._texts, self._remap, self._labels = texts, remap, labels
-
-    def __getitem__(self, label: str) -> set[str]:
-        try:
-            index = self._labels.index(label)
-        except ValueError:
-            raise KeyError(label) from None
-        return {self._texts[k] for k in np.flatnonzero(self._remap == index)}
+    label), and the raw spellings merged under each trimmed label (see :meth:`Table.levels`)."""
+    return table.levels(column)
 
 
 def _value_like(table: Table, name: str) -> bool:
@@ -225,7 +182,7 @@ def _best_grouping(table: Table, names: list[str], measures: list[str]) -> tuple
             continue
         if not _few_texts(table, name):
             continue  # more distinct texts than group labels can be, even once trimmed
-        labels, codes, _ = trimmed_levels(table, name)
+        labels, codes, _ = table.levels(name)
         if not 2 <= len(labels) <= MAX_GROUP_LEVELS:
             continue
         if np.count_nonzero(codes >= 0) <= len(labels):

@@ -15,11 +15,13 @@ import pandas as pd
 from ..results import Finding, frozen_mapping
 from ..rounding import fixed, shared_decimals
 from .layout import looks_like_id_name
+from .repeats import pairs_by_chance, surprising_below
 
 __all__ = [
     "Exclusion",
     "ScreeningReport",
     "EXCLUSION_REASONS",
+    "EXCLUSION_WORDS",
     "MAX_LISTED_EXCLUSIONS",
     "FAR_OUT_IQR",
     "possible_slips",
@@ -28,7 +30,16 @@ __all__ = [
     "repeated_rows_finding",
 ]
 
-EXCLUSION_REASONS: tuple[str, ...] = ("missing", "non_numeric", "infinite", "set_aside")
+# Why a value was left out of its group, in the words every count and list of left-out values
+# uses (the report, the window, the exported report); read after a count ("3 not a number"),
+# as a heading ("not a number: 3") or as the reason beside one cell.
+EXCLUSION_WORDS: Mapping[str, str] = frozen_mapping({
+    "missing": "blank or marked as missing",
+    "non_numeric": "not a number",
+    "infinite": "infinite",
+    "set_aside": "set aside by hand",
+})
+EXCLUSION_REASONS: tuple[str, ...] = tuple(EXCLUSION_WORDS)
 MAX_LISTED_EXCLUSIONS = 1000
 FAR_OUT_IQR = 3.0       # Tukey's "far out" fence: beyond 3 IQR from the quartiles
 INNER_IQR = 1.5         # Tukey's inner fence
@@ -239,8 +250,6 @@ def repeated_rows_finding(table, repeated: np.ndarray, counted, where: str) -> F
     """The finding on rows that repeat an earlier row: a note asking about copying only when
     that many repeats are unlikely by chance for columns like these (see
     :func:`engine.io.repeats.pairs_by_chance`), else a line for the record."""
-    from .repeats import pairs_by_chance, surprising_below
-
     count = int(repeated.size)
     rows = np.flatnonzero(counted() & ~table.frame.isna().all(axis=1).to_numpy())
     threshold = surprising_below(count)

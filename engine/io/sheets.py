@@ -18,6 +18,7 @@ from ..errors import ColumnProblem, FileProblem, listing, quoted
 from ..wording import plural
 from ._files import SHEET_KINDS, amount, check_path, one_line, wrap_unexpected
 from .bounds import check_sheet, check_workbook
+from .build import build_table
 from .cells import cell_text
 from .sniff import has_header, title_note, title_rows, title_texts
 
@@ -239,8 +240,6 @@ def read_sheet(path: Path, kind: str, sheet: str | None):
     Leading blank rows are kept in the count so that ``Table.file_row`` gives the row number the
     spreadsheet shows; fully blank columns without a name are dropped.
     """
-    from .read import build_table
-
     with _reader(path, kind) as reader:
         names = tuple(name for name, _ in reader.sheets)
         hidden = tuple(name for name, seen in reader.sheets if seen != "visible")

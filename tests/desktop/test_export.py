@@ -78,7 +78,7 @@ def test_values_set_aside_and_left_out_are_listed(panel, tmp_path):
     text = panel.export_report(tmp_path / "report.html").read_text(encoding="utf-8")
     assert "gauge dropped before this reading" in text
     assert "about 150" in text
-    assert "not a number" in text and "empty or marked as missing" in text
+    assert "not a number" in text and "blank or marked as missing" in text
 
 
 def test_pdf_report_is_written_by_qt(panel, tmp_path):

@@ -259,8 +259,8 @@ def test_values_left_out_are_mentioned(groups):
                                 excluded_counts={"missing": 3, "set_aside": 1}, exclusions=(),
                                 other_group_rows=0, duplicate_rows=0, possible_slips=(), paired=None)
     text = render(_analysis(groups, screening=screening)).paragraph
-    assert ("4 values were left out before the comparison (3 empty or missing, 1 set aside after "
-            "review).") in text
+    assert ("4 values were left out before the comparison (3 blank or marked as missing, 1 set aside "
+            "by hand).") in text
     assert "left out" not in render(_analysis(groups)).paragraph
 
 
