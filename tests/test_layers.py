@@ -75,7 +75,6 @@ STILL_TO_REMOVE: frozenset[tuple[str, str]] = frozenset({
     ("engine.diagnostics", "engine.report"),
     ("engine.advice", "engine.report"),
     # the workbook reader takes build_table from the text-file reader that calls it
-    ("engine.io.sheets", "engine.io.read"),
     # the rank test calls the tied Hodges-Lehmann interval, which builds on the rank test
     ("engine.procedures.ranks", "engine.procedures.shift_interval"),
     # Brunner-Munzel takes the common-language effect from effects, which sits above the procedures
