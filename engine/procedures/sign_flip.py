@@ -46,9 +46,9 @@ def _tables(d: np.ndarray) -> np.ndarray:
 def flip_means(d: np.ndarray, patterns: np.ndarray, tables: np.ndarray) -> np.ndarray:
     """Mean of s * d for each row of ``patterns`` (bytes; a set bit flips that pair's sign)."""
     blocks = tables.shape[0]
-    flipped = np.zeros(patterns.shape[0])
-    for block in range(blocks):
-        flipped += tables[block, patterns[:, block]]
+    where = patterns.astype(np.intp)
+    where += (256 * np.arange(blocks, dtype=np.intp))[None, :]
+    flipped = tables.ravel()[where].sum(axis=1)
     return (d.sum() - 2.0 * flipped) / d.size
 
 
