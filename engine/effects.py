@@ -13,13 +13,14 @@ from numbers import Real
 from typing import Any, Callable
 
 import numpy as np
-from scipy import optimize, special, stats
+from scipy import optimize, special
 
 from .errors import DataProblem, OptionProblem
 from .procedures._checks import check_alternative, check_confidence_level, check_samples
 from .procedures.ranks import pair_counts
 from .procedures.t import Moments, moments
 from .results import EffectSize, Interval
+from .stats_basics import Normal, tail_alpha
 from .summary import sorted_values
 
 __all__ = [
@@ -63,10 +64,6 @@ def _prepare(x: Any, y: Any, confidence_level: Any, alternative: Any, sorted_x=N
         raise OptionProblem(f"U of group 1 must lie between 0 and {x.size * y.size}, not {u1!r}.")
     return (_Pair(x, y, sorted_x, sorted_y, u1), check_confidence_level(confidence_level),
             check_alternative(alternative))
-
-
-def _tail(level: float, alternative: str) -> float:
-    return (1 - level) / 2 if alternative == "two-sided" else 1 - level
 
 
 # ---------------------------------------------------------------------------- mean-based
@@ -258,7 +255,7 @@ def _limits(name: str, t_observed: float, df: float, level: float,
             alternative: str) -> tuple[float, float, bool]:
     """The noncentrality limits, or a DataProblem that says why the interval of ``name`` is missing."""
     try:
-        return _noncentrality_limits(t_observed, df, _tail(level, alternative))
+        return _noncentrality_limits(t_observed, df, tail_alpha(level, alternative))
     except (_NoInterval, ArithmeticError, ValueError) as problem:
         raise DataProblem(f"The interval of {name} could not be computed: {problem}.") from None
 
@@ -486,7 +483,7 @@ def _newcombe_variance(theta: float, n1: int, n2: int) -> float:
 
 def _probability_interval(cl: float, n1: int, n2: int, level: float, alternative: str):
     """Newcombe's method 5 limits for P(X > Y) + 0.5 P(X = Y): roots of (A - t)^2 = z^2 V(t)."""
-    z = float(stats.norm.isf(_tail(level, alternative)))
+    z = Normal().isf(tail_alpha(level, alternative))
 
     def gap(theta: float) -> float:
         return (cl - theta) ** 2 - z**2 * _newcombe_variance(theta, n1, n2)

@@ -25,6 +25,7 @@ from scipy.special import ndtr, ndtri
 from ..analysis import PROCEDURE_NAMES
 from ..errors import DataProblem, OptionProblem
 from ..results import Interval, ProcedureResult
+from ..stats_basics import centred_sd, quantiles, tail_alpha
 from ._checks import (
     check_alternative,
     check_cancelled,
@@ -709,7 +710,7 @@ def bootstrap_interval(
         replicates[start:start + rows] = block + offset
         step(0.95 * (start + rows) / n_resamples)
 
-    alpha = (1 - level) / 2 if alternative == "two-sided" else 1 - level
+    alpha = tail_alpha(level, alternative)
     percentile = _quantile_interval(replicates, alpha, 1 - alpha, level, alternative)
     below = np.count_nonzero(replicates < estimate) + np.count_nonzero(replicates <= estimate)
     with np.errstate(divide="ignore"):
@@ -747,7 +748,7 @@ def bootstrap_interval(
     step(1.0)
     details = dict(n_1=first.n, n_2=second.n, n_resamples=n_resamples, percentile=percentile,
                    bias_correction=z0, acceleration=a, interval_kind=used,
-                   standard_error=float(np.std(replicates, ddof=1)) if n_resamples > 1 else math.nan)
+                   standard_error=centred_sd(replicates))
     return ProcedureResult(
         key=key, name=PROCEDURE_NAMES[key], estimate=float(estimate),
         estimate_name=estimate_name, statistic=None, statistic_name=None, df=None, p_value=None,
@@ -760,5 +761,5 @@ def bootstrap_interval(
 
 def _quantile_interval(replicates: np.ndarray, low_fraction: float, high_fraction: float,
                        level: float, alternative: str) -> Interval:
-    low, high = np.quantile(replicates, [low_fraction, high_fraction])
-    return Interval.for_alternative(float(low), float(high), level, alternative)
+    low, high = quantiles(replicates, (low_fraction, high_fraction))
+    return Interval.for_alternative(low, high, level, alternative)
