@@ -12,12 +12,13 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-from scipy import special, stats
+from scipy import special
 
 from .errors import DataProblem
 from .report import format_number, format_shape, p_clause
 from .wording import plural
 from .results import Finding, Groups, readonly_array
+from .shapiro_wilk import MAX_N, MIN_N, shapiro_wilk
 from .stats_basics import FAR_FENCE, MILD_FENCE, centred_sd, quantiles, quartiles, tukey_fences
 from .summary import sorted_values
 
@@ -53,8 +54,8 @@ __all__ = [
 ]
 
 # Shapiro-Wilk as implemented (Royston's algorithm) is valid for 3 to 5000 values.
-SHAPIRO_MIN_N = 3
-SHAPIRO_MAX_N = 5000
+SHAPIRO_MIN_N = MIN_N
+SHAPIRO_MAX_N = MAX_N
 # Below this many values the Shapiro-Wilk check has little power; from the larger size on it
 # flags departures too small to matter for a t-test (common practice).
 SHAPIRO_SMALL_N = 30
@@ -445,11 +446,9 @@ def _shape(label: str, values: np.ndarray, index: int, ordered: np.ndarray | Non
             f"All values of {lower} are equal, so the Shapiro-Wilk check of a bell shape cannot "
             "be run.", index))
     else:
-        # W and its p-value do not depend on the scale. Brought to about 1 first: scipy's routine
-        # gives up (with a warning) on a range below 1e-19, and its sums of squares overflow
-        # near 1e308.
-        result = stats.shapiro(ordered / max(abs(ordered[0]), abs(ordered[-1])))
-        shapiro_w, shapiro_p = float(result.statistic), float(result.pvalue)
+        # W and its p-value do not depend on the scale. Brought to about 1 first, so that the
+        # range and the sums of squares neither vanish near 1e-300 nor overflow near 1e308.
+        shapiro_w, shapiro_p = shapiro_wilk(ordered / max(abs(ordered[0]), abs(ordered[-1])))
         figures = f"W = {format_number(shapiro_w, digits=3)}, {p_clause(shapiro_p)}"
         if shapiro_p < CHECK_ALPHA:
             text = (f"The Shapiro-Wilk check (does {lower} look like a sample from a "

@@ -13,13 +13,14 @@ from numbers import Real
 from typing import Any, Callable
 
 import numpy as np
-from scipy import optimize, special
+from scipy import special
 
 from .errors import DataProblem, OptionProblem
 from .procedures._checks import check_alternative, check_confidence_level, check_samples
 from .procedures.ranks import pair_counts
 from .procedures.t import Moments, moments
 from .results import EffectSize, Interval
+from .root_finding import brent_root
 from .stats_basics import Normal, tail_alpha
 from .summary import sorted_values
 
@@ -223,8 +224,8 @@ def _noncentrality_limits(t_observed: float, df: float,
             return low * unit
         if falling(high, p) == 0:
             return high * unit
-        return unit * float(optimize.brentq(falling, low, high, args=(p,), xtol=1e-14,
-                                            rtol=4 * np.finfo(float).eps, maxiter=500))
+        return unit * brent_root(lambda u: falling(u, p), low, high, xtol=1e-14,
+                                 rtol=4 * np.finfo(float).eps, maxiter=500)
 
     first, second = root(1 - tail), root(tail)
     if not (math.isfinite(first) and math.isfinite(second)):
@@ -491,8 +492,8 @@ def _probability_interval(cl: float, n1: int, n2: int, level: float, alternative
     # at A = 0 or 1 the variance vanishes too, so step just inside, where (A - t)^2 < z^2 V(t)
     inside = min(0.25, z**2 / (4 * n1 * n2))
     centre = min(max(cl, inside), 1 - inside)
-    low = 0.0 if cl <= 0 else float(optimize.brentq(gap, 0.0, centre, xtol=1e-15))
-    high = 1.0 if cl >= 1 else float(optimize.brentq(gap, centre, 1.0, xtol=1e-15))
+    low = 0.0 if cl <= 0 else brent_root(gap, 0.0, centre, xtol=1e-15)
+    high = 1.0 if cl >= 1 else brent_root(gap, centre, 1.0, xtol=1e-15)
     return low, high
 
 

@@ -19,8 +19,7 @@ from numbers import Integral
 from typing import Any, Callable
 
 import numpy as np
-from scipy import stats
-from scipy.special import ndtr, ndtri
+from scipy.special import bdtr, bdtrc, betaln, ndtr, ndtri, xlog1py, xlogy
 
 from ..analysis import PROCEDURE_NAMES
 from ..errors import DataProblem, OptionProblem
@@ -539,8 +538,8 @@ class _Sample:
         h = (n + 1) // 2 if n % 2 else n // 2
         self.rank = h
         grid = np.arange(n)
-        upper = stats.binom.sf(h - 1, n, (grid + 1) / n)  # P(h-th smallest <= a)
-        lower = stats.binom.cdf(h - 1, n, (grid + 1) / n)  # 1 - upper, accurate near 1
+        upper = bdtrc(h - 1, n, (grid + 1) / n)  # P(h-th smallest <= a): P(Binomial >= h)
+        lower = bdtr(h - 1, n, (grid + 1) / n)  # 1 - upper, accurate near 1
         upper[-1], lower[-1] = 1.0, 0.0
         self.cdf = upper
         if n % 2:
@@ -552,8 +551,7 @@ class _Sample:
         # P(h-th smallest == a and exactly h indices <= a)
         with np.errstate(divide="ignore"):  # a = n - 1: log1p(-1) = -inf, probability 0
             none_at_a = np.exp((n - h) * np.log1p(-1.0 / (n - grid)))
-        exactly = (stats.binom.pmf(h, n, (grid + 1) / n)
-                   - stats.binom.pmf(h, n, grid / n) * none_at_a)
+        exactly = _binomial_pmf(h, n, (grid + 1) / n) - _binomial_pmf(h, n, grid / n) * none_at_a
         with np.errstate(divide="ignore", invalid="ignore"):
             self.stay_chance = np.clip(np.where(chance > 0, exactly / chance, 0.0), 0.0, 1.0)
 
@@ -586,6 +584,17 @@ class _Sample:
         if m % 2:
             return kept((m - 1) // 2)
         return 0.5 * (kept(m // 2 - 1) + kept(m // 2))
+
+
+def _binomial_pmf(k: int, n: int, p: np.ndarray) -> np.ndarray:
+    """P(Binomial(n, p) = k) as exp(log C(n, k) + k log p + (n - k) log(1 - p)).
+
+    C(n, k) = 1 / ((n + 1) B(k + 1, n - k + 1)); ``xlogy`` and ``xlog1py`` give 0 log 0 = 0 at
+    p = 0 and 1. Accurate to about 1e-13 relative for n near 1000 and 1e-9 near a million,
+    against scipy.stats.binom.pmf.
+    """
+    with np.errstate(divide="ignore"):
+        return np.exp(xlogy(k, p) + xlog1py(n - k, -p) - betaln(k + 1, n - k + 1) - np.log1p(n))
 
 
 def _acceleration(jackknives: list[np.ndarray]) -> float:
