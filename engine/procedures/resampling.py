@@ -215,10 +215,12 @@ class _Pool:
             # |excess| attempts per row at once; a repeated position counts once, as it would
             # if the attempts were made one after another (the repeat would find it changed)
             owner = np.repeat(active, np.abs(excess[active]))
-            key = owner * n + rng.integers(0, n, owner.size)
+            drawn = rng.integers(0, n, owner.size)
+            key = owner * n + drawn
             attempt = np.arange(key.size, dtype=np.int32)
             latest[key] = attempt
-            row, position = np.divmod(key[latest[key] == attempt], n)
+            kept = latest[key] == attempt
+            row, position = owner[kept], drawn[kept]  # key // n and key % n, without dividing
             where = row * nb + (position >> 3)
             bit = np.left_shift(1, position & 7).astype(np.uint8)
             change = ((flat[where] & bit) != 0) == (excess[row] > 0)
