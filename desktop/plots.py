@@ -19,6 +19,7 @@ from PySide6.QtCore import QEvent, QPoint, Qt
 from PySide6.QtGui import QColor, QGuiApplication, QImage, QPainter, QPalette
 from PySide6.QtWidgets import QWidget
 
+from engine.stats_basics import MILD_FENCE, tukey_fences
 from engine.text import visible, visible_html
 
 __all__ = [
@@ -45,7 +46,7 @@ __all__ = [
 MAX_POINTS = 2000
 _MAX_BINS = 80
 # Whiskers reach the last value within this many interquartile ranges of the box (Tukey's rule).
-WHISKER_IQR = 1.5
+WHISKER_IQR = MILD_FENCE
 
 # Our own pair of group colours: a sea blue and a clay orange, each in a shade for light and one
 # for dark backgrounds. They differ in lightness as well as hue, so they stay apart in grey.
@@ -143,8 +144,7 @@ def whisker_reach(values: np.ndarray, q1: float, q3: float) -> tuple[float, floa
     """Whisker ends (the most extreme values within 1.5 IQR of the quartiles, common practice)
     and which values lie within those fences."""
     values = np.asarray(values, dtype=float)
-    spread = q3 - q1
-    inside = (values >= q1 - WHISKER_IQR * spread) & (values <= q3 + WHISKER_IQR * spread)
+    inside = ~tukey_fences(q1, q3).beyond_mild(values)
     if not inside.any():
         return q1, q3, inside
     kept = values[inside]

@@ -20,6 +20,7 @@ from .analysis import PROCEDURE_NAMES, RESAMPLING_MAX_VALUES
 from .procedures.resampling import BOOTSTRAP_MIN_N
 from .report import format_number
 from .results import Groups, frozen_mapping
+from .stats_basics import centred_sd
 
 __all__ = [
     "ConsideredOption",
@@ -502,7 +503,7 @@ def _cautions(chosen: str, s: _Situation, diagnostics, groups: Groups, *, equal_
     if chosen == "z" and known_sd is not None:
         for label, values, known in zip(groups.labels, (groups.x, groups.y), known_sd):
             if values.size > 1:
-                sd = float(np.std(values, ddof=1))
+                sd = centred_sd(values)
                 ratio = max(sd, known) / min(sd, known) if min(sd, known) > 0 else float("inf")
                 if ratio >= KNOWN_SD_MISMATCH:
                     out.append(f"The standard deviation of group '{label}' in these data "

@@ -12,12 +12,14 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-from scipy import special, stats
+from scipy import special
 
 from .errors import DataProblem
 from .report import format_number, format_shape, p_clause
 from .wording import plural
 from .results import Finding, Groups, readonly_array
+from .shapiro_wilk import MAX_N, MIN_N, shapiro_wilk
+from .stats_basics import FAR_FENCE, MILD_FENCE, centred_sd, quantiles, quartiles, tukey_fences
 from .summary import sorted_values
 
 __all__ = [
@@ -52,18 +54,16 @@ __all__ = [
 ]
 
 # Shapiro-Wilk as implemented (Royston's algorithm) is valid for 3 to 5000 values.
-SHAPIRO_MIN_N = 3
-SHAPIRO_MAX_N = 5000
+SHAPIRO_MIN_N = MIN_N
+SHAPIRO_MAX_N = MAX_N
 # Below this many values the Shapiro-Wilk check has little power; from the larger size on it
 # flags departures too small to matter for a t-test (common practice).
 SHAPIRO_SMALL_N = 30
 SHAPIRO_LARGE_N = 200
 # Most points drawn in a Q-Q plot; more add nothing visible and slow the window.
 QQ_MAX_POINTS = 2000
-# Tukey's fences: beyond 1.5 IQR from the quartiles is a mild outlier, beyond 3 IQR a far one
-# (common practice, Tukey 1977).
-MILD_FENCE = 1.5
-FAR_FENCE = 3.0
+# Tukey's fences (MILD_FENCE = 1.5 and FAR_FENCE = 3 IQR beyond the quartiles) come from
+# engine.stats_basics.
 # Level at which a check's p-value is called "small" in the findings (common practice: 0.05).
 CHECK_ALPHA = 0.05
 # Skewness or excess kurtosis more than twice its standard error is "clearly" non-zero
@@ -75,9 +75,9 @@ SKEW_MATERIAL = 0.5
 KURTOSIS_MATERIAL = 1.0
 # Share of a normal distribution beyond each fence (about 0.7% and 0.00023%), and how unlikely
 # a count must be under that share to be reported as more than chance (common practice: 1%).
-_QUARTILE_Z = float(stats.norm.ppf(0.75))
-NORMAL_MILD_SHARE = float(2 * stats.norm.sf(_QUARTILE_Z * (1 + 2 * MILD_FENCE)))
-NORMAL_FAR_SHARE = float(2 * stats.norm.sf(_QUARTILE_Z * (1 + 2 * FAR_FENCE)))
+_QUARTILE_Z = float(special.ndtri(0.75))
+NORMAL_MILD_SHARE = float(2 * special.ndtr(-_QUARTILE_Z * (1 + 2 * MILD_FENCE)))
+NORMAL_FAR_SHARE = float(2 * special.ndtr(-_QUARTILE_Z * (1 + 2 * FAR_FENCE)))
 OUTLIER_SURPRISE = 0.01
 # Most steps of the many-outlier test (one value removed per step); enough for any group in
 # which far values are a handful of slips, and it bounds the work on huge groups.
@@ -221,20 +221,6 @@ def _moments(values: np.ndarray) -> tuple[float, float]:
     return float(skew), float(kurt)
 
 
-def _quantile_sorted(ordered: np.ndarray, fraction: float) -> float:
-    """Quantile of sorted values by linear interpolation (Hyndman and Fan's type 7)."""
-    position = (ordered.size - 1) * fraction
-    below = int(np.floor(position))
-    above = min(below + 1, ordered.size - 1)
-    weight = position - below
-    return float(ordered[below] + weight * (ordered[above] - ordered[below]))
-
-
-def _quartiles(ordered: np.ndarray) -> tuple[float, float, float]:
-    """First quartile, median and third quartile of sorted values (linear interpolation)."""
-    return tuple(_quantile_sorted(ordered, f) for f in (0.25, 0.5, 0.75))  # type: ignore[return-value]
-
-
 def _tied_within(ordered: np.ndarray) -> np.ndarray:
     """Which of the sorted values equal a neighbour (and so another value of the same group)."""
     tied = np.zeros(ordered.size, dtype=bool)
@@ -307,7 +293,7 @@ def _anova_of_deviations(groups: tuple[np.ndarray, np.ndarray], centres: tuple[f
     if total - k <= 0 or within <= 0:
         return float("nan"), float("nan")
     statistic = (total - k) * between / ((k - 1) * within)
-    return float(statistic), float(stats.f.sf(statistic, k - 1, total - k))
+    return float(statistic), float(special.fdtrc(k - 1, total - k, statistic))  # the F upper tail
 
 
 # -- checks ---------------------------------------------------------------------------------------
@@ -428,7 +414,7 @@ def extreme_value_test(ordered: np.ndarray, count: int) -> tuple[float, ...]:
     room = (m - 1.0) ** 2 - m * r * r
     with np.errstate(divide="ignore", invalid="ignore"):
         t = r * np.sqrt(m * (m - 2.0) / room)
-        p = np.minimum(1.0, 2.0 * m * stats.t.sf(t, m - 2.0))
+        p = np.minimum(1.0, 2.0 * m * special.stdtr(m - 2.0, -t))  # Student's t upper tail
     # the largest R that m values allow (room <= 0 after rounding): no normal sample reaches it
     p = np.where(room > 0, p, 0.0)
     return tuple(float(v) for v in p)
@@ -460,11 +446,9 @@ def _shape(label: str, values: np.ndarray, index: int, ordered: np.ndarray | Non
             f"All values of {lower} are equal, so the Shapiro-Wilk check of a bell shape cannot "
             "be run.", index))
     else:
-        # W and its p-value do not depend on the scale. Brought to about 1 first: scipy's routine
-        # gives up (with a warning) on a range below 1e-19, and its sums of squares overflow
-        # near 1e308.
-        result = stats.shapiro(ordered / max(abs(ordered[0]), abs(ordered[-1])))
-        shapiro_w, shapiro_p = float(result.statistic), float(result.pvalue)
+        # W and its p-value do not depend on the scale. Brought to about 1 first, so that the
+        # range and the sums of squares neither vanish near 1e-300 nor overflow near 1e308.
+        shapiro_w, shapiro_p = shapiro_wilk(ordered / max(abs(ordered[0]), abs(ordered[-1])))
         figures = f"W = {format_number(shapiro_w, digits=3)}, {p_clause(shapiro_p)}"
         if shapiro_p < CHECK_ALPHA:
             text = (f"The Shapiro-Wilk check (does {lower} look like a sample from a "
@@ -483,10 +467,10 @@ def _shape(label: str, values: np.ndarray, index: int, ordered: np.ndarray | Non
 
     skew, kurt = _moments(values)
     ses, sek = skewness_se(n), kurtosis_se(n)
-    q1, median, q3 = _quartiles(ordered)
-    iqr = q3 - q1
-    far_mask = (ordered < q1 - FAR_FENCE * iqr) | (ordered > q3 + FAR_FENCE * iqr)
-    mild_mask = ((ordered < q1 - MILD_FENCE * iqr) | (ordered > q3 + MILD_FENCE * iqr)) & ~far_mask
+    q1, median, q3 = quartiles(ordered, ordered=True)
+    fences = tukey_fences(q1, q3)
+    far_mask = fences.beyond_far(ordered)
+    mild_mask = fences.beyond_mild(ordered) & ~far_mask
     mild = tuple(ordered[mild_mask].tolist())
     far = tuple(ordered[far_mask].tolist())
     ties = _tie_share(ordered)
@@ -543,7 +527,7 @@ def _more_than_normal(count: int, n: int, share: float) -> bool:
     """Whether ``count`` values beyond a fence are more than a normal sample of n would give."""
     if count == 0:
         return False
-    return bool(stats.poisson.sf(count - 1, n * share) < OUTLIER_SURPRISE)
+    return bool(special.pdtrc(count - 1, n * share) < OUTLIER_SURPRISE)  # P(Poisson >= count)
 
 
 def _values(count: int) -> str:
@@ -613,7 +597,7 @@ def _spread(x: np.ndarray, y: np.ndarray, medians: tuple[float, float],
             iqrs: tuple[float, float] = (float("nan"), float("nan"))) -> SpreadCheck:
     levene = _anova_of_deviations((x, y), (float(x.mean()), float(y.mean())))
     brown_forsythe = _anova_of_deviations((x, y), medians)
-    sds = [float(np.std(v, ddof=1)) if v.size > 1 else float("nan") for v in (x, y)]
+    sds = [centred_sd(v) for v in (x, y)]
     small, large = min(sds), max(sds)
     if not (np.isfinite(small) and np.isfinite(large)):
         sd_ratio = float("nan")
@@ -708,7 +692,8 @@ def diagnose(groups: Groups, *, sorted_x: np.ndarray | None = None,
     _check_groups(groups)
     shape_x, found_x, x_sorted, x_median = _shape(groups.labels[0], groups.x, 0, sorted_x)
     shape_y, found_y, y_sorted, y_median = _shape(groups.labels[1], groups.y, 1, sorted_y)
-    iqrs = tuple(_quantile_sorted(o, 0.75) - _quantile_sorted(o, 0.25) for o in (x_sorted, y_sorted))
+    iqrs = tuple(q3 - q1 for q1, q3 in (quantiles(o, (0.25, 0.75), ordered=True)
+                                        for o in (x_sorted, y_sorted)))
     spread = _spread(groups.x, groups.y, (x_median, y_median), iqrs)
     pooled = _pooled_tie_share(x_sorted, y_sorted)
     findings = found_x + found_y + _spread_findings(spread, groups.labels)

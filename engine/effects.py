@@ -13,13 +13,15 @@ from numbers import Real
 from typing import Any, Callable
 
 import numpy as np
-from scipy import optimize, special, stats
+from scipy import special
 
 from .errors import DataProblem, OptionProblem
 from .procedures._checks import check_alternative, check_confidence_level, check_samples
 from .procedures.ranks import pair_counts
 from .procedures.t import Moments, moments
 from .results import EffectSize, Interval
+from .root_finding import brent_root
+from .stats_basics import Normal, tail_alpha
 from .summary import sorted_values
 
 __all__ = [
@@ -63,10 +65,6 @@ def _prepare(x: Any, y: Any, confidence_level: Any, alternative: Any, sorted_x=N
         raise OptionProblem(f"U of group 1 must lie between 0 and {x.size * y.size}, not {u1!r}.")
     return (_Pair(x, y, sorted_x, sorted_y, u1), check_confidence_level(confidence_level),
             check_alternative(alternative))
-
-
-def _tail(level: float, alternative: str) -> float:
-    return (1 - level) / 2 if alternative == "two-sided" else 1 - level
 
 
 # ---------------------------------------------------------------------------- mean-based
@@ -226,8 +224,8 @@ def _noncentrality_limits(t_observed: float, df: float,
             return low * unit
         if falling(high, p) == 0:
             return high * unit
-        return unit * float(optimize.brentq(falling, low, high, args=(p,), xtol=1e-14,
-                                            rtol=4 * np.finfo(float).eps, maxiter=500))
+        return unit * brent_root(lambda u: falling(u, p), low, high, xtol=1e-14,
+                                 rtol=4 * np.finfo(float).eps, maxiter=500)
 
     first, second = root(1 - tail), root(tail)
     if not (math.isfinite(first) and math.isfinite(second)):
@@ -258,7 +256,7 @@ def _limits(name: str, t_observed: float, df: float, level: float,
             alternative: str) -> tuple[float, float, bool]:
     """The noncentrality limits, or a DataProblem that says why the interval of ``name`` is missing."""
     try:
-        return _noncentrality_limits(t_observed, df, _tail(level, alternative))
+        return _noncentrality_limits(t_observed, df, tail_alpha(level, alternative))
     except (_NoInterval, ArithmeticError, ValueError) as problem:
         raise DataProblem(f"The interval of {name} could not be computed: {problem}.") from None
 
@@ -486,7 +484,7 @@ def _newcombe_variance(theta: float, n1: int, n2: int) -> float:
 
 def _probability_interval(cl: float, n1: int, n2: int, level: float, alternative: str):
     """Newcombe's method 5 limits for P(X > Y) + 0.5 P(X = Y): roots of (A - t)^2 = z^2 V(t)."""
-    z = float(stats.norm.isf(_tail(level, alternative)))
+    z = Normal().isf(tail_alpha(level, alternative))
 
     def gap(theta: float) -> float:
         return (cl - theta) ** 2 - z**2 * _newcombe_variance(theta, n1, n2)
@@ -494,8 +492,8 @@ def _probability_interval(cl: float, n1: int, n2: int, level: float, alternative
     # at A = 0 or 1 the variance vanishes too, so step just inside, where (A - t)^2 < z^2 V(t)
     inside = min(0.25, z**2 / (4 * n1 * n2))
     centre = min(max(cl, inside), 1 - inside)
-    low = 0.0 if cl <= 0 else float(optimize.brentq(gap, 0.0, centre, xtol=1e-15))
-    high = 1.0 if cl >= 1 else float(optimize.brentq(gap, centre, 1.0, xtol=1e-15))
+    low = 0.0 if cl <= 0 else brent_root(gap, 0.0, centre, xtol=1e-15)
+    high = 1.0 if cl >= 1 else brent_root(gap, centre, 1.0, xtol=1e-15)
     return low, high
 
 

@@ -308,9 +308,9 @@ def surprising_below(observed: int) -> float:
     """The expected pairs below which ``observed`` repeated rows are surprising: a Poisson count
     of mean E reaches ``observed`` with chance below ``REPEAT_SURPRISE`` exactly when E is below
     the ``REPEAT_SURPRISE`` quantile of a Gamma(observed, 1) law."""
-    from scipy import stats
+    from scipy.special import gammaincinv  # scipy.stats.gamma.ppf(q, a) is gammaincinv(a, q)
 
-    return float(stats.gamma.ppf(REPEAT_SURPRISE, observed)) if observed > 0 else 0.0
+    return float(gammaincinv(observed, REPEAT_SURPRISE)) if observed > 0 else 0.0
 
 
 def repeats_surprising(observed: int, expected_pairs: float) -> bool:

@@ -14,6 +14,7 @@ import pandas as pd
 
 from ..results import Finding, frozen_mapping
 from ..rounding import fixed, shared_decimals
+from ..stats_basics import FAR_FENCE, Fences, quartiles, tukey_fences
 from .layout import looks_like_id_name
 from .repeats import pairs_by_chance, surprising_below
 
@@ -41,8 +42,7 @@ EXCLUSION_WORDS: Mapping[str, str] = frozen_mapping({
 })
 EXCLUSION_REASONS: tuple[str, ...] = tuple(EXCLUSION_WORDS)
 MAX_LISTED_EXCLUSIONS = 1000
-FAR_OUT_IQR = 3.0       # Tukey's "far out" fence: beyond 3 IQR from the quartiles
-INNER_IQR = 1.5         # Tukey's inner fence
+FAR_OUT_IQR = FAR_FENCE  # Tukey's "far out" fence: beyond 3 IQR from the quartiles
 MAX_SLIPS_LISTED = 20   # per group; the rest are summed up in one finding
 _EXACT_QUARTILES_UP_TO = 100_000  # larger groups: quartiles from an evenly spaced subsample
 _SHIFT_TOLERANCE = 0.12  # |log10(value / median) - k| for a shift by 10**k
@@ -83,18 +83,16 @@ class ScreeningReport:
         object.__setattr__(self, "findings", tuple(self.findings))
 
 
-def _fences(values: np.ndarray) -> tuple[float, float, float, float] | None:
+def _fences(values: np.ndarray) -> tuple[Fences, float] | None:
     if values.size < 5:
         return None
     sample = values
     if values.size > _EXACT_QUARTILES_UP_TO:  # an evenly spread subsample: quartiles to ~0.3 %
         sample = values[:: values.size // _EXACT_QUARTILES_UP_TO]
-    q1, median, q3 = np.quantile(sample, [0.25, 0.5, 0.75])
-    with np.errstate(over="ignore"):  # an IQR beyond the largest float: fences at infinity
-        iqr = q3 - q1
-    if not iqr > 0:
+    q1, median, q3 = quartiles(sample)
+    if not q3 - q1 > 0:  # an IQR beyond the largest float is infinite: fences at infinity
         return None
-    return q1, median, q3, iqr
+    return tukey_fences(q1, q3), median
 
 
 def possible_slips(
@@ -141,14 +139,10 @@ def possible_slips(
     fences = _fences(values)
     if fences is None:
         return []
-    q1, median, q3, iqr = fences
-    # near 1e308 a fence may lie beyond the largest float: infinite then, and rightly so, since
-    # no value can lie beyond it
-    with np.errstate(over="ignore"):
-        inner_low, inner_high = q1 - INNER_IQR * iqr, q3 + INNER_IQR * iqr
-        far_low, far_high = q1 - FAR_OUT_IQR * iqr, q3 + FAR_OUT_IQR * iqr
-    shift = _decimal_shifts(values, median, inner_low, inner_high)
-    far = (values < far_low) | (values > far_high)
+    fences, median = fences
+    q1, q3, far_high = fences.q1, fences.q3, fences.far_high
+    shift = _decimal_shifts(values, median, fences.mild_low, fences.mild_high)
+    far = fences.beyond_far(values)
     flagged = np.flatnonzero(far | (shift != 0))
     findings: list[Finding] = []
     for i in flagged[:MAX_SLIPS_LISTED]:

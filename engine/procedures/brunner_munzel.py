@@ -12,10 +12,11 @@ import math
 from typing import Any
 
 import numpy as np
-from scipy import special, stats
+from scipy import special
 
 from ..analysis import PROCEDURE_NAMES
 from ..results import Interval, ProcedureResult
+from ..stats_basics import Normal, StudentT, centred_variance, statistic_p, tail_alpha
 from ..summary import sorted_values
 from ._checks import (
     check_alternative, check_choice, check_confidence_level, check_samples,
@@ -42,14 +43,6 @@ def placements(xs: np.ndarray, ys: np.ndarray) -> np.ndarray:
     """
     below, at_or_below = pair_counts(xs, ys)
     return (below + at_or_below) / 2.0
-
-
-def _tail_p(w: float, dist, alternative: str) -> float:
-    if alternative == "greater":
-        return float(dist.sf(w))
-    if alternative == "less":
-        return float(dist.cdf(w))
-    return float(min(1.0, 2 * dist.sf(abs(w))))
 
 
 def _separation_p(n1: int, n2: int, upward: bool, alternative: str) -> float:
@@ -145,19 +138,19 @@ def brunner_munzel(
     p_y = placements(ys, xs)
     u1 = float(p_x.sum())
     estimate = u1 / (n1 * n2)
-    s1 = float(np.var(p_x, ddof=1))
-    s2 = float(np.var(p_y, ddof=1))
+    s1 = centred_variance(p_x)
+    s2 = centred_variance(p_y)
     v = n1 * s1 + n2 * s2
     details: dict[str, Any] = dict(U1=u1, n_1=n1, n_2=n2, placement_variance_1=s1,
                                    placement_variance_2=s2, distribution=distribution)
     warnings: list[str] = []
-    tail = (1 - level) / 2 if alternative == "two-sided" else 1 - level
+    tail = tail_alpha(level, alternative)
     if v > 0:
         se = math.sqrt(v) / (n1 * n2)
         w = (estimate - 0.5) / se
         df = v * v / ((n1 * s1) ** 2 / (n1 - 1) + (n2 * s2) ** 2 / (n2 - 1))
-        dist = stats.t(df) if distribution == "t" else stats.norm
-        p_value = _tail_p(w, dist, alternative)
+        dist = StudentT(df) if distribution == "t" else Normal()
+        p_value = statistic_p(w, alternative, dist)
         details.update(standard_error=se, degenerate=False)
         if 0 < estimate < 1:
             q = float(dist.isf(tail))

@@ -14,10 +14,11 @@ import math
 from typing import Any, Callable
 
 import numpy as np
-from scipy import special, stats
+from scipy import special
 
 from ..analysis import PROCEDURE_NAMES
 from ..results import Interval, ProcedureResult
+from ..stats_basics import Normal, tail_alpha, tail_p
 from ..summary import sorted_values
 from ._checks import (
     check_alternative, check_cancelled, check_choice, check_confidence_level, check_samples,
@@ -475,14 +476,6 @@ def pair_counts(xs: np.ndarray, ys: np.ndarray) -> tuple[np.ndarray, np.ndarray]
     return below, at_or_below
 
 
-def _tail_p(cdf_at: float, sf_at: float, alternative: str) -> float:
-    if alternative == "greater":
-        return min(1.0, sf_at)
-    if alternative == "less":
-        return min(1.0, cdf_at)
-    return min(1.0, 2 * min(cdf_at, sf_at))
-
-
 def tied_pmf(sizes: np.ndarray, n1: int, n2: int, *,
              cancelled: CancelCheck | None = None) -> np.ndarray:
     """Null probabilities of 2 U1 = 0, 1, ..., 2 n1 n2 given the tie blocks ``sizes``."""
@@ -492,7 +485,7 @@ def tied_pmf(sizes: np.ndarray, n1: int, n2: int, *,
 
 def exact_p(pmf: np.ndarray, observed: int, alternative: str) -> float:
     """The p-value of ``observed`` (an index of ``pmf``: U, or 2 U with ties)."""
-    return _tail_p(float(pmf[: observed + 1].sum()), float(pmf[observed:].sum()), alternative)
+    return tail_p(float(pmf[: observed + 1].sum()), float(pmf[observed:].sum()), alternative)
 
 
 def normal_p(u1: float, n1: int, n2: int, tie_term: float, alternative: str,
@@ -503,14 +496,14 @@ def normal_p(u1: float, n1: int, n2: int, tie_term: float, alternative: str,
     sd = math.sqrt(n1 * n2 / 12 * ((total_n + 1) - tie_term / (total_n * (total_n - 1))))
     correction = 0.5 if continuity else 0.0
     deviation = u1 - mean
+    # the continuity correction moves the observed U half a step toward the centre in each tail
+    p_value = tail_p(Normal().cdf((deviation + correction) / sd),
+                     Normal().sf((deviation - correction) / sd), alternative)
     if alternative == "greater":
-        z = (deviation - correction) / sd
-        return float(stats.norm.sf(z)), z
+        return p_value, (deviation - correction) / sd
     if alternative == "less":
-        z = (deviation + correction) / sd
-        return float(stats.norm.cdf(z)), z
-    z = math.copysign(max(abs(deviation) - correction, 0.0), deviation) / sd
-    return min(1.0, float(2 * stats.norm.sf((abs(deviation) - correction) / sd))), z
+        return p_value, (deviation + correction) / sd
+    return p_value, math.copysign(max(abs(deviation) - correction, 0.0), deviation) / sd
 
 
 def _tie_term(xs: np.ndarray, ys: np.ndarray, equal_in_y: np.ndarray) -> float:
@@ -562,7 +555,7 @@ def _interval_rank(n1, n2, level, alternative, pmf):
     ``pmf`` is the tie-free null distribution of U, or None for its normal approximation.
     k = 0 means that no interval reaches the level.
     """
-    tail = (1 - level) / 2 if alternative == "two-sided" else 1 - level
+    tail = tail_alpha(level, alternative)
     sides = 2 if alternative == "two-sided" else 1
     total = n1 * n2
     if pmf is not None:
@@ -571,8 +564,8 @@ def _interval_rank(n1, n2, level, alternative, pmf):
         below = float(cdf[max(k, 1) - 1])
     else:
         sd = math.sqrt(total * (n1 + n2 + 1) / 12)
-        k = max(int(math.floor(total / 2 - stats.norm.isf(tail) * sd + 0.5)), 0)
-        below = float(stats.norm.cdf((max(k, 1) - 0.5 - total / 2) / sd))
+        k = max(int(math.floor(total / 2 - Normal().isf(tail) * sd + 0.5)), 0)
+        below = Normal().cdf((max(k, 1) - 0.5 - total / 2) / sd)
     k = min(k, (total + 1) // 2)
     return k, 1 - sides * below
 

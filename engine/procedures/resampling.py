@@ -19,12 +19,12 @@ from numbers import Integral
 from typing import Any, Callable
 
 import numpy as np
-from scipy import stats
-from scipy.special import ndtr, ndtri
+from scipy.special import bdtr, bdtrc, betaln, ndtr, ndtri, xlog1py, xlogy
 
 from ..analysis import PROCEDURE_NAMES
 from ..errors import DataProblem, OptionProblem
 from ..results import Interval, ProcedureResult
+from ..stats_basics import centred_sd, quantiles, tail_alpha
 from ._checks import (
     check_alternative,
     check_cancelled,
@@ -215,10 +215,12 @@ class _Pool:
             # |excess| attempts per row at once; a repeated position counts once, as it would
             # if the attempts were made one after another (the repeat would find it changed)
             owner = np.repeat(active, np.abs(excess[active]))
-            key = owner * n + rng.integers(0, n, owner.size)
+            drawn = rng.integers(0, n, owner.size)
+            key = owner * n + drawn
             attempt = np.arange(key.size, dtype=np.int32)
             latest[key] = attempt
-            row, position = np.divmod(key[latest[key] == attempt], n)
+            kept = latest[key] == attempt
+            row, position = owner[kept], drawn[kept]  # key // n and key % n, without dividing
             where = row * nb + (position >> 3)
             bit = np.left_shift(1, position & 7).astype(np.uint8)
             change = ((flat[where] & bit) != 0) == (excess[row] > 0)
@@ -538,8 +540,8 @@ class _Sample:
         h = (n + 1) // 2 if n % 2 else n // 2
         self.rank = h
         grid = np.arange(n)
-        upper = stats.binom.sf(h - 1, n, (grid + 1) / n)  # P(h-th smallest <= a)
-        lower = stats.binom.cdf(h - 1, n, (grid + 1) / n)  # 1 - upper, accurate near 1
+        upper = bdtrc(h - 1, n, (grid + 1) / n)  # P(h-th smallest <= a): P(Binomial >= h)
+        lower = bdtr(h - 1, n, (grid + 1) / n)  # 1 - upper, accurate near 1
         upper[-1], lower[-1] = 1.0, 0.0
         self.cdf = upper
         if n % 2:
@@ -551,8 +553,7 @@ class _Sample:
         # P(h-th smallest == a and exactly h indices <= a)
         with np.errstate(divide="ignore"):  # a = n - 1: log1p(-1) = -inf, probability 0
             none_at_a = np.exp((n - h) * np.log1p(-1.0 / (n - grid)))
-        exactly = (stats.binom.pmf(h, n, (grid + 1) / n)
-                   - stats.binom.pmf(h, n, grid / n) * none_at_a)
+        exactly = _binomial_pmf(h, n, (grid + 1) / n) - _binomial_pmf(h, n, grid / n) * none_at_a
         with np.errstate(divide="ignore", invalid="ignore"):
             self.stay_chance = np.clip(np.where(chance > 0, exactly / chance, 0.0), 0.0, 1.0)
 
@@ -585,6 +586,17 @@ class _Sample:
         if m % 2:
             return kept((m - 1) // 2)
         return 0.5 * (kept(m // 2 - 1) + kept(m // 2))
+
+
+def _binomial_pmf(k: int, n: int, p: np.ndarray) -> np.ndarray:
+    """P(Binomial(n, p) = k) as exp(log C(n, k) + k log p + (n - k) log(1 - p)).
+
+    C(n, k) = 1 / ((n + 1) B(k + 1, n - k + 1)); ``xlogy`` and ``xlog1py`` give 0 log 0 = 0 at
+    p = 0 and 1. Accurate to about 1e-13 relative for n near 1000 and 1e-9 near a million,
+    against scipy.stats.binom.pmf.
+    """
+    with np.errstate(divide="ignore"):
+        return np.exp(xlogy(k, p) + xlog1py(n - k, -p) - betaln(k + 1, n - k + 1) - np.log1p(n))
 
 
 def _acceleration(jackknives: list[np.ndarray]) -> float:
@@ -709,7 +721,7 @@ def bootstrap_interval(
         replicates[start:start + rows] = block + offset
         step(0.95 * (start + rows) / n_resamples)
 
-    alpha = (1 - level) / 2 if alternative == "two-sided" else 1 - level
+    alpha = tail_alpha(level, alternative)
     percentile = _quantile_interval(replicates, alpha, 1 - alpha, level, alternative)
     below = np.count_nonzero(replicates < estimate) + np.count_nonzero(replicates <= estimate)
     with np.errstate(divide="ignore"):
@@ -747,7 +759,7 @@ def bootstrap_interval(
     step(1.0)
     details = dict(n_1=first.n, n_2=second.n, n_resamples=n_resamples, percentile=percentile,
                    bias_correction=z0, acceleration=a, interval_kind=used,
-                   standard_error=float(np.std(replicates, ddof=1)) if n_resamples > 1 else math.nan)
+                   standard_error=centred_sd(replicates))
     return ProcedureResult(
         key=key, name=PROCEDURE_NAMES[key], estimate=float(estimate),
         estimate_name=estimate_name, statistic=None, statistic_name=None, df=None, p_value=None,
@@ -760,5 +772,5 @@ def bootstrap_interval(
 
 def _quantile_interval(replicates: np.ndarray, low_fraction: float, high_fraction: float,
                        level: float, alternative: str) -> Interval:
-    low, high = np.quantile(replicates, [low_fraction, high_fraction])
-    return Interval.for_alternative(float(low), float(high), level, alternative)
+    low, high = quantiles(replicates, (low_fraction, high_fraction))
+    return Interval.for_alternative(low, high, level, alternative)

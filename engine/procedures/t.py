@@ -12,12 +12,11 @@ from dataclasses import dataclass
 from typing import Any
 
 import numpy as np
-from scipy import stats
 
 from ..analysis import PROCEDURE_NAMES
 from ..errors import DataProblem, OptionProblem
 from ..results import Interval, ProcedureResult
-from ..summary import centred_sd, common_scale
+from ..stats_basics import Normal, StudentT, centred_sd, common_scale, critical_value, statistic_p
 from ._checks import check_alternative, check_confidence_level, check_samples
 
 __all__ = ["z_test", "pooled_t", "welch_t", "mean_difference", "Moments", "moments"]
@@ -81,14 +80,6 @@ def _check_spread(m: "Moments") -> tuple[str, ...]:
     return ()
 
 
-def _tail_p(statistic: float, alternative: str, distribution: Any) -> float:
-    if alternative == "greater":
-        return float(distribution.sf(statistic))
-    if alternative == "less":
-        return float(distribution.cdf(statistic))
-    return float(min(1.0, 2.0 * distribution.sf(abs(statistic))))
-
-
 def _result(
     key: str,
     *,
@@ -107,12 +98,11 @@ def _result(
 
     ``statistic``, if given, is estimate / standard error found without their own underflow.
     """
-    distribution = stats.norm() if df is None else stats.t(df)
+    distribution = Normal() if df is None else StudentT(df)
     if statistic is None:
         statistic = estimate / standard_error
-    p_value = _tail_p(statistic, alternative, distribution)
-    tail = (1 - level) / 2 if alternative == "two-sided" else 1 - level
-    critical = float(distribution.isf(tail))
+    p_value = statistic_p(statistic, alternative, distribution)
+    critical = critical_value(level, alternative, distribution)
     half_width = critical * standard_error
     interval = Interval.for_alternative((estimate - half_width) * scale,
                                         (estimate + half_width) * scale, level, alternative)

@@ -66,10 +66,12 @@ def test_shapiro_wilk_matches_the_reference_library():
     x, y = rng.normal(5, 1, 30), rng.lognormal(0, 0.8, 45)
     shapes = diagnose(_groups(x, y)).shapes
     for shape, values in zip(shapes, (x, y)):
-        # reference: scipy.stats.shapiro(values)
+        # reference: scipy.stats.shapiro(values), the same algorithm (Royston's AS R94); its
+        # normal scores come from a shorter approximation of the normal quantile than ours
+        # (scipy.special.ndtri), which moves W in about the ninth digit
         expected = stats.shapiro(values)
-        assert shape.shapiro_w == pytest.approx(expected.statistic, rel=1e-12)
-        assert shape.shapiro_p == pytest.approx(expected.pvalue, rel=1e-10)
+        assert shape.shapiro_w == pytest.approx(expected.statistic, rel=1e-8)
+        assert shape.shapiro_p == pytest.approx(expected.pvalue, rel=1e-6)
 
 
 
