@@ -24,6 +24,8 @@ LAYERS: tuple[tuple[str, ...], ...] = (
     ("engine", "engine.text", "engine.errors", "engine.wording", "engine.results", "engine.rounding"),
     # what the user asks and decided: plain records the analysis reads
     ("engine.question", "engine.spec"),
+    # the shared statistics rules (SD, quartiles, fences, tails), a root finder, Shapiro-Wilk
+    ("engine.stats_basics", "engine.root_finding", "engine.shapiro_wilk"),
     # statistics helpers of one group (sorted values, the common scale, SD), also used by io
     ("engine.summary",),
     # from a file to a table and two groups; the package's front last, so io's own modules

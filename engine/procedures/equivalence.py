@@ -16,10 +16,9 @@ from __future__ import annotations
 import math
 from typing import Any
 
-from scipy import special
-
 from ..errors import OptionProblem
 from ..results import Interval, ProcedureResult
+from ..stats_basics import StudentT
 from .t import pooled_t, welch_t
 
 __all__ = ["equivalence_t", "noninferiority_t", "SPREADS"]
@@ -47,7 +46,7 @@ def _check_spread(spread: str) -> None:
 
 def _t_sf(value: float, df: float) -> float:
     """P(T > value) for Student's t with ``df`` degrees of freedom."""
-    return float(special.stdtr(df, -value))
+    return StudentT(df).sf(value)
 
 
 def equivalence_t(x: Any, y: Any, *, low: float, high: float, spread: str = "welch",

@@ -20,10 +20,9 @@ from dataclasses import dataclass
 from typing import Any
 
 import numpy as np
-from scipy import special
-
 from ..errors import DataProblem, OptionProblem
 from ..results import Interval, ProcedureResult
+from ..stats_basics import Normal, statistic_p, tail_alpha, tail_p
 from ._checks import check_alternative, check_confidence_level, check_sample
 from .walsh import walsh_median, walsh_order_statistics
 
@@ -82,14 +81,9 @@ def signed_rank_null(doubled_ranks: np.ndarray) -> np.ndarray:
     return chances
 
 
-def _tail_p(chances: np.ndarray, doubled: int, alternative: str) -> float:
-    upper = float(chances[doubled:].sum())   # P(2 T+ >= observed)
-    lower = float(chances[: doubled + 1].sum())  # P(2 T+ <= observed)
-    if alternative == "greater":
-        return min(upper, 1.0)
-    if alternative == "less":
-        return min(lower, 1.0)
-    return min(1.0, 2.0 * min(upper, lower))
+def _exact_p(chances: np.ndarray, doubled: int, alternative: str) -> float:
+    """P-value from the exact law: P(2 T+ <= observed) and P(2 T+ >= observed)."""
+    return tail_p(float(chances[: doubled + 1].sum()), float(chances[doubled:].sum()), alternative)
 
 
 def _normal_p(statistic: float, mean: float, variance: float, alternative: str,
@@ -103,11 +97,7 @@ def _normal_p(statistic: float, mean: float, variance: float, alternative: str,
         else:
             gap = math.copysign(max(abs(gap) - 0.5, 0.0), gap)
     z = gap / math.sqrt(variance) if variance > 0 else 0.0
-    if alternative == "greater":
-        return float(special.ndtr(-z)), z
-    if alternative == "less":
-        return float(special.ndtr(z)), z
-    return float(min(1.0, 2.0 * special.ndtr(-abs(z)))), z
+    return statistic_p(z, alternative, Normal()), z
 
 
 def signed_rank_test(differences: Any, *, zero_rule: str = "drop", alternative: str = "two-sided",
@@ -138,7 +128,7 @@ def signed_rank_test(differences: Any, *, zero_rule: str = "drop", alternative: 
     exact = method == "exact" or (method == "auto" and used <= EXACT_MAX_PAIRS)
     if exact:
         chances = signed_rank_null(np.rint(2 * ranks))
-        p_value, z = _tail_p(chances, int(round(2 * statistic)), alternative), None
+        p_value, z = _exact_p(chances, int(round(2 * statistic)), alternative), None
     else:
         p_value, z = _normal_p(statistic, mean, variance, alternative, correction)
     return SignedRank(statistic, p_value, exact, used, zeros, zero_rule, z, mean, variance)
@@ -150,14 +140,14 @@ def shift_interval_limits(n: int, level: float, alternative: str) -> tuple[int |
     P(T+ <= k - 1) <= alpha (alpha / 2 for two sides) under the null of n untied differences
     (normal approximation with continuity correction above ``EXACT_MAX_PAIRS``).
     None: that end is open (too few pairs for this level)."""
-    tail = (1 - level) / 2 if alternative == "two-sided" else 1 - level
+    tail = tail_alpha(level, alternative)
     if n <= EXACT_MAX_PAIRS:
         cdf = np.cumsum(signed_rank_null(2 * np.arange(1, n + 1))[::2])
         below = np.flatnonzero(cdf <= tail * (1 + 1e-12))
         k = int(below[-1]) + 1 if below.size else None
     else:
         mean, sd = n * (n + 1) / 4, math.sqrt(n * (n + 1) * (2 * n + 1) / 24)
-        k = int(math.floor(mean - 0.5 - float(special.ndtri(1 - tail)) * sd)) + 1
+        k = int(math.floor(mean - 0.5 - Normal().isf(tail) * sd)) + 1
         k = k if k >= 1 else None
     low_k = k if alternative in ("two-sided", "greater") else None
     high_k = k if alternative in ("two-sided", "less") else None
