@@ -8,17 +8,17 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from .text import visible, visible_html
+from ..text import visible, visible_html
 
 __all__ = ["ReportText", "DisplayNumbers", "render", "display_numbers", "format_p", "format_number",
            "format_shape", "format_interval", "p_clause", "plural", "capital", "agreement", "cautions",
            "GLOSSES", "GENERAL_CAUTIONS"]
 
-from .rounding import (NOT_AVAILABLE, P_CEILING, P_FLOOR, SCIENTIFIC_LARGE, SCIENTIFIC_SMALL, fixed,
+from ..rounding import (NOT_AVAILABLE, P_CEILING, P_FLOOR, SCIENTIFIC_LARGE, SCIENTIFIC_SMALL, fixed,
                        format_number, format_p, format_shape, p_clause, shared_decimals)
-from .side_by_side import (PROBABILITY_KEYS, against_question, against_sentence, agreement_text, procedure_table,
+from ..side_by_side import (PROBABILITY_KEYS, against_question, against_sentence, agreement_text, procedure_table,
                            question_claim, reverse_is_clear)
-from .wording import GLOSSES, capital, gloss_line, plural
+from ..wording import GLOSSES, capital, gloss_line, plural
 
 
 @dataclass(frozen=True)
@@ -291,7 +291,7 @@ def _rank_direction(analysis, key: str, a: str, b: str) -> str:
     n1, n2 = analysis.groups.n
     u1 = result.details.get("U1")
     if u1 is None:
-        from .effects import mann_whitney_u1
+        from ..effects import mann_whitney_u1
         u1 = mann_whitney_u1(analysis.groups.x, analysis.groups.y)
     share = u1 / (n1 * n2)
     # the robustness view's rule: the test is clear when p is below 1 - level
@@ -673,7 +673,7 @@ def _blocks(analysis, key: str, paragraph: str, rows, head, body) -> list[tuple]
 
 def _check_procedure(analysis, key: str) -> None:
     if key not in analysis.procedures:
-        from .errors import OptionProblem
+        from ..errors import OptionProblem
 
         raise OptionProblem(f"The procedure '{key}' was not run for these data, so it cannot be reported.")
 
