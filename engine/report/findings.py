@@ -9,11 +9,11 @@ from ..side_by_side import PROBABILITY_KEYS, procedure_table
 from ..text import visible
 from ..wording import capital, gloss_line
 from . import tables
-from .cautions import CAUTION_LINE
+from .cautions import caution_blocks
 from .numbers import STATISTIC_LABEL, DisplayNumbers, _fixed, level_text, _numbers, _summary_decimals, display_numbers
 from .sentences import agreement, paragraph
 
-__all__ = ["ReportText", "render"]
+__all__ = ["ReportText", "render", "findings_blocks"]
 
 @dataclass(frozen=True)
 class ReportText:
@@ -105,7 +105,6 @@ def _blocks(analysis, key: str, paragraph: str, rows, head, body) -> list[tuple]
     blocks += _side_by_side_blocks(analysis)
     blocks += _reason_blocks(analysis, key)
     blocks += _check_blocks(analysis)
-    blocks.append(("small", CAUTION_LINE))
     return blocks
 
 
@@ -128,8 +127,9 @@ def render(analysis, *, procedure: str | None = None) -> ReportText:
         that carry what a reviewer asks for: the paragraph, the result and the groups as
         tables, every applicable procedure side by side (estimate with the direction of the
         difference, interval, p-value, reading), the reasons for the suggested procedure and
-        the alternatives weighed, and the shape and spread readings with a plain gloss of their
-        terms. Plain-text paragraphs are single lines.
+        the alternatives weighed, the shape and spread readings with a plain gloss of their
+        terms, and the cautions (:func:`engine.report.cautions`). Plain-text paragraphs are
+        single lines.
 
     Notes
     -----
@@ -142,11 +142,22 @@ def render(analysis, *, procedure: str | None = None) -> ReportText:
     American Psychological Association (2020). Publication Manual, 7th ed., chapter 6 (numbers
     and statistics in text).
     """
+    words, blocks = _findings(analysis, procedure)
+    blocks += caution_blocks(analysis)
+    return ReportText(paragraph=words, html=tables.html(blocks), plain=tables.plain(blocks))
+
+
+def findings_blocks(analysis, procedure: str | None = None) -> list[tuple]:
+    """The blocks of :func:`render`'s report without its closing cautions (a longer document
+    places them after its own parts)."""
+    return _findings(analysis, procedure)[1]
+
+
+def _findings(analysis, procedure: str | None) -> tuple[str, list[tuple]]:
     numbers = display_numbers(analysis, procedure)  # refuses a procedure that was not run
     key = procedure or analysis.recommendation.key
     result = analysis.procedures[key]
     words = visible(paragraph(analysis, key, result, numbers))  # one line, as it is shown
     rows = _result_rows(analysis, key, result, numbers)
     head, body = _summary_rows(analysis, _summary_decimals(analysis, numbers.decimals))
-    blocks = _blocks(analysis, key, words, rows, head, body)
-    return ReportText(paragraph=words, html=tables.html(blocks), plain=tables.plain(blocks))
+    return words, _blocks(analysis, key, words, rows, head, body)

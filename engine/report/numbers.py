@@ -75,7 +75,16 @@ class DisplayNumbers:
 
 
 def level_text(level: float) -> str:
-    return f"{round(level * 100, 4):g}%"
+    """A confidence level as a percentage: 0.95 -> "95%", 0.975 -> "97.5%".
+
+    Up to four decimals of the percentage, more for a level so close to 1 that four would read
+    as "100%" (a level is always below 1).
+    """
+    for decimals in range(4, 16):
+        text = f"{round(level * 100, decimals):.{decimals}f}".rstrip("0").rstrip(".")
+        if text != "100" or level >= 1:
+            break
+    return f"{text}%"
 
 
 def _decimals_shared(values, digits: int = DIGITS) -> int | None:

@@ -7,9 +7,25 @@ from __future__ import annotations
 
 from ..rounding import p_clause
 from ..side_by_side import against_question, against_sentence, agreement_text, question_claim, reverse_is_clear
-from .numbers import MEDIAN_KEYS, RANK_KEYS, STATISTIC_LABEL, DisplayNumbers, _fixed, level_text, _summary_decimals
+from .numbers import MEDIAN_KEYS, RANK_KEYS, STATISTIC_LABEL, DisplayNumbers, _fixed, _summary_decimals, level_text
 
-__all__ = ["paragraph", "agreement", "EXCLUSION_WORDS"]
+__all__ = ["paragraph", "agreement", "question_text", "procedure_followed", "QUESTIONS", "EXCLUSION_WORDS"]
+
+# The question in the user's words for each alternative: {a} is group 1, {b} group 2.
+QUESTIONS: tuple[tuple[str, str], ...] = (
+    ("two-sided", "Do {a} and {b} differ?"),
+    ("less", "Is {a} lower than {b}?"),
+    ("greater", "Is {a} higher than {b}?"),
+)
+
+
+def question_text(alternative: str, labels: tuple[str, str]) -> str:
+    """The question asked of the two groups, in words: "Do wax and resin differ?"."""
+    words = dict(QUESTIONS).get(alternative)
+    if words is None:
+        raise ValueError(f"unknown alternative {alternative!r}")
+    return words.format(a=labels[0], b=labels[1])
+
 
 def _measure(analysis) -> str:
     """The name of the measured quantity when the source gives a single one, else ""."""
@@ -109,6 +125,16 @@ def _test_phrase(analysis, key: str, result, numbers: DisplayNumbers) -> str:
     elif key.startswith("bootstrap"):
         parts.append("the bootstrap gives an interval but no p-value")
     return ", ".join(parts)
+
+
+def procedure_followed(analysis, key: str) -> str:
+    """Which procedure the findings follow and whether it is the suggested one:
+    "Welch t-test (the suggested procedure)"."""
+    suggested = analysis.recommendation
+    name = analysis.procedures[key].name if key in analysis.procedures else key
+    if key == suggested.key:
+        return f"{name} (the suggested procedure)"
+    return f"{name} (picked by the user; the suggestion was {suggested.name})"
 
 
 # How each reason for leaving a value out is written (engine.io.screening.EXCLUSION_REASONS).
