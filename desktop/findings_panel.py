@@ -206,20 +206,18 @@ class FindingsPanel(QWidget):
         level = report.level_text(analysis.spec.level)
         shown = report.display_numbers(analysis, result.key)
         missing = report.NOT_AVAILABLE
+        statistic = report.STATISTIC_ROW
         rows = [
-            (f"{result.estimate_name[:1].upper()}{result.estimate_name[1:]}"
-             + ("" if result.key in report.PROBABILITY_KEYS else f" ({labels[0]} minus {labels[1]})"),
-             shown.estimate, shown.interval or "none given",
+            (report.estimate_label(result, labels), shown.estimate, shown.interval or "none given",
              STATISTIC_TIPS["difference"] + " " + STATISTIC_TIPS["interval"]),
-            (f"Test statistic ({result.statistic_name})" if result.statistic_name else "Test statistic",
+            (f"{statistic} ({result.statistic_name})" if result.statistic_name else statistic,
              shown.statistic, "", STATISTIC_TIPS["statistic"]),
-            ("Degrees of freedom", shown.df, "", STATISTIC_TIPS["df"]),
-            ("p-value" if result.alternative == "two-sided" else "One-sided p-value", shown.p, "",
-             STATISTIC_TIPS["p"]),
+            (report.DF_ROW, shown.df, "", STATISTIC_TIPS["df"]),
+            (report.p_label(result.alternative), shown.p, "", STATISTIC_TIPS["p"]),
         ]
         rows = [row for row in rows if row[1] is not None]  # what a procedure does not give takes no row
         if shown.mc_se is not None:
-            rows.append(("Monte Carlo error of p", shown.mc_se, "", STATISTIC_TIPS["mc_se"]))
+            rows.append((report.MC_SE_ROW, shown.mc_se, "", STATISTIC_TIPS["mc_se"]))
         if shown.effect_name is not None:
             rows.append((shown.effect_name[:1].upper() + shown.effect_name[1:], shown.effect or missing,
                          shown.effect_interval or "", STATISTIC_TIPS.get(shown.effect_key, "")))

@@ -18,7 +18,8 @@ from .cautions import CAUTIONS_ALWAYS, GENERAL_CAUTIONS, cautions
 from .findings import ReportText, render
 from .numbers import (DIGITS, EFFECT_DECIMALS, EFFECT_FOR, MEDIAN_KEYS, RANK_KEYS, STATISTIC_LABEL, U_KEYS,
                       DisplayNumbers, _effect_decimals, display_numbers, format_interval, level_text)
-from .sentences import EXCLUSION_WORDS, QUESTIONS, _pair_share, agreement, procedure_followed, question_text
+from .sentences import (DF_ROW, EXCLUSION_WORDS, MC_SE_ROW, QUESTIONS, STATISTIC_ROW, _pair_share, agreement,
+                        estimate_label, p_label, procedure_followed, question_text)
 
 __all__ = ["ReportText", "DisplayNumbers", "render", "display_numbers", "format_p", "format_number",
            "format_shape", "format_interval", "p_clause", "plural", "capital", "agreement", "cautions",
@@ -26,4 +27,4 @@ __all__ = ["ReportText", "DisplayNumbers", "render", "display_numbers", "format_
            "SCIENTIFIC_LARGE", "SCIENTIFIC_SMALL", "fixed", "shared_decimals", "PROBABILITY_KEYS",
            "DIGITS", "EFFECT_DECIMALS", "EFFECT_FOR", "MEDIAN_KEYS", "RANK_KEYS", "STATISTIC_LABEL",
            "U_KEYS", "EXCLUSION_WORDS", "QUESTIONS", "level_text", "procedure_followed",
-           "question_text"]
+           "question_text", "estimate_label", "p_label", "STATISTIC_ROW", "DF_ROW", "MC_SE_ROW"]

@@ -5,13 +5,13 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-from ..side_by_side import PROBABILITY_KEYS, procedure_table
+from ..side_by_side import procedure_table
 from ..text import visible
 from ..wording import capital, gloss_line
 from . import tables
 from .cautions import caution_blocks
 from .numbers import STATISTIC_LABEL, DisplayNumbers, _fixed, level_text, _numbers, _summary_decimals, display_numbers
-from .sentences import agreement, paragraph
+from .sentences import DF_ROW, MC_SE_ROW, STATISTIC_ROW, agreement, estimate_label, p_label, paragraph
 
 __all__ = ["ReportText", "render", "findings_blocks"]
 
@@ -27,20 +27,18 @@ class ReportText:
 def _result_rows(analysis, key: str, result, numbers: DisplayNumbers) -> list[tuple[str, str]]:
     sided = "one-sided " if result.alternative != "two-sided" else ""
     first, second = analysis.groups.labels
-    rows = [("Procedure", capital(result.name)),
-            (capital(result.estimate_name)
-             + ("" if key in PROBABILITY_KEYS else f", {first} minus {second}"), numbers.estimate)]
+    rows = [("Procedure", capital(result.name)), (estimate_label(result, (first, second)), numbers.estimate)]
     if numbers.interval is not None:
         rows.append((f"{sided}{numbers.level} confidence interval".capitalize(), numbers.interval))
     label = STATISTIC_LABEL.get(key)
     if label and numbers.statistic is not None:
-        rows.append(("Test statistic", f"{label.split()[-1]} = {numbers.statistic}"))
+        rows.append((STATISTIC_ROW, f"{label.split()[-1]} = {numbers.statistic}"))
     if numbers.df is not None and key != "z":
-        rows.append(("Degrees of freedom", numbers.df))
+        rows.append((DF_ROW, numbers.df))
     if numbers.p is not None:
-        rows.append(("One-sided p-value" if sided else "p-value", numbers.p))
+        rows.append((p_label(result.alternative), numbers.p))
     if numbers.mc_se is not None:
-        rows.append(("Monte Carlo standard error of p", numbers.mc_se))
+        rows.append((MC_SE_ROW, numbers.mc_se))
     if numbers.effect is not None:
         text = numbers.effect
         if numbers.effect_interval is not None:

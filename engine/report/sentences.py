@@ -6,10 +6,16 @@ whether the procedures agree.
 from __future__ import annotations
 
 from ..rounding import p_clause
-from ..side_by_side import against_question, against_sentence, agreement_text, question_claim, reverse_is_clear
+from ..side_by_side import PROBABILITY_KEYS, against_question, against_sentence, agreement_text, question_claim, reverse_is_clear
 from .numbers import MEDIAN_KEYS, RANK_KEYS, STATISTIC_LABEL, DisplayNumbers, _fixed, _summary_decimals, level_text
 
-__all__ = ["paragraph", "agreement", "question_text", "procedure_followed", "QUESTIONS", "EXCLUSION_WORDS"]
+__all__ = ["paragraph", "agreement", "question_text", "procedure_followed", "estimate_label", "p_label",
+           "QUESTIONS", "EXCLUSION_WORDS", "STATISTIC_ROW", "DF_ROW", "MC_SE_ROW"]
+
+# The names of the rows of a result, in the report's table and the window's.
+STATISTIC_ROW = "Test statistic"
+DF_ROW = "Degrees of freedom"
+MC_SE_ROW = "Monte Carlo standard error of p"
 
 # The question in the user's words for each alternative: {a} is group 1, {b} group 2.
 QUESTIONS: tuple[tuple[str, str], ...] = (
@@ -125,6 +131,18 @@ def _test_phrase(analysis, key: str, result, numbers: DisplayNumbers) -> str:
     elif key.startswith("bootstrap"):
         parts.append("the bootstrap gives an interval but no p-value")
     return ", ".join(parts)
+
+
+def estimate_label(result, labels: tuple[str, str]) -> str:
+    """The name of a result's estimate with the direction of a difference: "Difference in
+    means, wax minus resin" (a probability has no direction to name)."""
+    name = result.estimate_name[:1].upper() + result.estimate_name[1:]
+    return name if result.key in PROBABILITY_KEYS else f"{name}, {labels[0]} minus {labels[1]}"
+
+
+def p_label(alternative: str) -> str:
+    """ "p-value", or "One-sided p-value" for a one-sided question."""
+    return "p-value" if alternative == "two-sided" else "One-sided p-value"
 
 
 def procedure_followed(analysis, key: str) -> str:

@@ -227,3 +227,22 @@ def test_the_window_shows_the_cautions_and_the_question_of_the_report(panel, qtb
     assert dict(document.choice_rows(analysis))["Question"] in asked
     assert report.level_text(analysis.spec.level) in panel.table.horizontalHeaderItem(2).text()
     setup.cleanup()
+
+
+@pytest.mark.parametrize("key", ["welch_t", "permutation_mean"])
+def test_the_window_names_a_result_as_the_report_does(panel, key):
+    analysis = panel.session.analysis
+    panel.session.choose(procedure=key)
+    panel.refresh()
+    names = [panel.table.item(r, 0).text() for r in range(panel.table.rowCount())]
+    plain = report.render(analysis, procedure=key).plain.splitlines()
+    shown = report.display_numbers(analysis, key)
+    # each row the window shows is a row of the report's table, by the same name and value
+    expected = [(report.estimate_label(analysis.procedures[key], analysis.groups.labels), shown.estimate),
+                (report.p_label(analysis.spec.alternative), shown.p)]
+    expected += [(report.DF_ROW, shown.df)] if shown.df is not None else []
+    expected += [(report.MC_SE_ROW, shown.mc_se)] if shown.mc_se is not None else []
+    assert (shown.mc_se is not None) == (key == "permutation_mean")
+    for name, value in expected:
+        assert name in names
+        assert any(line.startswith(name) and line.endswith(f"  {value}") for line in plain), name
