@@ -29,10 +29,7 @@ from .icons import icon
 from .panel_parts import FlowLayout, heading, hint_and_body, text_label
 from .plots import BoxPlot, IntervalPlot, document_palette, plot_image, save_plot
 
-__all__ = ["FindingsPanel", "GENERAL_CAUTIONS", "STATISTIC_TIPS"]
-
-# Shown after the suggestion's own cautions (worded in the engine, shared with the report).
-GENERAL_CAUTIONS = report.GENERAL_CAUTIONS
+__all__ = ["FindingsPanel", "STATISTIC_TIPS"]
 
 # One sentence per statistic, shown when the pointer rests on a row of the table.
 STATISTIC_TIPS = {
@@ -177,9 +174,9 @@ class FindingsPanel(QWidget):
         return report.render(self.session.analysis, procedure=self.procedure_key())
 
     def cautions_list(self) -> list[str]:
-        """The suggestion's own cautions, then the ones that hold for every comparison."""
-        analysis = self.session.analysis
-        return report.cautions(analysis) if analysis is not None else list(GENERAL_CAUTIONS)
+        """The suggestion's own cautions, then the ones that hold for every comparison (as every
+        report lists them)."""
+        return report.cautions(self.session.analysis)
 
     def refresh(self) -> None:
         """Show the current analysis (or the hint when there is none)."""
@@ -196,11 +193,7 @@ class FindingsPanel(QWidget):
         self._shown_key = key
         result = analysis.procedures[key]
         self.headline.setText(self.report_text().paragraph)
-        suggested = analysis.recommendation
-        if key == suggested.key:
-            self.followed.setText(f"Following the suggested procedure: {result.name}.")
-        else:
-            self.followed.setText(f"Following your pick, {result.name}; the suggestion was {suggested.name}.")
+        self.followed.setText(f"Procedure followed: {report.procedure_followed(analysis, key)}.")
         self._fill_table(analysis, result)
         self._show_robustness(analysis, key)
         notes = [result.method[:1].upper() + result.method[1:] + "."] if result.method else []
@@ -210,23 +203,21 @@ class FindingsPanel(QWidget):
 
     def _fill_table(self, analysis, result) -> None:
         labels = [visible(label) for label in analysis.groups.labels]
-        level = export.level_text(analysis.spec.level)
+        level = report.level_text(analysis.spec.level)
         shown = report.display_numbers(analysis, result.key)
         missing = report.NOT_AVAILABLE
+        statistic = report.STATISTIC_ROW
         rows = [
-            (f"{result.estimate_name[:1].upper()}{result.estimate_name[1:]}"
-             + ("" if result.key in report.PROBABILITY_KEYS else f" ({labels[0]} minus {labels[1]})"),
-             shown.estimate, shown.interval or "none given",
+            (report.estimate_label(result, labels), shown.estimate, shown.interval or "none given",
              STATISTIC_TIPS["difference"] + " " + STATISTIC_TIPS["interval"]),
-            (f"Test statistic ({result.statistic_name})" if result.statistic_name else "Test statistic",
+            (f"{statistic} ({result.statistic_name})" if result.statistic_name else statistic,
              shown.statistic, "", STATISTIC_TIPS["statistic"]),
-            ("Degrees of freedom", shown.df, "", STATISTIC_TIPS["df"]),
-            ("p-value" if result.alternative == "two-sided" else "One-sided p-value", shown.p, "",
-             STATISTIC_TIPS["p"]),
+            (report.DF_ROW, shown.df, "", STATISTIC_TIPS["df"]),
+            (report.p_label(result.alternative), shown.p, "", STATISTIC_TIPS["p"]),
         ]
         rows = [row for row in rows if row[1] is not None]  # what a procedure does not give takes no row
         if shown.mc_se is not None:
-            rows.append(("Monte Carlo error of p", shown.mc_se, "", STATISTIC_TIPS["mc_se"]))
+            rows.append((report.MC_SE_ROW, shown.mc_se, "", STATISTIC_TIPS["mc_se"]))
         if shown.effect_name is not None:
             rows.append((shown.effect_name[:1].upper() + shown.effect_name[1:], shown.effect or missing,
                          shown.effect_interval or "", STATISTIC_TIPS.get(shown.effect_key, "")))
@@ -308,10 +299,8 @@ class FindingsPanel(QWidget):
         analysis = self.session.analysis
         if analysis is None:
             raise FileProblem("There are no findings to export yet.")
-        text = self.report_text()
         images = _report_images(analysis, self.procedure_key())
-        return export.export_report(path, analysis, self.session.choices, procedure=self.procedure_key(),
-                                    findings_html=text.html, cautions=self.cautions_list(), images=images)
+        return export.export_report(path, analysis, procedure=self.procedure_key(), images=images)
 
     def _window_saves(self, name: str) -> bool:
         """Let the window do a save (it remembers the folder and says where the file went)."""

@@ -30,6 +30,7 @@ from PySide6.QtWidgets import (
 )
 
 from engine.io.layout import trimmed_levels
+from engine.report import QUESTIONS  # the question in the user's words, for each alternative
 from engine.text import visible
 
 from .plain_text import plain_label
@@ -37,13 +38,6 @@ from .plain_text import plain_label
 __all__ = ["SetupPanel", "QUESTIONS", "group_levels", "MAX_LEVELS"]
 
 MAX_LEVELS = 500  # a column with more distinct entries than this is not a list of groups
-
-# The direction of the question, in the user's words, for each engine alternative.
-QUESTIONS: tuple[tuple[str, str], ...] = (
-    ("two-sided", "Do {a} and {b} differ?"),
-    ("less", "Is {a} lower than {b}?"),
-    ("greater", "Is {a} higher than {b}?"),
-)
 
 
 def group_levels(table: Any, column: str | None) -> list[str]:

@@ -104,17 +104,6 @@ ASSUMPTIONS: Mapping[str, str] = frozen_mapping({
                          "p-value, and is coarse when there are many ties."),
 })
 
-CAUTIONS_ALWAYS = (
-    "Checks of normality such as Shapiro-Wilk have little power with small groups (they miss real "
-    "departures) and with large groups flag departures too small to matter, so the choice does not "
-    "rest on their p-value alone.",
-    "A p-value says how surprising the data would be if there were no difference; it is not the size "
-    "of the difference. Read the estimate, its interval and the effect size for that.",
-    "A check that passes does not prove an assumption holds; it only finds no clear sign against it.",
-    "Regulated work (clinical, pharmaceutical, safety-critical) follows its own prescribed methods and "
-    "needs a qualified statistician's review; this suggestion does not replace either.",
-)
-
 
 @dataclass(frozen=True)
 class ConsideredOption:
@@ -537,7 +526,7 @@ def _cautions(chosen: str, s: _Situation, diagnostics, groups: Groups, *, equal_
         out.append("The Shapiro-Wilk check flagged a departure from a bell shape in "
                    f"{_join([f'group {label!r}' for label in flagged])}, but the skewness, tails and outliers "
                    "show nothing large, so it did not change the suggestion.")
-    return out + list(CAUTIONS_ALWAYS)
+    return out  # those for every comparison: engine.report.cautions
 
 
 def recommend(diagnostics, groups: Groups, *, equal_spread_known: bool = False, ordinal: bool = False,

@@ -106,25 +106,10 @@ def _write_lines(out: TextIO, lines: Sequence[str]) -> None:
 def _readable(analysis, report_text: str) -> list[str]:
     """The plain summary: the file and its screening, the report of the suggested procedure
     (which carries every procedure side by side, the reasons for the suggestion and the
-    alternatives weighed, and the checks), then the cautions."""
-    from .report import cautions
+    alternatives weighed, the checks and the cautions), worded by ``engine.report.document``."""
+    from .report.document import text_lines
 
-    lines = [f"File: {analysis.source.get('file')}"]
-    screening = analysis.screening
-    if screening is not None:
-        for finding in screening.findings:
-            lines.append(f"  [{finding.severity}] {finding.text}")
-    for note in analysis.notes:
-        lines.append(f"  [{note.severity}] {note.text}")
-    lines.append("")
-    lines.append(f"Suggested procedure: {analysis.recommendation.name}")
-    lines.append("")
-    lines.extend(report_text.rstrip().split("\n"))  # the report's own lines (its texts are escaped)
-    lines.append("")
-    lines.append("Before relying on this")
-    lines.append("")
-    lines += [f"- {caution}" for caution in cautions(analysis)]
-    return lines
+    return text_lines(analysis, report_text)
 
 
 def _columns(args, out: TextIO) -> None:

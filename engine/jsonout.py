@@ -90,6 +90,8 @@ def options_member(spec) -> dict[str, Any]:
 
 def analysis_document(analysis) -> dict[str, Any]:
     """The whole analysis as one JSON-ready object (the headless command's ``--json``)."""
+    from .report.cautions import cautions
+
     document: dict[str, Any] = {
         "schema_version": SCHEMA_VERSION,
         "groups": list(analysis.groups.labels),
@@ -101,7 +103,8 @@ def analysis_document(analysis) -> dict[str, Any]:
         "procedures": to_plain(analysis.procedures),
         "effect_sizes": to_plain(analysis.effect_sizes),
         "diagnostics": to_plain(analysis.diagnostics),
-        "recommendation": to_plain(analysis.recommendation),
+        # its cautions: the suggestion's own and those for every comparison, as every report lists them
+        "recommendation": {**to_plain(analysis.recommendation), "cautions": cautions(analysis)},
         "robustness": to_plain(analysis.robustness),
         "screening": to_plain(analysis.screening) if analysis.screening else None,
         "source": to_plain(analysis.source),

@@ -42,7 +42,7 @@ LAYERS: tuple[tuple[str, ...], ...] = (
     # every part of one comparison together
     ("engine.analysis",),
     # an analysis in words, tables and JSON
-    ("engine.side_by_side", "engine.report", "engine.jsonout"),
+    ("engine.side_by_side", "engine.report", "engine.report.*", "engine.jsonout"),
     # the path from a file to an analysis, and the window's session over it
     ("engine.pipeline", "engine.session"),
     # the headless command

@@ -8,7 +8,6 @@ from types import SimpleNamespace
 import pytest
 from PySide6.QtCore import Qt
 
-from desktop import export
 from desktop.data_panel import DataPanel, screening_html
 from engine import io
 from engine.io.screening import EXCLUSION_REASONS, EXCLUSION_WORDS
@@ -46,8 +45,12 @@ def test_the_screening_counts_each_reason_in_the_shared_words(session):
 
 
 def test_the_exported_report_gives_each_reason_in_the_shared_words(session):
-    analysis = SimpleNamespace(screening=session.intake.screening)
-    why = dict((where.split(",")[0], why) for where, why in export.set_aside_rows(analysis, session.choices))
+    from engine.report import document
+    from engine.session import spec_of
+
+    analysis = SimpleNamespace(screening=session.intake.screening,
+                               spec=spec_of(session.choices, session.table))
+    why = dict((where.split(",")[0], why) for where, why in document.set_aside_rows(analysis))
     table = session.table
     for reason, row in LEFT_OUT.items():
         assert why[f"row {table.file_row(row)} of the file"].startswith(EXCLUSION_WORDS[reason])

@@ -7,6 +7,7 @@ import os
 os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
 
 import hashlib  # noqa: E402
+import html  # noqa: E402
 import re  # noqa: E402
 from datetime import datetime, timezone  # noqa: E402
 from pathlib import Path  # noqa: E402
@@ -15,10 +16,11 @@ import numpy as np  # noqa: E402
 import pytest  # noqa: E402
 
 from engine import io, report  # noqa: E402
-from engine.spec import AnalysisSpec
+from engine.report import document, tables  # noqa: E402
+from engine.report.findings import findings_blocks  # noqa: E402
 from engine.analysis import analyze  # noqa: E402
 from engine.errors import FileProblem  # noqa: E402
-from engine.session import Session  # noqa: E402
+from engine.session import Session, spec_of  # noqa: E402
 from desktop import export  # noqa: E402
 from desktop.findings_panel import FindingsPanel  # noqa: E402
 
@@ -46,8 +48,8 @@ def panel(qtbot, data_file):
                    set_aside=set_aside, n_resamples=300)
     session.store("table", table)
     session.store("intake", intake)
-    options = AnalysisSpec(resamples=300, seed=session.choices.seed)
-    session.store("analysis", analyze(intake.groups, options, screening=intake.screening,
+    spec = spec_of(session.choices, table)  # the window's spec: the file, the cells set aside
+    session.store("analysis", analyze(intake.groups, spec, screening=intake.screening,
                                       source={"file": data_file.name, "columns": ["coating", "hours"]}))
     widget = FindingsPanel(session)
     qtbot.addWidget(widget)
@@ -68,12 +70,15 @@ def test_html_report_is_self_contained_and_records_the_file(panel, data_file, tm
     sources = re.findall(r"src='([^']*)'", text) + re.findall(r'src="([^"]*)"', text)
     assert len(sources) == 2 and all(s.startswith("data:image/png;base64,") for s in sources)
     assert "<table" in text
-    assert report.render(panel.session.analysis).html in text
+    # the findings as the report words them, then the cautions
+    findings = tables.html(findings_blocks(panel.session.analysis))
+    assert findings in text
+    assert text.index(findings) < text.index(html.escape(report.cautions(panel.session.analysis)[0], quote=False))
 
 
 def test_values_set_aside_and_left_out_are_listed(panel, tmp_path):
     screening = panel.session.analysis.screening
-    rows = export.set_aside_rows(panel.session.analysis, panel.session.choices)
+    rows = document.set_aside_rows(panel.session.analysis)
     assert len(rows) == sum(screening.excluded_counts.values()) >= 3
     text = panel.export_report(tmp_path / "report.html").read_text(encoding="utf-8")
     assert "gauge dropped before this reading" in text
@@ -100,19 +105,19 @@ def test_refuses_other_suffixes_and_reports_write_failures(panel, tmp_path):
 
 def test_choice_rows_name_the_decisions(panel):
     analysis = panel.session.analysis
-    rows = dict(export.choice_rows(analysis, panel.session.choices, procedure="pooled_t"))
+    rows = dict(document.choice_rows(analysis, procedure="pooled_t"))
     assert rows["Confidence level"] == "95%"
     assert "picked by the user" in rows["Procedure followed"]
-    assert rows["Question"] == export.direction_text("two-sided")
-    assert export.level_text(0.975) == "97.5%"
+    assert rows["Question"] == "Do wax and resin differ?"
+    assert report.level_text(0.975) == "97.5%"
 
 
 def test_report_date_is_the_one_given(panel):
     when = datetime(2026, 3, 4, 5, 6, tzinfo=timezone.utc)
     analysis = panel.session.analysis
-    page = export.report_html(analysis, panel.session.choices, procedure="welch_t",
-                              findings_html="<p>x</p>", cautions=["be careful"], when=when)
-    assert "2026-03-04 05:06 UTC" in page and "<li>be careful</li>" in page
+    page = export.report_html(analysis, procedure="welch_t", when=when)
+    assert "2026-03-04 05:06 UTC" in page
+    assert f"<li>{html.escape(report.cautions(analysis)[-1], quote=False)}</li>" in page
 
 
 def test_the_checksum_is_named_and_set_to_copy_back_exactly(panel, data_file, tmp_path):
@@ -134,24 +139,21 @@ def test_pdf_pictures_fill_the_text_width_and_no_page_is_left_empty(panel, tmp_p
 
     images = _report_images(analysis, key)
     width = export.pdf_text_width()
-    html = export.report_html(analysis, panel.session.choices, procedure=key,
-                              findings_html=report.render(analysis, procedure=key).html,
-                              cautions=panel.cautions_list(), images=images, embed_images=False,
-                              image_width=width)
+    page = export.report_html(analysis, procedure=key, images=images, embed_images=False, image_width=width)
     # every picture as wide as the text, its caption in a paragraph of its own
-    assert [round(float(w)) for w in re.findall(r"<img [^>]*width='(\d+)'", html)] == [round(width)] * 2
-    assert not re.search(r"<img[^>]*><br>", html)
+    assert [round(float(w)) for w in re.findall(r"<img [^>]*width='(\d+)'", page)] == [round(width)] * 2
+    assert not re.search(r"<img[^>]*><br>", page)
     writer = QPdfWriter(str(tmp_path / "layout.pdf"))
     export._pdf_page_setup(writer)
-    document = export.pdf_document(html, images, writer)
-    layout = document.documentLayout()
-    page = document.pageSize().height()
-    last = document.lastBlock()
+    pdf = export.pdf_document(page, images, writer)
+    layout = pdf.documentLayout()
+    height = pdf.pageSize().height()
+    last = pdf.lastBlock()
     while last.isValid() and not last.text().strip():
         last = last.previous()
     bottom = layout.blockBoundingRect(last).bottom()
     # the last page holds the last words (an empty block would have opened a page of its own)
-    assert document.pageCount() == int(bottom // page) + 1
+    assert pdf.pageCount() == int(bottom // height) + 1
 
 
 @pytest.mark.skipif(not __import__("shutil").which("pdftotext"), reason="needs pdftotext (poppler-utils)")
@@ -195,3 +197,52 @@ def test_report_table_rows_stay_whole_and_hold_no_stray_text(panel, tmp_path):
     assert len(parser.rows) > 20
     assert all("page-break-inside: avoid" in style for style in parser.rows)
     assert not [text for text in parser.stray if text.strip() or text]
+
+
+def test_the_window_writes_the_engines_page(panel, tmp_path):
+    analysis = panel.session.analysis
+    written = panel.export_report(tmp_path / "report.html").read_text(encoding="utf-8")
+    # the two plots are the window's own; everything else is the engine's page, word for word
+    pictures = re.findall(r"<p style='line-height: 100%; [^']*'><img .*?</i></p>", written)
+    assert len(pictures) == 2
+    for picture in pictures:
+        written = written.replace(picture, "")
+    stamp = re.compile(r"<p>Written on [^<]*</p>")  # the minute it was written
+    assert stamp.sub("", written) == stamp.sub("", document.html(analysis, panel.procedure_key()))
+
+
+def test_the_window_shows_the_cautions_and_the_question_of_the_report(panel, qtbot):
+    from desktop.setup_panel import SetupPanel
+
+    from engine.text import visible_html
+
+    analysis = panel.session.analysis
+    panel.refresh()
+    shown = panel.cautions.text()
+    assert panel.cautions_list() == report.cautions(analysis)
+    assert all(f"<li>{visible_html(caution)}</li>" in shown for caution in report.cautions(analysis))
+    setup = SetupPanel(panel.session)
+    qtbot.addWidget(setup)
+    asked = [setup.question.itemText(i) for i in range(setup.question.count())]
+    assert dict(document.choice_rows(analysis))["Question"] in asked
+    assert report.level_text(analysis.spec.level) in panel.table.horizontalHeaderItem(2).text()
+    setup.cleanup()
+
+
+@pytest.mark.parametrize("key", ["welch_t", "permutation_mean"])
+def test_the_window_names_a_result_as_the_report_does(panel, key):
+    analysis = panel.session.analysis
+    panel.session.choose(procedure=key)
+    panel.refresh()
+    names = [panel.table.item(r, 0).text() for r in range(panel.table.rowCount())]
+    plain = report.render(analysis, procedure=key).plain.splitlines()
+    shown = report.display_numbers(analysis, key)
+    # each row the window shows is a row of the report's table, by the same name and value
+    expected = [(report.estimate_label(analysis.procedures[key], analysis.groups.labels), shown.estimate),
+                (report.p_label(analysis.spec.alternative), shown.p)]
+    expected += [(report.DF_ROW, shown.df)] if shown.df is not None else []
+    expected += [(report.MC_SE_ROW, shown.mc_se)] if shown.mc_se is not None else []
+    assert (shown.mc_se is not None) == (key == "permutation_mean")
+    for name, value in expected:
+        assert name in names
+        assert any(line.startswith(name) and line.endswith(f"  {value}") for line in plain), name

@@ -96,8 +96,7 @@ def test_html_in_labels_and_names_is_shown_literally(make_window, qtbot, settle,
     assert f"{HUGE} minus {SMALL}" in axis.label.toPlainText()
     assert f"{HUGE} minus {SMALL}" in findings.table.item(0, 0).text()
 
-    page = export.report_html(state.analysis, state.choices, procedure=state.analysis.recommendation.key,
-                              findings_html=findings.report_text().html, cautions=findings.cautions_list())
+    page = export.report_html(state.analysis, procedure=state.analysis.recommendation.key)
     assert HUGE not in page and html.escape(HUGE) in page and html.escape(PICTURE) in page
 
     bar = window.message_bar

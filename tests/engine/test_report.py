@@ -306,7 +306,7 @@ def test_html_is_well_formed_with_tables_and_escaped_labels(groups, key):
     assert set(parsed.tags) <= {"p", "h3", "ul", "li", "table", "thead", "tbody", "tr", "th", "td"}
     text = "".join(parsed.text)
     assert "adhesive <new> & co" in text  # unescaped back by the parser: the label survives intact
-    assert "not the size of an effect" in text
+    assert "it is not the size of the difference" in text  # the cautions close the report
 
 
 def test_html_tables_share_the_width_and_keep_short_cells_on_one_line(groups):
@@ -426,7 +426,9 @@ def test_plain_paragraphs_are_single_lines(full_analysis):
     text = render(full_analysis)
     lines = text.plain.splitlines()
     assert len(text.paragraph) > 120 and text.paragraph in lines
-    assert report.CAUTION_LINE in lines
+    assert report.cautions(full_analysis)
+    for caution in report.cautions(full_analysis):  # every caution closes the report
+        assert f"- {caution}" in lines
     assert report.agreement(full_analysis) in lines
     for reason in full_analysis.recommendation.reasons:
         assert f"- {reason}" in lines

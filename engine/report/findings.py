@@ -1,0 +1,161 @@
+"""The report of one procedure: a paragraph, then the result, the groups, every procedure side
+by side, the reasons for the suggestion and the checks, as HTML and as plain text."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from ..side_by_side import procedure_table
+from ..text import visible
+from ..wording import capital, gloss_line
+from . import tables
+from .cautions import caution_blocks
+from .numbers import STATISTIC_LABEL, DisplayNumbers, _fixed, level_text, _numbers, _summary_decimals, display_numbers
+from .sentences import DF_ROW, MC_SE_ROW, STATISTIC_ROW, agreement, estimate_label, p_label, paragraph
+
+__all__ = ["ReportText", "render", "findings_blocks"]
+
+@dataclass(frozen=True)
+class ReportText:
+    """The report of one procedure: a paragraph, an HTML fragment and plain text."""
+
+    paragraph: str
+    html: str
+    plain: str
+
+
+def _result_rows(analysis, key: str, result, numbers: DisplayNumbers) -> list[tuple[str, str]]:
+    sided = "one-sided " if result.alternative != "two-sided" else ""
+    first, second = analysis.groups.labels
+    rows = [("Procedure", capital(result.name)), (estimate_label(result, (first, second)), numbers.estimate)]
+    if numbers.interval is not None:
+        rows.append((f"{sided}{numbers.level} confidence interval".capitalize(), numbers.interval))
+    label = STATISTIC_LABEL.get(key)
+    if label and numbers.statistic is not None:
+        rows.append((STATISTIC_ROW, f"{label.split()[-1]} = {numbers.statistic}"))
+    if numbers.df is not None and key != "z":
+        rows.append((DF_ROW, numbers.df))
+    if numbers.p is not None:
+        rows.append((p_label(result.alternative), numbers.p))
+    if numbers.mc_se is not None:
+        rows.append((MC_SE_ROW, numbers.mc_se))
+    if numbers.effect is not None:
+        text = numbers.effect
+        if numbers.effect_interval is not None:
+            text += f" ({sided}{numbers.level} CI {numbers.effect_interval})"
+        rows.append((f"Effect size: {numbers.effect_name}", text))
+    rows.append(("How it was found", result.method))
+    source = analysis.source or {}
+    if source.get("file"):
+        where = str(source["file"]) + (f", sheet {source['sheet']}" if source.get("sheet") else "")
+        rows.append(("Data", where))
+    return rows
+
+
+def _summary_rows(analysis, decimals: int | None) -> tuple[list[str], list[list[str]]]:
+    head = ["Group", "n", "Mean", "SD", "Median", "Quartiles", "Range"]
+    body = [[s.label, f"{s.n:,}", _fixed(s.mean, decimals), _fixed(s.sd, decimals),
+             _fixed(s.median, decimals), f"{_fixed(s.q1, decimals)} to {_fixed(s.q3, decimals)}",
+             f"{_fixed(s.min, decimals)} to {_fixed(s.max, decimals)}"] for s in analysis.summaries]
+    return head, body
+
+
+def _side_by_side_blocks(analysis) -> list[tuple]:
+    rows = analysis.robustness.rows
+    if not rows:
+        return []
+    head, body, notes = procedure_table(
+        analysis.robustness, analysis.spec.alternative, analysis.groups.labels,
+        level_text(analysis.robustness.level),
+        lambda key: _numbers(analysis, key, analysis.procedures[key]))
+    blocks = [("h", "Every applicable procedure side by side"), ("p", agreement(analysis)),
+              ("grid", head, body, 1, True, 3)]
+    blocks += [("small", note) for note in dict.fromkeys(notes)]
+    return blocks
+
+
+def _reason_blocks(analysis, key: str) -> list[tuple]:
+    suggestion = analysis.recommendation
+    title = (f"Why the {suggestion.name}" if key == suggestion.key
+             else f"Why the {suggestion.name} was suggested")
+    blocks = [("h", title)]
+    if suggestion.reasons:
+        blocks.append(("list", list(suggestion.reasons)))
+    weighed = [f"{capital(option.name)}: {option.why_not}" for option in suggestion.considered]
+    if weighed:
+        blocks += [("h", "Also weighed"), ("list", weighed)]
+    return blocks
+
+
+def _check_blocks(analysis) -> list[tuple]:
+    diagnostics = analysis.diagnostics
+    readings = [finding.text for finding in getattr(diagnostics, "findings", ())]
+    readings += [note.text for note in getattr(analysis, "notes", ())]
+    if not readings:
+        return []
+    return [("h", "Shape and spread of the groups"), ("list", readings),
+            ("small", gloss_line("skewness", "excess kurtosis", "interquartile range"))]
+
+
+def _blocks(analysis, key: str, paragraph: str, rows, head, body) -> list[tuple]:
+    blocks: list[tuple] = [("p", paragraph), ("pairs", rows), ("h", "The groups"),
+                           ("grid", head, body, 1, False)]
+    blocks += _side_by_side_blocks(analysis)
+    blocks += _reason_blocks(analysis, key)
+    blocks += _check_blocks(analysis)
+    return blocks
+
+
+def render(analysis, *, procedure: str | None = None) -> ReportText:
+    """The report of one procedure from a finished analysis.
+
+    Parameters
+    ----------
+    analysis : engine.analysis.Analysis
+        The finished analysis.
+    procedure : str or None, keyword-only
+        A procedure key; None reports the recommended one.
+
+    Returns
+    -------
+    ReportText
+        A paragraph in the usual reporting convention (groups with their summaries, the estimate
+        with its interval, the test statistic with degrees of freedom and the p-value, the effect
+        size with its interval, values left out); an HTML fragment and a plain-text version
+        that carry what a reviewer asks for: the paragraph, the result and the groups as
+        tables, every applicable procedure side by side (estimate with the direction of the
+        difference, interval, p-value, reading), the reasons for the suggested procedure and
+        the alternatives weighed, the shape and spread readings with a plain gloss of their
+        terms, and the cautions (:func:`engine.report.cautions`). Plain-text paragraphs are
+        single lines.
+
+    Notes
+    -----
+    Estimates and interval ends share one number of decimals (three significant digits of the
+    largest); standardised effect sizes have two decimals; p-values follow :func:`format_p`.
+    One-sided intervals are written with their open end in words ("at least 1.2").
+
+    References
+    ----------
+    American Psychological Association (2020). Publication Manual, 7th ed., chapter 6 (numbers
+    and statistics in text).
+    """
+    words, blocks = _findings(analysis, procedure)
+    blocks += caution_blocks(analysis)
+    return ReportText(paragraph=words, html=tables.html(blocks), plain=tables.plain(blocks))
+
+
+def findings_blocks(analysis, procedure: str | None = None) -> list[tuple]:
+    """The blocks of :func:`render`'s report without its closing cautions (a longer document
+    places them after its own parts)."""
+    return _findings(analysis, procedure)[1]
+
+
+def _findings(analysis, procedure: str | None) -> tuple[str, list[tuple]]:
+    numbers = display_numbers(analysis, procedure)  # refuses a procedure that was not run
+    key = procedure or analysis.recommendation.key
+    result = analysis.procedures[key]
+    words = visible(paragraph(analysis, key, result, numbers))  # one line, as it is shown
+    rows = _result_rows(analysis, key, result, numbers)
+    head, body = _summary_rows(analysis, _summary_decimals(analysis, numbers.decimals))
+    return words, _blocks(analysis, key, words, rows, head, body)

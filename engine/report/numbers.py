@@ -1,0 +1,245 @@
+"""The figures of one procedure's result as the report writes them, and the rules behind them.
+
+Every number the report, the window and the command show passes through here or through
+``engine.rounding``: the estimate and its interval share decimals, effect sizes keep two (more
+while a narrow interval would read as one number), p-values follow ``format_p``.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+from ..rounding import fixed, format_number, format_p, shared_decimals
+
+__all__ = ["DisplayNumbers", "display_numbers", "format_interval", "level_text", "EFFECT_DECIMALS",
+           "DIGITS", "EFFECT_FOR", "STATISTIC_LABEL", "RANK_KEYS", "U_KEYS", "MEDIAN_KEYS"]
+
+# Standardised effect sizes are shown with two decimals (common practice), more when a narrow
+# interval would otherwise show the same number at both ends (very large groups).
+EFFECT_DECIMALS = 2
+# Significant digits of estimates, intervals and statistics in the text.
+DIGITS = 3
+
+# The effect size that goes with each procedure's question.
+EFFECT_FOR: dict[str, tuple[str, ...]] = {
+    "welch_t": ("hedges_g", "cohen_d"),
+    "pooled_t": ("hedges_g", "cohen_d"),
+    "z": ("hedges_g", "cohen_d"),
+    "permutation_mean": ("hedges_g", "cohen_d"),
+    "bootstrap_mean": ("hedges_g", "cohen_d"),
+    "mann_whitney": ("rank_biserial", "common_language"),
+    "brunner_munzel": (),  # its estimate and interval are the common-language effect size
+    "permutation_median": ("rank_biserial", "common_language"),
+    "bootstrap_median": ("rank_biserial", "common_language"),
+}
+# How each procedure's statistic is written ("Welch t(52.3) = 2.84"); None: not written.
+STATISTIC_LABEL: dict[str, str | None] = {
+    "welch_t": "Welch t",
+    "pooled_t": "pooled t",
+    "z": "z",
+    "mann_whitney": "Mann-Whitney U",
+    "brunner_munzel": "Brunner-Munzel W",
+    "permutation_mean": None,
+    "permutation_median": None,
+    "bootstrap_mean": None,
+    "bootstrap_median": None,
+}
+RANK_KEYS = ("mann_whitney", "brunner_munzel")
+# Procedures whose statistic is U, a whole or half number.
+U_KEYS = ("mann_whitney",)
+MEDIAN_KEYS = ("permutation_median", "bootstrap_median")
+
+
+@dataclass(frozen=True)
+class DisplayNumbers:
+    """The display strings of one procedure's result, shared by the paragraph and the tables.
+
+    ``effect_key`` and ``effect_name`` name the effect size paired with the procedure (None
+    when none was computed); ``decimals`` is shared by the estimate, its interval and the group
+    summaries (None: each in scientific notation).
+    """
+
+    level: str
+    estimate: str
+    interval: str | None
+    statistic: str | None
+    df: str | None
+    p: str | None
+    mc_se: str | None
+    effect_key: str | None
+    effect_name: str | None
+    effect: str | None
+    effect_interval: str | None
+    decimals: int | None
+
+
+def level_text(level: float) -> str:
+    """A confidence level as a percentage: 0.95 -> "95%", 0.975 -> "97.5%".
+
+    Up to four decimals of the percentage, more for a level so close to 1 that four would read
+    as "100%" (a level is always below 1).
+    """
+    for decimals in range(4, 16):
+        text = f"{round(level * 100, decimals):.{decimals}f}".rstrip("0").rstrip(".")
+        if text != "100" or level >= 1:
+            break
+    return f"{text}%"
+
+
+def _decimals_shared(values, digits: int = DIGITS) -> int | None:
+    """Decimals for numbers shown together (see :func:`engine.rounding.shared_decimals`)."""
+    return shared_decimals(values, digits)
+
+
+def _fixed(value: float | None, decimals: int | None, digits: int = DIGITS) -> str:
+    return fixed(value, decimals, digits=digits)
+
+
+def format_interval(interval, *, decimals: int | None = None, digits: int = DIGITS) -> str | None:
+    """An interval in words and numbers: "1.2 to 7.0", "at least 1.2" or "at most 7.0".
+
+    Parameters
+    ----------
+    interval : engine.results.Interval or None
+        None gives None; an open end (one-sided interval) is written in words.
+    decimals : int or None, keyword-only
+        Decimals of both ends; None: enough to show the larger end to ``digits`` significant
+        digits, shared by both ends.
+    digits : int, keyword-only
+        Significant digits when ``decimals`` is None.
+    """
+    if interval is None:
+        return None
+    low, high = interval.low, interval.high
+    if decimals is None:
+        decimals = _decimals_shared([low, high], digits)
+    if low is None and high is None:
+        return "unbounded"
+    # An end the test rejects is left out of the interval; that is said where it decides the
+    # reading (an end at 0, no difference). Elsewhere the open end lies as close to the value
+    # shown as the rounding allows, and "from above 10.6" would only puzzle a reader.
+    low_open = getattr(interval, "low_open", False) and low == 0
+    high_open = getattr(interval, "high_open", False) and high == 0
+    if high is None:
+        return f"{'above' if low_open else 'at least'} {_fixed(low, decimals)}"
+    if low is None:
+        return f"{'below' if high_open else 'at most'} {_fixed(high, decimals)}"
+    if low_open or high_open:
+        return (f"from {'above ' if low_open else ''}{_fixed(low, decimals)} to "
+                f"{'below ' if high_open else ''}{_fixed(high, decimals)}")
+    return f"{_fixed(low, decimals)} to {_fixed(high, decimals)}"
+
+
+def _df_text(df: float | None) -> str | None:
+    if df is None or not math.isfinite(df):
+        return None
+    if abs(df - round(df)) < 1e-9:
+        return f"{int(round(df))}"
+    return format_number(df, digits=DIGITS)
+
+
+def _statistic_text(key: str, value: float | None) -> str | None:
+    if value is None or not math.isfinite(value):
+        return None
+    if key in U_KEYS and abs(value * 2 - round(value * 2)) < 1e-9:
+        return f"{value:.1f}".removesuffix(".0")  # U is a whole or half number
+    return format_number(value, digits=DIGITS)
+
+
+def _effect_decimals(effect) -> int:
+    """Two decimals, or more until the value and the interval's ends that differ read
+    differently."""
+    values = [effect.value, effect.interval.low, effect.interval.high]
+    decimals = shared_decimals(values, start=EFFECT_DECIMALS)
+    return EFFECT_DECIMALS if decimals is None else decimals
+
+
+def _effect_for(analysis, key: str):
+    for name in EFFECT_FOR.get(key, ("hedges_g",)):
+        effect = analysis.effect_sizes.get(name)
+        if effect is not None:
+            return effect
+    return None
+
+
+def display_numbers(analysis, procedure: str | None = None) -> DisplayNumbers:
+    """The figures of one procedure's result as the report writes them.
+
+    Parameters
+    ----------
+    analysis : engine.analysis.Analysis
+        The finished analysis.
+    procedure : str or None, optional
+        A procedure key; None takes the recommended one.
+
+    Returns
+    -------
+    DisplayNumbers
+        The confidence level, the estimate, its interval, the test statistic, degrees of
+        freedom, p-value, Monte Carlo error and the paired effect size with its interval, each as
+        text (None where the procedure gives none), exactly as in :func:`render`'s paragraph and
+        tables, so that a window showing them reads the same as the copied report.
+
+    Raises
+    ------
+    engine.errors.OptionProblem
+        When ``procedure`` was not run for these data.
+
+    Notes
+    -----
+    The estimate and both interval ends share one number of decimals: enough to show the largest
+    of them to three significant digits, more while two of them that differ would read alike
+    (:func:`engine.rounding.shared_decimals`). Standardised effect sizes get two decimals, more
+    while the value and the ends of their interval would otherwise read alike. p-values follow
+    :func:`format_p`.
+
+    References
+    ----------
+    American Psychological Association (2020). Publication Manual, 7th ed., chapter 6 (numbers
+    and statistics in text).
+    """
+    key = procedure or analysis.recommendation.key
+    _check_procedure(analysis, key)
+    return _numbers(analysis, key, analysis.procedures[key])
+
+
+def _numbers(analysis, key: str, result) -> DisplayNumbers:
+    interval = result.interval
+    ends = [result.estimate] + ([interval.low, interval.high] if interval is not None else [])
+    decimals = _decimals_shared(ends)
+    effect = _effect_for(analysis, key)
+    effect_decimals = EFFECT_DECIMALS if effect is None else _effect_decimals(effect)
+    return DisplayNumbers(
+        level=level_text(interval.level if interval is not None else analysis.spec.level),
+        estimate=_fixed(result.estimate, decimals),
+        interval=format_interval(interval, decimals=decimals),
+        statistic=_statistic_text(key, result.statistic) if STATISTIC_LABEL.get(key) else None,
+        df=_df_text(result.df),
+        p=None if result.p_value is None else format_p(result.p_value),
+        mc_se=(None if result.mc_standard_error is None
+               else format_number(result.mc_standard_error, digits=2)),
+        effect_key=None if effect is None else effect.key,
+        effect_name=None if effect is None else effect.name,
+        effect=None if effect is None else _fixed(effect.value, effect_decimals),
+        effect_interval=None if effect is None else format_interval(effect.interval,
+                                                                    decimals=effect_decimals),
+        decimals=decimals,
+    )
+
+
+def _summary_decimals(analysis, numbers_decimals: int | None) -> int | None:
+    values = []
+    for s in analysis.summaries:
+        values += [s.mean, s.sd, s.median, s.q1, s.q3]
+    own = _decimals_shared(values)
+    if own is None or numbers_decimals is None:
+        return own
+    return max(own, numbers_decimals)
+
+
+def _check_procedure(analysis, key: str) -> None:
+    if key not in analysis.procedures:
+        from ..errors import OptionProblem
+
+        raise OptionProblem(f"The procedure '{key}' was not run for these data, so it cannot be reported.")

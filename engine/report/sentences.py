@@ -1,0 +1,232 @@
+"""The report's sentences: the paragraph of one procedure's result (who was higher, the
+estimate with its interval, the test, the verdict at the chosen level, the values left out) and
+whether the procedures agree.
+"""
+
+from __future__ import annotations
+
+from ..io.screening import EXCLUSION_WORDS
+from ..rounding import p_clause
+from ..side_by_side import PROBABILITY_KEYS, against_question, against_sentence, agreement_text, question_claim, reverse_is_clear
+from .numbers import MEDIAN_KEYS, RANK_KEYS, STATISTIC_LABEL, DisplayNumbers, _fixed, _summary_decimals, level_text
+
+__all__ = ["paragraph", "agreement", "question_text", "procedure_followed", "estimate_label", "p_label",
+           "QUESTIONS", "EXCLUSION_WORDS", "STATISTIC_ROW", "DF_ROW", "MC_SE_ROW"]
+
+# The names of the rows of a result, in the report's table and the window's.
+STATISTIC_ROW = "Test statistic"
+DF_ROW = "Degrees of freedom"
+MC_SE_ROW = "Monte Carlo standard error of p"
+
+# The question in the user's words for each alternative: {a} is group 1, {b} group 2.
+QUESTIONS: tuple[tuple[str, str], ...] = (
+    ("two-sided", "Do {a} and {b} differ?"),
+    ("less", "Is {a} lower than {b}?"),
+    ("greater", "Is {a} higher than {b}?"),
+)
+
+
+def question_text(alternative: str, labels: tuple[str, str]) -> str:
+    """The question asked of the two groups, in words: "Do wax and resin differ?"."""
+    words = dict(QUESTIONS).get(alternative)
+    if words is None:
+        raise ValueError(f"unknown alternative {alternative!r}")
+    return words.format(a=labels[0], b=labels[1])
+
+
+def _measure(analysis) -> str:
+    """The name of the measured quantity when the source gives a single one, else ""."""
+    source = analysis.source or {}
+    values = source.get("value_columns") or ()
+    if source.get("group_column") and len(values) == 1:
+        return str(values[0])
+    return ""
+
+
+def _interval_phrase(numbers: DisplayNumbers, alternative: str, prefix: str = "") -> str:
+    if numbers.interval is None:
+        return "no confidence interval"
+    sided = "one-sided " if alternative != "two-sided" else ""
+    return f"{sided}{prefix}{numbers.level} CI {numbers.interval}"
+
+
+def _group_phrase(summary, key: str, decimals: int | None) -> str:
+    if key in RANK_KEYS or key in MEDIAN_KEYS:
+        return (f"{summary.label} (median {_fixed(summary.median, decimals)}, quartiles "
+                f"{_fixed(summary.q1, decimals)} to {_fixed(summary.q3, decimals)}, n = {summary.n:,})")
+    return (f"{summary.label} (mean {_fixed(summary.mean, decimals)}, SD "
+            f"{_fixed(summary.sd, decimals)}, n = {summary.n:,})")
+
+
+
+def _pair_share(share: float) -> str:
+    """A share of pairs as a percentage that never reads as one half unless it is one half."""
+    for decimals in range(0, 4):
+        text = f"{100 * share:.{decimals}f}"
+        if share == 0.5 or float(text) != 50:
+            return text + "%"
+    return ("just over" if share > 0.5 else "just under") + " 50%"
+
+
+def _rank_direction(analysis, key: str, a: str, b: str) -> str:
+    """Who tended to be higher, from U (the share of pairs in which group 1 is the larger, ties
+    counting half), not from the shift estimate: a claim when the test is clear, otherwise a
+    description of the samples."""
+    result = analysis.procedures[key]
+    n1, n2 = analysis.groups.n
+    u1 = result.details.get("U1")
+    if u1 is None:
+        from ..effects import mann_whitney_u1
+        u1 = mann_whitney_u1(analysis.groups.x, analysis.groups.y)
+    share = u1 / (n1 * n2)
+    # the robustness view's rule: the test is clear when p is below 1 - level
+    clear = (result.p_value is not None
+             and result.p_value < 1 - analysis.spec.level)
+    if clear and share != 0.5:
+        word = "higher" if share > 0.5 else "lower"
+        return f"Values of {a} tended to be {word} than those of {b}"
+    if share == 0.5:
+        return (f"In these samples, values of {a} were higher than those of {b} in as many "
+                "pairs as they were lower")
+    return (f"In these samples, values of {a} were higher than those of {b} in "
+            f"{_pair_share(share)} of pairs (ties counting half)")
+
+
+def _direction(analysis, key: str, estimate: float, result_decimals: int | None) -> str:
+    """The opening clause: who was higher, in the words of the procedure's quantity."""
+    first, second = analysis.summaries
+    decimals = _summary_decimals(analysis, result_decimals)
+    measure = _measure(analysis)
+    a, b = _group_phrase(first, key, decimals), _group_phrase(second, key, decimals)
+    if key in RANK_KEYS:
+        return _rank_direction(analysis, key, a, b)
+    quantity = "median" if key in MEDIAN_KEYS else "mean"
+    quantity = f"{quantity} {measure}" if measure else quantity
+    if estimate > 0:
+        return f"The {quantity} of {a} was higher than that of {b}"
+    if estimate < 0:
+        return f"The {quantity} of {a} was lower than that of {b}"
+    return f"The {quantity} of {a} was the same as that of {b}"
+
+
+def _test_phrase(analysis, key: str, result, numbers: DisplayNumbers) -> str:
+    """ "Welch t(52.3) = 2.84, p = 0.006" and its kin."""
+    alternative = result.alternative
+    first, second = analysis.groups.labels
+    parts = []
+    label = STATISTIC_LABEL.get(key)
+    if label and numbers.statistic is not None:
+        df = f"({numbers.df})" if numbers.df is not None and key != "z" else ""
+        parts.append(f"{label}{df} = {numbers.statistic}")
+    if numbers.p is not None:
+        sided = "one-sided " if alternative != "two-sided" else ""
+        method = "permutation " if key.startswith("permutation") else ""
+        p = f"{sided}{method}{p_clause(result.p_value)}"
+        if method:
+            if numbers.mc_se is not None:
+                p += f" (Monte Carlo standard error {numbers.mc_se})"
+        parts.append(p)
+        if alternative != "two-sided":
+            word = "higher" if alternative == "greater" else "lower"
+            parts.append(f"testing whether {first} is {word} than {second}")
+    elif key.startswith("bootstrap"):
+        parts.append("the bootstrap gives an interval but no p-value")
+    return ", ".join(parts)
+
+
+def estimate_label(result, labels: tuple[str, str]) -> str:
+    """The name of a result's estimate with the direction of a difference: "Difference in
+    means, wax minus resin" (a probability has no direction to name)."""
+    name = result.estimate_name[:1].upper() + result.estimate_name[1:]
+    return name if result.key in PROBABILITY_KEYS else f"{name}, {labels[0]} minus {labels[1]}"
+
+
+def p_label(alternative: str) -> str:
+    """ "p-value", or "One-sided p-value" for a one-sided question."""
+    return "p-value" if alternative == "two-sided" else "One-sided p-value"
+
+
+def procedure_followed(analysis, key: str) -> str:
+    """Which procedure the findings follow and whether it is the suggested one:
+    "Welch t-test (the suggested procedure)"."""
+    suggested = analysis.recommendation
+    name = analysis.procedures[key].name if key in analysis.procedures else key
+    if key == suggested.key:
+        return f"{name} (the suggested procedure)"
+    return f"{name} (picked by the user; the suggestion was {suggested.name})"
+
+
+
+
+def _exclusions(analysis) -> str:
+    """ "4 values were left out before the comparison (3 blank or marked as missing, 1 not a number)." """
+    screening = analysis.screening
+    counts = getattr(screening, "excluded_counts", None) if screening is not None else None
+    if not counts:
+        return ""
+    pairs = list(counts.items()) if hasattr(counts, "items") else list(counts)
+    pairs = [(EXCLUSION_WORDS.get(str(reason), str(reason).replace("_", " ")), int(n))
+             for reason, n in pairs if n]
+    if not pairs:
+        return ""
+    total = sum(n for _, n in pairs)
+    detail = ", ".join(f"{n:,} {words}" for words, n in pairs)
+    verb = "value was" if total == 1 else "values were"
+    return f"{total:,} {verb} left out before the comparison ({detail})."
+
+
+def _verdict(analysis, key: str, result, numbers: DisplayNumbers) -> str:
+    """What the result says at the chosen level, so that a sample difference is not read as a
+    finding when the data cannot tell it from chance (and the reverse)."""
+    row = next((r for r in analysis.robustness.rows if r.key == key), None)
+    labels = analysis.groups.labels
+    against = against_question(result.alternative, result.estimate, key)
+    if row is None and not against:
+        return ""
+    claim = question_claim(result.alternative, labels)
+    if row is not None and row.finds_difference:
+        return f"At {numbers.level} confidence the data give clear evidence of {claim}."
+    if against:
+        clear = reverse_is_clear(result.p_value, analysis.spec.level)
+        return (f"At {numbers.level} confidence the data give no evidence of {claim}, the "
+                f"direction asked about. {against_sentence(result.alternative, labels, clear)}")
+    return (f"At {numbers.level} confidence the data do not give clear evidence of {claim}; "
+            "that does not show the groups are the same.")
+
+
+def paragraph(analysis, key: str, result, numbers: DisplayNumbers) -> str:
+    opening = _direction(analysis, key, result.estimate, numbers.decimals)
+    estimate_name = result.estimate_name
+    prefix = "bootstrap " if key.startswith("bootstrap") else ""
+    body = f"{estimate_name} {numbers.estimate}, {_interval_phrase(numbers, result.alternative, prefix)}"
+    if key.startswith("bootstrap"):
+        body += f" ({analysis.spec.resamples:,} resamples)"
+    test = _test_phrase(analysis, key, result, numbers)
+    sentence = f"{opening}: {body}" + (f"; {test}." if test else ".")
+    sentences = [sentence]
+    verdict = _verdict(analysis, key, result, numbers)
+    if verdict:
+        sentences.append(verdict)
+    if numbers.effect is not None:
+        effect = f"{numbers.effect_name} = {numbers.effect}"
+        if numbers.effect_interval is not None:
+            sided = "one-sided " if result.alternative != "two-sided" else ""
+            effect += f", {sided}{numbers.level} CI {numbers.effect_interval}"
+        sentences.append(effect[:1].upper() + effect[1:] + ".")
+    sentences.extend(w if w.endswith(".") else w + "." for w in result.warnings)
+    excluded = _exclusions(analysis)
+    if excluded:
+        sentences.append(excluded)
+    recommended = analysis.recommendation.key
+    if key != recommended:
+        sentences.append(f"This report uses the {result.name}; the procedure suggested for these "
+                         f"data was the {analysis.recommendation.name}.")
+    return " ".join(sentences)
+
+
+
+def agreement(analysis) -> str:
+    """Whether every applicable procedure gives the same answer, in one to three sentences."""
+    robustness = analysis.robustness
+    return agreement_text(robustness, analysis.spec.alternative, analysis.groups.labels,
+                          level_text(robustness.level))
