@@ -319,7 +319,8 @@ def _parse(data: bytes, name: str) -> Any:
         return json.loads(text, object_pairs_hook=_without_repeats,
                           parse_constant=lambda word: _no_constant(word))
     except json.JSONDecodeError as error:
-        ended = error.pos >= len(text.rstrip())
+        # a string still open at the end, or the text over where more was expected: cut short
+        ended = error.pos >= len(text.rstrip()) or error.msg.startswith("Unterminated string")
         what = "ends too early (the file is cut short)" if ended else \
             f"is not valid JSON at line {error.lineno}, column {error.colno} ({error.msg})"
         raise _refuse(name, f"is damaged: it {what}.") from None
@@ -509,9 +510,10 @@ def _message(status: str, file: str, elsewhere: bool, differences: tuple[str, ..
                 "or other library versions).")
     if status == "source_changed":
         count = len(differences)
-        return (f"{file} has changed since the analysis was saved (its checksum differs); the numbers "
-                "shown are from the file as it is now"
-                + (f", and {count} of them differ from the saved ones." if count else "."))
+        return (f"{file} has changed since the analysis was saved (its checksum differs), so the "
+                "analysis run on it now cannot confirm the saved numbers"
+                + (f"; {count} of its figures differ." if count else
+                   ", although its figures come out the same."))
     listed = "; ".join(differences[:DIFFERENCES_SHOWN])
     more = len(differences) - DIFFERENCES_SHOWN
     return (f"{file} is unchanged, but the analysis now gives other numbers than it saved: {listed}"

@@ -266,6 +266,8 @@ def _one_line_problem(path: Path, pattern: str) -> str:
 
 @pytest.mark.parametrize("damage, pattern", [
     (lambda text: text[: len(text) // 2], "cut short"),
+    (lambda text: text[: text.index('"sha256": "') + 20], "cut short"),
+    (lambda text: text.rstrip()[:-1], "cut short"),
     (lambda text: text.replace(":", ";", 1), "not valid JSON at line"),
     (lambda text: "", "is empty"),
     (lambda text: "[1, 2, 3]", "no set of named members"),
