@@ -35,7 +35,8 @@ from .spec import AnalysisSpec, Source
 
 __all__ = ["FORMAT", "VERSION", "EXTENSION", "MIME_TYPE", "SIZE_LIMIT", "CLOSE_ENOUGH",
            "SavedFileProblem", "SavedAnalysis", "Reopened", "save", "load", "numbers_of",
-           "compare_numbers", "reopen", "source_candidates", "write_atomically", "STATUSES"]
+           "compare_numbers", "reopen", "source_candidates", "write_atomically", "STATUSES",
+           "document_of", "saved_schema"]
 
 FORMAT = "twofold-analysis"  # the "format" member
 VERSION = 1                  # the "version" member; a newer one is refused with a message
@@ -47,6 +48,8 @@ SIZE_LIMIT = 10 * 1024 * 1024
 # computation on another processor or with other library versions can differ in the last bits.
 CLOSE_ENOUGH = 1e-12
 STATUSES = ("same", "close", "numbers_differ", "source_changed", "source_missing")
+SAVED_AT_FORMAT = "%Y-%m-%dT%H:%M:%SZ"  # ISO 8601 in UTC, to the second
+SAVED_AT_EXAMPLE = "2026-12-03T15:20:00Z"
 DIFFERENCES_SHOWN = 5  # differences a one-line message lists before it counts the rest
 
 Progress = Callable[[float, str], None]
@@ -252,7 +255,7 @@ def document_of(analysis, *, path: str | Path | None = None, now: datetime | Non
         "version": VERSION,
         "program_version": __version__,
         "schema_version": SCHEMA_VERSION,
-        "saved_at": moment.strftime("%Y-%m-%dT%H:%M:%SZ"),
+        "saved_at": moment.strftime(SAVED_AT_FORMAT),
         "source_from_here": _relative_to_folder(spec.source.path, folder),
         "spec": spec.to_dict(),
         "numbers": numbers_of(analysis),
@@ -274,6 +277,14 @@ def save(path: str | Path, analysis) -> None:
         pass
     text = json.dumps(document, indent=2, sort_keys=True, ensure_ascii=False, allow_nan=False)
     write_atomically(path, text + "\n")
+
+
+def saved_schema() -> dict[str, Any]:
+    """The JSON Schema of a saved-analysis file, as shipped with the package. Its ``spec`` refers
+    to ``analysis.schema.json#/properties/spec`` (:func:`engine.jsonout.analysis_schema`)."""
+    from importlib.resources import files
+
+    return json.loads((files(__package__) / "schema" / "twofold.schema.json").read_text(encoding="utf-8"))
 
 
 # -- reading ---------------------------------------------------------------------------------------
@@ -402,6 +413,10 @@ def load(path: str | Path) -> SavedAnalysis:
         raise _refuse(name, f"has an unknown file version ({version}).")
     program = _member(document, "program_version", str, name)
     saved_at = _member(document, "saved_at", str, name)
+    try:
+        datetime.strptime(saved_at, SAVED_AT_FORMAT)
+    except ValueError:
+        raise _refuse(name, f"is damaged: 'saved_at' is not a time written as {SAVED_AT_EXAMPLE}.") from None
     schema = document.get("schema_version")
     here = document.get("source_from_here")
     if here is not None and not isinstance(here, str) or isinstance(schema, bool) \

@@ -394,3 +394,56 @@ def test_generated_specs_reopen_to_the_same_numbers(tmp_path, first, second, kin
     again = saved.reopen(loaded)
     assert again.status == "same", again.differences
     assert saved.numbers_of(again.prepared.analysis) == saved.numbers_of(prepared.analysis)
+
+
+# -- the schema -----------------------------------------------------------------------------------------
+def _schema_validator():
+    """The shipped schema, its spec resolved in the shipped --json schema (validated with the
+    ``jsonschema`` package, a reference validator of JSON Schema draft 2020-12)."""
+    import jsonschema
+    from referencing import Registry, Resource
+
+    from engine.jsonout import analysis_schema
+
+    registry = Registry().with_resource("analysis.schema.json", Resource.from_contents(analysis_schema()))
+    schema = saved.saved_schema()
+    jsonschema.Draft202012Validator.check_schema(schema)
+    return jsonschema.Draft202012Validator(schema, registry=registry)
+
+
+@pytest.mark.parametrize("demo", DEMO, ids=lambda p: p.name)
+def test_a_saved_file_validates_against_its_shipped_schema(demo, tmp_path):
+    _, target = _saved_run(demo, tmp_path)
+    _schema_validator().validate(json.loads(target.read_text(encoding="utf-8")))
+
+
+@pytest.mark.parametrize("edit", [
+    lambda d: d.update(version=2),
+    lambda d: d.update(format="other"),
+    lambda d: d["spec"].update(seed=None),
+    lambda d: d["spec"]["source"].update(sha256=None),
+    lambda d: d["spec"].update(layout="diagonal"),
+    lambda d: d["numbers"]["procedures"]["welch_t"].update(p_value="small"),
+    lambda d: d["numbers"]["groups"].pop(),
+    lambda d: d.update(saved_at="yesterday"),
+])
+def test_the_schema_refuses_what_load_refuses(good, edit):
+    import jsonschema
+
+    target, document = good
+    edit(document)
+    with pytest.raises(jsonschema.ValidationError):
+        _schema_validator().validate(document)
+    with pytest.raises(SavedFileProblem):
+        saved.load(_written(target, document))
+
+
+def test_the_schema_is_among_the_package_data_the_wheel_ships():
+    import fnmatch
+    import tomllib
+
+    project = Path(__file__).parents[2]
+    patterns = tomllib.loads((project / "pyproject.toml").read_text(encoding="utf-8"))[
+        "tool"]["setuptools"]["package-data"]["engine"]
+    assert any(fnmatch.fnmatch("schema/twofold.schema.json", pattern) for pattern in patterns)
+    assert (project / "engine" / "schema" / "twofold.schema.json").is_file()
