@@ -361,7 +361,7 @@ def _check_figures(figures: Any, names: tuple[str, ...], where: str, name: str) 
     if not isinstance(figures, dict) or set(figures) != set(names):
         raise _refuse(name, f"is damaged: the figures of {where} are not {', '.join(names)}.")
     for key, value in figures.items():
-        number = isinstance(value, (int, float)) and not isinstance(value, bool)
+        number = isinstance(value, (int, float)) and not isinstance(value, bool) and math.isfinite(value)
         if not (value is None or number or value in _FIGURE_TEXTS):
             raise _refuse(name, f"is damaged: {where} {key} is not a number.")
 

@@ -82,6 +82,19 @@ def test_numbers_that_differ_exit_2_naming_them(bolts):
     assert "hedges_g value: saved 9.5, now" in err
 
 
+def test_numbers_close_enough_exit_0_and_say_so(bolts):
+    _, target, document = bolts
+    edited = json.loads(target.read_text(encoding="utf-8"))
+    p = edited["numbers"]["procedures"]["welch_t"]["p_value"]
+    edited["numbers"]["procedures"]["welch_t"]["p_value"] = p * (1 + 3e-13)
+    target.write_text(json.dumps(edited), encoding="utf-8")
+    code, out, err = run("analyze", "--spec", target)
+    assert code == 0, err
+    assert "to within 1e-12 relative" in out.splitlines()[0]
+    code, out, err = run("analyze", "--spec", target, "--json")
+    assert code == 0 and json.loads(out) == document
+
+
 def test_a_moved_source_is_missing_then_given_as_the_file(bolts, tmp_path):
     data, target, document = bolts
     moved = tmp_path / "archive" / "bolts.csv"

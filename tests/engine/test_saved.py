@@ -325,6 +325,13 @@ def test_a_hand_edited_file_is_one_line_naming_what_is_wrong(good, edit, pattern
     _one_line_problem(_written(target, document), pattern)
 
 
+def test_a_number_too_large_for_a_float_is_refused(good):
+    target, document = good
+    document["numbers"]["procedures"]["welch_t"]["df"] = 123.25
+    target.write_text(json.dumps(document).replace("123.25", "1e400"), encoding="utf-8")
+    _one_line_problem(target, "welch_t df is not a number")
+
+
 def test_an_unknown_top_level_member_is_ignored(good):
     target, document = good
     assert saved.load(_written(target, {**document, "comment": "checked by the lab"})).spec.seed is not None
