@@ -152,7 +152,8 @@ def _prepared(args, source_path: Path | None, saved_path: Path | None, locate: s
         reopened = _reopened(saved_path, source_path, locate)
         return reopened.prepared, reopened
     if source_path is None:
-        raise TwofoldError("python -m engine analyze: give the path of a data file, or a saved analysis with --spec (see --help)")
+        raise TwofoldError("python -m engine analyze: give the path of a data file, or a saved analysis "
+                           "with --spec (see --help)")
     return pipeline.from_file(spec=spec_from_arguments(args)), None
 
 
@@ -179,8 +180,11 @@ def _analyze(args, out: TextIO) -> None:
 
 
 def _reported_key(analysis) -> str:
-    key = analysis.recommendation.key
-    return key if key in analysis.procedures else next(iter(analysis.procedures))
+    """The procedure the user picked (a saved analysis may record one), else the suggested one."""
+    for key in (analysis.spec.procedure, analysis.recommendation.key):
+        if key in analysis.procedures:
+            return key
+    return next(iter(analysis.procedures))
 
 
 def _report(args, out: TextIO) -> None:

@@ -24,7 +24,7 @@ from __future__ import annotations
 import json
 import math
 import os
-import tempfile
+import secrets
 from dataclasses import dataclass
 from datetime import datetime, timezone
 from pathlib import Path
@@ -195,39 +195,34 @@ def compare_numbers(saved: Mapping[str, Any], now: Mapping[str, Any]) -> tuple[s
 # -- writing ---------------------------------------------------------------------------------------
 def write_atomically(path: str | Path, text: str) -> None:
     """Write ``text`` (UTF-8) to ``path`` through a temporary file in the same folder renamed into
-    place: the old file stays whole until the new one is complete. Raises
+    place: the old file stays whole until the new one is complete. A new file gets the usual
+    permissions (the system applies the umask), a replaced one keeps its own. Raises
     :class:`SavedFileProblem` naming the file when the folder cannot be written."""
     path = Path(path)
-    folder = path.parent if str(path.parent) else Path(".")
-    temporary = None
+    folder = path.parent
+    temporary = folder / f".{path.name}.{secrets.token_hex(6)}.part"
+    made = False
     try:
-        mode = path.stat().st_mode & 0o777 if path.exists() else _default_mode()
-        with tempfile.NamedTemporaryFile("w", encoding="utf-8", newline="\n", dir=folder,
-                                         prefix=f".{path.name}.", suffix=".part",
-                                         delete=False) as handle:
-            temporary = handle.name
-            handle.write(text)
-            handle.flush()
-            os.fsync(handle.fileno())
-        os.chmod(temporary, mode)
+        kept = path.stat().st_mode & 0o7777 if path.is_file() else None
+        handle = os.open(temporary, os.O_WRONLY | os.O_CREAT | os.O_EXCL | getattr(os, "O_BINARY", 0), 0o666)
+        made = True
+        with open(handle, "wb") as stream:
+            stream.write(text.encode("utf-8"))
+            stream.flush()
+            os.fsync(stream.fileno())
+        if kept is not None:
+            os.chmod(temporary, kept)
         os.replace(temporary, path)
-        temporary = None
+        made = False
     except OSError as error:
         reason = error.strerror or type(error).__name__
         raise SavedFileProblem(f"{path.name} could not be written in {folder}: {reason}.") from error
     finally:
-        if temporary is not None:
+        if made:
             try:
                 os.unlink(temporary)
             except OSError:
                 pass
-
-
-def _default_mode() -> int:
-    """The permissions a new file gets here (0666 less the process's umask)."""
-    mask = os.umask(0)
-    os.umask(mask)
-    return 0o666 & ~mask
 
 
 def _relative_to_folder(source: str, folder: Path) -> str | None:

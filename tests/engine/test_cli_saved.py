@@ -179,3 +179,18 @@ def test_report_refuses_a_changed_source_and_its_own_inputs_as_output(bolts, tmp
     data.rename(moved)
     code, out, err = run("report", target, "--html", tmp_path / "moved.html")
     assert code == 2 and "--source NEW_PLACE" in err
+
+
+def test_the_procedure_picked_in_a_saved_analysis_is_the_one_reported(bolts, tmp_path):
+    _, target, document = bolts
+    edited = json.loads(target.read_text(encoding="utf-8"))
+    picked = next(key for key in document["procedures"] if key != document["recommendation"]["key"])
+    edited["spec"]["procedure"] = picked
+    target.write_text(json.dumps(edited), encoding="utf-8")
+    code, out, err = run("analyze", "--spec", target)
+    assert code == 0, err
+    suggested = document["recommendation"]["name"]
+    assert f"suggested for these data was the {suggested}" in out
+    code, _, err = run("report", target, "--html", tmp_path / "picked.html")
+    assert code == 0, err
+    assert f"suggested for these data was the {suggested}" in (tmp_path / "picked.html").read_text(encoding="utf-8")

@@ -88,6 +88,35 @@ def test_saving_over_the_data_file_is_refused(tmp_path):
     assert data.read_bytes() == before
 
 
+def test_a_failed_write_leaves_the_old_file_whole_and_no_part_behind(tmp_path, monkeypatch):
+    target = tmp_path / "kept.twofold"
+    target.write_text("old", encoding="utf-8")
+    target.chmod(0o600)
+
+    def full_disk(_):
+        raise OSError(28, "No space left on device")
+
+    monkeypatch.setattr(saved.os, "fsync", full_disk)
+    with pytest.raises(SavedFileProblem, match="kept.twofold could not be written .*No space left"):
+        saved.write_atomically(target, "new")
+    monkeypatch.undo()
+    assert target.read_text(encoding="utf-8") == "old"
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["kept.twofold"]
+    saved.write_atomically(target, "new")
+    assert target.read_text(encoding="utf-8") == "new" and target.stat().st_mode & 0o777 == 0o600
+
+
+def test_a_new_file_gets_the_permissions_the_umask_allows(tmp_path):
+    import os
+
+    mask = os.umask(0o027)
+    try:
+        saved.write_atomically(tmp_path / "new.twofold", "{}")
+    finally:
+        os.umask(mask)
+    assert (tmp_path / "new.twofold").stat().st_mode & 0o777 == 0o640
+
+
 def test_a_folder_that_cannot_be_written_is_one_line(tmp_path):
     prepared = pipeline.from_file(DEMO[0], AnalysisSpec(resamples=FEW))
     with pytest.raises(SavedFileProblem, match=r"run.twofold could not be written in .*missing"):
