@@ -189,6 +189,7 @@ def _reported_key(analysis) -> str:
 
 def _report(args, out: TextIO) -> None:
     from . import audit, saved
+    from .report import document
 
     is_saved = args.path.suffix.lower() == saved.EXTENSION
     if not is_saved and args.source is not None:
@@ -201,8 +202,8 @@ def _report(args, out: TextIO) -> None:
         prepared, reopened = _prepared(args, args.path, None)
     keep = [Path(prepared.spec.source.path)] + ([args.path] if is_saved else [])
     audit.refuse_overwriting(args.html, keep)
-    html = audit.audit_html(prepared.analysis, procedure=_reported_key(prepared.analysis),
-                            reopened=reopened)
+    html = document.html(prepared.analysis, procedure=_reported_key(prepared.analysis),
+                         reopened=reopened)
     saved.write_atomically(args.html, html)
     _write_lines(out, [f"Report written to {args.html}"])
 

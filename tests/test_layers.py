@@ -44,7 +44,9 @@ LAYERS: tuple[tuple[str, ...], ...] = (
     # an analysis in words, tables and JSON
     ("engine.side_by_side", "engine.report", "engine.report.*", "engine.jsonout"),
     # the path from a file to an analysis, and the window's session over it
-    ("engine.pipeline", "engine.session"),
+    ("engine.pipeline", "engine.saved", "engine.session"),
+    # where the command may write a report
+    ("engine.audit",),
     # the headless command
     ("engine.cli",),
     ("engine.__main__",),

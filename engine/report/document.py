@@ -9,6 +9,7 @@ the window hands its plots in as :class:`Picture` values.
 
 from __future__ import annotations
 
+import json
 from dataclasses import dataclass
 from datetime import datetime
 from pathlib import Path
@@ -181,8 +182,45 @@ def title(analysis) -> str:
     return f"Comparison of {labels[0]} and {labels[1]}"
 
 
+def _flat(value: Any, prefix: str = "") -> list[tuple[str, Any]]:
+    if isinstance(value, dict):
+        rows: list[tuple[str, Any]] = []
+        for key, inner in value.items():
+            rows += _flat(inner, f"{prefix}.{key}" if prefix else key)
+        return rows
+    if isinstance(value, list) and any(isinstance(item, dict) for item in value):
+        rows = []
+        for number, item in enumerate(value, start=1):
+            rows += _flat(item, f"{prefix} {number}")
+        return rows or [(prefix, value)]
+    return [(prefix, value)]
+
+
+def spec_rows(spec) -> list[tuple[str, str]]:
+    """Every member of the spec as (member, value as the saved file writes it), so a reader can
+    check the report against a ``.twofold`` file line by line."""
+    return [(name, json.dumps(value, ensure_ascii=False)) for name, value in _flat(spec.to_dict())]
+
+
+def rerun_parts(reopened) -> list[str]:
+    """The outcome of running a saved analysis again (an ``engine.saved.Reopened``), and the
+    spec it recorded, member by member."""
+    saved = reopened.saved
+    rows = [("Outcome", reopened.status.replace("_", " ")),
+            ("Saved on", saved.saved_at), ("Saved by", f"Twofold {saved.program_version}")]
+    if reopened.source_used:
+        rows.append(("Data file read", str(reopened.source_used)))
+    parts = ["<h2>The saved analysis, run again</h2>", f"<p>{_escape(reopened.message)}</p>",
+             _table(rows, ("What", "Record"))]
+    if reopened.differences:
+        parts.append("<ul>" + "".join(f"<li>{_escape(d)}</li>" for d in reopened.differences) + "</ul>")
+    parts += ["<h2>Every choice, as the saved analysis records it</h2>",
+              _table(spec_rows(saved.spec), ("Member", "Value"))]
+    return parts
+
+
 def html(analysis, procedure: str | None = None, *, pictures: Sequence[Picture] = (),
-         when: datetime | None = None, image_width: float = HTML_IMAGE_WIDTH) -> str:
+         when: datetime | None = None, image_width: float = HTML_IMAGE_WIDTH, reopened: Any = None) -> str:
     """The whole report as one HTML page.
 
     Parameters
@@ -196,12 +234,16 @@ def html(analysis, procedure: str | None = None, *, pictures: Sequence[Picture] 
         of its own (a line as tall as the picture would leave a gap under it).
     when : datetime or None, keyword-only
         The date written on the report; None: now, in the local time zone.
+    reopened : engine.saved.Reopened or None, keyword-only
+        When the analysis is a saved one run again: its outcome, shown first, and the spec it
+        recorded.
     """
     key = procedure_key(analysis, procedure)
     when = when or datetime.now().astimezone()
     heading = title(analysis)
     parts = [f"<h1>{_escape(heading)}</h1>",
              f"<p>Written on {_escape(when.strftime('%Y-%m-%d %H:%M %Z').strip())} by Twofold.</p>",
+             *(rerun_parts(reopened) if reopened is not None else ()),
              "<h2>The data</h2>", _table(file_rows(analysis), ("What", "Record"), short_names=True),
              "<h2>Choices made</h2>", _table(choice_rows(analysis, key), ("What", "Choice")),
              "<h2>Values set aside</h2>"]

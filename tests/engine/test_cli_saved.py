@@ -4,7 +4,6 @@ their exit codes (0: the saved numbers confirmed; 2: one line saying what is not
 import html
 import io
 import json
-import re
 import shutil
 from pathlib import Path
 
@@ -14,6 +13,7 @@ import pytest
 from engine import saved
 from engine.cli import main
 from engine.jsonout import analysis_schema
+from engine.report import question_text
 
 DEMO = Path(__file__).resolve().parents[2] / "demo_files"
 QUICK = ("--resamples", "300")
@@ -144,7 +144,7 @@ def test_report_of_a_saved_analysis_holds_its_record(bolts, tmp_path):
     assert text.startswith("<!DOCTYPE html>") and text.rstrip().endswith("</html>")
     assert "The saved analysis, run again" in text and "saved numbers exactly" in text
     assert document["spec"]["source"]["sha256"] in text
-    assert f'<td>seed</td><td><code>{document["spec"]["seed"]}</code>' in text
+    assert f'<tr style=\'page-break-inside: avoid;\'><td>seed</td><td>{document["spec"]["seed"]}</td>' in text
     for caution in saved_cautions(document):
         assert html.escape(caution, quote=False) in text or caution in html.unescape(text)
 
@@ -160,7 +160,9 @@ def test_report_of_a_data_file_takes_the_analysis_flags(tmp_path):
     assert code == 0, err
     text = page.read_text(encoding="utf-8")
     assert "The saved analysis, run again" not in text
-    assert re.search(r"<td>question\.kind</td><td><code>&quot;higher&quot;</code>", text)
+    # the question as the report words it (engine.report.question_text), group 1 named first
+    labels = ("slow_release_t_ha", "split_dose_t_ha")
+    assert html.escape(question_text("greater", labels), quote=False) in text
 
 
 def test_report_refuses_a_changed_source_and_its_own_inputs_as_output(bolts, tmp_path):
