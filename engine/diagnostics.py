@@ -15,7 +15,7 @@ import numpy as np
 from scipy import special, stats
 
 from .errors import DataProblem
-from .report import format_number, format_shape, p_clause
+from .rounding import format_number, format_shape, p_clause
 from .wording import plural
 from .results import Finding, Groups, readonly_array
 from .summary import sorted_values
