@@ -20,6 +20,7 @@ from PySide6.QtWidgets import (QAbstractItemView, QApplication, QFileDialog, QHe
                                QSizePolicy, QTableWidget, QTableWidgetItem, QWidget)
 
 from engine import report
+from engine.procedures import registry
 from engine.errors import FileProblem
 from engine.text import visible, visible_html
 from engine.side_by_side import NO_INTERVAL_WHY
@@ -215,7 +216,7 @@ class FindingsPanel(QWidget):
         missing = report.NOT_AVAILABLE
         rows = [
             (f"{result.estimate_name[:1].upper()}{result.estimate_name[1:]}"
-             + ("" if result.key in report.PROBABILITY_KEYS else f" ({labels[0]} minus {labels[1]})"),
+             + ("" if _is_probability(result.key) else f" ({labels[0]} minus {labels[1]})"),
              shown.estimate, shown.interval or "none given",
              STATISTIC_TIPS["difference"] + " " + STATISTIC_TIPS["interval"]),
             (f"Test statistic ({result.statistic_name})" if result.statistic_name else "Test statistic",
@@ -354,7 +355,13 @@ def _difference_rows(robustness) -> list:
     """The rows whose estimate is a difference (the plot's axis), with their names as labels (a
     capital first letter); a probability is left out."""
     return [replace(row, name=report.capital(row.name)) for row in robustness.rows
-            if row.key not in report.PROBABILITY_KEYS]
+            if not _is_probability(row.key)]
+
+
+def _is_probability(key: str) -> bool:
+    """Whether the procedure estimates a probability rather than a difference (its record)."""
+    known = registry.find(key)
+    return known is not None and known.estimate_kind == "probability"
 
 
 def _document_image(plot, draw) -> QImage:

@@ -16,8 +16,8 @@ __all__ = ["ReportText", "DisplayNumbers", "render", "display_numbers", "format_
 
 from .rounding import (NOT_AVAILABLE, P_CEILING, P_FLOOR, SCIENTIFIC_LARGE, SCIENTIFIC_SMALL, fixed,
                        format_number, format_p, format_shape, p_clause, shared_decimals)
-from .side_by_side import (PROBABILITY_KEYS, against_question, against_sentence, agreement_text, procedure_table,
-                           question_claim, reverse_is_clear)
+from .procedures.registry import RECORDS, find as _record
+from .side_by_side import PROBABILITY_KEYS, agreement_text, procedure_table
 from .wording import GLOSSES, capital, gloss_line, plural
 
 
@@ -38,34 +38,15 @@ EFFECT_DECIMALS = 2
 # Significant digits of estimates, intervals and statistics in the text.
 DIGITS = 3
 
-# The effect size that goes with each procedure's question.
-EFFECT_FOR: dict[str, tuple[str, ...]] = {
-    "welch_t": ("hedges_g", "cohen_d"),
-    "pooled_t": ("hedges_g", "cohen_d"),
-    "z": ("hedges_g", "cohen_d"),
-    "permutation_mean": ("hedges_g", "cohen_d"),
-    "bootstrap_mean": ("hedges_g", "cohen_d"),
-    "mann_whitney": ("rank_biserial", "common_language"),
-    "brunner_munzel": (),  # its estimate and interval are the common-language effect size
-    "permutation_median": ("rank_biserial", "common_language"),
-    "bootstrap_median": ("rank_biserial", "common_language"),
-}
+# What the report needs to know of each procedure, from its record (engine.procedures.registry).
+# The effect sizes that go with each procedure's question.
+EFFECT_FOR: dict[str, tuple[str, ...]] = {r.key: r.effect_sizes for r in RECORDS}
 # How each procedure's statistic is written ("Welch t(52.3) = 2.84"); None: not written.
-STATISTIC_LABEL: dict[str, str | None] = {
-    "welch_t": "Welch t",
-    "pooled_t": "pooled t",
-    "z": "z",
-    "mann_whitney": "Mann-Whitney U",
-    "brunner_munzel": "Brunner-Munzel W",
-    "permutation_mean": None,
-    "permutation_median": None,
-    "bootstrap_mean": None,
-    "bootstrap_median": None,
-}
-RANK_KEYS = ("mann_whitney", "brunner_munzel")
+STATISTIC_LABEL: dict[str, str | None] = {r.key: r.statistic_label for r in RECORDS}
+RANK_KEYS = tuple(r.key for r in RECORDS if r.family == "rank")
 # Procedures whose statistic is U, a whole or half number.
-U_KEYS = ("mann_whitney",)
-MEDIAN_KEYS = ("permutation_median", "bootstrap_median")
+U_KEYS = tuple(r.key for r in RECORDS if r.statistic_in_halves)
+MEDIAN_KEYS = tuple(r.key for r in RECORDS if r.estimate_kind == "median")
 
 CAUTION_LINE = ("A p-value is not the size of an effect; a check that passes does not prove an "
                 "assumption; regulated work follows its own rules and needs a qualified "
@@ -324,6 +305,13 @@ def _direction(analysis, key: str, estimate: float, result_decimals: int | None)
     return f"The {quantity} of {a} was the same as that of {b}"
 
 
+def _resampled(key: str) -> str | None:
+    """ "permutation" or "bootstrap" when the procedure's p-value or interval comes from
+    resampling (its record's ``resampled``), else None."""
+    known = _record(key)
+    return None if known is None else known.resampled
+
+
 def _test_phrase(analysis, key: str, result, numbers: DisplayNumbers) -> str:
     """ "Welch t(52.3) = 2.84, p = 0.006" and its kin."""
     alternative = result.alternative
@@ -335,7 +323,7 @@ def _test_phrase(analysis, key: str, result, numbers: DisplayNumbers) -> str:
         parts.append(f"{label}{df} = {numbers.statistic}")
     if numbers.p is not None:
         sided = "one-sided " if alternative != "two-sided" else ""
-        method = "permutation " if key.startswith("permutation") else ""
+        method = "permutation " if _resampled(key) == "permutation" else ""
         p = f"{sided}{method}{p_clause(result.p_value)}"
         if method:
             if numbers.mc_se is not None:
@@ -344,7 +332,7 @@ def _test_phrase(analysis, key: str, result, numbers: DisplayNumbers) -> str:
         if alternative != "two-sided":
             word = "higher" if alternative == "greater" else "lower"
             parts.append(f"testing whether {first} is {word} than {second}")
-    elif key.startswith("bootstrap"):
+    elif _resampled(key) == "bootstrap":
         parts.append("the bootstrap gives an interval but no p-value")
     return ", ".join(parts)
 
@@ -379,27 +367,21 @@ def _verdict(analysis, key: str, result, numbers: DisplayNumbers) -> str:
     """What the result says at the chosen level, so that a sample difference is not read as a
     finding when the data cannot tell it from chance (and the reverse)."""
     row = next((r for r in analysis.robustness.rows if r.key == key), None)
-    labels = analysis.groups.labels
-    against = against_question(result.alternative, result.estimate, key)
-    if row is None and not against:
-        return ""
-    claim = question_claim(result.alternative, labels)
-    if row is not None and row.finds_difference:
-        return f"At {numbers.level} confidence the data give clear evidence of {claim}."
-    if against:
-        clear = reverse_is_clear(result.p_value, analysis.spec.level)
-        return (f"At {numbers.level} confidence the data give no evidence of {claim}, the "
-                f"direction asked about. {against_sentence(result.alternative, labels, clear)}")
-    return (f"At {numbers.level} confidence the data do not give clear evidence of {claim}; "
-            "that does not show the groups are the same.")
+    known = _record(key)
+    question = analysis.spec.question
+    answer = question.answer(finds=None if row is None else row.finds_difference,
+                             estimate=result.estimate, p_value=result.p_value,
+                             no_difference=0.0 if known is None else known.no_difference)
+    return question.verdict_words(answer, analysis.groups.labels, numbers.level)
 
 
 def _paragraph(analysis, key: str, result, numbers: DisplayNumbers) -> str:
     opening = _direction(analysis, key, result.estimate, numbers.decimals)
     estimate_name = result.estimate_name
-    prefix = "bootstrap " if key.startswith("bootstrap") else ""
+    bootstrap = _resampled(key) == "bootstrap"
+    prefix = "bootstrap " if bootstrap else ""
     body = f"{estimate_name} {numbers.estimate}, {_interval_phrase(numbers, result.alternative, prefix)}"
-    if key.startswith("bootstrap"):
+    if bootstrap:
         body += f" ({analysis.spec.resamples:,} resamples)"
     test = _test_phrase(analysis, key, result, numbers)
     sentence = f"{opening}: {body}" + (f"; {test}." if test else ".")

@@ -14,15 +14,17 @@ from typing import Any
 import numpy as np
 from scipy import special, stats
 
-from ..analysis import PROCEDURE_NAMES
-from ..results import Interval, ProcedureResult
+from ..results import Interval, ProcedureResult, frozen_mapping
 from ..summary import sorted_values
 from ._checks import (
     check_alternative, check_choice, check_confidence_level, check_samples,
 )
 from .ranks import pair_counts
 
-__all__ = ["brunner_munzel", "placements"]
+__all__ = ["brunner_munzel", "placements", "NAMES"]
+
+# The plain name of the procedure in this module (engine.procedures.registry shows it).
+NAMES = frozen_mapping({"brunner_munzel": "Brunner-Munzel test, probability of a larger value"})
 
 DISTRIBUTIONS = ("t", "normal")
 
@@ -208,7 +210,7 @@ def brunner_munzel(
         method += "; interval for the probability by Newcombe's method 5"
     return ProcedureResult(
         key="brunner_munzel",
-        name=PROCEDURE_NAMES["brunner_munzel"],
+        name=NAMES["brunner_munzel"],
         estimate=estimate,
         estimate_name="probability that the first group's value is the larger (ties count half)",
         statistic=statistic,

@@ -11,14 +11,14 @@ in memory: the order statistics are selected from the implicit sorted X - Y matr
 from __future__ import annotations
 
 import math
-from typing import Any, Callable
+from typing import Any
 
 import numpy as np
 from scipy import special, stats
 
-from ..analysis import PROCEDURE_NAMES
-from ..results import Interval, ProcedureResult
+from ..results import Interval, ProcedureResult, frozen_mapping
 from ..summary import sorted_values
+from ..tasks import CancelCheck
 from ._checks import (
     check_alternative, check_cancelled, check_choice, check_confidence_level, check_samples,
 )
@@ -33,9 +33,12 @@ __all__ = [
     "EXACT_WORK_AUTO",
     "EXACT_WORK_LIMIT",
     "MATERIALIZE_LIMIT",
+    "NAMES",
 ]
 
-CancelCheck = Callable[[], bool]
+# The plain name of the procedure in this module (engine.procedures.registry shows it).
+NAMES = frozen_mapping({"mann_whitney": "Mann-Whitney U with Hodges-Lehmann shift"})
+
 
 # Work (array elements touched) up to which "auto" counts the exact distribution: about 0.3 s
 # here (2 x 500 values without ties; 2 x 60 values with many ties).
@@ -763,7 +766,7 @@ def mann_whitney(
                     "is shown.")
     return ProcedureResult(
         key="mann_whitney",
-        name=PROCEDURE_NAMES["mann_whitney"],
+        name=NAMES["mann_whitney"],
         estimate=estimate,
         estimate_name="Hodges-Lehmann shift",
         statistic=u1,
