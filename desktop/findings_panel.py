@@ -20,6 +20,7 @@ from PySide6.QtWidgets import (QAbstractItemView, QApplication, QFileDialog, QHe
                                QSizePolicy, QTableWidget, QTableWidgetItem, QWidget)
 
 from engine import report
+from engine.procedures import registry
 from engine.errors import FileProblem
 from engine.text import visible, visible_html
 from engine.side_by_side import NO_INTERVAL_WHY
@@ -343,7 +344,13 @@ def _difference_rows(robustness) -> list:
     """The rows whose estimate is a difference (the plot's axis), with their names as labels (a
     capital first letter); a probability is left out."""
     return [replace(row, name=report.capital(row.name)) for row in robustness.rows
-            if row.key not in report.PROBABILITY_KEYS]
+            if not _is_probability(row.key)]
+
+
+def _is_probability(key: str) -> bool:
+    """Whether the procedure estimates a probability rather than a difference (its record)."""
+    known = registry.find(key)
+    return known is not None and known.estimate_kind == "probability"
 
 
 def _document_image(plot, draw) -> QImage:

@@ -2,7 +2,8 @@
 
 A job is a plain function ``job(progress, cancelled)``: ``progress(fraction, what)`` reports how
 far it got and ``cancelled()`` says whether to stop (the engine raises
-:class:`engine.errors.Cancelled` then). The function knows nothing of Qt. Its result, its failure
+:class:`engine.errors.Cancelled` then; ``engine.tasks.Task.of(progress, cancelled)`` nests them
+in steps). The function knows nothing of Qt. Its result, its failure
 or its stop comes back to the GUI thread as a signal of the worker. Starting a new run cancels
 the one before; a result of a replaced or cancelled run is dropped, even if that run could not
 stop early.
@@ -16,9 +17,11 @@ from typing import Any, Callable
 
 from PySide6.QtCore import QObject, QRunnable, QThreadPool, Signal, Slot
 
+from engine.tasks import CancelCheck, Progress
+
 __all__ = ["Job", "Worker"]
 
-Job = Callable[[Callable[[float, str], None], Callable[[], bool]], Any]
+Job = Callable[[Progress, CancelCheck], Any]  # the engine's progress and cancel callables
 
 _PROGRESS_EVERY = 0.05  # seconds between progress signals, so the GUI thread is never flooded
 

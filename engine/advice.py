@@ -16,9 +16,9 @@ from typing import Mapping
 import numpy as np
 
 from . import diagnostics as checks
-from .analysis import PROCEDURE_NAMES, RESAMPLING_MAX_VALUES
+from .procedures.registry import PROCEDURE_NAMES, RECORDS, RESAMPLING_MAX_VALUES, record
 from .procedures.resampling import BOOTSTRAP_MIN_N
-from .report import format_number
+from .rounding import format_number
 from .results import Groups, frozen_mapping
 from .stats_basics import centred_sd
 
@@ -46,7 +46,7 @@ KNOWN_SD_MISMATCH = checks.SD_RATIO_WARNING
 # RATING_MAX_LEVELS - 1, look like ratings (a 1-5, 1-7 or 0-10 scale): the user is asked whether
 # they are (common practice for rating scales; counts can look the same, hence a question).
 RATING_MAX_LEVELS = 11
-# Resampling is not run above RESAMPLING_MAX_VALUES values in all (engine.analysis), so it is
+# Resampling is not run above RESAMPLING_MAX_VALUES values in all (its records' limit), so it is
 # never suggested there.
 
 WELCH_SOURCES = ("Ruxton 2006, Behavioral Ecology 17:688; Delacre, Lakens and Leys 2017, "
@@ -66,43 +66,8 @@ TIES_HANDLED = ("the rank test allows for ties: its exact version counts them as
                 "its large-sample formula carries the usual correction for them.")
 
 # What choosing each procedure takes for granted, one sentence each (shown when the user picks a
-# procedure other than the suggested one).
-ASSUMPTIONS: Mapping[str, str] = frozen_mapping({
-    "welch_t": ("Assumes independent values and a mean that is close to normally distributed "
-                "(true for bell-shaped values, or for larger groups); the spreads may differ."),
-    "pooled_t": ("Assumes independent values, a mean close to normally distributed, and the same "
-                 "spread (standard deviation) in both groups."),
-    "z": ("Assumes independent values, a mean close to normally distributed, and that the two "
-          "standard deviations given are the true ones, known from outside these data."),
-    "mann_whitney": ("Assumes independent values that can be put in order, and that the two "
-                     "groups have the same shape and spread if they do not differ: only then does "
-                     "a small p-value mean that values of one group tend to be larger, since with "
-                     "unequal spreads it can reject although neither group tends to be larger "
-                     "(Pratt 1964, JASA 59:665); its shift estimate (Hodges-Lehmann) also reads "
-                     "best for groups of the same shape and spread."),
-    "brunner_munzel": ("Assumes independent values that can be put in order; it tests whether a "
-                       "value of one group is more likely to be the larger than a value of the "
-                       "other, allows the groups different spreads and shapes (Brunner and "
-                       "Munzel 2000, Biometrical Journal 42:17), and gives an approximate "
-                       "p-value with fewer than about 10 values in a group."),
-    "permutation_mean": ("Assumes independent values, and tests that the two groups are "
-                         "interchangeable (the same distribution, spread and shape included), "
-                         "not only that the means are equal: with different spreads, above all "
-                         "with unequal group sizes, it can report a difference when the means are "
-                         "equal (Romano 1990, JASA 85:686)."),
-    "permutation_median": ("Assumes independent values, and tests that the two groups are "
-                           "interchangeable (the same distribution, spread and shape included), "
-                           "not that the medians are equal: with different spreads it can report "
-                           "a difference when the medians are equal (Romano 1990, JASA 85:686)."),
-    "bootstrap_mean": ("Assumes independent values and that each group is large enough to stand "
-                       "in for its population; it gives an interval for the difference in means "
-                       "but no p-value, and with fewer than about 10 values in a group the interval "
-                       "is too narrow (it misses the true difference more often than stated; "
-                       "Hesterberg 2015, The American Statistician 69:371)."),
-    "bootstrap_median": ("Assumes independent values and groups large enough to stand in for their "
-                         "populations; it gives an interval for the difference in medians but no "
-                         "p-value, and is coarse when there are many ties."),
-})
+# procedure other than the suggested one): each procedure record's ``assumption``.
+ASSUMPTIONS: Mapping[str, str] = frozen_mapping({r.key: r.assumption for r in RECORDS})
 
 
 @dataclass(frozen=True)
@@ -403,7 +368,7 @@ def _why_not_brunner_munzel(chosen: str, s: _Situation) -> str:
         return ("It asks the same question as the Mann-Whitney test without assuming equal "
                 "spreads; with similar spreads both agree closely, and Mann-Whitney adds an "
                 "estimate of the shift.")
-    if chosen in ("welch_t", "pooled_t", "z", "permutation_mean", "bootstrap_mean"):
+    if record(chosen).estimate_kind == "mean":
         return ("It answers a different question (whether a value of one group is more likely "
                 "to be the larger) rather than comparing means; it serves as a cross-check.")
     return ("It answers whether a value of one group is more likely to be the larger, which is "
@@ -417,7 +382,7 @@ def _why_not(key: str, chosen: str, s: _Situation, *, equal_spread_known: bool, 
     small_doubt = s.small and s.shape_doubtful
     if chosen == "z" and key != "z":
         return "Standard deviations known from outside the data were given, and the z-test uses them."
-    if key in ("welch_t", "pooled_t") and ordinal:
+    if record(key).family == "t" and ordinal:
         return "A mean of ratings assumes equal steps between the scale points."
     if key == "welch_t":
         if chosen == "pooled_t":
@@ -442,19 +407,19 @@ def _why_not(key: str, chosen: str, s: _Situation, *, equal_spread_known: bool, 
         if chosen == "brunner_munzel" or unequal_small:
             return ("With unequal spreads it does not test whether one group tends to be higher: "
                     "a difference in spread alone can make it reject (Pratt 1964, JASA 59:665).")
-        if chosen in ("welch_t", "pooled_t", "z"):
+        if record(chosen).family == "t":
             return ("It answers a different question (whether values of one group tend to be higher) "
                     "rather than comparing means; nothing in the data forces that change.")
         return ("It compares the order of values, not the means; with no far outliers or heavy "
                 "tails the mean can be kept as the quantity of interest.")
     if key == "brunner_munzel":
         return _why_not_brunner_munzel(chosen, s)
-    if key in ("permutation_mean", "bootstrap_mean", "permutation_median", "bootstrap_median") \
-            and not s.resampling_runs:
+    procedure = record(key)
+    if procedure.family == "resampling" and not s.resampling_runs:
         return "Resampling is not run for this many values; the large-sample procedures are accurate."
-    if key.startswith("permutation") and s.unequal_spreads:
+    if procedure.exchangeable and s.unequal_spreads:
         return (f"It tests that the groups are interchangeable, spread and shape included, not only "
-                f"that the {'means' if key.endswith('mean') else 'medians'} are equal; with "
+                f"that the {procedure.estimate_kind}s are equal; with "
                 f"spreads this different ({s.ratio_words()}) it can "
                 "report a difference that is not there (Romano 1990, JASA 85:686).")
     if key == "bootstrap_mean" and s.small:
@@ -465,15 +430,15 @@ def _why_not(key: str, chosen: str, s: _Situation, *, equal_spread_known: bool, 
         return ("It gives no p-value, and with groups this small its interval covers the true "
                 "difference no better than Welch's (Hesterberg 2015, The American Statistician "
                 "69:371).")
-    if key in ("permutation_mean", "bootstrap_mean"):
+    if procedure.family == "resampling" and procedure.estimate_kind == "mean":
         if ordinal:
             return "It compares means, which assumes equal steps between the scale points."
-        if chosen in ("mann_whitney", "brunner_munzel"):
+        if record(chosen).family == "rank":
             return ("Far outliers or heavy tails pull a mean strongly, so a comparison of means is "
                     "fragile here however its p-value is found.")
         return ("It answers the same question as the t-test without the bell-shape assumption; "
                 "nothing in these data calls for that, so it serves as a cross-check.")
-    if key in ("permutation_median", "bootstrap_median"):
+    if procedure.family == "resampling" and procedure.estimate_kind == "median":
         coarse = (" Medians of data with many ties move in jumps, which makes it coarse."
                   if s.ties >= checks.HEAVY_TIES else "")
         return ("A difference in medians is a different quantity from the one compared here, and it "
@@ -503,10 +468,10 @@ def _cautions(chosen: str, s: _Situation, diagnostics, groups: Groups, *, equal_
                    "group tends to be higher (it can reject when neither does, Pratt 1964), and the "
                    "shift estimate is less meaningful as one number. The Brunner-Munzel test "
                    "answers that question with unequal spreads.")
-    if chosen in ("welch_t", "pooled_t", "z") and any(s.far):
+    if record(chosen).family == "t" and any(s.far):
         out.append("Some values lie far from the rest and pull the means; check that they are real "
                    "measurements, and compare with the rank and median procedures.")
-    if chosen in ("permutation_mean", "bootstrap_mean", "permutation_median", "bootstrap_median"):
+    if record(chosen).family == "resampling":
         out.append("Resampled results vary slightly with the random seed; the seed used is recorded "
                    "so the numbers can be repeated.")
     misshapen = [f"group '{label}'" for label, skewed, heavy in zip(s.labels, s.skewed, s.heavy)
@@ -585,11 +550,10 @@ def recommend(diagnostics, groups: Groups, *, equal_spread_known: bool = False, 
         note = (f" Here the values beyond the fence in {_join(calm)} are not that surprising, so "
                 "they did not count." if calm else "")
         reasons.append(FENCE_RULE + note)
-    candidates = [k for k in PROCEDURE_NAMES if k != key and (k != "z" or known_sd is not None)]
-    considered = tuple(ConsideredOption(k, PROCEDURE_NAMES[k], _why_not(k, key, s, **flags))
-                       for k in candidates)
+    candidates = [r for r in RECORDS if r.key != key and (not r.needs_known_sd or known_sd is not None)]
+    considered = tuple(ConsideredOption(r.key, r.name, _why_not(r.key, key, s, **flags))
+                       for r in candidates)
     cautions = _cautions(key, s, diagnostics, groups, **flags)
-    assumptions = {k: ASSUMPTIONS.get(k, "No assumptions recorded for this procedure.")
-                   for k in PROCEDURE_NAMES}
+    assumptions = {r.key: r.assumption for r in RECORDS}
     return Recommendation(key, PROCEDURE_NAMES[key], tuple(reasons), considered, tuple(cautions),
                           assumptions, looks_like_ratings=s.levels is not None)

@@ -1,45 +1,38 @@
 """The whole comparison in one call: summaries, checks, advice, every procedure, effect sizes.
 
-``analyze`` is what the headless command and the window both run. It is the only place that
-knows the list of procedures, so adding one means adding it here (see DEVELOPERS.md).
+``analyze`` is what the headless command and the window both run. It runs the procedures of
+``engine.procedures.registry`` that apply to the design and the question; adding a procedure is
+adding a record there (see DEVELOPERS.md).
 """
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from typing import Any, Callable, Mapping, TypeVar
 
 import numpy as np
 
-from .errors import Cancelled, TwofoldError, names_its_source
+from . import advice, diagnostics, effects
+from .errors import TwofoldError, names_its_source
+from .procedures import registry
+from .question import Question
+from .procedures.registry import (EXCHANGEABLE_NOTE, INTERVAL_ONLY_NOTE, PROCEDURE_NAMES,
+                                  RESAMPLING_MAX_VALUES)
 from .results import (EffectSize, Finding, GroupSummary, Groups, Interval, ProcedureResult,
                       frozen_mapping)
 from .spec import AnalysisSpec
 from .summary import summarize
+from .tasks import CancelCheck, Progress, Task
 
-__all__ = ["RobustnessRow", "Robustness", "Analysis", "analyze", "PROCEDURE_NAMES"]
-
-# Above this many values in all, resampling is left out (and the user told why): the large-sample
-# procedures are then accurate, and 10,000 resamples of millions of values would take minutes.
-# A practical limit of this program, not a statistical rule.
-RESAMPLING_MAX_VALUES = 200_000
+__all__ = ["RobustnessRow", "Robustness", "Analysis", "analyze", "PROCEDURE_NAMES",
+           "RESAMPLING_MAX_VALUES", "INTERVAL_ONLY_NOTE", "EXCHANGEABLE_NOTE"]
 
 T = TypeVar("T")
-Progress = Callable[[float, str], None]
-CancelCheck = Callable[[], bool]
 
-# Plain names for every procedure key the engine knows, in the order they are shown.
-PROCEDURE_NAMES: Mapping[str, str] = frozen_mapping({
-    "welch_t": "Welch t-test",
-    "pooled_t": "pooled t-test",
-    "z": "z-test with known SDs",
-    "mann_whitney": "Mann-Whitney U with Hodges-Lehmann shift",
-    "brunner_munzel": "Brunner-Munzel test, probability of a larger value",
-    "permutation_mean": "permutation test, difference in means",
-    "permutation_median": "permutation test, difference in medians",
-    "bootstrap_mean": "bootstrap interval, difference in means",
-    "bootstrap_median": "bootstrap interval, difference in medians",
-})
+# Shares of the progress bar: the checks before the procedures and the effect sizes after them;
+# the procedures share the rest by their records' ``work``.
+_CHECKS_SHARE = 0.08
+_EFFECTS_SHARE = 0.08
 
 
 @dataclass(frozen=True)
@@ -79,17 +72,6 @@ class Robustness:
         return tuple(row for row in self.rows if row.votes)
 
 
-# Why an interval without a test does not vote: under no difference a bootstrap interval misses 0
-# far more often than 1 - level with small groups (7.6 to 13.5% at 95% in simulations of 5 to 25
-# values per group), so counting it would report disagreement that is not there.
-INTERVAL_ONLY_NOTE = ("It gives an interval but no test, and with small groups such an interval "
-                      "excludes zero more often than its level allows when the groups do not differ; "
-                      "it is shown for its estimate and interval, not counted.")
-EXCHANGEABLE_NOTE = ("It tests that the groups are interchangeable, spread included; with spreads "
-                     "this different a difference in spread alone can make it reject, so it is not "
-                     "counted.")
-
-
 @dataclass(frozen=True, eq=False)
 class Analysis:
     groups: Groups
@@ -116,29 +98,28 @@ class Analysis:
 
 
 def _robustness(procedures: Mapping[str, ProcedureResult], level: float, *,
-                spreads_differ: bool = False) -> Robustness:
+                spreads_differ: bool = False, question: Question | None = None) -> Robustness:
     """Every procedure with a p-value or an interval; only tests that hold here vote.
 
     ``spreads_differ``: the spreads argue against treating the groups as interchangeable, so
-    the permutation tests (which test exactly that) do not vote.
+    the procedures that test exactly that (the permutation tests) do not vote. Whether a row
+    votes, and why not, is its record's (``registry.Procedure.not_voting``); whether it finds
+    what the question looks for is the question's (``Question.finds``).
     """
+    question = question or Question(level=level)
     rows = []
     for key, result in procedures.items():
-        votes, because = True, None
-        if result.p_value is not None:
-            finds = result.p_value < 1 - level
-            if spreads_differ and key.startswith("permutation"):
-                votes, because = False, EXCHANGEABLE_NOTE
-        elif result.interval is not None:
-            # an end that could not be computed (NaN) cannot be said to leave zero out
-            ends = (result.interval.low, result.interval.high)
-            finds = (not any(end is not None and end != end for end in ends)
-                     and not result.interval.contains(0.0))
-            votes, because = False, INTERVAL_ONLY_NOTE
-        else:
+        known = registry.find(key)
+        because = None if known is None else known.not_voting(spreads_differ=spreads_differ)
+        finds = question.finds(p_value=result.p_value, interval=result.interval,
+                               no_difference=0.0 if known is None else known.no_difference)
+        if finds is None:
             continue
+        if result.p_value is None:
+            because = because or INTERVAL_ONLY_NOTE
         rows.append(RobustnessRow(key, result.name, result.estimate, result.estimate_name,
-                                  result.interval, result.p_value, bool(finds), votes, because))
+                                  result.interval, result.p_value, bool(finds), because is None,
+                                  because))
     verdicts = {row.finds_difference for row in rows if row.votes}
     return Robustness(tuple(rows), agree=len(verdicts) <= 1, level=level)
 
@@ -171,78 +152,48 @@ def analyze(
     *,
     screening: Any = None,
     source: Mapping[str, Any] | None = None,
-    progress: Progress | None = None,
+    progress: Progress | Task | None = None,
     cancelled: CancelCheck | None = None,
 ) -> Analysis:
     """Run every applicable procedure, the checks, the effect sizes and the recommendation.
 
     ``progress(fraction, what)`` is called as the work advances; ``cancelled()`` is polled and a
-    True answer raises :class:`engine.errors.Cancelled`. A spec without a seed gets a fresh
-    one, recorded in ``Analysis.spec``: every analysis can be run again to the same numbers.
+    True answer raises :class:`engine.errors.Cancelled` (``progress`` may also be an
+    :class:`engine.tasks.Task`). A spec without a seed gets a fresh one, recorded in
+    ``Analysis.spec``: every analysis can be run again to the same numbers.
     """
     spec = spec.with_seed()
     question, statements = spec.question, spec.statements
-    from . import advice, diagnostics, effects
-    from .procedures import brunner_munzel, ranks, resampling, t
-
     x, y = groups.x, groups.y
-    report = progress or (lambda fraction, what: None)
-    stop = cancelled or (lambda: False)
+    task = Task.of(progress, cancelled)
 
-    def step(fraction: float, what: str) -> None:
-        if stop():
-            raise Cancelled()
-        report(fraction, what)
-
-    common = dict(alternative=question.alternative, confidence_level=question.level)
     notes: list[Finding] = []
     # Each group is sorted once; the summaries, checks, rank test and effect sizes share the copies.
     ordered = dict(sorted_x=np.sort(x), sorted_y=np.sort(y))
     with np.errstate(all="ignore"):
         summaries = (summarize(groups.labels[0], x, ordered=ordered["sorted_x"]),
                      summarize(groups.labels[1], y, ordered=ordered["sorted_y"]))
-        step(0.02, "checking shape and spread")
+        task.step(_CHECKS_SHARE, "checking shape and spread")
         checks = diagnostics.diagnose(groups, **ordered)
-    procedures: dict[str, ProcedureResult] = {}
 
-    def run(key: str, compute: Callable[[], ProcedureResult]) -> None:
-        result = _part(PROCEDURE_NAMES[key], compute, notes)
-        if result is not None:
-            procedures[key] = result
-
-    step(0.08, "t procedures")
-    run("welch_t", lambda: t.welch_t(x, y, **common))
-    run("pooled_t", lambda: t.pooled_t(x, y, **common))
-    if statements.known_sd is not None:
-        run("z", lambda: t.z_test(x, y, sd=statements.known_sd, **common))
-    step(0.12, "rank procedure")
-    run("mann_whitney", lambda: ranks.mann_whitney(x, y, method=spec.rank_method, **common,
-                                                   cancelled=stop, **ordered))
-    run("brunner_munzel", lambda: brunner_munzel.brunner_munzel(x, y, **common, **ordered))
-
-    rng = np.random.default_rng(spec.seed)
-    resampled = [
-        ("permutation_mean", resampling.permutation_test, "mean"),
-        ("permutation_median", resampling.permutation_test, "median"),
-        ("bootstrap_mean", resampling.bootstrap_interval, "mean"),
-        ("bootstrap_median", resampling.bootstrap_interval, "median"),
-    ]
-    if x.size + y.size > RESAMPLING_MAX_VALUES:
+    candidates = registry.applicable(spec)
+    records = [r for r in candidates if r.fits_size(x.size + y.size)]
+    if any(r.family == "resampling" for r in candidates if r not in records):
         notes.append(Finding(
             "resampling_left_out", "note",
             f"The permutation and bootstrap procedures were left out: with {x.size + y.size:,} values "
             "the large-sample procedures are accurate, and resampling would take minutes."))
-        resampled = []
-    start, span = 0.2, 0.7 / max(len(resampled), 1)
-    for i, (key, compute, statistic) in enumerate(resampled):
-        begin = start + i * span
-        step(begin, PROCEDURE_NAMES[key])
-        run(key, lambda compute=compute, statistic=statistic, begin=begin, key=key: compute(
-            x, y, statistic=statistic, n_resamples=spec.resamples, rng=rng, **common,
-            progress=lambda f, what="", b=begin, k=key: report(b + f * span, PROCEDURE_NAMES[k]),
-            cancelled=stop,
-        ))
-    step(0.92, "effect sizes")
+    context = registry.Context(rng=np.random.default_rng(spec.seed), **ordered)
+    procedures: dict[str, ProcedureResult] = {}
+    share = (1.0 - _CHECKS_SHARE - _EFFECTS_SHARE) / max(sum(r.work for r in records), 1.0)
+    for record in records:
+        step = replace(context, task=task.step(share * record.work, record.name))
+        result = _part(record.name, lambda: record.run(x, y, spec, step), notes)
+        if result is not None:
+            procedures[record.key] = result
+
+    task.step(_EFFECTS_SHARE, "effect sizes")
+    common = dict(alternative=question.alternative, confidence_level=question.level)
     rank_test = procedures.get("mann_whitney")
     found = _part("effect sizes", lambda: effects.effect_sizes_with_reasons(
         x, y, **common, **ordered, u1=None if rank_test is None else rank_test.details["U1"]),
@@ -255,7 +206,7 @@ def analyze(
             checks, groups, equal_spread_known=statements.equal_spread_known,
             ordinal=statements.ordinal, known_sd=statements.known_sd,
         )
-    step(1.0, "done")
+    task.report(1.0, "done")
     return Analysis(
         groups=groups,
         spec=spec,
@@ -264,7 +215,7 @@ def analyze(
         recommendation=recommendation,
         procedures=procedures,
         effect_sizes=sizes,
-        robustness=_robustness(procedures, question.level,
+        robustness=_robustness(procedures, question.level, question=question,
                                spreads_differ=advice.spreads_differ(checks, groups)),
         screening=screening,
         source=source or {},

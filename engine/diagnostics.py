@@ -15,7 +15,7 @@ import numpy as np
 from scipy import special
 
 from .errors import DataProblem
-from .report import format_number, format_shape, p_clause
+from .rounding import format_number, format_shape, p_clause
 from .wording import plural
 from .results import Finding, Groups, readonly_array
 from .shapiro_wilk import MAX_N, MIN_N, shapiro_wilk

@@ -17,11 +17,12 @@ from scipy import special
 
 from .errors import DataProblem, OptionProblem
 from .procedures._checks import check_alternative, check_confidence_level, check_samples
+from .procedures.probability_interval import newcombe_limits
 from .procedures.ranks import pair_counts
 from .procedures.t import Moments, moments
 from .results import EffectSize, Interval
 from .root_finding import brent_root
-from .stats_basics import Normal, tail_alpha
+from .stats_basics import tail_alpha
 from .summary import sorted_values
 
 __all__ = [
@@ -476,32 +477,11 @@ def mann_whitney_u1(x: np.ndarray, y: np.ndarray, *, sorted_x: np.ndarray | None
     return float(below.sum(dtype=np.int64)) + 0.5 * float((not_above - below).sum(dtype=np.int64))
 
 
-def _newcombe_variance(theta: float, n1: int, n2: int) -> float:
-    half = (n1 + n2) / 2
-    return theta * (1 - theta) / (n1 * n2) * (
-        1 + (half - 1) * ((1 - theta) / (2 - theta) + theta / (1 + theta)))
-
-
-def _probability_interval(cl: float, n1: int, n2: int, level: float, alternative: str):
-    """Newcombe's method 5 limits for P(X > Y) + 0.5 P(X = Y): roots of (A - t)^2 = z^2 V(t)."""
-    z = Normal().isf(tail_alpha(level, alternative))
-
-    def gap(theta: float) -> float:
-        return (cl - theta) ** 2 - z**2 * _newcombe_variance(theta, n1, n2)
-
-    # at A = 0 or 1 the variance vanishes too, so step just inside, where (A - t)^2 < z^2 V(t)
-    inside = min(0.25, z**2 / (4 * n1 * n2))
-    centre = min(max(cl, inside), 1 - inside)
-    low = 0.0 if cl <= 0 else brent_root(gap, 0.0, centre, xtol=1e-15)
-    high = 1.0 if cl >= 1 else brent_root(gap, centre, 1.0, xtol=1e-15)
-    return low, high
-
-
 def _rank_effects(pair: _Pair, level: float, alternative: str):
     n1, n2 = pair.n1, pair.n2
     u1 = pair.u1
     cl = u1 / (n1 * n2)
-    low, high = _probability_interval(cl, n1, n2, level, alternative)
+    low, high = newcombe_limits(cl, n1, n2, level, alternative)
     return u1, cl, low, high
 
 

@@ -10,6 +10,8 @@ from __future__ import annotations
 
 from typing import Callable
 
+from .procedures.registry import RECORDS, find
+from .question import Question
 from .rounding import format_p
 from .wording import capital, name_list, plural
 
@@ -29,62 +31,54 @@ NO_P_VALUE_WHY = ("A bootstrap gives an interval but no p-value; its row reads a
 
 
 # Procedures whose estimate is a probability (of a value of group 1 being the larger), centred
-# on 1/2 when the groups do not differ, where the others estimate a difference centred on 0.
-PROBABILITY_KEYS = ("brunner_munzel",)
+# on 1/2 when the groups do not differ, where the others estimate a difference centred on 0
+# (their records' ``estimate_kind`` and ``no_difference``).
+PROBABILITY_KEYS = tuple(r.key for r in RECORDS if r.estimate_kind == "probability")
+
+
+def _question(alternative: str, level: float = 0.95) -> Question:
+    return Question.from_alternative(alternative, level)
+
+
+def _no_difference(key: str | None) -> float:
+    known = None if key is None else find(key)
+    return 0.0 if known is None else known.no_difference
 
 
 def against_question(alternative: str, estimate: float | None, key: str | None = None) -> bool:
     """Whether a one-sided question points the other way from an estimate (group 1 minus
     group 2, or for ``PROBABILITY_KEYS`` the chance that group 1's value is the larger):
-    "is group 1 higher?" with group 1 lower in the data, or the reverse."""
-    if estimate is None or estimate != estimate:
-        return False
-    centre = 0.5 if key in PROBABILITY_KEYS else 0.0
-    return ((alternative == "greater" and estimate < centre)
-            or (alternative == "less" and estimate > centre))
+    "is group 1 higher?" with group 1 lower in the data, or the reverse
+    (:meth:`engine.question.Question.points_other_way`)."""
+    return _question(alternative).points_other_way(estimate, _no_difference(key))
 
 
 def reverse_is_clear(p_value: float | None, level: float) -> bool:
     """Whether the one-sided question in the other direction would have been clear at the
-    same level: its p-value, 1 - p for a continuous statistic, is below 1 - level."""
-    return p_value is not None and 1.0 - p_value < 1.0 - level
+    same level (:meth:`engine.question.Question.other_way_clear`)."""
+    return Question(level=level).other_way_clear(p_value)
 
 
-def _word(alternative: str) -> str:
-    return "higher" if alternative == "greater" else "lower"
+def question_claim(alternative: str, labels: tuple[str, str]) -> str:
+    """What the question looks for: "a difference between the groups" or "A being lower than B"."""
+    return _question(alternative).claim(labels)
+
+
+def against_sentence(alternative: str, labels: tuple[str, str], clear: bool) -> str:
+    """The sentences for a one-sided question asked against the direction of the data."""
+    return _question(alternative).other_way_words(labels, clear)
 
 
 def _other(alternative: str) -> str:
     return "lower" if alternative == "greater" else "higher"
 
 
-def question_claim(alternative: str, labels: tuple[str, str]) -> str:
-    """What the question looks for: "a difference between the groups" or "A being lower than B"."""
-    if alternative == "two-sided":
-        return "a difference between the groups"
-    return f"{labels[0]} being {_word(alternative)} than {labels[1]}"
-
-
-def against_sentence(alternative: str, labels: tuple[str, str], clear: bool) -> str:
-    """The sentences for a one-sided question asked against the direction of the data."""
-    first, second = labels
-    strength = "clearly " if clear else ""
-    return (f"The data point {strength}the other way: here {first} was {_other(alternative)} than "
-            f"{second}, while the question asked whether {first} is {_word(alternative)}. A "
-            "one-sided question cannot find a difference in the direction it did not ask about, "
-            "so this result is no sign that the groups are alike; to look for a difference either "
-            "way, the two-sided question has to be chosen before the data are seen.")
-
-
 def row_reading(row, alternative: str, labels: tuple[str, str]) -> str:
-    """The verdict of one side-by-side row in a few words."""
-    if row.finds_difference:
-        if alternative == "two-sided":
-            return "finds a difference"
-        return f"finds {labels[0]} {_word(alternative)}"
-    if against_question(alternative, row.estimate, row.key):
-        return "not clear: the data point the other way"
-    return "no clear difference" if alternative == "two-sided" else "not clear"
+    """The verdict of one side-by-side row in a few words (:meth:`Question.reading`)."""
+    question = _question(alternative)
+    answer = question.answer(finds=row.finds_difference, estimate=row.estimate,
+                             no_difference=_no_difference(row.key))
+    return question.reading(answer, labels)
 
 
 def agreement_text(robustness, alternative: str, labels: tuple[str, str], level_text: str) -> str:

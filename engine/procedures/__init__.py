@@ -6,6 +6,7 @@ holds the Brunner-Munzel test with its interval for P(X > Y) + P(X = Y) / 2; ``r
 permutation tests and bootstrap intervals. Each public function takes the two samples first
 (group 1, then group 2) and its options as keywords, and returns an
 :class:`engine.results.ProcedureResult`. ``_checks`` holds the input checks they share.
+``registry`` holds one record per procedure: what the analysis runs and everything else reads.
 """
 
 __all__ = ["t", "ranks", "brunner_munzel", "resampling"]

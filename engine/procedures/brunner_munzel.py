@@ -14,16 +14,19 @@ from typing import Any
 import numpy as np
 from scipy import special
 
-from ..analysis import PROCEDURE_NAMES
-from ..results import Interval, ProcedureResult
+from ..results import Interval, ProcedureResult, frozen_mapping
 from ..stats_basics import Normal, StudentT, centred_variance, statistic_p, tail_alpha
 from ..summary import sorted_values
+from .probability_interval import newcombe_limits
 from ._checks import (
     check_alternative, check_choice, check_confidence_level, check_samples,
 )
 from .ranks import pair_counts
 
-__all__ = ["brunner_munzel", "placements"]
+__all__ = ["brunner_munzel", "placements", "NAMES"]
+
+# The plain name of the procedure in this module (engine.procedures.registry shows it).
+NAMES = frozen_mapping({"brunner_munzel": "Brunner-Munzel test, probability of a larger value"})
 
 DISTRIBUTIONS = ("t", "normal")
 
@@ -112,7 +115,7 @@ def brunner_munzel(
     the other (p = 0 or 1). The latter gets the permutation probability of so complete a
     separation, 1 / C(N, n1) one-sided (twice that two-sided), the value the studentized
     permutation version of the test (Neubert and Brunner 2007) gives. In both cases the interval
-    is Newcombe's method 5 (:func:`engine.effects.common_language`), which needs no placement
+    is Newcombe's method 5 (:func:`engine.procedures.probability_interval.newcombe_limits`), which needs no placement
     variance; a warning says so.
 
     References
@@ -167,11 +170,9 @@ def brunner_munzel(
         statistic = w
         df_shown = df if distribution == "t" else None
     else:
-        from ..effects import common_language  # lazily: effects imports this package
-
-        fallback = common_language(x, y, confidence_level=level, alternative=alternative)
-        low = fallback.interval.low if fallback.interval.low is not None else 0.0
-        high = fallback.interval.high if fallback.interval.high is not None else 1.0
+        low, high = newcombe_limits(estimate, x.size, y.size, level, alternative)
+        low = 0.0 if alternative == "less" else low  # the open end of a one-sided interval
+        high = 1.0 if alternative == "greater" else high
         df_shown = None
         details.update(standard_error=0.0, degenerate=True)
         if estimate == 0.5:
@@ -201,7 +202,7 @@ def brunner_munzel(
         method += "; interval for the probability by Newcombe's method 5"
     return ProcedureResult(
         key="brunner_munzel",
-        name=PROCEDURE_NAMES["brunner_munzel"],
+        name=NAMES["brunner_munzel"],
         estimate=estimate,
         estimate_name="probability that the first group's value is the larger (ties count half)",
         statistic=statistic,

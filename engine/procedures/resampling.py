@@ -16,28 +16,33 @@ import dataclasses
 import itertools
 import math
 from numbers import Integral
-from typing import Any, Callable
+from typing import Any
 
 import numpy as np
 from scipy.special import bdtr, bdtrc, betaln, ndtr, ndtri, xlog1py, xlogy
 
-from ..analysis import PROCEDURE_NAMES
-from ..errors import DataProblem, OptionProblem
-from ..results import Interval, ProcedureResult
+from ..errors import OptionProblem
+from ..results import Interval, ProcedureResult, frozen_mapping
 from ..stats_basics import centred_sd, quantiles, tail_alpha
 from ._checks import (
     check_alternative,
-    check_cancelled,
     check_choice,
     check_confidence_level,
     check_samples,
 )
+from ..tasks import CancelCheck, Progress, Task
 from .t import mean_difference
 
-__all__ = ["permutation_test", "bootstrap_interval", "STATISTICS", "BOOTSTRAP_MIN_N"]
+__all__ = ["permutation_test", "bootstrap_interval", "STATISTICS", "BOOTSTRAP_MIN_N", "NAMES"]
 
-Progress = Callable[[float, str], None]
-CancelCheck = Callable[[], bool]
+# The plain name of each procedure in this module (engine.procedures.registry shows them).
+NAMES = frozen_mapping({
+    "permutation_mean": "permutation test, difference in means",
+    "permutation_median": "permutation test, difference in medians",
+    "bootstrap_mean": "bootstrap interval, difference in means",
+    "bootstrap_median": "bootstrap interval, difference in medians",
+})
+
 
 STATISTICS: tuple[str, ...] = ("mean", "median")
 
@@ -91,15 +96,6 @@ def _prepare(x, y, statistic, alternative, confidence_level, n_resamples, rng):
     return (x, y, check_choice(statistic, STATISTICS, what="statistic"),
             check_alternative(alternative), check_confidence_level(confidence_level),
             _check_resamples(n_resamples), _check_rng(rng))
-
-
-def _reporter(progress: Progress | None, cancelled: CancelCheck | None, what: str):
-    """One call per finished batch: stop if asked, else report the fraction done."""
-    def step(fraction: float) -> None:
-        check_cancelled(cancelled)
-        if progress is not None:
-            progress(min(1.0, float(fraction)), what)
-    return step
 
 
 # ---------------------------------------------------------------------------- relabellings
@@ -362,8 +358,8 @@ def permutation_test(
         C(n1 + n2, n1), is no larger, every split is enumerated instead.
     rng : numpy.random.Generator, optional
         Source of the random relabellings.
-    progress : callable(fraction, what), optional
-        Called after each batch; the last call has fraction 1.
+    progress : callable(fraction, what) or engine.tasks.Task, optional
+        Called after each batch; the last call has fraction 1 (a task maps it onto its slice).
     cancelled : callable() -> bool, optional
         Polled between batches; True raises :class:`engine.errors.Cancelled`.
 
@@ -411,7 +407,7 @@ def permutation_test(
     x, y, statistic, alternative, level, n_resamples, rng = _prepare(
         x, y, statistic, alternative, confidence_level, n_resamples, rng)
     key = f"permutation_{statistic}"
-    step = _reporter(progress, cancelled, PROCEDURE_NAMES[key])
+    step = Task.of(progress, cancelled, what=NAMES[key]).report  # stops if asked
     unit = _unit(x, y)
     pool = _Pool(x / unit, y / unit, statistic)
     observed = float(pool.statistic_of(pool.observed_mask)[0])
@@ -477,7 +473,7 @@ def permutation_test(
         method += "; no interval here (the bootstrap of medians gives one)"
     step(1.0)
     return ProcedureResult(
-        key=key, name=PROCEDURE_NAMES[key], estimate=float(estimate),
+        key=key, name=NAMES[key], estimate=float(estimate),
         estimate_name=estimate_name, statistic=float(estimate), statistic_name=estimate_name,
         df=None, p_value=float(p_value), interval=interval, alternative=alternative,
         method=method, details=details, warnings=tuple(warnings), mc_standard_error=mc_se,
@@ -653,8 +649,8 @@ def bootstrap_interval(
         Bootstrap replicates to draw.
     rng : numpy.random.Generator, optional
         Source of the resamples.
-    progress : callable(fraction, what), optional
-        Called after each batch; the last call has fraction 1.
+    progress : callable(fraction, what) or engine.tasks.Task, optional
+        Called after each batch; the last call has fraction 1 (a task maps it onto its slice).
     cancelled : callable() -> bool, optional
         Polled between batches; True raises :class:`engine.errors.Cancelled`.
 
@@ -701,7 +697,7 @@ def bootstrap_interval(
     x, y, statistic, alternative, level, n_resamples, rng = _prepare(
         x, y, statistic, alternative, confidence_level, n_resamples, rng)
     key = f"bootstrap_{statistic}"
-    step = _reporter(progress, cancelled, PROCEDURE_NAMES[key])
+    step = Task.of(progress, cancelled, what=NAMES[key]).report  # stops if asked
     first, second = _Sample(x, statistic), _Sample(y, statistic)
     if statistic == "mean":
         estimate = mean_difference(x, y)[2]
@@ -761,7 +757,7 @@ def bootstrap_interval(
                    bias_correction=z0, acceleration=a, interval_kind=used,
                    standard_error=centred_sd(replicates))
     return ProcedureResult(
-        key=key, name=PROCEDURE_NAMES[key], estimate=float(estimate),
+        key=key, name=NAMES[key], estimate=float(estimate),
         estimate_name=estimate_name, statistic=None, statistic_name=None, df=None, p_value=None,
         interval=interval, alternative=alternative,
         method=(f"{used} interval from {n_resamples} bootstrap resamples drawn within each "

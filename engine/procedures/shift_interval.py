@@ -17,7 +17,7 @@ from typing import Callable
 
 import numpy as np
 
-from .ranks import exact_p, normal_p, tied_pmf, u_distribution
+from .rank_laws import exact_p, normal_p, tied_pmf, u_distribution
 
 __all__ = ["ShiftSet", "invert_rank_test", "DISTINCT_PAIRS_LIMIT"]
 

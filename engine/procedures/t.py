@@ -13,13 +13,19 @@ from typing import Any
 
 import numpy as np
 
-from ..analysis import PROCEDURE_NAMES
 from ..errors import DataProblem, OptionProblem
-from ..results import Interval, ProcedureResult
+from ..results import Interval, ProcedureResult, frozen_mapping
 from ..stats_basics import Normal, StudentT, centred_sd, common_scale, critical_value, statistic_p
 from ._checks import check_alternative, check_confidence_level, check_samples
 
-__all__ = ["z_test", "pooled_t", "welch_t", "mean_difference", "Moments", "moments"]
+__all__ = ["z_test", "pooled_t", "welch_t", "mean_difference", "Moments", "moments", "NAMES"]
+
+# The plain name of each procedure in this module (engine.procedures.registry shows them).
+NAMES = frozen_mapping({
+    "welch_t": "Welch t-test",
+    "pooled_t": "pooled t-test",
+    "z": "z-test with known SDs",
+})
 
 
 def mean_difference(x: np.ndarray, y: np.ndarray) -> tuple[float, float, float]:
@@ -109,7 +115,7 @@ def _result(
     details = dict(details, standard_error=standard_error * scale, critical_value=critical)
     return ProcedureResult(
         key=key,
-        name=PROCEDURE_NAMES[key],
+        name=NAMES[key],
         estimate=estimate * scale,
         estimate_name="difference in means",
         statistic=float(statistic),

@@ -10,6 +10,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
+from ..procedures.registry import RECORDS
 from ..rounding import fixed, format_number, format_p, shared_decimals
 
 __all__ = ["DisplayNumbers", "display_numbers", "format_interval", "level_text", "EFFECT_DECIMALS",
@@ -21,34 +22,15 @@ EFFECT_DECIMALS = 2
 # Significant digits of estimates, intervals and statistics in the text.
 DIGITS = 3
 
-# The effect size that goes with each procedure's question.
-EFFECT_FOR: dict[str, tuple[str, ...]] = {
-    "welch_t": ("hedges_g", "cohen_d"),
-    "pooled_t": ("hedges_g", "cohen_d"),
-    "z": ("hedges_g", "cohen_d"),
-    "permutation_mean": ("hedges_g", "cohen_d"),
-    "bootstrap_mean": ("hedges_g", "cohen_d"),
-    "mann_whitney": ("rank_biserial", "common_language"),
-    "brunner_munzel": (),  # its estimate and interval are the common-language effect size
-    "permutation_median": ("rank_biserial", "common_language"),
-    "bootstrap_median": ("rank_biserial", "common_language"),
-}
+# What the report needs to know of each procedure, from its record (engine.procedures.registry).
+# The effect sizes that go with each procedure's question.
+EFFECT_FOR: dict[str, tuple[str, ...]] = {r.key: r.effect_sizes for r in RECORDS}
 # How each procedure's statistic is written ("Welch t(52.3) = 2.84"); None: not written.
-STATISTIC_LABEL: dict[str, str | None] = {
-    "welch_t": "Welch t",
-    "pooled_t": "pooled t",
-    "z": "z",
-    "mann_whitney": "Mann-Whitney U",
-    "brunner_munzel": "Brunner-Munzel W",
-    "permutation_mean": None,
-    "permutation_median": None,
-    "bootstrap_mean": None,
-    "bootstrap_median": None,
-}
-RANK_KEYS = ("mann_whitney", "brunner_munzel")
+STATISTIC_LABEL: dict[str, str | None] = {r.key: r.statistic_label for r in RECORDS}
+RANK_KEYS = tuple(r.key for r in RECORDS if r.family == "rank")
 # Procedures whose statistic is U, a whole or half number.
-U_KEYS = ("mann_whitney",)
-MEDIAN_KEYS = ("permutation_median", "bootstrap_median")
+U_KEYS = tuple(r.key for r in RECORDS if r.statistic_in_halves)
+MEDIAN_KEYS = tuple(r.key for r in RECORDS if r.estimate_kind == "median")
 
 
 @dataclass(frozen=True)

@@ -7,7 +7,8 @@ from __future__ import annotations
 
 from ..io.screening import EXCLUSION_WORDS
 from ..rounding import p_clause
-from ..side_by_side import PROBABILITY_KEYS, against_question, against_sentence, agreement_text, question_claim, reverse_is_clear
+from ..procedures.registry import find as _record
+from ..side_by_side import PROBABILITY_KEYS, agreement_text
 from .numbers import MEDIAN_KEYS, RANK_KEYS, STATISTIC_LABEL, DisplayNumbers, _fixed, _summary_decimals, level_text
 
 __all__ = ["paragraph", "agreement", "question_text", "procedure_followed", "estimate_label", "p_label",
@@ -109,6 +110,13 @@ def _direction(analysis, key: str, estimate: float, result_decimals: int | None)
     return f"The {quantity} of {a} was the same as that of {b}"
 
 
+def _resampled(key: str) -> str | None:
+    """ "permutation" or "bootstrap" when the procedure's p-value or interval comes from
+    resampling (its record's ``resampled``), else None."""
+    known = _record(key)
+    return None if known is None else known.resampled
+
+
 def _test_phrase(analysis, key: str, result, numbers: DisplayNumbers) -> str:
     """ "Welch t(52.3) = 2.84, p = 0.006" and its kin."""
     alternative = result.alternative
@@ -120,7 +128,7 @@ def _test_phrase(analysis, key: str, result, numbers: DisplayNumbers) -> str:
         parts.append(f"{label}{df} = {numbers.statistic}")
     if numbers.p is not None:
         sided = "one-sided " if alternative != "two-sided" else ""
-        method = "permutation " if key.startswith("permutation") else ""
+        method = "permutation " if _resampled(key) == "permutation" else ""
         p = f"{sided}{method}{p_clause(result.p_value)}"
         if method:
             if numbers.mc_se is not None:
@@ -129,7 +137,7 @@ def _test_phrase(analysis, key: str, result, numbers: DisplayNumbers) -> str:
         if alternative != "two-sided":
             word = "higher" if alternative == "greater" else "lower"
             parts.append(f"testing whether {first} is {word} than {second}")
-    elif key.startswith("bootstrap"):
+    elif _resampled(key) == "bootstrap":
         parts.append("the bootstrap gives an interval but no p-value")
     return ", ".join(parts)
 
@@ -179,27 +187,21 @@ def _verdict(analysis, key: str, result, numbers: DisplayNumbers) -> str:
     """What the result says at the chosen level, so that a sample difference is not read as a
     finding when the data cannot tell it from chance (and the reverse)."""
     row = next((r for r in analysis.robustness.rows if r.key == key), None)
-    labels = analysis.groups.labels
-    against = against_question(result.alternative, result.estimate, key)
-    if row is None and not against:
-        return ""
-    claim = question_claim(result.alternative, labels)
-    if row is not None and row.finds_difference:
-        return f"At {numbers.level} confidence the data give clear evidence of {claim}."
-    if against:
-        clear = reverse_is_clear(result.p_value, analysis.spec.level)
-        return (f"At {numbers.level} confidence the data give no evidence of {claim}, the "
-                f"direction asked about. {against_sentence(result.alternative, labels, clear)}")
-    return (f"At {numbers.level} confidence the data do not give clear evidence of {claim}; "
-            "that does not show the groups are the same.")
+    known = _record(key)
+    question = analysis.spec.question
+    answer = question.answer(finds=None if row is None else row.finds_difference,
+                             estimate=result.estimate, p_value=result.p_value,
+                             no_difference=0.0 if known is None else known.no_difference)
+    return question.verdict_words(answer, analysis.groups.labels, numbers.level)
 
 
 def paragraph(analysis, key: str, result, numbers: DisplayNumbers) -> str:
     opening = _direction(analysis, key, result.estimate, numbers.decimals)
     estimate_name = result.estimate_name
-    prefix = "bootstrap " if key.startswith("bootstrap") else ""
+    bootstrap = _resampled(key) == "bootstrap"
+    prefix = "bootstrap " if bootstrap else ""
     body = f"{estimate_name} {numbers.estimate}, {_interval_phrase(numbers, result.alternative, prefix)}"
-    if key.startswith("bootstrap"):
+    if bootstrap:
         body += f" ({analysis.spec.resamples:,} resamples)"
     test = _test_phrase(analysis, key, result, numbers)
     sentence = f"{opening}: {body}" + (f"; {test}." if test else ".")
