@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import argparse
 import json
+import os
 import sys
 from pathlib import Path
 from typing import Sequence, TextIO
@@ -257,10 +258,27 @@ def main(argv: Sequence[str] | None = None, *, out: TextIO | None = None, err: T
         return EXIT_BAD_INPUT
     except (KeyboardInterrupt, SystemExit):
         raise
+    except BrokenPipeError:
+        # the reader went away (``... | head``): nothing more to say, to anyone
+        _quiet(out)
+        return EXIT_UNEXPECTED
     except BaseException as problem:  # noqa: BLE001 - a library's own error or a Rust panic
         err.write(_unexpected(args, problem) + "\n")
         return EXIT_UNEXPECTED
     return 0
+
+
+def _quiet(out: TextIO) -> None:
+    """Point the process's standard output at the null device once its reader has closed the
+    pipe, so that Python's own flush at exit finds nowhere to complain (the way the Python
+    documentation advises for SIGPIPE)."""
+    if out is not sys.stdout:
+        return
+    try:
+        devnull = os.open(os.devnull, os.O_WRONLY)
+        os.dup2(devnull, sys.stdout.fileno())
+    except (OSError, ValueError):
+        pass
 
 
 def _unexpected(args, problem: BaseException) -> str:

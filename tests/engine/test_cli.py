@@ -172,3 +172,16 @@ def test_an_unforeseen_error_is_one_line_naming_the_file(monkeypatch):
     assert code == 1 and out == ""
     assert err.count("\n") == 1 and "bolt_strength.csv" in err and "PanicException" in err
     assert len(err) < 400 and "Traceback" not in err
+
+
+def test_a_reader_that_stops_early_gets_no_error_message(tmp_path):
+    # `python -m engine analyze FILE | head -3`: the pipe closes while the report is written
+    import subprocess
+    import sys
+
+    demo = Path(__file__).parents[2] / "demo_files" / "bolt_strength.csv"
+    command = f"{sys.executable} -m engine analyze '{demo}' --resamples 200 --seed 1 | head -1"
+    done = subprocess.run(["bash", "-c", command], capture_output=True, text=True, timeout=120,
+                          cwd=Path(__file__).parents[2])
+    assert done.stdout == "File: bolt_strength.csv\n"
+    assert done.stderr == ""
