@@ -33,7 +33,7 @@ from ._checks import (
 from ..tasks import CancelCheck, Progress, Task
 from .t import mean_difference
 
-__all__ = ["permutation_test", "bootstrap_interval", "STATISTICS", "BOOTSTRAP_MIN_N", "NAMES"]
+__all__ = ["permutation_test", "bootstrap_interval", "count_extreme", "STATISTICS", "BOOTSTRAP_MIN_N", "NAMES"]
 
 # The plain name of each procedure in this module (engine.procedures.registry shows them).
 NAMES = frozen_mapping({
@@ -236,7 +236,9 @@ class _Pool:
             yield self.pack(members.reshape(-1, self.k))
 
 
-def _count_extreme(null: np.ndarray, observed: float, alternative: str, tolerance: float) -> int:
+def count_extreme(null: np.ndarray, observed: float, alternative: str, tolerance: float) -> int:
+    """How many of the resampled statistics ``null`` are at least as extreme as ``observed``
+    (within ``tolerance``, which counts near-ties as extreme)."""
     if alternative == "greater":
         return int(np.count_nonzero(null >= observed - tolerance))
     if alternative == "less":
@@ -430,7 +432,7 @@ def permutation_test(
         done += rows
         step(0.95 * done / total)
 
-    extreme = _count_extreme(null, observed, alternative, tolerance)
+    extreme = count_extreme(null, observed, alternative, tolerance)
     extra, denominator = (0, total) if exact else (1, total + 1)
     p_value = (extreme + extra) / denominator
     mc_se = None if exact else math.sqrt(p_value * (1 - p_value) / total)

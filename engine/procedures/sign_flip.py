@@ -23,6 +23,7 @@ import numpy as np
 from ..errors import Cancelled, OptionProblem
 from ..results import ProcedureResult
 from ._checks import check_alternative, check_sample
+from .resampling import count_extreme
 
 __all__ = ["sign_flip_test", "flip_means"]
 
@@ -72,14 +73,6 @@ def _random_patterns(rng: np.random.Generator, n: int, total: int, batch: int):
         yield patterns
 
 
-def _count_extreme(null: np.ndarray, observed: float, alternative: str, tolerance: float) -> int:
-    if alternative == "greater":
-        return int(np.count_nonzero(null >= observed - tolerance))
-    if alternative == "less":
-        return int(np.count_nonzero(null <= observed + tolerance))
-    return int(np.count_nonzero(np.abs(null) >= abs(observed) - tolerance))
-
-
 def sign_flip_test(differences: Any, *, alternative: str = "two-sided", n_resamples: int = 10_000,
                    rng: np.random.Generator | None = None, progress: Progress | None = None,
                    cancelled: CancelCheck | None = None) -> ProcedureResult:
@@ -107,7 +100,7 @@ def sign_flip_test(differences: Any, *, alternative: str = "two-sided", n_resamp
     for chunk in patterns:
         if cancelled is not None and cancelled():
             raise Cancelled()
-        extreme += _count_extreme(flip_means(scaled, chunk, tables), observed, alternative, tolerance)
+        extreme += count_extreme(flip_means(scaled, chunk, tables), observed, alternative, tolerance)
         done += chunk.shape[0]
         if progress is not None:
             progress(done / total, "sign-flip permutation test")

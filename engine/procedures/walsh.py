@@ -87,12 +87,18 @@ def _band_around(ordered: np.ndarray, rank: int) -> tuple[int, np.ndarray]:
         middle = low + share * (high - low)
         if not low < middle < high:
             break
-        counted = walsh_count(ordered, middle)
-        if counted >= rank:
-            high, at_high = middle, counted
-        else:
-            low, below = middle, counted
+        low, below, high, at_high = _split(ordered, rank, middle, low, below, high, at_high)
     return below, np.sort(_band(ordered, low, high))
+
+
+def _split(ordered: np.ndarray, rank: int, value: float, low: float, below: int, high: float,
+           at_high: int) -> tuple[float, int, float, int]:
+    """The half of (low, high] split at ``value`` that holds the ``rank``-th average, with the
+    counts at its ends."""
+    counted = walsh_count(ordered, value)
+    if counted >= rank:
+        return low, below, value, counted
+    return value, counted, high, at_high
 
 
 def _bracket(ordered: np.ndarray, rank: int, low: float, below: int, high: float, at_high: int):
@@ -110,11 +116,7 @@ def _bracket(ordered: np.ndarray, rank: int, low: float, below: int, high: float
         guess = float(sample[min(int(edge * _SAMPLE), _SAMPLE - 1)])
         if not low < guess < high:
             continue
-        counted = walsh_count(ordered, guess)
-        if counted >= rank:
-            high, at_high = guess, counted
-        else:
-            low, below = guess, counted
+        low, below, high, at_high = _split(ordered, rank, guess, low, below, high, at_high)
     return low, below, high, at_high
 
 
