@@ -181,8 +181,9 @@ class _Pool:
         """``rows`` independent, uniformly random k-subsets of the n pooled positions.
 
         Each position is first marked independently with probability j / 16 (j the nearest
-        whole number to 16 k / n, or 0 when k / n < 1 / 16), from four random bytes per block of
-        eight; then single positions drawn uniformly at
+        whole number to 16 k / n, or 0 when k / n < 1 / 16), from up to four random bytes per
+        block of eight (one bit plane of U per byte, down to j's lowest set bit); then single
+        positions drawn uniformly at
         random are unmarked (or marked) until exactly k are marked.
         """
         n, k, nb = self.n, self.k, self.n_bytes
@@ -190,17 +191,22 @@ class _Pool:
         if j == 0:
             masks = np.zeros((rows, nb), dtype=np.uint8)
         else:
-            words = -(-4 * rows * nb // 8)
-            planes = rng.bit_generator.random_raw(words).view(np.uint8)[: 4 * rows * nb]
-            planes = planes.reshape(4, rows, nb)
+            # U < j is decided by the bits of U down to j's lowest set bit (below it j has only
+            # zeros), so only those planes are drawn: one byte per block when j = 8 (k = n / 2)
+            lowest = (j & -j).bit_length() - 1
+            used = 4 - lowest
+            words = -(-used * rows * nb // 8)
+            planes = rng.bit_generator.random_raw(words).view(np.uint8)[: used * rows * nb]
+            planes = planes.reshape(used, rows, nb)
             masks = np.zeros((rows, nb), dtype=np.uint8)  # bits of U < j, U = the 4-bit value
             equal = np.full((rows, nb), 255, dtype=np.uint8)
-            for m in (3, 2, 1, 0):
+            for m in range(3, lowest - 1, -1):
+                plane = planes[3 - m]
                 if j >> m & 1:
-                    masks |= equal & ~planes[m]
-                    equal &= planes[m]
+                    masks |= equal & ~plane
+                    equal &= plane
                 else:
-                    equal &= ~planes[m]
+                    equal &= ~plane
         if n % 8:
             masks[:, -1] &= np.uint8((1 << (n % 8)) - 1)
         excess = _POPCOUNT[masks].sum(axis=1, dtype=np.int64) - k
