@@ -1,8 +1,9 @@
 """The one entry point of the bundle built by ``packaging/twofold.spec``.
 
-The bundle holds two executables made from this script: ``Twofold`` (the window, what a
-double-click starts) and ``twofold-cli`` (the headless command, ``python -m engine`` of a
-source install). Which one runs is told by the executable's name. Both also answer:
+The bundle's ``Twofold`` (the window, what a double-click starts) runs this script; so does
+``twofold-cli``, the headless command (``python -m engine`` of a source install): on Linux a
+link to ``Twofold``, on Windows and macOS a console executable of its own. Which one runs is
+told by the name it was started under. Both also answer:
 
 - ``--workbook-child PATH LIMIT`` (first argument): run the workbook reader's child process
   (``engine/io/_workbook_child.py``, shipped beside the modules as a plain file). In a bundle
@@ -10,7 +11,8 @@ source install). Which one runs is told by the executable's name. Both also answ
   way; nothing of Twofold is imported before the child's own script runs.
 - ``--quit-after-paint SECONDS`` (first arguments, window only): once the grid has been painted
   with rows in it, print ``PAINTED <seconds since the epoch>``, keep the window up for SECONDS,
-  then quit through the Quit action; ``NOT PAINTED`` and exit code 3 if no filled grid was
+  then quit through the Quit action; a question the window asks meanwhile (which sheet of a
+  workbook) is answered with the choice it offers first, and printed as ``ANSWERED <title>``; ``NOT PAINTED`` and exit code 3 if no filled grid was
   painted within a minute. The bundle's smoke test and ``tests/benchmarks/bench_bundle.py``
   use it.
 
@@ -72,8 +74,19 @@ def _watch_paint(seconds: float, state: dict):
                 print(f"NOT PAINTED (the window says: {window.message_bar.text or 'nothing'})", flush=True)
                 window.quit_action.trigger()
 
+        def answer_questions() -> None:
+            from PySide6.QtWidgets import QApplication, QDialog
+
+            question = QApplication.activeModalWidget()
+            if isinstance(question, QDialog):
+                print(f"ANSWERED {question.windowTitle()}", flush=True)
+                question.accept()
+
         watch = FirstFilledPaint(window)
         grid.viewport().installEventFilter(watch)
+        questions = QTimer(window)
+        questions.timeout.connect(answer_questions)
+        questions.start(100)
         QTimer.singleShot(_PAINT_TIMEOUT_MS, give_up)
 
     return hook

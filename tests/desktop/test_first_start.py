@@ -8,7 +8,7 @@ from PySide6.QtCore import QCoreApplication
 from PySide6.QtGui import QFileOpenEvent
 
 from desktop import desktop_entry
-from desktop.first_start import OFFERED_KEY, FileOpenEvents, offer_registration
+from desktop.first_start import OFFERED_KEY, FileOpenEvents, add_unregister_action, offer_registration
 
 
 def test_the_registration_is_offered_once_and_the_answer_registers(make_window, tmp_path, monkeypatch):
@@ -55,3 +55,21 @@ def test_a_file_open_event_opens_the_file(make_window, qtbot, two_groups_csv):
         qtbot.waitUntil(lambda: window.session.choices.path == Path(two_groups_csv), timeout=20_000)
     finally:
         app.removeEventFilter(watch)
+
+
+def test_the_registration_is_taken_away_from_the_menu(make_window, tmp_path, monkeypatch):
+    monkeypatch.setattr(desktop_entry.shutil, "which", lambda name: None)
+    monkeypatch.setattr(desktop_entry.sys, "platform", "linux")
+    window = make_window()
+    action = add_unregister_action(window)
+    file_menu = next(menu for menu in window.menuBar().findChildren(type(window.recent_menu))
+                     if window.entry_action in menu.actions())
+    items = file_menu.actions()
+    assert items.index(action) == items.index(window.entry_action) + 1
+    window.install_desktop_entry()
+    entry = tmp_path / "xdg-data" / "applications" / "twofold.desktop"
+    assert entry.is_file()
+    action.trigger()
+    assert not entry.exists() and window.message_bar.key == "unregistered"
+    action.trigger()  # a second time nothing is said to be removed
+    assert window.message_bar.key == "not_registered"
