@@ -37,6 +37,16 @@ def _resources() -> Path:
     return Path(frozen) if frozen else Path(__file__).resolve().parent.parent
 
 
+def _qt_plugin_path() -> None:
+    """Where Qt finds its plugins in the bundle (the step of PyInstaller's PySide6 start-up hook
+    that the spec leaves out, so that the commands without a window do not load Qt)."""
+    if getattr(sys, "frozen", False):
+        import os
+
+        qt = _resources() / "PySide6"
+        os.environ["QT_PLUGIN_PATH"] = str(qt / "plugins" if sys.platform == "win32" else qt / "Qt" / "plugins")
+
+
 def run_workbook_child(arguments: list[str]) -> int:
     import runpy
 
@@ -103,6 +113,7 @@ def main(argv: list[str] | None = None) -> int:
         from engine.cli import main as headless
 
         return headless(arguments)
+    _qt_plugin_path()
     from desktop import app
 
     if arguments[:1] == [QUIT_AFTER_PAINT]:
