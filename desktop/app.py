@@ -10,7 +10,7 @@ from __future__ import annotations
 import argparse
 import sys
 from pathlib import Path
-from typing import Any, Sequence
+from typing import Any, Callable, Sequence
 
 __all__ = ["main", "start", "build_parser", "FIRST_PAINT_WAIT_MS"]
 
@@ -119,8 +119,12 @@ def start(argv: Sequence[str] | None = None, **window_options: Any) -> Any:
     return window
 
 
-def main(argv: Sequence[str] | None = None) -> int:
-    """Run Twofold; the exit code is 0 unless the desktop registration failed."""
+def main(argv: Sequence[str] | None = None, *, on_start: Callable[[Any], object] | None = None) -> int:
+    """Run Twofold; the exit code is 0 unless the desktop registration failed.
+
+    ``on_start`` is called with the shown window before the event loop runs (the bundle's
+    smoke test watches the first paint with it).
+    """
     args = build_parser().parse_args(argv)
     if args.install_desktop_entry or args.uninstall_desktop_entry:
         from engine.text import visible
@@ -134,11 +138,19 @@ def main(argv: Sequence[str] | None = None) -> int:
             return 1
         if args.install_desktop_entry:
             print("\n".join(next_steps(where)))
+        elif where is None:
+            print("Twofold was not registered with the desktop for this user: there was nothing to remove.")
         else:
             print(f"Twofold is no longer registered with the desktop (removed from {visible(where)}).")
         return 0
     window = start(argv)
     excepthook = _keep_running(window)
+    if getattr(sys, "frozen", False):  # the bundle made by packaging/twofold.spec
+        from .first_start import bundle_started
+
+        bundle_started(window)
+    if on_start is not None:
+        on_start(window)
     try:
         return _application().exec()
     finally:

@@ -2,14 +2,19 @@
 
 On Linux and other freedesktop systems :func:`install_linux` writes, under ``$XDG_DATA_HOME``
 (by default ``~/.local/share``), a desktop entry ``applications/twofold.desktop`` that accepts
-one file (``%f``) of the six types and the icon ``icons/hicolor/scalable/apps/twofold.svg``;
-then it runs ``update-desktop-database`` where it is installed. The six types are all defined by
-the system's shared MIME database, so no MIME package is written: the user's database keeps
-every other program's names and patterns for them. On Windows :func:`windows_registry_entries`
-lists the per-user file associations (a ProgID under ``HKCU\\Software\\Classes`` and an
-``OpenWithProgids`` value for each extension) and :func:`install_windows` writes them with
-``winreg``. Nothing needs administrator rights, and nothing becomes the default program for a
-type unless the user makes it so; :func:`next_steps` says how.
+one file (``%f``) of the seven types, the icon ``icons/hicolor/scalable/apps/twofold.svg`` and
+a MIME package ``mime/packages/twofold-analysis.xml`` that declares the saved analysis
+(``*.twofold``); then it runs ``update-desktop-database`` and ``update-mime-database`` where they
+are installed. The six data types are all defined by the system's shared MIME database, so the
+package declares none of them: the user's database keeps every other program's names and
+patterns for them. On Windows :func:`windows_registry_entries` lists the per-user file
+associations (a ProgID under ``HKCU\\Software\\Classes`` and an ``OpenWithProgids`` value
+for each data type; a ProgID of its own for the saved analysis) and :func:`install_windows`
+writes them with ``winreg``. Nothing needs administrator rights, and no data type gets Twofold
+as its default program unless the user makes it so; :func:`next_steps` says how.
+
+In the bundle (``packaging/``) the command is the bundle's ``Twofold`` executable, wherever the
+folder was unpacked.
 
 References
 ----------
@@ -38,15 +43,21 @@ from .artwork import svg_file
 
 __all__ = [
     "FILE_TYPES",
+    "SAVED_ANALYSIS",
+    "DATA_TYPES",
+    "MACOS_TYPES",
     "PROG_ID",
+    "ANALYSIS_PROG_ID",
     "RegistrationProblem",
     "RegistryValue",
     "data_home",
     "launch_command",
+    "bundle_executable",
     "exec_line",
     "linux_files",
     "install_linux",
     "uninstall_linux",
+    "refresh_moved_linux_entry",
     "windows_command_line",
     "windows_registry_entries",
     "install_windows",
@@ -64,10 +75,30 @@ FILE_TYPES: Mapping[str, tuple[str, str]] = {
     ".xlsx": ("application/vnd.openxmlformats-officedocument.spreadsheetml.sheet", "spreadsheet workbook"),
     ".xls": ("application/vnd.ms-excel", "older spreadsheet workbook"),
     ".ods": ("application/vnd.oasis.opendocument.spreadsheet", "OpenDocument spreadsheet"),
+    ".twofold": ("application/x-twofold+json", "saved Twofold analysis"),
+}
+# Twofold's own file type: a saved analysis (JSON); no system database knows it, so it is
+# declared here (a MIME package on Linux, an exported type on macOS) and Twofold owns it
+SAVED_ANALYSIS = ".twofold"
+# the data files Twofold reads: every other program's claims on them are left as they are
+DATA_TYPES: tuple[str, ...] = tuple(extension for extension in FILE_TYPES if extension != SAVED_ANALYSIS)
+# macOS uniform type identifiers of the same types, and the application's own identifier
+MACOS_TYPES: Mapping[str, str] = {
+    ".csv": "public.comma-separated-values-text",
+    ".tsv": "public.tab-separated-values-text",
+    ".txt": "public.plain-text",
+    ".xlsx": "org.openxmlformats.spreadsheetml.sheet",
+    ".xls": "com.microsoft.excel.xls",
+    ".ods": "org.oasis-open.opendocument.spreadsheet",
+    ".twofold": "org.twofold.analysis",
+    "app": "org.twofold.Twofold",
 }
 # a MIME package that earlier versions wrote; it is removed on the next install or uninstall
 _OLD_MIME_PACKAGE = "mime/packages/twofold.xml"
+# the MIME package that declares the saved analysis, and only it
+MIME_PACKAGE = "mime/packages/twofold-analysis.xml"
 PROG_ID = "Twofold.DataFile"
+ANALYSIS_PROG_ID = "Twofold.Analysis"
 APP_ID = "twofold"
 _ROOT = Path(__file__).resolve().parent.parent
 
@@ -95,9 +126,12 @@ def _installed() -> bool:
 def launch_command(*, windowed: bool = False) -> list[str]:
     """The command that starts Twofold, without the file argument.
 
-    The ``twofold`` script where it is installed; otherwise this Python running the package from
-    the source folder. ``windowed`` picks ``pythonw.exe`` on Windows (no console window).
+    The bundle's ``Twofold`` executable when this is the bundle; the ``twofold`` script where it
+    is installed; otherwise this Python running the package from the source folder.
+    ``windowed`` picks ``pythonw.exe`` on Windows (no console window).
     """
+    if getattr(sys, "frozen", False):
+        return [str(bundle_executable())]
     script = shutil.which("twofold")
     if script and _installed():
         return [script]
@@ -109,6 +143,14 @@ def launch_command(*, windowed: bool = False) -> list[str]:
         return [python, "-m", "desktop"]
     starter = f"import sys; sys.path.insert(0, {str(_ROOT)!r}); from desktop.app import main; sys.exit(main())"
     return [python, "-c", starter]
+
+
+def bundle_executable() -> Path:
+    """The bundle's window executable, also when the headless ``twofold-cli`` beside it runs."""
+    program = Path(sys.executable)
+    if program.stem.lower() == "twofold-cli":
+        return program.with_name("Twofold" + program.suffix)
+    return program
 
 
 _RESERVED = set(" \t\n\"'\\><~|&;$*?#()`")
@@ -159,6 +201,23 @@ def exec_line(command: Sequence[str]) -> str:
     return " ".join(_exec_quote(part) for part in command) + " %f"
 
 
+def _mime_package() -> str:
+    """The shared-MIME-info package that declares the saved analysis (a JSON file)."""
+    mime, name = FILE_TYPES[SAVED_ANALYSIS]
+    return "\n".join([
+        '<?xml version="1.0" encoding="UTF-8"?>',
+        '<mime-info xmlns="http://www.freedesktop.org/standards/shared-mime-info">',
+        f'  <mime-type type="{mime}">',
+        f"    <comment>{name}</comment>",
+        '    <sub-class-of type="application/json"/>',
+        f'    <icon name="{APP_ID}"/>',
+        f'    <glob pattern="*{SAVED_ANALYSIS}"/>',
+        "  </mime-type>",
+        "</mime-info>",
+        "",
+    ])
+
+
 def _desktop_entry(command: Sequence[str]) -> str:
     types = "".join(f"{mime};" for mime, _ in FILE_TYPES.values())
     return "\n".join([
@@ -190,6 +249,7 @@ def linux_files(command: Sequence[str] | None = None) -> dict[str, str]:
     return {
         f"applications/{APP_ID}.desktop": _desktop_entry(command or launch_command()),
         f"icons/hicolor/scalable/apps/{APP_ID}.svg": icon,
+        MIME_PACKAGE: _mime_package(),
     }
 
 
@@ -228,17 +288,71 @@ def install_linux(home: Path | None = None, *, command: Sequence[str] | None = N
         target = home / relative
         target.parent.mkdir(parents=True, exist_ok=True)
         target.write_text(text, encoding="utf-8")
-    _refresh_linux(home, mime=_drop_old_mime_package(home))
+    _drop_old_mime_package(home)
+    _refresh_linux(home, mime=True)
     return home / "applications" / f"{APP_ID}.desktop"
 
 
-def uninstall_linux(home: Path | None = None) -> Path:
-    """Remove the files again (missing ones are fine); returns the data home."""
+def refresh_moved_linux_entry(home: Path | None = None) -> bool:
+    """Rewrite the registration when it is in place but differs from this program's (the bundle
+    was moved or unpacked anew elsewhere); True if it was rewritten. Nothing is written when
+    Twofold is not registered."""
     home = home or data_home()
+    if not (home / "applications" / f"{APP_ID}.desktop").is_file():
+        return False
+    files = linux_files()
+    if all((home / relative).is_file() and (home / relative).read_text(encoding="utf-8") == text
+           for relative, text in files.items()):
+        return False
+    install_linux(home)
+    return True
+
+
+# what update-mime-database generates in a MIME folder from its packages/ (shared-mime-info 0.21)
+_GENERATED_MIME_FILES = ("aliases", "generic-icons", "globs", "globs2", "icons", "magic", "mime.cache",
+                         "subclasses", "treemagic", "types", "version", "XMLnamespaces")
+
+
+def _drop_empty_mime_database(home: Path) -> None:
+    """Remove the user's MIME database when no package is left to generate it from.
+
+    Every file in it is generated from ``packages/``; with that empty they describe only what
+    was just removed. A folder holding anything else is left as it is.
+    """
+    mime = home / "mime"
+    packages = mime / "packages"
+    if not mime.is_dir() or (packages.is_dir() and any(packages.iterdir())):
+        return
+    entries = list(mime.iterdir())
+    generated = [e for e in entries if e.is_file() and e.name in _GENERATED_MIME_FILES]
+    media = [e for e in entries if e.is_dir() and e.name != "packages"
+             and all(f.is_file() and f.suffix == ".xml" for f in e.iterdir())]
+    if len(generated) + len(media) + packages.is_dir() != len(entries):
+        return
+    for entry in generated:
+        entry.unlink()
+    for folder in media:
+        shutil.rmtree(folder)
+    if packages.is_dir():
+        packages.rmdir()
+    mime.rmdir()
+
+
+def uninstall_linux(home: Path | None = None) -> tuple[Path, ...]:
+    """Remove the files again; returns those that were there (none when nothing was registered)."""
+    home = home or data_home()
+    removed = []
     for relative in linux_files(["twofold"]):
-        (home / relative).unlink(missing_ok=True)
-    _refresh_linux(home, mime=_drop_old_mime_package(home))
-    return home
+        target = home / relative
+        if target.is_file():
+            target.unlink()
+            removed.append(target)
+    if _drop_old_mime_package(home):
+        removed.append(home / _OLD_MIME_PACKAGE)
+    if removed:
+        _refresh_linux(home, mime=True)
+        _drop_empty_mime_database(home)
+    return tuple(removed)
 
 
 @dataclass(frozen=True)
@@ -262,22 +376,30 @@ def windows_command_line(command: Sequence[str]) -> str:
 
 
 def windows_registry_entries(command: Sequence[str], *, icon: str | None = None) -> list[RegistryValue]:
-    """The per-user registry values that offer Twofold for the six file types.
+    """The per-user registry values that offer Twofold for the data types and open saved analyses.
 
-    A ProgID ``Twofold.DataFile`` with its name, icon and open command, and for each extension
-    an empty ``OpenWithProgids`` value naming the ProgID (which adds Twofold to "Open with"
-    without taking the type over from the program that has it).
+    A ProgID ``Twofold.DataFile`` with its name, icon and open command, and for each data type's
+    extension an empty ``OpenWithProgids`` value naming the ProgID (which adds Twofold to "Open
+    with" without taking the type over from the program that has it). The saved analysis is
+    Twofold's own type: its extension names the ProgID ``Twofold.Analysis`` as its program.
     """
     base = "Software\\Classes"
-    entries = [
-        RegistryValue(f"{base}\\{PROG_ID}", "", "Twofold data file"),
-        RegistryValue(f"{base}\\{PROG_ID}\\shell\\open", "FriendlyAppName", "Twofold"),
-        RegistryValue(f"{base}\\{PROG_ID}\\shell\\open\\command", "", windows_command_line(command)),
-    ]
-    if icon:
-        entries.insert(1, RegistryValue(f"{base}\\{PROG_ID}\\DefaultIcon", "", icon))
-    for extension in FILE_TYPES:
+    entries = []
+    for prog_id, name in ((PROG_ID, "Twofold data file"), (ANALYSIS_PROG_ID, FILE_TYPES[SAVED_ANALYSIS][1])):
+        entries += [
+            RegistryValue(f"{base}\\{prog_id}", "", name),
+            *([RegistryValue(f"{base}\\{prog_id}\\DefaultIcon", "", icon)] if icon else []),
+            RegistryValue(f"{base}\\{prog_id}\\shell\\open", "FriendlyAppName", "Twofold"),
+            RegistryValue(f"{base}\\{prog_id}\\shell\\open\\command", "", windows_command_line(command)),
+        ]
+    for extension in DATA_TYPES:
         entries.append(RegistryValue(f"{base}\\{extension}\\OpenWithProgids", PROG_ID, ""))
+    saved = f"{base}\\{SAVED_ANALYSIS}"
+    entries += [
+        RegistryValue(saved, "", ANALYSIS_PROG_ID),
+        RegistryValue(saved, "Content Type", FILE_TYPES[SAVED_ANALYSIS][0]),
+        RegistryValue(f"{saved}\\OpenWithProgids", ANALYSIS_PROG_ID, ""),
+    ]
     return entries
 
 
@@ -300,7 +422,8 @@ def install_windows(entries: Sequence[RegistryValue] | None = None) -> str:  # p
     return f"HKEY_CURRENT_USER\\Software\\Classes\\{PROG_ID}"
 
 
-def _delete_tree(winreg: object, root: object, path: str) -> None:  # pragma: no cover - Windows only
+def _delete_tree(winreg: object, root: object, path: str) -> bool:  # pragma: no cover - Windows only
+    """Delete the key ``path`` with everything under it; True if it was there."""
     try:
         with winreg.OpenKey(root, path, 0, winreg.KEY_ALL_ACCESS) as key:
             while True:
@@ -311,22 +434,28 @@ def _delete_tree(winreg: object, root: object, path: str) -> None:  # pragma: no
                 _delete_tree(winreg, root, f"{path}\\{child}")
         winreg.DeleteKey(root, path)
     except FileNotFoundError:
-        pass
+        return False
+    return True
 
 
-def uninstall_windows() -> str:  # pragma: no cover - Windows only
-    """Remove the ProgID and the ``OpenWithProgids`` values written by :func:`install_windows`."""
+def uninstall_windows() -> str | None:  # pragma: no cover - Windows only
+    """Remove the ProgIDs, the ``OpenWithProgids`` values and the saved analysis's extension
+    written by :func:`install_windows`; None when none of them was there."""
     import winreg
 
     root = winreg.HKEY_CURRENT_USER
-    _delete_tree(winreg, root, f"Software\\Classes\\{PROG_ID}")
-    for extension in FILE_TYPES:
+    found = [_delete_tree(winreg, root, f"Software\\Classes\\{prog_id}") for prog_id in (PROG_ID, ANALYSIS_PROG_ID)]
+    for extension in DATA_TYPES:
         try:
             with winreg.OpenKey(root, f"Software\\Classes\\{extension}\\OpenWithProgids", 0,
                                 winreg.KEY_SET_VALUE) as key:
                 winreg.DeleteValue(key, PROG_ID)
+            found.append(True)
         except FileNotFoundError:
             pass
+    found.append(_delete_tree(winreg, root, f"Software\\Classes\\{SAVED_ANALYSIS}"))
+    if not any(found):
+        return None
     _notify_windows_shell()
     return f"HKEY_CURRENT_USER\\Software\\Classes\\{PROG_ID}"
 
@@ -341,17 +470,18 @@ def install() -> str:
     return str(install_linux())
 
 
-def uninstall() -> str:
-    """Undo :func:`install`; returns where it was removed from."""
+def uninstall() -> str | None:
+    """Undo :func:`install`; returns where it was removed from, or None when Twofold was not
+    registered (so there was nothing to remove)."""
     if sys.platform == "win32":
         return uninstall_windows()
     if sys.platform == "darwin":
         raise OSError("on macOS there is nothing to remove")
-    return str(uninstall_linux())
+    return str(data_home()) if uninstall_linux() else None
 
 
 def _extensions() -> str:
-    names = list(FILE_TYPES)
+    names = list(DATA_TYPES)
     return ", ".join(names[:-1]) + " and " + names[-1]
 
 
@@ -373,7 +503,7 @@ def next_steps(where: str, *, platform: str | None = None, environ: Mapping[str,
     if platform == "win32":
         return lines + [
             f"It now appears under Open with for {_extensions()} files; your current program for "
-            "each type stays the default.",
+            f"each type stays the default. Saved analyses ({SAVED_ANALYSIS}) open in Twofold with a double-click.",
             "To open a type with a double-click: right-click such a file in Explorer, choose Open with, "
             "then Choose another app, pick Twofold and tick Always use this app.",
             "twofold --uninstall-desktop-entry takes the registration away again.",
@@ -381,7 +511,7 @@ def next_steps(where: str, *, platform: str | None = None, environ: Mapping[str,
     lines += [
         f"It now appears in your applications menu and under Open With for {_extensions()} files "
         "(some desktops show it only after you log out and back in); your current program for "
-        "each type stays the default.",
+        f"each type stays the default. Saved analyses ({SAVED_ANALYSIS}) open in Twofold with a double-click.",
         "To open a type with a double-click: right-click such a file in your file manager, choose "
         "Open With, pick Twofold and choose to use it always or set it as the default (the words "
         "differ from one desktop to another).",

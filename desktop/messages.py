@@ -61,6 +61,14 @@ _DECLARED = (
     Message("registered", "info",
             "Twofold now appears under Open With for data files ({where}). To make it the default for a "
             "type, right-click such a file, choose Open With, pick Twofold and choose to use it always."),
+    Message("offer_registration", "info",
+            "Twofold can open your data files (.csv, .tsv, .txt, .xlsx, .xls, .ods) and saved analyses "
+            "(.twofold) when you double-click them. This is asked only once: File > Open data files with "
+            "a double-click does the same later."),
+    Message("unregistered", "info",
+            "Twofold no longer opens files with a double-click and is gone from Open With ({where})."),
+    Message("not_registered", "info",
+            "Twofold was not set up to open files with a double-click: there was nothing to take away."),
     Message("window_crashed", "error",
             "Something unexpected went wrong ({reason}). The window carries on; your file was not changed."),
 )

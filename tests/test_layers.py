@@ -60,7 +60,7 @@ LAYERS: tuple[tuple[str, ...], ...] = (
     # one panel on its own over a file (each panel's __main__)
     ("desktop.panel_alone",),
     ("desktop.data_panel", "desktop.setup_panel", "desktop.choice_panel", "desktop.findings_panel"),
-    ("desktop.main_window",),
+    ("desktop.main_window", "desktop.first_start"),
     # the program and the README pictures
     ("desktop.app", "desktop.screens"),
     ("desktop.__main__",),

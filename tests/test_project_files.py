@@ -34,6 +34,6 @@ def test_the_readme_names_every_file_type_the_desktop_entry_offers():
     readme = (ROOT / "README.md").read_text(encoding="utf-8")
     section = readme.split("## Opening data files with a double-click", 1)[1].split("\n## ", 1)[0]
     linux = section.split("- **Windows**", 1)[0]
-    named = set(re.findall(r"\.(?:csv|tsv|txt|xlsx|xls|ods)\b", linux))
+    named = set(re.findall(r"\.(?:csv|tsv|txt|xlsx|xls|ods|twofold)\b", linux))
     assert named == set(FILE_TYPES)
     assert "xdg-utils" in section and "mimeapps.list" in section  # the way without xdg-mime

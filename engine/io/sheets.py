@@ -27,6 +27,16 @@ __all__ = ["read_sheet", "sheet_names", "workbook_sheets", "WorkbookSheets"]
 _KIND_NAMES = {"xlsx": "a workbook (.xlsx)", "xls": "an older-format workbook (.xls)", "ods": "an OpenDocument spreadsheet (.ods)"}
 _HEADER_SAMPLE = 200
 _CHILD = Path(__file__).with_name("_workbook_child.py")
+# In a bundle (packaging/launch.py) sys.executable is the program itself, not a Python: given
+# this first argument it runs the child's script instead of starting the window or the command.
+FROZEN_CHILD_FLAG = "--workbook-child"
+
+
+def child_command(path: Path, limit: int) -> list[str]:
+    """The command line of the workbook reader's child process for ``path`` under ``limit`` bytes."""
+    if getattr(sys, "frozen", False):
+        return [sys.executable, FROZEN_CHILD_FLAG, str(path), str(limit)]
+    return [sys.executable, "-I", str(_CHILD), str(path), str(limit)]
 
 
 def _cells(rows: list) -> pd.DataFrame:
@@ -54,7 +64,7 @@ class _Reader:
         env = dict(os.environ, RUST_BACKTRACE="0")
         try:
             self._child = subprocess.Popen(
-                [sys.executable, "-I", str(_CHILD), str(path), str(limit)],
+                child_command(path, limit),
                 stdin=subprocess.PIPE, stdout=subprocess.PIPE, stderr=self._errors, env=env,
                 close_fds=True)
         except OSError as error:

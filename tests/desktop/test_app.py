@@ -41,6 +41,9 @@ def test_install_and_uninstall_commands(tmp_path, monkeypatch, capsys):
     assert main(["--uninstall-desktop-entry"]) == 0
     assert not entry.exists()
     assert "no longer registered" in capsys.readouterr().out
+    assert main(["--uninstall-desktop-entry"]) == 0  # a second time: nothing is said to be removed
+    said = capsys.readouterr().out
+    assert "nothing to remove" in said and "no longer registered" not in said
 
 
 def test_start_opens_the_file_of_the_command_line(make_window, qtbot, two_groups_csv):

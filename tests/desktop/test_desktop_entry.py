@@ -5,19 +5,26 @@ from __future__ import annotations
 import configparser
 import re
 import shlex
+import shutil
+import xml.etree.ElementTree as ElementTree
+from pathlib import Path
 
 import pytest
 
 from desktop import desktop_entry
 from desktop.desktop_entry import (
+    ANALYSIS_PROG_ID,
+    DATA_TYPES,
     FILE_TYPES,
     PROG_ID,
+    SAVED_ANALYSIS,
     RegistrationProblem,
     data_home,
     exec_line,
     install_linux,
     linux_files,
     next_steps,
+    refresh_moved_linux_entry,
     uninstall_linux,
     windows_command_line,
     windows_registry_entries,
@@ -34,6 +41,11 @@ IANA_TYPES = {
     ".xls": "application/vnd.ms-excel",
     ".ods": "application/vnd.oasis.opendocument.spreadsheet",
 }
+# Twofold's own saved analysis: an unregistered subtype ("x-", common practice for types not
+# registered with IANA, as in shared-mime-info's own list) with the "+json" structured-syntax
+# suffix of RFC 6838, section 4.2.8
+OWN_TYPE = (".twofold", "application/x-twofold+json")
+MIME_NS = "{http://www.freedesktop.org/standards/shared-mime-info}"
 
 
 def read_entry(text: str) -> dict[str, str]:
@@ -67,16 +79,85 @@ def test_install_writes_the_entry_and_the_icon(tmp_path, monkeypatch):
     assert entry["Icon"] == "twofold"
     assert entry["Terminal"] == "false"
     assert entry["MimeType"].endswith(";")
-    assert set(entry["MimeType"].rstrip(";").split(";")) == set(IANA_TYPES.values())
+    assert set(entry["MimeType"].rstrip(";").split(";")) == {*IANA_TYPES.values(), OWN_TYPE[1]}
 
-    # the types are the system's own: nothing in the user's MIME database renames them
-    assert not (share / "mime").exists()
+    # the data types are the system's own: the user's MIME database gets one package, which
+    # declares the saved analysis and nothing else
+    package = share / "mime" / "packages" / "twofold-analysis.xml"
+    assert [p.name for p in (share / "mime").rglob("*") if p.is_file()] == [package.name]
+    # reference: Shared MIME-info Database 0.21, "The source XML files": mime-info root in its
+    # namespace; a glob pattern, a sub-class-of, a comment per type
+    root = ElementTree.fromstring(package.read_text(encoding="utf-8"))
+    assert root.tag == f"{MIME_NS}mime-info"
+    (declared,) = root.findall(f"{MIME_NS}mime-type")
+    assert declared.get("type") == OWN_TYPE[1]
+    assert [g.get("pattern") for g in declared.findall(f"{MIME_NS}glob")] == ["*" + OWN_TYPE[0]]
+    assert declared.find(f"{MIME_NS}sub-class-of").get("type") == "application/json"
+    assert declared.find(f"{MIME_NS}comment").text
 
     icon = share / "icons" / "hicolor" / "scalable" / "apps" / "twofold.svg"
     assert icon.read_text(encoding="utf-8").lstrip().startswith("<svg")
 
-    uninstall_linux(data_home())
-    assert not entry_path.exists() and not icon.exists()
+    removed = uninstall_linux(data_home())
+    assert set(removed) == {entry_path, icon, package}
+    assert not entry_path.exists() and not icon.exists() and not (share / "mime").exists()
+    assert uninstall_linux(data_home()) == ()  # a second time there is nothing to remove
+
+
+@pytest.mark.skipif(shutil.which("update-mime-database") is None, reason="shared-mime-info is not installed")
+def test_the_users_mime_database_knows_the_saved_analysis_and_forgets_it_again(tmp_path, monkeypatch):
+    which = shutil.which
+    monkeypatch.setattr(desktop_entry.shutil, "which",
+                        lambda name: which(name) if name == "update-mime-database" else None)
+    install_linux(tmp_path, command=["twofold"])
+    # reference: Shared MIME-info Database 0.21, "The globs2 files": weight:type:pattern lines
+    globs = (tmp_path / "mime" / "globs2").read_text(encoding="utf-8")
+    assert f"{OWN_TYPE[1]}:*{OWN_TYPE[0]}" in globs
+    assert uninstall_linux(tmp_path)
+    assert not (tmp_path / "mime").exists()  # the generated database went with its only package
+
+
+def test_a_mime_folder_with_another_package_is_left_alone(tmp_path, monkeypatch):
+    monkeypatch.setattr(desktop_entry.shutil, "which", lambda name: None)
+    install_linux(tmp_path, command=["twofold"])
+    other = tmp_path / "mime" / "packages" / "someone-else.xml"
+    other.write_text("<mime-info/>")
+    (tmp_path / "mime" / "globs2").write_text("50:text/x-else:*.else\n")
+    uninstall_linux(tmp_path)
+    assert other.exists() and (tmp_path / "mime" / "globs2").exists()
+    assert not (tmp_path / "mime" / "packages" / "twofold-analysis.xml").exists()
+
+
+def test_uninstall_says_whether_anything_was_registered(tmp_path, monkeypatch):
+    monkeypatch.setenv("XDG_DATA_HOME", str(tmp_path))
+    monkeypatch.setattr(desktop_entry.shutil, "which", lambda name: None)
+    monkeypatch.setattr(desktop_entry.sys, "platform", "linux")
+    assert desktop_entry.uninstall() is None
+    install_linux(tmp_path, command=["twofold"])
+    assert desktop_entry.uninstall() == str(tmp_path)
+    assert desktop_entry.uninstall() is None
+    assert not any(p.is_file() for p in tmp_path.rglob("*"))
+
+
+def test_the_bundle_registers_its_own_window_executable(monkeypatch):
+    # in the bundle sys.executable is the program itself; the headless twofold-cli beside it
+    # registers the window's executable
+    monkeypatch.setattr(desktop_entry.sys, "frozen", True, raising=False)
+    for name, suffix in (("twofold-cli", ""), ("Twofold", ""), ("twofold-cli", ".exe")):
+        monkeypatch.setattr(desktop_entry.sys, "executable", f"/opt/apps/Twofold/{name}{suffix}")
+        assert desktop_entry.launch_command() == [f"/opt/apps/Twofold/Twofold{suffix}"]
+
+
+def test_a_moved_bundle_brings_its_registration_up_to_date(tmp_path, monkeypatch):
+    monkeypatch.setattr(desktop_entry.shutil, "which", lambda name: None)
+    monkeypatch.setattr(desktop_entry, "launch_command", lambda **_: ["/new/place/Twofold"])
+    assert not refresh_moved_linux_entry(tmp_path)  # not registered: nothing is written
+    assert not tmp_path.joinpath("applications").exists()
+    install_linux(tmp_path, command=["/old/place/Twofold"])
+    assert refresh_moved_linux_entry(tmp_path)
+    entry = read_entry((tmp_path / "applications" / "twofold.desktop").read_text(encoding="utf-8"))
+    assert entry["Exec"] == "/new/place/Twofold %f"
+    assert not refresh_moved_linux_entry(tmp_path)  # up to date: left as it is
 
 
 def test_install_runs_the_cache_tools_when_present(tmp_path, monkeypatch):
@@ -84,7 +165,8 @@ def test_install_runs_the_cache_tools_when_present(tmp_path, monkeypatch):
     monkeypatch.setattr(desktop_entry.shutil, "which", lambda name: f"/usr/bin/{name}")
     monkeypatch.setattr(desktop_entry.subprocess, "run", lambda args, **kw: calls.append(args))
     install_linux(tmp_path, command=["twofold"])
-    assert calls == [["/usr/bin/update-desktop-database", str(tmp_path / "applications")]]
+    assert calls == [["/usr/bin/update-desktop-database", str(tmp_path / "applications")],
+                     ["/usr/bin/update-mime-database", str(tmp_path / "mime")]]
 
 
 def test_the_mime_package_of_earlier_versions_is_taken_away(tmp_path, monkeypatch):
@@ -103,8 +185,21 @@ def test_the_mime_package_of_earlier_versions_is_taken_away(tmp_path, monkeypatc
     assert ["/usr/bin/update-mime-database", str(tmp_path / "mime")] in calls
 
 
-def test_file_types_are_the_registered_ones():
-    assert {ext: mime for ext, (mime, _name) in FILE_TYPES.items()} == IANA_TYPES
+def test_file_types_are_the_registered_ones_and_our_own():
+    assert {ext: FILE_TYPES[ext][0] for ext in DATA_TYPES} == IANA_TYPES
+    assert (SAVED_ANALYSIS, FILE_TYPES[SAVED_ANALYSIS][0]) == OWN_TYPE
+    assert set(FILE_TYPES) == {*IANA_TYPES, OWN_TYPE[0]}
+
+
+def test_macos_type_identifiers():
+    # reference: Apple, "System-declared uniform type identifiers" (public.comma-separated-values-text,
+    # public.tab-separated-values-text, public.plain-text, org.openxmlformats.spreadsheetml.sheet,
+    # com.microsoft.excel.xls, org.oasis-open.opendocument.spreadsheet)
+    assert {ext: desktop_entry.MACOS_TYPES[ext] for ext in DATA_TYPES} == {
+        ".csv": "public.comma-separated-values-text", ".tsv": "public.tab-separated-values-text",
+        ".txt": "public.plain-text", ".xlsx": "org.openxmlformats.spreadsheetml.sheet",
+        ".xls": "com.microsoft.excel.xls", ".ods": "org.oasis-open.opendocument.spreadsheet"}
+    assert not desktop_entry.MACOS_TYPES[SAVED_ANALYSIS].startswith(("public.", "com.apple."))
 
 
 @pytest.mark.parametrize("command, expected", [
@@ -169,9 +264,15 @@ def test_windows_registry_entries():
         r'"C:\Program Files\Python311\pythonw.exe" -m desktop "%1"'
     for extension in IANA_TYPES:
         assert by_key[(f"{base}\\{extension}\\OpenWithProgids", PROG_ID)] == ""
-    # nothing takes over a type's default program (the .ext key's own default value)
-    assert not any(e.key in {f"{base}\\{x}" for x in FILE_TYPES} and e.name == "" for e in entries)
+    # no data type is taken over from its default program (the .ext key's own default value)
+    assert not any(e.key in {f"{base}\\{x}" for x in DATA_TYPES} and e.name == "" for e in entries)
     assert all(e.key.startswith(base + "\\") for e in entries)
+    # the saved analysis is Twofold's own type: its extension names Twofold's ProgID
+    assert by_key[(f"{base}\\.twofold", "")] == ANALYSIS_PROG_ID
+    assert by_key[(f"{base}\\.twofold", "Content Type")] == OWN_TYPE[1]
+    assert by_key[(f"{base}\\{ANALYSIS_PROG_ID}\\shell\\open\\command", "")] == \
+        r'"C:\Program Files\Python311\pythonw.exe" -m desktop "%1"'
+
 
 
 def test_windows_command_line_quotes_only_what_needs_it():
