@@ -147,20 +147,19 @@ def main(argv: Sequence[str] | None = None) -> int:
 
 def run_panel(panel_class: type, argv: Sequence[str]) -> int:  # pragma: no cover - a manual look
     """Show one panel on its own over the file ``argv[1]`` (``python -m desktop.<panel> FILE``)."""
-    from engine import io
+    from engine import pipeline
     from engine.session import Session
+    from engine.spec import AnalysisSpec
 
     app = _application()
     session = Session()
     if len(argv) > 1:
-        table = io.read_table(Path(argv[1]))
-        proposal = io.propose_layout(table)
-        session.choose(path=Path(argv[1]), layout=proposal.layout, group_column=proposal.group_column,
-                       value_columns=tuple(proposal.value_columns))
+        spec = AnalysisSpec(source=pipeline.source_for(argv[1]))
+        table = pipeline.read(spec)
+        session.adopt(pipeline.complete(table, spec).with_seed())
         session.store("table", table)
-        values = proposal.value_columns[0] if proposal.layout == "long" else tuple(proposal.value_columns)
         try:
-            session.store("intake", io.make_groups(table, values=values, group=proposal.group_column))
+            session.store("intake", pipeline.form_groups(table, session.spec))
         except Exception as problem:  # noqa: BLE001 - show it, as the window would
             session.store("problem", str(problem))
     panel = panel_class(session)

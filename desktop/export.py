@@ -1,7 +1,8 @@
 """A finished comparison written out as a self-contained HTML page or a PDF.
 
-The report records where the numbers came from and what was decided: the data file's name and
-checksum, the choices made, the values set aside, the date, then the findings as
+The report records where the numbers came from and what was decided (the analysis's own spec):
+the data file's name and checksum, the choices made with the seed, the values set aside, the
+date, then the findings as
 ``engine.report.render`` words them and the plots as pictures. The HTML carries its pictures
 inside it (``data:`` addresses), so the one file is the whole report. The PDF is drawn by Qt's
 own writer from the same HTML.
@@ -52,7 +53,7 @@ def _yes_no(flag: bool) -> str:
     return "yes" if flag else "no"
 
 
-def choice_rows(analysis, choices, *, procedure: str) -> list[tuple[str, str]]:
+def choice_rows(analysis, *, procedure: str) -> list[tuple[str, str]]:
     """(what, choice) pairs describing the decisions behind the analysis."""
     from engine.report import format_number
 
@@ -60,7 +61,7 @@ def choice_rows(analysis, choices, *, procedure: str) -> list[tuple[str, str]]:
     statements = spec.statements
     labels = analysis.groups.labels
     source = analysis.source
-    columns = source.get("columns") or choices.value_columns
+    columns = source.get("columns") or spec.value_columns
     if isinstance(columns, str):
         columns = (columns,)
     rows = [
@@ -68,8 +69,9 @@ def choice_rows(analysis, choices, *, procedure: str) -> list[tuple[str, str]]:
                             f"differences are {labels[0]} minus {labels[1]}"),
         ("Sizes", f"{analysis.groups.n[0]} and {analysis.groups.n[1]} values"),
     ]
-    if source.get("sheet") or choices.sheet:
-        rows.append(("Sheet", str(source.get("sheet") or choices.sheet)))
+    sheet = source.get("sheet") or (spec.source.sheet if spec.source else None)
+    if sheet:
+        rows.append(("Sheet", str(sheet)))
     if columns:
         rows.append(("Columns used", ", ".join(str(c) for c in columns)))
     rows += [
@@ -82,8 +84,8 @@ def choice_rows(analysis, choices, *, procedure: str) -> list[tuple[str, str]]:
     if statements.known_sd is not None:
         rows.append(("Known population SDs",
                      " and ".join(format_number(s, digits=4) for s in statements.known_sd)))
-    rows.append(("Resamples for permutation and bootstrap",
-                 f"{spec.resamples} (random seed {spec.seed})"))
+    rows += [("Resamples for permutation and bootstrap", f"{spec.resamples:,}"),
+             ("Random seed", f"{spec.seed} (the same seed gives the same resampled numbers again)")]
     return rows
 
 
@@ -103,7 +105,7 @@ _REASONS = {
 }
 
 
-def set_aside_rows(analysis, choices) -> list[tuple[str, str]]:
+def set_aside_rows(analysis) -> list[tuple[str, str]]:
     """(where, why) pairs for every value left out of the groups (as the screening lists them).
 
     A value the user set aside carries the reason the user gave. When the screening listed only
@@ -112,7 +114,7 @@ def set_aside_rows(analysis, choices) -> list[tuple[str, str]]:
     screening = analysis.screening
     if screening is None:
         return []
-    given = dict(choices.set_aside or {})
+    given = {(cell.row, cell.column): cell.reason for cell in analysis.spec.set_aside}
     rows = []
     listed: dict[str, int] = {}
     for item in screening.exclusions:
@@ -122,8 +124,8 @@ def set_aside_rows(analysis, choices) -> list[tuple[str, str]]:
         if item.text:
             where += f": '{item.text}'"
         why = _REASONS.get(item.reason, item.reason)
-        if item.reason == "set_aside" and given.get((item.frame_row, item.column)):
-            why += f" ({given[(item.frame_row, item.column)]})"
+        if item.reason == "set_aside" and given.get((item.file_row, item.column)):
+            why += f" ({given[(item.file_row, item.column)]})"
         rows.append((where, why))
         listed[item.reason] = listed.get(item.reason, 0) + 1
     unlisted = {reason: count - listed.get(reason, 0)
@@ -165,13 +167,16 @@ def _table(rows: Sequence[tuple[str, str]], headings: tuple[str, str], *, short_
             f"{body}</table>")
 
 
-def _file_rows(analysis, choices) -> list[tuple[str, str]]:
-    path = choices.path
+def _file_rows(analysis) -> list[tuple[str, str]]:
+    source = analysis.spec.source
+    path = Path(source.path) if source is not None else None
     name = analysis.source.get("file") or (path.name if path else None)
     if not name:
         return [("Data", "entered directly, not read from a file")]
     rows = [("Data file", Path(str(name)).name)]
-    if path is not None and Path(path).is_file():
+    if source is not None and source.sha256:  # the checksum of the bytes the numbers came from
+        rows.append((CHECKSUM_NAME, _Code(source.sha256)))
+    elif path is not None and path.is_file():
         from engine.io import file_checksum
 
         rows.append((CHECKSUM_NAME, _Code(file_checksum(path))))
@@ -189,7 +194,7 @@ def _png_base64(image: QImage) -> str:
     return base64.b64encode(bytes(data)).decode("ascii")
 
 
-def report_html(analysis, choices, *, procedure: str, findings_html: str, cautions: Sequence[str],
+def report_html(analysis, *, procedure: str, findings_html: str, cautions: Sequence[str],
                 images: Sequence[tuple[str, QImage]] = (), when: datetime | None = None,
                 embed_images: bool = True, image_width: float = HTML_IMAGE_WIDTH) -> str:
     """The whole report as one HTML document.
@@ -204,11 +209,11 @@ def report_html(analysis, choices, *, procedure: str, findings_html: str, cautio
     title = f"Comparison of {labels[0]} and {labels[1]}"
     parts = [f"<h1>{_escape(title)}</h1>",
              f"<p>Written on {_escape(when.strftime('%Y-%m-%d %H:%M %Z').strip())} by Twofold.</p>",
-             "<h2>The data</h2>", _table(_file_rows(analysis, choices), ("What", "Record"), short_names=True),
-             "<h2>Choices made</h2>", _table(choice_rows(analysis, choices, procedure=procedure),
+             "<h2>The data</h2>", _table(_file_rows(analysis), ("What", "Record"), short_names=True),
+             "<h2>Choices made</h2>", _table(choice_rows(analysis, procedure=procedure),
                                             ("What", "Choice")),
              "<h2>Values set aside</h2>"]
-    aside = set_aside_rows(analysis, choices)
+    aside = set_aside_rows(analysis)
     parts.append(_table(aside, ("Where", "Why")) if aside else "<p>No values were set aside.</p>")
     parts += ["<h2>Findings</h2>", findings_html]
     for number, (caption, image) in enumerate(images):
@@ -270,7 +275,7 @@ def _write_pdf(path: Path, document_html: str, images: Sequence[tuple[str, QImag
     document.print_(writer)
 
 
-def export_report(path: str | Path, analysis, choices, *, procedure: str, findings_html: str,
+def export_report(path: str | Path, analysis, *, procedure: str, findings_html: str,
                   cautions: Sequence[str], images: Sequence[tuple[str, QImage]] = (),
                   when: datetime | None = None) -> Path:
     """Write the report to ``path``: HTML or PDF by its suffix. Returns the path written.
@@ -284,7 +289,7 @@ def export_report(path: str | Path, analysis, choices, *, procedure: str, findin
         raise FileProblem(f"A report is written as .html or .pdf, not '{path.suffix or path.name}'.")
     embed = suffix == ".html"
     width = HTML_IMAGE_WIDTH if embed else pdf_text_width()
-    document = report_html(analysis, choices, procedure=procedure, findings_html=findings_html,
+    document = report_html(analysis, procedure=procedure, findings_html=findings_html,
                            cautions=cautions, images=images, when=when, embed_images=embed,
                            image_width=width)
     try:

@@ -1,11 +1,12 @@
 """The main window: the panels around one session, the menus, and the flow from file to findings.
 
-The flow: opening a file reads it in a worker (``engine.io.read_table`` and ``propose_layout``),
-asks for the sheet of a workbook with several, stores the table and fills the choices from the
-engine's proposal. Each change of the columns, the two groups or the values set aside forms the
-groups again (``make_groups``, in a worker); each new set of groups, and each change of an option
-that shapes the analysis, runs ``analyze`` in a worker with a progress bar and a Stop button. The
-choice of procedure only changes what is shown, so it runs nothing. A newer run replaces an older
+The flow runs the steps of ``engine.pipeline`` in workers: opening a file reads it
+(``pipeline.read``, after asking for the sheet of a workbook with several), records its checksum,
+fills the spec's columns from the engine's proposal (``pipeline.complete``) and draws the new
+analysis's seed. Each change of the columns, the two groups or the values set aside forms the
+groups again (``pipeline.form_groups``); each new set of groups, and each change of the spec that
+shapes the analysis, runs ``pipeline.run`` with a progress bar and a Stop button. The choice of
+procedure only changes what is shown, so it runs nothing. A newer run replaces an older
 one; a failure shows in the message bar and leaves the window as it was.
 
 The procedure and findings panels load after the window is first painted, because their plotting
@@ -37,7 +38,8 @@ from PySide6.QtWidgets import (
     QWidget,
 )
 
-from engine.session import Choices, Session
+from engine.session import Session
+from engine.spec import AnalysisSpec
 from engine.text import visible
 
 from .data_panel import DataPanel
@@ -55,16 +57,14 @@ WORKBOOK_KINDS = ("xlsx", "xls", "ods")
 SAVE_FILTER = "Web page (*.html);;PDF document (*.pdf)"
 PLOT_FILTER = "Picture (*.png);;Drawing (*.svg)"
 
-# Choices that change the two groups, and choices that change only the analysis of them.
-GROUP_FIELDS = ("layout", "group_column", "value_columns", "picked", "set_aside")
-ANALYSIS_FIELDS = ("alternative", "confidence_level", "n_resamples", "seed", "known_sd",
-                   "equal_spread_known", "ordinal")
+# Fields of the spec that change the two groups, and fields that change only the analysis of them.
+GROUP_FIELDS = ("layout", "group_column", "value_columns", "groups", "set_aside")
+ANALYSIS_FIELDS = ("question", "resamples", "seed", "statements", "rank_method")
 
 # The settings of the comparison that each new file starts from afresh (the defaults of
-# ``Choices``) unless the user ticks "Keep these settings for the next file"; and the statements
-# about one file's data, which never carry over to another file.
-CARRIED_FIELDS = ("alternative", "confidence_level", "n_resamples", "seed")
-DATA_STATEMENT_FIELDS = ("known_sd", "equal_spread_known", "ordinal")
+# ``AnalysisSpec``) unless the user ticks "Keep these settings for the next file". A new file
+# always draws a new seed, and the statements about one file's data never carry over.
+CARRIED_FIELDS = ("question", "resamples")
 KEEP_SETTINGS_KEY = "comparison/keep_settings"
 
 # Messages that say why there is no comparison; the bar drops them once the session's problem is gone.
@@ -95,27 +95,17 @@ ANALYSIS_DELAY_MS = 120  # a burst of set-up changes runs one analysis
 AskSheet = Callable[[Sequence[str], str | None], "str | None"]
 
 
-def _changed(old: Choices, new: Choices, names: Sequence[str]) -> bool:
+def _changed(old: AnalysisSpec, new: AnalysisSpec, names: Sequence[str]) -> bool:
     return any(getattr(old, name) != getattr(new, name) for name in names)
 
 
-def _proposed_picks(proposal: Any) -> tuple[str, str] | None:
-    levels = tuple(getattr(proposal, "levels", ()) or ())
-    if getattr(proposal, "layout", "long") == "long" and len(levels) == 2:
-        return str(levels[0]), str(levels[1])
-    return None
-
-
-def settings_words(choices: Choices) -> str:
-    """The carried settings of ``choices`` in a few words, e.g. "one-sided (group 1 lower), 90 %"."""
+def settings_words(spec: AnalysisSpec) -> str:
+    """The carried settings of ``spec`` in a few words, e.g. "one-sided (group 1 lower), 90 %"."""
     sides = {"two-sided": "two-sided", "less": "one-sided (group 1 lower)",
              "greater": "one-sided (group 1 higher)"}
-    words = [sides.get(choices.alternative, choices.alternative), f"{choices.confidence_level * 100:g} %"]
-    usual = Choices()
-    if choices.n_resamples != usual.n_resamples:
-        words.append(f"{choices.n_resamples:,} resampling rounds")
-    if choices.seed != usual.seed:
-        words.append(f"seed {choices.seed}")
+    words = [sides.get(spec.alternative, spec.alternative), f"{spec.level * 100:g} %"]
+    if spec.resamples != AnalysisSpec().resamples:
+        words.append(f"{spec.resamples:,} resampling rounds")
     return ", ".join(words)
 
 
@@ -155,7 +145,7 @@ class MainWindow(QMainWindow):
         self.recent = RecentFiles(self.settings)
         self._ask_sheet = ask_sheet or self._choose_sheet
         self._quiet = False
-        self._seen = self.session.choices
+        self._seen = self.session.spec
         self._late_started = False
         self._opening = ""
         self._closed = False
@@ -433,7 +423,7 @@ class MainWindow(QMainWindow):
 
     # -- opening -------------------------------------------------------------------------------
     def open_dialog(self) -> None:
-        start = str(self.session.choices.path.parent) if self.session.choices.path else ""
+        start = str(self.session.path.parent) if self.session.path else ""
         path, _ = QFileDialog.getOpenFileName(self, "Open a data file", start, OPEN_FILTER)
         if path:
             self.open_file(path)
@@ -469,14 +459,22 @@ class MainWindow(QMainWindow):
         ask = sheet is None
 
         def read(progress: Any, cancelled: Any) -> tuple:
-            from engine import io
+            from engine import pipeline
+            from engine.errors import ColumnProblem
+            from engine.spec import Source
 
             if ask:
                 names, first = _workbook_sheets(path)
                 if len(names) > 1:
                     return ("sheets", path, names, first)
-            table = io.read_table(path, sheet=sheet)
-            return ("table", path, table, io.propose_layout(table))
+            spec = AnalysisSpec(source=Source(str(path), sheet))
+            table = pipeline.read(spec)  # first: it refuses what is not a regular, readable data file
+            spec = spec.replace(source=pipeline.source_for(path, sheet))
+            try:
+                spec = pipeline.complete(table, spec)
+            except ColumnProblem:  # no proposal for the columns: the user chooses them
+                spec = spec.replace(source=Source(str(path), table.sheet, spec.source.sha256))
+            return ("table", path, table, spec)
 
         self.load_worker.run(read)
         return True
@@ -511,27 +509,21 @@ class MainWindow(QMainWindow):
             if wanted:
                 self.open_file(path, sheet=wanted)
             return
-        _, path, table, proposal = result
+        _, path, table, spec = result
         self.message_bar.clear()
-        before = self.session.choices
+        before = self.session.spec
         keep = self.keep_settings_action.isChecked()
-        usual = Choices()
-        fresh = {} if keep else {name: getattr(usual, name) for name in CARRIED_FIELDS}
-        fresh.update({name: getattr(usual, name) for name in DATA_STATEMENT_FIELDS})
+        if keep:
+            spec = spec.replace(**{name: getattr(before, name) for name in CARRIED_FIELDS})
         self._quiet = True
         try:
             for name in ("analysis", "intake", "problem"):
                 self.session.store(name, None)
-            self.session.choose(
-                path=path, sheet=getattr(table, "sheet", None), layout=proposal.layout,
-                group_column=proposal.group_column if proposal.layout == "long" else None,
-                value_columns=tuple(proposal.value_columns)[: 1 if proposal.layout == "long" else 2],
-                picked=_proposed_picks(proposal),
-                set_aside=None, procedure=None, **fresh)
+            self.session.adopt(spec.with_seed())  # a new analysis draws its seed
             self.session.store("table", table)
         finally:
             self._quiet = False
-            self._seen = self.session.choices
+            self._seen = self.session.spec
         self._say_which_settings(before, path.name, keep)
         for panel in (self.choice_panel, self.findings_panel):
             scroll = getattr(panel, "scroll", None)
@@ -543,14 +535,14 @@ class MainWindow(QMainWindow):
         self._groups_soon.start()
         self._load_late_soon()
 
-    def _say_which_settings(self, before: Choices, name: str, kept: bool) -> None:
+    def _say_which_settings(self, before: AnalysisSpec, name: str, kept: bool) -> None:
         """Say in the message bar which settings the new file is compared with, when the last
         file's differed from the usual ones (otherwise there is nothing to choose between)."""
-        usual = Choices()
-        if before.path is None or not _changed(before, usual, CARRIED_FIELDS):
+        usual = AnalysisSpec()
+        if before.source is None or not _changed(before, usual, CARRIED_FIELDS):
             return
         if kept:
-            self.message_bar.show_message("settings_kept", name=name, settings=settings_words(self.session.choices))
+            self.message_bar.show_message("settings_kept", name=name, settings=settings_words(self.session.spec))
         else:
             self.message_bar.show_message("settings_fresh", name=name, settings=settings_words(usual),
                                           before=settings_words(before))
@@ -567,9 +559,9 @@ class MainWindow(QMainWindow):
     def _on_session(self, name: str, value: Any) -> None:
         if name == "problem":
             self._show_problem(value)
-        if name in ("choices", "analysis", "table") and self.message_bar.key == "copied":
+        if name in ("spec", "analysis", "table") and self.message_bar.key == "copied":
             self.message_bar.clear()  # what was copied no longer matches what is shown
-        if name != "choices" or self._quiet:
+        if name != "spec" or self._quiet:
             return
         old, self._seen = self._seen, value
         if _changed(old, value, GROUP_FIELDS):
@@ -586,45 +578,42 @@ class MainWindow(QMainWindow):
         elif not (bar.key in PROBLEM_KEYS and problem in bar.text):
             bar.show_message("groups_problem", reason=problem)
 
-    def _group_request(self) -> tuple[Any, str | None] | str:
-        """The ``values`` and ``group`` arguments of ``make_groups``, or why there are none yet."""
-        choices = self.session.choices
-        columns = tuple(choices.value_columns)
-        if choices.layout == "wide":
+    def _missing_columns(self) -> str | None:
+        """What the spec still lacks before the groups can be formed, in a sentence; None if nothing."""
+        spec = self.session.spec
+        columns = spec.value_columns
+        if spec.layout == "wide":
             if len(columns) != 2 or columns[0] == columns[1]:
                 return "Choose two different columns, one for each group."
-            return columns, None
+            return None
         if not columns:
             return "Choose the column of measurements."
-        if not choices.group_column:
+        if not spec.group_column:
             return "Choose the column that names the groups."
-        if choices.group_column == columns[0]:
+        if spec.group_column == columns[0]:
             return "The groups and the measurements must be in different columns."
-        return columns[0], choices.group_column
+        return None
 
     def form_groups(self) -> None:
-        """Form the two groups from the current choices, in a worker."""
+        """Form the two groups the session's spec describes, in a worker."""
         table = self.session.table
         if table is None:
             return
         self.analysis_worker.cancel()
         self._analysis_soon.stop()
         self._groups_soon.stop()
-        request = self._group_request()
-        if isinstance(request, str):
+        missing = self._missing_columns()
+        if missing is not None:
             self.groups_worker.cancel()
-            self._no_groups(request)
+            self._no_groups(missing)
             return
-        values, group = request
-        choices = self.session.choices
-        pick = choices.picked if choices.layout == "long" else None
-        set_aside = dict(choices.set_aside) if choices.set_aside else None
+        spec = self.session.spec
         self.busy_label.setText("Forming the groups…")
 
         def form(progress: Any, cancelled: Any) -> Any:
-            from engine import io
+            from engine import pipeline
 
-            return io.make_groups(table, values=values, group=group, pick=pick, set_aside=set_aside)
+            return pipeline.form_groups(table, spec)
 
         self.groups_worker.run(form)
 
@@ -636,6 +625,9 @@ class MainWindow(QMainWindow):
     def _on_groups(self, intake: Any) -> None:
         if self.message_bar.key == "analysis_stopped":
             self.message_bar.clear()
+        spec = self.session.spec
+        if spec.layout == "long" and spec.groups is None:  # the spec records the two groups formed
+            self._quietly(groups=tuple(intake.groups.labels))
         self.session.store("problem", None)
         self.session.store("intake", intake)
         self._analysis_soon.start()
@@ -651,9 +643,9 @@ class MainWindow(QMainWindow):
         intake = self.session.intake
         if intake is None:
             return
-        from engine.session import spec_of
-
-        spec = spec_of(self.session.choices, self.session.table)
+        if self.session.spec.seed is None:
+            self._quietly(seed=self.session.spec.with_seed().seed)
+        spec = self.session.spec
         self.busy_label.setText("Comparing…")
         self.progress.setValue(0)
 
@@ -663,6 +655,15 @@ class MainWindow(QMainWindow):
             return pipeline.run(intake, spec, progress=progress, cancelled=cancelled)
 
         self.analysis_worker.run(compare)
+
+    def _quietly(self, **changes: Any) -> None:
+        """Complete the spec with what the engine found, without forming or running anything again."""
+        self._quiet = True
+        try:
+            self.session.choose(**changes)
+        finally:
+            self._quiet = False
+            self._seen = self.session.spec
 
     def _on_analysis(self, analysis: Any) -> None:
         if self.message_bar.key == "analysis_stopped":
@@ -737,13 +738,13 @@ class MainWindow(QMainWindow):
         if path is None:
             from .export import save_start
 
-            start = save_start(self.settings, self.session.choices.path, suffix)
+            start = save_start(self.settings, self.session.path, suffix)
             chosen, _ = QFileDialog.getSaveFileName(self, title, str(start), name_filter)
             if not chosen:
                 return False
             path = chosen
         path = Path(path)
-        data_file = self.session.choices.path
+        data_file = self.session.path
         if data_file is not None and path.resolve() == data_file.resolve():
             self.message_bar.show_message("save_failed", name=path.name, reason="that is your data file")
             return False

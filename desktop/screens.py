@@ -33,11 +33,8 @@ def prepared_session(path: Path) -> Any:
     from engine.session import Session
     from engine.spec import AnalysisSpec
 
-    session = Session()
-    prepared = pipeline.from_file(path, AnalysisSpec(seed=session.choices.seed))
-    spec = prepared.spec
-    session.choose(path=Path(path), layout=spec.layout, group_column=spec.group_column,
-                   value_columns=spec.value_columns)
+    prepared = pipeline.from_file(path, AnalysisSpec())
+    session = Session(prepared.spec)
     session.store("table", prepared.table)
     session.store("intake", prepared.intake)
     session.store("analysis", prepared.analysis)

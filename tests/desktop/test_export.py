@@ -14,9 +14,8 @@ from pathlib import Path  # noqa: E402
 import numpy as np  # noqa: E402
 import pytest  # noqa: E402
 
-from engine import io, report  # noqa: E402
-from engine.spec import AnalysisSpec
-from engine.analysis import analyze  # noqa: E402
+from engine import pipeline, report  # noqa: E402
+from engine.spec import AnalysisSpec  # noqa: E402
 from engine.errors import FileProblem  # noqa: E402
 from engine.session import Session  # noqa: E402
 from desktop import export  # noqa: E402
@@ -38,17 +37,16 @@ def data_file(tmp_path) -> Path:
 
 @pytest.fixture
 def panel(qtbot, data_file):
-    session = Session()
-    table = io.read_table(data_file)
-    set_aside = {(20, "hours"): "gauge dropped before this reading"}
-    intake = io.make_groups(table, values="hours", group="coating", pick=("wax", "resin"), set_aside=set_aside)
-    session.choose(path=data_file, group_column="coating", value_columns=("hours",), picked=("wax", "resin"),
-                   set_aside=set_aside, n_resamples=300)
+    spec = AnalysisSpec(source=pipeline.source_for(data_file), group_column="coating", value_columns=("hours",),
+                        groups=("wax", "resin"), resamples=300, seed=11)
+    session = Session(spec)
+    table = pipeline.read(spec)
+    set_aside = pipeline.set_aside_cells(table, {(20, "hours"): "gauge dropped before this reading"})
+    session.choose(set_aside=set_aside)
+    intake = pipeline.form_groups(table, session.spec)
     session.store("table", table)
     session.store("intake", intake)
-    options = AnalysisSpec(resamples=300, seed=session.choices.seed)
-    session.store("analysis", analyze(intake.groups, options, screening=intake.screening,
-                                      source={"file": data_file.name, "columns": ["coating", "hours"]}))
+    session.store("analysis", pipeline.run(intake, session.spec))
     widget = FindingsPanel(session)
     qtbot.addWidget(widget)
     widget.resize(800, 700)
@@ -73,7 +71,7 @@ def test_html_report_is_self_contained_and_records_the_file(panel, data_file, tm
 
 def test_values_set_aside_and_left_out_are_listed(panel, tmp_path):
     screening = panel.session.analysis.screening
-    rows = export.set_aside_rows(panel.session.analysis, panel.session.choices)
+    rows = export.set_aside_rows(panel.session.analysis)
     assert len(rows) == sum(screening.excluded_counts.values()) >= 3
     text = panel.export_report(tmp_path / "report.html").read_text(encoding="utf-8")
     assert "gauge dropped before this reading" in text
@@ -100,17 +98,19 @@ def test_refuses_other_suffixes_and_reports_write_failures(panel, tmp_path):
 
 def test_choice_rows_name_the_decisions(panel):
     analysis = panel.session.analysis
-    rows = dict(export.choice_rows(analysis, panel.session.choices, procedure="pooled_t"))
+    rows = dict(export.choice_rows(analysis, procedure="pooled_t"))
     assert rows["Confidence level"] == "95%"
     assert "picked by the user" in rows["Procedure followed"]
     assert rows["Question"] == export.direction_text("two-sided")
     assert export.level_text(0.975) == "97.5%"
+    # the seed the analysis ran with, so that a reader can repeat the resampled numbers
+    assert rows["Random seed"].startswith("11 ") and analysis.spec.seed == 11
 
 
 def test_report_date_is_the_one_given(panel):
     when = datetime(2026, 3, 4, 5, 6, tzinfo=timezone.utc)
     analysis = panel.session.analysis
-    page = export.report_html(analysis, panel.session.choices, procedure="welch_t",
+    page = export.report_html(analysis, procedure="welch_t",
                               findings_html="<p>x</p>", cautions=["be careful"], when=when)
     assert "2026-03-04 05:06 UTC" in page and "<li>be careful</li>" in page
 
@@ -134,7 +134,7 @@ def test_pdf_pictures_fill_the_text_width_and_no_page_is_left_empty(panel, tmp_p
 
     images = _report_images(analysis, key)
     width = export.pdf_text_width()
-    html = export.report_html(analysis, panel.session.choices, procedure=key,
+    html = export.report_html(analysis, procedure=key,
                               findings_html=report.render(analysis, procedure=key).html,
                               cautions=panel.cautions_list(), images=images, embed_images=False,
                               image_width=width)

@@ -60,7 +60,7 @@ def test_html_in_labels_and_names_is_shown_literally(make_window, qtbot, settle,
     qtbot.waitUntil(lambda: window.session.table is not None, timeout=20_000)
     settle(window)
     state = window.session
-    assert state.choices.group_column == f"{PICTURE} group"
+    assert state.spec.group_column == f"{PICTURE} group"
     # three groups: the hint names the group column
     setup = window.setup_panel
     assert shown_as_text(setup.hint, f"{PICTURE} group")
@@ -96,7 +96,7 @@ def test_html_in_labels_and_names_is_shown_literally(make_window, qtbot, settle,
     assert f"{HUGE} minus {SMALL}" in axis.label.toPlainText()
     assert f"{HUGE} minus {SMALL}" in findings.table.item(0, 0).text()
 
-    page = export.report_html(state.analysis, state.choices, procedure=state.analysis.recommendation.key,
+    page = export.report_html(state.analysis, procedure=state.analysis.recommendation.key,
                               findings_html=findings.report_text().html, cautions=findings.cautions_list())
     assert HUGE not in page and html.escape(HUGE) in page and html.escape(PICTURE) in page
 
@@ -127,8 +127,10 @@ def test_the_grid_and_the_lists_show_direction_overrides_and_breaks_as_escapes(q
     assert model.headerData(0, Qt.Orientation.Horizontal).startswith("site\\u202e\n")
 
     session = Session()
-    session.choose(path=table.path, group_column="site\u202e", value_columns=("mass",),
-                   picked=(first, second))
+    from engine.spec import Source
+
+    session.choose(source=Source(str(table.path)), group_column="site\u202e", value_columns=("mass",),
+                   groups=(first, second))
     session.store("table", table)
     panel = SetupPanel(session)
     qtbot.addWidget(panel)
