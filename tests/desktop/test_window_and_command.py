@@ -55,7 +55,7 @@ def test_the_windows_spec_with_a_value_set_aside_runs_again_to_the_same_numbers(
     window.data_panel.set_aside(2, state.spec.value_columns[0], "slip of the pen")
     type_seed(window, SEED)
     qtbot.waitUntil(lambda: state.analysis is not None and state.analysis.spec.seed == SEED
-                    and state.analysis.spec.set_aside and not window.busy, timeout=60_000)
+                    and bool(state.analysis.spec.set_aside) and not window.busy, timeout=60_000)
     spec = state.analysis.spec
     assert spec.set_aside[0].reason == "slip of the pen" and spec.question.kind == "lower"
     # the window's spec, written out as plain values and read back, runs the whole pipeline again
