@@ -1,6 +1,9 @@
-"""The headless command: ``python -m engine analyze PATH ...``.
+"""The headless command: ``python -m engine analyze PATH ...``, ``analyze --spec SAVED``,
+``report SAVED_OR_PATH --html OUT`` and ``columns PATH``.
 
-Bad input ends with exit code 2 and one line on stderr; nothing else is printed then.
+Bad input ends with exit code 2 and one line on stderr; nothing else is printed then. So does a
+saved analysis that no longer gives its numbers (a changed data file, other figures): a script
+can rely on exit code 0 meaning "the saved numbers were confirmed".
 """
 
 from __future__ import annotations
@@ -15,7 +18,7 @@ from .errors import TwofoldError, quoted
 from .text import visible
 from .wording import plural
 
-__all__ = ["main", "build_parser", "spec_from_arguments"]
+__all__ = ["main", "build_parser", "spec_from_arguments", "DEFAULTS", "ANALYSIS_FLAGS"]
 
 EXIT_BAD_INPUT = 2
 EXIT_UNEXPECTED = 1  # as an uncaught error would exit, but with one line instead of a traceback
@@ -28,32 +31,59 @@ class _Parser(argparse.ArgumentParser):
         raise TwofoldError(f"{self.prog}: {message} (see --help)")
 
 
+# The analysis flags' defaults (None in the parser, so that flags given with --spec are noticed).
+DEFAULTS = {"alternative": "two-sided", "confidence": 0.95, "resamples": 10_000}
+# Flags that describe a new analysis; a saved one (--spec) already holds all of them.
+ANALYSIS_FLAGS = ("value", "group", "groups", "sheet", "alternative", "confidence", "resamples", "seed",
+                  "known_sd", "equal_spreads_known", "ordinal")
+
+
+def _analysis_flags(command: argparse.ArgumentParser) -> None:
+    command.add_argument("--value", action="append", metavar="COLUMN",
+                         help="the column of measurements; give it twice, once per group column, "
+                              "for a file with one column per group")
+    command.add_argument("--group", metavar="COLUMN", help="the column that says which group a row is in")
+    command.add_argument("--groups", nargs=2, metavar=("FIRST", "SECOND"),
+                         help="the two group labels to compare; every difference is FIRST minus SECOND")
+    command.add_argument("--sheet", help="the sheet of a workbook (default: the first)")
+    command.add_argument("--alternative", choices=("two-sided", "less", "greater"),
+                         help="two-sided (default): do the groups differ; less/greater: is the first "
+                              "group lower/higher")
+    command.add_argument("--confidence", type=float, help="confidence level (default 0.95)")
+    command.add_argument("--resamples", type=int,
+                         help="resamples for the permutation and bootstrap procedures (default 10000)")
+    command.add_argument("--seed", type=int, default=None, help="seed for the resampling, for repeatable results")
+    command.add_argument("--known-sd", nargs=2, type=float, metavar=("SD1", "SD2"),
+                         help="population standard deviations known beforehand (adds the z procedure)")
+    command.add_argument("--equal-spreads-known", action="store_true",
+                         help="the spreads are known to be equal from prior knowledge")
+    command.add_argument("--ordinal", action="store_true", help="the values are ordered ratings, not measurements")
+
+
 def build_parser() -> argparse.ArgumentParser:
     parser = _Parser(prog="python -m engine",
                      description="Compare two independent groups of measurements from a data file.")
     commands = parser.add_subparsers(dest="command", required=True, parser_class=_Parser)
 
     analyze = commands.add_parser("analyze", help="run the whole comparison on a file")
-    analyze.add_argument("path", type=Path, help="a .csv, .tsv, .txt, .xlsx, .xls or .ods file")
-    analyze.add_argument("--value", action="append", metavar="COLUMN",
-                         help="the column of measurements; give it twice, once per group column, "
-                              "for a file with one column per group")
-    analyze.add_argument("--group", metavar="COLUMN", help="the column that says which group a row is in")
-    analyze.add_argument("--groups", nargs=2, metavar=("FIRST", "SECOND"),
-                         help="the two group labels to compare; every difference is FIRST minus SECOND")
-    analyze.add_argument("--sheet", help="the sheet of a workbook (default: the first)")
-    analyze.add_argument("--alternative", default="two-sided", choices=("two-sided", "less", "greater"),
-                         help="two-sided: do the groups differ; less/greater: is the first group lower/higher")
-    analyze.add_argument("--confidence", type=float, default=0.95, help="confidence level (default 0.95)")
-    analyze.add_argument("--resamples", type=int, default=10_000,
-                         help="resamples for the permutation and bootstrap procedures (default 10000)")
-    analyze.add_argument("--seed", type=int, default=None, help="seed for the resampling, for repeatable results")
-    analyze.add_argument("--known-sd", nargs=2, type=float, metavar=("SD1", "SD2"),
-                         help="population standard deviations known beforehand (adds the z procedure)")
-    analyze.add_argument("--equal-spreads-known", action="store_true",
-                         help="the spreads are known to be equal from prior knowledge")
-    analyze.add_argument("--ordinal", action="store_true", help="the values are ordered ratings, not measurements")
+    analyze.add_argument("path", type=Path, nargs="?",
+                         help="a .csv, .tsv, .txt, .xlsx, .xls or .ods file; with --spec, the data "
+                              "file's new place when it has moved")
+    _analysis_flags(analyze)
     analyze.add_argument("--json", action="store_true", help="print one JSON object instead of a summary")
+    analyze.add_argument("--save", type=Path, metavar="OUT.twofold",
+                         help="also save the analysis (its choices, seed and numbers) to reopen and check later")
+    analyze.add_argument("--spec", type=Path, metavar="SAVED.twofold",
+                         help="run a saved analysis again; exit code 2 when its data file changed or its "
+                              "numbers are not the saved ones")
+
+    report = commands.add_parser("report", help="write the full report of a saved analysis or a data file")
+    report.add_argument("path", type=Path, metavar="SAVED_OR_FILE",
+                        help="a saved analysis (.twofold) or a data file")
+    report.add_argument("--html", type=Path, required=True, metavar="OUT.html", help="where to write the report")
+    report.add_argument("--source", type=Path, metavar="FILE",
+                        help="the data file's new place, when a saved analysis's data file has moved")
+    _analysis_flags(report)
 
     columns = commands.add_parser("columns", help="show the columns of a file and the suggested roles")
     columns.add_argument("path", type=Path)
@@ -66,35 +96,115 @@ def spec_from_arguments(args):
     from .question import Question
     from .spec import AnalysisSpec, Source, Statements
 
+    def given(name):
+        value = getattr(args, name, None)
+        return DEFAULTS[name] if value is None else value
+
     values = tuple(args.value or ())
     return AnalysisSpec(
         source=Source(str(args.path), args.sheet),
         layout="long" if args.group is not None or len(values) == 1 else "wide",
         group_column=args.group, value_columns=values,
         groups=tuple(args.groups) if args.groups else None,
-        question=Question.from_alternative(args.alternative, args.confidence),
-        resamples=args.resamples, seed=args.seed,
+        question=Question.from_alternative(given("alternative"), given("confidence")),
+        resamples=given("resamples"), seed=args.seed,
         statements=Statements(known_sd=tuple(args.known_sd) if args.known_sd else None,
                               equal_spread_known=args.equal_spreads_known, ordinal=args.ordinal),
     )
 
 
-def _analyze(args, out: TextIO) -> None:
+def _refuse_flags_with_saved(args, saved_name: str) -> None:
+    given = [name for name in ANALYSIS_FLAGS if getattr(args, name, None) not in (None, False)]
+    if given:
+        flags = ", ".join("--" + name.replace("_", "-") for name in given)
+        raise TwofoldError(f"{saved_name} holds every choice of its analysis; leave out {flags} "
+                           "(to change a choice, analyse the data file itself).")
+
+
+def _reopened(saved_path: Path, source_path: Path | None, locate: str):
+    """The saved analysis run again; raises a one-line :class:`TwofoldError` unless it gave the
+    saved numbers (the same, or within the tolerance)."""
+    from . import saved
+
+    reopened = saved.reopen(saved.load(saved_path), source_path=source_path)
+    name = saved_path.name
+    if reopened.status == "source_missing":
+        missing = Path(reopened.saved.spec.source.path).name
+        where = f" at {source_path}" if source_path is not None else ""
+        raise TwofoldError(f"{name}: the data file {missing} was not found{where}; give its new place: {locate}")
+    if reopened.status == "source_changed":
+        shown = "; ".join(reopened.differences[:saved.DIFFERENCES_SHOWN])
+        more = len(reopened.differences) - saved.DIFFERENCES_SHOWN
+        raise TwofoldError(f"{name}: {reopened.message[:-1]}" + (f": {shown}" if shown else "")
+                           + (f"; and {more} more." if more > 0 else "."))
+    if not reopened.confirmed:
+        raise TwofoldError(f"{name}: {reopened.message}")
+    return reopened
+
+
+def _prepared(args, source_path: Path | None, saved_path: Path | None, locate: str = ""):
+    """The analysis the arguments ask for: a saved one run again (with its confirmation) or a
+    new one from the data file and the flags."""
     from . import pipeline
+
+    if saved_path is not None:
+        _refuse_flags_with_saved(args, saved_path.name)
+        reopened = _reopened(saved_path, source_path, locate)
+        return reopened.prepared, reopened
+    if source_path is None:
+        raise TwofoldError("python -m engine analyze: give the path of a data file, or a saved analysis "
+                           "with --spec (see --help)")
+    return pipeline.from_file(spec=spec_from_arguments(args)), None
+
+
+def _analyze(args, out: TextIO) -> None:
     from .jsonout import analysis_document
     from .report import render
 
-    analysis = pipeline.from_file(spec=spec_from_arguments(args)).analysis
+    prepared, reopened = _prepared(args, args.path, args.spec,
+                                   f"python -m engine analyze NEW_PLACE --spec {args.spec}")
+    analysis = prepared.analysis
+    if args.save is not None:  # before anything is printed: a failed save is then the only line
+        from . import saved
+
+        saved.save(args.save, analysis)
     if args.json:
         json.dump(analysis_document(analysis), out, indent=2, allow_nan=False)
         out.write("\n")
         return
     # the suggested procedure is reported; should it have failed (a note then says why), the
     # first one that did not is reported instead, so that the rest still reaches the user
-    key = analysis.recommendation.key
-    if key not in analysis.procedures:
-        key = next(iter(analysis.procedures))
-    _write_lines(out, _readable(analysis, render(analysis, procedure=key).plain))
+    key = _reported_key(analysis)
+    lines = [f"Saved analysis {args.spec.name}: {reopened.message}", ""] if reopened is not None else []
+    _write_lines(out, lines + _readable(analysis, render(analysis, procedure=key).plain))
+
+
+def _reported_key(analysis) -> str:
+    """The procedure the user picked (a saved analysis may record one), else the suggested one."""
+    for key in (analysis.spec.procedure, analysis.recommendation.key):
+        if key in analysis.procedures:
+            return key
+    return next(iter(analysis.procedures))
+
+
+def _report(args, out: TextIO) -> None:
+    from . import audit, saved
+
+    is_saved = args.path.suffix.lower() == saved.EXTENSION
+    if not is_saved and args.source is not None:
+        raise TwofoldError("--source gives the new place of a saved analysis's data file; "
+                           f"{args.path.name} is not a saved analysis ({saved.EXTENSION}).")
+    if is_saved:
+        prepared, reopened = _prepared(args, args.source, args.path,
+                                       f"python -m engine report {args.path} --source NEW_PLACE --html {args.html}")
+    else:
+        prepared, reopened = _prepared(args, args.path, None)
+    keep = [Path(prepared.spec.source.path)] + ([args.path] if is_saved else [])
+    audit.refuse_overwriting(args.html, keep)
+    html = audit.audit_html(prepared.analysis, procedure=_reported_key(prepared.analysis),
+                            reopened=reopened)
+    saved.write_atomically(args.html, html)
+    _write_lines(out, [f"Report written to {args.html}"])
 
 
 def _write_lines(out: TextIO, lines: Sequence[str]) -> None:
@@ -149,6 +259,8 @@ def main(argv: Sequence[str] | None = None, *, out: TextIO | None = None, err: T
         args = build_parser().parse_args(argv)
         if args.command == "analyze":
             _analyze(args, out)
+        elif args.command == "report":
+            _report(args, out)
         else:
             _columns(args, out)
     except TwofoldError as problem:
