@@ -6,8 +6,13 @@ fills the spec's columns from the engine's proposal (``pipeline.complete``) and 
 analysis's seed. Each change of the columns, the two groups or the values set aside forms the
 groups again (``pipeline.form_groups``); each new set of groups, and each change of the spec that
 shapes the analysis, runs ``pipeline.run`` with a progress bar and a Stop button. The choice of
-procedure only changes what is shown, so it runs nothing. A newer run replaces an older
-one; a failure shows in the message bar and leaves the window as it was.
+procedure only changes what is shown, so it runs nothing. A newer run replaces an older one; a
+failure shows in the message bar and leaves the window as it was.
+
+A saved analysis (``.twofold``, ``engine.saved``) is written from the analysis on show, and opened
+by every way a data file is opened: reopening reads the source again, checks its checksum, runs
+the recorded spec in a worker and says in the message bar what it found. Only a reopen that ran
+replaces what is on show; a damaged file or a missing source leaves the window as it was.
 
 The procedure and findings panels load after the window is first painted, because their plotting
 library and the engine's statistics take about two seconds to import. A worker imports the
@@ -49,10 +54,16 @@ from .recent import RecentFiles, menu_labels
 from .setup_panel import SetupPanel
 from .workers import Worker
 
-__all__ = ["MainWindow", "OPEN_FILTER", "GROUP_FIELDS", "ANALYSIS_FIELDS", "LATE_PANELS", "PROBLEM_KEYS",
-           "WARM_IN_WORKER"]
+__all__ = ["MainWindow", "OPEN_FILTER", "ANALYSIS_FILTER", "SAVED_SUFFIX", "differences_words", "GROUP_FIELDS",
+           "ANALYSIS_FIELDS", "LATE_PANELS", "PROBLEM_KEYS", "WARM_IN_WORKER"]
 
-OPEN_FILTER = "Data files (*.csv *.tsv *.txt *.xlsx *.xls *.ods);;All files (*)"
+DATA_PATTERNS = "*.csv *.tsv *.txt *.xlsx *.xls *.ods"
+SAVED_SUFFIX = ".twofold"  # engine.saved.EXTENSION (the engine module is imported when first used)
+OPEN_FILTER = (f"Data files and saved analyses ({DATA_PATTERNS} *{SAVED_SUFFIX});;"
+               f"Data files ({DATA_PATTERNS});;Saved analyses (*{SAVED_SUFFIX});;All files (*)")
+DATA_FILTER = f"Data files ({DATA_PATTERNS});;All files (*)"
+ANALYSIS_FILTER = f"Saved analysis (*{SAVED_SUFFIX})"
+MAX_DIFFERENCES_SHOWN = 3  # numbers that came out differently, listed by name in the message bar
 WORKBOOK_KINDS = ("xlsx", "xls", "ods")
 SAVE_FILTER = "Web page (*.html);;PDF document (*.pdf)"
 PLOT_FILTER = "Picture (*.png);;Drawing (*.svg)"
@@ -109,6 +120,13 @@ def settings_words(spec: AnalysisSpec) -> str:
     return ", ".join(words)
 
 
+def differences_words(differences: Sequence[str], limit: int = MAX_DIFFERENCES_SHOWN) -> str:
+    """The numbers that came out differently, the first ``limit`` by name and the rest counted."""
+    shown = "; ".join(differences[:limit])
+    rest = len(differences) - limit
+    return f"{shown}; and {rest} more" if rest > 0 else shown
+
+
 def _workbook_sheets(path: Path) -> tuple[tuple[str, ...], str | None]:
     """The visible sheets of a workbook and the one to offer first (the first that holds
     numbers); nothing for a text file or a workbook that cannot be read: reading it then says
@@ -148,6 +166,7 @@ class MainWindow(QMainWindow):
         self._seen = self.session.spec
         self._late_started = False
         self._opening = ""
+        self._reopening = False  # the file being opened is a saved analysis
         self._closed = False
 
         self.setWindowTitle("Twofold")
@@ -215,6 +234,7 @@ class MainWindow(QMainWindow):
         self.analysis_worker.finished.connect(self._on_analysis)
         self.analysis_worker.failed.connect(self._on_analysis_failed)
         self.analysis_worker.progress.connect(self._on_progress)
+        self.load_worker.progress.connect(self._on_progress)  # a reopen runs the analysis too
         self.import_worker.finished.connect(lambda _: self._add_late_panels())
         self.import_worker.failed.connect(lambda *_: self._add_late_panels())
         for worker in (self.load_worker, self.groups_worker, self.analysis_worker):
@@ -299,13 +319,18 @@ class MainWindow(QMainWindow):
         return action
 
     def _build_actions(self) -> None:
-        self.open_action = self._action("&Open…", "Open a data file (.csv, .tsv, .xlsx, .ods…).",
+        self.open_action = self._action("&Open…", "Open a data file (.csv, .tsv, .xlsx, .ods…) or a saved "
+                                        "analysis (.twofold).",
                                         self.open_dialog, QKeySequence.StandardKey.Open, "open")
         self.copy_action = self._action("&Copy findings", "Copy the findings as text for a report.",
                                         self.copy_findings, "Ctrl+Shift+C", "copy")
         self.copy_plot_action = self._action("Copy the &plot",
                                              "Copy the plot of every procedure's interval, side by side, as a picture.",
                                              self.copy_plot, "Ctrl+Shift+P")
+        self.save_analysis_action = self._action(
+            "&Save the analysis…", "Keep this analysis as a .twofold file: what you decided, the seed and the "
+            "numbers it gave, so that it can be opened again and checked.",
+            self.save_analysis, QKeySequence.StandardKey.Save, "save")
         self.export_action = self._action("&Export report…", "Save the findings as a web page or a PDF file.",
                                           self.export_report, "Ctrl+E", "export")
         self.save_plot_action = self._action("Save the p&lot…",
@@ -336,6 +361,7 @@ class MainWindow(QMainWindow):
         self.recent_menu.aboutToShow.connect(self._fill_recent)
         file_menu.addMenu(self.recent_menu)
         file_menu.addSeparator()
+        file_menu.addAction(self.save_analysis_action)
         file_menu.addAction(self.export_action)
         file_menu.addAction(self.save_plot_action)
         file_menu.addSeparator()
@@ -424,7 +450,7 @@ class MainWindow(QMainWindow):
     # -- opening -------------------------------------------------------------------------------
     def open_dialog(self) -> None:
         start = str(self.session.path.parent) if self.session.path else ""
-        path, _ = QFileDialog.getOpenFileName(self, "Open a data file", start, OPEN_FILTER)
+        path, _ = QFileDialog.getOpenFileName(self, "Open a data file or a saved analysis", start, OPEN_FILTER)
         if path:
             self.open_file(path)
 
@@ -450,11 +476,14 @@ class MainWindow(QMainWindow):
         except FileProblem:
             self.message_bar.show_message("not_a_file", name=path.name or str(path))
             return False
+        if path.suffix.lower() == SAVED_SUFFIX:
+            return self.reopen(path)
         self.groups_worker.cancel()
         self.analysis_worker.cancel()
         self._analysis_soon.stop()
         self._groups_soon.stop()
         self._opening = path.name
+        self._reopening = False
         self.busy_label.setText(f"Opening {visible(path.name)}…")
         ask = sheet is None
 
@@ -478,6 +507,91 @@ class MainWindow(QMainWindow):
 
         self.load_worker.run(read)
         return True
+
+    def reopen(self, path: str | Path, *, source_path: str | Path | None = None, saved: Any = None) -> bool:
+        """Reopen the saved analysis ``path`` in a worker: read it, read its data file again (or
+        ``source_path``, where the user found a moved one), check the checksum and run the recorded
+        spec. The outcome arrives in the message bar; what is on show changes only if it ran."""
+        path = Path(path).expanduser()
+        self._opening = path.name
+        self._reopening = True
+        self.busy_label.setText(f"Reopening {visible(path.name)}…")
+
+        def reopen(progress: Any, cancelled: Any) -> tuple:
+            from engine import saved as saved_files
+
+            found = saved if saved is not None else saved_files.load(path)
+            return ("reopened", path, saved_files.reopen(found, source_path=source_path, progress=progress,
+                                                         cancelled=cancelled))
+
+        self.load_worker.run(reopen)
+        return True
+
+    def _on_reopened(self, path: Path, reopened: Any) -> None:
+        status, name = reopened.status, path.name
+        source = Path(reopened.saved.spec.source.path).name
+        if reopened.found_elsewhere:
+            source += f" (found at {reopened.source_used})"
+        if reopened.prepared is None:  # the data file is not where it was: nothing ran, nothing changes
+            self.message_bar.show_message(
+                "reopen_source_missing", name=name, source=source,
+                action=("Find the data file…", lambda: self.locate_source(path, reopened.saved)))
+            return
+        prepared = reopened.prepared
+        self.groups_worker.cancel()
+        self.analysis_worker.cancel()
+        self._analysis_soon.stop()
+        self._groups_soon.stop()
+        self._quiet = True
+        try:
+            for output in ("analysis", "intake", "problem"):
+                self.session.store(output, None)
+            self.session.adopt(prepared.spec)
+            self.session.store("table", prepared.table)
+            self.session.store("intake", prepared.intake)
+            self.session.store("analysis", prepared.analysis)
+        finally:
+            self._quiet = False
+            self._seen = self.session.spec
+        self.setWindowTitle(f"{visible(name)} - Twofold")
+        self.recent.add(path)
+        self._load_late_soon()
+        differences = differences_words(reopened.differences)
+        if status == "same":
+            self.message_bar.show_message("reopen_same", name=name, source=source)
+        elif status == "close":
+            self.message_bar.show_message("reopen_close", name=name, source=source)
+        elif status == "source_changed":
+            self.message_bar.show_message("reopen_source_changed" if differences else "reopen_source_changed_alike",
+                                          name=name, source=source, differences=differences)
+        else:  # "numbers_differ", or a status this window does not know: never called the same
+            self.message_bar.show_message("reopen_numbers_differ", name=name, source=source,
+                                          differences=differences or reopened.message)
+
+    def locate_source(self, path: Path, saved: Any) -> None:
+        """Ask where the data file of the saved analysis ``path`` went, then reopen it from there."""
+        start = str(path.parent)
+        found, _ = QFileDialog.getOpenFileName(self, "Find the data file of the saved analysis", start, DATA_FILTER)
+        if found:
+            self.reopen(path, source_path=found, saved=saved)
+
+    def save_analysis(self, path: str | Path | None = None) -> bool:
+        """Save the analysis on show as a ``.twofold`` file (asks for the path when none is given)."""
+        analysis = self.session.analysis
+        if analysis is None:
+            self.message_bar.show_message("nothing_yet")
+            return False
+        from dataclasses import replace
+
+        # the pick only changes what is shown, so the analysis carries the pick of its own run
+        analysis = replace(analysis, spec=analysis.spec.replace(procedure=self.session.spec.procedure))
+
+        def write(target: Path) -> None:
+            from engine import saved as saved_files
+
+            saved_files.save(target, analysis)
+
+        return self._save(path, "Save the analysis", ANALYSIS_FILTER, SAVED_SUFFIX, write, own_suffix=True)
 
     def wait_for_file(self, msecs: int) -> bool:
         """Block up to ``msecs`` for the file being read, then take its table at once.
@@ -508,6 +622,9 @@ class MainWindow(QMainWindow):
             wanted = self._ask_sheet(list(names), first if first in names else names[0])
             if wanted:
                 self.open_file(path, sheet=wanted)
+            return
+        if result[0] == "reopened":
+            self._on_reopened(result[1], result[2])
             return
         _, path, table, spec = result
         self.message_bar.clear()
@@ -549,7 +666,11 @@ class MainWindow(QMainWindow):
 
     def _on_load_failed(self, message: str, expected: bool) -> None:
         self._load_late_soon()
-        if expected:  # the engine's sentence names the file as a rule: say it once
+        if self._reopening:
+            named = visible(self._opening) in message  # the engine's sentence names the file: say it once
+            self.message_bar.show_message("reopen_refused" if expected else "reopen_crashed",
+                                          name="the file" if named else self._opening, reason=message)
+        elif expected:  # the engine's sentence names the file as a rule: say it once
             self.message_bar.show_message("open_failed", reason=message,
                                           name="the file" if visible(self._opening) in message else self._opening)
         else:
@@ -734,7 +855,7 @@ class MainWindow(QMainWindow):
             self.message_bar.show_message("copied", what="the plot of the intervals")
 
     def _save(self, path: str | Path | None, title: str, name_filter: str, suffix: str,
-              write: Callable[[Path], Any]) -> bool:
+              write: Callable[[Path], Any], *, own_suffix: bool = False) -> bool:
         if path is None:
             from .export import save_start
 
@@ -744,6 +865,8 @@ class MainWindow(QMainWindow):
                 return False
             path = chosen
         path = Path(path)
+        if own_suffix and path.suffix.lower() != suffix:  # a file of this kind is known by its suffix
+            path = path.with_name(path.name + suffix)
         data_file = self.session.path
         if data_file is not None and path.resolve() == data_file.resolve():
             self.message_bar.show_message("save_failed", name=path.name, reason="that is your data file")
