@@ -227,7 +227,7 @@ def test_rank_paragraph_gives_u_the_shift_and_medians(groups):
 def test_a_narrow_effect_size_interval_gets_more_decimals(groups):
     analysis = _analysis(groups)
     narrow = {"hedges_g": _effect("hedges_g", "Hedges' g", 0.0512, 0.0483, 0.0541, "two-sided")}
-    analysis = Analysis(**{**{f: getattr(analysis, f) for f in ("groups", "options", "summaries",
+    analysis = Analysis(**{**{f: getattr(analysis, f) for f in ("groups", "spec", "summaries",
                           "diagnostics", "recommendation", "procedures", "robustness")},
                           "effect_sizes": narrow})
     assert "Hedges' g = 0.051, 95% CI 0.048 to 0.054" in render(analysis).paragraph
