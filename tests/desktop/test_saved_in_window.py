@@ -219,3 +219,19 @@ def test_nothing_to_save_before_an_analysis(make_window):
     window = make_window()
     assert not window.save_analysis()
     assert window.message_bar.key == "nothing_yet"
+
+
+def test_an_analysis_saved_by_the_command_reopens_in_the_window_to_the_same_numbers(make_window, qtbot, data_file,
+                                                                                     tmp_path):
+    import subprocess
+    import sys
+
+    target = tmp_path / "from the command.twofold"
+    root = Path(__file__).resolve().parents[2]
+    done = subprocess.run([sys.executable, "-m", "engine", "analyze", str(data_file), "--seed", "31", "--json",
+                           "--save", str(target)], cwd=root, capture_output=True, text=True, timeout=300)
+    assert done.returncode == 0, done.stderr
+    window = make_window([target])
+    ready(qtbot, window)
+    assert window.message_bar.key == "reopen_same"
+    assert document(window.session.analysis) == json.loads(done.stdout)
