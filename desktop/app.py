@@ -1,8 +1,9 @@
 """The program's entry point: ``twofold [FILE]``, ``python -m desktop [FILE]``.
 
-``twofold FILE`` is also what a double-click on a data file runs once the program is registered
-with the desktop (``twofold --install-desktop-entry``); the file goes through the same
-:meth:`MainWindow.open_file` as the Open dialog, a drop on the window or the recent list.
+``twofold FILE`` (a data file or a saved ``.twofold`` analysis) is also what a double-click on
+such a file runs once the program is registered with the desktop (``twofold
+--install-desktop-entry``); the file goes through the same :meth:`MainWindow.open_file` as the
+Open dialog, a drop on the window or the recent list.
 """
 
 from __future__ import annotations
@@ -23,7 +24,7 @@ def build_parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(
         prog="twofold", description="Compare two independent groups of measurements from a data file.")
     parser.add_argument("files", nargs="*", type=Path, metavar="FILE",
-                        help="a .csv, .tsv, .txt, .xlsx, .xls or .ods file to open")
+                        help="a .csv, .tsv, .txt, .xlsx, .xls or .ods file to open, or a saved analysis (.twofold)")
     registration = parser.add_mutually_exclusive_group()  # both at once would do only one
     registration.add_argument("--install-desktop-entry", action="store_true",
                               help="offer Twofold for .csv, .tsv, .txt, .xlsx, .xls and .ods files on the desktop "

@@ -18,6 +18,7 @@ from PySide6.QtWidgets import (QBoxLayout, QCheckBox, QComboBox, QFormLayout, QF
                                QHBoxLayout, QLabel, QLineEdit, QPushButton, QVBoxLayout, QWidget)
 
 from engine import report
+from engine.errors import OptionProblem
 from engine.text import visible, visible_html
 
 from .panel_parts import FlowLayout, disclosure_button, heading, hint_and_body, text_label
@@ -133,8 +134,8 @@ class ChoicePanel(QWidget):
     Parameters
     ----------
     session : engine.session.Session
-        Read for the analysis and the choices; written with ``session.choose(procedure=...)``,
-        ``known_sd=...``, ``equal_spread_known=...`` and ``ordinal=...``.
+        Read for the analysis and the spec; written with ``session.choose(procedure=...)`` and
+        ``session.state(known_sd=..., equal_spread_known=..., ordinal=...)``.
     """
 
     def __init__(self, session, parent: QWidget | None = None) -> None:
@@ -220,8 +221,8 @@ class ChoicePanel(QWidget):
     def _on_session(self, name: str, value: Any) -> None:
         if name == "analysis":
             self.refresh()
-        elif name == "choices":
-            self._sync_choices()
+        elif name == "spec":
+            self._sync_spec()
 
     def cleanup(self) -> None:
         """Stop listening to the session."""
@@ -232,14 +233,14 @@ class ChoicePanel(QWidget):
         """Show the current analysis (or the hint when there is none).
 
         The checks, plots and suggestion are drawn again only for a new analysis object; for the
-        one on show only the widgets of the choices follow the session.
+        one on show only the widgets of the spec follow the session.
         """
         analysis = self.session.analysis
         self.hint.setVisible(analysis is None)
         self.scroll.setVisible(analysis is not None)
         if analysis is self._shown:
             if analysis is not None:
-                self._sync_choices()
+                self._sync_spec()
             return
         self._shown = analysis
         if analysis is None:
@@ -247,7 +248,7 @@ class ChoicePanel(QWidget):
         self._show_checks(analysis)
         self._show_suggestion(analysis)
         self._fill_picker(analysis)
-        self._sync_choices()
+        self._sync_spec()
 
     def _show_checks(self, analysis) -> None:
         groups, checks = analysis.groups, analysis.diagnostics
@@ -295,20 +296,21 @@ class ChoicePanel(QWidget):
         for label, text in zip(self.sd_labels, labels):
             label.setText(f"SD of {visible(text)}:")
 
-    def _sync_choices(self) -> None:
-        """Make the widgets show the session's choices without writing anything back."""
-        choices = self.session.choices
+    def _sync_spec(self) -> None:
+        """Make the widgets show the session's spec without writing anything back."""
+        spec = self.session.spec
+        statements = spec.statements
         self._syncing = True
         try:
-            index = self.picker.findData(choices.procedure) if choices.procedure else 0
+            index = self.picker.findData(spec.procedure) if spec.procedure else 0
             self.picker.setCurrentIndex(max(index, 0))
-            self.equal_spread.setChecked(choices.equal_spread_known)
-            self.ordinal.setChecked(choices.ordinal)
-            has_sd = choices.known_sd is not None
+            self.equal_spread.setChecked(statements.equal_spread_known)
+            self.ordinal.setChecked(statements.ordinal)
+            has_sd = statements.known_sd is not None
             self.sd_box.setChecked(has_sd)
             if has_sd:
                 self.advanced_button.setChecked(True)
-                for edit, value in zip(self.sd_edits, choices.known_sd):
+                for edit, value in zip(self.sd_edits, statements.known_sd):
                     edit.setText(repr(float(value)))
         finally:
             self._syncing = False
@@ -326,7 +328,7 @@ class ChoicePanel(QWidget):
             self.assumes.setText(f"<b>What this pick assumes</b> ({visible_html(name)}): {visible_html(sentence)}")
         else:
             self.assumes.setText("")
-        picked = self.session.choices.procedure
+        picked = self.session.spec.procedure
         if picked is not None and picked not in analysis.procedures:
             self.assumes.setText(f"The procedure picked before ({visible_html(picked)}) is not available "
                                  "for these data; the findings follow the suggestion.")
@@ -340,11 +342,11 @@ class ChoicePanel(QWidget):
 
     def _equal_spread_toggled(self, checked: bool) -> None:
         if not self._syncing:
-            self.session.choose(equal_spread_known=checked)
+            self.session.state(equal_spread_known=checked)
 
     def _ordinal_toggled(self, checked: bool) -> None:
         if not self._syncing:
-            self.session.choose(ordinal=checked)
+            self.session.state(ordinal=checked)
 
     def _sd_toggled(self, checked: bool) -> None:
         if self._syncing:
@@ -353,24 +355,24 @@ class ChoicePanel(QWidget):
             self._apply_sd()
         else:
             self.sd_message.setText("")
-            self.session.choose(known_sd=None)
+            self.session.state(known_sd=None)
 
     def _apply_sd(self) -> None:
         if self._syncing or not self.sd_box.isChecked():
             return
         values = []
-        for edit, label in zip(self.sd_edits, self.sd_labels):
+        for edit in self.sd_edits:
             text = edit.text().strip().replace(",", ".")
             try:
-                value = float(text)
+                values.append(float(text))
             except ValueError:
-                value = float("nan")
-            if not (value > 0 and value < float("inf")):
-                self.sd_message.setText(f"Enter a positive number for the {label.text().rstrip(':')}.")
-                return
-            values.append(value)
-        self.sd_message.setText("")
-        self.session.choose(known_sd=(values[0], values[1]))
+                values.append(float("nan"))  # not a number: the spec says what it needs
+        try:
+            self.session.state(known_sd=(values[0], values[1]))
+        except OptionProblem as problem:
+            self.sd_message.setText(problem.message)
+        else:
+            self.sd_message.setText("")
 
 
 def _shape_figures(shape) -> list[tuple[str, str]]:

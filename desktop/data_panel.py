@@ -3,7 +3,9 @@
 Cells the screening left out are greyed and explain themselves on hover; a value the user sets
 aside (a suspected slip of the pen) is struck through, carries the user's reason, and can be
 brought back from the grid's menu or from the list beside it. Setting aside and bringing back
-write ``set_aside`` into the session; nothing is ever written to the file.
+write the spec's ``set_aside`` (each cell by the file's row number and its text, through
+``engine.pipeline.set_aside_cells``); the grid finds them again by ``set_aside_keys``. Nothing is
+ever written to the file.
 
 Run on its own for a quick look: ``python -m desktop.data_panel demo_files/bolt_strength.csv``.
 """
@@ -232,7 +234,7 @@ class DataPanel(QWidget):
     def _on_session(self, name: str, value: Any) -> None:
         if name == "table":
             self._show_table(value)
-        if name in ("table", "intake", "choices", "problem"):
+        if name in ("table", "intake", "spec", "problem"):
             self._show_marks()
 
     def _show_table(self, table: Any) -> None:
@@ -245,7 +247,7 @@ class DataPanel(QWidget):
         if table is None:
             self.heading.setText("Open a data file to begin.")
         else:
-            path = self._session.choices.path
+            path = self._session.path
             name = path.name if path is not None else "the data"
             sheet = getattr(table, "sheet", None)
             where = f"{name}, sheet {sheet}" if sheet else name
@@ -289,24 +291,49 @@ class DataPanel(QWidget):
             for item in screening.exclusions:
                 why = EXCLUSION_WORDS.get(item.reason, item.reason)
                 excluded[(int(item.frame_row), str(item.column))] = f"{why} ('{item.text}')" if item.text else why
-        set_aside = dict(self._session.choices.set_aside or {})
+        set_aside = self._set_aside()
         self.model.set_marks(excluded=excluded, set_aside=set_aside)
         self.report.setHtml(screening_html(self._session.table, screening, set_aside=set_aside,
                                            problem=self._session.problem, file_row=self.model.file_row))
         self._update_buttons()
 
     # -- setting aside -------------------------------------------------------------------------
+    def _set_aside(self) -> dict[tuple[int, str], str]:
+        """The spec's cells set aside that the table on show holds, as (frame row, column) ->
+        reason (one that is gone or changed stays in the spec: forming the groups says which)."""
+        return self._cells_set_aside()[0]
+
+    def _cells_set_aside(self) -> tuple[dict[tuple[int, str], str], tuple[Any, ...]]:
+        from engine.errors import TwofoldError
+        from engine.pipeline import set_aside_keys
+
+        table, cells = self._session.table, self._session.spec.set_aside
+        found: dict[tuple[int, str], str] = {}
+        unfit = []
+        for cell in cells if table is not None else ():
+            try:
+                found.update(set_aside_keys(table, (cell,)))
+            except TwofoldError:
+                unfit.append(cell)
+        return found, tuple(unfit)
+
+    def _write_set_aside(self, marks: Mapping[tuple[int, str], str]) -> None:
+        from engine.pipeline import set_aside_cells
+
+        unfit = self._cells_set_aside()[1]
+        self._session.choose(set_aside=unfit + set_aside_cells(self._session.table, marks))
+
     def set_aside(self, row: int, column: str, reason: str) -> None:
         """Leave the value at (frame row, column) out of the comparison, for ``reason``."""
-        marks = dict(self._session.choices.set_aside or {})
+        marks = self._set_aside()
         marks[(int(row), str(column))] = reason
-        self._session.choose(set_aside=marks)
+        self._write_set_aside(marks)
 
     def bring_back(self, row: int, column: str) -> None:
         """Put a value set aside back into the comparison."""
-        marks = dict(self._session.choices.set_aside or {})
+        marks = self._set_aside()
         marks.pop((int(row), str(column)), None)
-        self._session.choose(set_aside=marks or None)
+        self._write_set_aside(marks)
 
     def set_aside_current(self) -> None:
         index = self.grid.currentIndex()
@@ -348,7 +375,7 @@ class DataPanel(QWidget):
     def _on_link(self, url: QUrl) -> None:
         if url.scheme() != _BRING_BACK:
             return
-        cells = aside_order(dict(self._session.choices.set_aside or {}))
+        cells = aside_order(self._set_aside())
         number = int(url.path()) if url.path().isdigit() else -1
         if 0 <= number < len(cells):
             self.bring_back(*cells[number])

@@ -1,6 +1,6 @@
 """The findings: a headline, a compact table, every procedure side by side, and the cautions.
 
-The panel shows the result of the procedure the user follows (``session.choices.procedure``, or
+The panel shows the result of the procedure the user follows (``session.spec.procedure``, or
 the suggested one). Every number comes from the engine and is written by ``engine.report``;
 the panel lays them out and offers them to a document: copy the findings (a table and plain
 text), copy or save the plot, export an HTML or PDF report.
@@ -151,7 +151,7 @@ class FindingsPanel(QWidget):
     def _on_session(self, name: str, value: Any) -> None:
         if name == "analysis":
             self.refresh()
-        elif name == "choices" and self.session.analysis is not None:
+        elif name == "spec" and self.session.analysis is not None:
             if self.procedure_key() != self._shown_key:
                 self.refresh()
 
@@ -165,7 +165,7 @@ class FindingsPanel(QWidget):
         analysis = self.session.analysis
         if analysis is None:
             return None
-        picked = self.session.choices.procedure
+        picked = self.session.spec.procedure
         if picked in analysis.procedures:
             return picked
         return analysis.recommendation.key

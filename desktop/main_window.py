@@ -1,12 +1,18 @@
 """The main window: the panels around one session, the menus, and the flow from file to findings.
 
-The flow: opening a file reads it in a worker (``engine.io.read_table`` and ``propose_layout``),
-asks for the sheet of a workbook with several, stores the table and fills the choices from the
-engine's proposal. Each change of the columns, the two groups or the values set aside forms the
-groups again (``make_groups``, in a worker); each new set of groups, and each change of an option
-that shapes the analysis, runs ``analyze`` in a worker with a progress bar and a Stop button. The
-choice of procedure only changes what is shown, so it runs nothing. A newer run replaces an older
-one; a failure shows in the message bar and leaves the window as it was.
+The flow runs the steps of ``engine.pipeline`` in workers: opening a file reads it
+(``pipeline.read``, after asking for the sheet of a workbook with several), records its checksum,
+fills the spec's columns from the engine's proposal (``pipeline.complete``) and draws the new
+analysis's seed. Each change of the columns, the two groups or the values set aside forms the
+groups again (``pipeline.form_groups``); each new set of groups, and each change of the spec that
+shapes the analysis, runs ``pipeline.run`` with a progress bar and a Stop button. The choice of
+procedure only changes what is shown, so it runs nothing. A newer run replaces an older one; a
+failure shows in the message bar and leaves the window as it was.
+
+A saved analysis (``.twofold``, ``engine.saved``) is written from the analysis on show, and opened
+by every way a data file is opened: reopening reads the source again, checks its checksum, runs
+the recorded spec in a worker and says in the message bar what it found. Only a reopen that ran
+replaces what is on show; a damaged file or a missing source leaves the window as it was.
 
 The procedure and findings panels load after the window is first painted, because their plotting
 library and the engine's statistics take about two seconds to import. A worker imports the
@@ -37,7 +43,8 @@ from PySide6.QtWidgets import (
     QWidget,
 )
 
-from engine.session import Choices, Session
+from engine.session import Session
+from engine.spec import AnalysisSpec
 from engine.text import visible
 
 from .data_panel import DataPanel
@@ -47,24 +54,28 @@ from .recent import RecentFiles, menu_labels
 from .setup_panel import SetupPanel
 from .workers import Worker
 
-__all__ = ["MainWindow", "OPEN_FILTER", "GROUP_FIELDS", "ANALYSIS_FIELDS", "LATE_PANELS", "PROBLEM_KEYS",
-           "WARM_IN_WORKER"]
+__all__ = ["MainWindow", "OPEN_FILTER", "ANALYSIS_FILTER", "SAVED_SUFFIX", "differences_words", "GROUP_FIELDS",
+           "ANALYSIS_FIELDS", "LATE_PANELS", "PROBLEM_KEYS", "WARM_IN_WORKER"]
 
-OPEN_FILTER = "Data files (*.csv *.tsv *.txt *.xlsx *.xls *.ods);;All files (*)"
+DATA_PATTERNS = "*.csv *.tsv *.txt *.xlsx *.xls *.ods"
+SAVED_SUFFIX = ".twofold"  # engine.saved.EXTENSION (the engine module is imported when first used)
+OPEN_FILTER = (f"Data files and saved analyses ({DATA_PATTERNS} *{SAVED_SUFFIX});;"
+               f"Data files ({DATA_PATTERNS});;Saved analyses (*{SAVED_SUFFIX});;All files (*)")
+DATA_FILTER = f"Data files ({DATA_PATTERNS});;All files (*)"
+ANALYSIS_FILTER = f"Saved analysis (*{SAVED_SUFFIX})"
+MAX_DIFFERENCES_SHOWN = 3  # numbers that came out differently, listed by name in the message bar
 WORKBOOK_KINDS = ("xlsx", "xls", "ods")
 SAVE_FILTER = "Web page (*.html);;PDF document (*.pdf)"
 PLOT_FILTER = "Picture (*.png);;Drawing (*.svg)"
 
-# Choices that change the two groups, and choices that change only the analysis of them.
-GROUP_FIELDS = ("layout", "group_column", "value_columns", "picked", "set_aside")
-ANALYSIS_FIELDS = ("alternative", "confidence_level", "n_resamples", "seed", "known_sd",
-                   "equal_spread_known", "ordinal")
+# Fields of the spec that change the two groups, and fields that change only the analysis of them.
+GROUP_FIELDS = ("layout", "group_column", "value_columns", "groups", "set_aside")
+ANALYSIS_FIELDS = ("question", "resamples", "seed", "statements", "rank_method")
 
 # The settings of the comparison that each new file starts from afresh (the defaults of
-# ``Choices``) unless the user ticks "Keep these settings for the next file"; and the statements
-# about one file's data, which never carry over to another file.
-CARRIED_FIELDS = ("alternative", "confidence_level", "n_resamples", "seed")
-DATA_STATEMENT_FIELDS = ("known_sd", "equal_spread_known", "ordinal")
+# ``AnalysisSpec``) unless the user ticks "Keep these settings for the next file". A new file
+# always draws a new seed, and the statements about one file's data never carry over.
+CARRIED_FIELDS = ("question", "resamples")
 KEEP_SETTINGS_KEY = "comparison/keep_settings"
 
 # Messages that say why there is no comparison; the bar drops them once the session's problem is gone.
@@ -95,28 +106,25 @@ ANALYSIS_DELAY_MS = 120  # a burst of set-up changes runs one analysis
 AskSheet = Callable[[Sequence[str], str | None], "str | None"]
 
 
-def _changed(old: Choices, new: Choices, names: Sequence[str]) -> bool:
+def _changed(old: AnalysisSpec, new: AnalysisSpec, names: Sequence[str]) -> bool:
     return any(getattr(old, name) != getattr(new, name) for name in names)
 
 
-def _proposed_picks(proposal: Any) -> tuple[str, str] | None:
-    levels = tuple(getattr(proposal, "levels", ()) or ())
-    if getattr(proposal, "layout", "long") == "long" and len(levels) == 2:
-        return str(levels[0]), str(levels[1])
-    return None
-
-
-def settings_words(choices: Choices) -> str:
-    """The carried settings of ``choices`` in a few words, e.g. "one-sided (group 1 lower), 90 %"."""
+def settings_words(spec: AnalysisSpec) -> str:
+    """The carried settings of ``spec`` in a few words, e.g. "one-sided (group 1 lower), 90 %"."""
     sides = {"two-sided": "two-sided", "less": "one-sided (group 1 lower)",
              "greater": "one-sided (group 1 higher)"}
-    words = [sides.get(choices.alternative, choices.alternative), f"{choices.confidence_level * 100:g} %"]
-    usual = Choices()
-    if choices.n_resamples != usual.n_resamples:
-        words.append(f"{choices.n_resamples:,} resampling rounds")
-    if choices.seed != usual.seed:
-        words.append(f"seed {choices.seed}")
+    words = [sides.get(spec.alternative, spec.alternative), f"{spec.level * 100:g} %"]
+    if spec.resamples != AnalysisSpec().resamples:
+        words.append(f"{spec.resamples:,} resampling rounds")
     return ", ".join(words)
+
+
+def differences_words(differences: Sequence[str], limit: int = MAX_DIFFERENCES_SHOWN) -> str:
+    """The numbers that came out differently, the first ``limit`` by name and the rest counted."""
+    shown = "; ".join(differences[:limit])
+    rest = len(differences) - limit
+    return f"{shown}; and {rest} more" if rest > 0 else shown
 
 
 def _workbook_sheets(path: Path) -> tuple[tuple[str, ...], str | None]:
@@ -155,9 +163,10 @@ class MainWindow(QMainWindow):
         self.recent = RecentFiles(self.settings)
         self._ask_sheet = ask_sheet or self._choose_sheet
         self._quiet = False
-        self._seen = self.session.choices
+        self._seen = self.session.spec
         self._late_started = False
         self._opening = ""
+        self._reopening = False  # the file being opened is a saved analysis
         self._closed = False
 
         self.setWindowTitle("Twofold")
@@ -225,6 +234,7 @@ class MainWindow(QMainWindow):
         self.analysis_worker.finished.connect(self._on_analysis)
         self.analysis_worker.failed.connect(self._on_analysis_failed)
         self.analysis_worker.progress.connect(self._on_progress)
+        self.load_worker.progress.connect(self._on_progress)  # a reopen runs the analysis too
         self.import_worker.finished.connect(lambda _: self._add_late_panels())
         self.import_worker.failed.connect(lambda *_: self._add_late_panels())
         for worker in (self.load_worker, self.groups_worker, self.analysis_worker):
@@ -307,13 +317,18 @@ class MainWindow(QMainWindow):
         return action
 
     def _build_actions(self) -> None:
-        self.open_action = self._action("&Open…", "Open a data file (.csv, .tsv, .xlsx, .ods…).",
+        self.open_action = self._action("&Open…", "Open a data file (.csv, .tsv, .xlsx, .ods…) or a saved "
+                                        "analysis (.twofold).",
                                         self.open_dialog, QKeySequence.StandardKey.Open, "open")
         self.copy_action = self._action("&Copy findings", "Copy the findings as text for a report.",
                                         self.copy_findings, "Ctrl+Shift+C", "copy")
         self.copy_plot_action = self._action("Copy the &plot",
                                              "Copy the plot of every procedure's interval, side by side, as a picture.",
                                              self.copy_plot, "Ctrl+Shift+P")
+        self.save_analysis_action = self._action(
+            "&Save the analysis…", "Keep this analysis as a .twofold file: what you decided, the seed and the "
+            "numbers it gave, so that it can be opened again and checked.",
+            self.save_analysis, QKeySequence.StandardKey.Save, "save")
         self.export_action = self._action("&Export report…", "Save the findings as a web page or a PDF file.",
                                           self.export_report, "Ctrl+E", "export")
         self.save_plot_action = self._action("Save the p&lot…",
@@ -344,6 +359,7 @@ class MainWindow(QMainWindow):
         self.recent_menu.aboutToShow.connect(self._fill_recent)
         file_menu.addMenu(self.recent_menu)
         file_menu.addSeparator()
+        file_menu.addAction(self.save_analysis_action)
         file_menu.addAction(self.export_action)
         file_menu.addAction(self.save_plot_action)
         file_menu.addSeparator()
@@ -424,8 +440,8 @@ class MainWindow(QMainWindow):
 
     # -- opening -------------------------------------------------------------------------------
     def open_dialog(self) -> None:
-        start = str(self.session.choices.path.parent) if self.session.choices.path else ""
-        path, _ = QFileDialog.getOpenFileName(self, "Open a data file", start, OPEN_FILTER)
+        start = str(self.session.path.parent) if self.session.path else ""
+        path, _ = QFileDialog.getOpenFileName(self, "Open a data file or a saved analysis", start, OPEN_FILTER)
         if path:
             self.open_file(path)
 
@@ -451,26 +467,122 @@ class MainWindow(QMainWindow):
         except FileProblem:
             self.message_bar.show_message("not_a_file", name=path.name or str(path))
             return False
+        if path.suffix.lower() == SAVED_SUFFIX:
+            return self.reopen(path)
         self.groups_worker.cancel()
         self.analysis_worker.cancel()
         self._analysis_soon.stop()
         self._groups_soon.stop()
         self._opening = path.name
+        self._reopening = False
         self.busy_label.setText(f"Opening {visible(path.name)}…")
         ask = sheet is None
 
         def read(progress: Any, cancelled: Any) -> tuple:
-            from engine import io
+            from engine import pipeline
+            from engine.errors import ColumnProblem
+            from engine.spec import Source
 
             if ask:
                 names, first = _workbook_sheets(path)
                 if len(names) > 1:
                     return ("sheets", path, names, first)
-            table = io.read_table(path, sheet=sheet)
-            return ("table", path, table, io.propose_layout(table))
+            spec = AnalysisSpec(source=Source(str(path), sheet))
+            table = pipeline.read(spec)  # first: it refuses what is not a regular, readable data file
+            spec = spec.replace(source=pipeline.source_for(path, sheet))
+            try:
+                spec = pipeline.complete(table, spec)
+            except ColumnProblem:  # no proposal for the columns: the user chooses them
+                spec = spec.replace(source=Source(str(path), table.sheet, spec.source.sha256))
+            return ("table", path, table, spec)
 
         self.load_worker.run(read)
         return True
+
+    def reopen(self, path: str | Path, *, source_path: str | Path | None = None, saved: Any = None) -> bool:
+        """Reopen the saved analysis ``path`` in a worker: read it, read its data file again (or
+        ``source_path``, where the user found a moved one), check the checksum and run the recorded
+        spec. The outcome arrives in the message bar; what is on show changes only if it ran."""
+        path = Path(path).expanduser()
+        self._opening = path.name
+        self._reopening = True
+        self.busy_label.setText(f"Reopening {visible(path.name)}…")
+
+        def reopen(progress: Any, cancelled: Any) -> tuple:
+            from engine import saved as saved_files
+
+            found = saved if saved is not None else saved_files.load(path)
+            return ("reopened", path, saved_files.reopen(found, source_path=source_path, progress=progress,
+                                                         cancelled=cancelled))
+
+        self.load_worker.run(reopen)
+        return True
+
+    def _on_reopened(self, path: Path, reopened: Any) -> None:
+        status, name = reopened.status, path.name
+        source = Path(reopened.saved.spec.source.path).name
+        if reopened.found_elsewhere:
+            source += f" (found at {reopened.source_used})"
+        if reopened.prepared is None:  # the data file is not where it was: nothing ran, nothing changes
+            self.message_bar.show_message(
+                "reopen_source_missing", name=name, source=source,
+                action=("Find the data file…", lambda: self.locate_source(path, reopened.saved)))
+            return
+        prepared = reopened.prepared
+        self.groups_worker.cancel()
+        self.analysis_worker.cancel()
+        self._analysis_soon.stop()
+        self._groups_soon.stop()
+        self._quiet = True
+        try:
+            for output in ("analysis", "intake", "problem"):
+                self.session.store(output, None)
+            self.session.adopt(prepared.spec)
+            self.session.store("table", prepared.table)
+            self.session.store("intake", prepared.intake)
+            self.session.store("analysis", prepared.analysis)
+        finally:
+            self._quiet = False
+            self._seen = self.session.spec
+        self.setWindowTitle(f"{visible(name)} - Twofold")
+        self.recent.add(path)
+        self._load_late_soon()
+        differences = differences_words(reopened.differences)
+        if status == "same":
+            self.message_bar.show_message("reopen_same", name=name, source=source)
+        elif status == "close":
+            self.message_bar.show_message("reopen_close", name=name, source=source)
+        elif status == "source_changed":
+            self.message_bar.show_message("reopen_source_changed" if differences else "reopen_source_changed_alike",
+                                          name=name, source=source, differences=differences)
+        else:  # "numbers_differ", or a status this window does not know: never called the same
+            self.message_bar.show_message("reopen_numbers_differ", name=name, source=source,
+                                          differences=differences or reopened.message)
+
+    def locate_source(self, path: Path, saved: Any) -> None:
+        """Ask where the data file of the saved analysis ``path`` went, then reopen it from there."""
+        start = str(path.parent)
+        found, _ = QFileDialog.getOpenFileName(self, "Find the data file of the saved analysis", start, DATA_FILTER)
+        if found:
+            self.reopen(path, source_path=found, saved=saved)
+
+    def save_analysis(self, path: str | Path | None = None) -> bool:
+        """Save the analysis on show as a ``.twofold`` file (asks for the path when none is given)."""
+        analysis = self.session.analysis
+        if analysis is None:
+            self.message_bar.show_message("nothing_yet")
+            return False
+        from dataclasses import replace
+
+        # the pick only changes what is shown, so the analysis carries the pick of its own run
+        analysis = replace(analysis, spec=analysis.spec.replace(procedure=self.session.spec.procedure))
+
+        def write(target: Path) -> None:
+            from engine import saved as saved_files
+
+            saved_files.save(target, analysis)
+
+        return self._save(path, "Save the analysis", ANALYSIS_FILTER, SAVED_SUFFIX, write, own_suffix=True)
 
     def wait_for_file(self, msecs: int) -> bool:
         """Block up to ``msecs`` for the file being read, then take its table at once.
@@ -502,27 +614,24 @@ class MainWindow(QMainWindow):
             if wanted:
                 self.open_file(path, sheet=wanted)
             return
-        _, path, table, proposal = result
+        if result[0] == "reopened":
+            self._on_reopened(result[1], result[2])
+            return
+        _, path, table, spec = result
         self.message_bar.clear()
-        before = self.session.choices
+        before = self.session.spec
         keep = self.keep_settings_action.isChecked()
-        usual = Choices()
-        fresh = {} if keep else {name: getattr(usual, name) for name in CARRIED_FIELDS}
-        fresh.update({name: getattr(usual, name) for name in DATA_STATEMENT_FIELDS})
+        if keep:
+            spec = spec.replace(**{name: getattr(before, name) for name in CARRIED_FIELDS})
         self._quiet = True
         try:
             for name in ("analysis", "intake", "problem"):
                 self.session.store(name, None)
-            self.session.choose(
-                path=path, sheet=getattr(table, "sheet", None), layout=proposal.layout,
-                group_column=proposal.group_column if proposal.layout == "long" else None,
-                value_columns=tuple(proposal.value_columns)[: 1 if proposal.layout == "long" else 2],
-                picked=_proposed_picks(proposal),
-                set_aside=None, procedure=None, **fresh)
+            self.session.adopt(spec.with_seed())  # a new analysis draws its seed
             self.session.store("table", table)
         finally:
             self._quiet = False
-            self._seen = self.session.choices
+            self._seen = self.session.spec
         self._say_which_settings(before, path.name, keep)
         for panel in (self.choice_panel, self.findings_panel):
             scroll = getattr(panel, "scroll", None)
@@ -534,21 +643,25 @@ class MainWindow(QMainWindow):
         self._groups_soon.start()
         self._load_late_soon()
 
-    def _say_which_settings(self, before: Choices, name: str, kept: bool) -> None:
+    def _say_which_settings(self, before: AnalysisSpec, name: str, kept: bool) -> None:
         """Say in the message bar which settings the new file is compared with, when the last
         file's differed from the usual ones (otherwise there is nothing to choose between)."""
-        usual = Choices()
-        if before.path is None or not _changed(before, usual, CARRIED_FIELDS):
+        usual = AnalysisSpec()
+        if before.source is None or not _changed(before, usual, CARRIED_FIELDS):
             return
         if kept:
-            self.message_bar.show_message("settings_kept", name=name, settings=settings_words(self.session.choices))
+            self.message_bar.show_message("settings_kept", name=name, settings=settings_words(self.session.spec))
         else:
             self.message_bar.show_message("settings_fresh", name=name, settings=settings_words(usual),
                                           before=settings_words(before))
 
     def _on_load_failed(self, message: str, expected: bool) -> None:
         self._load_late_soon()
-        if expected:  # the engine's sentence names the file as a rule: say it once
+        if self._reopening:
+            named = visible(self._opening) in message  # the engine's sentence names the file: say it once
+            self.message_bar.show_message("reopen_refused" if expected else "reopen_crashed",
+                                          name="the file" if named else self._opening, reason=message)
+        elif expected:  # the engine's sentence names the file as a rule: say it once
             self.message_bar.show_message("open_failed", reason=message,
                                           name="the file" if visible(self._opening) in message else self._opening)
         else:
@@ -558,9 +671,9 @@ class MainWindow(QMainWindow):
     def _on_session(self, name: str, value: Any) -> None:
         if name == "problem":
             self._show_problem(value)
-        if name in ("choices", "analysis", "table") and self.message_bar.key == "copied":
+        if name in ("spec", "analysis", "table") and self.message_bar.key == "copied":
             self.message_bar.clear()  # what was copied no longer matches what is shown
-        if name != "choices" or self._quiet:
+        if name != "spec" or self._quiet:
             return
         old, self._seen = self._seen, value
         if _changed(old, value, GROUP_FIELDS):
@@ -577,45 +690,42 @@ class MainWindow(QMainWindow):
         elif not (bar.key in PROBLEM_KEYS and problem in bar.text):
             bar.show_message("groups_problem", reason=problem)
 
-    def _group_request(self) -> tuple[Any, str | None] | str:
-        """The ``values`` and ``group`` arguments of ``make_groups``, or why there are none yet."""
-        choices = self.session.choices
-        columns = tuple(choices.value_columns)
-        if choices.layout == "wide":
+    def _missing_columns(self) -> str | None:
+        """What the spec still lacks before the groups can be formed, in a sentence; None if nothing."""
+        spec = self.session.spec
+        columns = spec.value_columns
+        if spec.layout == "wide":
             if len(columns) != 2 or columns[0] == columns[1]:
                 return "Choose two different columns, one for each group."
-            return columns, None
+            return None
         if not columns:
             return "Choose the column of measurements."
-        if not choices.group_column:
+        if not spec.group_column:
             return "Choose the column that names the groups."
-        if choices.group_column == columns[0]:
+        if spec.group_column == columns[0]:
             return "The groups and the measurements must be in different columns."
-        return columns[0], choices.group_column
+        return None
 
     def form_groups(self) -> None:
-        """Form the two groups from the current choices, in a worker."""
+        """Form the two groups the session's spec describes, in a worker."""
         table = self.session.table
         if table is None:
             return
         self.analysis_worker.cancel()
         self._analysis_soon.stop()
         self._groups_soon.stop()
-        request = self._group_request()
-        if isinstance(request, str):
+        missing = self._missing_columns()
+        if missing is not None:
             self.groups_worker.cancel()
-            self._no_groups(request)
+            self._no_groups(missing)
             return
-        values, group = request
-        choices = self.session.choices
-        pick = choices.picked if choices.layout == "long" else None
-        set_aside = dict(choices.set_aside) if choices.set_aside else None
+        spec = self.session.spec
         self.busy_label.setText("Forming the groups…")
 
         def form(progress: Any, cancelled: Any) -> Any:
-            from engine import io
+            from engine import pipeline
 
-            return io.make_groups(table, values=values, group=group, pick=pick, set_aside=set_aside)
+            return pipeline.form_groups(table, spec)
 
         self.groups_worker.run(form)
 
@@ -627,6 +737,9 @@ class MainWindow(QMainWindow):
     def _on_groups(self, intake: Any) -> None:
         if self.message_bar.key == "analysis_stopped":
             self.message_bar.clear()
+        spec = self.session.spec
+        if spec.layout == "long" and spec.groups is None:  # the spec records the two groups formed
+            self._quietly(groups=tuple(intake.groups.labels))
         self.session.store("problem", None)
         self.session.store("intake", intake)
         self._analysis_soon.start()
@@ -642,9 +755,9 @@ class MainWindow(QMainWindow):
         intake = self.session.intake
         if intake is None:
             return
-        from engine.session import spec_of
-
-        spec = spec_of(self.session.choices, self.session.table)
+        if self.session.spec.seed is None:
+            self._quietly(seed=self.session.spec.with_seed().seed)
+        spec = self.session.spec
         self.busy_label.setText("Comparing…")
         self.progress.setValue(0)
 
@@ -654,6 +767,15 @@ class MainWindow(QMainWindow):
             return pipeline.run(intake, spec, progress=progress, cancelled=cancelled)
 
         self.analysis_worker.run(compare)
+
+    def _quietly(self, **changes: Any) -> None:
+        """Complete the spec with what the engine found, without forming or running anything again."""
+        self._quiet = True
+        try:
+            self.session.choose(**changes)
+        finally:
+            self._quiet = False
+            self._seen = self.session.spec
 
     def _on_analysis(self, analysis: Any) -> None:
         if self.message_bar.key == "analysis_stopped":
@@ -723,17 +845,19 @@ class MainWindow(QMainWindow):
             self.message_bar.show_message("copied", what="the plot of the intervals")
 
     def _save(self, path: str | Path | None, title: str, name_filter: str, suffix: str,
-              write: Callable[[Path], Any]) -> bool:
+              write: Callable[[Path], Any], *, own_suffix: bool = False) -> bool:
         if path is None:
             from .export import save_start
 
-            start = save_start(self.settings, self.session.choices.path, suffix)
+            start = save_start(self.settings, self.session.path, suffix)
             chosen, _ = QFileDialog.getSaveFileName(self, title, str(start), name_filter)
             if not chosen:
                 return False
             path = chosen
         path = Path(path)
-        data_file = self.session.choices.path
+        if own_suffix and path.suffix.lower() != suffix:  # a file of this kind is known by its suffix
+            path = path.with_name(path.name + suffix)
+        data_file = self.session.path
         if data_file is not None and path.resolve() == data_file.resolve():
             self.message_bar.show_message("save_failed", name=path.name, reason="that is your data file")
             return False

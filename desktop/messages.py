@@ -53,6 +53,32 @@ _DECLARED = (
     Message("analysis_crashed", "error",
             "Something unexpected stopped the comparison ({reason}). Change a setting or press Redo."),
     Message("analysis_stopped", "info", "The comparison was stopped. Press Redo to run it again."),
+    # reopening a saved analysis: what the check found, said plainly (never taken silently)
+    Message("reopen_same", "info",
+            "{name} reopened: its data file {source} has the checksum it was saved with, and every number "
+            "came out exactly as saved."),
+    Message("reopen_close", "info",
+            "{name} reopened: its data file {source} has the checksum it was saved with, and every number "
+            "agrees with the saved one to 12 significant digits (the last digits can differ a little on "
+            "another computer)."),
+    Message("reopen_numbers_differ", "warning",
+            "{name} reopened from the unchanged data file {source}, but some numbers came out differently "
+            "from the saved ones: {differences}. The findings shown are the new ones; the saved file was "
+            "not changed."),
+    Message("reopen_source_changed", "warning",
+            "{name} reopened, but its data file {source} has changed since the analysis was saved (its "
+            "checksum differs). The findings shown come from the file as it is now; numbers that differ "
+            "from the saved ones: {differences}."),
+    Message("reopen_source_changed_alike", "warning",
+            "{name} reopened, but its data file {source} has changed since the analysis was saved (its "
+            "checksum differs). The findings shown come from the file as it is now, although its numbers "
+            "came out as saved."),
+    Message("reopen_source_missing", "warning",
+            "{name} was saved from the data file {source}, which is not there any more. Find the file to "
+            "check the saved numbers; what is on show stays as it was."),
+    Message("reopen_refused", "error", "Could not reopen {name}: {reason} What is on show stays as it was."),
+    Message("reopen_crashed", "error",
+            "Something unexpected stopped the reopening of {name} ({reason}). What is on show stays as it was."),
     # copy and export
     Message("nothing_yet", "info", "There is nothing to copy or save yet: open a file and set up the comparison."),
     Message("copied", "info", "Copied {what} to the clipboard."),

@@ -26,22 +26,23 @@ def prepared_session(path: Path) -> Any:
     from engine.spec import AnalysisSpec
 
     session = Session()
-    spec = AnalysisSpec(seed=session.choices.seed, source=pipeline.source_for(path))
+    spec = AnalysisSpec(source=pipeline.source_for(path))
     table = pipeline.read(spec)
     session.store("table", table)
     try:
         spec = pipeline.complete(table, spec).with_seed()
-        session.choose(path=Path(path), layout=spec.layout, group_column=spec.group_column,
-                       value_columns=spec.value_columns)
+        session.adopt(spec)
         intake = pipeline.form_groups(table, spec)
     except TwofoldError as problem:
         session.store("problem", str(problem))
         return session
     if spec.layout == "long":
         spec = spec.replace(groups=tuple(intake.groups.labels))
+        session.adopt(spec)
     session.store("intake", intake)
     session.store("analysis", pipeline.run(intake, spec))
     return session
+
 
 def show_alone(panel_class: type, argv: Sequence[str]) -> int:  # pragma: no cover - a look by hand
     """Show one panel over the file ``argv[1]`` (default: :data:`DEFAULT_FILE`) until it is closed."""

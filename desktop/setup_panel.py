@@ -1,9 +1,11 @@
 """The "Set up the comparison" panel: which columns hold what, which two groups, which question.
 
-The panel shows the session's choices and writes the user's edits back with
-``session.choose``. It is filled from the choices the window made from the engine's proposal
-when a file was opened, so most users only check it. While the panel itself refreshes its
-widgets from the session it writes nothing back (no update loops).
+The panel shows the session's analysis spec and writes the user's edits back with
+``session.choose`` (and ``session.ask`` for the question). It is filled from the spec the window
+completed from the engine's proposal when a file was opened, so most users only check it. The
+spec checks every value: the widgets take their ranges from its constants, and a value it
+refuses shows its sentence under the form. While the panel itself refreshes its widgets from the
+session it writes nothing back (no update loops).
 
 Run on its own for a quick look: ``python -m desktop.setup_panel demo_files/bolt_strength.csv``.
 """
@@ -22,6 +24,7 @@ from PySide6.QtWidgets import (
     QGroupBox,
     QHBoxLayout,
     QLabel,
+    QLineEdit,
     QPushButton,
     QRadioButton,
     QSpinBox,
@@ -29,8 +32,11 @@ from PySide6.QtWidgets import (
     QWidget,
 )
 
+from engine.errors import OptionProblem
 from engine.io.layout import trimmed_levels
-from engine.report import QUESTIONS  # the question in the user's words, for each alternative
+from engine.question import LEVEL_RANGE
+from engine.report import QUESTIONS  # the question in the user's words, for each kind
+from engine.spec import RESAMPLES_RANGE, draw_seed
 from engine.text import visible
 
 from .plain_text import plain_label
@@ -38,6 +44,8 @@ from .plain_text import plain_label
 __all__ = ["SetupPanel", "QUESTIONS", "group_levels", "MAX_LEVELS"]
 
 MAX_LEVELS = 500  # a column with more distinct entries than this is not a list of groups
+
+LEVEL_DECIMALS = 1  # the confidence level is typed in percent with one decimal
 
 
 def group_levels(table: Any, column: str | None) -> list[str]:
@@ -94,18 +102,27 @@ class SetupPanel(QWidget):
         self.question = QComboBox(self)
         self.question.setToolTip("What you want to know: any difference, or a difference in one direction only.")
         self.confidence = QDoubleSpinBox(self)
-        self.confidence.setRange(50.0, 99.9)
-        self.confidence.setDecimals(1)
+        low, high = LEVEL_RANGE  # the spec's range: at least low, below high
+        self.confidence.setDecimals(LEVEL_DECIMALS)
+        self.confidence.setRange(low * 100, high * 100 - 10.0 ** -LEVEL_DECIMALS)
         self.confidence.setSingleStep(0.5)
         self.confidence.setSuffix(" %")
         self.confidence.setKeyboardTracking(False)
         self.confidence.setToolTip("How sure the intervals should be: 95 % is usual, 99 % gives wider intervals.")
         self.resamples = QSpinBox(self)
-        self.resamples.setRange(1_000, 1_000_000)
+        self.resamples.setRange(*RESAMPLES_RANGE)
         self.resamples.setSingleStep(1_000)
         self.resamples.setGroupSeparatorShown(True)
         self.resamples.setKeyboardTracking(False)
         self.resamples.setToolTip("How many reshuffles the resampling procedures use: more is steadier but slower.")
+        self.seed = QLineEdit(self)
+        self.seed.setToolTip("The starting number of the random reshuffles: the same seed gives the same "
+                             "numbers again. Type one to repeat an earlier run.")
+        self.new_seed_button = QPushButton("New seed", self)
+        self.new_seed_button.setToolTip("Draw another seed at random (the resampled numbers change a little).")
+        self.refused = plain_label(parent=self)  # the spec's sentence for a value it refuses
+        self.refused.setWordWrap(True)
+        self.refused.hide()
         self.hint = plain_label(parent=self)  # it names a column of the file
         self.hint.setWordWrap(True)
 
@@ -132,10 +149,17 @@ class SetupPanel(QWidget):
         form.addRow("Question:", self.question)
         form.addRow("Confidence level:", self.confidence)
         form.addRow("Resampling rounds:", self.resamples)
+        seed_row = QHBoxLayout()
+        seed_row.addWidget(self.seed, 1)
+        seed_row.addWidget(self.new_seed_button)
+        self.seed_label = QLabel("Seed:", self)
+        self.seed_label.setBuddy(self.seed)
+        form.addRow(self.seed_label, seed_row)
         inner = QVBoxLayout(self.box)
         inner.addWidget(self.long_radio)
         inner.addWidget(self.wide_radio)
         inner.addLayout(form)
+        inner.addWidget(self.refused)
         inner.addWidget(self.hint)
         outer = QVBoxLayout(self)
         outer.setContentsMargins(0, 0, 0, 0)
@@ -143,7 +167,7 @@ class SetupPanel(QWidget):
 
         order = [self.long_radio, self.wide_radio, self.group_column, self.value_column, self.first_column,
                  self.second_column, self.first_group, self.swap_button, self.second_group, self.question,
-                 self.confidence, self.resamples]
+                 self.confidence, self.resamples, self.seed, self.new_seed_button]
         for before, after in zip(order, order[1:]):
             self.setTabOrder(before, after)
 
@@ -158,27 +182,29 @@ class SetupPanel(QWidget):
         self.question.activated.connect(self._question_edited)
         self.confidence.valueChanged.connect(self._confidence_edited)
         self.resamples.valueChanged.connect(self._resamples_edited)
+        self.seed.editingFinished.connect(self._seed_edited)
+        self.new_seed_button.clicked.connect(self.new_seed)
         session.subscribe(self._on_session)
         self.refresh()
 
     # -- from the session ----------------------------------------------------------------------
     def _on_session(self, name: str, value: Any) -> None:
-        if name in ("choices", "table", "intake", "problem") and not self._refreshing:
+        if name in ("spec", "table", "intake", "problem") and not self._refreshing:
             self.refresh()
 
     def _labels(self) -> tuple[str, str]:
-        choices = self._session.choices
-        if choices.layout == "wide" and len(choices.value_columns) == 2:
-            return choices.value_columns[0], choices.value_columns[1]
-        if choices.picked:
-            return choices.picked
+        spec = self._session.spec
+        if spec.layout == "wide" and len(spec.value_columns) == 2:
+            return spec.value_columns[0], spec.value_columns[1]
+        if spec.groups:
+            return spec.groups
         intake = self._session.intake
         if intake is not None:
             return intake.groups.labels
         return "group 1", "group 2"
 
     def refresh(self) -> None:
-        """Show the session's current choices (writes nothing back)."""
+        """Show the session's current spec (writes nothing back)."""
         self._refreshing = True
         try:
             self._refresh()
@@ -186,23 +212,23 @@ class SetupPanel(QWidget):
             self._refreshing = False
 
     def _refresh(self) -> None:
-        session, choices = self._session, self._session.choices
+        session, spec = self._session, self._session.spec
         table = session.table
         columns = [str(c) for c in table.frame.columns] if table is not None else []
-        wide = choices.layout == "wide"
+        wide = spec.layout == "wide"
         self.box.setEnabled(table is not None)
         with QSignalBlocker(self.long_radio), QSignalBlocker(self.wide_radio):
             self.long_radio.setChecked(not wide)
             self.wide_radio.setChecked(wide)
-        values = list(choices.value_columns)
-        _fill(self.group_column, columns, choices.group_column, blank="(choose a column)")
+        values = list(spec.value_columns)
+        _fill(self.group_column, columns, spec.group_column, blank="(choose a column)")
         _fill(self.value_column, columns, values[0] if values and not wide else None, blank="(choose a column)")
         _fill(self.first_column, columns, values[0] if wide and values else None, blank="(choose a column)")
         _fill(self.second_column, columns, values[1] if wide and len(values) > 1 else None,
               blank="(choose a column)")
-        levels = group_levels(table, choices.group_column) if not wide else []
-        if choices.picked:
-            picked = choices.picked
+        levels = group_levels(table, spec.group_column) if not wide else []
+        if spec.groups:
+            picked = spec.groups
         elif session.intake is not None and not wide:
             picked = session.intake.groups.labels
         else:
@@ -214,48 +240,59 @@ class SetupPanel(QWidget):
             widget.setVisible(not wide)
         for widget in (self.first_column_label, self.first_column, self.second_column_label, self.second_column):
             widget.setVisible(wide)
-        self.swap_button.setEnabled(not wide and bool(choices.picked) or wide and len(values) == 2)
+        self.swap_button.setEnabled(not wide and bool(spec.groups) or wide and len(values) == 2)
         first, second = self._labels()
         with QSignalBlocker(self.question):
             self.question.clear()
             for key, words in QUESTIONS:
                 self.question.addItem(words.format(a=visible(first), b=visible(second)), key)
-            self.question.setCurrentIndex(max(0, self.question.findData(choices.alternative)))
+            self.question.setCurrentIndex(max(0, self.question.findData(spec.question.kind)))
         with QSignalBlocker(self.confidence):
-            self.confidence.setValue(round(choices.confidence_level * 100, 1))
+            self.confidence.setValue(round(spec.level * 100, LEVEL_DECIMALS))
         with QSignalBlocker(self.resamples):
-            self.resamples.setValue(int(choices.n_resamples))
-        if not wide and choices.group_column and len(levels) > 2 and not choices.picked:
-            self.hint.setText(f"{visible(choices.group_column)} holds {len(levels)} groups: choose the two to compare.")
-        elif not wide and choices.group_column and len(levels) < 2 and table is not None:
-            self.hint.setText(f"{visible(choices.group_column)} holds fewer than two groups: choose another column.")
+            self.resamples.setValue(int(spec.resamples))
+        if not (self.seed.hasFocus() and self.seed.isModified()):  # never under the user's typing
+            self.seed.setText("" if spec.seed is None else str(spec.seed))
+        if not wide and spec.group_column and len(levels) > 2 and not spec.groups:
+            self.hint.setText(f"{visible(spec.group_column)} holds {len(levels)} groups: choose the two to compare.")
+        elif not wide and spec.group_column and len(levels) < 2 and table is not None:
+            self.hint.setText(f"{visible(spec.group_column)} holds fewer than two groups: choose another column.")
         else:
             self.hint.setText("")
         self.hint.setVisible(bool(self.hint.text()))
 
     # -- to the session ------------------------------------------------------------------------
     def _choose(self, **changes: Any) -> None:
+        self._write(self._session.choose, changes)
+
+    def _write(self, write: Any, changes: dict[str, Any]) -> None:
+        """Write ``changes`` with ``write``; a value the spec refuses shows its sentence."""
         if self._refreshing:
             return
         self._refreshing = True
         try:
-            self._session.choose(**changes)
+            write(**changes)
+        except OptionProblem as problem:
+            self.refused.setText(problem.message)
+        else:
+            self.refused.setText("")
         finally:
             self._refreshing = False
+        self.refused.setVisible(bool(self.refused.text()))
         self.refresh()
 
     def _layout_edited(self, long_checked: bool) -> None:
         if self._refreshing:
             return
-        choices = self._session.choices
+        spec = self._session.spec
         if long_checked:
-            self._choose(layout="long", value_columns=tuple(choices.value_columns[:1]), picked=None)
+            self._choose(layout="long", value_columns=tuple(spec.value_columns[:1]), groups=None)
         else:
             numbers = self._number_columns()
-            values = tuple(choices.value_columns[:2])
+            values = tuple(spec.value_columns[:2])
             if len(values) < 2:
                 values = tuple(numbers[:2])
-            self._choose(layout="wide", value_columns=values, group_column=None, picked=None)
+            self._choose(layout="wide", value_columns=values, group_column=None, groups=None)
 
     def _number_columns(self) -> list[str]:
         table = self._session.table
@@ -269,10 +306,10 @@ class SetupPanel(QWidget):
         levels = group_levels(self._session.table, column)
         picked = (levels[0], levels[1]) if len(levels) == 2 else None
         self._partial = (None, None)
-        self._choose(group_column=column, picked=picked)
+        self._choose(group_column=column, groups=picked)
 
     def _values_edited(self, _: int) -> None:
-        if self._session.choices.layout == "wide":
+        if self._session.spec.layout == "wide":
             chosen = (self.first_column.currentData(), self.second_column.currentData())
             self._choose(value_columns=tuple(c for c in chosen if c))
         else:
@@ -281,7 +318,7 @@ class SetupPanel(QWidget):
 
     def _groups_edited(self, *, first_moved: bool) -> None:
         first, second = self.first_group.currentData(), self.second_group.currentData()
-        old = self._session.choices.picked or (None, None)
+        old = self._session.spec.groups or (None, None)
         if first is not None and first == second:
             # picking the other group's label exchanges the two
             if first_moved:
@@ -290,27 +327,41 @@ class SetupPanel(QWidget):
                 first = old[1]
         if first and second and first != second:
             self._partial = (None, None)
-            self._choose(picked=(first, second))
+            self._choose(groups=(first, second))
         else:
             self._partial = (first, second)
             self.refresh()
 
     def swap(self) -> None:
         """Exchange group 1 and group 2."""
-        choices = self._session.choices
-        if choices.layout == "wide" and len(choices.value_columns) == 2:
-            self._choose(value_columns=(choices.value_columns[1], choices.value_columns[0]))
-        elif choices.picked:
-            self._choose(picked=(choices.picked[1], choices.picked[0]))
+        spec = self._session.spec
+        if spec.layout == "wide" and len(spec.value_columns) == 2:
+            self._choose(value_columns=(spec.value_columns[1], spec.value_columns[0]))
+        elif spec.groups:
+            self._choose(groups=(spec.groups[1], spec.groups[0]))
 
     def _question_edited(self, _: int) -> None:
-        self._choose(alternative=self.question.currentData())
+        self._write(self._session.ask, {"kind": self.question.currentData()})
 
     def _confidence_edited(self, value: float) -> None:
-        self._choose(confidence_level=round(value / 100.0, 4))
+        self._write(self._session.ask, {"level": round(value / 100.0, LEVEL_DECIMALS + 2)})
 
     def _resamples_edited(self, value: int) -> None:
-        self._choose(n_resamples=int(value))
+        self._choose(resamples=int(value))
+
+    def _seed_edited(self) -> None:
+        text = self.seed.text().strip()
+        if text == ("" if self._session.spec.seed is None else str(self._session.spec.seed)):
+            return
+        try:
+            seed: Any = int(text)
+        except ValueError:
+            seed = text  # not a whole number: the spec says so in its own words
+        self._choose(seed=seed)
+
+    def new_seed(self) -> None:
+        """Draw another seed at random."""
+        self._choose(seed=draw_seed())
 
     def cleanup(self) -> None:
         """Stop listening to the session."""

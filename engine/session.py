@@ -1,77 +1,43 @@
 """The analysis as a plain-Python object that a window can watch.
 
-A :class:`Session` holds what the user chose (file, sheet, columns, groups, options, values set
-aside, the procedure picked) and what the engine produced for those choices (the table, the two
-groups with their screening report, the finished analysis). It computes nothing itself: the window
-runs the slow steps off its GUI thread and stores their results here. Every change of a field is
-announced to the subscribers as ``callback(field_name, new_value)``.
+A :class:`Session` holds what the user decided, as one :class:`engine.spec.AnalysisSpec` (the
+data file and sheet are its source, the procedure picked is its ``procedure``), and what the
+engine produced for it (the table, the two groups with their screening report, the finished
+analysis). It computes nothing itself: the window runs the steps of ``engine.pipeline`` off its
+GUI thread and stores their results here. Every change is announced to the subscribers as
+``callback(name, new_value)``: ``"spec"`` for a new spec, else the name of the output.
 """
 
 from __future__ import annotations
 
-from dataclasses import dataclass, fields, replace
+from dataclasses import fields, replace
 from pathlib import Path
-from typing import TYPE_CHECKING, Any, Callable, Mapping
+from typing import Any, Callable
 
-if TYPE_CHECKING:
-    from .spec import AnalysisSpec
+from .spec import AnalysisSpec
 
-__all__ = ["Choices", "Session", "spec_of"]
+__all__ = ["Session"]
 
 Listener = Callable[[str, Any], None]
 
 
-@dataclass(frozen=True)
-class Choices:
-    """Everything the user decides; each field maps one-to-one to an engine keyword."""
-
-    path: Path | None = None
-    sheet: str | None = None
-    layout: str = "long"  # "long": a group column and a value column; "wide": a column per group
-    group_column: str | None = None
-    value_columns: tuple[str, ...] = ()
-    picked: tuple[str, str] | None = None  # the two group labels, group 1 first
-    set_aside: Mapping[tuple[int, str], str] | None = None  # (frame row, column) -> reason
-    alternative: str = "two-sided"
-    confidence_level: float = 0.95
-    n_resamples: int = 10_000
-    seed: int | None = 20261202
-    known_sd: tuple[float, float] | None = None
-    equal_spread_known: bool = False
-    ordinal: bool = False
-    procedure: str | None = None  # None: follow the recommendation
-
-
-def spec_of(choices: Choices, table: Any = None) -> "AnalysisSpec":
-    """The analysis spec these choices describe (cells set aside are recorded by file row when
-    the table they were set aside in is given)."""
-    from .pipeline import set_aside_cells
-    from .question import Question
-    from .spec import AnalysisSpec, Source, Statements
-
-    return AnalysisSpec(
-        source=None if choices.path is None else Source(str(choices.path), choices.sheet),
-        layout=choices.layout, group_column=choices.group_column,
-        value_columns=tuple(choices.value_columns), groups=choices.picked,
-        set_aside=set_aside_cells(table, choices.set_aside) if table is not None and choices.set_aside else (),
-        question=Question.from_alternative(choices.alternative, choices.confidence_level),
-        resamples=choices.n_resamples, seed=choices.seed,
-        statements=Statements(choices.known_sd, choices.equal_spread_known, choices.ordinal),
-        procedure=choices.procedure)
-
-
 class Session:
-    """Current choices plus the engine's outputs, with change notification."""
+    """The current spec plus the engine's outputs, with change notification."""
 
     _OUTPUTS = ("table", "intake", "analysis", "problem")
 
-    def __init__(self) -> None:
+    def __init__(self, spec: AnalysisSpec | None = None) -> None:
         self._listeners: list[Listener] = []
-        self.choices = Choices()
+        self.spec = spec if spec is not None else AnalysisSpec()
         self.table = None      # engine.io.Table
         self.intake = None     # engine.io.Intake: groups and screening report
         self.analysis = None   # engine.analysis.Analysis
         self.problem: str | None = None  # the last error message a user must see
+
+    @property
+    def path(self) -> Path | None:
+        """The data file of the spec, or None before one is opened."""
+        return None if self.spec.source is None else Path(self.spec.source.path)
 
     # -- listening -----------------------------------------------------------------------------
     def subscribe(self, listener: Listener) -> None:
@@ -87,15 +53,33 @@ class Session:
 
     # -- writing -------------------------------------------------------------------------------
     def choose(self, **changes: Any) -> None:
-        """Change some choices; announces ``"choices"`` once if anything differed."""
-        known = {f.name for f in fields(Choices)}
+        """Change some fields of the spec; announces ``"spec"`` once if anything differed.
+
+        Each value is checked by the spec: one it refuses raises
+        :class:`engine.errors.OptionProblem` with the spec's sentence, and nothing changes.
+        """
+        known = {f.name for f in fields(AnalysisSpec)}
         unknown = set(changes) - known
         if unknown:
-            raise TypeError(f"unknown choice(s): {', '.join(sorted(unknown))}")
-        new = replace(self.choices, **changes)
-        if new != self.choices:
-            self.choices = new
-            self._emit("choices", new)
+            raise TypeError(f"unknown field(s) of the spec: {', '.join(sorted(unknown))}")
+        self.adopt(self.spec.replace(**changes))
+
+    def ask(self, **changes: Any) -> None:
+        """Change the question (``kind``, ``level``), checked as :meth:`choose` checks."""
+        self.choose(question=replace(self.spec.question, **changes))
+
+    def state(self, **changes: Any) -> None:
+        """Change what the user states beyond the data (``known_sd``, ``equal_spread_known``,
+        ``ordinal``), checked as :meth:`choose` checks."""
+        self.choose(statements=replace(self.spec.statements, **changes))
+
+    def adopt(self, spec: AnalysisSpec) -> None:
+        """Take ``spec`` whole (a new file's, a reopened analysis's); announces ``"spec"`` if it differs."""
+        if not isinstance(spec, AnalysisSpec):
+            raise TypeError("a session holds an AnalysisSpec")
+        if spec != self.spec:
+            self.spec = spec
+            self._emit("spec", spec)
 
     def store(self, name: str, value: Any) -> None:
         """Store an engine output (``table``, ``intake``, ``analysis`` or ``problem``)."""

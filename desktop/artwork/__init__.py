@@ -11,7 +11,7 @@ from importlib.resources.abc import Traversable
 
 __all__ = ["NAMES", "svg_file"]
 
-NAMES = ("app", "open", "copy", "export", "cancel")
+NAMES = ("app", "open", "copy", "export", "cancel", "save")
 
 
 def svg_file(name: str) -> Traversable:

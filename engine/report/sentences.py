@@ -6,6 +6,7 @@ whether the procedures agree.
 from __future__ import annotations
 
 from ..io.screening import EXCLUSION_WORDS
+from ..question import Question
 from ..rounding import p_clause
 from ..procedures.registry import find as _record
 from ..side_by_side import PROBABILITY_KEYS, agreement_text
@@ -19,19 +20,17 @@ STATISTIC_ROW = "Test statistic"
 DF_ROW = "Degrees of freedom"
 MC_SE_ROW = "Monte Carlo standard error of p"
 
-# The question in the user's words for each alternative: {a} is group 1, {b} group 2.
+# The question in the user's words for each kind of engine.question.Question: {a} is group 1, {b} group 2.
 QUESTIONS: tuple[tuple[str, str], ...] = (
-    ("two-sided", "Do {a} and {b} differ?"),
-    ("less", "Is {a} lower than {b}?"),
-    ("greater", "Is {a} higher than {b}?"),
+    ("differ", "Do {a} and {b} differ?"),
+    ("lower", "Is {a} lower than {b}?"),
+    ("higher", "Is {a} higher than {b}?"),
 )
 
 
 def question_text(alternative: str, labels: tuple[str, str]) -> str:
     """The question asked of the two groups, in words: "Do wax and resin differ?"."""
-    words = dict(QUESTIONS).get(alternative)
-    if words is None:
-        raise ValueError(f"unknown alternative {alternative!r}")
+    words = dict(QUESTIONS)[Question.from_alternative(alternative).kind]
     return words.format(a=labels[0], b=labels[1])
 
 

@@ -56,12 +56,12 @@ def main() -> int:
             for batch, centre in (("old", 20.0), ("new", 21.0)):
                 out.writelines(f"{batch},{v:.3f}\n" for v in rng.gamma(4.0, centre / 4.0, args.n))
         window = start([], settings=QSettings(str(Path(folder) / "s.ini"), QSettings.Format.IniFormat))
-        window.session.choose(n_resamples=args.resamples)
+        window.session.choose(resamples=args.resamples)
         window.load_late_panels()
         loop = QEventLoop()
         QTimer.singleShot(3000, loop.quit)  # let the late panels and icons arrive first
         loop.exec()
-        window.session.choose(n_resamples=1_000)
+        window.session.choose(resamples=1_000)
         window.open_file(path)  # a first, short run loads the statistics modules
         while window.session.analysis is None:
             loop.processEvents()
@@ -87,7 +87,7 @@ def main() -> int:
         probe.start()
         last[0] = clock.nsecsElapsed()
         started = time.perf_counter()
-        window.session.choose(n_resamples=args.resamples)  # the measured run, from the user's change
+        window.session.choose(resamples=args.resamples)  # the measured run, from the user's change
         loop.exec()
         in_window = time.perf_counter() - started
         window.analysis_worker.finished.disconnect(loop.quit)

@@ -167,7 +167,7 @@ def big_file(rows: int = 1_000_000) -> None:
 
         window = start([], settings=QSettings(str(Path(folder) / "s.ini"), QSettings.Format.IniFormat))
         app = QApplication.instance()
-        window.session.choose(n_resamples=1_000)
+        window.session.choose(resamples=1_000)
         grid = window.data_panel.grid
         painted: list[float] = []
         loop = QEventLoop()

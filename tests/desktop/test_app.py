@@ -50,7 +50,7 @@ def test_start_opens_the_file_of_the_command_line(make_window, qtbot, two_groups
     window = make_window([two_groups_csv])
     assert window.isVisible()
     qtbot.waitUntil(lambda: window.session.table is not None, timeout=20_000)
-    assert window.session.choices.path == two_groups_csv
+    assert window.session.path == two_groups_csv
     assert window.windowTitle().startswith("plots.csv")
 
 

@@ -12,7 +12,7 @@ from PySide6.QtWidgets import QApplication, QLabel  # noqa: E402
 from scipy import stats  # noqa: E402
 
 from engine import report  # noqa: E402
-from engine.spec import AnalysisSpec
+from engine.spec import AnalysisSpec, Statements
 from engine.question import Question
 from engine.analysis import analyze  # noqa: E402
 from engine.results import Groups  # noqa: E402
@@ -128,16 +128,16 @@ def test_picking_writes_the_choice_and_says_what_it_assumes(panel):
     session = panel.session
     index = panel.picker.findData("pooled_t")
     panel.picker.setCurrentIndex(index)
-    assert session.choices.procedure == "pooled_t"
+    assert session.spec.procedure == "pooled_t"
     assert session.analysis.recommendation.assumptions["pooled_t"] in panel.assumes.text()
     panel.picker.setCurrentIndex(0)
-    assert session.choices.procedure is None
+    assert session.spec.procedure is None
 
 
 def test_a_change_from_elsewhere_is_shown_without_writing_back(panel, groups, monkeypatch):
     session = panel.session
     original = session.choose
-    session.choose(procedure="mann_whitney", ordinal=True, equal_spread_known=True)
+    session.choose(procedure="mann_whitney", statements=Statements(equal_spread_known=True, ordinal=True))
     calls = []
     monkeypatch.setattr(session, "choose", lambda **changes: calls.append(changes) or original(**changes))
     session.store("analysis", None)
@@ -152,7 +152,7 @@ def test_plots_are_drawn_again_only_for_a_new_analysis(panel, groups, monkeypatc
     drawn = []
     for plot in [panel.box_plot, *(p for pair in panel.shape_plots for p in pair)]:
         monkeypatch.setattr(plot, "redraw", lambda plot=plot: drawn.append(plot))
-    session.choose(n_resamples=900, confidence_level=0.9, procedure="mann_whitney")
+    session.choose(resamples=900, question=Question("differ", 0.9), procedure="mann_whitney")
     assert drawn == []  # the analysis on show is the same object: only the pick's text follows
     assert panel.picker.currentData() == "mann_whitney"
     assert session.analysis.procedures["mann_whitney"].name in panel.assumes.text()
@@ -160,24 +160,24 @@ def test_plots_are_drawn_again_only_for_a_new_analysis(panel, groups, monkeypatc
     assert len(drawn) == 5 and len(set(map(id, drawn))) == 5  # each plot once
 
 
-def test_what_the_user_knows_goes_into_the_choices(panel):
+def test_what_the_user_knows_goes_into_the_spec(panel):
     session = panel.session
     panel.equal_spread.setChecked(True)
-    assert session.choices.equal_spread_known
+    assert session.spec.statements.equal_spread_known
     panel.ordinal.setChecked(True)
-    assert session.choices.ordinal
+    assert session.spec.statements.ordinal
     panel.advanced_button.setChecked(True)
     assert not panel.sd_box.isHidden()
     panel.sd_edits[0].setText("1.5")
     panel.sd_edits[1].setText("nonsense")
     panel.sd_box.setChecked(True)
-    assert session.choices.known_sd is None
+    assert session.spec.statements.known_sd is None
     assert "positive number" in panel.sd_message.text()
     panel.sd_edits[1].setText("2.25")
     panel.sd_apply.click()
-    assert session.choices.known_sd == (1.5, 2.25)
+    assert session.spec.statements.known_sd == (1.5, 2.25)
     panel.sd_box.setChecked(False)
-    assert session.choices.known_sd is None
+    assert session.spec.statements.known_sd is None
 
 
 def test_check_figures_read_in_words_with_plain_hover_help(panel):

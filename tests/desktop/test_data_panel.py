@@ -9,7 +9,9 @@ from PySide6.QtGui import QGuiApplication
 from desktop.data_panel import DataPanel, screening_html
 from desktop.table_model import MARK_EXCLUDED, MARK_SET_ASIDE
 from engine import io
+from engine.pipeline import set_aside_keys
 from engine.session import Session
+from engine.spec import SetAside, Source
 
 
 @pytest.fixture
@@ -19,7 +21,7 @@ def session(two_groups_csv, csv_file) -> Session:
     path = csv_file("fields.csv", rows, ("field", "yield_t"))
     session = Session()
     table = io.read_table(path)
-    session.choose(path=path, group_column="field", value_columns=("yield_t",))
+    session.choose(source=Source(str(path)), group_column="field", value_columns=("yield_t",))
     session.store("table", table)
     session.store("intake", io.make_groups(table, values="yield_t", group="field"))
     return session
@@ -35,9 +37,8 @@ def panel(qtbot, session):
 
 
 def refresh_intake(session):
-    choices = session.choices
-    session.store("intake", io.make_groups(session.table, values="yield_t", group="field",
-                                           set_aside=choices.set_aside))
+    cells = set_aside_keys(session.table, session.spec.set_aside) or None
+    session.store("intake", io.make_groups(session.table, values="yield_t", group="field", set_aside=cells))
 
 
 def test_grid_shows_the_file_and_marks_left_out_cells(panel, session):
@@ -64,14 +65,15 @@ def test_set_aside_and_bring_back(panel, session):
     panel.select_cell(8, "yield_t")
     assert panel.aside_button.isEnabled() and not panel.back_button.isEnabled()
     panel.set_aside_current()
-    assert session.choices.set_aside == {(8, "yield_t"): "written as 61.0 instead of 6.10"}
+    # the spec records the cell by the file's row (the header is row 1) and the cell's text
+    assert session.spec.set_aside == (SetAside(10, "yield_t", "61.0", "written as 61.0 instead of 6.10"),)
     refresh_intake(session)
     assert session.intake.screening.n_used == (3, 3)
     assert panel.model.mark(8, 1) == (MARK_SET_ASIDE, "written as 61.0 instead of 6.10")
     assert "written as 61.0 instead of 6.10" in panel.report.toPlainText()
     assert panel.back_button.isEnabled()
     panel._on_link(QUrl("bring-back:0"))  # the "bring back" link of the first listed value
-    assert session.choices.set_aside is None
+    assert session.spec.set_aside == ()
     refresh_intake(session)
     assert session.intake.screening.n_used == (3, 4)
     assert panel.model.mark(8, 1) is None
@@ -134,7 +136,7 @@ def test_a_million_rows_show_without_asking_for_hundreds_of_row_labels(qtbot, tm
     panel = DataPanel(session)
     qtbot.addWidget(panel)
     panel.show()
-    session.choose(path=path)
+    session.choose(source=Source(str(path)))
     session.store("table", io.read_table(path))
     panel.grab()  # paints the grid, its row numbers included
     # only the row numbers on screen are asked for (the stock header asks for about 1,600)

@@ -9,7 +9,7 @@ import pytest
 from PySide6.QtCore import Qt
 
 from desktop.data_panel import DataPanel, screening_html
-from engine import io
+from engine import io, pipeline
 from engine.io.screening import EXCLUSION_REASONS, EXCLUSION_WORDS
 from engine.session import Session
 
@@ -25,7 +25,8 @@ def session(csv_file) -> Session:
     aside = {(LEFT_OUT["set_aside"], "yield_t"): "written as 61.0 instead of 6.10"}
     table = io.read_table(path)
     session = Session()
-    session.choose(path=path, group_column="field", value_columns=("yield_t",), set_aside=aside)
+    session.choose(source=pipeline.source_for(path), group_column="field", value_columns=("yield_t",),
+                   set_aside=pipeline.set_aside_cells(table, aside))
     session.store("table", table)
     session.store("intake", io.make_groups(table, values="yield_t", group="field", set_aside=aside))
     return session
@@ -46,10 +47,8 @@ def test_the_screening_counts_each_reason_in_the_shared_words(session):
 
 def test_the_exported_report_gives_each_reason_in_the_shared_words(session):
     from engine.report import document
-    from engine.session import spec_of
-
     analysis = SimpleNamespace(screening=session.intake.screening,
-                               spec=spec_of(session.choices, session.table))
+                               spec=session.spec)
     why = dict((where.split(",")[0], why) for where, why in document.set_aside_rows(analysis))
     table = session.table
     for reason, row in LEFT_OUT.items():

@@ -15,12 +15,12 @@ from pathlib import Path  # noqa: E402
 import numpy as np  # noqa: E402
 import pytest  # noqa: E402
 
-from engine import io, report  # noqa: E402
+from engine import pipeline, report  # noqa: E402
 from engine.report import document, tables  # noqa: E402
 from engine.report.findings import findings_blocks  # noqa: E402
-from engine.analysis import analyze  # noqa: E402
+from engine.spec import AnalysisSpec  # noqa: E402
 from engine.errors import FileProblem  # noqa: E402
-from engine.session import Session, spec_of  # noqa: E402
+from engine.session import Session  # noqa: E402
 from desktop import export  # noqa: E402
 from desktop.findings_panel import FindingsPanel  # noqa: E402
 
@@ -40,17 +40,16 @@ def data_file(tmp_path) -> Path:
 
 @pytest.fixture
 def panel(qtbot, data_file):
-    session = Session()
-    table = io.read_table(data_file)
-    set_aside = {(20, "hours"): "gauge dropped before this reading"}
-    intake = io.make_groups(table, values="hours", group="coating", pick=("wax", "resin"), set_aside=set_aside)
-    session.choose(path=data_file, group_column="coating", value_columns=("hours",), picked=("wax", "resin"),
-                   set_aside=set_aside, n_resamples=300)
+    spec = AnalysisSpec(source=pipeline.source_for(data_file), group_column="coating", value_columns=("hours",),
+                        groups=("wax", "resin"), resamples=300, seed=11)
+    session = Session(spec)
+    table = pipeline.read(spec)
+    set_aside = pipeline.set_aside_cells(table, {(20, "hours"): "gauge dropped before this reading"})
+    session.choose(set_aside=set_aside)
+    intake = pipeline.form_groups(table, session.spec)
     session.store("table", table)
     session.store("intake", intake)
-    spec = spec_of(session.choices, table)  # the window's spec: the file, the cells set aside
-    session.store("analysis", analyze(intake.groups, spec, screening=intake.screening,
-                                      source={"file": data_file.name, "columns": ["coating", "hours"]}))
+    session.store("analysis", pipeline.run(intake, session.spec))
     widget = FindingsPanel(session)
     qtbot.addWidget(widget)
     widget.resize(800, 700)

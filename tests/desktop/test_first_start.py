@@ -52,7 +52,7 @@ def test_a_file_open_event_opens_the_file(make_window, qtbot, two_groups_csv):
     try:
         # what macOS sends the application when Finder opens a file with it
         QCoreApplication.sendEvent(app, QFileOpenEvent(str(two_groups_csv)))
-        qtbot.waitUntil(lambda: window.session.choices.path == Path(two_groups_csv), timeout=20_000)
+        qtbot.waitUntil(lambda: window.session.path == Path(two_groups_csv), timeout=20_000)
     finally:
         app.removeEventFilter(watch)
 

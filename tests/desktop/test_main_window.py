@@ -27,7 +27,7 @@ def test_every_demo_file_opens_as_a_double_click_would(make_window, qtbot, settl
     settle(window, timeout=60_000)
     state = window.session
     assert window.data_panel.model.rowCount() == len(state.table.frame)
-    assert state.choices.path == path
+    assert state.path == path
     if state.intake is not None:
         qtbot.waitUntil(lambda: state.analysis is not None or window.message_bar.key is not None,
                         timeout=60_000)
@@ -45,8 +45,8 @@ def test_columns_groups_set_aside_and_back(make_window, qtbot, settle, three_gro
     settle(window)
     state = window.session
     # three batches: the window asks for two
-    assert state.choices.group_column == "batch"
-    assert state.choices.value_columns == ("peel_strength",)
+    assert state.spec.group_column == "batch"
+    assert state.spec.value_columns == ("peel_strength",)
     assert state.intake is None and "3 groups" in state.problem
     assert window.message_bar.key == "groups_problem"
 
@@ -161,7 +161,7 @@ def test_stop_ends_a_long_run(make_window, qtbot, csv_file):
     rows += [("new", round(float(v), 3)) for v in rng.normal(10.2, 2, 3000)]
     path = csv_file("long_run.csv", rows, ("press", "force"))
     window = make_window()
-    window.session.choose(n_resamples=1_000_000)
+    window.session.choose(resamples=1_000_000)
     window.open_file(path)
     qtbot.waitUntil(lambda: window.analysis_worker.busy, timeout=20_000)
     with qtbot.waitSignal(window.analysis_worker.progress, timeout=30_000):
@@ -182,7 +182,7 @@ def test_choosing_a_procedure_only_changes_the_view(make_window, qtbot, settle, 
     shown = window.session.analysis
     window.session.choose(procedure="mann_whitney")
     assert not window.busy and window.session.analysis is shown
-    window.session.choose(alternative="less")
+    window.session.ask(kind="lower")
     assert window.busy
     qtbot.waitUntil(lambda: window.session.analysis is not shown and not window.busy, timeout=60_000)
     assert window.session.analysis.spec.alternative == "less"
@@ -215,7 +215,7 @@ def test_a_workbook_with_several_sheets_asks_which(make_window, qtbot, tmp_path,
     qtbot.waitUntil(lambda: window.session.table is not None and window.session.table.sheet == "bolts",
                     timeout=20_000)
     assert chosen == [["notes", "bolts"]]  # asked once, not again for the chosen sheet
-    assert window.session.choices.sheet == "bolts"
+    assert window.session.spec.source.sheet == "bolts"
     assert window.data_panel.model.rowCount() == 8
 
 
@@ -252,14 +252,14 @@ def test_a_drop_opens_the_file(make_window, qtbot, two_groups_csv):
                        Qt.KeyboardModifier.NoModifier)
     window.dropEvent(event)
     wait_for_table(qtbot, window)
-    assert window.session.choices.path == two_groups_csv
+    assert window.session.path == two_groups_csv
 
 
 def test_recent_files(make_window, qtbot, two_groups_csv, three_groups_csv):
     window = make_window([two_groups_csv])
     wait_for_table(qtbot, window)
     window.open_file(three_groups_csv)
-    qtbot.waitUntil(lambda: window.session.choices.path == three_groups_csv, timeout=20_000)
+    qtbot.waitUntil(lambda: window.session.path == three_groups_csv, timeout=20_000)
     assert window.recent.paths()[:2] == [three_groups_csv.resolve(), two_groups_csv.resolve()]
     window._fill_recent()
     assert [a.text() for a in window.recent_menu.actions()][:2] == [three_groups_csv.name, two_groups_csv.name]
@@ -369,12 +369,13 @@ def test_each_new_file_starts_from_the_usual_settings_unless_kept(make_window, q
                      ("kiln", "shrinkage_pct"))
     window = make_window([two_groups_csv])
     qtbot.waitUntil(lambda: window.session.analysis is not None, timeout=60_000)
-    window.session.choose(alternative="less", confidence_level=0.9, ordinal=True)
+    window.session.ask(kind="lower", level=0.9)
+    window.session.state(ordinal=True)
     qtbot.waitUntil(lambda: window.session.analysis.spec.alternative == "less" and not window.busy,
                     timeout=60_000)
     assert not window.keep_settings_action.isChecked()  # the default: every file starts afresh
     window.open_file(other)
-    qtbot.waitUntil(lambda: window.session.choices.path == other, timeout=20_000)
+    qtbot.waitUntil(lambda: window.session.path == other, timeout=20_000)
     assert window.message_bar.key == "settings_fresh"
     assert "two-sided, 95 %" in window.message_bar.text
     assert "one-sided (group 1 lower), 90 %" in window.message_bar.text
@@ -382,22 +383,23 @@ def test_each_new_file_starts_from_the_usual_settings_unless_kept(make_window, q
     spec = window.session.analysis.spec
     assert (spec.alternative, spec.level) == ("two-sided", 0.95)
     assert window.setup_panel.confidence.value() == 95.0
-    assert window.setup_panel.question.currentData() == "two-sided"
-    assert not window.session.choices.ordinal  # a statement about one file's data never carries over
+    assert window.setup_panel.question.currentData() == "differ"
+    assert not window.session.spec.statements.ordinal  # a statement about one file's data never carries over
 
     window.keep_settings_action.trigger()
     assert window.keep_settings_action.isChecked()
-    window.session.choose(alternative="greater", confidence_level=0.9, ordinal=True)
+    window.session.ask(kind="higher", level=0.9)
+    window.session.state(ordinal=True)
     qtbot.waitUntil(lambda: window.session.analysis.spec.alternative == "greater" and not window.busy,
                     timeout=60_000)
     window.open_file(two_groups_csv)
-    qtbot.waitUntil(lambda: window.session.choices.path == two_groups_csv, timeout=20_000)
+    qtbot.waitUntil(lambda: window.session.path == two_groups_csv, timeout=20_000)
     assert window.message_bar.key == "settings_kept"
     assert "one-sided (group 1 higher), 90 %" in window.message_bar.text
     qtbot.waitUntil(lambda: window.session.analysis is not None and not window.busy, timeout=60_000)
     spec = window.session.analysis.spec
     assert (spec.alternative, spec.level) == ("greater", 0.9)
-    assert not window.session.choices.ordinal
+    assert not window.session.spec.statements.ordinal
     assert window.settings.value("comparison/keep_settings", type=bool)  # remembered for next time
 
 
@@ -407,7 +409,7 @@ def test_the_copied_banner_goes_once_the_results_change(make_window, qtbot, two_
                     and not window.busy, timeout=60_000)
     window.copy_action.trigger()
     assert window.message_bar.key == "copied"
-    window.session.choose(confidence_level=0.9)  # what was copied no longer matches what is shown
+    window.session.ask(level=0.9)  # what was copied no longer matches what is shown
     assert window.message_bar.key is None
 
 
@@ -420,9 +422,9 @@ def test_recent_files_of_the_same_name_show_their_folders(make_window, qtbot, tm
         twins.append(tmp_path / year / "bolts.csv")
         twins[-1].write_bytes(two_groups_csv.read_bytes())
     window = make_window([twins[0]])
-    qtbot.waitUntil(lambda: window.session.choices.path == twins[0], timeout=20_000)
+    qtbot.waitUntil(lambda: window.session.path == twins[0], timeout=20_000)
     window.open_file(twins[1])
-    qtbot.waitUntil(lambda: window.session.choices.path == twins[1], timeout=20_000)
+    qtbot.waitUntil(lambda: window.session.path == twins[1], timeout=20_000)
     window._fill_recent()
     texts = [action.text() for action in window.recent_menu.actions()][:2]
     assert texts == ["bolts.csv  (…/2025)", "bolts.csv  (…/2024)"]
@@ -444,7 +446,7 @@ def test_a_new_file_shows_the_right_panels_from_the_top(make_window, qtbot, two_
         bar.setValue(bar.maximum())
         assert bar.value() > 0
     window.open_file(other)
-    qtbot.waitUntil(lambda: window.session.choices.path == other, timeout=20_000)
+    qtbot.waitUntil(lambda: window.session.path == other, timeout=20_000)
     assert [bar.value() for bar in bars] == [0, 0]
 
 
@@ -479,3 +481,26 @@ def test_saving_remembers_the_folder_and_says_where_the_file_went(make_window, q
     assert asked[-1] == reports / "plots.html"  # the next save opens where the last one went
     window.save_plot()
     assert asked[-1] == reports / "plots.png"
+
+
+def test_each_new_analysis_draws_and_shows_its_seed(make_window, qtbot, two_groups_csv, csv_file):
+    other = csv_file("kilns.csv", [("old", 3.1 + i / 10) for i in range(8)] + [("new", 3.5 + i / 9) for i in range(8)],
+                     ("kiln", "shrinkage_pct"))
+    window = make_window([two_groups_csv])
+    window.keep_settings_action.setChecked(True)  # even kept settings leave the seed to the new file
+    qtbot.waitUntil(lambda: window.session.analysis is not None and not window.busy, timeout=60_000)
+    first = window.session.analysis.spec.seed
+    assert first is not None and first != 20261202  # drawn, not a fixed default
+    assert window.setup_panel.seed.text() == str(first)
+    window.open_file(other)
+    qtbot.waitUntil(lambda: window.session.path == other and window.session.analysis is not None
+                    and not window.busy, timeout=60_000)
+    second = window.session.analysis.spec.seed
+    assert second != first and window.setup_panel.seed.text() == str(second)  # 1 in 2^32 to fail by chance
+    # the same seed again repeats the run exactly
+    shown = window.session.analysis
+    window.run_analysis()
+    qtbot.waitUntil(lambda: window.session.analysis is not shown and not window.busy, timeout=60_000)
+    again = window.session.analysis.procedures
+    assert again["permutation_mean"].p_value == shown.procedures["permutation_mean"].p_value
+    assert again["bootstrap_mean"].interval == shown.procedures["bootstrap_mean"].interval

@@ -23,7 +23,7 @@ def test_the_session_holds_the_file_its_groups_and_their_comparison():
     # reference: scipy.stats.ttest_ind with equal_var=False is Welch's test
     expected = stats.ttest_ind(x, y, equal_var=False).pvalue
     assert session.analysis.procedures["welch_t"].p_value == pytest.approx(expected, rel=1e-12)
-    assert session.choices.path == BOLTS and session.problem is None
+    assert session.path == BOLTS and session.problem is None
 
 
 def test_groups_that_cannot_be_formed_are_the_sessions_problem(tmp_path):

@@ -60,7 +60,7 @@ def test_html_in_labels_and_names_is_shown_literally(make_window, qtbot, settle,
     qtbot.waitUntil(lambda: window.session.table is not None, timeout=20_000)
     settle(window)
     state = window.session
-    assert state.choices.group_column == f"{PICTURE} group"
+    assert state.spec.group_column == f"{PICTURE} group"
     # three groups: the hint names the group column
     setup = window.setup_panel
     assert shown_as_text(setup.hint, f"{PICTURE} group")
@@ -126,8 +126,10 @@ def test_the_grid_and_the_lists_show_direction_overrides_and_breaks_as_escapes(q
     assert model.headerData(0, Qt.Orientation.Horizontal).startswith("site\\u202e\n")
 
     session = Session()
-    session.choose(path=table.path, group_column="site\u202e", value_columns=("mass",),
-                   picked=(first, second))
+    from engine.spec import Source
+
+    session.choose(source=Source(str(table.path)), group_column="site\u202e", value_columns=("mass",),
+                   groups=(first, second))
     session.store("table", table)
     panel = SetupPanel(session)
     qtbot.addWidget(panel)

@@ -1,4 +1,4 @@
-"""The set-up panel: shows the session's choices and writes the user's edits back, without loops."""
+"""The set-up panel: shows the session's spec and writes the user's edits back, without loops."""
 
 from __future__ import annotations
 
@@ -9,13 +9,14 @@ import pytest
 from desktop.setup_panel import SetupPanel, group_levels
 from engine import io
 from engine.session import Session
+from engine.spec import Source
 
 
 @pytest.fixture
 def session(three_groups_csv) -> Session:
     session = Session()
     table = io.read_table(three_groups_csv)
-    session.choose(path=three_groups_csv, group_column="batch", value_columns=("peel_strength",))
+    session.choose(source=Source(str(three_groups_csv)), group_column="batch", value_columns=("peel_strength",))
     session.store("table", table)
     return session
 
@@ -39,7 +40,7 @@ def test_levels_are_the_engines_labels(csv_file):
     assert list(intake.groups.labels) == group_levels(table, "field")
 
 
-def test_shows_the_choices(panel, session):
+def test_shows_the_spec(panel, session):
     assert panel.long_radio.isChecked()
     assert panel.group_column.currentData() == "batch"
     assert panel.value_column.currentData() == "peel_strength"
@@ -51,35 +52,35 @@ def test_shows_the_choices(panel, session):
 def test_picking_the_two_groups(panel, session):
     panel.first_group.setCurrentIndex(panel.first_group.findData("C"))
     panel.first_group.activated.emit(panel.first_group.currentIndex())
-    assert session.choices.picked is None  # only one of the two so far
+    assert session.spec.groups is None  # only one of the two so far
     panel.second_group.setCurrentIndex(panel.second_group.findData("A"))
     panel.second_group.activated.emit(panel.second_group.currentIndex())
-    assert session.choices.picked == ("C", "A")
+    assert session.spec.groups == ("C", "A")
     # choosing group 2's label for group 1 exchanges the two
     panel.first_group.setCurrentIndex(panel.first_group.findData("A"))
     panel.first_group.activated.emit(panel.first_group.currentIndex())
-    assert session.choices.picked == ("A", "C")
+    assert session.spec.groups == ("A", "C")
     panel.swap()
-    assert session.choices.picked == ("C", "A")
+    assert session.spec.groups == ("C", "A")
     assert panel.question.itemText(2) == "Is C higher than A?"
 
 
 def test_question_and_confidence(panel, session):
-    panel.question.setCurrentIndex(panel.question.findData("less"))
+    panel.question.setCurrentIndex(panel.question.findData("lower"))
     panel.question.activated.emit(panel.question.currentIndex())
-    assert session.choices.alternative == "less"
+    assert session.spec.alternative == "less"
     panel.confidence.setValue(99.0)
-    assert session.choices.confidence_level == pytest.approx(0.99)
+    assert session.spec.level == pytest.approx(0.99)
     panel.resamples.setValue(5_000)
-    assert session.choices.n_resamples == 5_000
+    assert session.spec.resamples == 5_000
 
 
 def test_changes_from_elsewhere_show_and_write_nothing_back(panel, session):
     seen = []
     session.subscribe(lambda name, value: seen.append(name))
-    session.choose(alternative="greater", confidence_level=0.9)
-    assert seen == ["choices"]  # one announcement, no echo from the panel
-    assert panel.question.currentData() == "greater"
+    session.ask(kind="higher", level=0.9)
+    assert seen == ["spec"]  # one announcement, no echo from the panel
+    assert panel.question.currentData() == "higher"
     assert panel.confidence.value() == pytest.approx(90.0)
 
 
@@ -89,15 +90,15 @@ def test_wide_layout(panel, session, csv_file):
     session.store("table", io.read_table(Path(path)))
     session.choose(layout="long", group_column=None, value_columns=())
     panel.wide_radio.setChecked(True)
-    assert session.choices.layout == "wide"
-    assert session.choices.group_column is None
-    assert session.choices.value_columns == ("supplier_a", "supplier_b")
+    assert session.spec.layout == "wide"
+    assert session.spec.group_column is None
+    assert session.spec.value_columns == ("supplier_a", "supplier_b")
     assert panel.first_column.isVisibleTo(panel) and not panel.group_column.isVisibleTo(panel)
     panel.second_column.setCurrentIndex(panel.second_column.findData("lot"))
     panel.second_column.activated.emit(panel.second_column.currentIndex())
-    assert session.choices.value_columns == ("supplier_a", "lot")
+    assert session.spec.value_columns == ("supplier_a", "lot")
     panel.swap()
-    assert session.choices.value_columns == ("lot", "supplier_a")
+    assert session.spec.value_columns == ("lot", "supplier_a")
 
 
 def test_choosing_a_group_column_with_two_groups_picks_them(panel, session, csv_file):
@@ -106,16 +107,39 @@ def test_choosing_a_group_column_with_two_groups_picks_them(panel, session, csv_
     session.store("table", io.read_table(path))
     panel.group_column.setCurrentIndex(panel.group_column.findData("shift"))
     panel.group_column.activated.emit(panel.group_column.currentIndex())
-    assert session.choices.group_column == "shift"
-    assert session.choices.picked == ("x", "y")
+    assert session.spec.group_column == "shift"
+    assert session.spec.groups == ("x", "y")
 
 
 def test_tab_order_follows_the_form(panel):
     order = [panel.long_radio, panel.group_column, panel.value_column, panel.first_group, panel.swap_button,
-             panel.second_group, panel.question, panel.confidence, panel.resamples]
+             panel.second_group, panel.question, panel.confidence, panel.resamples, panel.seed,
+             panel.new_seed_button]
     chain, widget = [], panel.long_radio
     for _ in range(60):
         if widget in order and widget not in chain:
             chain.append(widget)
         widget = widget.nextInFocusChain()
     assert chain == order
+
+
+def test_the_ranges_are_the_specs_and_a_refused_value_shows_its_sentence(panel, session):
+    from engine.question import LEVEL_RANGE
+    from engine.spec import RESAMPLES_RANGE
+
+    assert (panel.resamples.minimum(), panel.resamples.maximum()) == RESAMPLES_RANGE
+    assert panel.confidence.minimum() == LEVEL_RANGE[0] * 100
+    assert panel.confidence.maximum() < LEVEL_RANGE[1] * 100  # the spec takes levels below 1
+    panel.seed.setText("12345")
+    panel.seed.editingFinished.emit()
+    assert session.spec.seed == 12345 and panel.refused.isHidden()
+    for typed in ("-4", "twelve", str(2**63)):
+        panel.seed.setText(typed)
+        panel.seed.editingFinished.emit()
+        # the spec's own sentence (engine/spec.py), and the seed stays as it was
+        assert panel.refused.text().startswith("The seed must be a whole number from 0 to 2^63 - 1")
+        assert not panel.refused.isHidden() and session.spec.seed == 12345
+        assert panel.seed.text() == "12345"
+    panel.new_seed_button.click()
+    assert session.spec.seed != 12345 and panel.seed.text() == str(session.spec.seed)
+    assert panel.refused.isHidden()
