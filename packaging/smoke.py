@@ -169,6 +169,10 @@ class Smoke:
         same = (ours.returncode == theirs.returncode == 0 and json.loads(ours.stdout) == json.loads(theirs.stdout))
         self.check(same, "analyze --spec OUT.twofold --json gives the reference's JSON",
                    f"exit codes {ours.returncode}/{theirs.returncode}\n{ours.stderr}\n{theirs.stderr}")
+        shown = self.run([str(self.window), "--quit-after-paint", str(STAY_UP_SECONDS), str(saved)], home)
+        self.check("PAINTED" in shown.stdout and shown.returncode == 0 and "Traceback" not in shown.stderr,
+                   "the window opens OUT.twofold, paints its data file's grid and quits cleanly",
+                   f"exit code {shown.returncode}\n{shown.stdout}\n{shown.stderr}")
 
 
 def main() -> int:

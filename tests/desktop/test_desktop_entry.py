@@ -7,7 +7,6 @@ import re
 import shlex
 import shutil
 import xml.etree.ElementTree as ElementTree
-from pathlib import Path
 
 import pytest
 
