@@ -43,6 +43,7 @@ from PySide6.QtWidgets import (
     QWidget,
 )
 
+from engine.rounding import level_text
 from engine.session import Session
 from engine.spec import AnalysisSpec
 from engine.text import visible
@@ -114,7 +115,7 @@ def settings_words(spec: AnalysisSpec) -> str:
     """The carried settings of ``spec`` in a few words, e.g. "one-sided (group 1 lower), 90 %"."""
     sides = {"two-sided": "two-sided", "less": "one-sided (group 1 lower)",
              "greater": "one-sided (group 1 higher)"}
-    words = [sides.get(spec.alternative, spec.alternative), f"{spec.level * 100:g} %"]
+    words = [sides.get(spec.alternative, spec.alternative), level_text(spec.level)]
     if spec.resamples != AnalysisSpec().resamples:
         words.append(f"{spec.resamples:,} resampling rounds")
     return ", ".join(words)

@@ -15,7 +15,7 @@ from __future__ import annotations
 import math
 from typing import Iterable
 
-__all__ = ["format_p", "p_clause", "format_number", "format_shape", "shared_decimals", "fixed",
+__all__ = ["format_p", "p_clause", "level_text", "format_number", "format_shape", "shared_decimals", "fixed",
            "decimals_for", "P_FLOOR", "P_CEILING", "NOT_AVAILABLE", "SCIENTIFIC_SMALL",
            "SCIENTIFIC_LARGE"]
 
@@ -204,3 +204,16 @@ def shared_decimals(values: Iterable[float | None], digits: int = 3, *,
     while decimals < top and not _distinct(distinct, decimals, digits):
         decimals += 1
     return decimals
+
+
+def level_text(level: float) -> str:
+    """A confidence level as a percentage: 0.95 -> "95%", 0.975 -> "97.5%".
+
+    Up to four decimals of the percentage, more for a level so close to 1 that four would read
+    as "100%" (a level is always below 1).
+    """
+    for decimals in range(4, 16):
+        text = f"{round(level * 100, decimals):.{decimals}f}".rstrip("0").rstrip(".")
+        if text != "100" or level >= 1:
+            break
+    return f"{text}%"

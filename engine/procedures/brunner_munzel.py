@@ -15,6 +15,7 @@ import numpy as np
 from scipy import special
 
 from ..results import Interval, ProcedureResult, frozen_mapping
+from ..rounding import level_text, p_clause
 from ..stats_basics import Normal, StudentT, centred_variance, statistic_p, tail_alpha
 from ..summary import sorted_values
 from .probability_interval import newcombe_limits
@@ -197,7 +198,7 @@ def brunner_munzel(
                 low, high = min(low, 0.5), max(high, 0.5)
                 warnings.append(
                     f"With so few values even a complete separation is not clear at the "
-                    f"{100 * level:g}% level (p = {p_value:.3g}), so the interval is extended to "
+                    f"{level_text(level)} level ({p_clause(p_value)}), so the interval is extended to "
                     "1/2 to agree with the test.")
         method += "; interval for the probability by Newcombe's method 5"
     return ProcedureResult(

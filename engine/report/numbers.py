@@ -11,7 +11,7 @@ import math
 from dataclasses import dataclass
 
 from ..procedures.registry import RECORDS
-from ..rounding import fixed, format_number, format_p, shared_decimals
+from ..rounding import fixed, format_number, format_p, level_text, shared_decimals
 
 __all__ = ["DisplayNumbers", "display_numbers", "format_interval", "level_text", "EFFECT_DECIMALS",
            "DIGITS", "EFFECT_FOR", "STATISTIC_LABEL", "RANK_KEYS", "U_KEYS", "MEDIAN_KEYS"]
@@ -54,19 +54,6 @@ class DisplayNumbers:
     effect: str | None
     effect_interval: str | None
     decimals: int | None
-
-
-def level_text(level: float) -> str:
-    """A confidence level as a percentage: 0.95 -> "95%", 0.975 -> "97.5%".
-
-    Up to four decimals of the percentage, more for a level so close to 1 that four would read
-    as "100%" (a level is always below 1).
-    """
-    for decimals in range(4, 16):
-        text = f"{round(level * 100, decimals):.{decimals}f}".rstrip("0").rstrip(".")
-        if text != "100" or level >= 1:
-            break
-    return f"{text}%"
 
 
 def _decimals_shared(values, digits: int = DIGITS) -> int | None:

@@ -377,8 +377,8 @@ def test_each_new_file_starts_from_the_usual_settings_unless_kept(make_window, q
     window.open_file(other)
     qtbot.waitUntil(lambda: window.session.path == other, timeout=20_000)
     assert window.message_bar.key == "settings_fresh"
-    assert "two-sided, 95 %" in window.message_bar.text
-    assert "one-sided (group 1 lower), 90 %" in window.message_bar.text
+    assert "two-sided, 95%" in window.message_bar.text
+    assert "one-sided (group 1 lower), 90%" in window.message_bar.text
     qtbot.waitUntil(lambda: window.session.analysis is not None and not window.busy, timeout=60_000)
     spec = window.session.analysis.spec
     assert (spec.alternative, spec.level) == ("two-sided", 0.95)
@@ -395,7 +395,7 @@ def test_each_new_file_starts_from_the_usual_settings_unless_kept(make_window, q
     window.open_file(two_groups_csv)
     qtbot.waitUntil(lambda: window.session.path == two_groups_csv, timeout=20_000)
     assert window.message_bar.key == "settings_kept"
-    assert "one-sided (group 1 higher), 90 %" in window.message_bar.text
+    assert "one-sided (group 1 higher), 90%" in window.message_bar.text
     qtbot.waitUntil(lambda: window.session.analysis is not None and not window.busy, timeout=60_000)
     spec = window.session.analysis.spec
     assert (spec.alternative, spec.level) == ("greater", 0.9)
