@@ -15,13 +15,15 @@ questions; an equivalence question will say "finds the groups equivalent").
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 from typing import Any, Mapping
 
 from .errors import OptionProblem
 from .results import ALTERNATIVES, frozen_mapping
 
-__all__ = ["Question", "Answer", "KINDS", "LEVEL_RANGE"]
+__all__ = ["Question", "Answer", "Margin", "KINDS", "MARGIN_KINDS", "ALL_KINDS", "MARGIN_UNITS",
+           "WORSE", "LEVEL_RANGE"]
 
 # The kinds of question, in the order a user is offered them, each with its alternative.
 _ALTERNATIVE_OF: Mapping[str, str] = frozen_mapping({
@@ -29,9 +31,130 @@ _ALTERNATIVE_OF: Mapping[str, str] = frozen_mapping({
     "lower": "less",
     "higher": "greater",
 })
+# The kinds about a difference; every procedure answers these (the registry's default).
 KINDS: tuple[str, ...] = tuple(_ALTERNATIVE_OF)
+# The kinds that need a margin: are the groups equivalent within it; is group 1 not worse than
+# group 2 by more than it. Only procedures built for them answer them.
+MARGIN_KINDS: tuple[str, ...] = ("equivalent", "not_worse")
+ALL_KINDS: tuple[str, ...] = KINDS + MARGIN_KINDS
+# How a margin was entered: in the measurement's units, as a percentage of group 2's mean, or as
+# a ratio of group 1's (geometric) mean to group 2's.
+MARGIN_UNITS: tuple[str, ...] = ("units", "percent", "ratio")
+# Which direction is worse, for a non-inferiority question.
+WORSE: tuple[str, ...] = ("lower", "higher")
 # The confidence levels accepted: at least LEVEL_RANGE[0] and below LEVEL_RANGE[1].
 LEVEL_RANGE: tuple[float, float] = (0.5, 1.0)
+
+
+@dataclass(frozen=True)
+class Margin:
+    """The margin of an equivalence or non-inferiority question.
+
+    ``low`` and ``high``: the ends of the equivalence margin, around no difference (``low`` < 0 <
+    ``high`` for "units" and "percent", ``low`` < 1 < ``high`` for "ratio"). ``unit``: how it
+    was entered (see ``MARGIN_UNITS``; "percent" ends are percentages of group 2's mean).
+    ``worse``: for a non-inferiority question, the direction that is worse ("lower" or
+    "higher"); its margin is then ``bound``, the end on the worse side. Build one with
+    :meth:`within` or :meth:`not_worse_by`.
+    """
+
+    low: float
+    high: float
+    unit: str = "units"
+    worse: str | None = None
+
+    def __post_init__(self) -> None:
+        if self.unit not in MARGIN_UNITS:
+            raise OptionProblem(
+                f"The margin must be in {', '.join(MARGIN_UNITS)}, not '{self.unit}'.")
+        if self.worse is not None and self.worse not in WORSE:
+            raise OptionProblem(f"Say which direction is worse: 'lower' or 'higher', not '{self.worse}'.")
+        try:
+            low, high = float(self.low), float(self.high)
+        except (TypeError, ValueError):
+            raise OptionProblem("The margin must be given as numbers.") from None
+        centre = self.no_difference
+        if not (math.isfinite(low) and math.isfinite(high)) or not low < centre < high:
+            kind = "a ratio margin" if self.unit == "ratio" else "the margin"
+            raise OptionProblem(
+                f"The ends of {kind} must lie either side of {centre:g} (no difference), "
+                f"not {low:g} to {high:g}.")
+        if self.unit == "ratio" and low <= 0:
+            raise OptionProblem(f"A ratio margin must be above 0, not {low:g}.")
+        object.__setattr__(self, "low", low)
+        object.__setattr__(self, "high", high)
+
+    @classmethod
+    def within(cls, low: float, high: float | None = None, unit: str = "units") -> "Margin":
+        """The equivalence margin ``low`` to ``high``; ``high`` None: -``low`` to +``low`` (for a
+        ratio, 1/``low`` to ``low`` with ``low`` above 1, or ``low`` to 1/``low`` below 1)."""
+        if high is None:
+            try:
+                size = abs(float(low))
+            except (TypeError, ValueError):
+                raise OptionProblem("The margin must be a number.") from None
+            if unit == "ratio":
+                return cls(min(size, 1 / size), max(size, 1 / size), unit) if size > 0 else cls(0.0, 1.0, unit)
+            return cls(-size, size, unit)
+        return cls(low, high, unit)
+
+    @classmethod
+    def not_worse_by(cls, size: float, worse: str, unit: str = "units") -> "Margin":
+        """Group 1 may be worse than group 2 by at most ``size`` (a positive number; for a ratio,
+        the ratio allowed on the worse side, such as 0.8 when lower is worse)."""
+        try:
+            size = float(size)
+        except (TypeError, ValueError):
+            raise OptionProblem("The margin must be a number.") from None
+        if unit == "ratio":
+            if not (math.isfinite(size) and size > 0 and size != 1):
+                raise OptionProblem(f"A ratio margin must be a positive number other than 1, not {size:g}.")
+            return cls(min(size, 1 / size), max(size, 1 / size), unit, worse)
+        if not (math.isfinite(size) and size > 0):
+            raise OptionProblem(f"The non-inferiority margin must be a positive number, not {size:g}.")
+        return cls(-size, size, unit, worse)
+
+    @property
+    def no_difference(self) -> float:
+        """The value of the estimate when the groups do not differ: 1 for a ratio, else 0."""
+        return 1.0 if self.unit == "ratio" else 0.0
+
+    @property
+    def bound(self) -> float:
+        """The end on the worse side (a non-inferiority margin); ``low`` when unstated."""
+        return self.high if self.worse == "higher" else self.low
+
+    @property
+    def symmetric(self) -> bool:
+        if self.unit == "ratio":
+            return math.isclose(self.low * self.high, 1.0, rel_tol=1e-12)
+        return self.low == -self.high
+
+    def in_units(self, reference_mean: float) -> "Margin":
+        """This margin in the measurement's units: a percentage margin times |``reference_mean``|
+        (group 2's mean) / 100; a margin in units or as a ratio is returned as it is."""
+        if self.unit != "percent":
+            return self
+        reference = float(reference_mean)
+        if not math.isfinite(reference) or reference == 0:
+            raise OptionProblem(
+                "A margin given as a percentage of group 2's mean needs that mean to be a number "
+                f"other than 0, not {reference:g}; give the margin in the measurement's units.")
+        scale = abs(reference) / 100.0
+        return Margin(self.low * scale, self.high * scale, "units", self.worse)
+
+    def to_dict(self) -> dict[str, Any]:
+        return {"low": self.low, "high": self.high, "unit": self.unit, "worse": self.worse}
+
+    @classmethod
+    def from_dict(cls, data: Mapping[str, Any]) -> "Margin":
+        """The margin :meth:`to_dict` wrote; an unknown member raises :class:`OptionProblem`."""
+        if not isinstance(data, Mapping):
+            raise OptionProblem("The margin must be a set of named members.")
+        unknown = sorted(set(data) - {"low", "high", "unit", "worse"})
+        if unknown:
+            raise OptionProblem(f"Unknown member in the margin: {', '.join(unknown)}.")
+        return cls(**data)
 
 
 @dataclass(frozen=True)
@@ -52,19 +175,34 @@ class Answer:
 
 @dataclass(frozen=True)
 class Question:
-    """``kind``: "differ" (two-sided), "lower" or "higher" (group 1 against group 2).
+    """``kind``: "differ" (two-sided), "lower" or "higher" (group 1 against group 2), or one of
+    ``MARGIN_KINDS``: "equivalent" (within ``margin``) or "not_worse" (group 1 not worse than
+    group 2 by more than ``margin``, whose ``worse`` says which direction is worse).
 
     ``level``: the confidence level of every interval, and 1 - level the p-value below which a
-    test is said to find a difference.
+    test is said to find a difference. For a margin kind 1 - level is the test's alpha, and the
+    interval set against the margin is the (1 - 2 alpha) two-sided one.
+    ``margin``: a :class:`Margin`, given exactly for the margin kinds.
     """
 
     kind: str = "differ"
     level: float = 0.95
+    margin: Margin | None = None
 
     def __post_init__(self) -> None:
-        if self.kind not in _ALTERNATIVE_OF:
+        if self.kind not in ALL_KINDS:
             raise OptionProblem(
-                f"The question must be one of {', '.join(KINDS)}, not '{self.kind}'.")
+                f"The question must be one of {', '.join(ALL_KINDS)}, not '{self.kind}'.")
+        if self.kind in MARGIN_KINDS:
+            if not isinstance(self.margin, Margin):
+                raise OptionProblem("An equivalence or non-inferiority question needs a margin.")
+            if (self.kind == "not_worse") != (self.margin.worse is not None):
+                raise OptionProblem(
+                    "A non-inferiority question says which direction is worse; an equivalence "
+                    "question does not.")
+        elif self.margin is not None:
+            raise OptionProblem(f"A margin belongs to an equivalence or non-inferiority question, "
+                                f"not to '{self.kind}'.")
         low, high = LEVEL_RANGE
         try:
             level = float(self.level)
@@ -73,6 +211,9 @@ class Question:
         if not low <= level < high:
             raise OptionProblem(
                 f"The confidence level must be at least {low} and below {high:g}, not {self.level}.")
+        if self.kind in MARGIN_KINDS and level == low:
+            raise OptionProblem(f"The level of an equivalence or non-inferiority question must be "
+                                f"above {low}, not {self.level}.")
         object.__setattr__(self, "level", level)
 
     @classmethod
@@ -86,8 +227,23 @@ class Question:
 
     @property
     def alternative(self) -> str:
-        """The procedures' name for this question: "two-sided", "less" or "greater"."""
-        return _ALTERNATIVE_OF[self.kind]
+        """The procedures' name for this question: "two-sided", "less" or "greater". An
+        equivalence question is two-sided; a non-inferiority question looks away from the worse
+        side ("greater" when lower is worse)."""
+        if self.kind == "not_worse":
+            return "greater" if self.margin.worse == "lower" else "less"
+        return _ALTERNATIVE_OF.get(self.kind, "two-sided")
+
+    @property
+    def has_margin(self) -> bool:
+        return self.kind in MARGIN_KINDS
+
+    def to_dict(self) -> dict[str, Any]:
+        """Plain values; the margin only when there is one (an older file has none)."""
+        plain: dict[str, Any] = {"kind": self.kind, "level": self.level}
+        if self.margin is not None:
+            plain["margin"] = self.margin.to_dict()
+        return plain
 
     @property
     def one_sided(self) -> bool:
