@@ -17,12 +17,13 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
-from typing import Any, Mapping
+from typing import Any, Callable, Mapping
 
 from .errors import OptionProblem
-from .results import ALTERNATIVES, frozen_mapping
+from .results import ALTERNATIVES, Interval, frozen_mapping
+from .rounding import fixed, shared_decimals
 
-__all__ = ["Question", "Answer", "Margin", "KINDS", "MARGIN_KINDS", "ALL_KINDS", "MARGIN_UNITS",
+__all__ = ["Question", "Answer", "Margin", "MarginAnswer", "MARGIN_CASES", "KINDS", "MARGIN_KINDS", "ALL_KINDS", "MARGIN_UNITS",
            "WORSE", "LEVEL_RANGE"]
 
 # The kinds of question, in the order a user is offered them, each with its alternative.
@@ -155,6 +156,59 @@ class Margin:
         if unknown:
             raise OptionProblem(f"Unknown member in the margin: {', '.join(unknown)}.")
         return cls(**data)
+
+
+# What an interval says against a margin. Equivalence: inside the margin or not, crossed with
+# leaving no difference out or not (the four cases). Non-inferiority: better, not worse, worse by
+# more than the margin, or not clear.
+MARGIN_CASES: tuple[str, ...] = (
+    "equivalent", "equivalent_but_different", "different_not_equivalent", "inconclusive",
+    "better", "not_worse", "worse", "not_shown_not_worse")
+_MARGIN_READINGS: Mapping[str, str] = frozen_mapping({
+    "equivalent": "equivalent",
+    "equivalent_but_different": "equivalent, with a difference smaller than the margin",
+    "different_not_equivalent": "differ, not equivalent",
+    "inconclusive": "not clear either way",
+    "better": "better",
+    "not_worse": "not worse",
+    "worse": "worse by more than the margin",
+    "not_shown_not_worse": "not clear",
+})
+
+
+@dataclass(frozen=True)
+class MarginAnswer:
+    """What a result says to a margin question.
+
+    ``case``: one of ``MARGIN_CASES``. ``interval``: the two-sided (1 - 2 alpha) interval set
+    against the margin. ``difference_interval``: the two-sided (1 - alpha) interval that says
+    whether the groups differ (equivalence only). ``margin``: the margin in the estimate's
+    units (a percentage already converted). ``beyond``: the whole interval lies outside the
+    margin (equivalence) or past its worse end (non-inferiority).
+    """
+
+    case: str
+    interval: Interval
+    difference_interval: Interval | None
+    margin: Margin
+    beyond: bool = False
+
+    @property
+    def yes(self) -> bool:
+        """Whether the question is answered "yes" (equivalent; not worse, or better)."""
+        return self.case in ("equivalent", "equivalent_but_different", "better", "not_worse")
+
+
+def _ends(interval: Interval) -> tuple[float, float]:
+    """The ends of ``interval`` with an open end as an infinity (NaN stays NaN)."""
+    low = -math.inf if interval.low is None else float(interval.low)
+    high = math.inf if interval.high is None else float(interval.high)
+    return low, high
+
+
+def _percent(fraction: float) -> str:
+    from .report.numbers import level_text  # the report imports the registry, which imports this
+    return level_text(fraction)
 
 
 @dataclass(frozen=True)
@@ -339,3 +393,129 @@ class Question:
         if answer.other_way:
             return "not clear: the data point the other way"
         return "no clear difference" if not self.one_sided else "not clear"
+
+    # -- the verdict against a margin --------------------------------------------------------
+
+    def margin_answer(self, interval: Interval, difference_interval: Interval | None = None, *,
+                      margin: Margin | None = None) -> MarginAnswer:
+        """What the (1 - 2 alpha) two-sided ``interval`` says against the margin.
+
+        ``margin``: the question's margin in the estimate's units (needed when it was given as a
+        percentage; see :meth:`Margin.in_units`). ``difference_interval``: the two-sided
+        (1 - alpha) interval, needed for an equivalence question (does it leave no difference
+        out?). Ends are compared strictly: an interval touching the margin is not inside it, as
+        the two one-sided tests do not reject at p = alpha. An end that could not be computed
+        (NaN) shows nothing.
+        """
+        if not self.has_margin:
+            raise OptionProblem(f"A '{self.kind}' question has no margin to judge against.")
+        margin = self.margin if margin is None else margin
+        if margin.unit == "percent":
+            raise OptionProblem("Convert a percentage margin to units (Margin.in_units) first.")
+        low, high = _ends(interval)
+        zero = margin.no_difference
+        if self.kind == "equivalent":
+            if difference_interval is None:
+                raise OptionProblem("An equivalence verdict needs the (1 - alpha) interval as well.")
+            inside = margin.low < low and high < margin.high
+            d_low, d_high = _ends(difference_interval)
+            different = d_low > zero or d_high < zero
+            beyond = high <= margin.low or low >= margin.high
+            case = ("equivalent_but_different" if different else "equivalent") if inside else (
+                "different_not_equivalent" if different else "inconclusive")
+            return MarginAnswer(case, interval, difference_interval, margin, beyond)
+        sign = 1.0 if margin.worse == "lower" else -1.0
+        good_end, bad_end = (low, high) if sign > 0 else (high, low)
+        if sign * (good_end - zero) > 0:
+            case = "better"
+        elif sign * (good_end - margin.bound) > 0:
+            case = "not_worse"
+        elif sign * (bad_end - margin.bound) < 0:
+            case = "worse"
+        else:
+            case = "not_shown_not_worse"
+        return MarginAnswer(case, interval, difference_interval, margin, case == "worse")
+
+    def margin_reading(self, answer: MarginAnswer) -> str:
+        """The verdict against the margin in a few words."""
+        return _MARGIN_READINGS[answer.case]
+
+    def margin_text(self, margin: Margin, labels: tuple[str, str], decimals: int | None = None) -> str:
+        """The margin as the verdict names it: "±0.5", "-0.4 to 0.7", "a ratio of 0.8 to 1.25";
+        for a non-inferiority question the size on the worse side; a percentage margin adds what
+        it was entered as: "±0.42 (±5% of B's mean)"."""
+        given = self.margin
+
+        def number(value: float) -> str:
+            return fixed(value, decimals)
+
+        def span(m: Margin, show: Callable[[float], str]) -> str:
+            if self.kind == "not_worse":
+                return show(abs(m.bound - m.no_difference)) if m.unit != "ratio" else show(m.bound)
+            if m.symmetric and m.unit != "ratio":
+                return f"±{show(m.high)}"
+            return f"{show(m.low)} to {show(m.high)}"
+
+        text = span(margin, number)
+        if given.unit == "ratio":
+            return f"a ratio of {text}"
+        if given.unit == "percent":
+            as_given = span(given, lambda v: f"{v:g}%")
+            return f"{text} ({as_given} of {labels[1]}'s mean)"
+        return text
+
+    def margin_words(self, answer: MarginAnswer, labels: tuple[str, str],
+                     estimate_name: str = "difference in means") -> str:
+        """The verdict against the margin in sentences, numbers rounded together."""
+        margin, interval = answer.margin, answer.interval
+        low, high = _ends(interval)
+        shown = [margin.low, margin.high, low, high]
+        if answer.difference_interval is not None:
+            shown += list(_ends(answer.difference_interval))
+        decimals = shared_decimals(shown)
+
+        def number(value: float) -> str:
+            return fixed(value, decimals)
+
+        def ends(values: tuple[float, float]) -> str:
+            return f"{number(values[0])} to {number(values[1])}"
+
+        size = self.margin_text(margin, labels, decimals)
+        alpha, narrow, wide = _percent(self.alpha), _percent(interval.level), _percent(self.level)
+        zero = f"{margin.no_difference:g}"
+        first, second = labels
+        at = f"at the {alpha} level"
+        ci = f"the {narrow} confidence interval of the {estimate_name}, {ends((low, high))}"
+        case = answer.case
+        if self.kind == "equivalent":
+            bounds = ends((margin.low, margin.high))
+            wide_ci = f"the {wide} interval, {ends(_ends(answer.difference_interval))}"
+            if case == "equivalent":
+                return (f"Equivalent within {size} {at}: {ci}, lies inside the margin {bounds}. "
+                        f"No difference is shown either: {wide_ci}, includes {zero}.")
+            if case == "equivalent_but_different":
+                return (f"Equivalent within {size} {at}: {ci}, lies inside the margin {bounds}. "
+                        f"The groups do differ, by less than the margin: {wide_ci}, leaves out {zero}.")
+            where = "lies wholly outside" if answer.beyond else "reaches past"
+            if case == "different_not_equivalent":
+                more = ", by more than the margin allows" if answer.beyond else ""
+                return (f"Not shown to be equivalent within {size} {at}: {ci}, {where} the margin "
+                        f"{bounds}. The groups differ{more}: {wide_ci}, leaves out {zero}.")
+            return (f"Not shown to be equivalent within {size} {at}, and no difference is shown "
+                    f"either: {ci}, {where} the margin {bounds}, while {wide_ci}, includes {zero}. "
+                    "The data cannot tell the two apart yet; more measurements narrow the interval.")
+        bound = number(margin.bound)
+        good = "above" if margin.worse == "lower" else "below"
+        bad = "below" if margin.worse == "lower" else "above"
+        claim = f"{first} is not worse than {second} by more than {size}"
+        if case == "better":
+            return (f"At the {alpha} level, {claim}, and is shown to be better: {ci}, lies wholly "
+                    f"{good} {zero}.")
+        if case == "not_worse":
+            return f"At the {alpha} level, {claim}: {ci}, lies wholly {good} the margin {bound}."
+        if case == "worse":
+            return (f"At the {alpha} level, {first} is worse than {second} by more than {size}: "
+                    f"{ci}, lies wholly {bad} the margin {bound}.")
+        return (f"At the {alpha} level it is not shown that {claim}: {ci}, reaches {bad} the "
+                f"margin {bound}. Nor is it shown to be worse by more than that: the interval "
+                "reaches the other side of the margin too.")
