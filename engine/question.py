@@ -144,6 +144,19 @@ class Margin:
         scale = abs(reference) / 100.0
         return Margin(self.low * scale, self.high * scale, "units", self.worse)
 
+    def note(self, reference_mean: float | None = None) -> str:
+        """How the margin was entered, for a result's method: "the margin -0.5 to 0.5 in the
+        measurement's units", "the margin -5% to 5% of group 2's mean 8.4, that is -0.42 to 0.42
+        in the measurement's units", "the margin 0.8 to 1.25 as a ratio"."""
+        ends = f"{self.low:g} to {self.high:g}"
+        if self.unit == "ratio":
+            return f"the margin {ends} as a ratio"
+        if self.unit == "units":
+            return f"the margin {ends} in the measurement's units"
+        units = self.in_units(reference_mean)
+        return (f"the margin {self.low:g}% to {self.high:g}% of group 2's mean {reference_mean:.6g}, "
+                f"that is {units.low:.6g} to {units.high:.6g} in the measurement's units")
+
     def to_dict(self) -> dict[str, Any]:
         return {"low": self.low, "high": self.high, "unit": self.unit, "worse": self.worse}
 
