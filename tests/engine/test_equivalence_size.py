@@ -24,8 +24,9 @@ def _rejection_rate(seed, n1, n2, sd1, sd2, low, high, true_difference):
 
 
 @pytest.mark.parametrize("n1, n2, sd1, sd2, low, high, at", [
-    (6, 9, 1.0, 3.0, -1.0, 1.0, "high"),
-    (12, 7, 2.5, 1.0, -0.8, 1.5, "low"),
+    (6, 9, 1.0, 3.0, -5.0, 5.0, "high"),    # margin wide against the standard error: near alpha
+    (12, 7, 2.5, 1.0, -4.0, 6.0, "low"),
+    (6, 9, 1.0, 3.0, -1.0, 1.0, "high"),    # margin narrow: far below alpha
 ])
 def test_small_samples_reject_at_most_alpha_on_the_margin(n1, n2, sd1, sd2, low, high, at):
     # the two one-sided tests are an intersection-union test of size at most alpha (Berger and
@@ -33,6 +34,8 @@ def test_small_samples_reject_at_most_alpha_on_the_margin(n1, n2, sd1, sd2, low,
     # within three Monte Carlo standard errors)
     rate = _rejection_rate(11, n1, n2, sd1, sd2, low, high, high if at == "high" else low)
     assert rate <= ALPHA + 3 * SE
+    if high - low > 5:
+        assert rate >= ALPHA - 4 * SE  # not conservative where the other end is far away
 
 
 @pytest.mark.parametrize("true_difference", [-0.3, 0.3])
