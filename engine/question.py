@@ -220,8 +220,8 @@ def _ends(interval: Interval) -> tuple[float, float]:
 
 
 def _percent(fraction: float) -> str:
-    from .report.numbers import level_text  # the report imports the registry, which imports this
-    return level_text(fraction)
+    """A level or an alpha as a percentage: 0.05 -> "5%", 0.975 -> "97.5%"."""
+    return f"{round(fraction * 100, 6):.10g}%"
 
 
 @dataclass(frozen=True)
