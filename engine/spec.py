@@ -19,7 +19,7 @@ from dataclasses import dataclass, field, fields, replace
 from typing import Any, Mapping
 
 from .errors import OptionProblem, quoted
-from .question import Question
+from .question import Margin, Question
 
 __all__ = ["AnalysisSpec", "Source", "SetAside", "Statements", "LAYOUTS", "RANK_METHODS",
            "RESAMPLES_RANGE", "draw_seed", "SEED_LIMIT"]
@@ -182,7 +182,7 @@ class AnalysisSpec:
             "groups": None if self.groups is None else list(self.groups),
             "set_aside": [{"row": c.row, "column": c.column, "text": c.text, "reason": c.reason}
                           for c in self.set_aside],
-            "question": {"kind": self.question.kind, "level": self.question.level},
+            "question": self.question.to_dict(),
             "resamples": self.resamples,
             "seed": self.seed,
             "statements": {
@@ -245,7 +245,10 @@ def _set_aside(value: Any) -> tuple[SetAside, ...]:
 
 
 def _question(value: Any) -> Question:
-    return Question(**_members(value, "the question", {f.name for f in fields(Question)}))
+    members = dict(_members(value, "the question", {f.name for f in fields(Question)}))
+    if members.get("margin") is not None:
+        members["margin"] = Margin.from_dict(members["margin"])
+    return Question(**members)
 
 
 def _statements(value: Any) -> Statements:
