@@ -1,10 +1,10 @@
 """Equivalence on a published data set against an independent implementation.
 
 The "clinic" data: 30 patients in two groups of 15 (columns var1 and var2 of the data set as it
-ships with the statsmodels test suite, statsmodels/stats/tests/test_tost.py), with the values of
-R's ``equivalence::tost`` that the same file records (Welch and pooled, margin +-0.6; and on the
-log scale with margin log 1.25). This is a reference implementation's output on real data, not a
-textbook's worked example.
+ships with the statsmodels test suite, statsmodels/stats/tests/test_tost.py), with the reference
+values of two one-sided tests that the same file records (Welch and pooled, margin +-0.6; and on
+the log scale with margin log 1.25). These are a reference library's recorded values on real data,
+not a textbook's worked example.
 """
 
 import math
@@ -25,18 +25,18 @@ def _split(values):
 
 
 @pytest.mark.parametrize("values, spread, p, low, high, df, case", [
-    # R equivalence::tost(var1[1:15], var1[16:30], eps=0.6): "rejected"
+    # statsmodels test_tost.py reference, var1 split 15/15, margin 0.6: equivalence shown
     (VAR1, "welch", 0.04853083976236974, -0.2666862980722534, 0.596019631405587, 26.7484787582315,
      "equivalent"),
     # the same with var.equal = TRUE
     (VAR1, "pooled", 0.04827315100761467, -0.2659960620757337, 0.595329395409067, 28, "equivalent"),
-    # R equivalence::tost(var2[1:15], var2[16:30], eps=0.6): "not rejected"
+    # statsmodels test_tost.py reference, var2 split 15/15, margin 0.6: equivalence not shown
     (VAR2, "welch", 0.4317936812594803, 0.194916250699966, 0.930417082633366, 24.11000151062728,
      "different_not_equivalent"),
     (VAR2, "pooled", 0.43169347692374, 0.1969453064978777, 0.928388026835454, 28,
      "different_not_equivalent"),
 ])
-def test_the_clinic_data_match_rs_equivalence_package(values, spread, p, low, high, df, case):
+def test_the_clinic_data_match_the_recorded_reference(values, spread, p, low, high, df, case):
     x, y = _split(values)
     result = equivalence_t(x, y, low=-0.6, high=0.6, spread=spread)
     assert result.p_value == pytest.approx(p, rel=1e-9)
@@ -51,7 +51,7 @@ def test_the_clinic_data_match_rs_equivalence_package(values, spread, p, low, hi
 
 
 def test_the_clinic_data_on_the_log_scale_match_rs_equivalence_package():
-    # R equivalence::tost(log(var1[1:15]), log(var1[16:30]), eps=log(1.25)): "rejected"
+    # statsmodels test_tost.py reference, log(var1) split 15/15, margin log 1.25: equivalence shown
     x, y = _split(VAR1)
     result = equivalence_log_t(x, y, low=0.8, high=1.25)
     assert result.p_value == pytest.approx(0.01047085593138891, rel=1e-9)
