@@ -25,8 +25,8 @@ from ._checks import check_alternative, check_confidence_level, check_sample
 from .equivalence import _check_margin
 from .resampling import BOOTSTRAP_MIN_N, _check_resamples, _check_rng
 
-__all__ = ["paired_differences", "paired_t", "paired_equivalence", "paired_bootstrap_mean",
-           "NAMES"]
+__all__ = ["paired_differences", "paired_values", "corrected_mean", "paired_t",
+           "paired_equivalence", "paired_bootstrap_mean", "NAMES"]
 
 # The plain name of each procedure in this module.
 NAMES = frozen_mapping({
@@ -41,6 +41,11 @@ _BATCH_INDICES = 4_000_000
 
 def paired_differences(x: Any, y: Any, *, minimum: int = 2) -> np.ndarray:
     """``x - y`` pair by pair after checking both lists are numbers of the same length."""
+    return paired_values(x, y, minimum=minimum)[2]
+
+
+def paired_values(x: Any, y: Any, *, minimum: int = 2) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Both checked lists as float arrays and their differences ``x - y`` pair by pair."""
     first = check_sample(x, name="group 1", minimum=minimum)
     second = check_sample(y, name="group 2", minimum=minimum)
     if first.size != second.size:
@@ -50,10 +55,10 @@ def paired_differences(x: Any, y: Any, *, minimum: int = 2) -> np.ndarray:
         d = first - second
     if not np.all(np.isfinite(d)):
         raise DataProblem("A pair's difference is too large to hold in a computer float.")
-    return d
+    return first, second, d
 
 
-def _mean(d: np.ndarray) -> float:
+def corrected_mean(d: np.ndarray) -> float:
     """Mean with one correction step (the mean of the deviations from the first mean)."""
     centre = float(d.mean())
     return centre + float((d - centre).mean())
@@ -61,7 +66,7 @@ def _mean(d: np.ndarray) -> float:
 
 def _moments(d: np.ndarray) -> tuple[float, float, float]:
     """Mean, SD and standard error of the differences; refuse differences with no spread."""
-    mean, sd = _mean(d), centred_sd(d)
+    mean, sd = corrected_mean(d), centred_sd(d)
     if not sd > 0:
         raise DataProblem("Every pair differs by the same amount, so the differences have no "
                           "spread and the t-tests on them cannot be computed.")
@@ -145,7 +150,7 @@ def paired_bootstrap_mean(x: Any, y: Any, *, alternative: str = "two-sided",
     rng = _check_rng(rng)
     d = paired_differences(x, y)
     n = d.size
-    centre = _mean(d)
+    centre = corrected_mean(d)
     centred = d - centre  # resampled means of small deviations keep their digits
     replicates = np.empty(n_resamples)
     rows = max(1, _BATCH_INDICES // n)
