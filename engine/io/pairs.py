@@ -106,9 +106,11 @@ def _value_problem(table: Table, columns: tuple[str, str], names: tuple[str, str
     bad = [(name, state, text) for name, (state, text) in zip(names, states) if state != "ok"]
     if any(state == "non_numeric" for _, state, _ in bad):
         name, _, text = next(b for b in bad if b[1] == "non_numeric")
+        column, row = next((c, r) for c, r, n in zip(columns, frame_rows, names) if n == name)
+        what = "is infinite" if np.isinf(table.numbers(column)[row]) else "is not a number"
         return PairProblem("non_numeric", pair_id, file_rows,
-                           f"{who}{where}: the '{quoted(name)}' value '{quoted(text)}' is not a "
-                           f"number; the pair was left out.")
+                           f"{who}{where}: the '{quoted(name)}' value '{quoted(text)}' {what}; "
+                           f"the pair was left out.")
     named = " and ".join(f"'{quoted(name)}'" for name, _, _ in bad)
     return PairProblem("partner_missing", pair_id, file_rows,
                        f"{who}{where}: the {named} value {'is' if len(bad) == 1 else 'are'} "

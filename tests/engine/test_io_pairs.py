@@ -100,6 +100,7 @@ WIDE = """plot,after,before
 4,12.6,n/a
 5,12.9,heavy
 6,11.0,10.5
+7,inf,10.0
 ,,
 """
 
@@ -109,7 +110,9 @@ def test_wide_layout_pairs_row_by_row(tmp_path):
     np.testing.assert_allclose(result.differences, [0.6, 0.2, 0.5], rtol=1e-12)
     assert result.pair_ids == ("row 2", "row 3", "row 7")
     kinds = [(p.kind, p.file_rows) for p in result.problems]
-    assert kinds == [("partner_missing", (4,)), ("partner_missing", (5,)), ("non_numeric", (6,))]
+    assert kinds == [("partner_missing", (4,)), ("partner_missing", (5,)), ("non_numeric", (6,)),
+                     ("non_numeric", (8,))]
+    assert "'inf' is infinite" in result.problems[3].text
     assert "'after' value is blank" in result.problems[0].text
     assert "'before' value is blank" in result.problems[1].text
     assert "'heavy'" in result.problems[2].text
