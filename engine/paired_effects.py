@@ -18,9 +18,9 @@ from typing import Any
 from .errors import DataProblem
 from .noncentral_t import BY_INTEGRAL, limits_or_problem
 from .procedures._checks import check_alternative, check_confidence_level
-from .procedures.paired import corrected_mean, paired_values
+from .procedures.paired import paired_values, scaled_moments
 from .results import EffectSize, Interval
-from .stats_basics import centred_sd
+from .stats_basics import centred_sd, common_scale
 
 __all__ = ["paired_d_z", "paired_d_av", "paired_effect_sizes"]
 
@@ -29,16 +29,16 @@ _D_AV = "d over the average SD of the two groups (d_av)"
 
 
 def _d_z_parts(x: Any, y: Any, confidence_level: float, alternative: str):
+    """The checked inputs, and the mean and SD of the differences in units of ``scale``."""
     level = check_confidence_level(confidence_level)
     alternative = check_alternative(alternative)
     first, second, d = paired_values(x, y)
-    n = d.size
-    mean, sd = corrected_mean(d), centred_sd(d)
+    mean, sd, scale = scaled_moments(d)
     if not sd > 0:
         raise DataProblem("Every pair differs by the same amount, so the differences have no "
                           "spread and a standardised difference of pairs is not defined.")
-    t = mean / sd * math.sqrt(n)
-    return first, second, d, level, alternative, mean, sd, t
+    t = mean / sd * math.sqrt(d.size)
+    return first, second, d, level, alternative, mean, sd, scale, t
 
 
 def paired_d_z(x: Any, y: Any, *, confidence_level: float = 0.95,
@@ -59,7 +59,8 @@ def paired_d_z(x: Any, y: Any, *, confidence_level: float = 0.95,
     interval estimation and the evaluation of statistical models. In What If There Were No
     Significance Tests?, Erlbaum, 221-257.
     """
-    _, _, d, level, alternative, mean, sd, t = _d_z_parts(x, y, confidence_level, alternative)
+    _, _, d, level, alternative, mean, sd, scale, t = _d_z_parts(x, y, confidence_level,
+                                                                 alternative)
     n = d.size
     nc_low, nc_high, integrated = limits_or_problem(_D_Z, t, n - 1, level, alternative)
     root_n = math.sqrt(n)
@@ -69,7 +70,7 @@ def paired_d_z(x: Any, y: Any, *, confidence_level: float = 0.95,
         method=("mean of the pair differences over their standard deviation; interval from "
                 "the noncentral t distribution with n - 1 degrees of freedom (exact for "
                 "bell-shaped differences)" + (BY_INTEGRAL if integrated else "")),
-        details=dict(pairs=int(n), df=n - 1, t=t, sd_of_differences=sd,
+        details=dict(pairs=int(n), df=n - 1, t=t, sd_of_differences=sd * scale,
                      noncentrality_interval=(nc_low, nc_high),
                      interval_by_integration=integrated),
     )
@@ -89,10 +90,13 @@ def paired_d_av(x: Any, y: Any, *, confidence_level: float = 0.95,
     Educational and Psychological Measurement 63(4), 537-553). Its coverage is close to the
     stated level when the two groups' SDs are alike (checked by simulation in the tests).
     """
-    first, second, d, level, alternative, mean, sd, t = _d_z_parts(x, y, confidence_level,
-                                                                   alternative)
-    sd_1, sd_2 = centred_sd(first), centred_sd(second)
+    first, second, d, level, alternative, mean, sd, scale, t = _d_z_parts(
+        x, y, confidence_level, alternative)
+    # one power of two for both groups and the differences, so no ratio below overflows
+    common = common_scale(first, second, d)
+    sd_1, sd_2 = centred_sd(first / common), centred_sd(second / common)
     average = (sd_1 + sd_2) / 2
+    mean, sd = mean * (scale / common), sd * (scale / common)
     if not average > 0:
         raise DataProblem("Every value within each group is the same, so the average standard "
                           "deviation is zero and d over the average SD is not defined.")
@@ -106,8 +110,9 @@ def paired_d_av(x: Any, y: Any, *, confidence_level: float = 0.95,
                 "deviations; approximate interval: the noncentral t interval of d_z rescaled "
                 "by the ratio of the SD of the differences to the average SD, that ratio taken "
                 "as known" + (BY_INTEGRAL if integrated else "")),
-        details=dict(pairs=int(n), sd_1=sd_1, sd_2=sd_2, average_sd=average,
-                     sd_of_differences=sd, interval_approximate=True,
+        details=dict(pairs=int(n), sd_1=sd_1 * common, sd_2=sd_2 * common,
+                     average_sd=average * common, sd_of_differences=sd * common,
+                     interval_approximate=True,
                      interval_by_integration=integrated),
     )
 

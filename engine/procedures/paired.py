@@ -20,12 +20,14 @@ import numpy as np
 
 from ..errors import DataProblem, OptionProblem
 from ..results import Interval, ProcedureResult, frozen_mapping
-from ..stats_basics import StudentT, centred_sd, critical_value, quantiles, statistic_p, tail_alpha
+from ..stats_basics import (StudentT, centred_sd, common_scale, critical_value, quantiles,
+                           statistic_p, tail_alpha)
 from ._checks import check_alternative, check_confidence_level, check_sample
 from .equivalence import _check_margin
 from .resampling import BOOTSTRAP_MIN_N, _check_resamples, _check_rng
 
-__all__ = ["paired_differences", "paired_values", "corrected_mean", "paired_t",
+__all__ = ["paired_differences", "paired_values", "corrected_mean", "scaled_moments",
+           "paired_t",
            "paired_equivalence", "paired_bootstrap_mean", "NAMES"]
 
 # The plain name of each procedure in this module.
@@ -59,18 +61,33 @@ def paired_values(x: Any, y: Any, *, minimum: int = 2) -> tuple[np.ndarray, np.n
 
 
 def corrected_mean(d: np.ndarray) -> float:
-    """Mean with one correction step (the mean of the deviations from the first mean)."""
+    """Mean with one correction step (the mean of the deviations from the first mean); values
+    near the ends of the float range are divided by a power of two first
+    (:func:`engine.stats_basics.common_scale`), so their sum cannot overflow."""
+    scale = common_scale(d)
+    if scale != 1.0:
+        return corrected_mean(d / scale) * scale
     centre = float(d.mean())
     return centre + float((d - centre).mean())
 
 
+def scaled_moments(d: np.ndarray) -> tuple[float, float, float]:
+    """Mean and SD of the differences in units of ``scale`` (a power of two,
+    :func:`engine.stats_basics.common_scale`), and ``scale``: their ratio is right even where
+    the SD itself would overflow. SD 0 where every difference is the same."""
+    scale = common_scale(d)
+    scaled = d / scale if scale != 1.0 else d
+    return corrected_mean(scaled), centred_sd(scaled), scale
+
+
 def _moments(d: np.ndarray) -> tuple[float, float, float]:
-    """Mean, SD and standard error of the differences; refuse differences with no spread."""
-    mean, sd = corrected_mean(d), centred_sd(d)
+    """Mean, standard error (both in units of ``scale``) and ``scale``; refuse differences
+    with no spread."""
+    mean, sd, scale = scaled_moments(d)
     if not sd > 0:
         raise DataProblem("Every pair differs by the same amount, so the differences have no "
                           "spread and the t-tests on them cannot be computed.")
-    return mean, sd, sd / math.sqrt(d.size)
+    return mean, sd / math.sqrt(d.size), scale
 
 
 def paired_t(x: Any, y: Any, *, alternative: str = "two-sided",
@@ -83,21 +100,21 @@ def paired_t(x: Any, y: Any, *, alternative: str = "two-sided",
     alternative = check_alternative(alternative)
     level = check_confidence_level(confidence_level)
     d = paired_differences(x, y)
-    mean, sd, se = _moments(d)
+    mean, se, scale = _moments(d)
     df = float(d.size - 1)
     distribution = StudentT(df)
     statistic = mean / se
     critical = critical_value(level, alternative, distribution)
-    interval = Interval.for_alternative(mean - critical * se, mean + critical * se, level,
-                                        alternative)
+    interval = Interval.for_alternative((mean - critical * se) * scale,
+                                        (mean + critical * se) * scale, level, alternative)
     return ProcedureResult(
-        key="paired_t", name=NAMES["paired_t"], estimate=mean,
+        key="paired_t", name=NAMES["paired_t"], estimate=mean * scale,
         estimate_name="mean of the pair differences", statistic=statistic, statistic_name="t",
         df=df, p_value=statistic_p(statistic, alternative, distribution), interval=interval,
         alternative=alternative,
         method="one-sample t-test of the pair differences (group 1 minus group 2)",
-        details=dict(pairs=int(d.size), sd_of_differences=sd, standard_error=se,
-                     critical_value=critical),
+        details=dict(pairs=int(d.size), sd_of_differences=se * math.sqrt(d.size) * scale,
+                     standard_error=se * scale, critical_value=critical),
     )
 
 
@@ -151,14 +168,15 @@ def paired_bootstrap_mean(x: Any, y: Any, *, alternative: str = "two-sided",
     d = paired_differences(x, y)
     n = d.size
     centre = corrected_mean(d)
-    centred = d - centre  # resampled means of small deviations keep their digits
+    scale = common_scale(d)  # a power of two: nothing below overflows, and it divides exactly
+    centred = d / scale - centre / scale  # resampled means of small deviations keep their digits
     replicates = np.empty(n_resamples)
     rows = max(1, _BATCH_INDICES // n)
     for start in range(0, n_resamples, rows):
         stop = min(start + rows, n_resamples)
         index = rng.integers(0, n, (stop - start, n))
         replicates[start:stop] = centred[index].mean(axis=1)
-    replicates += centre
+    replicates = (replicates + centre / scale) * scale  # within the range of the differences
     tail = tail_alpha(level, alternative)
     low, high = quantiles(replicates, (tail, 1 - tail))
     warnings = ()

@@ -149,3 +149,37 @@ def test_paired_bootstrap_interval_covers_near_the_stated_level():
         result = paired_bootstrap_mean(d, np.zeros(n), n_resamples=1_000, rng=rng)
         covered += result.interval.contains(0.5)
     assert 0.925 <= covered / runs <= 0.965
+
+
+@pytest.mark.parametrize("power", [1000, -1000])
+def test_values_near_the_ends_of_the_float_range(power):
+    # the statistic and d_z do not depend on the unit: scaled by 2**power (exact) they match
+    # the unscaled ones, which are checked against scipy above; no numpy warning on the way
+    import warnings
+
+    from engine.paired_effects import paired_d_z
+
+    x, y = _pairs(21, n=9)
+    plain_t, plain_d = paired_t(x, y), paired_d_z(x, y)
+    factor = 2.0**power
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        big_t = paired_t(x * factor, y * factor)
+        big_d = paired_d_z(x * factor, y * factor)
+        boot = paired_bootstrap_mean(x * factor, y * factor, n_resamples=200,
+                                     rng=np.random.default_rng(1))
+    assert big_t.statistic == pytest.approx(plain_t.statistic, rel=1e-12)
+    assert big_t.p_value == pytest.approx(plain_t.p_value, rel=1e-12)
+    assert big_t.interval.low == pytest.approx(plain_t.interval.low * factor, rel=1e-12)
+    assert big_d.value == pytest.approx(plain_d.value, rel=1e-12)
+    d = (x - y) * factor
+    assert d.min() <= boot.interval.low <= boot.interval.high <= d.max()
+
+
+def test_differences_that_overflow_the_sd_keep_a_finite_t():
+    # the SD of these differences exceeds the largest float, but mean / SD does not: computed
+    # in units of 2**1023 (hand check: the same t as for the values divided by 2**1023)
+    x, y = np.array([1.7e308, 1.6e308, -1.5e308]), np.array([0.0, 0.0, 1.0])
+    unit = 2.0**1023
+    assert paired_t(x, y).statistic == pytest.approx(
+        stats.ttest_rel(x / unit, y / unit).statistic, rel=1e-12)
