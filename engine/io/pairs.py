@@ -122,8 +122,8 @@ def _finish(table: Table, labels: tuple[str, str], columns: tuple[str, str], ids
             none_found: str) -> PairedIntake:
     if not ids:
         raise DataProblem(none_found)
-    x = np.array([table.numbers(columns[0])[a] for a, _ in frame_rows], dtype=float)
-    y = np.array([table.numbers(columns[1])[b] for _, b in frame_rows], dtype=float)
+    rows = np.array(frame_rows, dtype=np.intp).reshape(-1, 2)
+    x, y = table.numbers(columns[0])[rows[:, 0]], table.numbers(columns[1])[rows[:, 1]]
     with np.errstate(over="ignore"):
         d = x - y
     problems.sort(key=lambda p: (min(p.file_rows) if p.file_rows else 0, p.kind))
@@ -149,17 +149,15 @@ def pairs_by_row(table: Table, *, columns: tuple[str, str]) -> PairedIntake:
         _check_columns(table, columns)
         for column in columns:
             _check_measurements(table, column)
-        ids, frame_rows, problems = [], [], []
-        for row in range(len(table.frame)):
+        ok = np.isfinite(table.numbers(columns[0])) & np.isfinite(table.numbers(columns[1]))
+        problems = []
+        for row in np.flatnonzero(~ok).tolist():
             states = [_cell_state(table, c, row)[0] for c in columns]
-            if states == ["missing", "missing"]:
-                continue
-            problem = _value_problem(table, columns, columns, (row, row), None)
-            if problem is not None:
-                problems.append(problem)
-                continue
-            ids.append(f"row {table.file_row(row)}")
-            frame_rows.append((row, row))
+            if states != ["missing", "missing"]:
+                problems.append(_value_problem(table, columns, columns, (row, row), None))
+        good = np.flatnonzero(ok).tolist()
+        ids = [f"row {table.file_row(row)}" for row in good]
+        frame_rows = [(row, row) for row in good]
         return _finish(table, columns, columns, ids, frame_rows, problems,
                        f"No row of {name} holds a number in both '{quoted(columns[0])}' and "
                        f"'{quoted(columns[1])}', so there are no pairs.")
@@ -207,13 +205,14 @@ def pairs_by_id(table: Table, *, values: str, group: str, pair_id: str,
 
 
 def _pair_long(table, name, values, group, pair_id, pick, rows_of) -> PairedIntake:
-    id_cells = table.frame[pair_id]
+    id_cells = table.frame[pair_id].to_numpy(dtype=object)
+    usable = np.isfinite(table.numbers(values))
     problems: list[PairProblem] = []
     by_group: list[dict[str, list[int]]] = []
     for label, rows in zip(pick, rows_of):
         seen: dict[str, list[int]] = {}
-        for row in rows.tolist():
-            text = cell_text(id_cells.iat[row]).strip()
+        for row, cell in zip(rows.tolist(), id_cells[rows].tolist()):
+            text = cell_text(cell).strip()
             if not text:
                 problems.append(PairProblem(
                     "no_id", None, (table.file_row(row),),
@@ -247,9 +246,8 @@ def _pair_long(table, name, values, group, pair_id, pick, rows_of) -> PairedInta
     ids, frame_rows = [], []
     for key in matched:
         rows = (first[key][0], second[key][0])
-        problem = _value_problem(table, (values, values), pick, rows, key)
-        if problem is not None:
-            problems.append(problem)
+        if not (usable[rows[0]] and usable[rows[1]]):
+            problems.append(_value_problem(table, (values, values), pick, rows, key))
             continue
         ids.append(key)
         frame_rows.append(rows)
