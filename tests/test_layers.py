@@ -25,8 +25,9 @@ LAYERS: tuple[tuple[str, ...], ...] = (
      "engine.tasks"),
     # what the user asks and decided: plain records the analysis reads
     ("engine.question", "engine.spec"),
-    # the shared statistics rules (SD, quartiles, fences, tails), a root finder, Shapiro-Wilk
-    ("engine.stats_basics", "engine.root_finding", "engine.shapiro_wilk"),
+    # the shared statistics rules (SD, quartiles, fences, tails), a root finder, Shapiro-Wilk,
+    # the noncentral t limits
+    ("engine.stats_basics", "engine.root_finding", "engine.shapiro_wilk", "engine.noncentral_t"),
     # statistics helpers of one group (sorted values, the common scale, SD), also used by io
     ("engine.summary",),
     # from a file to a table and two groups; the package's front last, so io's own modules
@@ -37,7 +38,7 @@ LAYERS: tuple[tuple[str, ...], ...] = (
     ("engine.procedures", "engine.procedures.*"),
     ("engine.procedures.registry",),
     # what the data look like, and effect sizes built on the procedures
-    ("engine.diagnostics", "engine.effects"),
+    ("engine.diagnostics", "engine.effects", "engine.paired_effects"),
     # the suggested procedure from the checks
     ("engine.advice",),
     # every part of one comparison together

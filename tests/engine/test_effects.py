@@ -351,7 +351,7 @@ def test_the_triplicate_limits_agree_with_scipy_at_both_ends():
 def test_the_integral_matches_scipy_where_scipy_answers():
     # reference: scipy.special.nctdtr (Boost's series) over a grid of ordinary values; the
     # integral that stands in where the series gives NaN must agree with it where it does not
-    from engine.effects import _nct_cdf_integral
+    from engine.noncentral_t import nct_cdf_integral as _nct_cdf_integral
     from scipy import special
 
     rng = np.random.default_rng(5)
@@ -369,7 +369,7 @@ def test_a_huge_t_gives_the_chi_square_limits(t):
     # reference: theory: T = (Z + nc) / S, so nc = t S - Z; as |t| grows nc / t at the limits
     # tends to the quantiles of S = sqrt(chi2_df / df) (scipy.stats.chi2.ppf), and the limits
     # keep the order of the cdf (scipy gives NaN here, so the integral is used)
-    from engine.effects import _noncentrality_limits
+    from engine.noncentral_t import noncentrality_limits as _noncentrality_limits
 
     df, tail = 4, 0.025
     low, high, integrated = _noncentrality_limits(t, df, tail)
@@ -383,7 +383,7 @@ def test_a_huge_t_gives_the_chi_square_limits(t):
 
 def test_the_limits_follow_the_observed_t_without_gaps():
     # the limits must rise with t: a gap or a reversal would show a root found on the wrong side
-    from engine.effects import _noncentrality_limits
+    from engine.noncentral_t import noncentrality_limits as _noncentrality_limits
 
     previous = None
     for t in np.concatenate([-np.logspace(4, -1, 30), np.logspace(-1, 4, 30)]):
