@@ -113,6 +113,7 @@ class _Pool:
         self.k = min(self.n1, self.n2)
         self.marks_group_1 = self.n1 <= self.n2
         self.statistic = statistic
+        self._latest = np.empty(0, dtype=np.int32)  # scratch of random_masks
         pooled = np.concatenate((x, y))
         self.n_bytes = -(-self.n // 8)
         if statistic == "mean":
@@ -212,7 +213,12 @@ class _Pool:
         excess = _POPCOUNT[masks].sum(axis=1, dtype=np.int64) - k
         flat = masks.reshape(-1)
         active = np.flatnonzero(excess)
-        latest = np.empty(rows * n, dtype=np.int32)  # scratch: which attempt hit each position
+        # scratch: which attempt hit each (row, position); kept for the next batch, as a fresh
+        # one would cost a page fault per 4 KB touched (stale entries are overwritten before
+        # they are read)
+        if self._latest.size < rows * n:
+            self._latest = np.empty(rows * n, dtype=np.int32)
+        latest = self._latest
         while active.size:
             # |excess| attempts per row at once; a repeated position counts once, as it would
             # if the attempts were made one after another (the repeat would find it changed)

@@ -70,6 +70,18 @@ def test_random_relabellings_keep_the_size_for_large_uneven_groups():
         assert np.all(np.unpackbits(masks, axis=1).sum(axis=1) == min(n1, n2))
 
 
+def test_random_relabellings_do_not_depend_on_earlier_batches():
+    # the pool keeps its scratch from batch to batch: the same draws with a fresh pool for each
+    # batch give the same masks (direct comparison); larger batches first, so stale entries are
+    # left in the scratch, and uneven sizes, so the corrections run several rounds
+    for n1, n2 in ((700, 1300), (1000, 1000), (13, 40)):
+        rng, fresh = np.random.default_rng(n2), np.random.default_rng(n2)
+        pool = _Pool(np.zeros(n1), np.ones(n2), "mean")
+        for rows in (300, 120, 7):
+            again = _Pool(np.zeros(n1), np.ones(n2), "mean").random_masks(fresh, rows)
+            np.testing.assert_array_equal(pool.random_masks(rng, rows), again)
+
+
 # --- exact permutation p-values ---------------------------------------------------------------
 
 @pytest.mark.parametrize("statistic", ["mean", "median"])
