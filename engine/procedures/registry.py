@@ -61,14 +61,17 @@ class Context:
 
     ``sorted_x``/``sorted_y``: each group sorted once for every step; ``rng``: the one random
     source of the analysis (the resampling procedures draw from it in the registry's order);
-    ``task``: this procedure's share of the analysis's progress and cancelling. What the user
-    stated (known SDs among it) is in the spec each run is given with the context.
+    ``task``: this procedure's share of the analysis's progress and cancelling;
+    ``shared_draws``: random relabellings the permutation tests of the analysis share (the
+    first draws them from ``rng``, the next uses them). What the user stated (known SDs among
+    it) is in the spec each run is given with the context.
     """
 
     sorted_x: np.ndarray
     sorted_y: np.ndarray
     rng: np.random.Generator
     task: Task = field(default_factory=Task)
+    shared_draws: dict = field(default_factory=dict)
 
 
 def _common(spec: AnalysisSpec) -> dict[str, Any]:
@@ -91,10 +94,11 @@ def _ranked(spec: AnalysisSpec, context: Context) -> dict[str, Any]:
     return dict(_sorted(spec, context), method=spec.rank_method, cancelled=context.task.cancelled)
 
 
-def _resampled(statistic: str) -> Callable[[AnalysisSpec, Context], dict[str, Any]]:
+def _resampled(statistic: str, kind: str) -> Callable[[AnalysisSpec, Context], dict[str, Any]]:
     def arguments(spec: AnalysisSpec, context: Context) -> dict[str, Any]:
+        shared = dict(shared_draws=context.shared_draws) if kind == "permutation" else {}
         return dict(_common(spec), statistic=statistic, n_resamples=spec.resamples,
-                    rng=context.rng, progress=context.task)
+                    rng=context.rng, progress=context.task, **shared)
     return arguments
 
 
@@ -201,7 +205,7 @@ def _resampling(key: str, kind: str, statistic: str, assumption: str) -> Procedu
     return Procedure(
         key=key, name=resampling.NAMES[key], family="resampling", module=resampling,
         function="permutation_test" if permutation else "bootstrap_interval",
-        arguments=_resampled(statistic), estimate_name=f"difference in {statistic}s",
+        arguments=_resampled(statistic, kind), estimate_name=f"difference in {statistic}s",
         estimate_kind=statistic, effect_sizes=_MEAN_EFFECTS if statistic == "mean" else _ORDER_EFFECTS,
         assumption=assumption, resampled=kind, exchangeable=permutation, votes=permutation,
         not_voting_because=None if permutation else INTERVAL_ONLY_NOTE,

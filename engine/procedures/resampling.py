@@ -53,6 +53,9 @@ BOOTSTRAP_MIN_N = 10
 
 # A batch holds about this many bytes of bit masks (permutation) or indices (bootstrap).
 _BATCH_BYTES = 1 << 22
+# Random relabellings up to this many bytes of masks are kept for the next permutation test of
+# the same analysis (see ``_random_batches``); larger sets are drawn again.
+_SHARED_BYTES = 1 << 28
 # Two statistics closer than this, relative to the data's scale, count as a tie.
 _TIE_TOLERANCE = 1e-12
 
@@ -113,6 +116,7 @@ class _Pool:
         self.k = min(self.n1, self.n2)
         self.marks_group_1 = self.n1 <= self.n2
         self.statistic = statistic
+        self._latest = np.empty(0, dtype=np.int32)  # scratch of random_masks
         pooled = np.concatenate((x, y))
         self.n_bytes = -(-self.n // 8)
         if statistic == "mean":
@@ -212,7 +216,12 @@ class _Pool:
         excess = _POPCOUNT[masks].sum(axis=1, dtype=np.int64) - k
         flat = masks.reshape(-1)
         active = np.flatnonzero(excess)
-        latest = np.empty(rows * n, dtype=np.int32)  # scratch: which attempt hit each position
+        # scratch: which attempt hit each (row, position); kept for the next batch, as a fresh
+        # one would cost a page fault per 4 KB touched (stale entries are overwritten before
+        # they are read)
+        if self._latest.size < rows * n:
+            self._latest = np.empty(rows * n, dtype=np.int32)
+        latest = self._latest
         while active.size:
             # |excess| attempts per row at once; a repeated position counts once, as it would
             # if the attempts were made one after another (the repeat would find it changed)
@@ -240,6 +249,33 @@ class _Pool:
             if members.size == 0:
                 return
             yield self.pack(members.reshape(-1, self.k))
+
+
+def _random_batches(pool: _Pool, rng: np.random.Generator, total: int, batch: int,
+                    shared_draws: dict | None):
+    """``total`` random masks of ``pool`` in batches.
+
+    With ``shared_draws`` (a dict the permutation tests of one analysis hold in common) the
+    masks drawn for one test are kept, and the next test of the same group sizes and count takes
+    them instead of drawing its own. A mask is a uniformly random k-subset of the n positions,
+    whatever the values at those positions, so it serves a pool of either statistic: each test
+    still sees uniformly random relabellings of its own values (the mean's pool holds them in
+    the order given, the median's sorted, so the two tests pair positions with values
+    differently).
+    """
+    key = ("random relabellings", pool.n1, pool.n2, total)
+    if shared_draws is not None and key in shared_draws:
+        yield from shared_draws.pop(key)
+        return
+    keep = shared_draws is not None and total * pool.n_bytes <= _SHARED_BYTES
+    drawn = []
+    for start in range(0, total, batch):
+        masks = pool.random_masks(rng, min(batch, total - start))
+        if keep:
+            drawn.append(masks)
+        yield masks
+    if keep:  # only once all are drawn: a test stopped half-way leaves nothing behind
+        shared_draws[key] = drawn
 
 
 def count_extreme(null: np.ndarray, observed: float, alternative: str, tolerance: float) -> int:
@@ -348,6 +384,7 @@ def permutation_test(
     rng: np.random.Generator | None = None,
     progress: Progress | None = None,
     cancelled: CancelCheck | None = None,
+    shared_draws: dict | None = None,
 ) -> ProcedureResult:
     """Permutation test of a difference in means or medians, group 1 minus group 2.
 
@@ -370,6 +407,10 @@ def permutation_test(
         Called after each batch; the last call has fraction 1 (a task maps it onto its slice).
     cancelled : callable() -> bool, optional
         Polled between batches; True raises :class:`engine.errors.Cancelled`.
+    shared_draws : dict, optional
+        A store the permutation tests of one analysis hold in common: the random relabellings
+        drawn by one are used again by the next with the same group sizes and count (the first
+        draws from ``rng``, the next draws nothing). Without it each test draws its own.
 
     Returns
     -------
@@ -426,8 +467,8 @@ def permutation_test(
     batch = max(1, _BATCH_BYTES // (4 * pool.n_bytes))
     null = np.empty(total)
     own = np.empty(total, dtype=np.int64) if statistic == "mean" else None
-    batches = pool.all_masks(batch) if exact else (
-        pool.random_masks(rng, min(batch, total - start)) for start in range(0, total, batch))
+    batches = pool.all_masks(batch) if exact else _random_batches(pool, rng, total, batch,
+                                                                    shared_draws)
     done = 0
     step(0.0)
     for masks in batches:

@@ -63,6 +63,19 @@ def test_the_same_seed_gives_the_same_answer(groups):
     assert first.procedures["bootstrap_mean"].interval == again.procedures["bootstrap_mean"].interval
 
 
+def test_both_permutation_tests_use_one_set_of_relabellings(groups):
+    # the analysis draws the relabellings once, for the test of means (the first to draw from
+    # the seed), and the test of medians uses them: its result is the one permutation_test
+    # gives on its own from that seed (direct comparison)
+    from engine.procedures.resampling import permutation_test
+
+    analysis = analyze(groups, AnalysisSpec(resamples=400, seed=9))
+    alone = permutation_test(groups.x, groups.y, statistic="median", n_resamples=400,
+                             rng=np.random.default_rng(9))
+    np.testing.assert_array_equal(analysis.procedures["permutation_median"].distribution,
+                                  alone.distribution)
+
+
 def test_robustness_rows_follow_the_chosen_level(groups):
     analysis = analyze(groups, AnalysisSpec(question=Question(level=0.99), resamples=300, seed=3))
     for row in analysis.robustness.rows:

@@ -70,6 +70,51 @@ def test_random_relabellings_keep_the_size_for_large_uneven_groups():
         assert np.all(np.unpackbits(masks, axis=1).sum(axis=1) == min(n1, n2))
 
 
+def test_random_relabellings_do_not_depend_on_earlier_batches():
+    # the pool keeps its scratch from batch to batch: the same draws with a fresh pool for each
+    # batch give the same masks (direct comparison); larger batches first, so stale entries are
+    # left in the scratch, and uneven sizes, so the corrections run several rounds
+    for n1, n2 in ((700, 1300), (1000, 1000), (13, 40)):
+        rng, fresh = np.random.default_rng(n2), np.random.default_rng(n2)
+        pool = _Pool(np.zeros(n1), np.ones(n2), "mean")
+        for rows in (300, 120, 7):
+            again = _Pool(np.zeros(n1), np.ones(n2), "mean").random_masks(fresh, rows)
+            np.testing.assert_array_equal(pool.random_masks(rng, rows), again)
+
+
+def test_permutation_tests_share_their_random_relabellings():
+    # direct check: with one store, the median test takes the masks the mean test drew (its
+    # result is the one it gets from the mean's seed on its own) and draws nothing itself;
+    # the store is emptied once they are used
+    rng = np.random.default_rng(31)
+    x, y = rng.normal(1.0, 1, 70), rng.normal(0, 1.5, 90)
+    shared, source = {}, np.random.default_rng(5)
+    permutation_test(x, y, statistic="mean", n_resamples=3_000, rng=source, shared_draws=shared)
+    state = source.bit_generator.state
+    median = permutation_test(x, y, statistic="median", n_resamples=3_000, rng=source,
+                              shared_draws=shared)
+    alone = permutation_test(x, y, statistic="median", n_resamples=3_000,
+                             rng=np.random.default_rng(5))
+    assert source.bit_generator.state == state
+    assert median.p_value == alone.p_value
+    np.testing.assert_array_equal(median.distribution, alone.distribution)
+    assert shared == {}
+    # other group sizes or another count draw their own
+    other = permutation_test(x[:-1], y, statistic="median", n_resamples=3_000, rng=source,
+                             shared_draws={})
+    assert source.bit_generator.state != state and other.details["n_1"] == 69
+
+
+def test_a_stopped_permutation_test_leaves_no_relabellings_behind():
+    shared, asked = {}, []
+    rng = np.random.default_rng(33)
+    with pytest.raises(Cancelled):
+        permutation_test(rng.normal(size=300), rng.normal(size=300), n_resamples=200_000,
+                         rng=rng, shared_draws=shared,
+                         cancelled=lambda: asked.append(True) or len(asked) > 2)
+    assert shared == {}
+
+
 # --- exact permutation p-values ---------------------------------------------------------------
 
 @pytest.mark.parametrize("statistic", ["mean", "median"])
