@@ -11,16 +11,15 @@ from __future__ import annotations
 import bisect
 from dataclasses import dataclass
 from pathlib import Path
-from typing import Any, Callable, Mapping
+from typing import Any, Mapping
 
 from .errors import ColumnProblem, TwofoldError, quoted
 from .spec import AnalysisSpec, SetAside, Source
+from .tasks import CancelCheck, Progress
 
 __all__ = ["Prepared", "read", "source_for", "complete", "form_groups", "source_mapping", "run",
            "from_file", "set_aside_keys", "set_aside_cells"]
 
-Progress = Callable[[float, str], None]
-CancelCheck = Callable[[], bool]
 
 
 @dataclass(frozen=True, eq=False)

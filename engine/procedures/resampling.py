@@ -33,7 +33,8 @@ from ._checks import (
 from ..tasks import CancelCheck, Progress, Task
 from .t import mean_difference
 
-__all__ = ["permutation_test", "bootstrap_interval", "count_extreme", "STATISTICS", "BOOTSTRAP_MIN_N", "NAMES"]
+__all__ = ["permutation_test", "bootstrap_interval", "count_extreme", "byte_sums", "marked_sums",
+           "TIE_TOLERANCE", "EXTREME_WORDS", "STATISTICS", "BOOTSTRAP_MIN_N", "NAMES"]
 
 # The plain name of each procedure in this module (engine.procedures.registry shows them).
 NAMES = frozen_mapping({
@@ -57,7 +58,9 @@ _BATCH_BYTES = 1 << 22
 # the same analysis (see ``_random_batches``); larger sets are drawn again.
 _SHARED_BYTES = 1 << 28
 # Two statistics closer than this, relative to the data's scale, count as a tie.
-_TIE_TOLERANCE = 1e-12
+TIE_TOLERANCE = 1e-12
+# How a resampled statistic T* counts as at least as extreme as the observed T, in words.
+EXTREME_WORDS = {"two-sided": "|T*| >= |T|", "greater": "T* >= T", "less": "T* <= T"}
 
 # Values beyond this size in magnitude are divided by a power of two before the permutation
 # sums: sums and differences of values near the float limit (1.8e308) overflow, and a NaN or
@@ -103,6 +106,22 @@ def _prepare(x, y, statistic, alternative, confidence_level, n_resamples, rng):
 
 # ---------------------------------------------------------------------------- relabellings
 
+def byte_sums(values: np.ndarray) -> np.ndarray:
+    """(blocks, 256): for each block of eight values (the last one padded with zeros) and each
+    byte, the sum of the block's values whose bit the byte sets."""
+    blocks = -(-values.size // 8)
+    padded = np.zeros(blocks * 8)
+    padded[: values.size] = values
+    return padded.reshape(blocks, 8) @ _BIT_OF_BYTE
+
+
+def marked_sums(table: np.ndarray, masks: np.ndarray) -> np.ndarray:
+    """For each row of byte masks, the sum of the values it marks: one look-up in
+    :func:`byte_sums`' table per byte."""
+    offsets = (np.arange(table.shape[0], dtype=np.intp) * 256)[None, :]
+    return np.take(table, masks.astype(np.intp) + offsets).sum(axis=1)
+
+
 class _Pool:
     """The pooled values, the size of the smaller group, and the block tables of the masks.
 
@@ -121,10 +140,7 @@ class _Pool:
         self.n_bytes = -(-self.n // 8)
         if statistic == "mean":
             self.values = pooled - pooled.mean()
-            padded = np.zeros(self.n_bytes * 8)
-            padded[: self.n] = self.values
-            self.table = padded.reshape(self.n_bytes, 8) @ _BIT_OF_BYTE  # (n_bytes, 256)
-            self.offsets = (np.arange(self.n_bytes) * 256)[None, :]
+            self.table = byte_sums(self.values)
             self.total = float(self.table[np.arange(self.n_bytes), 255].sum())
             observed = np.arange(self.n1) if self.marks_group_1 else np.arange(self.n1, self.n)
         else:
@@ -145,7 +161,7 @@ class _Pool:
     # -- statistics of masks
 
     def group_1_sum(self, masks: np.ndarray) -> np.ndarray:
-        marked = np.take(self.table, masks.astype(np.intp) + self.offsets).sum(axis=1)
+        marked = marked_sums(self.table, masks)
         return marked if self.marks_group_1 else self.total - marked
 
     def statistic_of(self, masks: np.ndarray) -> np.ndarray:
@@ -460,7 +476,7 @@ def permutation_test(
     unit = _unit(x, y)
     pool = _Pool(x / unit, y / unit, statistic)
     observed = float(pool.statistic_of(pool.observed_mask)[0])
-    tolerance = _TIE_TOLERANCE * max(pool.scale, abs(observed))
+    tolerance = TIE_TOLERANCE * max(pool.scale, abs(observed))
     splits = math.comb(pool.n, pool.k)
     exact = splits <= n_resamples
     total = splits if exact else n_resamples
@@ -490,7 +506,7 @@ def permutation_test(
     else:
         estimate = _median_difference(x, y)
         estimate_name = "difference in medians"
-    tail = {"two-sided": "|T*| >= |T|", "greater": "T* >= T", "less": "T* <= T"}[alternative]
+    tail = EXTREME_WORDS[alternative]
     if exact:
         method = (f"exact permutation distribution: all {splits} splits of the pooled values; "
                   f"p counts splits with {tail}")

@@ -16,41 +16,26 @@ statistic is one table look-up per eight pairs: sum(s d) = sum(d) - 2 sum(flippe
 from __future__ import annotations
 
 import math
-from typing import Any, Callable
+from typing import Any
 
 import numpy as np
 
-from ..errors import Cancelled, OptionProblem
+from ..errors import OptionProblem
 from ..results import ProcedureResult
+from ..tasks import CancelCheck, Progress, Task
 from ._checks import check_alternative, check_sample
-from .resampling import count_extreme
+from .resampling import EXTREME_WORDS, TIE_TOLERANCE, _check_rng, byte_sums, count_extreme, marked_sums
 
 __all__ = ["sign_flip_test", "flip_means"]
 
-Progress = Callable[[float, str], None]
-CancelCheck = Callable[[], bool]
-
-_TIE_TOLERANCE = 1e-12
 # Patterns per batch: the bytes of a batch and its look-ups stay within a few tens of MB.
 _BATCH_LOOKUPS = 4_000_000
 
 
-def _tables(d: np.ndarray) -> np.ndarray:
-    """(blocks, 256): for block b and byte v, the sum of the block's differences whose bit is set."""
-    blocks = -(-d.size // 8)
-    padded = np.zeros(blocks * 8)
-    padded[: d.size] = d
-    bits = np.unpackbits(np.arange(256, dtype=np.uint8)[:, None], axis=1, bitorder="little")
-    return padded.reshape(blocks, 8) @ bits.T.astype(float)  # (blocks, 256)
-
-
 def flip_means(d: np.ndarray, patterns: np.ndarray, tables: np.ndarray) -> np.ndarray:
-    """Mean of s * d for each row of ``patterns`` (bytes; a set bit flips that pair's sign)."""
-    blocks = tables.shape[0]
-    where = patterns.astype(np.intp)
-    where += (256 * np.arange(blocks, dtype=np.intp))[None, :]
-    flipped = tables.ravel()[where].sum(axis=1)
-    return (d.sum() - 2.0 * flipped) / d.size
+    """Mean of s * d for each row of ``patterns`` (bytes; a set bit flips that pair's sign);
+    ``tables`` is :func:`engine.procedures.resampling.byte_sums` of ``d``."""
+    return (d.sum() - 2.0 * marked_sums(tables, patterns)) / d.size
 
 
 def _every_pattern(n: int, batch: int):
@@ -85,28 +70,27 @@ def sign_flip_test(differences: Any, *, alternative: str = "two-sided", n_resamp
     alternative = check_alternative(alternative)
     if not (isinstance(n_resamples, int) and n_resamples >= 100):
         raise OptionProblem(f"Use at least 100 resamples, not {n_resamples!r}.")
-    rng = rng if rng is not None else np.random.default_rng()
+    rng = _check_rng(rng)
+    task = Task.of(progress, cancelled)
     n = d.size
     unit = float(np.max(np.abs(d))) or 1.0
     scaled = d / unit
-    tables = _tables(scaled)
+    tables = byte_sums(scaled)
     observed = float(scaled.mean())
-    tolerance = _TIE_TOLERANCE * max(1.0, abs(observed))
+    tolerance = TIE_TOLERANCE * max(1.0, abs(observed))
     exact = n < 63 and (1 << n) <= n_resamples
     total = (1 << n) if exact else n_resamples
     batch = max(1, _BATCH_LOOKUPS // tables.shape[0])
     patterns = _every_pattern(n, batch) if exact else _random_patterns(rng, n, total, batch)
     extreme, done = 0, 0
     for chunk in patterns:
-        if cancelled is not None and cancelled():
-            raise Cancelled()
+        task.check()
         extreme += count_extreme(flip_means(scaled, chunk, tables), observed, alternative, tolerance)
         done += chunk.shape[0]
-        if progress is not None:
-            progress(done / total, "sign-flip permutation test")
+        task.report(done / total, "sign-flip permutation test")
     extra, denominator = (0, total) if exact else (1, total + 1)
     p_value = (extreme + extra) / denominator
-    tail = {"two-sided": "|T*| >= |T|", "greater": "T* >= T", "less": "T* <= T"}[alternative]
+    tail = EXTREME_WORDS[alternative]
     method = (f"exact: all {total:,} sign patterns of the differences; p counts patterns with {tail}"
               if exact else
               f"{total:,} random sign patterns; p = (b + 1) / (m + 1) with b the patterns with {tail}")
