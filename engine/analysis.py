@@ -15,7 +15,7 @@ import numpy as np
 from . import advice, diagnostics, effects
 from .errors import TwofoldError, names_its_source
 from .procedures import registry
-from .question import Question
+from .question import Margin, MarginAnswer, Question
 from .procedures.registry import (EXCHANGEABLE_NOTE, INTERVAL_ONLY_NOTE, PROCEDURE_NAMES,
                                   RESAMPLING_MAX_VALUES)
 from .results import (EffectSize, Finding, GroupSummary, Groups, Interval, ProcedureResult,
@@ -24,7 +24,7 @@ from .spec import AnalysisSpec
 from .summary import summarize
 from .tasks import CancelCheck, Progress, Task
 
-__all__ = ["RobustnessRow", "Robustness", "Analysis", "analyze", "PROCEDURE_NAMES",
+__all__ = ["RobustnessRow", "Robustness", "Analysis", "analyze", "margin_in_units", "margin_answer_of", "PROCEDURE_NAMES",
            "RESAMPLING_MAX_VALUES", "INTERVAL_ONLY_NOTE", "EXCHANGEABLE_NOTE"]
 
 T = TypeVar("T")
@@ -85,6 +85,8 @@ class Analysis:
     screening: Any = None     # engine.io.ScreeningReport, when the groups came from a file
     source: Mapping[str, Any] = field(default_factory=frozen_mapping)  # file name, sheet, columns
     notes: tuple[Finding, ...] = ()  # what the analysis itself decided (e.g. resampling left out)
+    margin: Margin | None = None  # a margin question's margin in the estimate's units
+    pairs: Any = None         # engine.io.pairs.PairedIntake, in a paired design from a file
 
     def __post_init__(self) -> None:
         object.__setattr__(self, "procedures", frozen_mapping(self.procedures))
@@ -96,9 +98,39 @@ class Analysis:
         """The recommended procedure's result."""
         return self.procedures.get(self.recommendation.key)
 
+    @property
+    def design(self) -> str:
+        return self.spec.design
+
+    def margin_answer(self, key: str) -> MarginAnswer | None:
+        """What procedure ``key``'s result says against the margin (None: no margin question, no
+        such result, or a result without an interval)."""
+        result = self.procedures.get(key)
+        if self.margin is None or result is None or result.interval is None:
+            return None
+        return margin_answer_of(self.spec.question, result, self.margin)
+
+
+def margin_answer_of(question: Question, result: ProcedureResult, margin: Margin) -> MarginAnswer:
+    """What ``result`` of a margin procedure says against ``margin`` (in the estimate's units):
+    its ``interval`` is the two-sided (1 - 2 alpha) one; ``details["difference_interval"]`` the
+    two-sided (1 - alpha) one an equivalence verdict also needs."""
+    return question.margin_answer(result.interval, result.details.get("difference_interval"),
+                                  margin=margin)
+
+
+def margin_in_units(question: Question, groups: Groups) -> Margin | None:
+    """The question's margin in the measurement's units: a percentage of group 2's mean converted
+    (for a ratio margin, the ratio itself); None for a question without a margin."""
+    if not question.has_margin:
+        return None
+    y = groups.y
+    return question.margin.in_units(float(np.mean(y)) if y.size else float("nan"))
+
 
 def _robustness(procedures: Mapping[str, ProcedureResult], level: float, *,
-                spreads_differ: bool = False, question: Question | None = None) -> Robustness:
+                spreads_differ: bool = False, question: Question | None = None,
+                margin: Margin | None = None) -> Robustness:
     """Every procedure with a p-value or an interval; only tests that hold here vote.
 
     ``spreads_differ``: the spreads argue against treating the groups as interchangeable, so
@@ -111,8 +143,13 @@ def _robustness(procedures: Mapping[str, ProcedureResult], level: float, *,
     for key, result in procedures.items():
         known = registry.find(key)
         because = None if known is None else known.not_voting(spreads_differ=spreads_differ)
-        finds = question.finds(p_value=result.p_value, interval=result.interval,
-                               no_difference=0.0 if known is None else known.no_difference)
+        if margin is not None:
+            if result.interval is None:
+                continue
+            finds = margin_answer_of(question, result, margin).yes
+        else:
+            finds = question.finds(p_value=result.p_value, interval=result.interval,
+                                   no_difference=0.0 if known is None else known.no_difference)
         if finds is None:
             continue
         if result.p_value is None:
@@ -183,7 +220,8 @@ def analyze(
             "resampling_left_out", "note",
             f"The permutation and bootstrap procedures were left out: with {x.size + y.size:,} values "
             "the large-sample procedures are accurate, and resampling would take minutes."))
-    context = registry.Context(rng=np.random.default_rng(spec.seed), **ordered)
+    margin = margin_in_units(question, groups)
+    context = registry.Context(rng=np.random.default_rng(spec.seed), margin=margin, **ordered)
     procedures: dict[str, ProcedureResult] = {}
     share = (1.0 - _CHECKS_SHARE - _EFFECTS_SHARE) / max(sum(r.work for r in records), 1.0)
     for record in records:
@@ -216,8 +254,9 @@ def analyze(
         procedures=procedures,
         effect_sizes=sizes,
         robustness=_robustness(procedures, question.level, question=question,
-                               spreads_differ=advice.spreads_differ(checks, groups)),
+                               spreads_differ=advice.spreads_differ(checks, groups), margin=margin),
         screening=screening,
         source=source or {},
         notes=tuple(notes),
+        margin=margin,
     )

@@ -22,10 +22,16 @@ from .errors import OptionProblem, quoted
 from .question import Margin, Question
 
 __all__ = ["AnalysisSpec", "Source", "SetAside", "Statements", "LAYOUTS", "RANK_METHODS",
-           "RESAMPLES_RANGE", "draw_seed", "SEED_LIMIT"]
+           "RESAMPLES_RANGE", "draw_seed", "SEED_LIMIT", "DESIGNS", "ZERO_RULES"]
 
 LAYOUTS = ("long", "wide")  # long: a group column and a value column; wide: a column per group
 RANK_METHODS = ("auto", "exact", "normal")  # how the Mann-Whitney p-value is found
+# independent: two separate groups of units; paired: each unit measured once in each group,
+# matched by an ID column (long layout) or row by row (wide layout).
+DESIGNS = ("independent", "paired")
+# What the signed-rank test does with pairs that show no difference: drop them before ranking
+# (Wilcoxon's rule) or rank them and give them no sign (Pratt's rule).
+ZERO_RULES = ("drop", "pratt")
 # Resamples accepted for the permutation and bootstrap procedures: below 100 their p-values and
 # interval ends are too coarse to report; above 10 million a run takes hours (practical limits).
 RESAMPLES_RANGE: tuple[int, int] = (100, 10_000_000)
@@ -116,6 +122,9 @@ class AnalysisSpec:
     statements: Statements = field(default_factory=Statements)
     rank_method: str = "auto"
     procedure: str | None = None
+    design: str = "independent"
+    pair_column: str | None = None
+    zero_rule: str = "drop"
 
     def __post_init__(self) -> None:
         if self.layout not in LAYOUTS:
@@ -147,6 +156,17 @@ class AnalysisSpec:
             raise OptionProblem(f"Unknown rank method '{quoted(self.rank_method)}'.")
         if self.procedure is not None and not isinstance(self.procedure, str):
             raise OptionProblem("The procedure picked must be named by its key.")
+        if self.design not in DESIGNS:
+            raise OptionProblem(f"The design must be 'independent' or 'paired', not '{quoted(self.design)}'.")
+        if self.pair_column is not None:
+            if not isinstance(self.pair_column, str) or not self.pair_column:
+                raise OptionProblem("The pair ID column must be named by a text.")
+            if self.design != "paired" or self.layout != "long":
+                raise OptionProblem("A pair ID column belongs to a paired design in the long layout "
+                                    "(in the wide layout the pairs are the rows).")
+        if self.zero_rule not in ZERO_RULES:
+            raise OptionProblem(f"The rule for pairs with no difference must be 'drop' or 'pratt', "
+                                f"not '{quoted(self.zero_rule)}'.")
 
     # -- deriving --------------------------------------------------------------------------------
     def replace(self, **changes: Any) -> "AnalysisSpec":
@@ -191,6 +211,9 @@ class AnalysisSpec:
                 "ordinal": self.statements.ordinal},
             "rank_method": self.rank_method,
             "procedure": self.procedure,
+            "design": self.design,
+            "pair_column": self.pair_column,
+            "zero_rule": self.zero_rule,
         }
 
     @classmethod
