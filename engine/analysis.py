@@ -87,6 +87,7 @@ class Analysis:
     notes: tuple[Finding, ...] = ()  # what the analysis itself decided (e.g. resampling left out)
     margin: Margin | None = None  # a margin question's margin in the estimate's units
     pairs: Any = None         # engine.io.pairs.PairedIntake, in a paired design from a file
+    paired: Any = None        # engine.paired_diagnostics.PairedChecks, in a paired design
 
     def __post_init__(self) -> None:
         object.__setattr__(self, "procedures", frozen_mapping(self.procedures))
