@@ -40,7 +40,7 @@ LAYERS: tuple[tuple[str, ...], ...] = (
     # what the data look like, and effect sizes built on the procedures
     ("engine.diagnostics", "engine.effects", "engine.paired_effects"),
     # the suggested procedure from the checks
-    ("engine.advice",),
+    ("engine.advice", "engine.margin_advice"),
     # every part of one comparison together
     ("engine.analysis",),
     # an analysis in words, tables and JSON
