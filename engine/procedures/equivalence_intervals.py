@@ -222,7 +222,7 @@ def _log_t(x: Any, y: Any, ends: Ends, spread: str, confidence_level: float,
            f"({test.details['base_method']})")
     return margin_result(back, ends, keys=(f"equivalence_log_{spread}", f"noninferiority_log_{spread}"),
                          names=NAMES, estimate_name=RATIO_NAME,
-                         statistic_name=f"{_SPREAD_NAMES[spread]} t (log scale)", how=how,
+                         statistic_name=f"{_SPREAD_NAMES[spread]} t", how=how,
                          margin_note=margin_note)
 
 

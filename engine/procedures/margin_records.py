@@ -151,7 +151,7 @@ _KINDS: tuple[_Kind, ...] = (
               "Assumes independent values and groups large enough to stand in for their "
               "populations; it gives an interval to set against the margin but no p-value, and "
               "with fewer than about 10 values in a group that interval is too narrow.")),
-    _t_kind("log_welch", "welch_t", "Welch t (log scale)", (
+    _t_kind("log_welch", "welch_t", "Welch t", (
         "Assumes positive values whose logarithms have a mean close to normally distributed, so "
         "that the ratio of the geometric means is what the ratio margin bounds."),
         units=_RATIO_UNITS),
