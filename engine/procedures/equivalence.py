@@ -167,13 +167,14 @@ def margin_result(test: MarginTest, ends: Ends, *, keys: tuple[str, str], names:
                   margin_note: str | None) -> ProcedureResult:
     """The result of a margin procedure: key ``keys[0]`` for an equivalence margin, ``keys[1]``
     for a non-inferiority one. Its p-value is the larger one-sided p-value (equivalence) or the
-    one at the worse end (non-inferiority); None when the procedure gives no test."""
+    one at the worse end (non-inferiority; ``details["worse"]`` says which side); None when the
+    procedure gives no test. Its ``alternative`` is "two-sided", as its interval is: the
+    one-sided tests are read against the margin, not against no difference."""
     key = keys[0] if ends.equivalence else keys[1]
     tested = [(p, s) for p, s, end in zip((test.p_lower, test.p_upper), test.statistics,
                                          (ends.low, ends.high)) if end is not None and p is not None]
     p_value, statistic = max(tested, key=lambda pair: pair[0]) if tested else (None, None)
     note = margin_note if margin_note is not None else f"{ends.words()} in the estimate's units"
-    alternative = "two-sided" if ends.equivalence else ("greater" if ends.worse == "lower" else "less")
     method = (f"{how}, against {ends.words()}; the interval set against the margin is the two-sided "
               f"{_percent(test.interval.level)} one; {note}")
     verdict = "equivalent" if ends.equivalence else "not_worse"
@@ -184,7 +185,7 @@ def margin_result(test: MarginTest, ends: Ends, *, keys: tuple[str, str], names:
     return ProcedureResult(
         key=key, name=names[key], estimate=float(test.estimate), estimate_name=estimate_name,
         statistic=statistic, statistic_name=statistic_name if statistic is not None else None,
-        df=test.df, p_value=p_value, interval=test.interval, alternative=alternative,
+        df=test.df, p_value=p_value, interval=test.interval, alternative="two-sided",
         method=method, details=details, warnings=tuple(dict.fromkeys(test.warnings)))
 
 
