@@ -6,7 +6,7 @@ import importlib
 
 import numpy as np
 import pytest
-from statsmodels.stats.weightstats import CompareMeans, ttest_ind, ttost_ind
+from statsmodels.stats.weightstats import CompareMeans, DescrStatsW, ttest_ind, ttost_ind, ttost_paired
 
 from engine.analysis import analyze
 from engine.errors import OptionProblem, TwofoldError
@@ -216,3 +216,41 @@ def test_a_difference_question_runs_no_margin_record():
     analysis = analyze(_groups(3), AnalysisSpec(resamples=200, seed=1))
     assert not any(registry.record(key).counterpart for key in analysis.procedures)
     assert analysis.margin is None
+
+
+def _matched(seed, n=18, shift=0.2):
+    rng = np.random.default_rng(seed)
+    base = rng.normal(30.0, 4.0, n)
+    return Groups(("after", "before"), base + shift + rng.normal(0.0, 0.8, n), base)
+
+
+@pytest.mark.parametrize("seed", range(3))
+def test_paired_equivalence_through_analyze_matches_statsmodels_ttost_paired(seed):
+    groups = _matched(seed)
+    analysis = analyze(groups, _spec(Question("equivalent", 0.95, Margin.within(-0.5, 0.7)),
+                                     design="paired"))
+    assert set(analysis.procedures) == {"paired_equivalence", "paired_equivalence_ranks",
+                                        "paired_equivalence_bootstrap"}
+    assert analysis.recommendation.key == "paired_equivalence"
+    result = analysis.procedures["paired_equivalence"]
+    # reference: statsmodels.stats.weightstats.ttost_paired (Schuirmann's two one-sided tests)
+    p, (t1, p1, df), (t2, p2, _) = ttost_paired(groups.x, groups.y, -0.5, 0.7)
+    assert result.p_value == pytest.approx(p, rel=1e-10)
+    assert (result.details["p_lower"], result.details["p_upper"]) == pytest.approx((p1, p2), rel=1e-10)
+    assert (result.details["t_lower"], result.details["t_upper"]) == pytest.approx((t1, t2), rel=1e-10)
+    assert result.df == df
+    assert bool(p < 0.05) is analysis.margin_answer("paired_equivalence").yes
+
+
+@pytest.mark.parametrize("worse, alternative, sign", [("lower", "larger", -1), ("higher", "smaller", 1)])
+def test_paired_non_inferiority_through_analyze_matches_statsmodels(worse, alternative, sign):
+    groups = _matched(4, shift=-0.1)
+    mean = float(np.mean(groups.y))
+    analysis = analyze(groups, _spec(Question("not_worse", 0.95, Margin.not_worse_by(2, worse, "percent")),
+                                     design="paired"))
+    result = analysis.procedures["paired_noninferiority"]
+    # reference: statsmodels DescrStatsW(x - y).ttest_mean with the null at the margin's worse
+    # end, 2% of group 2's mean
+    _, p, _ = DescrStatsW(groups.x - groups.y).ttest_mean(value=sign * 0.02 * mean, alternative=alternative)
+    assert result.p_value == pytest.approx(p, rel=1e-10)
+    assert "2% of group 2's mean" in result.details["margin_note"]
