@@ -61,7 +61,8 @@ def add_plan_command(commands: Any) -> None:
     test.add_argument("--alternative", choices=("two-sided", "less", "greater"),
                       help="two-sided (default); less/greater: is group 1 lower/higher")
     test.add_argument("--equivalence-margin", metavar="M|LOW:HIGH",
-                      help="plan to show equivalence within -M to M (or LOW to HIGH)")
+                      help="plan to show equivalence within -M to M (or LOW to HIGH; a negative LOW "
+                           "goes after an equals sign: --equivalence-margin=-3:4)")
     test.add_argument("--noninferiority-margin", type=float, metavar="M",
                       help="plan to show group 1 not worse than group 2 by more than M")
     test.add_argument("--worse", choices=("lower", "higher"),
