@@ -188,7 +188,8 @@ def plan_document(result, curve=None) -> dict[str, Any]:
                    "effect": result.effect, "effect_name": result.effect_name,
                    "continuous_n": _finite(result.continuous_n), "df": _finite(result.df),
                    "monte_carlo_se": result.monte_carlo_se, "simulations": result.simulations,
-                   "seed": result.seed, "formula_power": result.formula_power},
+                   "seed": result.seed, "formula_power": result.formula_power,
+                   "formula_words": result.formula_words},
         "inputs": {"difference": plan.difference, "sd1": result.sd1, "sd2": result.sd2,
                    "n1": plan.n1, "n2": plan.n2, "ratio": plan.ratio, "power": plan.power,
                    "level": plan.alpha, "question": plan.question.kind,
@@ -236,7 +237,7 @@ def _readable(result, curve) -> list[str]:
         lines.append(f"Monte Carlo standard error: {format_number(100 * result.monte_carlo_se, digits=2)} "
                      f"percentage points ({result.simulations:,} studies, seed {result.seed})")
     if result.formula_power is not None:
-        lines.append(f"Formula's power for comparison: {power_text(result.formula_power)}")
+        lines.append(f"For comparison, {result.formula_words}: {power_text(result.formula_power)}")
     lines.append(f"Method: {result.method_words}")
     lines += [f"Note: {note}" for note in result.notes]
     if curve is not None:

@@ -255,8 +255,9 @@ def _method_words(plan: Plan, powers: _Powers) -> str:
                       else "each group resampled from its pilot values")
         else:
             origin = f"values {SHAPE_WORDS[plan.shape]}"
-        return (f"simulation of {plan.simulations:,} studies ({origin}, group 1 shifted by the "
-                f"true difference), each judged by the {name} as the analysis computes it")
+        shifted = "each difference" if plan.design == "paired" else "group 1"
+        return (f"simulation of {plan.simulations:,} studies, each judged by the {name} as the "
+                f"analysis computes it; {origin}, {shifted} shifted by the true difference")
     if powers.method == "approximation":
         return ("Noether's asymptotic formula for the Mann-Whitney test, an approximation (it "
                 "keeps U's null variance and ignores its discreteness)")
@@ -285,9 +286,11 @@ def _notes(plan: Plan, powers: _Powers, n1: int, n2: int, difference: float,
         notes.append(f"{tied:,} of the {plan.simulations:,} simulated studies had tied values and "
                      "were judged by the normal approximation with the tie correction; the "
                      "analysis of one such study may count the exact law of its ties instead.")
-    if plan.pilot is not None and plan.pilot.group1.size < 10:
-        notes.append("The pilot has few values; the shape resampled from them is rough, and the "
-                     "power found carries that uncertainty beyond its Monte Carlo error.")
+    if plan.pilot is not None:
+        sizes = [plan.pilot.group1.size] + ([] if plan.pilot.group2 is None else [plan.pilot.group2.size])
+        notes.append(f"The pilot's spread and shape are estimates from {' and '.join(map(str, sizes))} "
+                     "values: the power found carries their uncertainty beyond the Monte Carlo "
+                     "error (a rank test's power, which hangs on the values' finer shape, most of all).")
     return tuple(notes)
 
 
@@ -334,6 +337,13 @@ def plan_study(plan: Plan, *, progress: Progress | Task | None = None,
     sd1, sd2 = powers.sd1, powers.sd2
     standardiser = sd1 if plan.design == "paired" else math.sqrt((sd1 * sd1 + sd2 * sd2) / 2.0)
     formula_power = powers.formula(n1, n2, difference) if powers.simulated else None
+    formula_words = ""
+    if formula_power is not None:
+        formula_words = ("Noether's asymptotic approximation under normal spread at the same SDs"
+                         if plan.procedure == "mann_whitney" and (plan.pilot is not None or plan.shape == "normal")
+                         else "Noether's asymptotic approximation for the same shape and SDs"
+                         if plan.procedure == "mann_whitney"
+                         else "the exact power under normal spread at the same SDs")
     df = None
     if powers.method == "exact" and plan.procedure != "z":
         df = spread(plan.procedure, plan.design, sd1, sd2, n1, n2).df
@@ -343,7 +353,7 @@ def plan_study(plan: Plan, *, progress: Progress | Task | None = None,
         effect=difference / standardiser, effect_name=effect_name(plan), method=powers.method,
         method_words=_method_words(plan, powers), procedure_name=procedure_name(plan),
         monte_carlo_se=se, simulations=simulations, seed=seed, continuous_n=continuous, df=df,
-        formula_power=formula_power, notes=_notes(plan, powers, n1, n2, difference, reached_floor),
+        formula_power=formula_power, formula_words=formula_words, notes=_notes(plan, powers, n1, n2, difference, reached_floor),
         sentence=protocol_sentence(plan, n1=n1, n2=n2, power=power, difference=difference,
                                    sd1=sd1, sd2=sd2, method=powers.method, monte_carlo_se=se,
                                    simulations=simulations, seed=seed),

@@ -33,7 +33,7 @@ class PlanResult:
     the power exactly, before rounding up (None when simulated or not asked). ``df``: the test's
     degrees of freedom at the answer (None for z, ranks and simulations). ``formula_power``: for
     comparison beside a simulation, the normal-theory (or asymptotic) power at the same sizes and
-    SDs, else None. ``procedure_name``: the test in words. ``notes``: what the reader should know
+    SDs, else None; ``formula_words`` says which formula. ``procedure_name``: the test in words. ``notes``: what the reader should know
     (a method switched, a size at its floor). ``sentence``: the plan in one sentence for a
     protocol.
     """
@@ -56,6 +56,7 @@ class PlanResult:
     continuous_n: float | None = None
     df: float | None = None
     formula_power: float | None = None
+    formula_words: str = ""
     notes: tuple[str, ...] = ()
     sentence: str = ""
 

@@ -26,8 +26,10 @@ from .shapes import draw
 
 __all__ = ["Simulated", "StudySource", "simulate_power", "BATCH_VALUES"]
 
-# Values drawn per batch (both groups): about 16 MB of float64 for each array a test forms.
-BATCH_VALUES = 2_000_000
+# Values drawn per batch (both groups): 2 MB of float64 for each array a test forms, and a
+# batch of rank tests takes some tens of milliseconds, so progress and a cancel request are
+# seen often.
+BATCH_VALUES = 250_000
 
 
 @dataclass(frozen=True)
