@@ -10,13 +10,13 @@ and margin) is the analysis's own :class:`engine.question.Question`.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field, replace
-from typing import Any
+from dataclasses import dataclass, field, fields, replace
+from typing import Any, Mapping
 
 import numpy as np
 
 from ..errors import DataProblem, OptionProblem
-from ..question import Question
+from ..question import Margin, Question
 from ..results import readonly_array
 
 __all__ = ["Plan", "Pilot", "FINDS", "PROCEDURES", "DESIGNS", "SHAPES", "METHODS",
@@ -106,6 +106,25 @@ class Pilot:
     @property
     def paired(self) -> bool:
         return self.group2 is None
+
+    @classmethod
+    def of_groups(cls, groups: Any, source: str = "") -> "Pilot":
+        """The pilot of two groups as the analysis holds them (an :class:`engine.results.Groups`:
+        ``x``, ``y`` and ``labels``), such as the current analysis's, to plan a follow-up."""
+        return cls(groups.x, groups.y, tuple(groups.labels), source)
+
+    def to_dict(self) -> dict[str, Any]:
+        return {"group1": self.group1.tolist(),
+                "group2": None if self.group2 is None else self.group2.tolist(),
+                "labels": list(self.labels), "source": self.source}
+
+    @classmethod
+    def from_dict(cls, data: Mapping[str, Any]) -> "Pilot":
+        """The pilot :meth:`to_dict` wrote; an unknown member raises :class:`OptionProblem`."""
+        members = dict(_members(data, "the pilot", {"group1", "group2", "labels", "source"}))
+        if "labels" in members:
+            members["labels"] = tuple(members["labels"])
+        return cls(**members)
 
     def sds(self) -> tuple[float, float | None]:
         """The sample SDs (n - 1 denominator) of the pilot groups (the second None when paired)."""
@@ -322,3 +341,35 @@ class Plan:
     def with_(self, **changes: Any) -> "Plan":
         """A copy with ``changes`` (checked again)."""
         return replace(self, **changes)
+
+    def to_dict(self) -> dict[str, Any]:
+        """Plain values (the pilot's values included) that :meth:`from_dict` reads back."""
+        plain = {f.name: getattr(self, f.name) for f in fields(self)}
+        plain["question"] = self.question.to_dict()
+        plain["pilot"] = None if self.pilot is None else self.pilot.to_dict()
+        if self.design == "paired" or self.find == "n":
+            plain["n2"] = None  # follows from n1 (pairs) or is found
+        return plain
+
+    @classmethod
+    def from_dict(cls, data: Mapping[str, Any]) -> "Plan":
+        """The plan :meth:`to_dict` wrote, checked again; an unknown member raises
+        :class:`OptionProblem`."""
+        members = dict(_members(data, "the plan", {f.name for f in fields(cls)}))
+        if "question" in members:
+            question = dict(_members(members["question"], "the plan's question", {"kind", "level", "margin"}))
+            if question.get("margin") is not None:
+                question["margin"] = Margin.from_dict(question["margin"])
+            members["question"] = Question(**question)
+        if members.get("pilot") is not None:
+            members["pilot"] = Pilot.from_dict(members["pilot"])
+        return cls(**members)
+
+
+def _members(data: Any, what: str, known: set[str]) -> Mapping[str, Any]:
+    if not isinstance(data, Mapping):
+        raise OptionProblem(f"{what.capitalize()} must be a set of named members.")
+    unknown = sorted(set(data) - known)
+    if unknown:
+        raise OptionProblem(f"Unknown member in {what}: {', '.join(map(str, unknown))}.")
+    return data

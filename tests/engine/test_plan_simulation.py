@@ -238,3 +238,25 @@ def test_power_curves_are_arrays_along_the_size_and_the_difference():
     assert along.x.size == 21 and along.power[10] == pytest.approx(0.05, abs=1e-12)  # at 0: alpha
     simulated = power_curve(plan.with_(procedure="mann_whitney", simulations=500, seed=1), "n", points=5)
     assert simulated.monte_carlo_se.shape == (5,)
+
+
+def test_a_plan_goes_to_plain_values_and_back():
+    import json
+
+    from engine.errors import OptionProblem
+    from engine.results import Groups
+
+    rng = np.random.default_rng(31)
+    plans = [
+        Plan("n", difference=5, sd=6, power=0.8, unit="MPa", ratio=2.0),
+        Plan("power", sd=6, n1=20, question=Question("equivalent", 0.9, Margin.within(-3, 4))),
+        Plan("power", difference=1, n1=12, design="paired", pilot=Pilot(rng.normal(1, 2, 9)), seed=4),
+        Plan("difference", n1=15, power=0.9, procedure="mann_whitney", seed=1,
+             pilot=Pilot.of_groups(Groups(("north", "south"), rng.normal(size=8), rng.normal(size=9)), "pilot.csv")),
+    ]
+    for plan in plans:
+        again = Plan.from_dict(json.loads(json.dumps(plan.to_dict())))
+        assert again.to_dict() == plan.to_dict()
+        assert plan_study(again).sentence == plan_study(plan).sentence
+    with pytest.raises(OptionProblem, match="Unknown member in the plan: colour"):
+        Plan.from_dict(dict(plans[0].to_dict(), colour="red"))
