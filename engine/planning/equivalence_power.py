@@ -10,7 +10,7 @@ an integral over U, zero beyond U = (high - low) / (2 c SE). This is the integra
 Owen's Q function behind the usual two one-sided tests power (Owen 1965; Phillips 1990), found
 here by Gauss-Legendre quadrature against U's density. It is exact for the pooled and paired
 t-tests; for Welch's test SE_hat^2 is not a scaled chi-squared, and its law is approximated by
-Satterthwaite's degrees of freedom at the planned SDs. Known SDs (z) give the closed form
+the Welch-Satterthwaite degrees of freedom at the planned SDs. Known SDs (z) give the closed form
 Phi((high - delta) / SE - c) - Phi((low - delta) / SE + c), when positive.
 """
 

@@ -260,3 +260,15 @@ def test_a_plan_goes_to_plain_values_and_back():
         assert plan_study(again).sentence == plan_study(plan).sentence
     with pytest.raises(OptionProblem, match="Unknown member in the plan: colour"):
         Plan.from_dict(dict(plans[0].to_dict(), colour="red"))
+
+
+def test_paired_equivalence_power_matches_the_engines_paired_two_one_sided_tests():
+    # reference: engine.procedures.paired.paired_equivalence on simulated pair differences
+    from engine.procedures.paired import paired_equivalence
+
+    rng = np.random.default_rng(32)
+    result = plan_study(Plan("power", difference=0.2, sd=1.0, n1=24, design="paired",
+                             question=Question("equivalent", 0.95, Margin.within(0.7))))
+    rate, se = _rate(lambda d: paired_equivalence(d, np.zeros(d.size), low=-0.7, high=0.7).p_value,
+                     lambda: (rng.normal(0.2, 1.0, 24),), 1500, 0.05)
+    assert abs(rate - result.power) < 3 * se
