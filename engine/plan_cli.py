@@ -81,7 +81,8 @@ def add_plan_command(commands: Any) -> None:
     how.add_argument("--simulations", type=int, metavar="K", help="simulated studies (default 10000)")
     how.add_argument("--seed", type=int, help="seed of the simulation, for repeatable results")
     pilot = plan.add_argument_group("pilot values (their spread and shape, resampled)")
-    pilot.add_argument("--pilot", type=Path, metavar="FILE", help="a data file of pilot values")
+    pilot.add_argument("--pilot", type=Path, metavar="FILE",
+                       help="a data file of pilot values, or a saved analysis (.twofold) whose groups are the pilot")
     pilot.add_argument("--value", action="append", metavar="COLUMN",
                        help="the column of measurements; give it twice for one column per group "
                             "(paired: the two columns, one row per pair)")
@@ -132,12 +133,22 @@ def _find(args, has_margin: bool) -> str:
 
 
 def _pilot(args):
-    """The pilot values from --pilot FILE and the column flags."""
-    from . import pipeline
-    from .io.pairs import pairs_by_row
+    """The pilot values from --pilot FILE (a data file with the column flags, or a saved
+    analysis, whose data file is read again and must still be the one it analysed)."""
+    from . import pipeline, saved
     from .planning import Pilot
     from .spec import AnalysisSpec, Source
 
+    name = args.pilot.name
+    if args.pilot.suffix.lower() == saved.EXTENSION:
+        if any(getattr(args, flag) is not None for flag in ("value", "group", "groups", "sheet")):
+            raise OptionProblem(f"{name} names its own columns and groups; leave out --value, "
+                                "--group, --groups and --sheet.")
+        reopened = saved.reopen(saved.load(args.pilot))
+        if reopened.prepared is None or reopened.status == "source_changed":
+            raise OptionProblem(f"{name}: {reopened.message}")
+        prepared = reopened.prepared
+        return _pilot_of(args, prepared.table, prepared.spec, prepared.intake.groups, name)
     values = tuple(args.value or ())
     spec = AnalysisSpec(source=Source(str(args.pilot), args.sheet),
                         layout="long" if args.group is not None or len(values) == 1 else "wide",
@@ -145,14 +156,20 @@ def _pilot(args):
                         groups=tuple(args.groups) if args.groups else None)
     table = pipeline.read(spec)
     spec = pipeline.complete(table, spec)
-    name = args.pilot.name
+    return _pilot_of(args, table, spec, None if args.paired else pipeline.form_groups(table, spec).groups, name)
+
+
+def _pilot_of(args, table, spec, groups, name: str):
+    """Two pilot groups, or with --paired the pair differences row by row (wide layout)."""
+    from .io.pairs import pairs_by_row
+    from .planning import Pilot
+
     if args.paired:
         if spec.layout != "wide":
             raise OptionProblem(f"{name}: a paired pilot takes two value columns, one per group and "
                                 "one row per pair (--value FIRST --value SECOND).")
         pairs = pairs_by_row(table, columns=tuple(spec.value_columns))
         return Pilot(pairs.differences, None, pairs.labels, name)
-    groups = pipeline.form_groups(table, spec).groups
     return Pilot(groups.x, groups.y, groups.labels, name)
 
 
@@ -160,7 +177,7 @@ def plan_from_arguments(args):
     """The :class:`engine.planning.Plan` the flags describe."""
     from .planning import Plan
 
-    if args.pilot is None and any(getattr(args, f) is not None for f in ("value", "group", "groups", "sheet")):
+    if args.pilot is None and any(getattr(args, flag) is not None for flag in ("value", "group", "groups", "sheet")):
         raise OptionProblem("--value, --group, --groups and --sheet name the columns of a pilot "
                             "file; give it with --pilot FILE.")
     question = _question(args)

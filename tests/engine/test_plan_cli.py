@@ -80,3 +80,23 @@ def test_bad_input_is_one_line_and_exit_code_2(argv, message):
     code, out, err = _run(*argv)
     assert code == 2 and out == ""
     assert err.count("\n") == 1 and message in err and "Traceback" not in err
+
+
+def test_pilot_from_a_saved_analysis(tmp_path):
+    import shutil
+    from pathlib import Path
+
+    data = tmp_path / "bolts.csv"
+    shutil.copy(Path(__file__).resolve().parents[2] / "demo_files" / "bolt_strength.csv", data)
+    saved = tmp_path / "bolts.twofold"
+    assert main(["analyze", str(data), "--save", str(saved), "--resamples", "200", "--seed", "1"],
+                out=io.StringIO(), err=io.StringIO()) == 0
+    code, out, err = _run("--pilot", str(saved), "--difference", "10", "--n", "20",
+                          "--simulations", "500", "--seed", "2", "--json")
+    assert code == 0, err
+    document = json.loads(out)
+    assert document["inputs"]["pilot"]["source"] == "bolts.twofold"
+    assert document["inputs"]["pilot"]["labels"] == ["north_forge", "south_forge"]
+    data.write_text(data.read_text(encoding="utf-8") + "north_forge,1\n", encoding="utf-8")
+    code, out, err = _run("--pilot", str(saved), "--difference", "10", "--n", "20")
+    assert code == 2 and out == "" and err.count("\n") == 1 and err.startswith("bolts.twofold: ")
