@@ -39,8 +39,11 @@ LAYERS: tuple[tuple[str, ...], ...] = (
     ("engine.procedures.registry",),
     # what the data look like, and effect sizes built on the procedures
     ("engine.diagnostics", "engine.effects", "engine.paired_effects"),
-    # the suggested procedure from the checks
+    # the checks of matched pairs, built on the checks of one sample
+    ("engine.paired_diagnostics",),
+    # the suggested procedure from the checks; for matched pairs, on the same types
     ("engine.advice",),
+    ("engine.paired_advice",),
     # every part of one comparison together
     ("engine.analysis",),
     # an analysis in words, tables and JSON
