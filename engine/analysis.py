@@ -174,6 +174,9 @@ def _pairing(groups: Groups, spec: AnalysisSpec):
     if n1 < 2:
         raise DataProblem(f"A paired design needs at least 2 pairs; there {'is' if n1 == 1 else 'are'} "
                           f"{n1}.")
+    if not np.any(groups.x != groups.y):
+        raise DataProblem("No pair shows any difference (both values of every pair are equal), "
+                          "so there is nothing for the paired procedures to test.")
     with np.errstate(all="ignore"):
         return paired_diagnostics.check_pairs(groups.x, groups.y, labels=groups.labels)
 

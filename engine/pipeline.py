@@ -57,16 +57,13 @@ def complete(table, spec: AnalysisSpec) -> AnalysisSpec:
 
     name = table.path.name
     values, group, layout = spec.value_columns, spec.group_column, spec.layout
-    ids = spec.pair_column
     if not values:
         proposal = propose_layout(table)
-        if group is None and proposal.group_column != ids:
+        if group is None:
             group = proposal.group_column
-        proposed = [v for v in proposal.value_columns if v != ids]
-        values = tuple(proposed[:1] if group is not None else proposed[:2])
+        values = tuple(proposal.value_columns[:1] if group is not None else proposal.value_columns[:2])
     if len(values) == 1 and group is None:
-        proposed = propose_layout(table).group_column
-        group = proposed if proposed != ids else None
+        group = propose_layout(table).group_column
         if group is None:
             raise ColumnProblem(f"{name}: name the column that says which group each row is in, "
                                 "or give two value columns, one per group.")

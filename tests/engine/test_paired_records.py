@@ -188,6 +188,14 @@ def test_groups_of_different_sizes_cannot_be_pairs():
         _paired(x[:1], y[:1])
 
 
+def test_pairs_that_never_differ_or_always_differ_alike_are_said_in_one_line():
+    x = np.array([1.0, 2.0, 3.0, 4.0])
+    with pytest.raises(DataProblem, match="No pair shows any difference"):
+        _paired(x, x.copy())
+    with pytest.raises(DataProblem, match="Every pair differs by the same amount"):
+        _paired(x, x - 0.5)
+
+
 def test_the_resampling_procedures_report_progress_and_stop_when_asked():
     x, y = _pairs(n=40)
     said = []

@@ -141,6 +141,15 @@ def test_wide_layout_pairs_row_by_row_and_the_numbers_are_scipys(tmp_path):
     assert "row 4" in by_key["pairs_partner_missing"] and "row 6" in by_key["pairs_partner_missing"]
 
 
+def test_the_layout_proposal_fills_in_the_columns_of_a_paired_spec(tmp_path):
+    path = _file(tmp_path, LONG, "rods.csv")
+    prepared = pipeline.from_file(path, AnalysisSpec(design="paired", pair_column="rod", seed=1,
+                                                     resamples=200))
+    assert prepared.spec.group_column == "stage" and prepared.spec.value_columns == ("diameter",)
+    assert prepared.spec.groups == ("before", "after")  # the first label met is group 1
+    assert prepared.analysis.paired.n_pairs == 7
+
+
 def test_a_long_layout_without_a_pair_column_is_one_line_naming_what_to_give(tmp_path):
     with pytest.raises(ColumnProblem) as caught:
         _long(tmp_path, pair_column=None)
