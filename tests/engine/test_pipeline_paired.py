@@ -141,6 +141,21 @@ def test_wide_layout_pairs_row_by_row_and_the_numbers_are_scipys(tmp_path):
     assert "row 4" in by_key["pairs_partner_missing"] and "row 6" in by_key["pairs_partner_missing"]
 
 
+def test_wide_layout_cells_set_aside_leave_their_rows_out_once_each(tmp_path):
+    path = _file(tmp_path, WIDE, "plots.csv")
+    spec = AnalysisSpec(design="paired", value_columns=("autumn", "spring"), seed=4, resamples=500)
+    base = pipeline.from_file(path, spec)
+    aside = base.spec.replace(set_aside=(
+        SetAside(row=3, column="autumn", text="4.0", reason="hail"),
+        SetAside(row=4, column="autumn", text="4.4", reason="")))  # its spring cell is blank too
+    intake = pipeline.from_file(None, aside).intake
+    assert intake.pairs.n_pairs == base.intake.pairs.n_pairs - 1
+    assert "row 3" not in intake.pairs.pair_ids
+    kinds = [(p.kind, p.file_rows) for p in intake.pairs.problems]
+    assert kinds == [("set_aside", (3,)), ("set_aside", (4,)), ("partner_missing", (6,))]
+    assert "'autumn' value '4.0' (hail) was set aside by hand" in intake.pairs.problems[0].text
+
+
 def test_the_layout_proposal_fills_in_the_columns_of_a_paired_spec(tmp_path):
     path = _file(tmp_path, LONG, "rods.csv")
     prepared = pipeline.from_file(path, AnalysisSpec(design="paired", pair_column="rod", seed=1,
