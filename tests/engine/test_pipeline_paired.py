@@ -5,6 +5,7 @@ pandas."""
 import json
 from pathlib import Path
 
+import jsonschema
 import numpy as np
 import pandas as pd
 import pytest
@@ -12,7 +13,7 @@ from scipy import stats
 
 from engine import pipeline
 from engine.errors import ColumnProblem, DataProblem, OptionProblem
-from engine.jsonout import analysis_document
+from engine.jsonout import analysis_document, analysis_schema
 from engine.spec import AnalysisSpec, SetAside
 
 DEMO = Path(__file__).resolve().parents[2] / "demo_files" / "rod_diameters.csv"
@@ -211,6 +212,7 @@ def test_a_paired_analysis_of_the_demo_file_is_not_the_independent_one():
     assert any(f.key == "paired" for f in independent.screening.findings)  # the sign shown
     document = json.loads(json.dumps(analysis_document(paired), allow_nan=False))
     assert document["spec"]["design"] == "paired" and "paired_t" in document["procedures"]
+    jsonschema.Draft202012Validator(analysis_schema()).validate(document)  # the published schema
 
 
 def test_the_source_names_the_pair_column(tmp_path):
