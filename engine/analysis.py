@@ -12,7 +12,8 @@ from typing import Any, Callable, Mapping, TypeVar
 
 import numpy as np
 
-from . import advice, diagnostics, effects, paired_advice, paired_diagnostics, paired_effects
+from . import (advice, diagnostics, effects, margin_advice, paired_advice, paired_diagnostics,
+               paired_effects)
 from .errors import DataProblem, TwofoldError, names_its_source, quoted
 from .procedures import registry
 from .question import Margin, MarginAnswer, Question
@@ -255,6 +256,8 @@ def analyze(
         checks = diagnostics.diagnose(groups, **ordered)
 
     candidates = registry.applicable(spec)
+    if question.has_margin:
+        margin_advice.check_runnable(candidates, spec)
     records = [r for r in candidates if r.fits_size(x.size + y.size)]
     if any(r.family == "resampling" for r in candidates if r not in records):
         notes.append(Finding(
@@ -286,6 +289,9 @@ def analyze(
             checks, groups, equal_spread_known=statements.equal_spread_known,
             ordinal=statements.ordinal, known_sd=statements.known_sd,
         ) if pairing is None else _paired_advice(pairing, groups, spec)
+    if question.has_margin:
+        recommendation = margin_advice.for_margin(
+            recommendation, [r for r in records if r.key in procedures], spec)
     task.report(1.0, "done")
     return Analysis(
         groups=groups,

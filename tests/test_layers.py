@@ -37,12 +37,21 @@ LAYERS: tuple[tuple[str, ...], ...] = (
     # one module per procedure family and the checks they share; the registry of them above
     ("engine.procedures", "engine.procedures.*"),
     ("engine.procedures.registry",),
+    # planning the next study: sizes, power and detectable differences, run on the procedures'
+    # own formulas; its front last
+    ("engine.planning.plan", "engine.planning.shapes"),
+    ("engine.planning.result", "engine.planning.exact_power", "engine.planning.sentence",
+     "engine.planning.rank_approximation", "engine.planning.batch_tests"),
+    ("engine.planning.equivalence_power", "engine.planning.simulation"),
+    ("engine.planning.planner",),
+    ("engine.planning",),
     # what the data look like, and effect sizes built on the procedures
     ("engine.diagnostics", "engine.effects", "engine.paired_effects"),
     # the checks of matched pairs, built on the checks of one sample
     ("engine.paired_diagnostics",),
-    # the suggested procedure from the checks; for matched pairs, on the same types
-    ("engine.advice",),
+    # the suggested procedure from the checks (for a margin question, carried over to its
+    # margin record); for matched pairs, on the same types
+    ("engine.advice", "engine.margin_advice"),
     ("engine.paired_advice",),
     # every part of one comparison together
     ("engine.analysis",),
@@ -52,7 +61,8 @@ LAYERS: tuple[tuple[str, ...], ...] = (
     ("engine.pipeline", "engine.saved", "engine.session"),
     # where the command may write a report
     ("engine.audit",),
-    # the headless command
+    # the headless command (planning's part below the rest)
+    ("engine.plan_cli",),
     ("engine.cli",),
     ("engine.__main__",),
     # desktop, above all of engine: parts that know no panel

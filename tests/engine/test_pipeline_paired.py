@@ -10,8 +10,13 @@ import numpy as np
 import pandas as pd
 import pytest
 from scipy import stats
+from statsmodels.stats.weightstats import ttost_paired
 
 from engine import pipeline
+from engine.analysis import analyze
+from engine.procedures import registry
+from engine.question import Margin, Question
+from engine.results import Groups
 from engine.errors import ColumnProblem, DataProblem, OptionProblem
 from engine.jsonout import analysis_document, analysis_schema
 from engine.spec import AnalysisSpec, SetAside
@@ -224,3 +229,28 @@ def test_the_source_names_the_pair_column(tmp_path):
 def test_the_file_is_never_changed(tmp_path):
     _long(tmp_path)
     assert (tmp_path / "rods.csv").read_text(encoding="utf-8") == LONG
+
+
+def test_an_equivalence_question_runs_on_the_pairs_of_a_file():
+    question = Question("equivalent", margin=Margin.within(0.005))
+    analysis = pipeline.from_file(DEMO, AnalysisSpec(design="paired", seed=1, resamples=500,
+                                                     question=question)).analysis
+    assert analysis.recommendation.key == "paired_equivalence"  # the counterpart of paired t
+    assert analysis.paired.n_pairs == 19 and set(analysis.effect_sizes) == {"paired_d_z", "paired_d_av"}
+    both = pd.read_csv(DEMO).dropna()
+    # reference: statsmodels.stats.weightstats.ttost_paired(x1, x2, low, upp) on the complete rows
+    expected = ttost_paired(both["caliper_mm"].to_numpy(), both["laser_mm"].to_numpy(), -0.005, 0.005)[0]
+    assert analysis.procedures["paired_equivalence"].p_value == pytest.approx(expected, rel=1e-9)
+
+
+def test_a_margin_question_on_few_lopsided_pairs_follows_the_paired_suggestion():
+    rng = np.random.default_rng(12)
+    y = rng.normal(40.0, 4.0, 14)
+    x = y + rng.exponential(0.5, 14) ** 2 - 0.3
+    groups = Groups(("new", "old"), x, y)
+    difference = analyze(groups, AnalysisSpec(design="paired", seed=2, resamples=500))
+    assert difference.recommendation.key == "signed_rank"
+    question = Question("not_worse", margin=Margin.not_worse_by(1.0, "lower"))
+    margin = analyze(groups, AnalysisSpec(design="paired", seed=2, resamples=500, question=question))
+    assert margin.recommendation.key == "paired_noninferiority_ranks"  # counterpart: signed_rank
+    assert all(registry.record(key).designs == ("paired",) for key in margin.procedures)
