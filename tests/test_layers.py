@@ -47,8 +47,12 @@ LAYERS: tuple[tuple[str, ...], ...] = (
     ("engine.planning",),
     # what the data look like, and effect sizes built on the procedures
     ("engine.diagnostics", "engine.effects", "engine.paired_effects"),
-    # the suggested procedure from the checks
+    # the checks of matched pairs, built on the checks of one sample
+    ("engine.paired_diagnostics",),
+    # the suggested procedure from the checks (for a margin question, carried over to its
+    # margin record); for matched pairs, on the same types
     ("engine.advice", "engine.margin_advice"),
+    ("engine.paired_advice",),
     # every part of one comparison together
     ("engine.analysis",),
     # an analysis in words, tables and JSON
