@@ -90,3 +90,22 @@ def test_the_findings_and_the_reviewers_report_render_for_a_margin_question(rng)
     plain = text.plain
     assert margin.recommendation.reasons[0] in plain and MARGIN_CAUTION in plain
     assert "% of group 2's mean" in plain  # the percentage margin is said in the output
+
+
+@pytest.mark.parametrize("ordinal, wanted", [(False, "paired_t"), (True, "signed_rank")])
+def test_paired_margin_suggestions_carry_over_from_the_paired_advice(rng, ordinal, wanted):
+    # the paired advice (engine/paired_advice.py) suggests the paired t for many normal
+    # differences and the signed-rank test for ratings; the margin record follows it
+    before = rng.integers(1, 8, 40).astype(float)
+    after = np.clip(before + rng.integers(-1, 2, 40), 1, 7) if ordinal else before + rng.normal(0.1, 0.5, 40)
+    if not ordinal:
+        before = before + rng.normal(0.0, 0.5, 40)  # measurements, not whole numbers
+    fields = dict(design="paired", statements=Statements(ordinal=ordinal))
+    difference, margin = _pair_of_analyses(after, before, EQUIVALENT, **fields)
+    assert difference.recommendation.key == wanted
+    assert registry.record(margin.recommendation.key).counterpart == wanted
+    assert margin.recommendation.reasons[1:] == difference.recommendation.reasons
+    assert {c.key for c in margin.recommendation.considered} == (
+        set(margin.procedures) - {margin.recommendation.key})
+    assert all(registry.record(key).designs == ("paired",) for key in margin.procedures)
+    assert MARGIN_CAUTION in margin.recommendation.cautions
