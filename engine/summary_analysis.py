@@ -118,7 +118,7 @@ def _findings(stats: tuple[GroupStats, GroupStats], needs: Mapping[str, str]) ->
     found = [Finding(
         "shape_not_checked", "warning",
         "Only summary statistics were given, so the shape of each group, its outliers and its ties "
-        "could not be checked: the procedures below take for granted that each group's mean is "
+        "could not be checked: the procedures take for granted that each group's mean is "
         "close to normally distributed (bell-shaped values, or larger groups).")]
     if needs:
         found.append(Finding(
