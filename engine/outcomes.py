@@ -22,6 +22,7 @@ from typing import Any, Callable, Sequence
 import numpy as np
 
 from . import multiplicity, pipeline
+from .draw_log import DrawLog
 from .errors import Cancelled, ColumnProblem, OptionProblem, TwofoldError, quoted
 from .procedures import registry
 from .results import EffectSize, Finding, Interval, ProcedureResult
@@ -241,7 +242,7 @@ def _rerun(prepared: pipeline.Prepared, key: str, level: float) -> ProcedureResu
 
 
 def _one(table, spec: AnalysisSpec, outcome: Outcome, index: int, procedure: str | None,
-         bonferroni: float, task: Task) -> OutcomeResult:
+         bonferroni: float, task: Task, draws: DrawLog) -> OutcomeResult:
     columns = outcome.columns
     spec = spec.replace(value_columns=columns)
     try:
@@ -249,7 +250,8 @@ def _one(table, spec: AnalysisSpec, outcome: Outcome, index: int, procedure: str
         intake = pipeline.form_groups(table, spec)
         if spec.layout == "long" and spec.groups is None:
             spec = spec.replace(groups=tuple(intake.groups.labels))
-        analysis = pipeline.run(intake, spec, progress=task.step(0.9, "every procedure"))
+        analysis = pipeline.run(intake, spec, progress=task.step(0.9, "every procedure"),
+                                rng=draws.generator())
     except Cancelled:
         raise
     except TwofoldError as problem:
@@ -323,9 +325,11 @@ def analyze_outcomes(
     m = len(outcomes)
     bonferroni = multiplicity.bonferroni_level(spec.question.level, m)
     done: list[OutcomeResult] = []
+    # every outcome draws from the same seed: what the first draws, the next ones are handed
+    draws = DrawLog(spec.seed)
     for index, outcome in enumerate(outcomes):
         step = task.step(1.0 / m, f"outcome {index + 1} of {m}: {outcome.name}")
-        result = _one(table, spec, outcome, index, procedure, bonferroni, step)
+        result = _one(table, spec, outcome, index, procedure, bonferroni, step, draws)
         if spec.layout == "long" and spec.groups is None and result.prepared is not None:
             spec = spec.replace(groups=result.prepared.spec.groups)  # the same two groups for all
         done.append(result)

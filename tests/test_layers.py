@@ -29,7 +29,7 @@ LAYERS: tuple[tuple[str, ...], ...] = (
     # the noncentral t limits
     ("engine.stats_basics", "engine.root_finding", "engine.shapiro_wilk", "engine.noncentral_t"),
     # statistics helpers of one group (sorted values, the common scale, SD), also used by io
-    ("engine.summary", "engine.group_stats", "engine.multiplicity"),
+    ("engine.summary", "engine.group_stats", "engine.multiplicity", "engine.draw_log"),
     # from a file to a table and two groups; the package's front last, so io's own modules
     # never import through it
     ("engine.io.*",),
