@@ -154,7 +154,7 @@ class OutcomesAnalysis:
     @property
     def rows(self) -> tuple[OutcomeRow, ...]:
         chosen = self.adjusted()
-        alpha = 1.0 - self.level
+        alpha = self.spec.question.alpha
         rows = []
         for index, done in enumerate(self.outcomes):
             result, analysis = done.result, done.analysis

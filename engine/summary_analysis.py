@@ -96,6 +96,9 @@ def _check_stats(stats: Sequence[Any]) -> tuple[GroupStats, GroupStats]:
 def _spec_for(stats: tuple[GroupStats, GroupStats], spec: AnalysisSpec) -> AnalysisSpec:
     """The spec with the groups' labels and, when both SDs were entered as known, those SDs as the
     statement of known SDs (which adds the z procedure)."""
+    if spec.design != "independent":
+        raise OptionProblem("Summary statistics of two groups serve two independent groups; a paired "
+                            "comparison needs the pairs' values.")
     known = spec.statements.known_sd
     if all(s.sd_known for s in stats):
         known = (stats[0].standard_deviation, stats[1].standard_deviation)

@@ -252,3 +252,10 @@ def test_analysis_from_summaries_can_be_cancelled():
     with pytest.raises(Cancelled):
         analyze_summaries((parse_stats("A n=12 mean=41.2 sd=3.1"),
                            parse_stats("B n=15 mean=38.0 sd=4.4")), cancelled=lambda: True)
+
+
+def test_a_paired_design_is_refused_from_summaries():
+    spec = AnalysisSpec(design="paired", layout="wide")
+    with pytest.raises(OptionProblem, match="pairs' values"):
+        analyze_summaries((parse_stats("A n=12 mean=41.2 sd=3.1"),
+                           parse_stats("B n=12 mean=38.0 sd=4.4")), spec)
