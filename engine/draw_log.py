@@ -90,6 +90,31 @@ class _Replaying(np.random.Generator):
                 np.random.Generator.bit_generator.__get__(self).state = self._log.entries[self._position - 1][2]
         self._recording = False
 
+    def kept(self, key: tuple, build: Callable[[], np.ndarray]) -> np.ndarray:
+        """``build()``, which draws from this generator (relabelling masks, say), as the first run
+        built it at this point: a replaying generator hands out the array kept and moves on to
+        the state building it left; the recording one keeps it (its own draws inside are not
+        logged: a later run takes the whole or draws for itself from before it)."""
+        key = ("kept", repr(key))
+        log = self._log
+        if self._replaying:
+            if self._position < len(log.entries) and log.entries[self._position][0] == key:
+                entry = log.entries[self._position]
+                self._position += 1
+                return entry[1]
+            self._go_live()
+        recording, self._recording = self._recording, False
+        result = build()
+        if recording:
+            kept = np.array(result, copy=True)
+            if self._position == len(log.entries) and log.size + kept.nbytes <= log.limit_bytes:
+                kept.setflags(write=False)
+                log.entries.append((key, kept, self._real_state()))
+                log.size += kept.nbytes
+                self._position += 1
+                self._recording = True
+        return result
+
     def _draw(self, name: str, draw: Callable[..., Any], args: tuple, kwargs: dict) -> Any:
         key = (name, repr((args, sorted(kwargs.items()))))
         log = self._log

@@ -55,3 +55,18 @@ def test_analysis_with_a_replaying_generator_is_the_analysis_of_its_seed():
         for key, result in reference.procedures.items():
             ours = again.procedures[key]
             assert (ours.p_value, ours.interval, ours.estimate) == (result.p_value, result.interval, result.estimate)
+
+
+def test_kept_relabellings_serve_only_runs_of_the_same_sizes():
+    rng = np.random.default_rng(9)
+    x, y = rng.normal(0, 1, 40), rng.normal(0, 1, 35)
+    spec = AnalysisSpec(seed=5, resamples=300)
+    log = DrawLog(5)
+    analyze(Groups(("a", "b"), x, y), spec, rng=log.generator())
+    assert any(entry[0][0] == "kept" for entry in log.entries)
+    for other in (Groups(("a", "b"), x, y[:-1]), Groups(("a", "b"), x + 1.0, y)):
+        reference = analyze(other, spec)  # its own numpy.random.default_rng(5)
+        again = analyze(other, spec, rng=log.generator())
+        for key, result in reference.procedures.items():
+            assert again.procedures[key].p_value == result.p_value
+            assert again.procedures[key].interval == result.interval
