@@ -195,7 +195,9 @@ def analyze_summaries(
     question = spec.question
     margin = question.margin.in_units(stats[1].mean) if question.has_margin else None
     records = registry.applicable(spec, input="summary")
-    context = registry.Context(sorted_x=np.empty(0), sorted_y=np.empty(0),
+    # no summary record reads the sorted values; each group's mean stands in for them, so that
+    # a record reading group 2's mean from them (a percentage margin's note) finds it
+    context = registry.Context(sorted_x=np.array([stats[0].mean]), sorted_y=np.array([stats[1].mean]),
                                rng=np.random.default_rng(spec.seed), margin=margin)
     notes: list[Finding] = []
     procedures: dict[str, ProcedureResult] = {}

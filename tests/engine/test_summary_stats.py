@@ -233,17 +233,20 @@ def test_summary_records_are_the_value_records_with_summary_input():
         assert (summary.name, summary.function, summary.assumption) == (raw.name, raw.function, raw.assumption)
 
 
-@pytest.mark.parametrize("kind", ["equivalent", "not_worse"])
-def test_every_summary_margin_record_runs_from_summaries(kind):
+@pytest.mark.parametrize("kind, unit", [("equivalent", "units"), ("not_worse", "units"),
+                                        ("equivalent", "percent"), ("not_worse", "percent")])
+def test_every_summary_margin_record_runs_from_summaries(kind, unit):
     from engine.question import Margin
 
-    margin = Margin.within(2.0) if kind == "equivalent" else Margin.not_worse_by(2.0, "lower")
+    margin = (Margin.within(2.0, unit=unit) if kind == "equivalent"
+              else Margin.not_worse_by(2.0, "lower", unit=unit))
     spec = AnalysisSpec(question=Question(kind=kind, margin=margin))
     analysis = analyze_summaries((parse_stats("A n=30 mean=40.2 sd=3.1"),
                                   parse_stats("B n=30 mean=40.0 sd=3.4")), spec)
     records = registry.applicable(analysis.spec, input="summary")
-    assert set(analysis.procedures) == {r.key for r in records}
+    assert records and set(analysis.procedures) == {r.key for r in records}
     assert not analysis.notes
+    assert analysis.recommendation.key == f"{'equivalence' if kind == 'equivalent' else 'noninferiority'}_welch"
 
 
 def test_analysis_from_summaries_can_be_cancelled():
