@@ -96,44 +96,50 @@ class _Replaying(np.random.Generator):
         the state building it left; the recording one keeps it (its own draws inside are not
         logged: a later run takes the whole or draws for itself from before it)."""
         key = ("kept", repr(key))
-        log = self._log
-        if self._replaying:
-            if self._position < len(log.entries) and log.entries[self._position][0] == key:
-                entry = log.entries[self._position]
-                self._position += 1
-                return entry[1]
-            self._go_live()
+        replayed = self._replayed(key)
+        if replayed is not None:
+            return replayed
         recording, self._recording = self._recording, False
         result = build()
-        if recording:
-            kept = np.array(result, copy=True)
-            if self._position == len(log.entries) and log.size + kept.nbytes <= log.limit_bytes:
-                kept.setflags(write=False)
-                log.entries.append((key, kept, self._real_state()))
-                log.size += kept.nbytes
-                self._position += 1
-                self._recording = True
+        self._recording = recording and self._keep(key, result)
         return result
 
     def _draw(self, name: str, draw: Callable[..., Any], args: tuple, kwargs: dict) -> Any:
         key = (name, repr((args, sorted(kwargs.items()))))
-        log = self._log
-        if self._replaying:
-            if self._position < len(log.entries) and log.entries[self._position][0] == key:
-                self._position += 1
-                return log.entries[self._position - 1][1]
-            self._go_live()
+        replayed = self._replayed(key)
+        if replayed is not None:
+            return replayed
         result = draw(*args, **kwargs)
         if self._recording:
-            kept = np.array(result, copy=True)
-            if self._position == len(log.entries) and log.size + kept.nbytes <= log.limit_bytes:
-                kept.setflags(write=False)
-                log.entries.append((key, kept, self._real_state()))
-                log.size += kept.nbytes
-                self._position += 1
-            else:
-                self._recording = False
+            self._recording = self._keep(key, result)
         return result
+
+    def _replayed(self, key: tuple) -> np.ndarray | None:
+        """The logged result of call ``key`` when it is the next one logged (the position moves
+        on); otherwise None, and from here on this generator draws for itself."""
+        log = self._log
+        if not self._replaying:
+            return None
+        if self._position < len(log.entries) and log.entries[self._position][0] == key:
+            self._position += 1
+            return log.entries[self._position - 1][1]
+        self._go_live()
+        return None
+
+    def _keep(self, key: tuple, result: Any) -> bool:
+        """Log ``result`` of call ``key`` with the state after it; False (recording ends) when it
+        is out of turn or beyond the log's limit."""
+        log = self._log
+        kept = np.array(result, copy=True)
+        if self._position != len(log.entries) or log.size + kept.nbytes > log.limit_bytes:
+            return False
+        kept.setflags(write=False)
+        if kept.ndim == 0:  # a single draw is handed out as numpy gave it (a scalar)
+            kept = result
+        log.entries.append((key, kept, self._real_state()))
+        log.size += kept.nbytes
+        self._position += 1
+        return True
 
 
 def _logged(name: str) -> Callable[..., Any]:

@@ -18,6 +18,7 @@ def calls(generator, sizes=(5, 7)):
             generator.random(sizes[1]).tolist(),
             generator.bit_generator.random_raw(4).tolist(),
             generator.integers(0, 10, 6).tolist(),
+            generator.integers(0, 10),
             generator.normal(size=3).tolist()]
 
 
@@ -70,3 +71,11 @@ def test_kept_relabellings_serve_only_runs_of_the_same_sizes():
         for key, result in reference.procedures.items():
             assert again.procedures[key].p_value == result.p_value
             assert again.procedures[key].interval == result.interval
+
+
+def test_a_single_draw_is_replayed_as_a_number():
+    log = DrawLog(4)
+    first = log.generator().integers(0, 10)
+    again = log.generator().integers(0, 10)
+    # numpy.random.default_rng(4).integers(0, 10) is a numpy integer, not an array
+    assert again == first and not isinstance(again, np.ndarray)
