@@ -226,13 +226,16 @@ def analyze(
     pairs: Any = None,
     progress: Progress | Task | None = None,
     cancelled: CancelCheck | None = None,
+    rng: np.random.Generator | None = None,
 ) -> Analysis:
     """Run every applicable procedure, the checks, the effect sizes and the recommendation.
 
     ``progress(fraction, what)`` is called as the work advances; ``cancelled()`` is polled and a
     True answer raises :class:`engine.errors.Cancelled` (``progress`` may also be an
     :class:`engine.tasks.Task`). A spec without a seed gets a fresh one, recorded in
-    ``Analysis.spec``: every analysis can be run again to the same numbers.
+    ``Analysis.spec``: every analysis can be run again to the same numbers. ``rng``, if given,
+    is a generator of the seed's own stream (``engine.draw_log`` hands out such generators);
+    by default one is made from the seed.
 
     With ``spec.design == "paired"`` the groups are matched pairs (x[i] and y[i] one unit;
     groups of different sizes raise :class:`engine.errors.DataProblem`): the paired procedures
@@ -265,7 +268,8 @@ def analyze(
             f"The permutation and bootstrap procedures were left out: with {x.size + y.size:,} values "
             "the large-sample procedures are accurate, and resampling would take minutes."))
     margin = margin_in_units(question, groups)
-    context = registry.Context(rng=np.random.default_rng(spec.seed), margin=margin, **ordered,
+    rng = np.random.default_rng(spec.seed) if rng is None else rng
+    context = registry.Context(rng=rng, margin=margin, **ordered,
                                differences=None if pairing is None else pairing.differences)
     procedures: dict[str, ProcedureResult] = {}
     share = (1.0 - _CHECKS_SHARE - _EFFECTS_SHARE) / max(sum(r.work for r in records), 1.0)

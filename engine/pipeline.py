@@ -168,12 +168,14 @@ def source_mapping(spec: AnalysisSpec) -> dict[str, Any]:
 
 
 def run(intake, spec: AnalysisSpec, *, progress: Progress | None = None,
-        cancelled: CancelCheck | None = None):
-    """The analysis of the groups ``intake`` holds, as the spec asks."""
+        cancelled: CancelCheck | None = None, rng=None):
+    """The analysis of the groups ``intake`` holds, as the spec asks (``rng``: see
+    :func:`engine.analysis.analyze`)."""
     from .analysis import analyze
 
     return analyze(intake.groups, spec, screening=intake.screening, source=source_mapping(spec),
-                   pairs=getattr(intake, "pairs", None), progress=progress, cancelled=cancelled)
+                   pairs=getattr(intake, "pairs", None), progress=progress, cancelled=cancelled,
+                   rng=rng)
 
 
 def from_file(path: str | Path | None = None, spec: AnalysisSpec = AnalysisSpec(), *,
