@@ -65,6 +65,11 @@ GLOSSES = {
                             "the values, from the lower to the upper quartile; a value more than "
                             "1.5 IQR beyond a quartile is apart from the rest, more than 3 IQR "
                             "far from it."),
+    "d_z": ("d_z is the mean of the pair differences divided by the SD of the pair differences. "
+            "It grows as the pairing removes variation between units, so it is not on the scale "
+            "of a d of two independent groups and is not to be compared with one."),
+    "d_av": ("d_av is the mean of the pair differences divided by the average of the two groups' "
+             "SDs, on the scale of a d of two independent groups; the pairing does not enlarge it."),
     "density": ("Density is the height of a histogram scaled so that the bars' total area is 1, "
                 "so groups of different sizes can be drawn on one scale."),
 }

@@ -13,7 +13,7 @@ from dataclasses import dataclass
 from ..procedures.registry import RECORDS
 from ..rounding import fixed, format_number, format_p, level_text, shared_decimals
 
-__all__ = ["DisplayNumbers", "display_numbers", "format_interval", "level_text", "EFFECT_DECIMALS",
+__all__ = ["DisplayNumbers", "display_numbers", "format_interval", "level_text", "margin_decimals", "EFFECT_DECIMALS",
            "DIGITS", "EFFECT_FOR", "STATISTIC_LABEL", "RANK_KEYS", "U_KEYS", "MEDIAN_KEYS"]
 
 # Standardised effect sizes are shown with two decimals (common practice), more when a narrow
@@ -38,8 +38,10 @@ class DisplayNumbers:
     """The display strings of one procedure's result, shared by the paragraph and the tables.
 
     ``effect_key`` and ``effect_name`` name the effect size paired with the procedure (None
-    when none was computed); ``decimals`` is shared by the estimate, its interval and the group
-    summaries (None: each in scientific notation).
+    when none was computed), ``effect_level`` the level of its interval (which may differ from
+    the result's: a margin question sets the (1 - 2 alpha) interval against its margin);
+    ``decimals`` is shared by the estimate, its interval and the group summaries (None: each in
+    scientific notation), and for a margin question by the margin as well.
     """
 
     level: str
@@ -54,6 +56,7 @@ class DisplayNumbers:
     effect: str | None
     effect_interval: str | None
     decimals: int | None
+    effect_level: str | None = None
 
 
 def _decimals_shared(values, digits: int = DIGITS) -> int | None:
@@ -173,10 +176,28 @@ def display_numbers(analysis, procedure: str | None = None) -> DisplayNumbers:
     return _numbers(analysis, key, analysis.procedures[key])
 
 
+def _ends(interval) -> list[float]:
+    if interval is None:
+        return []
+    return [float(end) for end in (interval.low, interval.high) if end is not None]
+
+
+def margin_decimals(answer) -> int | None:
+    """The decimals the verdict against a margin (:meth:`engine.question.Question.margin_words`)
+    writes its numbers with: shared by the margin and the intervals, so that every table shows
+    the figures of the verdict."""
+    margin = answer.margin
+    return shared_decimals([margin.low, margin.high, *_ends(answer.interval),
+                            *_ends(answer.difference_interval)])
+
+
 def _numbers(analysis, key: str, result) -> DisplayNumbers:
     interval = result.interval
-    ends = [result.estimate] + ([interval.low, interval.high] if interval is not None else [])
-    decimals = _decimals_shared(ends)
+    answer = analysis.margin_answer(key) if getattr(analysis, "margin", None) is not None else None
+    if answer is not None:
+        decimals = margin_decimals(answer)
+    else:
+        decimals = _decimals_shared([result.estimate] + _ends(interval))
     effect = _effect_for(analysis, key)
     effect_decimals = EFFECT_DECIMALS if effect is None else _effect_decimals(effect)
     return DisplayNumbers(
@@ -194,6 +215,7 @@ def _numbers(analysis, key: str, result) -> DisplayNumbers:
         effect_interval=None if effect is None else format_interval(effect.interval,
                                                                     decimals=effect_decimals),
         decimals=decimals,
+        effect_level=None if effect is None else level_text(effect.interval.level),
     )
 
 
