@@ -119,6 +119,13 @@ def _agreement(robustness, rows, alternative: str, labels: tuple[str, str], leve
                     f"{_other(alternative)} than {labels[1]}, the other way. A one-sided question "
                     "cannot find that direction: to look for a difference either way, the "
                     "two-sided question has to be chosen before the data are seen.")
+    if len(rows) == 1:  # one procedure cannot agree or disagree with itself
+        if finding:
+            verdict = "finds a difference" if alternative == "two-sided" else f"finds clear evidence of {claim}"
+        else:
+            verdict = ("finds no clear difference" if alternative == "two-sided"
+                       else f"finds no clear evidence of {claim}")
+        return f"At the {level_text} level the {rows[0].name} {verdict}."
     if robustness.agree:
         if finding:
             verdict = ("all find a difference" if alternative == "two-sided"

@@ -6,7 +6,7 @@ glosses of the technical words the checks use.
 
 from __future__ import annotations
 
-__all__ = ["plural", "capital", "name_list", "GLOSSES", "gloss_line"]
+__all__ = ["plural", "capital", "sentence_start", "name_list", "GLOSSES", "gloss_line"]
 
 # Nouns whose plural is not the singular with an "s".
 _IRREGULAR = {"was": "were", "is": "are", "has": "have", "does": "do", "this": "these",
@@ -36,6 +36,14 @@ def capital(text: str) -> str:
     """``text`` with a capital first letter, the style of every label, table cell and list item
     ("Pooled t-test" beside "Welch t-test"); inside a sentence names stay as they are."""
     return text[:1].upper() + text[1:]
+
+
+def sentence_start(text: str) -> str:
+    """``text`` as the start of a sentence: a capital first letter, except where the first word is
+    a one-letter symbol ("d of the differences (d_z) = 1.72" keeps its d; "D" would be another
+    quantity)."""
+    first = text.split(" ", 1)[0]
+    return text if len(first) == 1 and first.isalpha() else capital(text)
 
 
 def name_list(names) -> str:

@@ -102,10 +102,9 @@ def _result_rows(analysis, key: str, result, numbers: DisplayNumbers) -> list[tu
         text = numbers.effect
         if numbers.effect_interval is not None:
             text += f" ({effect_level_words(analysis, result, numbers)} CI {numbers.effect_interval})"
-        name = f"Effect size: {numbers.effect_name}"
         if numbers.effect_key in pairs.EFFECT_SCALE:
-            name += f", {pairs.EFFECT_SCALE[numbers.effect_key]}"
-        rows.append((name, text))
+            text += f", {pairs.EFFECT_SCALE[numbers.effect_key]}"
+        rows.append((f"Effect size: {numbers.effect_name}", text))
     rows.append(("How it was found", result.method))
     source = analysis.source or {}
     if source.get("file"):

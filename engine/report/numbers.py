@@ -128,7 +128,8 @@ def _effect_decimals(effect) -> int:
 
 
 def _effect_for(analysis, key: str):
-    for name in EFFECT_FOR.get(key, ("hedges_g",)):
+    paired = getattr(analysis.spec, "design", "independent") == "paired"
+    for name in EFFECT_FOR.get(key, ("paired_d_z",) if paired else ("hedges_g",)):
         effect = analysis.effect_sizes.get(name)
         if effect is not None:
             return effect

@@ -13,7 +13,7 @@ import numpy as np
 from ..io.pairs import PAIR_PROBLEMS
 from ..rounding import fixed, format_number, shared_decimals
 from ..summary import summarize
-from ..wording import GLOSSES, capital, gloss_line, plural
+from ..wording import GLOSSES, gloss_line, plural, sentence_start
 from .numbers import EFFECT_DECIMALS, _effect_decimals, format_interval, level_text
 
 __all__ = ["is_paired", "n_pairs", "design_text", "left_out_sentence", "left_out_items",
@@ -171,7 +171,7 @@ def effect_blocks(analysis) -> list[tuple]:
         decimals = _effect_decimals(effect)
         decimals = EFFECT_DECIMALS if decimals is None else decimals
         interval = format_interval(effect.interval, decimals=decimals)
-        items.append(f"{capital(effect.name)} = {fixed(effect.value, decimals)} "
+        items.append(f"{sentence_start(effect.name)} = {fixed(effect.value, decimals)} "
                      f"({level_text(effect.interval.level)} CI {interval}), {EFFECT_SCALE[key]}. "
                      f"{GLOSSES[_GLOSS_OF[key]]}")
     if not items:

@@ -13,6 +13,7 @@ from ..side_by_side import PROBABILITY_KEYS, agreement_text, margin_agreement_te
 from .margins import (estimate_is_ratio, has_margin, margin_entered, margin_question, margin_size,
                       margin_tests, margin_verdict)
 from .numbers import MEDIAN_KEYS, RANK_KEYS, STATISTIC_LABEL, DisplayNumbers, _fixed, _summary_decimals, level_text
+from ..wording import sentence_start
 from .pairs import EFFECT_SCALE, is_paired, left_out_sentence, n_pairs, paired_opening
 
 __all__ = ["paragraph", "agreement", "question_text", "procedure_followed", "estimate_label", "p_label",
@@ -267,7 +268,7 @@ def _effect_sentence(analysis, result, numbers: DisplayNumbers) -> str:
         effect += f", {effect_level_words(analysis, result, numbers)} CI {numbers.effect_interval}"
     if numbers.effect_key in EFFECT_SCALE:
         effect += f" ({EFFECT_SCALE[numbers.effect_key]})"
-    return effect[:1].upper() + effect[1:] + "."
+    return sentence_start(effect) + "."
 
 
 def paragraph(analysis, key: str, result, numbers: DisplayNumbers) -> str:

@@ -1,0 +1,143 @@
+"""The report of paired data: the design, the pairs left out and why, the pair differences, the
+paired effect sizes labelled so that d_z is not read as d_av, the paired cautions."""
+
+import dataclasses
+import html
+import re
+
+import numpy as np
+import pytest
+from scipy import stats
+
+from engine import report
+from engine.analysis import _robustness, analyze
+from engine.io import read_table
+from engine.io.pairs import pairs_by_id, pairs_by_row
+from engine.paired_effects import paired_effect_sizes
+from engine.procedures.paired import paired_t
+from engine.report import document
+from engine.report.cautions import GENERAL_CAUTIONS, PAIRED_CAUTIONS
+from engine.results import Groups
+from engine.spec import AnalysisSpec
+
+BEFORE = [12.1, 11.8, 13.0, 12.6, 11.2, 12.9, 13.4, 12.2, 11.9, 12.7, 12.4, 13.1]
+AFTER = [11.6, 11.9, 12.1, 12.0, 10.9, 12.2, 12.8, 12.0, 11.1, 12.5, 11.8, 12.3]
+
+
+def _squeezed(plain: str) -> str:
+    return re.sub(" {2,}", "  ", plain)
+
+
+def _wide(tmp_path, blank_row: int | None = None):
+    """A wide file, one row per part; ``blank_row``: the data row whose 'after' cell is blank."""
+    lines = ["before,after"]
+    for i, (b, a) in enumerate(zip(BEFORE, AFTER)):
+        lines.append(f"{b},{'' if i == blank_row else a}")
+    path = tmp_path / "parts.csv"
+    path.write_text("\n".join(lines) + "\n", encoding="utf-8")
+    return path
+
+
+def _paired_analysis(intake, spec):
+    """An analysis of the pairs with the paired t-test and both paired effect sizes (the engine
+    functions the paired records run)."""
+    groups = Groups(intake.labels, intake.x, intake.y)
+    analysis = analyze(groups, spec, source={"file": "parts.csv"})
+    result = paired_t(groups.x, groups.y)
+    sizes, _ = paired_effect_sizes(groups.x, groups.y)
+    procedures = {"paired_t": result}
+    suggestion = dataclasses.replace(analysis.recommendation, key="paired_t", name=result.name)
+    return dataclasses.replace(analysis, procedures=procedures, effect_sizes=sizes, pairs=intake,
+                               recommendation=suggestion,
+                               robustness=_robustness(procedures, 0.95, question=spec.question))
+
+
+@pytest.fixture
+def by_row(tmp_path):
+    table = read_table(_wide(tmp_path, blank_row=4))
+    intake = pairs_by_row(table, columns=("before", "after"))
+    return _paired_analysis(intake, AnalysisSpec(layout="wide", value_columns=("before", "after"),
+                                                  design="paired", seed=1))
+
+
+def test_the_design_and_the_pairs_left_out_are_said(by_row):
+    rows = dict(document.choice_rows(by_row))
+    assert rows["Design"] == "paired: 11 pairs, row by row"
+    assert rows["Sizes"] == "11 pairs"
+    text = report.render(by_row)
+    assert "1 ID or row was left out of the pairs (pair with one value blank: 1)." in text.paragraph
+    assert "Design  Paired: 11 pairs, row by row" in _squeezed(text.plain)
+    page = html.unescape(document.html(by_row))
+    (problem,) = by_row.pairs.problems
+    assert "<h2>Pairs left out</h2>" in page and problem.text in page
+    assert "row 6" in problem.text  # the fifth data row is row 6 of the file
+
+
+def test_pairs_matched_by_an_id_column_say_the_column(tmp_path):
+    path = tmp_path / "long.csv"
+    lines = ["part,stage,load"]
+    for i, (b, a) in enumerate(zip(BEFORE, AFTER)):
+        lines += [f"P{i},before,{b}", f"P{i},after,{a}"]
+    lines.append("P99,before,12.0")  # an ID in one group only
+    path.write_text("\n".join(lines) + "\n", encoding="utf-8")
+    intake = pairs_by_id(read_table(path), values="load", group="stage", pair_id="part")
+    analysis = _paired_analysis(intake, AnalysisSpec(group_column="stage", value_columns=("load",),
+                                                     design="paired", pair_column="part", seed=1))
+    assert dict(document.choice_rows(analysis))["Design"] == "paired: 12 pairs, matched by ID column 'part'"
+    assert "(ID in one group only: 1)" in report.render(analysis).paragraph
+
+
+def test_the_paragraph_speaks_of_the_pair_differences(by_row):
+    x, y = by_row.groups.x, by_row.groups.y
+    d = x - y
+    # reference: scipy's paired t-test
+    reference = stats.ttest_rel(x, y)
+    text = report.render(by_row)
+    assert text.paragraph.startswith("In 11 pairs, before was higher than after on average (SD of the "
+                                     "pair differences ")
+    assert f": mean of the pair differences {np.mean(d):.3f}, 95% CI" in text.paragraph
+    assert report.p_clause(reference.pvalue) in text.paragraph
+    assert "Mean of the pair differences, before minus after  " in _squeezed(text.plain)
+    # the table of the groups carries the differences (numpy's mean and sample SD as reference)
+    line = next(line for line in text.plain.splitlines() if line.startswith("Differences, before minus after"))
+    cells = line.split()
+    assert cells[4] == "11" and float(cells[5]) == pytest.approx(np.mean(d), abs=0.001)
+    assert float(cells[6]) == pytest.approx(np.std(d, ddof=1), abs=0.001)
+
+
+def test_the_paired_effect_sizes_say_what_they_are_standardised_by(by_row):
+    x, y = by_row.groups.x, by_row.groups.y
+    d = x - y
+    # reference: the definitions, worked with numpy (Lakens 2013, Frontiers in Psychology 4:863,
+    # d_z = mean(d) / sd(d) and d_av = mean(d) / ((sd1 + sd2) / 2); recalled from memory)
+    d_z = np.mean(d) / np.std(d, ddof=1)
+    d_av = np.mean(d) / ((np.std(x, ddof=1) + np.std(y, ddof=1)) / 2)
+    text = report.render(by_row)
+    plain = text.plain
+    z_line = next(line for line in plain.splitlines() if line.startswith("- d of the differences (d_z)"))
+    av_line = next(line for line in plain.splitlines() if line.startswith("- d over the average SD"))
+    assert f"= {d_z:.2f} " in z_line and "standardised by the SD of the pair differences" in z_line
+    assert f"= {d_av:.2f} " in av_line and "standardised by the average SD of the two groups" in av_line
+    assert "average SD" not in z_line.split(".")[0] and "pair differences" not in av_line.split(".")[0]
+    # the paragraph's own effect size and the table of the result carry the label too
+    assert f"d of the differences (d_z) = {d_z:.2f}, 95% CI" in text.paragraph
+    assert "(standardised by the SD of the pair differences)" in text.paragraph
+    row = next(line for line in _squeezed(plain).splitlines() if line.startswith("Effect size: d of the differences"))
+    assert f"  {d_z:.2f} (95% CI " in row and row.endswith("), standardised by the SD of the pair differences")
+
+
+def test_paired_cautions_replace_the_independent_groups_one(by_row):
+    said = report.cautions(by_row)
+    assert PAIRED_CAUTIONS[0] in said and GENERAL_CAUTIONS[0] not in said
+    assert GENERAL_CAUTIONS[0] in report.cautions(analyze(by_row.groups, AnalysisSpec(seed=1, resamples=1000)))
+
+
+def test_an_independent_analysis_says_its_design(by_row):
+    analysis = analyze(by_row.groups, AnalysisSpec(seed=1, resamples=1000))
+    assert dict(document.choice_rows(analysis))["Design"] == "two independent groups"
+    assert "Differences, " not in report.render(analysis).plain
+
+
+def test_one_procedure_alone_is_not_said_to_agree(by_row):
+    # one row in the side-by-side view: no "The 1 procedure agree"
+    assert report.agreement(by_row) == "At the 95% level the paired t-test finds a difference."
