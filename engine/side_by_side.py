@@ -91,14 +91,21 @@ def agreement_text(robustness, alternative: str, labels: tuple[str, str], level_
     A one-sided question that none of them answers while the data point the other way is said
     so, never read as "no difference".
     """
+    return _counted(robustness, "No procedure gave an interval or a p-value.",
+                    lambda rows: _agreement(robustness, rows, alternative, labels, level_text))
+
+
+def _counted(robustness, nothing: str, say: Callable) -> str:
+    """``say(rows)`` of the rows that count, followed by the names of those that do not;
+    ``nothing`` when there are no rows at all."""
     if not robustness.rows:
-        return "No procedure gave an interval or a p-value."
+        return nothing
     rows = _voting(robustness)
     aside = [capital(row.name) for row in robustness.rows if row not in rows]
     note = (f" Not counted: {'; '.join(aside)} (the notes under the table say why)." if aside else "")
     if not rows:
         return "No procedure gave a test that holds for these data." + note
-    return _agreement(robustness, rows, alternative, labels, level_text) + note
+    return say(rows) + note
 
 
 def _voting(robustness) -> tuple:
@@ -205,26 +212,24 @@ def margin_claim(question, labels: tuple[str, str], size: str) -> str:
 def margin_agreement_text(robustness, question, labels: tuple[str, str], size: str) -> str:
     """Whether the procedures of a margin question give the same verdict against the margin,
     at the question's level (its alpha), in one to three sentences."""
-    if not robustness.rows:
-        return "No procedure gave an interval to set against the margin."
-    rows = _voting(robustness)
-    aside = [capital(row.name) for row in robustness.rows if row not in rows]
-    note = (f" Not counted: {'; '.join(aside)} (the notes under the table say why)." if aside else "")
-    if not rows:
-        return "No procedure gave a test that holds for these data." + note
+    return _counted(robustness, "No procedure gave an interval to set against the margin.",
+                    lambda rows: _margin_agreement(robustness, rows, question, labels, size))
+
+
+def _margin_agreement(robustness, rows, question, labels: tuple[str, str], size: str) -> str:
     count, alpha = plural(len(rows), "procedure"), level_text(question.alpha)
     claim = margin_claim(question, labels, size)
     showing = [row.name for row in rows if row.finds_difference]
     if len(rows) == 1:
         verdict = "shows" if showing else "does not show"
-        return f"At the {alpha} level the {rows[0].name} {verdict} {claim}." + note
+        return f"At the {alpha} level the {rows[0].name} {verdict} {claim}."
     if robustness.agree:
         verdict = f"each shows {claim}" if showing else f"none shows {claim}"
-        return f"The {count} agree at the {alpha} level: {verdict}." + note
+        return f"The {count} agree at the {alpha} level: {verdict}."
     others = [row.name for row in rows if not row.finds_difference]
     return (f"The procedures disagree at the {alpha} level. {capital(claim)} is shown by "
             f"{name_list(showing)}; it is not shown by {name_list(others)}. The answer depends on "
-            "the procedure, so read each interval against the margin." + note)
+            "the procedure, so read each interval against the margin.")
 
 
 def margin_table(robustness, question, labels: tuple[str, str], numbers_for: Callable,

@@ -15,7 +15,7 @@ from datetime import datetime
 from pathlib import Path
 from typing import Any, Sequence
 
-from ..io.screening import EXCLUSION_WORDS
+from ..io.screening import EXCLUSION_WORDS, MAX_LISTED_EXCLUSIONS
 from ..rounding import format_number
 from ..text import visible_html
 from . import tables
@@ -271,10 +271,13 @@ def html(analysis, procedure: str | None = None, *, pictures: Sequence[Picture] 
     aside = set_aside_rows(analysis)
     parts.append(_table(aside, ("Where", "Why")) if aside else "<p>No values were set aside.</p>")
     if is_paired(analysis):
-        left_out = left_out_items(analysis)
+        left_out = left_out_items(analysis)[:MAX_LISTED_EXCLUSIONS]
         parts.append(f"<h2>{_escape(LEFT_OUT_HEADING)}</h2>")
         parts.append("<ul>" + "".join(f"<li>{_escape(item)}</li>" for item in left_out) + "</ul>"
                      if left_out else "<p>No pairs were left out.</p>")
+        unlisted = len(left_out_items(analysis)) - len(left_out)
+        if unlisted:
+            parts.append(f"<p>{unlisted:,} more, not listed one by one.</p>")
     parts += ["<h2>Findings</h2>", tables.html(findings_blocks(analysis, key))]
     for picture in pictures:
         scale = image_width / picture.width if picture.width else 1.0
