@@ -220,9 +220,12 @@ def _margin_agreement(robustness, rows, question, labels: tuple[str, str], size:
     count, alpha = plural(len(rows), "procedure"), level_text(question.alpha)
     claim = margin_claim(question, labels, size)
     showing = [row.name for row in rows if row.finds_difference]
-    if len(rows) == 1:
-        verdict = "shows" if showing else "does not show"
-        return f"At the {alpha} level the {rows[0].name} {verdict} {claim}."
+    if len(rows) == 1:  # a name may be plural ("two one-sided tests"): the verdict is said of the claim
+        first, second = labels
+        shown = "shown" if showing else "not shown"
+        said = (f"the groups are {shown} to be equivalent within {size}" if question.kind == "equivalent"
+                else f"{first} is {shown} to be not worse than {second} by more than {size}")
+        return f"By the {rows[0].name}, {said} at the {alpha} level."
     if robustness.agree:
         verdict = f"each shows {claim}" if showing else f"none shows {claim}"
         return f"The {count} agree at the {alpha} level: {verdict}."

@@ -294,3 +294,13 @@ def test_no_clear_difference_adds_the_paragraph_on_sameness():
 def test_a_clear_difference_or_a_one_sided_question_adds_none():
     assert report.render(_difference_analysis(0.6)).sameness == ""
     assert report.render(_difference_analysis(0.1, "higher")).sameness == ""
+
+
+def test_one_margin_procedure_alone_gives_the_verdict_in_the_agreement():
+    analysis = _margin_analysis(*_data(), EQUIVALENT)
+    assert report.agreement(analysis) == ("By the two one-sided tests (Welch t), the groups are shown to be "
+                                          "equivalent within ±0.5 at the 5% level.")
+    question = Question("not_worse", 0.95, Margin.not_worse_by(0.02, "lower"))  # the interval reaches -0.031
+    analysis = _margin_analysis(*_data(), question, _non_inferiority)
+    assert report.agreement(analysis) == ("By the non-inferiority t-test (Welch t), new is not shown to be not "
+                                          "worse than old by more than 0.02 at the 5% level.")
