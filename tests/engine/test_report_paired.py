@@ -144,3 +144,38 @@ def test_an_independent_analysis_says_its_design(by_row):
 def test_one_procedure_alone_is_not_said_to_agree(by_row):
     # one row in the side-by-side view: no "The 1 procedure agree"
     assert report.agreement(by_row) == "At the 95% level the paired t-test finds a difference."
+
+
+def test_a_paired_equivalence_question_reads_in_pair_differences(tmp_path):
+    from statsmodels.stats.weightstats import ttost_paired
+
+    from engine.procedures.paired import paired_equivalence
+    from engine.question import Margin, Question
+
+    table = read_table(_wide(tmp_path))
+    intake = pairs_by_row(table, columns=("before", "after"))
+    question = Question("equivalent", 0.95, Margin.within(0.8))
+    spec = AnalysisSpec(layout="wide", value_columns=("before", "after"), design="paired", seed=1,
+                        question=question)
+    groups = Groups(intake.labels, intake.x, intake.y)
+    analysis = analyze(groups, spec)
+    result = paired_equivalence(groups.x, groups.y, low=-0.8, high=0.8)
+    wide = paired_t(groups.x, groups.y).interval
+    result = dataclasses.replace(result, details=dict(result.details, difference_interval=wide))
+    procedures = {result.key: result}
+    analysis = dataclasses.replace(
+        analysis, procedures=procedures, pairs=intake,
+        recommendation=dataclasses.replace(analysis.recommendation, key=result.key, name=result.name),
+        robustness=_robustness(procedures, 0.95, question=question, margin=analysis.margin))
+    text = report.render(analysis)
+    # reference: statsmodels' two one-sided paired t-tests
+    _, lower, upper = ttost_paired(groups.x, groups.y, -0.8, 0.8)
+    assert text.paragraph.startswith("Equivalent within ±0.800 at the 5% level: the 90% confidence interval of "
+                                     "the mean of the pair differences")
+    assert "The groups do differ, by less than the margin" in text.paragraph
+    assert ", before minus after, is " in text.paragraph and " over 12 pairs." in text.paragraph
+    assert (f"give {report.p_clause(lower[1])} against the lower end of the margin, -0.800, and "
+            f"{report.p_clause(upper[1])} against the upper end, 0.800") in text.paragraph
+    assert dict(document.choice_rows(analysis))["Question"] == "Are before and after equivalent within ±0.8?"
+    assert PAIRED_CAUTIONS[0] in report.cautions(analysis)
+    assert any("subject matter" in c for c in report.cautions(analysis))
