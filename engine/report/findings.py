@@ -135,7 +135,7 @@ def _side_by_side_blocks(analysis) -> list[tuple]:
         head, body, notes = margin_table(
             analysis.robustness, analysis.spec.question, analysis.groups.labels, numbers_for,
             analysis.procedures.__getitem__, analysis.margin_answer, ratio=estimate_is_ratio(analysis))
-        grid = ("grid", head, body, 1, True, 2)
+        grid = ("grid", head, body, 1, True, 4)  # estimate, interval, margin, p-values: one line each
     else:
         head, body, notes = procedure_table(
             analysis.robustness, analysis.spec.alternative, analysis.groups.labels,
