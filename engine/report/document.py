@@ -22,7 +22,7 @@ from . import tables
 from .cautions import HEADING as CAUTIONS_HEADING
 from .cautions import cautions
 from .findings import findings_blocks, render
-from .margins import has_margin, margin_entered
+from .margins import estimate_is_ratio, has_margin, margin_entered
 from .numbers import level_text
 from .pairs import LEFT_OUT_HEADING, design_text, is_paired, left_out_items, n_pairs
 from .sentences import procedure_followed, question_text
@@ -81,7 +81,8 @@ def choice_rows(analysis, procedure: str | None = None) -> list[tuple[str, str]]
              else f"{analysis.groups.n[0]} and {analysis.groups.n[1]} values")
     rows = [
         ("Groups compared", f"{labels[0]} (first) and {labels[1]} (second); "
-                            f"differences are {labels[0]} minus {labels[1]}"),
+                            + (f"ratios are {labels[0]} over {labels[1]}" if estimate_is_ratio(analysis)
+                               else f"differences are {labels[0]} minus {labels[1]}")),
         ("Design", design_text(analysis)),
         ("Sizes", sizes),
     ]

@@ -217,6 +217,17 @@ def test_a_ratio_margin_reads_as_a_ratio_of_group_1_over_group_2():
     assert "Margin as entered: 0.80 to 1.25 as a ratio of new's geometric mean to old's." in text.paragraph
     assert "Estimate, new over old" in text.plain
     assert "minus" not in next(line for line in text.plain.splitlines() if line.startswith("Ratio of"))
+    assert dict(document.choice_rows(analysis))["Groups compared"].endswith("ratios are new over old")
+
+
+def test_the_table_of_the_groups_keeps_the_decimals_of_the_values_not_of_a_ratio():
+    rng = np.random.default_rng(5)
+    x, y = rng.lognormal(6.0, 0.05, 40), rng.lognormal(6.0, 0.05, 40)  # values near 400
+    question = Question("equivalent", 0.95, Margin.within(0.95, 1.05, "ratio"))
+    analysis = _margin_analysis(x, y, question, _log_tost)
+    assert report.display_numbers(analysis).decimals == 3  # a ratio near 1
+    new_row = next(line for line in report.render(analysis).plain.splitlines() if line.startswith("new "))
+    assert new_row.split()[2] == f"{np.mean(x):.1f}"  # numpy's mean, to four significant digits
 
 
 def test_the_side_by_side_table_shows_interval_margin_p_values_and_reading():
