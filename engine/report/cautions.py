@@ -33,9 +33,9 @@ GENERAL_CAUTIONS = (
 
 # The same for matched pairs.
 PAIRED_CAUTIONS = (
-    "These procedures assume that the two values of each pair belong to the same unit and that the "
-    "pairs are independent of one another; pairs matched wrongly (a mistyped ID, a shifted row) make "
-    "the differences meaningless, and units measured more than twice need another design.",
+    "These procedures assume the pairs are independent of one another: each pair a different unit, "
+    "measured once in each group; several pairs from one unit, or units measured more than twice, "
+    "need another design.",
 )
 
 # For an equivalence or non-inferiority question, in place of the p-value and regulated-work

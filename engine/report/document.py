@@ -20,8 +20,8 @@ from ..rounding import format_number
 from ..text import visible_html
 from . import tables
 from .cautions import HEADING as CAUTIONS_HEADING
-from .cautions import cautions
-from .findings import findings_blocks, render
+from .cautions import caution_blocks, cautions
+from .findings import findings_blocks
 from .margins import estimate_is_ratio, has_margin, margin_entered
 from .numbers import level_text
 from .pairs import LEFT_OUT_HEADING, design_text, is_paired, left_out_items, n_pairs
@@ -318,4 +318,6 @@ def text(analysis, procedure: str | None = None) -> str:
     """The command's plain-text report: :func:`text_lines` around the findings of ``procedure``
     (see :func:`procedure_key`)."""
     key = procedure_key(analysis, procedure)
-    return "\n".join(text_lines(analysis, render(analysis, procedure=key).plain)) + "\n"
+    # the screening above the findings lists the pairs left out already
+    findings = tables.plain(findings_blocks(analysis, key) + caution_blocks(analysis))
+    return "\n".join(text_lines(analysis, findings)) + "\n"

@@ -6,12 +6,10 @@ read as d_av.
 
 from __future__ import annotations
 
-import math
-
 import numpy as np
 
 from ..io.pairs import PAIR_PROBLEMS
-from ..rounding import fixed, format_number, shared_decimals
+from ..rounding import fixed, shared_decimals
 from ..summary import summarize
 from ..wording import GLOSSES, gloss_line, plural, sentence_start
 from .numbers import EFFECT_DECIMALS, _effect_decimals, format_interval, level_text
@@ -160,14 +158,11 @@ def paired_opening(analysis, estimate: float, decimals: int | None, *, by_signs:
 
 
 def check_blocks(analysis, notes: list[str]) -> list[tuple]:
-    """The checks on the pair differences (shape, outliers, the correlation within pairs) as
-    report blocks, followed by the analysis's own ``notes``."""
+    """The checks on the pair differences (their shape, values apart, zeros, how closely the two
+    values of a pair go together: the paired checks' own findings) as report blocks, followed by
+    the analysis's own ``notes``."""
     checks = getattr(analysis, "paired", None)
     readings = [finding.text for finding in getattr(checks, "findings", ())] if checks is not None else []
-    r = getattr(checks, "correlation", float("nan")) if checks is not None else float("nan")
-    if r is not None and math.isfinite(r):
-        readings.append(f"The two values of a pair have Pearson correlation r = {format_number(r, digits=2)}; "
-                        "the nearer it is to 1, the more of the variation between units the pairing removes.")
     readings += notes
     if not readings:
         return []

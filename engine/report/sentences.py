@@ -284,7 +284,8 @@ def paragraph(analysis, key: str, result, numbers: DisplayNumbers) -> str:
     if effect:
         sentences.append(effect)
     sentences.extend(w if w.endswith(".") else w + "." for w in result.warnings)
-    for left_out in (_exclusions(analysis), left_out_sentence(analysis) if is_paired(analysis) else ""):
+    # in a paired design a cell left out takes its pair with it: the pairs say it all
+    for left_out in ((left_out_sentence(analysis),) if is_paired(analysis) else (_exclusions(analysis),)):
         if left_out:
             sentences.append(left_out)
     recommended = analysis.recommendation.key
