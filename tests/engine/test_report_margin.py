@@ -12,9 +12,6 @@ from statsmodels.stats.weightstats import ttost_ind
 
 from engine import report
 from engine.analysis import _robustness, analyze
-from engine.procedures.equivalence import equivalence_t, noninferiority_t
-from engine.procedures.equivalence_intervals import equivalence_log_t
-from engine.procedures.t import welch_t
 from engine.question import Margin, Question
 from engine.report import document
 from engine.report.cautions import CAUTIONS_ALWAYS, MARGIN_CAUTIONS
@@ -25,32 +22,11 @@ from engine.spec import AnalysisSpec
 LABELS = ("new", "old")
 
 
-# -- margin analyses as the result contract of a margin procedure describes them -----------------
-# (interval: the two-sided 1 - 2 alpha one; details: the 1 - alpha difference interval, the two
-# one-sided p-values, the margin as entered)
-
-def _tost(x, y, margin, level, note):
-    result = equivalence_t(x, y, low=margin.low, high=margin.high, confidence_level=level)
-    wide = welch_t(x, y, confidence_level=level).interval
-    return dataclasses.replace(result, details=dict(result.details, difference_interval=wide, margin_note=note))
-
-
-def _non_inferiority(x, y, margin, level, note):
-    result = noninferiority_t(x, y, margin=abs(margin.bound), worse=margin.worse, confidence_level=level)
-    narrow = welch_t(x, y, confidence_level=1 - 2 * (1 - level)).interval
-    return dataclasses.replace(result, interval=narrow, details=dict(result.details, margin_note=note))
-
-
-def _log_tost(x, y, margin, level, note):
-    result = equivalence_log_t(x, y, low=margin.low, high=margin.high, confidence_level=level, margin_note=note)
-    logged = welch_t(np.log(x), np.log(y), confidence_level=level).interval
-    wide = Interval(float(np.exp(logged.low)), float(np.exp(logged.high)), level)
-    return dataclasses.replace(result, details=dict(result.details, difference_interval=wide))
-
+# -- margin analyses ------------------------------------------------------------------------------
 
 def _with_results(analysis, results):
     """``analysis`` with ``results`` as its procedures (the first suggested) and its side-by-side
-    view worked out by the engine's own rule."""
+    view worked out by the engine's own rule (for intervals a test needs to choose)."""
     procedures = {r.key: r for r in results}
     first = results[0]
     suggestion = dataclasses.replace(analysis.recommendation, key=first.key, name=first.name)
@@ -60,12 +36,10 @@ def _with_results(analysis, results):
                                                       margin=analysis.margin))
 
 
-def _margin_analysis(x, y, question, make=_tost):
+def _margin_analysis(x, y, question, **spec):
+    """The whole analysis of a margin question, as the window and the command run it."""
     groups = Groups(LABELS, np.asarray(x, float), np.asarray(y, float))
-    analysis = analyze(groups, AnalysisSpec(question=question, seed=1))
-    result = make(groups.x, groups.y, analysis.margin, question.level,
-                  question.margin.note(float(np.mean(groups.y))))
-    return _with_results(analysis, [result])
+    return analyze(groups, AnalysisSpec(question=question, seed=1, resamples=1000, **spec))
 
 
 def _data(shift=0.1, n=30, seed=3):
@@ -167,7 +141,8 @@ def test_the_non_inferiority_cases_read_right(worse, narrow, opening, reading):
 def test_non_inferiority_p_value_is_the_one_sided_test_at_the_worse_end():
     x, y = _data(shift=0.05)
     question = Question("not_worse", 0.95, Margin.not_worse_by(0.3, "lower"))
-    analysis = _margin_analysis(x, y, question, _non_inferiority)
+    analysis = _margin_analysis(x, y, question)
+    assert analysis.recommendation.key == "noninferiority_welch"
     # reference: statsmodels ttost_ind's lower test is the one-sided Welch test of H0: diff <= -0.3
     _, lower, _ = ttost_ind(x, y, -0.3, 0.3, usevar="unequal")
     text = report.render(analysis)
@@ -210,7 +185,8 @@ def test_a_ratio_margin_reads_as_a_ratio_of_group_1_over_group_2():
     rng = np.random.default_rng(5)
     x, y = rng.lognormal(2.0, 0.2, 40), rng.lognormal(2.0, 0.2, 40)
     question = Question("equivalent", 0.95, Margin.within(0.8, 1.25, "ratio"))
-    analysis = _margin_analysis(x, y, question, _log_tost)
+    analysis = _margin_analysis(x, y, question)
+    assert analysis.recommendation.key == "equivalence_log_welch"
     text = report.render(analysis)
     assert text.paragraph.startswith("Equivalent within a ratio of 0.80 to 1.25 at the 5% level")
     assert ", new over old, is " in text.paragraph
@@ -224,7 +200,8 @@ def test_the_table_of_the_groups_keeps_the_decimals_of_the_values_not_of_a_ratio
     rng = np.random.default_rng(5)
     x, y = rng.lognormal(6.0, 0.05, 40), rng.lognormal(6.0, 0.05, 40)  # values near 400
     question = Question("equivalent", 0.95, Margin.within(0.95, 1.05, "ratio"))
-    analysis = _margin_analysis(x, y, question, _log_tost)
+    analysis = _margin_analysis(x, y, question)
+    assert analysis.recommendation.key == "equivalence_log_welch"
     assert report.display_numbers(analysis).decimals == 3  # a ratio near 1
     new_row = next(line for line in report.render(analysis).plain.splitlines() if line.startswith("new "))
     assert new_row.split()[2] == f"{np.mean(x):.1f}"  # numpy's mean, to four significant digits
@@ -233,17 +210,21 @@ def test_the_table_of_the_groups_keeps_the_decimals_of_the_values_not_of_a_ratio
 def test_the_side_by_side_table_shows_interval_margin_p_values_and_reading():
     x, y = _data()
     analysis = _margin_analysis(x, y, EQUIVALENT)
-    bootstrap = ProcedureResult("equivalence_bootstrap_bca", "equivalence by the bootstrap (BCa interval)",
-                                0.15, "difference in means", None, None, None, None, Interval(-0.6, 0.3, 0.9),
-                                "two-sided", "bootstrap", {"difference_interval": Interval(-0.7, 0.4, 0.95)})
-    analysis = _with_results(analysis, [analysis.chosen, bootstrap])
+    assert list(analysis.procedures) == ["equivalence_welch", "equivalence_ranks", "equivalence_bootstrap_bca"]
     blocks = report.findings.findings_blocks(analysis)
     grid = next(b for b in blocks if b[0] == "grid" and b[1][0] == "Procedure")
     head, body = grid[1], grid[2]
     assert head == ["Procedure", "Estimate, new minus old", "90% interval", "Margin",
                     "One-sided p-values, lower end; upper end", "At the 5% level"]
-    assert body[0][3] == "-0.500 to 0.500" and body[0][5] == "equivalent"
-    assert body[1][4] == "none" and body[1][5].startswith("not clear either way")
+    welch, ranks, bootstrap = body
+    # reference: statsmodels ttost_ind (Welch) for the two one-sided p-values of the first row
+    _, lower, upper = ttost_ind(x, y, -0.5, 0.5, usevar="unequal")
+    assert welch[3] == "-0.500 to 0.500" and welch[4] == f"{format_p(lower[1])}; {format_p(upper[1])}"
+    for row in body:
+        answer = analysis.margin_answer(next(k for k in analysis.procedures
+                                             if report.capital(analysis.procedures[k].name) in row[0]))
+        assert row[5].startswith(EQUIVALENT.margin_reading(answer))
+    assert bootstrap[4] == "none" and bootstrap[5].endswith("(not counted)")
     agreement = report.agreement(analysis)
     assert "within ±0.5" in agreement and "finds a difference" not in agreement
     notes = [b[1] for b in blocks if b[0] == "small"]
@@ -266,6 +247,7 @@ def test_the_margin_cautions_replace_the_ones_about_a_difference():
 
 def test_the_report_page_says_the_question_margin_and_levels():
     analysis = _margin_analysis(*_data(), Question("equivalent", 0.9, Margin.within(0.5)))
+    assert analysis.recommendation.key == "equivalence_welch"
     rows = dict(document.choice_rows(analysis))
     assert rows["Confidence level"] == ("90% (a test at the 10% level; the two-sided 80% interval is set "
                                         "against the margin)")
@@ -309,9 +291,11 @@ def test_a_clear_difference_or_a_one_sided_question_adds_none():
 
 def test_one_margin_procedure_alone_gives_the_verdict_in_the_agreement():
     analysis = _margin_analysis(*_data(), EQUIVALENT)
+    analysis = _with_results(analysis, [analysis.chosen])
     assert report.agreement(analysis) == ("By the two one-sided tests (Welch t), the groups are shown to be "
                                           "equivalent within ±0.5 at the 5% level.")
     question = Question("not_worse", 0.95, Margin.not_worse_by(0.02, "lower"))  # the interval reaches -0.031
-    analysis = _margin_analysis(*_data(), question, _non_inferiority)
+    analysis = _margin_analysis(*_data(), question)
+    analysis = _with_results(analysis, [analysis.procedures["noninferiority_welch"]])
     assert report.agreement(analysis) == ("By the non-inferiority t-test (Welch t), new is not shown to be not "
                                           "worse than old by more than 0.02 at the 5% level.")
