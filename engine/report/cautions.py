@@ -7,6 +7,8 @@ for every comparison and follow them.
 
 from __future__ import annotations
 
+from ..margin_advice import MARGIN_CAUTION
+
 __all__ = ["cautions", "caution_blocks", "HEADING", "CAUTIONS_ALWAYS", "GENERAL_CAUTIONS", "MARGIN_CAUTIONS",
            "PAIRED_CAUTIONS"]
 
@@ -41,9 +43,7 @@ PAIRED_CAUTIONS = (
 # For an equivalence or non-inferiority question, in place of the p-value and regulated-work
 # cautions above (which speak of a difference).
 MARGIN_CAUTIONS = (
-    "The margin must come from the subject matter (the largest difference that would make no "
-    "practical difference) and be fixed before the data are seen; a margin chosen after seeing them "
-    "can be made wide enough to pass, and the verdict then means nothing.",
+    MARGIN_CAUTION,  # the margin's own caution, said once wherever a margin is
     "A p-value of the one-sided tests says how surprising the data would be if the true difference lay "
     "at the edge of the margin; it is not the size of the difference. Read the estimate and its "
     "interval against the margin for that.",
@@ -66,7 +66,8 @@ def cautions(analysis) -> list[str]:
     if getattr(analysis, "margin", None) is not None:
         always = list(MARGIN_CAUTIONS) + [c for c in always if c not in _SAID_FOR_A_MARGIN]
     paired = getattr(analysis.spec, "design", "independent") == "paired"
-    return own + always + list(PAIRED_CAUTIONS if paired else GENERAL_CAUTIONS)
+    # a caution the suggestion already gave (the margin's) is said once
+    return list(dict.fromkeys(own + always + list(PAIRED_CAUTIONS if paired else GENERAL_CAUTIONS)))
 
 
 def caution_blocks(analysis) -> list[tuple]:

@@ -238,7 +238,7 @@ def test_the_margin_cautions_replace_the_ones_about_a_difference():
     for caution in MARGIN_CAUTIONS:
         assert caution in said
     assert CAUTIONS_ALWAYS[1] not in said  # "if there were no difference" does not fit a margin
-    assert any("subject matter" in c and "before the data are seen" in c for c in said)
+    assert sum("subject matter" in c and "before the data are seen" in c for c in said) == 1
     assert any("not the size of the difference" in c for c in said)
     assert any(c.startswith("Regulated") for c in said)
     page = document.html(analysis)
