@@ -45,9 +45,20 @@ def margin_size(analysis, question=None, labels: tuple[str, str] | None = None) 
         if margin.unit == "percent":
             given = Margin(margin.low, margin.high, "units", margin.worse)
             return f"{question.margin_text(given, labels, entered_decimals([margin.low, margin.high]))}% of {labels[1]}'s mean"
-    given = question.margin.unit != "percent"  # a percentage is converted: its units were not entered
-    decimals = (entered_decimals if given else shared_decimals)([margin.low, margin.high])
+    if question.margin.unit == "percent":  # converted: written as the verdict writes it
+        decimals = _converted_decimals(analysis, None)
+    else:
+        decimals = entered_decimals([margin.low, margin.high])
     return question.margin_text(margin, labels, decimals)
+
+
+def _converted_decimals(analysis, key: str | None) -> int | None:
+    """Decimals for a percentage margin converted to units: those of the verdict of procedure
+    ``key`` (default: the suggested one), so that the margin reads alike in every sentence."""
+    answer = analysis.margin_answer(key or analysis.recommendation.key)
+    if answer is not None:
+        return margin_decimals(answer)
+    return shared_decimals([analysis.margin.low, analysis.margin.high])
 
 
 def _group2_mean(analysis, key: str | None) -> str:
@@ -84,7 +95,7 @@ def margin_entered(analysis, key: str | None = None) -> str:
             return f"{text} in the measurement's units; {worse}"
         (text,) = _entered(size)
         converted = abs(units.bound)
-        shown = fixed(converted, shared_decimals([converted]))
+        shown = fixed(converted, _converted_decimals(analysis, key))
         return (f"{text}% of {second}'s mean ({_group2_mean(analysis, key)}), that is {shown} in the "
                 f"measurement's units; {worse}")
     low, high = _entered(given.low, given.high)
@@ -92,7 +103,7 @@ def margin_entered(analysis, key: str | None = None) -> str:
         return f"{low} to {high} {ratio}"
     if given.unit == "units":
         return f"{low} to {high} in the measurement's units"
-    decimals = shared_decimals([units.low, units.high])
+    decimals = _converted_decimals(analysis, key)
     return (f"{low}% to {high}% of {second}'s mean ({_group2_mean(analysis, key)}), that is "
             f"{fixed(units.low, decimals)} to {fixed(units.high, decimals)} in the measurement's units")
 

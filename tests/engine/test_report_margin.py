@@ -5,12 +5,13 @@ the cautions; and the paragraph after a "differ" question answered "no clear evi
 import dataclasses
 import html
 import re
+from pathlib import Path
 
 import numpy as np
 import pytest
 from statsmodels.stats.weightstats import ttost_ind
 
-from engine import report
+from engine import pipeline, report
 from engine.analysis import _robustness, analyze
 from engine.question import Margin, Question
 from engine.report import document
@@ -299,3 +300,18 @@ def test_one_margin_procedure_alone_gives_the_verdict_in_the_agreement():
     analysis = _with_results(analysis, [analysis.procedures["noninferiority_welch"]])
     assert report.agreement(analysis) == ("By the non-inferiority t-test (Welch t), new is not shown to be not "
                                           "worse than old by more than 0.02 at the 5% level.")
+
+
+def test_a_converted_margin_reads_alike_in_every_sentence():
+    # the adhesive demo file: a wide interval, so the verdict writes the margin to one decimal
+    demo = Path(__file__).resolve().parents[2] / "demo_files" / "adhesive_cure_times.csv"
+    question = Question("not_worse", 0.95, Margin.not_worse_by(10, "higher", "percent"))
+    analysis = pipeline.from_file(demo, AnalysisSpec(question=question, seed=7, resamples=1000)).analysis
+    second = analysis.groups.labels[1]
+    text = report.render(analysis)
+    shown = re.search(rf"by more than (\S+) \(10% of {second}'s mean\)", text.paragraph).group(1)
+    assert float(shown) == pytest.approx(0.10 * abs(np.mean(analysis.groups.y)), abs=0.05)
+    assert f"that is {shown} in the measurement's units; higher values are worse" in text.paragraph
+    assert f"by more than {shown} (10% of {second}'s mean)" in report.agreement(analysis)
+    assert f"by more than {shown} (10% of {second}'s mean), where higher" in dict(
+        document.choice_rows(analysis))["Question"]
