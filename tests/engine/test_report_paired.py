@@ -2,6 +2,7 @@
 paired effect sizes labelled so that d_z is not read as d_av, the paired cautions."""
 
 import dataclasses
+from pathlib import Path
 import html
 import re
 
@@ -9,7 +10,7 @@ import numpy as np
 import pytest
 from scipy import stats
 
-from engine import report
+from engine import pipeline, report
 from engine.analysis import _robustness, analyze
 from engine.io import read_table
 from engine.io.pairs import pairs_by_id, pairs_by_row
@@ -171,3 +172,38 @@ def test_a_paired_equivalence_question_reads_in_pair_differences(tmp_path):
     assert dict(document.choice_rows(analysis))["Question"] == "Are before and after equivalent within ±0.8?"
     assert PAIRED_CAUTIONS[0] in report.cautions(analysis)
     assert any("subject matter" in c for c in report.cautions(analysis))
+
+
+# -- through the pipeline, as the window and the command run it -----------------------------------
+
+DEMO = Path(__file__).resolve().parents[2] / "demo_files" / "rod_diameters.csv"
+
+
+@pytest.fixture(scope="module")
+def rods():
+    spec = AnalysisSpec(layout="wide", value_columns=("caliper_mm", "laser_mm"), design="paired", seed=1,
+                        resamples=1000)
+    return pipeline.from_file(DEMO, spec).analysis
+
+
+def test_a_paired_file_reads_right_through_the_pipeline(rods):
+    x, y = rods.groups.x, rods.groups.y
+    reference = stats.ttest_rel(x, y)  # reference: scipy's paired t-test
+    text = report.render(rods)
+    assert text.paragraph.startswith(f"In {x.size} pairs, caliper_mm was higher than laser_mm on average")
+    assert f"paired t({x.size - 1}) = {reference.statistic:.2f}, {report.p_clause(reference.pvalue)}" in text.paragraph
+    # a blank cell takes its pair with it: counted once, as a pair
+    assert "left out before the comparison" not in text.paragraph
+    assert "1 ID or row was left out of the pairs (pair with one value blank: 1)." in text.paragraph
+    for finding in rods.paired.findings:
+        assert finding.text in text.plain
+    assert "Shape and spread of the groups" not in text.plain
+    (problem,) = rods.pairs.problems
+    assert document.text(rods).count(problem.text) == 1
+
+
+def test_the_signed_rank_result_counts_the_pairs_each_way(rods):
+    d = rods.groups.x - rods.groups.y
+    paragraph = report.render(rods, procedure="signed_rank").paragraph
+    higher, lower = int(np.sum(d > 0)), int(np.sum(d < 0))
+    assert paragraph.startswith(f"Of {d.size} pairs, caliper_mm was higher than laser_mm in {higher}, lower in {lower}")
