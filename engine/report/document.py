@@ -101,9 +101,10 @@ def choice_rows(analysis, procedure: str | None = None) -> list[tuple[str, str]]
     rows += [
         ("Confidence level", level),
         ("Procedure followed", procedure_followed(analysis, procedure_key(analysis, procedure))),
-        ("Spreads known to be equal", _yes_no(statements.equal_spread_known)),
-        ("Values are ordinal ratings", _yes_no(statements.ordinal)),
     ]
+    if not paired:  # the paired procedures look at the differences alone, never at two spreads
+        rows.append(("Spreads known to be equal", _yes_no(statements.equal_spread_known)))
+    rows.append(("Values are ordinal ratings", _yes_no(statements.ordinal)))
     if paired:
         rows.append(("Differences of zero", ZERO_RULE_WORDS.get(spec.zero_rule, spec.zero_rule)))
     if statements.known_sd is not None:

@@ -65,6 +65,7 @@ def test_the_design_and_the_pairs_left_out_are_said(by_row):
     rows = dict(document.choice_rows(by_row))
     assert rows["Design"] == "paired: 11 pairs, row by row"
     assert rows["Sizes"] == "11 pairs"
+    assert "Spreads known to be equal" not in rows  # nothing paired rests on two spreads
     text = report.render(by_row)
     assert "1 ID or row was left out of the pairs (pair with one value blank: 1)." in text.paragraph
     assert "Design  Paired: 11 pairs, row by row" in _squeezed(text.plain)
