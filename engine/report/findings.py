@@ -240,8 +240,8 @@ def _findings(analysis, procedure: str | None) -> tuple[str, str, list[tuple]]:
     words = visible(paragraph(analysis, key, result, numbers))  # one line, as it is shown
     rows = _result_rows(analysis, key, result, numbers)
     sameness = visible(sameness_paragraph(analysis, key, numbers))
-    # a ratio's decimals say nothing of the values' own (a ratio near 1 needs three)
-    decimals = _summary_decimals(analysis, None if estimate_is_ratio(analysis) else numbers.decimals)
+    # a ratio's or a probability's decimals say nothing of the values' own (near 1 or 1/2 they need three)
+    decimals = _summary_decimals(analysis, numbers.decimals, key)
     if pairs.is_paired(analysis):
         decimals = pairs.with_differences(analysis, decimals)
     head, body = _summary_rows(analysis, decimals)

@@ -65,7 +65,7 @@ def _group2_mean(analysis, key: str | None) -> str:
     """Group 2's mean as the table of the groups shows it in the report of procedure ``key``."""
     result = analysis.procedures.get(key) if key is not None else None
     decimals = _numbers(analysis, key, result).decimals if result is not None else None
-    return fixed(analysis.summaries[1].mean, _summary_decimals(analysis, decimals))
+    return fixed(analysis.summaries[1].mean, _summary_decimals(analysis, decimals, key))
 
 
 def _entered(*values: float) -> list[str]:

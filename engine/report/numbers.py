@@ -220,7 +220,15 @@ def _numbers(analysis, key: str, result) -> DisplayNumbers:
     )
 
 
-def _summary_decimals(analysis, numbers_decimals: int | None) -> int | None:
+# Estimates that are not in the values' own units (their decimals say nothing of the values').
+_UNITLESS = {r.key for r in RECORDS if r.estimate_kind in ("probability", "ratio")}
+
+
+def _summary_decimals(analysis, numbers_decimals: int | None, key: str | None = None) -> int | None:
+    """Decimals of the group summaries: their own, or more to match those of procedure ``key``'s
+    estimate when it is in the values' units (a probability or a ratio is not)."""
+    if key in _UNITLESS:
+        numbers_decimals = None
     values = []
     for s in analysis.summaries:
         values += [s.mean, s.sd, s.median, s.q1, s.q3]

@@ -108,7 +108,7 @@ def _direction(analysis, key: str, estimate: float, result_decimals: int | None)
     if is_paired(analysis):
         return paired_opening(analysis, estimate, result_decimals, by_signs=key in RANK_KEYS)
     first, second = analysis.summaries
-    decimals = _summary_decimals(analysis, result_decimals)
+    decimals = _summary_decimals(analysis, result_decimals, key)
     measure = _measure(analysis)
     a, b = _group_phrase(first, key, decimals), _group_phrase(second, key, decimals)
     if key in RANK_KEYS:

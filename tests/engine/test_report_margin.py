@@ -315,3 +315,15 @@ def test_a_converted_margin_reads_alike_in_every_sentence():
     assert f"by more than {shown} (10% of {second}'s mean)" in report.agreement(analysis)
     assert f"by more than {shown} (10% of {second}'s mean), where higher" in dict(
         document.choice_rows(analysis))["Question"]
+
+
+def test_a_probability_estimate_leaves_the_groups_their_own_decimals():
+    # the adhesive demo file: the suggested Brunner-Munzel estimate is a probability near 1/2
+    demo = Path(__file__).resolve().parents[2] / "demo_files" / "adhesive_cure_times.csv"
+    analysis = pipeline.from_file(demo, AnalysisSpec(seed=7, resamples=1000)).analysis
+    assert analysis.recommendation.key == "brunner_munzel"
+    text = report.render(analysis)
+    median = float(np.median(analysis.groups.x))  # numpy's median as the reference
+    assert f"(median {median:.1f}, quartiles" in text.paragraph
+    first_row = next(line for line in text.plain.splitlines() if line.startswith(analysis.groups.labels[0] + " "))
+    assert first_row.split()[4] == f"{median:.1f}"
