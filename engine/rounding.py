@@ -16,7 +16,7 @@ import math
 from typing import Iterable
 
 __all__ = ["format_p", "p_clause", "level_text", "format_number", "format_shape", "shared_decimals", "fixed",
-           "decimals_for", "P_FLOOR", "P_CEILING", "NOT_AVAILABLE", "SCIENTIFIC_SMALL",
+           "decimals_for", "entered_decimals", "P_FLOOR", "P_CEILING", "NOT_AVAILABLE", "SCIENTIFIC_SMALL",
            "SCIENTIFIC_LARGE"]
 
 # Below this a p-value is written as "< 0.001" (common practice in journals).
@@ -203,6 +203,26 @@ def shared_decimals(values: Iterable[float | None], digits: int = 3, *,
     top = max(decimals, MAX_SIGNIFICANT - 1 - math.floor(math.log10(largest)))
     while decimals < top and not _distinct(distinct, decimals, digits):
         decimals += 1
+    return decimals
+
+
+# Significant digits that show a number the user typed as typed (a float carries 15 to 17; the
+# last of them are noise of the arithmetic, as in 8.4 * 5 / 100 = 0.42000000000000004).
+ENTERED_DIGITS = 12
+
+
+def entered_decimals(values: Iterable[float | None]) -> int | None:
+    """Decimals that show every one of ``values`` as the user entered it (a margin of 0.5 reads
+    "0.5", of 1.25 "1.25", never "0.500"), shared by all of them; None when one of them needs
+    scientific notation (:func:`fixed` then writes each to three significant digits)."""
+    decimals = 0
+    for value in values:
+        if value is None or not math.isfinite(value):
+            continue
+        text = f"{abs(float(value)):.{ENTERED_DIGITS}g}"
+        if "e" in text:
+            return None
+        decimals = max(decimals, len(text.partition(".")[2]))
     return decimals
 
 

@@ -12,11 +12,12 @@ from typing import Callable
 
 from .procedures.registry import RECORDS, find
 from .question import Question
-from .rounding import format_p
+from .rounding import entered_decimals, fixed, format_p, level_text
 from .wording import capital, name_list, plural
 
 __all__ = ["PROBABILITY_KEYS", "against_question", "reverse_is_clear", "question_claim", "row_reading",
-           "agreement_text", "against_sentence", "procedure_table", "NO_INTERVAL_WHY", "NO_P_VALUE_WHY"]
+           "agreement_text", "against_sentence", "procedure_table", "NO_INTERVAL_WHY", "NO_P_VALUE_WHY",
+           "margin_claim", "margin_agreement_text", "alpha_number", "margin_table", "NO_MARGIN_P_VALUE_WHY"]
 
 # Why a procedure gives a p-value but no interval, for the rows that have none.
 NO_INTERVAL_WHY = {
@@ -28,6 +29,9 @@ _NO_INTERVAL_DEFAULT = "This procedure gives a p-value but no interval."
 # Why the bootstrap rows have no p-value, and how they are read without one.
 NO_P_VALUE_WHY = ("A bootstrap gives an interval but no p-value; its row reads as finding a "
                   "difference when the interval leaves out zero.")
+# The same for a question with a margin.
+NO_MARGIN_P_VALUE_WHY = ("A row without a p-value reads from its interval alone: inside the margin, "
+                         "or past its worse end, as for the rows with tests.")
 
 
 # Procedures whose estimate is a probability (of a value of group 1 being the larger), centred
@@ -87,14 +91,21 @@ def agreement_text(robustness, alternative: str, labels: tuple[str, str], level_
     A one-sided question that none of them answers while the data point the other way is said
     so, never read as "no difference".
     """
+    return _counted(robustness, "No procedure gave an interval or a p-value.",
+                    lambda rows: _agreement(robustness, rows, alternative, labels, level_text))
+
+
+def _counted(robustness, nothing: str, say: Callable) -> str:
+    """``say(rows)`` of the rows that count, followed by the names of those that do not;
+    ``nothing`` when there are no rows at all."""
     if not robustness.rows:
-        return "No procedure gave an interval or a p-value."
+        return nothing
     rows = _voting(robustness)
     aside = [capital(row.name) for row in robustness.rows if row not in rows]
     note = (f" Not counted: {'; '.join(aside)} (the notes under the table say why)." if aside else "")
     if not rows:
         return "No procedure gave a test that holds for these data." + note
-    return _agreement(robustness, rows, alternative, labels, level_text) + note
+    return say(rows) + note
 
 
 def _voting(robustness) -> tuple:
@@ -115,6 +126,13 @@ def _agreement(robustness, rows, alternative: str, labels: tuple[str, str], leve
                     f"{_other(alternative)} than {labels[1]}, the other way. A one-sided question "
                     "cannot find that direction: to look for a difference either way, the "
                     "two-sided question has to be chosen before the data are seen.")
+    if len(rows) == 1:  # one procedure cannot agree or disagree with itself
+        if finding:
+            verdict = "finds a difference" if alternative == "two-sided" else f"finds clear evidence of {claim}"
+        else:
+            verdict = ("finds no clear difference" if alternative == "two-sided"
+                       else f"finds no clear evidence of {claim}")
+        return f"At the {level_text} level the {rows[0].name} {verdict}."
     if robustness.agree:
         if finding:
             verdict = ("all find a difference" if alternative == "two-sided"
@@ -170,6 +188,105 @@ def procedure_table(robustness, alternative: str, labels: tuple[str, str], level
             reading += " (not counted)"
             aside.setdefault(row.not_voting_because, []).append(capital(row.name))
         body.append([name, numbers.estimate, interval, p, reading])
+    notes += [f"Not counted in whether the procedures agree: {'; '.join(names)}. "
+              + (because if len(names) == 1 else _each(because))
+              for because, names in aside.items()]
+    return head, body, notes
+
+
+# -- a question with a margin ---------------------------------------------------------------------
+
+def alpha_number(question) -> str:
+    """The question's alpha as a number to compare a p-value with: "0.05"."""
+    return fixed(question.alpha, entered_decimals([question.alpha]))
+
+
+def margin_claim(question, labels: tuple[str, str], size: str) -> str:
+    """What a margin question looks for: "the groups equivalent within ±0.5", "new not worse
+    than old by more than 0.5"."""
+    if question.kind == "equivalent":
+        return f"the groups equivalent within {size}"
+    return f"{labels[0]} not worse than {labels[1]} by more than {size}"
+
+
+def margin_agreement_text(robustness, question, labels: tuple[str, str], size: str) -> str:
+    """Whether the procedures of a margin question give the same verdict against the margin,
+    at the question's level (its alpha), in one to three sentences."""
+    return _counted(robustness, "No procedure gave an interval to set against the margin.",
+                    lambda rows: _margin_agreement(robustness, rows, question, labels, size))
+
+
+def _margin_agreement(robustness, rows, question, labels: tuple[str, str], size: str) -> str:
+    count, alpha = plural(len(rows), "procedure"), level_text(question.alpha)
+    claim = margin_claim(question, labels, size)
+    showing = [row.name for row in rows if row.finds_difference]
+    if len(rows) == 1:  # a name may be plural ("two one-sided tests"): the verdict is said of the claim
+        first, second = labels
+        shown = "shown" if showing else "not shown"
+        said = (f"the groups are {shown} to be equivalent within {size}" if question.kind == "equivalent"
+                else f"{first} is {shown} to be not worse than {second} by more than {size}")
+        return f"By the {rows[0].name}, {said} at the {alpha} level."
+    if robustness.agree:
+        verdict = f"each shows {claim}" if showing else f"none shows {claim}"
+        return f"The {count} agree at the {alpha} level: {verdict}."
+    others = [row.name for row in rows if not row.finds_difference]
+    return (f"The procedures disagree at the {alpha} level. {capital(claim)} is shown by "
+            f"{name_list(showing)}; it is not shown by {name_list(others)}. The answer depends on "
+            "the procedure, so read each interval against the margin.")
+
+
+def margin_table(robustness, question, labels: tuple[str, str], numbers_for: Callable,
+                 result_for: Callable, answer_for: Callable, ratio: bool = False
+                 ) -> tuple[list[str], list[list[str]], list[str]]:
+    """The side-by-side table of a margin question: a heading row, one row per procedure, and
+    notes under it.
+
+    Columns: the procedure, the estimate, its two-sided (1 - 2 alpha) interval (the one set
+    against the margin), the margin in the estimate's units, the one-sided p-values (the two of
+    an equivalence test, lower end first; the one of a non-inferiority test) and the reading
+    against the margin. ``numbers_for(key)``: the procedure's ``DisplayNumbers``;
+    ``result_for(key)``: its ``ProcedureResult``; ``answer_for(key)``: its ``MarginAnswer``.
+    ``ratio``: the estimates are ratios, group 1 over group 2.
+    """
+    alpha = level_text(question.alpha)
+    narrow = level_text(1 - 2 * question.alpha)
+    equivalence = question.kind == "equivalent"
+    direction = f"{labels[0]} over {labels[1]}" if ratio else f"{labels[0]} minus {labels[1]}"
+    head = ["Procedure", f"Estimate, {direction}", f"{narrow} interval", "Margin",
+            "One-sided p-values, lower end; upper end" if equivalence else "One-sided p-value",
+            f"At the {alpha} level"]
+    body, notes = [], []
+    aside: dict[str, list[str]] = {}
+    for row in robustness.rows:
+        numbers, result, answer = numbers_for(row.key), result_for(row.key), answer_for(row.key)
+        margin = answer.margin
+        if equivalence:
+            margin_cell = f"{fixed(margin.low, numbers.decimals)} to {fixed(margin.high, numbers.decimals)}"
+        else:
+            margin_cell = f"{fixed(margin.bound, numbers.decimals)} ({margin.worse} is worse)"
+        p_lower, p_upper = result.details.get("p_lower"), result.details.get("p_upper")
+        if row.p_value is None:
+            p = "none"
+            notes.append(NO_MARGIN_P_VALUE_WHY)
+        elif equivalence and p_lower is not None and p_upper is not None:
+            p = f"{format_p(p_lower)}; {format_p(p_upper)}"
+        else:
+            p = format_p(row.p_value)
+        name = capital(row.name)
+        if row.estimate_name.lower() not in row.name.lower():
+            name += f", {row.estimate_name}"
+        reading = question.margin_reading(answer)
+        if not getattr(row, "votes", True):
+            reading += " (not counted)"
+            aside.setdefault(row.not_voting_because, []).append(capital(row.name))
+        body.append([name, numbers.estimate, numbers.interval or "none", margin_cell, p, reading])
+    rule = (f"Each interval is the two-sided {narrow} one (1 - 2 × {alpha}). "
+            + (f"The groups are shown equivalent at the {alpha} level when it lies inside the margin, "
+               f"as when both one-sided p-values are below {alpha_number(question)}."
+               if equivalence else
+               f"Non-inferiority is shown at the {alpha} level when it lies wholly on the better "
+               f"side of the margin, as when the one-sided p-value is below {alpha_number(question)}."))
+    notes.insert(0, rule)
     notes += [f"Not counted in whether the procedures agree: {'; '.join(names)}. "
               + (because if len(names) == 1 else _each(because))
               for because, names in aside.items()]

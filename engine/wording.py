@@ -6,7 +6,7 @@ glosses of the technical words the checks use.
 
 from __future__ import annotations
 
-__all__ = ["plural", "capital", "name_list", "GLOSSES", "gloss_line"]
+__all__ = ["plural", "capital", "sentence_start", "name_list", "GLOSSES", "gloss_line"]
 
 # Nouns whose plural is not the singular with an "s".
 _IRREGULAR = {"was": "were", "is": "are", "has": "have", "does": "do", "this": "these",
@@ -38,6 +38,14 @@ def capital(text: str) -> str:
     return text[:1].upper() + text[1:]
 
 
+def sentence_start(text: str) -> str:
+    """``text`` as the start of a sentence: a capital first letter, except where the first word is
+    a one-letter symbol ("d of the differences (d_z) = 1.72" keeps its d; "D" would be another
+    quantity)."""
+    first = text.split(" ", 1)[0]
+    return text if len(first) == 1 and first.isalpha() else capital(text)
+
+
 def name_list(names) -> str:
     """``names`` as a list in a sentence: "A", "A and B", "A, B and C".
 
@@ -65,6 +73,11 @@ GLOSSES = {
                             "the values, from the lower to the upper quartile; a value more than "
                             "1.5 IQR beyond a quartile is apart from the rest, more than 3 IQR "
                             "far from it."),
+    "d_z": ("d_z is the mean of the pair differences divided by the SD of the pair differences. "
+            "It grows as the pairing removes variation between units, so it is not on the scale "
+            "of a d of two independent groups and is not to be compared with one."),
+    "d_av": ("d_av is the mean of the pair differences divided by the average of the two groups' "
+             "SDs, on the scale of a d of two independent groups; the pairing does not enlarge it."),
     "density": ("Density is the height of a histogram scaled so that the bars' total area is 1, "
                 "so groups of different sizes can be drawn on one scale."),
 }

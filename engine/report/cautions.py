@@ -7,7 +7,10 @@ for every comparison and follow them.
 
 from __future__ import annotations
 
-__all__ = ["cautions", "caution_blocks", "HEADING", "CAUTIONS_ALWAYS", "GENERAL_CAUTIONS"]
+from ..margin_advice import MARGIN_CAUTION
+
+__all__ = ["cautions", "caution_blocks", "HEADING", "CAUTIONS_ALWAYS", "GENERAL_CAUTIONS", "MARGIN_CAUTIONS",
+           "PAIRED_CAUTIONS"]
 
 # The heading of the cautions wherever they are shown.
 HEADING = "Before relying on this"
@@ -30,13 +33,41 @@ GENERAL_CAUTIONS = (
     "paired procedure.",
 )
 
+# The same for matched pairs.
+PAIRED_CAUTIONS = (
+    "These procedures assume the pairs are independent of one another: each pair a different unit, "
+    "measured once in each group; several pairs from one unit, or units measured more than twice, "
+    "need another design.",
+)
+
+# For an equivalence or non-inferiority question, in place of the p-value and regulated-work
+# cautions above (which speak of a difference).
+MARGIN_CAUTIONS = (
+    MARGIN_CAUTION,  # the margin's own caution, said once wherever a margin is
+    "A p-value of the one-sided tests says how surprising the data would be if the true difference lay "
+    "at the edge of the margin; it is not the size of the difference. Read the estimate and its "
+    "interval against the margin for that.",
+    "Regulated equivalence and non-inferiority work (bioequivalence, clinical and safety-critical "
+    "studies) follows its own rules for the margin, the level, the design and the procedure, and needs "
+    "a qualified statistician's review; these findings do not replace either.",
+)
+# The cautions of CAUTIONS_ALWAYS that a margin question says in its own words.
+_SAID_FOR_A_MARGIN = (CAUTIONS_ALWAYS[1], CAUTIONS_ALWAYS[3])
+
 
 def cautions(analysis) -> list[str]:
     """What to keep in mind before relying on the findings: the suggestion's own cautions (those
-    the data call for), then the ones that hold for every comparison. Without an analysis, only
-    the latter."""
-    own = list(analysis.recommendation.cautions) if analysis is not None else []
-    return own + list(CAUTIONS_ALWAYS) + list(GENERAL_CAUTIONS)
+    the data call for), then the ones that hold for every comparison of its kind (a question with
+    a margin, a paired design). Without an analysis, only the usual ones."""
+    if analysis is None:
+        return list(CAUTIONS_ALWAYS) + list(GENERAL_CAUTIONS)
+    own = list(analysis.recommendation.cautions)
+    always = list(CAUTIONS_ALWAYS)
+    if getattr(analysis, "margin", None) is not None:
+        always = list(MARGIN_CAUTIONS) + [c for c in always if c not in _SAID_FOR_A_MARGIN]
+    paired = getattr(analysis.spec, "design", "independent") == "paired"
+    # a caution the suggestion already gave (the margin's) is said once
+    return list(dict.fromkeys(own + always + list(PAIRED_CAUTIONS if paired else GENERAL_CAUTIONS)))
 
 
 def caution_blocks(analysis) -> list[tuple]:

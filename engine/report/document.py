@@ -15,18 +15,26 @@ from datetime import datetime
 from pathlib import Path
 from typing import Any, Sequence
 
-from ..io.screening import EXCLUSION_WORDS
+from ..io.screening import EXCLUSION_WORDS, MAX_LISTED_EXCLUSIONS
 from ..rounding import format_number
 from ..text import visible_html
 from . import tables
 from .cautions import HEADING as CAUTIONS_HEADING
-from .cautions import cautions
-from .findings import findings_blocks, render
+from .cautions import caution_blocks, cautions
+from .findings import findings_blocks
+from .margins import estimate_is_ratio, has_margin, margin_entered
 from .numbers import level_text
+from .pairs import LEFT_OUT_HEADING, design_text, is_paired, left_out_items, n_pairs
 from .sentences import procedure_followed, question_text
 
 __all__ = ["html", "text", "text_lines", "Picture", "procedure_key", "file_rows", "choice_rows",
-           "set_aside_rows", "title", "CHECKSUM_NAME", "HTML_IMAGE_WIDTH"]
+           "set_aside_rows", "title", "CHECKSUM_NAME", "HTML_IMAGE_WIDTH", "ZERO_RULE_WORDS"]
+
+# The signed-rank test's rule for pairs that do not differ, as the choices say it.
+ZERO_RULE_WORDS = {
+    "drop": "left out of the signed-rank test (pairs that do not differ are dropped)",
+    "pratt": "kept in the ranking and given no sign (Pratt's rule)",
+}
 
 # The checksum's row names its algorithm, so that a reader can recompute it.
 CHECKSUM_NAME = "SHA-256 checksum"
@@ -68,22 +76,37 @@ def choice_rows(analysis, procedure: str | None = None) -> list[tuple[str, str]]
     if isinstance(columns, str):
         columns = (columns,)
     sheet = source.get("sheet") or (spec.source.sheet if spec.source is not None else None)
+    paired = is_paired(analysis)
+    sizes = (f"{n_pairs(analysis):,} pairs" if paired
+             else f"{analysis.groups.n[0]} and {analysis.groups.n[1]} values")
     rows = [
         ("Groups compared", f"{labels[0]} (first) and {labels[1]} (second); "
-                            f"differences are {labels[0]} minus {labels[1]}"),
-        ("Sizes", f"{analysis.groups.n[0]} and {analysis.groups.n[1]} values"),
+                            + (f"ratios are {labels[0]} over {labels[1]}" if estimate_is_ratio(analysis)
+                               else f"differences are {labels[0]} minus {labels[1]}")),
+        ("Design", design_text(analysis)),
+        ("Sizes", sizes),
     ]
     if sheet:
         rows.append(("Sheet", str(sheet)))
     if columns:
         rows.append(("Columns used", ", ".join(str(c) for c in columns)))
+    question = spec.question
+    level = level_text(spec.level)
+    if has_margin(analysis):
+        level += (f" (a test at the {level_text(question.alpha)} level; the two-sided "
+                  f"{level_text(1 - 2 * question.alpha)} interval is set against the margin)")
+    rows += [("Question", question_text(question, labels, analysis))]
+    if has_margin(analysis):
+        rows.append(("Margin", margin_entered(analysis, procedure_key(analysis, procedure))))
     rows += [
-        ("Question", question_text(spec.alternative, labels)),
-        ("Confidence level", level_text(spec.level)),
+        ("Confidence level", level),
         ("Procedure followed", procedure_followed(analysis, procedure_key(analysis, procedure))),
-        ("Spreads known to be equal", _yes_no(statements.equal_spread_known)),
-        ("Values are ordinal ratings", _yes_no(statements.ordinal)),
     ]
+    if not paired:  # the paired procedures look at the differences alone, never at two spreads
+        rows.append(("Spreads known to be equal", _yes_no(statements.equal_spread_known)))
+    rows.append(("Values are ordinal ratings", _yes_no(statements.ordinal)))
+    if paired:
+        rows.append(("Differences of zero", ZERO_RULE_WORDS.get(spec.zero_rule, spec.zero_rule)))
     if statements.known_sd is not None:
         rows.append(("Known population SDs",
                      " and ".join(format_number(s, digits=4) for s in statements.known_sd)))
@@ -249,6 +272,14 @@ def html(analysis, procedure: str | None = None, *, pictures: Sequence[Picture] 
              "<h2>Values set aside</h2>"]
     aside = set_aside_rows(analysis)
     parts.append(_table(aside, ("Where", "Why")) if aside else "<p>No values were set aside.</p>")
+    if is_paired(analysis):
+        left_out = left_out_items(analysis)[:MAX_LISTED_EXCLUSIONS]
+        parts.append(f"<h2>{_escape(LEFT_OUT_HEADING)}</h2>")
+        parts.append("<ul>" + "".join(f"<li>{_escape(item)}</li>" for item in left_out) + "</ul>"
+                     if left_out else "<p>No pairs were left out.</p>")
+        unlisted = len(left_out_items(analysis)) - len(left_out)
+        if unlisted:
+            parts.append(f"<p>{unlisted:,} more, not listed one by one.</p>")
     parts += ["<h2>Findings</h2>", tables.html(findings_blocks(analysis, key))]
     for picture in pictures:
         scale = image_width / picture.width if picture.width else 1.0
@@ -288,4 +319,6 @@ def text(analysis, procedure: str | None = None) -> str:
     """The command's plain-text report: :func:`text_lines` around the findings of ``procedure``
     (see :func:`procedure_key`)."""
     key = procedure_key(analysis, procedure)
-    return "\n".join(text_lines(analysis, render(analysis, procedure=key).plain)) + "\n"
+    # the screening above the findings lists the pairs left out already
+    findings = tables.plain(findings_blocks(analysis, key) + caution_blocks(analysis))
+    return "\n".join(text_lines(analysis, findings)) + "\n"

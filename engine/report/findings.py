@@ -5,44 +5,105 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-from ..side_by_side import procedure_table
+from ..rounding import format_number, format_p
+from ..side_by_side import margin_table, procedure_table
 from ..text import visible
 from ..wording import capital, gloss_line
-from . import tables
+from . import pairs, tables
 from .cautions import caution_blocks
-from .numbers import STATISTIC_LABEL, DisplayNumbers, _fixed, level_text, _numbers, _summary_decimals, display_numbers
-from .sentences import DF_ROW, MC_SE_ROW, STATISTIC_ROW, agreement, estimate_label, p_label, paragraph
+from .margins import estimate_is_ratio, has_margin, margin_entered, sameness_paragraph
+from .numbers import (STATISTIC_LABEL, DisplayNumbers, _fixed, format_interval, level_text, _numbers,
+                      _summary_decimals, display_numbers)
+from .sentences import (DF_ROW, MC_SE_ROW, STATISTIC_ROW, agreement, effect_level_words, estimate_label,
+                        p_label, paragraph)
 
 __all__ = ["ReportText", "render", "findings_blocks"]
 
 @dataclass(frozen=True)
 class ReportText:
-    """The report of one procedure: a paragraph, an HTML fragment and plain text."""
+    """The report of one procedure: a paragraph, an HTML fragment and plain text.
+
+    ``sameness``: after a "differ" question the data do not answer with "yes", the paragraph
+    saying that a difference not shown is not sameness and how to ask for equivalence (the
+    HTML and plain text carry it after the paragraph); "" otherwise.
+    """
 
     paragraph: str
     html: str
     plain: str
+    sameness: str = ""
+
+
+def _margin_rows(analysis, result, numbers: DisplayNumbers) -> list[tuple[str, str]]:
+    """The rows a margin question adds: the interval set against the margin, the (1 - alpha)
+    interval of an equivalence verdict, the margin as entered."""
+    question = analysis.spec.question
+    rows = []
+    if numbers.interval is not None:
+        rows.append((f"{numbers.level} confidence interval, set against the margin", numbers.interval))
+    wide = result.details.get("difference_interval")
+    if question.kind == "equivalent" and wide is not None:
+        rows.append((f"{level_text(wide.level)} confidence interval, whether the groups differ",
+                     format_interval(wide, decimals=numbers.decimals)))
+    rows.append(("Margin", margin_entered(analysis, result.key)))
+    return rows
+
+
+def _margin_test_rows(analysis, key: str, result, numbers: DisplayNumbers) -> list[tuple[str, str]]:
+    """The statistics and one-sided p-values of a margin procedure, and its reading."""
+    question, details = analysis.spec.question, result.details
+    rows = []
+    t_lower, t_upper = details.get("t_lower"), details.get("t_upper")
+    label = STATISTIC_LABEL.get(key) or result.statistic_name
+    symbol = label.split()[-1] if label else None
+    if question.kind == "equivalent" and symbol and t_lower is not None and t_upper is not None:
+        rows.append((STATISTIC_ROW, f"{symbol} = {format_number(t_lower)} against the lower end; "
+                                    f"{format_number(t_upper)} against the upper end"))
+    elif symbol and numbers.statistic is not None:
+        rows.append((STATISTIC_ROW, f"{symbol} = {numbers.statistic}"))
+    if numbers.df is not None:
+        rows.append((DF_ROW, numbers.df))
+    p_lower, p_upper = details.get("p_lower"), details.get("p_upper")
+    if question.kind == "equivalent" and p_lower is not None and p_upper is not None:
+        rows += [("One-sided p-value, lower end of the margin", format_p(p_lower)),
+                 ("One-sided p-value, upper end of the margin", format_p(p_upper))]
+    elif numbers.p is not None:
+        rows.append(("One-sided p-value against the margin" if question.kind == "not_worse"
+                     else "p-value of the two one-sided tests (the larger)", numbers.p))
+    answer = analysis.margin_answer(key)
+    if answer is not None:
+        rows.append((f"At the {level_text(question.alpha)} level", capital(question.margin_reading(answer))))
+    return rows
 
 
 def _result_rows(analysis, key: str, result, numbers: DisplayNumbers) -> list[tuple[str, str]]:
     sided = "one-sided " if result.alternative != "two-sided" else ""
     first, second = analysis.groups.labels
-    rows = [("Procedure", capital(result.name)), (estimate_label(result, (first, second)), numbers.estimate)]
-    if numbers.interval is not None:
-        rows.append((f"{sided}{numbers.level} confidence interval".capitalize(), numbers.interval))
-    label = STATISTIC_LABEL.get(key)
-    if label and numbers.statistic is not None:
-        rows.append((STATISTIC_ROW, f"{label.split()[-1]} = {numbers.statistic}"))
-    if numbers.df is not None and key != "z":
-        rows.append((DF_ROW, numbers.df))
-    if numbers.p is not None:
-        rows.append((p_label(result.alternative), numbers.p))
+    rows = [("Procedure", capital(result.name))]
+    if pairs.is_paired(analysis):
+        rows.append(("Design", capital(pairs.design_text(analysis))))
+    rows.append((estimate_label(result, (first, second)), numbers.estimate))
+    if has_margin(analysis):
+        rows += _margin_rows(analysis, result, numbers)
+        rows += _margin_test_rows(analysis, key, result, numbers)
+    else:
+        if numbers.interval is not None:
+            rows.append((f"{sided}{numbers.level} confidence interval".capitalize(), numbers.interval))
+        label = STATISTIC_LABEL.get(key)
+        if label and numbers.statistic is not None:
+            rows.append((STATISTIC_ROW, f"{label.split()[-1]} = {numbers.statistic}"))
+        if numbers.df is not None and key != "z":
+            rows.append((DF_ROW, numbers.df))
+        if numbers.p is not None:
+            rows.append((p_label(result.alternative), numbers.p))
     if numbers.mc_se is not None:
         rows.append((MC_SE_ROW, numbers.mc_se))
     if numbers.effect is not None:
         text = numbers.effect
         if numbers.effect_interval is not None:
-            text += f" ({sided}{numbers.level} CI {numbers.effect_interval})"
+            text += f" ({effect_level_words(analysis, result, numbers)} CI {numbers.effect_interval})"
+        if numbers.effect_key in pairs.EFFECT_SCALE:
+            text += f", {pairs.EFFECT_SCALE[numbers.effect_key]}"
         rows.append((f"Effect size: {numbers.effect_name}", text))
     rows.append(("How it was found", result.method))
     source = analysis.source or {}
@@ -57,6 +118,8 @@ def _summary_rows(analysis, decimals: int | None) -> tuple[list[str], list[list[
     body = [[s.label, f"{s.n:,}", _fixed(s.mean, decimals), _fixed(s.sd, decimals),
              _fixed(s.median, decimals), f"{_fixed(s.q1, decimals)} to {_fixed(s.q3, decimals)}",
              f"{_fixed(s.min, decimals)} to {_fixed(s.max, decimals)}"] for s in analysis.summaries]
+    if pairs.is_paired(analysis):
+        body.append(pairs.difference_row(analysis, decimals))
     return head, body
 
 
@@ -64,12 +127,21 @@ def _side_by_side_blocks(analysis) -> list[tuple]:
     rows = analysis.robustness.rows
     if not rows:
         return []
-    head, body, notes = procedure_table(
-        analysis.robustness, analysis.spec.alternative, analysis.groups.labels,
-        level_text(analysis.robustness.level),
-        lambda key: _numbers(analysis, key, analysis.procedures[key]))
-    blocks = [("h", "Every applicable procedure side by side"), ("p", agreement(analysis)),
-              ("grid", head, body, 1, True, 3)]
+
+    def numbers_for(key: str) -> DisplayNumbers:
+        return _numbers(analysis, key, analysis.procedures[key])
+
+    if has_margin(analysis):
+        head, body, notes = margin_table(
+            analysis.robustness, analysis.spec.question, analysis.groups.labels, numbers_for,
+            analysis.procedures.__getitem__, analysis.margin_answer, ratio=estimate_is_ratio(analysis))
+        grid = ("grid", head, body, 1, True, 4)  # estimate, interval, margin, p-values: one line each
+    else:
+        head, body, notes = procedure_table(
+            analysis.robustness, analysis.spec.alternative, analysis.groups.labels,
+            level_text(analysis.robustness.level), numbers_for)
+        grid = ("grid", head, body, 1, True, 3)
+    blocks = [("h", "Every applicable procedure side by side"), ("p", agreement(analysis)), grid]
     blocks += [("small", note) for note in dict.fromkeys(notes)]
     return blocks
 
@@ -88,6 +160,8 @@ def _reason_blocks(analysis, key: str) -> list[tuple]:
 
 
 def _check_blocks(analysis) -> list[tuple]:
+    if pairs.is_paired(analysis):  # the paired procedures rest on the differences alone
+        return pairs.check_blocks(analysis, [note.text for note in getattr(analysis, "notes", ())])
     diagnostics = analysis.diagnostics
     readings = [finding.text for finding in getattr(diagnostics, "findings", ())]
     readings += [note.text for note in getattr(analysis, "notes", ())]
@@ -97,9 +171,14 @@ def _check_blocks(analysis) -> list[tuple]:
             ("small", gloss_line("skewness", "excess kurtosis", "interquartile range"))]
 
 
-def _blocks(analysis, key: str, paragraph: str, rows, head, body) -> list[tuple]:
-    blocks: list[tuple] = [("p", paragraph), ("pairs", rows), ("h", "The groups"),
-                           ("grid", head, body, 1, False)]
+def _blocks(analysis, key: str, paragraph: str, sameness: str, rows, head, body) -> list[tuple]:
+    blocks: list[tuple] = [("p", paragraph)]
+    if sameness:
+        blocks.append(("p", sameness))
+    title = "The groups and their pair differences" if pairs.is_paired(analysis) else "The groups"
+    blocks += [("pairs", rows), ("h", title), ("grid", head, body, 1, False)]
+    if pairs.is_paired(analysis):
+        blocks += pairs.effect_blocks(analysis)
     blocks += _side_by_side_blocks(analysis)
     blocks += _reason_blocks(analysis, key)
     blocks += _check_blocks(analysis)
@@ -140,22 +219,30 @@ def render(analysis, *, procedure: str | None = None) -> ReportText:
     American Psychological Association (2020). Publication Manual, 7th ed., chapter 6 (numbers
     and statistics in text).
     """
-    words, blocks = _findings(analysis, procedure)
+    words, sameness, blocks = _findings(analysis, procedure)
+    if pairs.is_paired(analysis):  # the whole report lists them with the values set aside
+        blocks += pairs.left_out_blocks(analysis)
     blocks += caution_blocks(analysis)
-    return ReportText(paragraph=words, html=tables.html(blocks), plain=tables.plain(blocks))
+    return ReportText(paragraph=words, html=tables.html(blocks), plain=tables.plain(blocks),
+                      sameness=sameness)
 
 
 def findings_blocks(analysis, procedure: str | None = None) -> list[tuple]:
     """The blocks of :func:`render`'s report without its closing cautions (a longer document
     places them after its own parts)."""
-    return _findings(analysis, procedure)[1]
+    return _findings(analysis, procedure)[2]
 
 
-def _findings(analysis, procedure: str | None) -> tuple[str, list[tuple]]:
+def _findings(analysis, procedure: str | None) -> tuple[str, str, list[tuple]]:
     numbers = display_numbers(analysis, procedure)  # refuses a procedure that was not run
     key = procedure or analysis.recommendation.key
     result = analysis.procedures[key]
     words = visible(paragraph(analysis, key, result, numbers))  # one line, as it is shown
     rows = _result_rows(analysis, key, result, numbers)
-    head, body = _summary_rows(analysis, _summary_decimals(analysis, numbers.decimals))
-    return words, _blocks(analysis, key, words, rows, head, body)
+    sameness = visible(sameness_paragraph(analysis, key, numbers))
+    # a ratio's or a probability's decimals say nothing of the values' own (near 1 or 1/2 they need three)
+    decimals = _summary_decimals(analysis, numbers.decimals, key)
+    if pairs.is_paired(analysis):
+        decimals = pairs.with_differences(analysis, decimals)
+    head, body = _summary_rows(analysis, decimals)
+    return words, sameness, _blocks(analysis, key, words, sameness, rows, head, body)

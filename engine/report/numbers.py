@@ -13,7 +13,7 @@ from dataclasses import dataclass
 from ..procedures.registry import RECORDS
 from ..rounding import fixed, format_number, format_p, level_text, shared_decimals
 
-__all__ = ["DisplayNumbers", "display_numbers", "format_interval", "level_text", "EFFECT_DECIMALS",
+__all__ = ["DisplayNumbers", "display_numbers", "format_interval", "level_text", "margin_decimals", "EFFECT_DECIMALS",
            "DIGITS", "EFFECT_FOR", "STATISTIC_LABEL", "RANK_KEYS", "U_KEYS", "MEDIAN_KEYS"]
 
 # Standardised effect sizes are shown with two decimals (common practice), more when a narrow
@@ -38,8 +38,10 @@ class DisplayNumbers:
     """The display strings of one procedure's result, shared by the paragraph and the tables.
 
     ``effect_key`` and ``effect_name`` name the effect size paired with the procedure (None
-    when none was computed); ``decimals`` is shared by the estimate, its interval and the group
-    summaries (None: each in scientific notation).
+    when none was computed), ``effect_level`` the level of its interval (which may differ from
+    the result's: a margin question sets the (1 - 2 alpha) interval against its margin);
+    ``decimals`` is shared by the estimate, its interval and the group summaries (None: each in
+    scientific notation), and for a margin question by the margin as well.
     """
 
     level: str
@@ -54,6 +56,7 @@ class DisplayNumbers:
     effect: str | None
     effect_interval: str | None
     decimals: int | None
+    effect_level: str | None = None
 
 
 def _decimals_shared(values, digits: int = DIGITS) -> int | None:
@@ -125,7 +128,8 @@ def _effect_decimals(effect) -> int:
 
 
 def _effect_for(analysis, key: str):
-    for name in EFFECT_FOR.get(key, ("hedges_g",)):
+    paired = getattr(analysis.spec, "design", "independent") == "paired"
+    for name in EFFECT_FOR.get(key, ("paired_d_z",) if paired else ("hedges_g",)):
         effect = analysis.effect_sizes.get(name)
         if effect is not None:
             return effect
@@ -173,10 +177,28 @@ def display_numbers(analysis, procedure: str | None = None) -> DisplayNumbers:
     return _numbers(analysis, key, analysis.procedures[key])
 
 
+def _ends(interval) -> list[float]:
+    if interval is None:
+        return []
+    return [float(end) for end in (interval.low, interval.high) if end is not None]
+
+
+def margin_decimals(answer) -> int | None:
+    """The decimals the verdict against a margin (:meth:`engine.question.Question.margin_words`)
+    writes its numbers with: shared by the margin and the intervals, so that every table shows
+    the figures of the verdict."""
+    margin = answer.margin
+    return shared_decimals([margin.low, margin.high, *_ends(answer.interval),
+                            *_ends(answer.difference_interval)])
+
+
 def _numbers(analysis, key: str, result) -> DisplayNumbers:
     interval = result.interval
-    ends = [result.estimate] + ([interval.low, interval.high] if interval is not None else [])
-    decimals = _decimals_shared(ends)
+    answer = analysis.margin_answer(key) if getattr(analysis, "margin", None) is not None else None
+    if answer is not None:
+        decimals = margin_decimals(answer)
+    else:
+        decimals = _decimals_shared([result.estimate] + _ends(interval))
     effect = _effect_for(analysis, key)
     effect_decimals = EFFECT_DECIMALS if effect is None else _effect_decimals(effect)
     return DisplayNumbers(
@@ -194,10 +216,19 @@ def _numbers(analysis, key: str, result) -> DisplayNumbers:
         effect_interval=None if effect is None else format_interval(effect.interval,
                                                                     decimals=effect_decimals),
         decimals=decimals,
+        effect_level=None if effect is None else level_text(effect.interval.level),
     )
 
 
-def _summary_decimals(analysis, numbers_decimals: int | None) -> int | None:
+# Estimates that are not in the values' own units (their decimals say nothing of the values').
+_UNITLESS = {r.key for r in RECORDS if r.estimate_kind in ("probability", "ratio")}
+
+
+def _summary_decimals(analysis, numbers_decimals: int | None, key: str | None = None) -> int | None:
+    """Decimals of the group summaries: their own, or more to match those of procedure ``key``'s
+    estimate when it is in the values' units (a probability or a ratio is not)."""
+    if key in _UNITLESS:
+        numbers_decimals = None
     values = []
     for s in analysis.summaries:
         values += [s.mean, s.sd, s.median, s.q1, s.q3]

@@ -9,10 +9,15 @@ from ..io.screening import EXCLUSION_WORDS
 from ..question import Question
 from ..rounding import p_clause
 from ..procedures.registry import find as _record
-from ..side_by_side import PROBABILITY_KEYS, agreement_text
+from ..side_by_side import PROBABILITY_KEYS, agreement_text, margin_agreement_text
+from .margins import (estimate_is_ratio, has_margin, margin_entered, margin_question, margin_size,
+                      margin_tests, margin_verdict)
 from .numbers import MEDIAN_KEYS, RANK_KEYS, STATISTIC_LABEL, DisplayNumbers, _fixed, _summary_decimals, level_text
+from ..wording import sentence_start
+from .pairs import EFFECT_SCALE, is_paired, left_out_sentence, n_pairs, paired_opening
 
 __all__ = ["paragraph", "agreement", "question_text", "procedure_followed", "estimate_label", "p_label",
+           "effect_level_words",
            "QUESTIONS", "EXCLUSION_WORDS", "STATISTIC_ROW", "DF_ROW", "MC_SE_ROW"]
 
 # The names of the rows of a result, in the report's table and the window's.
@@ -28,10 +33,16 @@ QUESTIONS: tuple[tuple[str, str], ...] = (
 )
 
 
-def question_text(alternative: str, labels: tuple[str, str]) -> str:
-    """The question asked of the two groups, in words: "Do wax and resin differ?"."""
-    words = dict(QUESTIONS)[Question.from_alternative(alternative).kind]
-    return words.format(a=labels[0], b=labels[1])
+def question_text(alternative, labels: tuple[str, str], analysis=None) -> str:
+    """The question asked of the two groups, in words: "Do wax and resin differ?".
+
+    ``alternative``: the procedures' direction, or the :class:`Question` itself; a question
+    with a margin is said with it ("Are wax and resin equivalent within ±0.5?"), a percentage
+    with its value in units when ``analysis`` (which knows group 2's mean) is given."""
+    question = alternative if isinstance(alternative, Question) else Question.from_alternative(alternative)
+    if question.has_margin:
+        return margin_question(question, labels, margin_size(analysis, question, labels))
+    return dict(QUESTIONS)[question.kind].format(a=labels[0], b=labels[1])
 
 
 def _measure(analysis) -> str:
@@ -94,8 +105,10 @@ def _rank_direction(analysis, key: str, a: str, b: str) -> str:
 
 def _direction(analysis, key: str, estimate: float, result_decimals: int | None) -> str:
     """The opening clause: who was higher, in the words of the procedure's quantity."""
+    if is_paired(analysis):
+        return paired_opening(analysis, estimate, result_decimals, by_signs=key in RANK_KEYS)
     first, second = analysis.summaries
-    decimals = _summary_decimals(analysis, result_decimals)
+    decimals = _summary_decimals(analysis, result_decimals, key)
     measure = _measure(analysis)
     a, b = _group_phrase(first, key, decimals), _group_phrase(second, key, decimals)
     if key in RANK_KEYS:
@@ -141,11 +154,22 @@ def _test_phrase(analysis, key: str, result, numbers: DisplayNumbers) -> str:
     return ", ".join(parts)
 
 
+def _is_ratio(result) -> bool:
+    known = _record(result.key)
+    return (known.estimate_kind == "ratio") if known is not None else result.estimate_name.startswith("ratio")
+
+
+def _direction_words(result, labels: tuple[str, str]) -> str:
+    """ "wax minus resin", or "wax over resin" for a ratio."""
+    return f"{labels[0]} {'over' if _is_ratio(result) else 'minus'} {labels[1]}"
+
+
 def estimate_label(result, labels: tuple[str, str]) -> str:
     """The name of a result's estimate with the direction of a difference: "Difference in
-    means, wax minus resin" (a probability has no direction to name)."""
+    means, wax minus resin", "Ratio of geometric means, wax over resin" (a probability has no
+    direction to name)."""
     name = result.estimate_name[:1].upper() + result.estimate_name[1:]
-    return name if result.key in PROBABILITY_KEYS else f"{name}, {labels[0]} minus {labels[1]}"
+    return name if result.key in PROBABILITY_KEYS else f"{name}, {_direction_words(result, labels)}"
 
 
 def p_label(alternative: str) -> str:
@@ -194,7 +218,8 @@ def _verdict(analysis, key: str, result, numbers: DisplayNumbers) -> str:
     return question.verdict_words(answer, analysis.groups.labels, numbers.level)
 
 
-def paragraph(analysis, key: str, result, numbers: DisplayNumbers) -> str:
+def _difference_sentences(analysis, key: str, result, numbers: DisplayNumbers) -> list[str]:
+    """Who was higher, the estimate with its interval and the test; the verdict at the level."""
     opening = _direction(analysis, key, result.estimate, numbers.decimals)
     estimate_name = result.estimate_name
     bootstrap = _resampled(key) == "bootstrap"
@@ -203,21 +228,66 @@ def paragraph(analysis, key: str, result, numbers: DisplayNumbers) -> str:
     if bootstrap:
         body += f" ({analysis.spec.resamples:,} resamples)"
     test = _test_phrase(analysis, key, result, numbers)
-    sentence = f"{opening}: {body}" + (f"; {test}." if test else ".")
-    sentences = [sentence]
+    sentences = [f"{opening}: {body}" + (f"; {test}." if test else ".")]
     verdict = _verdict(analysis, key, result, numbers)
     if verdict:
         sentences.append(verdict)
-    if numbers.effect is not None:
-        effect = f"{numbers.effect_name} = {numbers.effect}"
-        if numbers.effect_interval is not None:
-            sided = "one-sided " if result.alternative != "two-sided" else ""
-            effect += f", {sided}{numbers.level} CI {numbers.effect_interval}"
-        sentences.append(effect[:1].upper() + effect[1:] + ".")
+    return sentences
+
+
+def _margin_sentences(analysis, key: str, result, numbers: DisplayNumbers) -> list[str]:
+    """The verdict against the margin first, then the estimate, the one-sided tests and the
+    margin as it was entered."""
+    sentences = [margin_verdict(analysis, key)]
+    over = f" over {n_pairs(analysis):,} pairs" if is_paired(analysis) else ""
+    estimate = (f"The {result.estimate_name}, {_direction_words(result, analysis.groups.labels)}, "
+                f"is {numbers.estimate}{over}")
+    if _resampled(key) == "bootstrap":
+        estimate += f" ({analysis.spec.resamples:,} bootstrap resamples)"
+    sentences.append(estimate + ".")
+    tests = margin_tests(analysis, key)
+    if tests:
+        sentences.append(tests)
+    sentences.append(f"Margin as entered: {margin_entered(analysis, key)}.")
+    return sentences
+
+
+def effect_level_words(analysis, result, numbers: DisplayNumbers) -> str:
+    """The level of the effect size's interval, "one-sided 95%" or "95%": the effect sizes
+    follow the question's direction and level (a margin question's result may not)."""
+    alternative = analysis.spec.question.alternative if has_margin(analysis) else result.alternative
+    sided = "one-sided " if alternative != "two-sided" else ""
+    return f"{sided}{numbers.effect_level or numbers.level}"
+
+
+def _effect_sentence(analysis, result, numbers: DisplayNumbers) -> str:
+    if numbers.effect is None:
+        return ""
+    effect = f"{numbers.effect_name} = {numbers.effect}"
+    if numbers.effect_interval is not None:
+        effect += f", {effect_level_words(analysis, result, numbers)} CI {numbers.effect_interval}"
+    if numbers.effect_key in EFFECT_SCALE:
+        effect += f" ({EFFECT_SCALE[numbers.effect_key]})"
+    return sentence_start(effect) + "."
+
+
+def paragraph(analysis, key: str, result, numbers: DisplayNumbers) -> str:
+    """The findings of one procedure in one paragraph: for a question with a margin its verdict
+    against the margin first; for a difference who was higher, the estimate, the test and the
+    verdict; then the effect size, the procedure's warnings, what was left out and whether the
+    procedure is the suggested one."""
+    if has_margin(analysis):
+        sentences = _margin_sentences(analysis, key, result, numbers)
+    else:
+        sentences = _difference_sentences(analysis, key, result, numbers)
+    effect = _effect_sentence(analysis, result, numbers)
+    if effect:
+        sentences.append(effect)
     sentences.extend(w if w.endswith(".") else w + "." for w in result.warnings)
-    excluded = _exclusions(analysis)
-    if excluded:
-        sentences.append(excluded)
+    # in a paired design a cell left out takes its pair with it: the pairs say it all
+    for left_out in ((left_out_sentence(analysis),) if is_paired(analysis) else (_exclusions(analysis),)):
+        if left_out:
+            sentences.append(left_out)
     recommended = analysis.recommendation.key
     if key != recommended:
         sentences.append(f"This report uses the {result.name}; the procedure suggested for these "
@@ -229,5 +299,8 @@ def paragraph(analysis, key: str, result, numbers: DisplayNumbers) -> str:
 def agreement(analysis) -> str:
     """Whether every applicable procedure gives the same answer, in one to three sentences."""
     robustness = analysis.robustness
+    if has_margin(analysis):
+        return margin_agreement_text(robustness, analysis.spec.question, analysis.groups.labels,
+                                     margin_size(analysis))
     return agreement_text(robustness, analysis.spec.alternative, analysis.groups.labels,
                           level_text(robustness.level))
