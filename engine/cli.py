@@ -11,10 +11,12 @@ from __future__ import annotations
 import argparse
 import json
 import os
+import re
 import sys
 from pathlib import Path
 from typing import Sequence, TextIO
 
+from . import question_flags
 from .errors import TwofoldError, quoted
 from .text import visible
 from .wording import plural
@@ -28,6 +30,12 @@ EXIT_UNEXPECTED = 1  # as an uncaught error would exit, but with one line instea
 class _Parser(argparse.ArgumentParser):
     """An argument parser whose usage errors are one line and exit code 2."""
 
+    def __init__(self, *args, **kwargs) -> None:
+        super().__init__(*args, **kwargs)
+        # a value that starts with a minus and a digit is a value, never a flag: the margins
+        # -0.5:0.8 and -3%:4% as well as argparse's own negative numbers
+        self._negative_number_matcher = re.compile(r"^-\.?\d")
+
     def error(self, message: str) -> None:  # noqa: D401 - argparse's hook
         raise TwofoldError(f"{self.prog}: {message} (see --help)")
 
@@ -36,7 +44,7 @@ class _Parser(argparse.ArgumentParser):
 DEFAULTS = {"alternative": "two-sided", "confidence": 0.95, "resamples": 10_000}
 # Flags that describe a new analysis; a saved one (--spec) already holds all of them.
 ANALYSIS_FLAGS = ("value", "group", "groups", "sheet", "alternative", "confidence", "resamples", "seed",
-                  "known_sd", "equal_spreads_known", "ordinal")
+                  "known_sd", "equal_spreads_known", "ordinal") + question_flags.FLAGS
 
 
 def _analysis_flags(command: argparse.ArgumentParser) -> None:
@@ -59,6 +67,7 @@ def _analysis_flags(command: argparse.ArgumentParser) -> None:
     command.add_argument("--equal-spreads-known", action="store_true",
                          help="the spreads are known to be equal from prior knowledge")
     command.add_argument("--ordinal", action="store_true", help="the values are ordered ratings, not measurements")
+    question_flags.add_flags(command)
 
 
 def build_parser() -> argparse.ArgumentParser:
@@ -94,7 +103,6 @@ def build_parser() -> argparse.ArgumentParser:
 
 def spec_from_arguments(args):
     """The analysis spec the command's flags describe (columns left open are proposed later)."""
-    from .question import Question
     from .spec import AnalysisSpec, Source, Statements
 
     def given(name):
@@ -102,15 +110,18 @@ def spec_from_arguments(args):
         return DEFAULTS[name] if value is None else value
 
     values = tuple(args.value or ())
+    question = question_flags.question_of(args, given("alternative"), given("confidence"))
+    design = {"layout": "long" if args.group is not None or len(values) == 1 else "wide",
+              **question_flags.design_of(args, values)}
     return AnalysisSpec(
         source=Source(str(args.path), args.sheet),
-        layout="long" if args.group is not None or len(values) == 1 else "wide",
         group_column=args.group, value_columns=values,
         groups=tuple(args.groups) if args.groups else None,
-        question=Question.from_alternative(given("alternative"), given("confidence")),
+        question=question,
         resamples=given("resamples"), seed=args.seed,
         statements=Statements(known_sd=tuple(args.known_sd) if args.known_sd else None,
                               equal_spread_known=args.equal_spreads_known, ordinal=args.ordinal),
+        **design,
     )
 
 

@@ -47,8 +47,8 @@ LAYERS: tuple[tuple[str, ...], ...] = (
     ("engine.side_by_side", "engine.report", "engine.report.*", "engine.jsonout"),
     # the path from a file to an analysis, and the window's session over it
     ("engine.pipeline", "engine.saved", "engine.session"),
-    # where the command may write a report
-    ("engine.audit",),
+    # where the command may write a report; the command's question and design flags
+    ("engine.audit", "engine.question_flags"),
     # the headless command
     ("engine.cli",),
     ("engine.__main__",),
