@@ -232,7 +232,7 @@ def _readable(analysis, report_text: str) -> list[str]:
     alternatives weighed, the checks and the cautions), worded by ``engine.report.document``."""
     from .report.document import text_lines
 
-    return text_lines(analysis, report_text)
+    return text_lines(analysis, report_text, procedure=_reported_key(analysis))
 
 
 def _columns(args, out: TextIO) -> None:

@@ -23,6 +23,7 @@ from .cautions import HEADING as CAUTIONS_HEADING
 from .cautions import cautions
 from .findings import findings_blocks, render
 from .numbers import level_text
+from .question_lines import setup_lines
 from .sentences import procedure_followed, question_text
 
 __all__ = ["html", "text", "text_lines", "Picture", "procedure_key", "file_rows", "choice_rows",
@@ -265,10 +266,11 @@ def html(analysis, procedure: str | None = None, *, pictures: Sequence[Picture] 
             f"</head><body>{body}</body></html>")
 
 
-def text_lines(analysis, findings_text: str) -> list[str]:
-    """The command's plain summary around ``findings_text`` (:func:`render`'s plain text): the
-    file and its screening, the suggestion, then the findings, which close with the cautions.
-    Text from the file is not yet escaped (the caller prints each line through
+def text_lines(analysis, findings_text: str, procedure: str | None = None) -> list[str]:
+    """The command's plain summary around ``findings_text`` (:func:`render`'s plain text of
+    ``procedure``, see :func:`procedure_key`): the file and its screening, the design and a
+    margin question with its verdict, the suggestion, then the findings, which close with the
+    cautions. Text from the file is not yet escaped (the caller prints each line through
     :func:`engine.text.visible`)."""
     lines = [f"File: {analysis.source.get('file')}"]
     screening = analysis.screening
@@ -278,6 +280,7 @@ def text_lines(analysis, findings_text: str) -> list[str]:
     for note in analysis.notes:
         lines.append(f"  [{note.severity}] {note.text}")
     lines.append("")
+    lines.extend(setup_lines(analysis, procedure_key(analysis, procedure)))
     lines.append(f"Suggested procedure: {analysis.recommendation.name}")
     lines.append("")
     lines.extend(findings_text.rstrip().split("\n"))  # the report's own lines (its texts are escaped)
@@ -288,4 +291,4 @@ def text(analysis, procedure: str | None = None) -> str:
     """The command's plain-text report: :func:`text_lines` around the findings of ``procedure``
     (see :func:`procedure_key`)."""
     key = procedure_key(analysis, procedure)
-    return "\n".join(text_lines(analysis, render(analysis, procedure=key).plain)) + "\n"
+    return "\n".join(text_lines(analysis, render(analysis, procedure=key).plain, key)) + "\n"
