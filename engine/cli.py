@@ -196,6 +196,10 @@ def _reported_key(analysis) -> str:
     for key in (analysis.spec.procedure, analysis.recommendation.key):
         if key in analysis.procedures:
             return key
+    if not analysis.procedures:  # every procedure for this question was left out: say why
+        reasons = " ".join(note.text for note in analysis.notes)
+        raise TwofoldError(f"{analysis.source.get('file') or 'The data'}: no procedure could answer this "
+                           "question for these data." + (f" {reasons}" if reasons else ""))
     return next(iter(analysis.procedures))
 
 
