@@ -72,7 +72,9 @@ def _analysis_flags(command: argparse.ArgumentParser) -> None:
 
 def build_parser() -> argparse.ArgumentParser:
     parser = _Parser(prog="python -m engine",
-                     description="Compare two independent groups of measurements from a data file.")
+                     description="Compare two groups of measurements from a data file: independent groups or "
+                                 "pairs, asking whether they differ, are equivalent within a margin, or "
+                                 "whether the first is not worse by more than a margin.")
     commands = parser.add_subparsers(dest="command", required=True, parser_class=_Parser)
 
     analyze = commands.add_parser("analyze", help="run the whole comparison on a file")
