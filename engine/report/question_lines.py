@@ -53,7 +53,7 @@ def margin_lines(analysis, procedure: str | None) -> list[str]:
     answers = margin_answers(analysis)
     if procedure in answers:
         result = analysis.procedures[procedure]
-        lines.append(f"Verdict ({result.name}): "
+        lines.append(f"Verdict by {result.name}: "
                      + question.margin_words(answers[procedure], (first, second), result.estimate_name))
     else:
         lines.append("Verdict: no procedure gave an interval to set against the margin (the notes say why).")
