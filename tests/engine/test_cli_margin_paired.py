@@ -16,6 +16,8 @@ from statsmodels.stats.weightstats import ttost_ind, ttost_paired
 
 from engine.cli import main
 from engine.procedures import registry
+from engine.question import Margin, Question
+from engine.spec import AnalysisSpec
 
 TIGHT = dict(rel=1e-10, abs=1e-12)
 
@@ -275,3 +277,23 @@ def test_data_that_cannot_be_paired_give_one_line(presses, flags):
     path, _, _ = presses
     code, out, err = run("analyze", path, *flags)
     assert code == 2 and out == "" and err.count("\n") == 1 and "Traceback" not in err
+
+
+def test_when_every_margin_procedure_fails_the_command_says_so_in_one_line(presses, monkeypatch):
+    path, _, _ = presses
+    spec = AnalysisSpec(question=Question("equivalent", 0.95, Margin.within(1.0)))
+
+    def fails(*args, **kwargs):
+        raise ArithmeticError("a failure nobody foresaw")
+
+    for record in registry.applicable(spec):
+        monkeypatch.setattr(record.module, record.function, fails)
+    code, out, err = run("analyze", path, "--equivalence-margin", "1", "--resamples", "300")
+    assert code == 2 and out == "" and err.count("\n") == 1
+    assert err.startswith("presses.csv: no procedure could answer this question for these data.")
+    # the --json document still says what happened, in its notes
+    code, out, err = run("analyze", path, "--equivalence-margin", "1", "--resamples", "300", "--json")
+    assert code == 0, err
+    document = json.loads(out)
+    assert document["procedures"] == {} and document["margin_verdicts"] == {}
+    assert {note["key"] for note in document["notes"]} == {"part_not_computed"}
