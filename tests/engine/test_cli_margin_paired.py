@@ -21,9 +21,6 @@ from engine.spec import AnalysisSpec
 
 TIGHT = dict(rel=1e-10, abs=1e-12)
 
-# the paired records and pairing reach this branch with the paired design's engine; until then
-# these tests cannot run (the marker goes once they are here)
-PAIRED = pytest.mark.skipif(registry.find("paired_t") is None, reason="paired records not yet in the registry")
 
 
 def run(*argv):
@@ -157,7 +154,6 @@ def gauges(tmp_path):
     return write_wide(tmp_path / "gauges.csv", before, after), before, after
 
 
-@PAIRED
 def test_paired_row_by_row_matches_scipy_ttest_rel_and_wilcoxon(gauges):
     path, x, y = gauges
     document = document_of(path, "--paired")
@@ -188,7 +184,6 @@ def test_paired_row_by_row_matches_scipy_ttest_rel_and_wilcoxon(gauges):
     assert sizes["paired_d_z"]["name"] != sizes["paired_d_av"]["name"]
 
 
-@PAIRED
 def test_paired_zero_rule_matches_scipy_wilcoxon_zero_methods_and_enumeration(tmp_path):
     # ties and zeros among the differences: two pairs with no difference, tied sizes
     x = np.array([5.1, 4.8, 6.2, 5.5, 5.0, 4.4, 6.1, 5.9, 5.3, 4.7, 5.8, 6.4, 5.2, 4.9, 6.0, 5.6])
@@ -219,7 +214,6 @@ def test_paired_zero_rule_matches_scipy_wilcoxon_zero_methods_and_enumeration(tm
         assert details["zeros"] == 2 and details["zero_rule"] == rule
 
 
-@PAIRED
 def test_paired_equivalence_matches_statsmodels_ttost_paired(gauges):
     path, x, y = gauges
     document = document_of(path, "--paired", "--equivalence-margin", "-0.2:0.4")
@@ -232,7 +226,6 @@ def test_paired_equivalence_matches_statsmodels_ttost_paired(gauges):
     assert document["margin_verdicts"]["paired_equivalence"]["yes"] == (p < 0.05)
 
 
-@PAIRED
 def test_pairs_by_id_match_units_across_the_file_and_list_what_was_left_out(tmp_path):
     rng = np.random.default_rng(3)
     ids = [f"P{i:02d}" for i in range(1, 19)]
@@ -271,7 +264,6 @@ def test_pairs_by_id_match_units_across_the_file_and_list_what_was_left_out(tmp_
     assert sum(line.startswith("  [left out] ") for line in out.splitlines()) == 3
 
 
-@PAIRED
 @pytest.mark.parametrize("flags", [["--paired"], ["--paired-by", "serial", "--group", "press", "--value", "thickness"]])
 def test_data_that_cannot_be_paired_give_one_line(presses, flags):
     path, _, _ = presses

@@ -13,15 +13,11 @@ import pytest
 from engine import saved
 from engine.cli import main
 from engine.jsonout import analysis_schema
-from engine.procedures import registry
 from engine.report import question_text
 
 DEMO = Path(__file__).resolve().parents[2] / "demo_files"
 QUICK = ("--resamples", "300")
 
-# the paired records and pairing reach this branch with the paired design's engine; until then
-# these tests cannot run (the marker goes once they are here)
-PAIRED = pytest.mark.skipif(registry.find("paired_t") is None, reason="paired records not yet in the registry")
 
 
 def run(*argv):
@@ -220,8 +216,7 @@ def _paired_parts(folder: Path) -> Path:
     return path
 
 
-@pytest.mark.parametrize("case", ["equivalence", "noninferiority_percent", pytest.param("paired", marks=PAIRED),
-                                  pytest.param("paired_equivalence", marks=PAIRED)])
+@pytest.mark.parametrize("case", ["equivalence", "noninferiority_percent", "paired", "paired_equivalence"])
 def test_a_margin_or_paired_analysis_saved_reopens_to_the_same_numbers(case, tmp_path):
     if case.startswith("paired"):
         data = _paired_parts(tmp_path)
