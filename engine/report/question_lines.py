@@ -17,15 +17,21 @@ def design_lines(analysis) -> list[str]:
         return ["Design: two independent groups."]
     pairs = analysis.pairs
     column = analysis.spec.pair_column
-    how = f"matched by the pair ID column '{column}'" if column is not None else "row by row"
+    how = f"by the pair ID column '{column}'" if column is not None else "row by row"
     if pairs is None:
         return [f"Design: paired, {plural(int(analysis.groups.n[0]), 'pair')} {how}."]
     left = len(pairs.problems)
-    lines = [f"Design: paired, {plural(pairs.n_pairs, 'pair')} formed {how}"
-             + (f"; {left} left out:" if left else "; nothing left out.")]
-    lines += [f"  [left out] {problem.text}" for problem in pairs.problems[:PROBLEMS_SHOWN]]
-    if left > PROBLEMS_SHOWN:
-        lines.append(f"  and {left - PROBLEMS_SHOWN} more (the --json output's 'pairs' lists every one).")
+    # the items the screening's lines above do not already name, each once
+    said = " ".join(finding.text for finding in getattr(analysis.screening, "findings", ()))
+    unsaid = [problem for problem in pairs.problems if problem.text not in said]
+    if not left:
+        return [f"Design: paired, {plural(pairs.n_pairs, 'pair')} formed {how}; nothing left out."]
+    where = "" if unsaid else " (listed above)"
+    lines = [f"Design: paired, {plural(pairs.n_pairs, 'pair')} formed {how}; {left} left out{where}"
+             + (":" if unsaid else ".")]
+    lines += [f"  [left out] {problem.text}" for problem in unsaid[:PROBLEMS_SHOWN]]
+    if len(unsaid) > PROBLEMS_SHOWN:
+        lines.append(f"  and {len(unsaid) - PROBLEMS_SHOWN} more (the --json output's 'pairs' lists every one).")
     return lines
 
 

@@ -4,6 +4,7 @@ Files are written in ``tmp_path`` with every value as Python's shortest round-tr
 command reads exactly the numbers the references get.
 """
 
+import dataclasses
 import io
 import json
 
@@ -14,9 +15,11 @@ from scipy import stats
 from statsmodels.stats.weightstats import ttest_ind as sm_ttest_ind
 from statsmodels.stats.weightstats import ttost_ind, ttost_paired
 
+from engine import pipeline
 from engine.cli import main
 from engine.procedures import registry
 from engine.question import Margin, Question
+from engine.report.question_lines import design_lines
 from engine.spec import AnalysisSpec
 
 TIGHT = dict(rel=1e-10, abs=1e-12)
@@ -260,8 +263,9 @@ def test_pairs_by_id_match_units_across_the_file_and_list_what_was_left_out(tmp_
     code, out, err = run("analyze", path, "--group", "oven", "--value", "weight", "--paired-by", "part",
                          "--groups", "cold", "hot", "--resamples", "300", "--seed", "1")
     assert code == 0, err
-    assert f"Design: paired, {len(kept)} pairs formed matched by the pair ID column 'part'; 3 left out:" in out
-    assert sum(line.startswith("  [left out] ") for line in out.splitlines()) == 3
+    assert f"Design: paired, {len(kept)} pairs formed by the pair ID column 'part'; 3 left out" in out
+    for item in pairs["left_out"]:  # each said once: by the screening, or else under the design
+        assert out.count(item["text"]) == 1
 
 
 @pytest.mark.parametrize("flags", [["--paired"], ["--paired-by", "serial", "--group", "press", "--value", "thickness"]])
@@ -289,3 +293,16 @@ def test_when_every_margin_procedure_fails_the_command_says_so_in_one_line(press
     document = json.loads(out)
     assert document["procedures"] == {} and document["margin_verdicts"] == {}
     assert {note["key"] for note in document["notes"]} == {"part_not_computed"}
+
+
+def test_items_left_out_of_the_pairs_are_listed_under_the_design_when_the_screening_does_not(tmp_path):
+    path = tmp_path / "rods.csv"
+    path.write_text("rod,first,second\nR1,1.0,1.5\nR2,2.0,\nR3,3.0,2.0\nR4,x,4.0\nR5,5.0,5.5\nR6,6.0,6.1\n",
+                    encoding="utf-8")
+    spec = AnalysisSpec(value_columns=("first", "second"), layout="wide", design="paired", resamples=200)
+    analysis = pipeline.from_file(path, spec).analysis
+    assert design_lines(analysis) == ["Design: paired, 4 pairs formed row by row; 2 left out (listed above)."]
+    alone = design_lines(dataclasses.replace(analysis, screening=None))
+    assert alone[0] == "Design: paired, 4 pairs formed row by row; 2 left out:"
+    assert [line.split("] ")[0] for line in alone[1:]] == ["  [left out", "  [left out"]
+    assert "row 3" in alone[1] and "row 5" in alone[2]  # the file rows (the header is row 1)
