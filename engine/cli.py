@@ -178,6 +178,7 @@ def _analyze(args, out: TextIO) -> None:
     from .report import render
 
     if summary_cli.wanted(args) or outcomes_cli.wanted(args):
+        question_flags.refuse_with(args, summaries=summary_cli.wanted(args))
         return (summary_cli.run(args, out, DEFAULTS) if summary_cli.wanted(args)
                 else outcomes_cli.run(args, out, spec_from_arguments(args)))
     prepared, reopened = _prepared(args, args.path, args.spec,

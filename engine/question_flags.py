@@ -22,7 +22,7 @@ from .errors import OptionProblem, quoted
 from .question import MARGIN_UNITS, WORSE, Margin, Question
 from .spec import ZERO_RULES
 
-__all__ = ["FLAGS", "add_flags", "question_of", "design_of", "parse_margin"]
+__all__ = ["FLAGS", "add_flags", "question_of", "design_of", "parse_margin", "refuse_with"]
 
 # The flags this module adds, as argparse names them (a saved analysis refuses each of them).
 FLAGS = ("equivalence_margin", "noninferiority_margin", "worse", "margin_as", "paired_by", "paired",
@@ -192,3 +192,15 @@ def design_of(args: Any, values: tuple[str, ...]) -> dict[str, Any]:
     elif by_row:
         design["layout"] = "wide"
     return design
+
+
+def refuse_with(args: Any, *, summaries: bool) -> None:
+    """Refuse the flags that summary statistics (every one of them: a margin question and pairs
+    need the data) or several outcomes (the margin flags: the outcomes' verdicts and joint
+    intervals are those of a difference) cannot honour, in one line naming them."""
+    names = FLAGS if summaries else ("equivalence_margin", "noninferiority_margin", "worse", "margin_as")
+    given = [_flag(name) for name in names if _given(args, name)]
+    if given:
+        what = "summary statistics" if summaries else "several outcomes"
+        raise OptionProblem(f"python -m engine analyze: {', '.join(given)} cannot be used with {what}; "
+                            "leave them out, or analyse the data file's values themselves.")

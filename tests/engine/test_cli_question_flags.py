@@ -128,3 +128,19 @@ def test_a_saved_analysis_refuses_the_new_flags(tmp_path):
         code, out, err = run("analyze", "--spec", target, *flags)
         assert code == EXIT_BAD_INPUT and out == "" and err.count("\n") == 1
         assert "leave out" in err and flags[0] in err
+
+
+@pytest.mark.parametrize("flags, named", [
+    (["--summary", "a n=10 mean=5.1 sd=1.2", "--summary", "b n=12 mean=5.6 sd=1.0", "--equivalence-margin", "1"],
+     ["--equivalence-margin", "summary statistics"]),
+    (["--summary", "a n=10 mean=5.1 sd=1.2", "--summary", "b n=12 mean=5.6 sd=1.0", "--paired"],
+     ["--paired", "summary statistics"]),
+    ([BOLTS, "--outcomes", "strength_mpa", "--group", "supplier", "--noninferiority-margin", "3", "--worse", "lower"],
+     ["--noninferiority-margin", "--worse", "several outcomes"]),
+])
+def test_margin_and_pair_flags_that_another_mode_would_ignore_are_refused(flags, named):
+    # without the refusal the summary statistics would answer the difference question silently
+    code, out, err = run("analyze", *flags)
+    assert code == EXIT_BAD_INPUT and out == "" and err.count("\n") == 1
+    for word in named:
+        assert word in err
