@@ -11,11 +11,12 @@ from __future__ import annotations
 import argparse
 import json
 import os
+import re
 import sys
 from pathlib import Path
 from typing import Sequence, TextIO
 
-from . import outcomes_cli, plan_cli, summary_cli
+from . import outcomes_cli, plan_cli, question_flags, summary_cli
 from .errors import TwofoldError, quoted
 from .text import visible
 from .wording import plural
@@ -29,6 +30,12 @@ EXIT_UNEXPECTED = 1  # as an uncaught error would exit, but with one line instea
 class _Parser(argparse.ArgumentParser):
     """An argument parser whose usage errors are one line and exit code 2."""
 
+    def __init__(self, *args, **kwargs) -> None:
+        super().__init__(*args, **kwargs)
+        # a value that starts with a minus and a digit is a value, never a flag: the margins
+        # -0.5:0.8 and -3%:4% as well as argparse's own negative numbers
+        self._negative_number_matcher = re.compile(r"^-\.?\d")
+
     def error(self, message: str) -> None:  # noqa: D401 - argparse's hook
         raise TwofoldError(f"{self.prog}: {message} (see --help)")
 
@@ -37,7 +44,7 @@ class _Parser(argparse.ArgumentParser):
 DEFAULTS = {"alternative": "two-sided", "confidence": 0.95, "resamples": 10_000}
 # Flags that describe a new analysis; a saved one (--spec) already holds all of them.
 ANALYSIS_FLAGS = ("value", "group", "groups", "sheet", "alternative", "confidence", "resamples", "seed",
-                  "known_sd", "equal_spreads_known", "ordinal")
+                  "known_sd", "equal_spreads_known", "ordinal") + question_flags.FLAGS
 
 
 def _analysis_flags(command: argparse.ArgumentParser) -> None:
@@ -60,11 +67,14 @@ def _analysis_flags(command: argparse.ArgumentParser) -> None:
     command.add_argument("--equal-spreads-known", action="store_true",
                          help="the spreads are known to be equal from prior knowledge")
     command.add_argument("--ordinal", action="store_true", help="the values are ordered ratings, not measurements")
+    question_flags.add_flags(command)
 
 
 def build_parser() -> argparse.ArgumentParser:
     parser = _Parser(prog="python -m engine",
-                     description="Compare two independent groups of measurements from a data file.")
+                     description="Compare two groups of measurements from a data file: independent groups or "
+                                 "pairs, asking whether they differ, are equivalent within a margin, or "
+                                 "whether the first is not worse by more than a margin.")
     commands = parser.add_subparsers(dest="command", required=True, parser_class=_Parser)
 
     analyze = commands.add_parser("analyze", help="run the whole comparison on a file")
@@ -97,7 +107,6 @@ def build_parser() -> argparse.ArgumentParser:
 
 def spec_from_arguments(args):
     """The analysis spec the command's flags describe (columns left open are proposed later)."""
-    from .question import Question
     from .spec import AnalysisSpec, Source, Statements
 
     def given(name):
@@ -105,15 +114,18 @@ def spec_from_arguments(args):
         return DEFAULTS[name] if value is None else value
 
     values = tuple(args.value or ())
+    question = question_flags.question_of(args, given("alternative"), given("confidence"))
+    design = {"layout": "long" if args.group is not None or len(values) == 1 else "wide",
+              **question_flags.design_of(args, values)}
     return AnalysisSpec(
         source=Source(str(args.path), args.sheet),
-        layout="long" if args.group is not None or len(values) == 1 else "wide",
         group_column=args.group, value_columns=values,
         groups=tuple(args.groups) if args.groups else None,
-        question=Question.from_alternative(given("alternative"), given("confidence")),
+        question=question,
         resamples=given("resamples"), seed=args.seed,
         statements=Statements(known_sd=tuple(args.known_sd) if args.known_sd else None,
                               equal_spread_known=args.equal_spreads_known, ordinal=args.ordinal),
+        **design,
     )
 
 
@@ -166,6 +178,7 @@ def _analyze(args, out: TextIO) -> None:
     from .report import render
 
     if summary_cli.wanted(args) or outcomes_cli.wanted(args):
+        question_flags.refuse_with(args, summaries=summary_cli.wanted(args))
         return (summary_cli.run(args, out, DEFAULTS) if summary_cli.wanted(args)
                 else outcomes_cli.run(args, out, spec_from_arguments(args)))
     prepared, reopened = _prepared(args, args.path, args.spec,
@@ -191,6 +204,10 @@ def _reported_key(analysis) -> str:
     for key in (analysis.spec.procedure, analysis.recommendation.key):
         if key in analysis.procedures:
             return key
+    if not analysis.procedures:  # every procedure for this question was left out: say why
+        reasons = " ".join(note.text for note in analysis.notes)
+        raise TwofoldError(f"{analysis.source.get('file') or 'The data'}: no procedure could answer this "
+                           "question for these data." + (f" {reasons}" if reasons else ""))
     return next(iter(analysis.procedures))
 
 
@@ -227,7 +244,7 @@ def _readable(analysis, report_text: str) -> list[str]:
     alternatives weighed, the checks and the cautions), worded by ``engine.report.document``."""
     from .report.document import text_lines
 
-    return text_lines(analysis, report_text)
+    return text_lines(analysis, report_text, procedure=_reported_key(analysis))
 
 
 def _columns(args, out: TextIO) -> None:

@@ -18,7 +18,8 @@ from typing import Any
 
 import numpy as np
 
-__all__ = ["SCHEMA_VERSION", "to_plain", "analysis_document", "analysis_schema", "intake_document"]
+__all__ = ["SCHEMA_VERSION", "to_plain", "analysis_document", "analysis_schema", "intake_document",
+           "question_member", "margin_answers", "margin_verdicts", "pairs_member", "paired_member"]
 
 # the "schema_version" member of the --json document (see the module's note)
 SCHEMA_VERSION = 2
@@ -88,6 +89,110 @@ def options_member(spec) -> dict[str, Any]:
     }
 
 
+def _reference_mean(analysis) -> float | None:
+    """Group 2's mean, the reference of a margin given as a percentage (as the analysis took it)."""
+    y = np.asarray(analysis.groups.y, dtype=float)
+    return float(np.mean(y)) if y.size else None
+
+
+def question_member(analysis) -> dict[str, Any]:
+    """The ``question`` member: its kind, level, alpha and the procedures' alternative; for a
+    margin question the margin as entered, how it was entered, in the measurement's units (a
+    percentage of group 2's mean converted; a ratio stays a ratio) and the note saying so."""
+    question = analysis.spec.question
+    plain: dict[str, Any] = {"kind": question.kind, "level": question.level, "alpha": question.alpha,
+                             "alternative": question.alternative, "margin": None}
+    entered = question.margin
+    if entered is None:
+        return plain
+    reference = _reference_mean(analysis) if entered.unit == "percent" else None
+    used = analysis.margin
+    plain["margin"] = {
+        "entered": entered.to_dict(),
+        "entered_as": entered.unit,
+        "reference_mean": to_plain(reference),
+        "in_units": None if used is None else {"low": used.low, "high": used.high, "unit": used.unit,
+                                               "worse": used.worse},
+        "note": entered.note(reference),
+        "text": None if used is None else question.margin_text(used, tuple(analysis.groups.labels)),
+    }
+    return plain
+
+
+def margin_answers(analysis) -> dict[str, Any]:
+    """What each margin procedure's result says against the margin (``MarginAnswer`` by key), in
+    the order the procedures ran; empty for a question without a margin."""
+    from .procedures import registry
+
+    if getattr(analysis, "margin", None) is None:
+        return {}
+    kind = analysis.spec.question.kind
+    answers = {}
+    for key in analysis.procedures:
+        record = registry.find(key)
+        if record is not None and kind not in record.questions:
+            continue
+        answer = analysis.margin_answer(key)
+        if answer is not None:
+            answers[key] = answer
+    return answers
+
+
+def margin_verdicts(analysis) -> dict[str, Any]:
+    """The ``margin_verdicts`` member: for a margin question, what each procedure's interval says
+    against the margin (``case``, ``yes``, ``reading`` in a few words, ``words`` in sentences),
+    with the (1 - 2 alpha) ``interval`` set against it and the (1 - alpha)
+    ``difference_interval``; empty for a question without a margin."""
+    question = analysis.spec.question
+    labels = tuple(analysis.groups.labels)
+    verdicts: dict[str, Any] = {}
+    for key, answer in margin_answers(analysis).items():
+        result = analysis.procedures[key]
+        verdicts[key] = {
+            "case": answer.case,
+            "yes": answer.yes,
+            "beyond": answer.beyond,
+            "reading": question.margin_reading(answer),
+            "words": question.margin_words(answer, labels, result.estimate_name),
+            "interval": to_plain(answer.interval),
+            "difference_interval": to_plain(answer.difference_interval),
+        }
+    return verdicts
+
+
+def pairs_member(analysis) -> dict[str, Any] | None:
+    """The ``pairs`` member: how the pairs were formed from the file (by the ID column or row by
+    row), how many, and every ID or row left out with its file rows and what was done; None
+    for independent groups or groups not read from a file."""
+    pairs = analysis.pairs
+    if pairs is None:
+        return None
+    from .io.pairs import PAIR_PROBLEMS
+
+    column = analysis.spec.pair_column
+    return {
+        "formed_by": "id_column" if column is not None else "row",
+        "pair_column": column,
+        "labels": list(pairs.labels),
+        "n_pairs": int(pairs.n_pairs),
+        "left_out_counts": {kind: int(count) for kind, count in pairs.counts.items()},
+        "left_out": [{"kind": p.kind, "kind_text": PAIR_PROBLEMS.get(p.kind, p.kind), "pair_id": p.pair_id,
+                      "file_rows": list(p.file_rows), "text": p.text} for p in pairs.problems],
+    }
+
+
+def paired_member(analysis) -> dict[str, Any] | None:
+    """The ``paired`` member: the checks on the differences (group 1 minus group 2, pair by pair):
+    how many pairs, their summary and shape, the correlation of the two members of a pair, the
+    findings; None for independent groups. The differences themselves are left out."""
+    checks = analysis.paired
+    if checks is None:
+        return None
+    return {"n_pairs": int(checks.n_pairs), "summary": to_plain(checks.summary),
+            "shape": to_plain(checks.shape), "correlation": to_plain(checks.correlation),
+            "findings": to_plain(checks.findings)}
+
+
 def analysis_document(analysis) -> dict[str, Any]:
     """The whole analysis as one JSON-ready object (the headless command's ``--json``)."""
     from .report.cautions import cautions
@@ -109,6 +214,12 @@ def analysis_document(analysis) -> dict[str, Any]:
         "screening": to_plain(analysis.screening) if analysis.screening else None,
         "source": to_plain(analysis.source),
         "notes": to_plain(analysis.notes),
+        # added within schema version 2: the question, the verdicts against a margin, the design
+        "question": question_member(analysis),
+        "margin_verdicts": margin_verdicts(analysis),
+        "design": analysis.spec.design,
+        "pairs": pairs_member(analysis),
+        "paired": paired_member(analysis),
     }
     return document
 

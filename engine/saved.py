@@ -122,13 +122,28 @@ def _ends(interval) -> dict[str, Any]:
     return {"low": _figure(interval.low), "high": _figure(interval.high)}
 
 
+def _margin_verdicts(analysis) -> dict[str, Any]:
+    """For a margin question, each procedure's verdict against the margin: its case, whether it
+    answers "yes", and the ends of the (1 - alpha) interval the verdict also reads (the
+    (1 - 2 alpha) one is the procedure's own interval)."""
+    from .jsonout import margin_answers
+
+    verdicts: dict[str, Any] = {}
+    for key, answer in margin_answers(analysis).items():
+        ends = _ends(answer.difference_interval)
+        verdicts[key] = {"case": answer.case, "yes": bool(answer.yes),
+                         "difference_low": ends["low"], "difference_high": ends["high"]}
+    return verdicts
+
+
 def numbers_of(analysis) -> dict[str, Any]:
     """The figures a saved analysis records and :func:`reopen` compares: for each group its
     label, size, mean and SD; for every procedure its estimate, interval ends, p-value, statistic
     and degrees of freedom; for every effect size its value and interval ends; the key of the
-    suggested procedure. Unrounded; a missing figure is None, a non-finite one a text."""
+    suggested procedure; for a margin question (only) each procedure's verdict against the
+    margin (``margins``). Unrounded; a missing figure is None, a non-finite one a text."""
     analysis = getattr(analysis, "analysis", analysis)  # a pipeline.Prepared is taken too
-    return {
+    numbers = {
         "groups": [{"label": s.label, "n": int(s.n), "mean": _figure(s.mean), "sd": _figure(s.sd)}
                    for s in analysis.summaries],
         "procedures": {key: {"estimate": _figure(r.estimate), **_ends(r.interval),
@@ -139,6 +154,9 @@ def numbers_of(analysis) -> dict[str, Any]:
                          for key, e in analysis.effect_sizes.items()},
         "suggested": analysis.recommendation.key,
     }
+    if getattr(analysis, "margin", None) is not None:
+        numbers["margins"] = _margin_verdicts(analysis)
+    return numbers
 
 
 def _flat(numbers: Mapping[str, Any]) -> dict[str, Any]:
@@ -153,6 +171,9 @@ def _flat(numbers: Mapping[str, Any]) -> dict[str, Any]:
             for name, value in figures.items():
                 flat[f"{key} {name}"] = value
     flat["suggested procedure"] = numbers.get("suggested")
+    for key, verdict in numbers.get("margins", {}).items():
+        for name, value in verdict.items():
+            flat[f"{key} margin {name}"] = value
     return flat
 
 
@@ -363,12 +384,28 @@ def _check_figures(figures: Any, names: tuple[str, ...], where: str, name: str) 
 
 _PROCEDURE_FIGURES = ("estimate", "low", "high", "p_value", "statistic", "df")
 _EFFECT_FIGURES = ("value", "low", "high")
+_NUMBERS = {"groups", "procedures", "effect_sizes", "suggested"}
+_MARGIN_MEMBERS = {"case", "yes", "difference_low", "difference_high"}
+
+
+def _check_margins(margins: Any, name: str) -> None:
+    if not isinstance(margins, dict):
+        raise _refuse(name, "is damaged: its 'margins' verdicts are not listed by key.")
+    for key, verdict in margins.items():
+        if not isinstance(verdict, dict) or set(verdict) != _MARGIN_MEMBERS \
+                or not isinstance(verdict["case"], str) or not isinstance(verdict["yes"], bool):
+            raise _refuse(name, f"is damaged: the verdict of {quoted(key)} against the margin is not "
+                                "case, yes, difference_low, difference_high.")
+        _check_figures({k: verdict[k] for k in ("difference_low", "difference_high")},
+                       ("difference_low", "difference_high"), quoted(key), name)
 
 
 def _check_numbers(numbers: Any, name: str) -> dict[str, Any]:
     """The "numbers" member, checked to be what :func:`numbers_of` writes."""
-    if not isinstance(numbers, dict) or set(numbers) != {"groups", "procedures", "effect_sizes", "suggested"}:
+    if not isinstance(numbers, dict) or set(numbers) not in (_NUMBERS, _NUMBERS | {"margins"}):
         raise _refuse(name, "is damaged: its 'numbers' are not the figures a saved analysis holds.")
+    if "margins" in numbers:
+        _check_margins(numbers["margins"], name)
     groups = numbers["groups"]
     if not isinstance(groups, list) or len(groups) != 2:
         raise _refuse(name, "is damaged: its 'numbers' do not hold two groups.")

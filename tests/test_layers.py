@@ -63,8 +63,8 @@ LAYERS: tuple[tuple[str, ...], ...] = (
     ("engine.pipeline", "engine.saved", "engine.session"),
     # the same two groups compared on several measurements
     ("engine.outcomes",),
-    # where the command may write a report
-    ("engine.audit",),
+    # where the command may write a report; the command's question and design flags
+    ("engine.audit", "engine.question_flags"),
     # the headless command (planning's, summaries' and outcomes' parts below the rest)
     ("engine.plan_cli", "engine.summary_cli", "engine.outcomes_cli"),
     ("engine.cli",),

@@ -25,6 +25,7 @@ from .findings import findings_blocks
 from .margins import estimate_is_ratio, has_margin, margin_entered
 from .numbers import level_text
 from .pairs import LEFT_OUT_HEADING, design_text, is_paired, left_out_items, n_pairs
+from .question_lines import setup_lines
 from .sentences import procedure_followed, question_text
 
 __all__ = ["html", "text", "text_lines", "Picture", "procedure_key", "file_rows", "choice_rows",
@@ -296,10 +297,11 @@ def html(analysis, procedure: str | None = None, *, pictures: Sequence[Picture] 
             f"</head><body>{body}</body></html>")
 
 
-def text_lines(analysis, findings_text: str) -> list[str]:
-    """The command's plain summary around ``findings_text`` (:func:`render`'s plain text): the
-    file and its screening, the suggestion, then the findings, which close with the cautions.
-    Text from the file is not yet escaped (the caller prints each line through
+def text_lines(analysis, findings_text: str, procedure: str | None = None) -> list[str]:
+    """The command's plain summary around ``findings_text`` (:func:`render`'s plain text of
+    ``procedure``, see :func:`procedure_key`): the file and its screening, the design and a
+    margin question with its verdict, the suggestion, then the findings, which close with the
+    cautions. Text from the file is not yet escaped (the caller prints each line through
     :func:`engine.text.visible`)."""
     lines = [f"File: {analysis.source.get('file')}"]
     screening = analysis.screening
@@ -309,6 +311,7 @@ def text_lines(analysis, findings_text: str) -> list[str]:
     for note in analysis.notes:
         lines.append(f"  [{note.severity}] {note.text}")
     lines.append("")
+    lines.extend(setup_lines(analysis, procedure_key(analysis, procedure)))
     lines.append(f"Suggested procedure: {analysis.recommendation.name}")
     lines.append("")
     lines.extend(findings_text.rstrip().split("\n"))  # the report's own lines (its texts are escaped)
@@ -321,4 +324,4 @@ def text(analysis, procedure: str | None = None) -> str:
     key = procedure_key(analysis, procedure)
     # the screening above the findings lists the pairs left out already
     findings = tables.plain(findings_blocks(analysis, key) + caution_blocks(analysis))
-    return "\n".join(text_lines(analysis, findings)) + "\n"
+    return "\n".join(text_lines(analysis, findings, key)) + "\n"

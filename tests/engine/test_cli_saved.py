@@ -19,6 +19,7 @@ DEMO = Path(__file__).resolve().parents[2] / "demo_files"
 QUICK = ("--resamples", "300")
 
 
+
 def run(*argv):
     out, err = io.StringIO(), io.StringIO()
     code = main([str(a) for a in argv], out=out, err=err)
@@ -196,3 +197,78 @@ def test_the_procedure_picked_in_a_saved_analysis_is_the_one_reported(bolts, tmp
     code, _, err = run("report", target, "--html", tmp_path / "picked.html")
     assert code == 0, err
     assert f"suggested for these data was the {suggested}" in (tmp_path / "picked.html").read_text(encoding="utf-8")
+
+
+# -- margin questions and paired data ---------------------------------------------------------------
+def _paired_parts(folder: Path) -> Path:
+    """Sixteen parts, each measured in both ovens; the rows of the second oven in another order,
+    one part measured in the first oven only."""
+    import numpy as np
+
+    rng = np.random.default_rng(40)
+    cold = np.round(rng.normal(30, 2, 16), 2)
+    hot = np.round(cold - 0.6 + rng.normal(0, 0.7, 16), 2)
+    rows = [f"P{i:02d},cold,{float(v)!r}" for i, v in enumerate(cold)]
+    rows += [f"P{i:02d},hot,{float(hot[i])!r}" for i in reversed(range(16))]
+    rows.append("P99,cold,31.0")
+    path = folder / "parts.csv"
+    path.write_text("part,oven,weight\n" + "\n".join(rows) + "\n", encoding="utf-8")
+    return path
+
+
+@pytest.mark.parametrize("case", ["equivalence", "noninferiority_percent", "paired", "paired_equivalence"])
+def test_a_margin_or_paired_analysis_saved_reopens_to_the_same_numbers(case, tmp_path):
+    if case.startswith("paired"):
+        data = _paired_parts(tmp_path)
+        flags = ["--group", "oven", "--value", "weight", "--paired-by", "part", "--groups", "cold", "hot",
+                 "--zero-rule", "pratt"]
+        flags += ["--equivalence-margin", "-1:1.5"] if case == "paired_equivalence" else []
+    else:
+        data = Path(shutil.copy(DEMO / "bolt_strength.csv", tmp_path / "bolts.csv"))
+        flags = (["--equivalence-margin", "25"] if case == "equivalence"
+                 else ["--noninferiority-margin", "3%", "--worse", "lower"])
+    target = tmp_path / "run.twofold"
+    code, out, err = run("analyze", data, *flags, *QUICK, "--json", "--save", target)
+    assert code == 0, err
+    document = json.loads(out)
+    loaded = saved.load(target)
+    assert loaded.spec.to_dict() == document["spec"]
+    if "paired" in case:
+        assert loaded.spec.design == "paired" and loaded.spec.pair_column == "part"
+        assert loaded.spec.zero_rule == "pratt"
+        assert {"paired_d_z", "paired_d_av"} <= set(loaded.numbers["effect_sizes"])
+    if case != "paired":
+        assert loaded.spec.question.margin is not None
+        verdicts = loaded.numbers["margins"]
+        assert verdicts and {key: v["case"] for key, v in verdicts.items()} == \
+            {key: v["case"] for key, v in document["margin_verdicts"].items()}
+    else:
+        assert "margins" not in loaded.numbers
+    again = saved.reopen(loaded)
+    assert again.status == "same", again.differences
+    # --spec runs it again: the same document, and the schema accepts it
+    code, out, err = run("analyze", "--spec", target, "--json")
+    assert code == 0 and err == ""
+    assert json.loads(out) == document
+    jsonschema.validate(json.loads(out), analysis_schema())
+    code, out, err = run("analyze", "--spec", target)
+    assert code == 0, err
+    assert "saved numbers exactly" in out.splitlines()[0]
+    assert any(line.startswith("Design: ") for line in out.splitlines())
+    page = tmp_path / "run.html"
+    code, out, err = run("report", target, "--html", page)
+    assert code == 0, err
+    assert "saved numbers exactly" in page.read_text(encoding="utf-8")
+
+
+def test_a_saved_margin_analysis_whose_verdict_was_edited_is_refused(tmp_path):
+    data = Path(shutil.copy(DEMO / "bolt_strength.csv", tmp_path / "bolts.csv"))
+    target = tmp_path / "run.twofold"
+    assert run("analyze", data, "--equivalence-margin", "25", *QUICK, "--save", target)[0] == 0
+    document = json.loads(target.read_text(encoding="utf-8"))
+    key, verdict = next(iter(document["numbers"]["margins"].items()))
+    verdict["yes"] = not verdict["yes"]
+    target.write_text(json.dumps(document), encoding="utf-8")
+    code, out, err = run("analyze", "--spec", target)
+    assert code == 2 and out == "" and err.count("\n") == 1
+    assert f"{key} margin yes: saved" in err

@@ -20,6 +20,7 @@ DEMO = Path(__file__).resolve().parents[2] / "demo_files"
 DEMO_FILES = sorted(p.name for p in DEMO.iterdir() if p.is_file())
 
 
+
 def _document(*argv) -> dict:
     out, err = io.StringIO(), io.StringIO()
     code = main(["analyze", *map(str, argv), "--json", "--resamples", "300", "--seed", "5"],
@@ -147,7 +148,11 @@ def test_a_part_that_fails_gives_a_warning_note_the_schema_accepts(monkeypatch):
     ("screening", "findings", 0, "severity"),
 ])
 def test_a_renamed_member_fails_the_schema(bolts, path):
-    document = copy.deepcopy(bolts)
+    _renaming_fails(copy.deepcopy(bolts), path)
+
+
+def _renaming_fails(document: dict, path: tuple) -> None:
+    """The document passes the shipped schema, and fails it once the member at ``path`` is renamed."""
     _validator(analysis_schema()).validate(document)
     parent = document
     for step in path[:-1]:
@@ -175,3 +180,60 @@ def test_a_wrong_type_fails_the_schema(bolts):
         change(document)
         with pytest.raises(jsonschema.ValidationError):
             _validator(analysis_schema()).validate(document)
+
+
+# -- margin questions and paired data ------------------------------------------------------------
+@pytest.mark.parametrize("flags", [
+    ("--equivalence-margin", "30"),
+    ("--equivalence-margin=-3%:4%", "--equal-spreads-known"),
+    ("--equivalence-margin", "0.97:1.04", "--margin-as", "ratio"),
+    ("--noninferiority-margin", "15", "--worse", "lower"),
+    ("--noninferiority-margin", "2%", "--worse", "higher", "--confidence", "0.9"),
+])
+def test_margin_questions_give_documents_the_schema_accepts(flags):
+    document = _document(DEMO / "bolt_strength.csv", *flags)
+    _check(document)
+    question = document["question"]
+    assert question["kind"] in ("equivalent", "not_worse") and question["margin"] is not None
+    assert document["spec"]["question"]["margin"] == question["margin"]["entered"]
+    assert document["margin_verdicts"] and set(document["margin_verdicts"]) <= set(document["procedures"])
+    for verdict in document["margin_verdicts"].values():
+        # the interval set against the margin is the two-sided 1 - 2 alpha one
+        assert verdict["interval"]["level"] == pytest.approx(1 - 2 * question["alpha"])
+    assert document["design"] == "independent" and document["pairs"] is None and document["paired"] is None
+
+
+def _paired_file(tmp_path) -> Path:
+    rng = np.random.default_rng(12)
+    before = np.round(rng.normal(20, 2, 15), 2)
+    after = np.round(before + rng.normal(0.4, 0.5, 15), 2)
+    lines = [f"{float(a)!r},{float(b)!r}" for a, b in zip(before, after)] + ["21.5,", "x,3"]
+    path = tmp_path / "paired.csv"
+    path.write_text("before,after\n" + "\n".join(lines) + "\n", encoding="utf-8")
+    return path
+
+
+@pytest.mark.parametrize("flags", [(), ("--equivalence-margin", "0.5"), ("--noninferiority-margin", "1", "--worse", "higher")])
+def test_paired_data_give_documents_the_schema_accepts(tmp_path, flags):
+    document = _document(_paired_file(tmp_path), "--paired", *flags)
+    _check(document)
+    assert document["design"] == "paired"
+    assert document["pairs"]["n_pairs"] == document["paired"]["n_pairs"] == 15
+    assert [item["kind"] for item in document["pairs"]["left_out"]] == ["partner_missing", "non_numeric"]
+    if not flags:
+        assert {"paired_d_z", "paired_d_av"} <= set(document["effect_sizes"])
+
+
+@pytest.mark.parametrize("path", [
+    ("question", "margin", "entered_as"),
+    ("margin_verdicts", "equivalence_welch", "case"),
+    ("margin_verdicts", "equivalence_welch", "difference_interval"),
+    ("pairs", "n_pairs"),
+    ("paired", "correlation"),
+])
+def test_a_renamed_margin_or_paired_member_fails_the_schema(tmp_path, path):
+    if path[0] in ("pairs", "paired"):
+        document = _document(_paired_file(tmp_path), "--paired")
+    else:
+        document = _document(DEMO / "bolt_strength.csv", "--equivalence-margin", "30")
+    _renaming_fails(document, path)

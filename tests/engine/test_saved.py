@@ -268,6 +268,26 @@ def test_numbers_differ_when_the_saved_figures_were_edited(tmp_path):
     assert "welch_t estimate" in again.message and "is unchanged" in again.message
 
 
+def test_a_changed_verdict_against_the_margin_differs_and_is_named():
+    verdict = {"case": "equivalent", "yes": True, "difference_low": -0.5, "difference_high": 0.25}
+    numbers = {"groups": [], "procedures": {}, "effect_sizes": {}, "suggested": "x",
+               "margins": {"equivalence_welch": verdict}}
+    other = json.loads(json.dumps(numbers))
+    other["margins"]["equivalence_welch"].update(case="inconclusive", yes=False)
+    status, differences = saved.compare_numbers(numbers, other)
+    assert status == "numbers_differ"
+    assert differences == ("equivalence_welch margin case: saved equivalent, now inconclusive",
+                           "equivalence_welch margin yes: saved True, now False")
+    # a saved file without verdicts (a question without a margin) against one with them
+    plain = {key: value for key, value in numbers.items() if key != "margins"}
+    assert saved.compare_numbers(plain, numbers)[0] == "numbers_differ"
+    assert saved.compare_numbers(numbers, json.loads(json.dumps(numbers))) == ("same", ())
+
+
+def test_a_question_without_a_margin_saves_no_verdicts(tmp_path):
+    assert "margins" not in _numbers(tmp_path)
+
+
 def test_non_finite_figures_are_kept_as_texts():
     assert [saved._figure(v) for v in (math.nan, math.inf, -math.inf, None, 2)] == \
         ["NaN", "Infinity", "-Infinity", None, 2.0]
@@ -347,6 +367,16 @@ def test_an_unknown_or_ill_kinded_version_is_refused(good, version):
     (lambda d: d.pop("saved_at"), "'saved_at' is missing"),
     (lambda d: d.update(program_version=3), "program_version"),
     (lambda d: d.update(source_from_here=7), "source_from_here"),
+    (lambda d: d["numbers"].update(margins=[1]), "'margins' verdicts"),
+    (lambda d: d["numbers"].update(margins={"welch_t": {"case": "equivalent", "yes": "yes",
+                                                       "difference_low": 1.0, "difference_high": 2.0}}),
+     "verdict of welch_t against the margin"),
+    (lambda d: d["numbers"].update(margins={"welch_t": {"case": "equivalent", "yes": True}}),
+     "verdict of welch_t against the margin"),
+    (lambda d: d["numbers"].update(margins={"welch_t": {"case": "equivalent", "yes": True,
+                                                       "difference_low": "low", "difference_high": 2.0}}),
+     "welch_t difference_low is not a number"),
+    (lambda d: d["numbers"].update(verdicts={}), "numbers"),
 ])
 def test_a_hand_edited_file_is_one_line_naming_what_is_wrong(good, edit, pattern):
     target, document = good
@@ -462,6 +492,9 @@ def test_a_saved_file_validates_against_its_shipped_schema(demo, tmp_path):
     lambda d: d["numbers"]["procedures"]["welch_t"].update(p_value="small"),
     lambda d: d["numbers"]["groups"].pop(),
     lambda d: d.update(saved_at="yesterday"),
+    lambda d: d["numbers"].update(margins={"welch_t": {"case": "equivalent", "yes": "yes",
+                                                       "difference_low": 1.0, "difference_high": 2.0}}),
+    lambda d: d["numbers"].update(margins={"welch_t": {"case": "equivalent", "yes": True}}),
 ])
 def test_the_schema_refuses_what_load_refuses(good, edit):
     import jsonschema
