@@ -26,7 +26,8 @@ from engine.text import visible
 from .messages import message_text
 from .plain_text import plain_label
 
-__all__ = ["MarginEntry", "UNIT_WORDS", "WORSE_WORDS", "parse_number", "margin_reading", "in_force_words"]
+__all__ = ["MarginEntry", "UNIT_WORDS", "WORSE_WORDS", "parse_number", "margin_reading", "in_force_words",
+           "entered_words", "question_words"]
 
 # How the margin is given, for each of engine.question.MARGIN_UNITS: {a} is group 1, {b} group 2.
 UNIT_WORDS: tuple[tuple[str, str], ...] = (
@@ -82,13 +83,43 @@ def margin_reading(kind: str, margin: Margin, labels: tuple[str, str]) -> str:
     return f"{first} counts as no worse if {what} lies {side} {show(margin.bound)}."
 
 
+def entered_words(margin: Margin, labels: tuple[str, str]) -> str:
+    """The margin as it was entered: "±2", "−1 to 3", "±5 % of resin's mean", "a ratio of 0.8 to
+    1.25"; for non-inferiority its size on the worse side and that side: "2 (lower values are
+    worse)"."""
+    second = visible(labels[1])
+    if margin.worse is not None:
+        size = margin.bound if margin.unit == "ratio" else abs(margin.bound)
+        ends = _g(size)
+    elif margin.symmetric and margin.unit != "ratio":
+        ends = f"±{_g(margin.high)}"
+    else:
+        ends = f"{_g(margin.low)} to {_g(margin.high)}"
+    if margin.unit == "percent":
+        ends = (ends.replace(" to ", " % to ") + f" % of {second}'s mean")
+    elif margin.unit == "ratio":
+        ends = f"a ratio of {ends}"
+    if margin.worse is not None:
+        ends += f" ({dict(WORSE_WORDS)[margin.worse]})"
+    return ends
+
+
+def question_words(question: Question, labels: tuple[str, str]) -> str:
+    """A margin question in a few words: "the same within ±2", "no worse by more than 5 % of
+    resin's mean (lower values are worse)"; "" for a question without a margin."""
+    if question.margin is None:
+        return ""
+    lead = "the same within" if question.kind == "equivalent" else "no worse by more than"
+    return f"{lead} {entered_words(question.margin, labels)}"
+
+
 def in_force_words(question: Question, labels: tuple[str, str]) -> str:
     """The question a session holds, as the problem line names it: "Do wax and resin differ?",
-    "Are wax and resin the same within ±2?"."""
+    "Are wax and resin the same within a margin you set? (±2)"."""
     words = dict(QUESTIONS)[question.kind].format(a=visible(labels[0]), b=visible(labels[1]))
     if question.margin is None:
         return words
-    return f"{words[:-1]} ({question.margin_text(question.margin, labels)})?"
+    return f"{words} ({entered_words(question.margin, labels)})"
 
 
 class MarginEntry(QWidget):
