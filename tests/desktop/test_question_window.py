@@ -99,3 +99,25 @@ def test_kept_settings_carry_the_margin_to_the_next_file(make_window, qtbot, two
     assert "were the same within ±4 % of group 2's mean, 95%" in window.message_bar.text
     assert window.session.spec.question == Question()
     assert window.setup_panel.question.currentData() == "differ" and not entry.isVisibleTo(window.setup_panel)
+
+
+def test_a_saved_margin_question_reopens_with_its_margin(make_window, qtbot, monkeypatch, two_groups_csv, tmp_path):
+    window = make_window([two_groups_csv])
+    ready(qtbot, window)
+    asked = Question("not_worse", 0.9, Margin.not_worse_by(0.5, "higher"))
+    window.session.ask(kind=asked.kind, level=asked.level, margin=asked.margin)
+    qtbot.waitUntil(lambda: window.session.analysis.spec.question == asked and not window.busy, timeout=60_000)
+    target = tmp_path / "kept.twofold"
+    monkeypatch.setattr(main_window.QFileDialog, "getSaveFileName", lambda *a: (str(target), a[-1]))
+    window.save_analysis_action.trigger()
+    assert window.message_bar.key == "saved" and target.is_file()
+    again = make_window([target])
+    ready(qtbot, again)
+    assert again.message_bar.key == "reopen_same"
+    assert again.session.spec.question == asked
+    setup = again.setup_panel
+    assert setup.question.currentData() == "not_worse"
+    entry = setup.margin_entry
+    assert entry.size.text() == "0.5" and entry.unit.currentData() == "units"
+    assert entry.worse.currentData() == "higher"
+    assert entry.reading.text().endswith("lies below 0.5.")
