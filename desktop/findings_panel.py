@@ -164,7 +164,8 @@ class FindingsPanel(QWidget):
         self.table.setVerticalScrollBarPolicy(Qt.ScrollBarPolicy.ScrollBarAlwaysOff)
         layout.addWidget(self.table)
 
-        layout.addWidget(heading("Every applicable procedure side by side"))
+        self.side_heading = heading("Every applicable procedure side by side")
+        layout.addWidget(self.side_heading)
         self.agreement = text_label()
         layout.addWidget(self.agreement)
         self.plot = IntervalPlot()
@@ -233,7 +234,7 @@ class FindingsPanel(QWidget):
         if result is None:
             self._show_nothing(analysis)
             return
-        for widget in (self.table, self.followed):
+        for widget in (self.table, self.followed, self.side_heading, self.plot):
             widget.setVisible(True)
         self.headline.setText(self.report_text().paragraph)
         self.verdict.setText(_margin_verdict(analysis, key))
@@ -251,7 +252,8 @@ class FindingsPanel(QWidget):
         """No procedure gave a result for the question: say so, and why where the analysis knows."""
         why = [note.message for note in analysis.notes if note.key == "part_not_computed"]
         self.headline.setText(" ".join([NOTHING_ANSWERS, *why]))
-        for widget in (self.verdict, self.offer, self.table, self.followed, self.no_interval):
+        for widget in (self.verdict, self.offer, self.table, self.followed, self.no_interval, self.side_heading,
+                       self.plot):
             widget.setVisible(False)
         for button in (self.copy_button, self.copy_plot_button, self.save_plot_button, self.export_button):
             button.setEnabled(False)

@@ -20,7 +20,6 @@ from PySide6.QtWidgets import (QCheckBox, QComboBox, QFormLayout, QHBoxLayout, Q
 
 from engine.errors import OptionProblem
 from engine.question import MARGIN_KINDS, Margin, Question
-from engine.report import QUESTIONS
 from engine.text import visible
 
 from .messages import message_text
@@ -113,13 +112,16 @@ def question_words(question: Question, labels: tuple[str, str]) -> str:
     return f"{lead} {entered_words(question.margin, labels)}"
 
 
+# The question in force in a few words, as the problem line under the fields names it.
+_IN_FORCE = {"differ": "do the groups differ?", "lower": "is group 1 lower?", "higher": "is group 1 higher?"}
+
+
 def in_force_words(question: Question, labels: tuple[str, str]) -> str:
-    """The question a session holds, as the problem line names it: "Do wax and resin differ?",
-    "Are wax and resin the same within a margin you set? (±2)"."""
-    words = dict(QUESTIONS)[question.kind].format(a=visible(labels[0]), b=visible(labels[1]))
+    """The question a session holds, short enough for the problem line: "do the groups differ?",
+    "the same within ±2?"."""
     if question.margin is None:
-        return words
-    return f"{words} ({entered_words(question.margin, labels)})"
+        return _IN_FORCE[question.kind]
+    return f"{question_words(question, labels)}?"
 
 
 class MarginEntry(QWidget):

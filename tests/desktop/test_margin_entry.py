@@ -94,7 +94,7 @@ def test_a_margin_kind_waits_for_its_margin(panel, session, qtbot):
     assert session.spec.question == Question("differ")
     assert panel.question.currentData() == "equivalent"
     assert entry.isVisible() and entry.size.isVisible() and not entry.worse.isVisible()
-    assert entry.problem.text().startswith("Type the margin to ask this question. Still asked: Do ")
+    assert entry.problem.text() == "Type a margin to ask this. Still in force: do the groups differ?"
     type_into(qtbot, entry.size, "20")
     assert session.spec.question == Question("equivalent", 0.95, Margin(-20.0, 20.0, "units"))
     assert not entry.problem.isVisible()
@@ -151,7 +151,7 @@ def test_non_inferiority_says_which_way_is_worse(panel, session, qtbot):
 
 
 @pytest.mark.parametrize("unit, typed, said", [
-    ("units", "abc", "\u201cabc\u201d is not a number"),
+    ("units", "abc", "\u201cabc\u201d is not a number; type one such as 0.5."),
     ("units", "0", "A margin of 0 leaves no room"),
     ("units", "-0", "A margin of 0 leaves no room"),
     ("ratio", "1", "A margin of 1 leaves no room"),
@@ -172,7 +172,7 @@ def test_a_bad_entry_is_said_in_one_line_and_the_last_question_stays(panel, sess
     text = entry.problem.text()
     assert entry.problem.isVisible() and "\n" not in text
     assert said in text or said.lower() in text.lower(), text
-    assert "Still asked: Are" in text
+    assert text.endswith("Still in force: the same within " + ("±20?" if unit == "units" else "a ratio of 0.05 to 20?"))
     assert not entry.reading.isVisible()
 
 

@@ -33,4 +33,4 @@ def test_nothing_to_answer_is_said_not_shown_as_a_crash(panel):
     assert panel.headline.text().startswith(NOTHING_ANSWERS)
     assert not panel.table.isVisibleTo(panel) and not panel.offer.isVisibleTo(panel)
     assert not panel.copy_button.isEnabled() and not panel.export_button.isEnabled()
-    assert panel.plot.row_names() == []
+    assert panel.plot.row_names() == [] and not panel.plot.isVisibleTo(panel)
