@@ -102,23 +102,19 @@ def test_a_margin_kind_waits_for_its_margin(panel, session, qtbot):
     assert entry.reading.text() == f"The groups count as the same if {first} minus {second} lies between −20 and 20."
 
 
-def test_a_margin_as_a_percentage(panel, session, qtbot):
+@pytest.mark.parametrize("unit, typed, margin, reads", [
+    # a decimal comma and a percent sign are taken as meant
+    ("percent", "2,5 %", Margin(-2.5, 2.5, "percent"), "{a} minus {b} lies between −2.5 % of {b}'s mean and 2.5 % of"),
+    ("ratio", "1.25", Margin(0.8, 1.25, "ratio"), "{a}'s mean divided by {b}'s lies between 0.8 and 1.25."),
+])
+def test_a_margin_as_a_percentage_or_a_ratio(panel, session, qtbot, unit, typed, margin, reads):
     entry = entry_of(panel)
     pick(panel, "equivalent")
-    choose(entry.unit, "percent")
-    type_into(qtbot, entry.size, "2,5 %")  # a decimal comma and a percent sign are taken as meant
-    assert session.spec.question.margin == Margin(-2.5, 2.5, "percent")
-    assert "% of" in entry.reading.text()
-
-
-def test_a_margin_as_a_ratio(panel, session, qtbot):
-    entry = entry_of(panel)
-    pick(panel, "equivalent")
-    choose(entry.unit, "ratio")
-    type_into(qtbot, entry.size, "1.25")
-    margin = session.spec.question.margin
-    assert (margin.unit, margin.low, margin.high) == ("ratio", pytest.approx(0.8), 1.25)
-    assert "divided by" in entry.reading.text()
+    choose(entry.unit, unit)
+    type_into(qtbot, entry.size, typed)
+    assert session.spec.question.margin == margin
+    first, second = panel._labels()
+    assert reads.format(a=first, b=second) in entry.reading.text()
 
 
 def test_an_uneven_margin(panel, session, qtbot):
