@@ -196,6 +196,15 @@ class MarginEntry(QWidget):
         self._load(session.spec.question)
         self._show()
 
+    def label_width(self) -> int:
+        """The width the labels of the fields ask for."""
+        return max(label.sizeHint().width() for label in (self.margin_label, self.worse_label))
+
+    def set_label_width(self, width: int) -> None:
+        """Give the labels of the fields ``width``, to line them up with a form around them."""
+        for label in (self.margin_label, self.worse_label):
+            label.setMinimumWidth(width)
+
     def tab_order(self) -> list[QWidget]:
         """The fields in the order the Tab key visits them."""
         return [self.size, self.low, self.high, self.unit, self.uneven, self.worse]

@@ -149,7 +149,9 @@ class SetupPanel(QWidget):
         self.second_group_label.setBuddy(self.second_group)
         form.addRow(self.first_group_label, pair)
         form.addRow(self.second_group_label, self.second_group)
-        form.addRow("Question:", self.question)
+        self.question_label = QLabel("Question:", self)
+        self.question_label.setBuddy(self.question)
+        form.addRow(self.question_label, self.question)
         form.addRow(self.margin_entry)
         form.addRow("Confidence level:", self.confidence)
         form.addRow("Resampling rounds:", self.resamples)
@@ -159,6 +161,13 @@ class SetupPanel(QWidget):
         self.seed_label = QLabel("Seed:", self)
         self.seed_label.setBuddy(self.seed)
         form.addRow(self.seed_label, seed_row)
+        # the margin's own labels line up with the form's
+        width = max([self.margin_entry.label_width()] + [
+            item.widget().sizeHint().width() for item in
+            (form.itemAt(row, QFormLayout.ItemRole.LabelRole) for row in range(form.rowCount()))
+            if item is not None and item.widget() is not None])
+        self.question_label.setMinimumWidth(width)
+        self.margin_entry.set_label_width(width)
         inner = QVBoxLayout(self.box)
         inner.addWidget(self.long_radio)
         inner.addWidget(self.wide_radio)
