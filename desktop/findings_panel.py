@@ -30,7 +30,8 @@ from .icons import icon
 from .panel_parts import FlowLayout, heading, hint_and_body, text_label
 from .plots import BoxPlot, IntervalPlot, document_palette, plot_image, save_plot
 
-__all__ = ["FindingsPanel", "STATISTIC_TIPS", "MARGIN_OFFER", "MARGIN_OFFER_BUTTON", "NOTHING_ANSWERS"]
+__all__ = ["FindingsPanel", "STATISTIC_TIPS", "MARGIN_OFFER", "MARGIN_OFFER_BUTTON", "MARGIN_PLOT_NOTE",
+           "NOTHING_ANSWERS"]
 
 # One sentence per statistic, shown when the pointer rests on a row of the table.
 STATISTIC_TIPS = {
@@ -72,6 +73,13 @@ NOTHING_ANSWERS = "No procedure could answer this question with these data."
 
 _PLOT_TIP = ("Each line is one procedure's interval for the difference, its dot the estimate; the dashed "
              "line is no difference. The highlighted line is the procedure the findings follow.")
+# Under the plot of a margin question: how to read the band.
+MARGIN_PLOT_NOTE = {
+    "equivalent": "Each line is a {level} interval. A line wholly inside the shaded margin shows the "
+                  "groups are the same within it; a line reaching past it does not.",
+    "not_worse": "Each line is a {level} interval. A line wholly inside the shaded side shows group 1 "
+                 "is no worse than the margin allows; a line reaching past the margin's edge does not.",
+}
 _MARGIN_PLOT_TIP = ("Each line is one procedure's {level} interval (the one set against the margin), its "
                     "dot the estimate; the dashed line is no difference and the shaded band the margin. "
                     "A line wholly inside the band answers yes. The highlighted line is the procedure the "
@@ -171,6 +179,9 @@ class FindingsPanel(QWidget):
         self.plot = IntervalPlot()
         self.plot.setToolTip(_PLOT_TIP)
         layout.addWidget(self.plot)
+        self.plot_note = text_label()  # how to read the margin's band
+        self.plot_note.setVisible(False)
+        layout.addWidget(self.plot_note)
         self.no_interval = text_label()  # why a row of the plot has a dot but no line
         self.no_interval.setVisible(False)
         layout.addWidget(self.no_interval)
@@ -253,7 +264,7 @@ class FindingsPanel(QWidget):
         why = [note.message for note in analysis.notes if note.key == "part_not_computed"]
         self.headline.setText(" ".join([NOTHING_ANSWERS, *why]))
         for widget in (self.verdict, self.offer, self.table, self.followed, self.no_interval, self.side_heading,
-                       self.plot):
+                       self.plot, self.plot_note):
             widget.setVisible(False)
         for button in (self.copy_button, self.copy_plot_button, self.save_plot_button, self.export_button):
             button.setEnabled(False)
@@ -322,8 +333,11 @@ class FindingsPanel(QWidget):
         if analysis.margin is not None:
             level = report.level_text(1.0 - 2.0 * analysis.spec.question.alpha)
             self.plot.setToolTip(_MARGIN_PLOT_TIP.format(level=level))
+            self.plot_note.setText(MARGIN_PLOT_NOTE[analysis.spec.question.kind].format(level=level))
         else:
             self.plot.setToolTip(_PLOT_TIP)
+            self.plot_note.setText("")
+        self.plot_note.setVisible(bool(self.plot_note.text()))
         self.agreement.setText(report.agreement(analysis))
         why = [NO_INTERVAL_WHY.get(row.key, "") for row in robustness.rows if row.interval is None]
         why = [text for text in dict.fromkeys(why) if text]
