@@ -134,14 +134,16 @@ class FindingsPanel(QWidget):
         self.status.setVisible(False)  # until a save or export from here reports how it went
         layout.addWidget(self.status)
 
+        self.verdict = text_label()  # a margin question's verdict against the margin, first and bold
+        self.verdict.setVisible(False)
         self.headline = text_label()
         font = self.headline.font()
         font.setPointSizeF(font.pointSizeF() * 1.1)
         self.headline.setFont(font)
-        layout.addWidget(self.headline)
-        self.verdict = text_label()  # a margin question's verdict against the margin
-        self.verdict.setVisible(False)
+        font.setBold(True)
+        self.verdict.setFont(font)
         layout.addWidget(self.verdict)
+        layout.addWidget(self.headline)
         self.followed = text_label()
         layout.addWidget(self.followed)
         self.offer = QFrame()  # after "no clear difference": the question of sameness, and why a margin
@@ -247,9 +249,13 @@ class FindingsPanel(QWidget):
             return
         for widget in (self.table, self.followed, self.side_heading, self.plot):
             widget.setVisible(True)
-        self.headline.setText(self.report_text().paragraph)
-        self.verdict.setText(_margin_verdict(analysis, key))
-        self.verdict.setVisible(bool(self.verdict.text()))
+        paragraph = self.report_text().paragraph
+        verdict = _margin_verdict(analysis, key)
+        if verdict and paragraph.startswith(verdict):  # the paragraph opens with it: said once, above
+            paragraph = paragraph[len(verdict):].lstrip()
+        self.verdict.setText(verdict)
+        self.verdict.setVisible(bool(verdict))
+        self.headline.setText(paragraph)
         self.offer.setVisible(_offers_margin(analysis, key))
         self.followed.setText(f"Procedure followed: {report.procedure_followed(analysis, key)}.")
         self._fill_table(analysis, result)
