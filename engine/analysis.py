@@ -12,7 +12,7 @@ from typing import Any, Callable, Mapping, TypeVar
 
 import numpy as np
 
-from . import advice, diagnostics, effects
+from . import advice, diagnostics, effects, margin_advice
 from .errors import TwofoldError, names_its_source
 from .procedures import registry
 from .question import Margin, MarginAnswer, Question
@@ -215,6 +215,8 @@ def analyze(
         checks = diagnostics.diagnose(groups, **ordered)
 
     candidates = registry.applicable(spec)
+    if question.has_margin:
+        margin_advice.check_runnable(candidates, spec)
     records = [r for r in candidates if r.fits_size(x.size + y.size)]
     if any(r.family == "resampling" for r in candidates if r not in records):
         notes.append(Finding(
@@ -245,6 +247,9 @@ def analyze(
             checks, groups, equal_spread_known=statements.equal_spread_known,
             ordinal=statements.ordinal, known_sd=statements.known_sd,
         )
+    if question.has_margin:
+        recommendation = margin_advice.for_margin(
+            recommendation, [r for r in records if r.key in procedures], spec)
     task.report(1.0, "done")
     return Analysis(
         groups=groups,

@@ -15,6 +15,7 @@ import sys
 from pathlib import Path
 from typing import Sequence, TextIO
 
+from . import plan_cli
 from .errors import TwofoldError, quoted
 from .text import visible
 from .wording import plural
@@ -86,6 +87,7 @@ def build_parser() -> argparse.ArgumentParser:
                         help="the data file's new place, when a saved analysis's data file has moved")
     _analysis_flags(report)
 
+    plan_cli.add_plan_command(commands)
     columns = commands.add_parser("columns", help="show the columns of a file and the suggested roles")
     columns.add_argument("path", type=Path)
     columns.add_argument("--sheet")
@@ -248,6 +250,8 @@ def main(argv: Sequence[str] | None = None, *, out: TextIO | None = None, err: T
             _analyze(args, out)
         elif args.command == "report":
             _report(args, out)
+        elif args.command == "plan":
+            plan_cli.run_plan(args, out)
         else:
             _columns(args, out)
     except TwofoldError as problem:

@@ -37,10 +37,18 @@ LAYERS: tuple[tuple[str, ...], ...] = (
     # one module per procedure family and the checks they share; the registry of them above
     ("engine.procedures", "engine.procedures.*"),
     ("engine.procedures.registry",),
+    # planning the next study: sizes, power and detectable differences, run on the procedures'
+    # own formulas; its front last
+    ("engine.planning.plan", "engine.planning.shapes"),
+    ("engine.planning.result", "engine.planning.exact_power", "engine.planning.sentence",
+     "engine.planning.rank_approximation", "engine.planning.batch_tests"),
+    ("engine.planning.equivalence_power", "engine.planning.simulation"),
+    ("engine.planning.planner",),
+    ("engine.planning",),
     # what the data look like, and effect sizes built on the procedures
     ("engine.diagnostics", "engine.effects", "engine.paired_effects"),
     # the suggested procedure from the checks
-    ("engine.advice",),
+    ("engine.advice", "engine.margin_advice"),
     # every part of one comparison together
     ("engine.analysis",),
     # an analysis in words, tables and JSON
@@ -49,7 +57,8 @@ LAYERS: tuple[tuple[str, ...], ...] = (
     ("engine.pipeline", "engine.saved", "engine.session"),
     # where the command may write a report
     ("engine.audit",),
-    # the headless command
+    # the headless command (planning's part below the rest)
+    ("engine.plan_cli",),
     ("engine.cli",),
     ("engine.__main__",),
     # desktop, above all of engine: parts that know no panel
