@@ -267,7 +267,7 @@ class FindingsPanel(QWidget):
 
     def _show_nothing(self, analysis) -> None:
         """No procedure gave a result for the question: say so, and why where the analysis knows."""
-        why = [note.message for note in analysis.notes if note.key == "part_not_computed"]
+        why = [note.text for note in analysis.notes if note.key == "part_not_computed"]
         self.headline.setText(" ".join([NOTHING_ANSWERS, *why]))
         for widget in (self.verdict, self.offer, self.table, self.followed, self.no_interval, self.side_heading,
                        self.plot, self.plot_note):
