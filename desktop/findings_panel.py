@@ -61,8 +61,8 @@ _HINT = "Pick the columns and the two groups; the findings appear here."
 
 # Offered under the findings of a "do they differ?" question that found no clear difference.
 MARGIN_OFFER = (
-    "No clear difference does not show that the groups are the same: a small study finds no clear "
-    "difference even when there is one. To show they are alike, ask whether they are the same within "
+    "No clear difference does not show that the groups are the same: a small study can miss a real "
+    "difference. To show they are alike, ask whether they are the same within "
     "a margin: the largest difference that would not matter in practice. Take the margin from the "
     "subject matter (a tolerance, a specification, what a user of the result would notice), and fix "
     "it before reading it against these data: a margin chosen from the data can be made to fit any "

@@ -446,9 +446,10 @@ class BoxPlot(ThemedPlot):
 # The words on the margin's band: what an interval inside it would show.
 BAND_WORDS = {"equivalent": "same, within the margin", "not_worse": "no worse, within the margin"}
 
-# Ratios a ratio axis may mark, besides 1 and the margin's ends.
+# Ratios a ratio axis may mark, besides 1 and the margin's ends: coarse ones first, then steps of
+# 0.01 near 1 for a narrow axis.
 _RATIO_MARKS = (0.01, 0.02, 0.05, 0.1, 0.2, 0.25, 0.5, 0.67, 0.8, 0.9, 1.1, 1.25, 1.5, 2.0, 4.0, 5.0, 10.0,
-                20.0, 50.0, 100.0)
+                20.0, 50.0, 100.0, 0.95, 1.05, *(round(1 + step / 100, 2) for step in range(-9, 10) if step))
 
 
 def ratio_ticks(low: float, high: float, *, keep: Sequence[float] = (), count: int = 7) -> list[tuple[float, str]]:
