@@ -10,6 +10,7 @@ from scipy import stats
 import pytest
 
 from desktop.findings_panel import NOTHING_ANSWERS, FindingsPanel
+from engine import report
 from engine.analysis import analyze
 from engine.question import Margin, Question
 from engine.results import Finding, Groups
@@ -111,3 +112,16 @@ def test_a_ratio_margin_reads_on_a_ratio_axis(panel):
     result = analysis.procedures["equivalence_log_welch"]
     assert (result.interval.low, result.interval.high) == pytest.approx(
         (np.exp(reference.low), np.exp(reference.high)), rel=1e-10)
+
+
+def test_a_margin_questions_findings_copy_and_export_with_the_band(panel, tmp_path, qtbot):
+    from PySide6.QtGui import QGuiApplication
+
+    analysis = analyze(_normal_groups(), _spec(Question("equivalent", 0.95, Margin.within(3.0))))
+    panel.session.store("analysis", analysis)
+    panel.copy_findings()
+    copied = QGuiApplication.clipboard().mimeData().text()
+    assert copied == report.render(analysis, procedure=panel.procedure_key()).plain  # the report's words
+    assert panel.save_plot(tmp_path / "band.png").is_file()
+    page = panel.export_report(tmp_path / "report.html").read_text(encoding="utf-8")
+    assert "<img" in page and "margin" in page
