@@ -26,7 +26,7 @@ from .messages import message_text
 from .plain_text import plain_label
 
 __all__ = ["MarginEntry", "UNIT_WORDS", "WORSE_WORDS", "parse_number", "margin_reading", "in_force_words",
-           "entered_words", "question_words"]
+           "entered_words", "question_words", "mirrored"]
 
 # How the margin is given, for each of engine.question.MARGIN_UNITS: {a} is group 1, {b} group 2.
 UNIT_WORDS: tuple[tuple[str, str], ...] = (
@@ -110,6 +110,21 @@ def question_words(question: Question, labels: tuple[str, str]) -> str:
         return ""
     lead = "the same within" if question.kind == "equivalent" else "no worse by more than"
     return f"{lead} {entered_words(question.margin, labels)}"
+
+
+def mirrored(question: Question) -> Question:
+    """``question`` for the groups exchanged: an equivalence margin turned over (-1 to 3 becomes
+    -3 to 1; a ratio of 0.8 to 1.5 becomes 1/1.5 to 1/0.8), so an uneven margin keeps its sides
+    with the groups. A non-inferiority margin stays: its size and worse direction hold for
+    whichever group is now group 1."""
+    margin = question.margin
+    if question.kind != "equivalent" or margin is None or margin.symmetric:
+        return question
+    if margin.unit == "ratio":
+        turned = Margin(1.0 / margin.high, 1.0 / margin.low, margin.unit)
+    else:
+        turned = Margin(-margin.high, -margin.low, margin.unit)
+    return Question(question.kind, question.level, turned)
 
 
 # The question in force in a few words, as the problem line under the fields names it.

@@ -39,7 +39,7 @@ from engine.report import QUESTIONS  # the question in the user's words, for eac
 from engine.spec import RESAMPLES_RANGE, draw_seed
 from engine.text import visible
 
-from .margin_entry import MarginEntry
+from .margin_entry import MarginEntry, mirrored
 from .plain_text import plain_label
 
 __all__ = ["SetupPanel", "QUESTIONS", "group_levels", "MAX_LEVELS"]
@@ -347,12 +347,13 @@ class SetupPanel(QWidget):
             self.refresh()
 
     def swap(self) -> None:
-        """Exchange group 1 and group 2."""
+        """Exchange group 1 and group 2 (an uneven equivalence margin turns over with them)."""
         spec = self._session.spec
+        question = mirrored(spec.question)
         if spec.layout == "wide" and len(spec.value_columns) == 2:
-            self._choose(value_columns=(spec.value_columns[1], spec.value_columns[0]))
+            self._choose(value_columns=(spec.value_columns[1], spec.value_columns[0]), question=question)
         elif spec.groups:
-            self._choose(groups=(spec.groups[1], spec.groups[0]))
+            self._choose(groups=(spec.groups[1], spec.groups[0]), question=question)
 
     def _question_edited(self, _: int) -> None:
         if not self._refreshing:  # the margin's fields ask it, or say why they cannot yet

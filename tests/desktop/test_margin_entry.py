@@ -229,3 +229,33 @@ def test_the_reading_of_a_ratio_margin_for_non_inferiority():
     margin = Margin.not_worse_by(1.1, "higher", "ratio")
     assert margin_reading("not_worse", margin, ("new", "old")) == (
         "new counts as no worse if new's mean divided by old's lies below 1.1.")
+
+
+@pytest.mark.parametrize("before, after", [
+    (Margin(-1.0, 3.0, "units"), Margin(-3.0, 1.0, "units")),
+    (Margin(-2.0, 4.0, "percent"), Margin(-4.0, 2.0, "percent")),
+    (Margin(0.8, 1.5, "ratio"), Margin(1 / 1.5, 1.25, "ratio")),
+    (Margin(-2.0, 2.0, "units"), Margin(-2.0, 2.0, "units")),
+])
+def test_swapping_the_groups_turns_an_uneven_margin_over(qtbot, before, after):
+    # intake-formed groups: the bolts' two suppliers
+    session = Session()
+    table = io.read_table(BOLTS)
+    spec = pipeline.complete(table, session.spec.replace(source=pipeline.source_for(BOLTS)))
+    session.adopt(spec.replace(groups=("north_forge", "south_forge"),
+                               question=Question("equivalent", 0.95, before)))
+    session.store("table", table)
+    panel = SetupPanel(session)
+    qtbot.addWidget(panel)
+    panel.swap()
+    assert session.spec.groups == ("south_forge", "north_forge")
+    margin = session.spec.question.margin
+    assert (margin.low, margin.high) == pytest.approx((after.low, after.high)) and margin.unit == after.unit
+    entry = panel.margin_entry
+    if not after.symmetric:
+        assert entry.uneven.isChecked() and float(entry.low.text()) == pytest.approx(after.low)
+    # a non-inferiority margin keeps its size and worse side for the new group 1
+    session.ask(kind="not_worse", margin=Margin.not_worse_by(2, "lower"))
+    panel.swap()
+    assert session.spec.question.margin == Margin.not_worse_by(2, "lower")
+    panel.cleanup()
