@@ -14,10 +14,10 @@ from dataclasses import replace
 from pathlib import Path
 from typing import Any
 
-from PySide6.QtCore import Qt
+from PySide6.QtCore import Qt, Signal
 from PySide6.QtGui import QImage
-from PySide6.QtWidgets import (QAbstractItemView, QApplication, QFileDialog, QHeaderView, QPushButton,
-                               QSizePolicy, QTableWidget, QTableWidgetItem, QWidget)
+from PySide6.QtWidgets import (QAbstractItemView, QApplication, QFileDialog, QFrame, QHeaderView, QPushButton,
+                               QSizePolicy, QTableWidget, QTableWidgetItem, QVBoxLayout, QWidget)
 
 from engine import report
 from engine.procedures import registry
@@ -30,7 +30,8 @@ from .icons import icon
 from .panel_parts import FlowLayout, heading, hint_and_body, text_label
 from .plots import BoxPlot, IntervalPlot, document_palette, plot_image, save_plot
 
-__all__ = ["FindingsPanel", "STATISTIC_TIPS"]
+__all__ = ["FindingsPanel", "STATISTIC_TIPS", "MARGIN_OFFER", "MARGIN_OFFER_BUTTON", "MARGIN_PLOT_NOTE",
+           "NOTHING_ANSWERS"]
 
 # One sentence per statistic, shown when the pointer rests on a row of the table.
 STATISTIC_TIPS = {
@@ -58,6 +59,32 @@ STATISTIC_TIPS = {
 
 _HINT = "Pick the columns and the two groups; the findings appear here."
 
+# Offered under the findings of a "do they differ?" question that found no clear difference.
+MARGIN_OFFER = (
+    "No clear difference does not show that the groups are the same: a small study can miss a real "
+    "difference. To show they are alike, ask whether they are the same within "
+    "a margin: the largest difference that would not matter in practice. Take the margin from the "
+    "subject matter (a tolerance, a specification, what a user of the result would notice), and fix "
+    "it before reading it against these data: a margin chosen from the data can be made to fit any "
+    "result, and then it shows nothing.")
+MARGIN_OFFER_BUTTON = "Ask whether they are the same within a margin…"
+# Shown when no procedure gave a result for the question asked.
+NOTHING_ANSWERS = "No procedure could answer this question with these data."
+
+_PLOT_TIP = ("Each line is one procedure's interval for the difference, its dot the estimate; the dashed "
+             "line is no difference. The highlighted line is the procedure the findings follow.")
+# Under the plot of a margin question: how to read the band.
+MARGIN_PLOT_NOTE = {
+    "equivalent": "Each line is a {level} interval. A line wholly inside the shaded margin shows the "
+                  "groups are the same within it; a line reaching past it does not.",
+    "not_worse": "Each line is a {level} interval. A line wholly inside the shaded side shows group 1 "
+                 "is no worse than the margin allows; a line reaching past the margin's edge does not.",
+}
+_MARGIN_PLOT_TIP = ("Each line is one procedure's {level} interval (the one set against the margin), its "
+                    "dot the estimate; the dashed line is no difference and the shaded band the margin. "
+                    "A line wholly inside the band answers yes. The highlighted line is the procedure the "
+                    "findings follow.")
+
 
 class FindingsPanel(QWidget):
     """What the comparison found, ready to copy into a document.
@@ -66,7 +93,12 @@ class FindingsPanel(QWidget):
     ----------
     session : engine.session.Session
         Read for the analysis and the procedure to follow; never written.
+
+    ``margin_question_wanted`` is emitted when the user takes up the offer to ask whether the
+    groups are the same within a margin (the window opens the margin's entry).
     """
+
+    margin_question_wanted = Signal()
 
     def __init__(self, session, parent: QWidget | None = None) -> None:
         super().__init__(parent)
@@ -102,13 +134,30 @@ class FindingsPanel(QWidget):
         self.status.setVisible(False)  # until a save or export from here reports how it went
         layout.addWidget(self.status)
 
+        self.verdict = text_label()  # a margin question's verdict against the margin, first and bold
+        self.verdict.setVisible(False)
         self.headline = text_label()
         font = self.headline.font()
         font.setPointSizeF(font.pointSizeF() * 1.1)
         self.headline.setFont(font)
+        font.setBold(True)
+        self.verdict.setFont(font)
+        layout.addWidget(self.verdict)
         layout.addWidget(self.headline)
         self.followed = text_label()
         layout.addWidget(self.followed)
+        self.offer = QFrame()  # after "no clear difference": the question of sameness, and why a margin
+        self.offer.setFrameShape(QFrame.Shape.StyledPanel)
+        offer_layout = QVBoxLayout(self.offer)
+        self.offer_text = text_label(MARGIN_OFFER)
+        self.offer_button = QPushButton(MARGIN_OFFER_BUTTON)
+        self.offer_button.setToolTip("Opens the question of sameness in the set-up, with the cursor in "
+                                     "the margin's field.")
+        self.offer_button.clicked.connect(self.margin_question_wanted)
+        offer_layout.addWidget(self.offer_text)
+        offer_layout.addWidget(self.offer_button, 0, Qt.AlignmentFlag.AlignLeft)
+        self.offer.setVisible(False)
+        layout.addWidget(self.offer)
 
         self.table = QTableWidget(0, 3)
         self.table.verticalHeader().setVisible(False)
@@ -125,14 +174,16 @@ class FindingsPanel(QWidget):
         self.table.setVerticalScrollBarPolicy(Qt.ScrollBarPolicy.ScrollBarAlwaysOff)
         layout.addWidget(self.table)
 
-        layout.addWidget(heading("Every applicable procedure side by side"))
+        self.side_heading = heading("Every applicable procedure side by side")
+        layout.addWidget(self.side_heading)
         self.agreement = text_label()
         layout.addWidget(self.agreement)
         self.plot = IntervalPlot()
-        self.plot.setToolTip("Each line is one procedure's interval for the difference, its dot the "
-                             "estimate; the dashed line is no difference. The highlighted line is "
-                             "the procedure the findings follow.")
+        self.plot.setToolTip(_PLOT_TIP)
         layout.addWidget(self.plot)
+        self.plot_note = text_label()  # how to read the margin's band
+        self.plot_note.setVisible(False)
+        layout.addWidget(self.plot_note)
         self.no_interval = text_label()  # why a row of the plot has a dot but no line
         self.no_interval.setVisible(False)
         layout.addWidget(self.no_interval)
@@ -192,8 +243,20 @@ class FindingsPanel(QWidget):
             return
         key = self.procedure_key()
         self._shown_key = key
-        result = analysis.procedures[key]
-        self.headline.setText(self.report_text().paragraph)
+        result = analysis.procedures.get(key)
+        if result is None:
+            self._show_nothing(analysis)
+            return
+        for widget in (self.table, self.followed, self.side_heading, self.plot):
+            widget.setVisible(True)
+        paragraph = self.report_text().paragraph
+        verdict = _margin_verdict(analysis, key)
+        if verdict and paragraph.startswith(verdict):  # the paragraph opens with it: said once, above
+            paragraph = paragraph[len(verdict):].lstrip()
+        self.verdict.setText(verdict)
+        self.verdict.setVisible(bool(verdict))
+        self.headline.setText(paragraph)
+        self.offer.setVisible(_offers_margin(analysis, key))
         self.followed.setText(f"Procedure followed: {report.procedure_followed(analysis, key)}.")
         self._fill_table(analysis, result)
         self._show_robustness(analysis, key)
@@ -202,9 +265,24 @@ class FindingsPanel(QWidget):
         self.method.setText("\n".join(notes))
         self.cautions.setText("<ul>" + "".join(f"<li>{visible_html(c)}</li>" for c in self.cautions_list()) + "</ul>")
 
+    def _show_nothing(self, analysis) -> None:
+        """No procedure gave a result for the question: say so, and why where the analysis knows."""
+        why = [note.text for note in analysis.notes if note.key == "part_not_computed"]
+        self.headline.setText(" ".join([NOTHING_ANSWERS, *why]))
+        for widget in (self.verdict, self.offer, self.table, self.followed, self.no_interval, self.side_heading,
+                       self.plot, self.plot_note):
+            widget.setVisible(False)
+        for button in (self.copy_button, self.copy_plot_button, self.save_plot_button, self.export_button):
+            button.setEnabled(False)
+        self.plot.show_rows([])
+        self.agreement.setText("")
+        self.method.setText("")
+        self.cautions.setText("<ul>" + "".join(f"<li>{visible_html(c)}</li>" for c in self.cautions_list()) + "</ul>")
+
     def _fill_table(self, analysis, result) -> None:
         labels = [visible(label) for label in analysis.groups.labels]
-        level = report.level_text(analysis.spec.level)
+        # the interval's own level: a margin procedure's is the (1 - 2 alpha) one set against the margin
+        level = report.level_text(result.interval.level if result.interval is not None else analysis.spec.level)
         shown = report.display_numbers(analysis, result.key)
         missing = report.NOT_AVAILABLE
         statistic = report.STATISTIC_ROW
@@ -256,9 +334,16 @@ class FindingsPanel(QWidget):
 
     def _show_robustness(self, analysis, key: str) -> None:
         robustness = analysis.robustness
-        labels = analysis.groups.labels
-        self.plot.show_rows(_difference_rows(robustness), picked=key,
-                            axis_label=f"difference, {labels[0]} minus {labels[1]}")
+        self.plot.show_rows(_difference_rows(robustness), picked=key, axis_label=_axis_label(analysis),
+                            margin=analysis.margin)
+        if analysis.margin is not None:
+            level = report.level_text(1.0 - 2.0 * analysis.spec.question.alpha)
+            self.plot.setToolTip(_MARGIN_PLOT_TIP.format(level=level))
+            self.plot_note.setText(MARGIN_PLOT_NOTE[analysis.spec.question.kind].format(level=level))
+        else:
+            self.plot.setToolTip(_PLOT_TIP)
+            self.plot_note.setText("")
+        self.plot_note.setVisible(bool(self.plot_note.text()))
         self.agreement.setText(report.agreement(analysis))
         why = [NO_INTERVAL_WHY.get(row.key, "") for row in robustness.rows if row.interval is None]
         why = [text for text in dict.fromkeys(why) if text]
@@ -268,7 +353,11 @@ class FindingsPanel(QWidget):
     # -- into a document -----------------------------------------------------------------------
     def copy_findings(self) -> None:
         """Put the findings on the clipboard: HTML with a table, and plain text."""
-        if self.session.analysis is None:
+        analysis = self.session.analysis
+        if analysis is None:
+            return
+        if self.procedure_key() not in analysis.procedures:  # nothing answers: say so
+            clipboard.copy_findings_text(visible_html(self.headline.text()), self.headline.text())
             return
         text = self.report_text()
         clipboard.copy_findings_text(text.html, text.plain)
@@ -298,7 +387,7 @@ class FindingsPanel(QWidget):
         Raises :class:`engine.errors.FileProblem` for another suffix or a failed write.
         """
         analysis = self.session.analysis
-        if analysis is None:
+        if analysis is None or self.procedure_key() not in analysis.procedures:
             raise FileProblem("There are no findings to export yet.")
         images = _report_images(analysis, self.procedure_key())
         return export.export_report(path, analysis, procedure=self.procedure_key(), images=images)
@@ -340,6 +429,33 @@ class FindingsPanel(QWidget):
         self.status.setVisible(True)
 
 
+def _axis_label(analysis) -> str:
+    """The name of the plot's axis: the difference, or for a ratio margin the ratio."""
+    first, second = analysis.groups.labels
+    if analysis.margin is not None and analysis.margin.unit == "ratio":
+        return f"ratio of geometric means, {first} / {second} (log scale)"
+    return f"difference, {first} minus {second}"
+
+
+def _margin_verdict(analysis, key: str) -> str:
+    """A margin question's verdict against the margin for procedure ``key``, in sentences ("" for
+    another question, or a result without an interval to judge by)."""
+    answer = analysis.margin_answer(key)
+    if answer is None:
+        return ""
+    result = analysis.procedures[key]
+    return analysis.spec.question.margin_words(answer, analysis.groups.labels, result.estimate_name)
+
+
+def _offers_margin(analysis, key: str) -> bool:
+    """Whether the findings offer the question of sameness: a "do they differ?" question whose
+    followed procedure found no clear difference."""
+    if analysis.spec.question.kind != "differ":
+        return False
+    row = next((row for row in analysis.robustness.rows if row.key == key), None)
+    return row is not None and not row.finds_difference
+
+
 def _difference_rows(robustness) -> list:
     """The rows whose estimate is a difference (the plot's axis), with their names as labels (a
     capital first letter); a probability is left out."""
@@ -372,14 +488,14 @@ def _document_image(plot, draw) -> QImage:
 def _report_images(analysis, key: str) -> list[tuple[str, QImage]]:
     """The side-by-side plot and the box plot of both groups, for the report."""
     groups = analysis.groups
-    axis = f"difference, {groups.labels[0]} minus {groups.labels[1]}"
+    axis = _axis_label(analysis)
     boxes = [(groups.labels[0], groups.x, analysis.summaries[0]),
              (groups.labels[1], groups.y, analysis.summaries[1])]
     return [
         ("Every applicable procedure: the difference and its interval",
          _document_image(IntervalPlot(), lambda plot: plot.show_rows(_difference_rows(analysis.robustness),
-                                                                     picked=key,
-                                                                     axis_label=axis))),
+                                                                     picked=key, axis_label=axis,
+                                                                     margin=analysis.margin))),
         ("The two groups: boxes and the values",
          _document_image(BoxPlot(), lambda plot: plot.show_groups(boxes))),
     ]

@@ -49,6 +49,7 @@ from engine.spec import AnalysisSpec
 from engine.text import visible
 
 from .data_panel import DataPanel
+from .margin_entry import question_words
 from .messages import MessageBar
 from .plain_text import plain_label, tooltip
 from .recent import RecentFiles, menu_labels
@@ -115,7 +116,8 @@ def settings_words(spec: AnalysisSpec) -> str:
     """The carried settings of ``spec`` in a few words, e.g. "one-sided (group 1 lower), 90 %"."""
     sides = {"two-sided": "two-sided", "less": "one-sided (group 1 lower)",
              "greater": "one-sided (group 1 higher)"}
-    words = [sides.get(spec.alternative, spec.alternative), level_text(spec.level)]
+    margin = question_words(spec.question, ("group 1", "group 2"))  # "the same within ±2"
+    words = [margin or sides.get(spec.alternative, spec.alternative), level_text(spec.level)]
     if spec.resamples != AnalysisSpec().resamples:
         words.append(f"{spec.resamples:,} resampling rounds")
     return ", ".join(words)
@@ -437,7 +439,15 @@ class MainWindow(QMainWindow):
             old.deleteLater()
             self.tabs.insertTab(index, panel, title)
             self.tabs.setTabToolTip(index, tip)
+            if attribute == "findings_panel":
+                panel.margin_question_wanted.connect(self.ask_margin_question)
         self.tabs.setCurrentIndex(1 if self.session.analysis is not None else 0)
+
+    def ask_margin_question(self) -> None:
+        """Take up the findings' offer: the question of sameness in the set-up, with the cursor in
+        the margin's field."""
+        self.setup_panel.margin_entry.focus_entry("equivalent")
+        self.setup_panel.refresh()
 
     # -- opening -------------------------------------------------------------------------------
     def open_dialog(self) -> None:

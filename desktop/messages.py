@@ -79,6 +79,13 @@ _DECLARED = (
     Message("reopen_refused", "error", "Could not reopen {name}: {reason} What is on show stays as it was."),
     Message("reopen_crashed", "error",
             "Something unexpected stopped the reopening of {name} ({reason}). What is on show stays as it was."),
+    # the margin of an equivalence or non-inferiority question, said under its fields
+    Message("margin_missing", "warning", "Type the {what} of the margin."),
+    Message("margin_not_number", "warning", "\u201c{text}\u201d is not a number; type one such as 0.5."),
+    Message("margin_ratio_below_zero", "warning", "A ratio margin must be above 0, not {value}."),
+    Message("margin_no_room", "warning", "A margin of {value} leaves no room either side of no difference."),
+    Message("margin_refused", "warning", "{reason} Still in force: {question}"),
+    Message("margin_wanted", "info", "Type a margin to ask this. Still in force: {question}"),
     # copy and export
     Message("nothing_yet", "info", "There is nothing to copy or save yet: open a file and set up the comparison."),
     Message("copied", "info", "Copied {what} to the clipboard."),

@@ -39,6 +39,8 @@ __all__ = [
     "QQPlot",
     "BoxPlot",
     "IntervalPlot",
+    "BAND_WORDS",
+    "ratio_ticks",
     "plot_image",
     "save_plot",
 ]
@@ -441,6 +443,30 @@ class BoxPlot(ThemedPlot):
         self.set_axis_labels("", "value")
 
 
+# The words on the margin's band: what an interval inside it would show.
+BAND_WORDS = {"equivalent": "same, within the margin", "not_worse": "no worse, within the margin"}
+
+# Ratios a ratio axis may mark, besides 1 and the margin's ends: coarse ones first, then steps of
+# 0.01 near 1 for a narrow axis.
+_RATIO_MARKS = (0.01, 0.02, 0.05, 0.1, 0.2, 0.25, 0.5, 0.67, 0.8, 0.9, 1.1, 1.25, 1.5, 2.0, 4.0, 5.0, 10.0,
+                20.0, 50.0, 100.0, 0.95, 1.05, *(round(1 + step / 100, 2) for step in range(-9, 10) if step))
+
+
+def ratio_ticks(low: float, high: float, *, keep: Sequence[float] = (), count: int = 7) -> list[tuple[float, str]]:
+    """Ticks for a ratio axis drawn on the log scale from ``low`` to ``high`` (both log10):
+    (position, the ratio written out). 1 and the ``keep`` ratios come first (the margin's ends);
+    round ratios fill the rest, none nearer another than a ``count``-th of the span."""
+    gap = (high - low) / count
+    chosen: list[float] = []
+    for ratio in (1.0, *keep, *_RATIO_MARKS):
+        if not (ratio > 0 and math.isfinite(ratio)):
+            continue
+        place = math.log10(ratio)
+        if low <= place <= high and all(abs(place - other) >= gap for other in chosen):
+            chosen.append(place)
+    return [(place, f"{10 ** place:.3g}") for place in sorted(chosen)]
+
+
 @dataclass(frozen=True)
 class _Row:
     name: str
@@ -456,6 +482,9 @@ class IntervalPlot(ThemedPlot):
 
     A vertical line marks no difference; an open end of a one-sided interval runs to the edge of
     the plot and ends in an arrow. The procedure the findings follow is drawn in its own colour.
+    For an equivalence or non-inferiority question the margin is a shaded band: the differences
+    that count as the same (or as no worse), its edges drawn as lines. A ratio margin puts the
+    rows on a ratio axis: log scale, ticks written as ratios, no difference at 1.
     """
 
     def __init__(self, parent: QWidget | None = None) -> None:
@@ -463,27 +492,92 @@ class IntervalPlot(ThemedPlot):
         self._rows: list[_Row] = []
         self._labels: list = []
         self._axis_label = ""
+        self._margin = None  # engine.question.Margin in the estimate's units, or None
         self.setMinimumSize(320, 200)
 
-    def show_rows(self, rows: Sequence[object], *, picked: str | None = None, axis_label: str = "") -> None:
-        """``rows``: the engine's ``RobustnessRow`` objects; ``picked`` is the key to highlight."""
+    @property
+    def ratio(self) -> bool:
+        """Whether the axis is a ratio axis (a ratio margin's rows)."""
+        return self._margin is not None and self._margin.unit == "ratio"
+
+    def show_rows(self, rows: Sequence[object], *, picked: str | None = None, axis_label: str = "",
+                  margin: object = None) -> None:
+        """``rows``: the engine's ``RobustnessRow`` objects; ``picked`` is the key to highlight;
+        ``margin``: a margin question's ``engine.question.Margin`` in the estimate's units
+        (``Analysis.margin``), drawn as a band."""
+        self._margin = margin
+        place = self._place
         self._rows = []
         for row in rows:
             interval = row.interval
-            self._rows.append(_Row(row.name, row.estimate,
-                                   None if interval is None else interval.low,
-                                   None if interval is None else interval.high,
+            self._rows.append(_Row(row.name, place(row.estimate),
+                                   None if interval is None else place(interval.low),
+                                   None if interval is None else place(interval.high),
                                    row.finds_difference, row.key == picked))
         self._axis_label = axis_label
         self.redraw()
+
+    def _place(self, value: float | None) -> float | None:
+        """Where ``value`` goes along the axis: itself, or its log10 on a ratio axis (a ratio at
+        or below 0, which no ratio procedure gives, is left out)."""
+        if value is None or not self.ratio:
+            return value
+        return math.log10(value) if value > 0 else math.nan
+
+    def band(self) -> tuple[float, float] | None:
+        """The shaded span along the axis (log10 on a ratio axis; an open side as an infinity), or
+        None without a margin."""
+        margin = self._margin
+        if margin is None:
+            return None
+        low, high = self._place(margin.low), self._place(margin.high)
+        if margin.worse == "lower":
+            return low, math.inf
+        if margin.worse == "higher":
+            return -math.inf, high
+        return low, high
 
     def _span(self) -> tuple[float, float]:
         ends = [0.0]
         for row in self._rows:
             ends += [v for v in (row.estimate, row.low, row.high) if v is not None and math.isfinite(v)]
+        band = self.band()
+        if band is not None:
+            ends += [v for v in band if math.isfinite(v)]
         low, high = min(ends), max(ends)
         margin = (high - low) * 0.12 or 1.0
         return low - margin, high + margin
+
+    def _draw_band(self, left: float, right: float) -> None:
+        band = self.band()
+        if band is None:
+            for name in ("band", "band_edges", "band_label"):
+                if name in self._kept_items:
+                    self.removeItem(self._kept_items.pop(name))
+            return
+        low, high = max(band[0], left), min(band[1], right)
+        tint = QColor(self.colours.groups[0])
+        region = self._kept("band", lambda: pg.LinearRegionItem(movable=False))
+        region.setZValue(-20)
+        region.setRegion((low, high))
+        region.setBrush(pg.mkBrush(_with_alpha(tint, 0.16)))
+        for line in region.lines:
+            line.setPen(pg.mkPen(None))
+        region.setHoverBrush(pg.mkBrush(_with_alpha(tint, 0.16)))
+        edges = [v for v in band if math.isfinite(v)]
+        xs = [v for v in edges for _ in (0, 1)]
+        ys = [-0.5, len(self._rows)] * len(edges)
+        self._kept("band_edges", pg.PlotDataItem).setData(xs, ys, connect="pairs",
+                                                          pen=pg.mkPen(_with_alpha(tint, 0.9), width=1.4))
+        label = self._kept("band_label", lambda: pg.TextItem(anchor=(0, 0)))
+        words = BAND_WORDS["equivalent" if self._margin.worse is None else "not_worse"]
+        if label.toPlainText() != words:
+            label.setText(words)
+        label.setColor(tint.lighter(130) if self.colours.dark else tint)
+        # written inside the band from its closed end, away from the procedures' names on the left
+        from_right = not math.isfinite(band[0])
+        label.setAnchor((1, 0) if from_right else (0, 0))
+        label.setPos(high if from_right else low, len(self._rows) - 0.1)
 
     def redraw(self) -> None:
         if not self._rows:
@@ -496,6 +590,7 @@ class IntervalPlot(ThemedPlot):
             pg.mkPen(faint, width=1.2, style=Qt.PenStyle.DashLine))
         count = len(self._rows)
         pad = 0.03 * (right - left)
+        self._draw_band(left - pad, right + pad)
         marks: dict[str, list] = {"x": [], "y": [], "symbol": [], "size": [], "pen": [], "brush": []}
 
         def mark(x: float, y: float, symbol: str, size: int, pen, colour) -> None:
@@ -529,6 +624,9 @@ class IntervalPlot(ThemedPlot):
         self.getPlotItem().showAxis("left", False)
         self.getPlotItem().setYRange(-0.5, count - 0.1, padding=0)
         self.getPlotItem().setXRange(left - pad, right + pad, padding=0)
+        self.getPlotItem().getAxis("bottom").setTicks(
+            [ratio_ticks(left - pad, right + pad, keep=(self._margin.low, self._margin.high))]
+            if self.ratio else None)
         self.setFixedHeight(80 + 46 * count)
         self.set_axis_labels(self._axis_label)
 

@@ -39,6 +39,7 @@ from engine.report import QUESTIONS  # the question in the user's words, for eac
 from engine.spec import RESAMPLES_RANGE, draw_seed
 from engine.text import visible
 
+from .margin_entry import MarginEntry, mirrored
 from .plain_text import plain_label
 
 __all__ = ["SetupPanel", "QUESTIONS", "group_levels", "MAX_LEVELS"]
@@ -100,7 +101,9 @@ class SetupPanel(QWidget):
         self.swap_button = QPushButton("Swap", self)
         self.swap_button.setToolTip("Exchange group 1 and group 2 (the sign of every difference turns over).")
         self.question = QComboBox(self)
-        self.question.setToolTip("What you want to know: any difference, or a difference in one direction only.")
+        self.question.setToolTip("What you want to know: any difference, a difference in one direction only, "
+                                 "or whether the groups are the same (or one no worse) within a margin you set.")
+        self.margin_entry = MarginEntry(session, self)  # shown while the question needs a margin
         self.confidence = QDoubleSpinBox(self)
         low, high = LEVEL_RANGE  # the spec's range: at least low, below high
         self.confidence.setDecimals(LEVEL_DECIMALS)
@@ -146,7 +149,10 @@ class SetupPanel(QWidget):
         self.second_group_label.setBuddy(self.second_group)
         form.addRow(self.first_group_label, pair)
         form.addRow(self.second_group_label, self.second_group)
-        form.addRow("Question:", self.question)
+        self.question_label = QLabel("Question:", self)
+        self.question_label.setBuddy(self.question)
+        form.addRow(self.question_label, self.question)
+        form.addRow(self.margin_entry)
         form.addRow("Confidence level:", self.confidence)
         form.addRow("Resampling rounds:", self.resamples)
         seed_row = QHBoxLayout()
@@ -155,6 +161,13 @@ class SetupPanel(QWidget):
         self.seed_label = QLabel("Seed:", self)
         self.seed_label.setBuddy(self.seed)
         form.addRow(self.seed_label, seed_row)
+        # the margin's own labels line up with the form's
+        width = max([self.margin_entry.label_width()] + [
+            item.widget().sizeHint().width() for item in
+            (form.itemAt(row, QFormLayout.ItemRole.LabelRole) for row in range(form.rowCount()))
+            if item is not None and item.widget() is not None])
+        self.question_label.setMinimumWidth(width)
+        self.margin_entry.set_label_width(width)
         inner = QVBoxLayout(self.box)
         inner.addWidget(self.long_radio)
         inner.addWidget(self.wide_radio)
@@ -167,7 +180,7 @@ class SetupPanel(QWidget):
 
         order = [self.long_radio, self.wide_radio, self.group_column, self.value_column, self.first_column,
                  self.second_column, self.first_group, self.swap_button, self.second_group, self.question,
-                 self.confidence, self.resamples, self.seed, self.new_seed_button]
+                 *self.margin_entry.tab_order(), self.confidence, self.resamples, self.seed, self.new_seed_button]
         for before, after in zip(order, order[1:]):
             self.setTabOrder(before, after)
 
@@ -242,11 +255,12 @@ class SetupPanel(QWidget):
             widget.setVisible(wide)
         self.swap_button.setEnabled(not wide and bool(spec.groups) or wide and len(values) == 2)
         first, second = self._labels()
+        self.margin_entry.refresh((first, second))
         with QSignalBlocker(self.question):
             self.question.clear()
             for key, words in QUESTIONS:
                 self.question.addItem(words.format(a=visible(first), b=visible(second)), key)
-            self.question.setCurrentIndex(max(0, self.question.findData(spec.question.kind)))
+            self.question.setCurrentIndex(max(0, self.question.findData(self.margin_entry.shown_kind())))
         with QSignalBlocker(self.confidence):
             self.confidence.setValue(round(spec.level * 100, LEVEL_DECIMALS))
         with QSignalBlocker(self.resamples):
@@ -333,15 +347,18 @@ class SetupPanel(QWidget):
             self.refresh()
 
     def swap(self) -> None:
-        """Exchange group 1 and group 2."""
+        """Exchange group 1 and group 2 (an uneven equivalence margin turns over with them)."""
         spec = self._session.spec
+        question = mirrored(spec.question)
         if spec.layout == "wide" and len(spec.value_columns) == 2:
-            self._choose(value_columns=(spec.value_columns[1], spec.value_columns[0]))
+            self._choose(value_columns=(spec.value_columns[1], spec.value_columns[0]), question=question)
         elif spec.groups:
-            self._choose(groups=(spec.groups[1], spec.groups[0]))
+            self._choose(groups=(spec.groups[1], spec.groups[0]), question=question)
 
     def _question_edited(self, _: int) -> None:
-        self._write(self._session.ask, {"kind": self.question.currentData()})
+        if not self._refreshing:  # the margin's fields ask it, or say why they cannot yet
+            self.margin_entry.pick(self.question.currentData())
+            self.refresh()
 
     def _confidence_edited(self, value: float) -> None:
         self._write(self._session.ask, {"level": round(value / 100.0, LEVEL_DECIMALS + 2)})

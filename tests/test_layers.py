@@ -75,6 +75,7 @@ LAYERS: tuple[tuple[str, ...], ...] = (
     ("desktop.table_model", "desktop.icons", "desktop.plots", "desktop.workers", "desktop.desktop_entry",
      "desktop.panel_parts"),
     ("desktop.messages", "desktop.export"),
+    ("desktop.margin_entry",),
     # one panel on its own over a file (each panel's __main__)
     ("desktop.panel_alone",),
     ("desktop.data_panel", "desktop.setup_panel", "desktop.choice_panel", "desktop.findings_panel"),

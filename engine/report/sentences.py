@@ -30,6 +30,8 @@ QUESTIONS: tuple[tuple[str, str], ...] = (
     ("differ", "Do {a} and {b} differ?"),
     ("lower", "Is {a} lower than {b}?"),
     ("higher", "Is {a} higher than {b}?"),
+    ("equivalent", "Are {a} and {b} the same within a margin you set?"),
+    ("not_worse", "Is {a} no worse than {b} by more than a margin you set?"),
 )
 
 
