@@ -57,7 +57,7 @@ LAYERS: tuple[tuple[str, ...], ...] = (
      "desktop.plain_text"),
     ("desktop.table_model", "desktop.icons", "desktop.plots", "desktop.workers", "desktop.desktop_entry",
      "desktop.panel_parts"),
-    ("desktop.messages", "desktop.export"),
+    ("desktop.messages", "desktop.export", "desktop.paired_plots"),
     # one panel on its own over a file (each panel's __main__)
     ("desktop.panel_alone",),
     ("desktop.data_panel", "desktop.setup_panel", "desktop.choice_panel", "desktop.findings_panel"),
