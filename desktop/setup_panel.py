@@ -431,8 +431,11 @@ class SetupPanel(QWidget):
             widget.setVisible(paired and long)
         finding = self._paired_finding()
         screened = session.table is not None and getattr(session.intake, "screening", None) is not None
-        if finding is not None:
-            self.design_evidence.setText(f"{'Sign of pairs' if paired else 'Take care'}: {visible(finding.text)}")
+        if finding is not None and paired:
+            self.design_evidence.setText(f"Sign of pairs: {visible(finding.text)}")
+        elif finding is not None:
+            self.design_evidence.setText(f"Take care: {visible(finding.text)} If so, choose "
+                                         f"\u201c{DESIGN_WORDS['paired'][0]}\u201d as the design.")
         elif screened and not paired:
             self.design_evidence.setText("The file shows no sign of pairs (no ID column with each name once "
                                          "in each group); only you know how the values were taken.")
@@ -452,6 +455,18 @@ class SetupPanel(QWidget):
             note = ""
         self.pair_note.setText(note)
         self.pair_note.setVisible(bool(note))
+        self._fit_wrapped()
+
+    def _fit_wrapped(self) -> None:
+        """Keep room for every line of the design's wrapped sentences: the splitter the panel sits
+        in goes by minimum heights, and a wrapping label's own is a single line."""
+        width = self.box.contentsRect().width() - 24
+        for label in (self.design_evidence, self.pair_note):
+            label.setMinimumHeight(label.heightForWidth(width) if label.text() and width > 100 else 0)
+
+    def resizeEvent(self, event: Any) -> None:  # noqa: N802 - Qt's name
+        super().resizeEvent(event)
+        self._fit_wrapped()
 
     def _proposed_pair_column(self, group: str | None, values: Sequence[str]) -> str | None:
         """The column to offer first as the pair ID: the one the screening found pairs in, else

@@ -70,7 +70,8 @@ def test_choosing_pairs_in_the_long_layout_offers_the_id_column_the_screening_fo
     finding = long_session.intake.screening.paired
     assert finding is not None and "panel_id" in finding.text  # the engine's sign of pairing
     # beside the choice of separate groups, the evidence against it
-    assert panel.design_evidence.text() == f"Take care: {finding.text}"
+    assert panel.design_evidence.text() == (f"Take care: {finding.text} If so, choose \u201cThe same units "
+                                            "measured twice (pairs)\u201d as the design.")
     _pick(panel.design, "paired")
     spec = long_session.spec
     assert spec.design == "paired" and spec.pair_column == "panel_id"
@@ -153,4 +154,16 @@ def test_changes_from_elsewhere_show_and_write_nothing_back(qtbot, long_session)
     long_session.choose(design="paired", pair_column="panel_id")
     assert seen == ["spec"]
     assert panel.design.currentData() == "paired" and panel.pair_column.currentData() == "panel_id"
+    panel.cleanup()
+
+
+def test_the_evidence_keeps_room_for_all_its_lines(qtbot, long_session):
+    panel = _panel(qtbot, long_session)
+    panel.resize(520, 700)
+    panel.show()
+    qtbot.waitExposed(panel)
+    label = panel.design_evidence
+    lines = label.fontMetrics().lineSpacing()
+    assert label.text() and label.minimumHeight() >= 2 * lines  # wrapped, and given every line
+    assert label.minimumHeight() >= label.heightForWidth(label.width())
     panel.cleanup()
