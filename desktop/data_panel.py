@@ -88,10 +88,10 @@ def screening_html(table: Any, screening: Any, *, set_aside: Mapping[tuple[int, 
         parts.append(f"<p>{_escape(note.text)}</p>")
     if problem:
         parts.append(f"<p><b>Not ready to compare:</b> {_escape(problem)}</p>")
-    if screening is not None:
-        parts.append(_groups_html(screening))
-    if pairs is not None:
+    if pairs is not None:  # the pairs are what is compared: their count replaces the groups'
         parts.append(pairs_html(pairs))
+    if screening is not None:
+        parts.append(_groups_html(screening, paired=pairs is not None))
     if set_aside:
         finder = file_row or (lambda row: row + 1)
         items = []
@@ -102,11 +102,13 @@ def screening_html(table: Any, screening: Any, *, set_aside: Mapping[tuple[int, 
     return "\n".join(parts)
 
 
-def _groups_html(screening: Any) -> str:
+def _groups_html(screening: Any, *, paired: bool = False) -> str:
+    """The screening in words; for a paired design without the two groups' counts (the pairs
+    are what is compared) and without the question whether the groups are separate."""
     parts = []
     labels = tuple(getattr(screening, "labels", ()) or ())
     used = tuple(getattr(screening, "n_used", ()) or ())
-    if labels and used:
+    if labels and used and not paired:
         rows = "".join(f"<li>{_escape(label)}: {n:,} values</li>" for label, n in zip(labels, used))
         parts.append(f"<p><b>Compared</b> (group 1 first)</p><ul>{rows}</ul>")
     left_out = [(reason, n) for reason, n in _pairs(getattr(screening, "excluded_counts", None)) if n]
@@ -118,10 +120,10 @@ def _groups_html(screening: Any) -> str:
     others = _count(getattr(screening, "other_group_rows", 0))
     if others:
         parts.append(f"<p>{others:,} rows belong to other groups and are not part of this comparison.</p>")
-    paired = getattr(screening, "paired", None)
-    if paired is not None:
-        parts.append(f"<p><b>Are these really two separate groups?</b> {_escape(paired.text)}</p>")
-    shown = {paired.key} if paired is not None else set()
+    sign = getattr(screening, "paired", None)
+    if sign is not None and not paired:
+        parts.append(f"<p><b>Are these really two separate groups?</b> {_escape(sign.text)}</p>")
+    shown = {sign.key} if sign is not None else set()
     findings = [f for f in getattr(screening, "findings", ()) or () if f.key not in shown]
     slips = [f for f in getattr(screening, "possible_slips", ()) or () if f not in findings]
     if findings or slips:

@@ -86,8 +86,9 @@ def pair_figures(paired, labels: Sequence[str]) -> list[tuple[str, str]]:
     return [
         (f"{report.plural(paired.n_pairs, 'pair')}",
          "The units with a value in both groups; a unit left out is listed under Your data."),
-        (f"mean difference {fmt(summary.mean)}",
-         f"The mean of {visible(labels[0])} minus {visible(labels[1])}, pair by pair."),
+        (f"mean difference {fmt(summary.mean)} (the solid line)",
+         f"The mean of {visible(labels[0])} minus {visible(labels[1])}, pair by pair; the dashed line "
+         "is no difference."),
         (f"SD of the differences {fmt(summary.sd)}",
          "How much the differences vary from pair to pair: the spread the paired procedures work with."),
         (f"correlation r = {fmt(r, digits=2)}" if math.isfinite(r) else "correlation: not defined",
@@ -206,7 +207,7 @@ class DifferencePlot(_Copyable, ThemedPlot):
         if means.shape != diffs.shape:
             raise ValueError("one mean and one difference per pair")
         self._data = (means, diffs, float(mean_difference), tuple(labels))
-        self.set_title(f"{labels[0]} minus {labels[1]}, against the mean of the pair")
+        self.set_title(f"{labels[0]} minus {labels[1]}")
         self.redraw()
 
     @property
@@ -228,7 +229,23 @@ class DifferencePlot(_Copyable, ThemedPlot):
         line.setPen(pg.mkPen(self.colours.picked, width=2.0))
         line.setValue(mean_difference if math.isfinite(mean_difference) else 0.0)
         line.setVisible(math.isfinite(mean_difference))
+        self._fit_ranges(means, diffs, mean_difference)
         self.set_axis_labels("mean of the pair", "difference")
+
+    def _fit_ranges(self, means: np.ndarray, diffs: np.ndarray, mean_difference: float) -> None:
+        """Every point whole, and the lines of no difference and of the mean difference in sight."""
+        item = self.getPlotItem()
+        finite_means, finite_diffs = means[np.isfinite(means)], diffs[np.isfinite(diffs)]
+        if finite_means.size:
+            low, high = float(finite_means.min()), float(finite_means.max())
+            pad = (high - low) * 0.06 or max(abs(low) * 0.05, 1.0)
+            item.setXRange(low - pad, high + pad, padding=0)
+        ends = [0.0, *(v for v in (mean_difference,) if math.isfinite(v))]
+        if finite_diffs.size:
+            ends += [float(finite_diffs.min()), float(finite_diffs.max())]
+        low, high = min(ends), max(ends)
+        pad = (high - low) * 0.08 or 1.0
+        item.setYRange(low - pad, high + pad, padding=0)
 
     def _dot_colour(self):
         colour = pg.mkColor(self.colours.foreground)

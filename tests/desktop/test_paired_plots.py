@@ -42,6 +42,9 @@ def test_differences_against_means_draws_every_pair_and_the_mean_line(plot):
     assert sorted(zip(across, up)) == sorted(zip(m, d))  # each dot one pair, never x against y's partner
     assert shown.mean_line == pytest.approx(np.mean(d), rel=1e-12)
     assert "before minus after" in shown.plotItem.titleLabel.text
+    (x_low, x_high), (y_low, y_high) = shown.getPlotItem().viewRange()
+    assert x_low < m.min() and m.max() < x_high  # every point whole
+    assert y_low < min(0.0, d.min()) and max(0.0, d.max()) < y_high  # and the line of no difference
     with pytest.raises(ValueError):
         shown.show_pairs(m, d[:-1], mean_difference=0.0, labels=("a", "b"))
 
