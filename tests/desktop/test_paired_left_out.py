@@ -5,7 +5,7 @@ from __future__ import annotations
 
 import pytest
 
-from desktop.data_panel import MAX_PAIR_PROBLEMS_LISTED, pair_marks, pairs_html
+from desktop.data_panel import MAX_PAIR_PROBLEMS_LISTED, pair_marks, pairs_html, screening_html
 from engine import io
 from engine.io.pairs import pairs_by_id, pairs_by_row
 from engine.spec import AnalysisSpec
@@ -70,3 +70,17 @@ def test_a_long_list_is_cut_and_counted(csv_file):
     html = pairs_html(pairs)
     assert html.count("<li>Pair ID") == MAX_PAIR_PROBLEMS_LISTED
     assert f"and {len(pairs.problems) - MAX_PAIR_PROBLEMS_LISTED:,} more, counted above" in html
+
+
+def test_for_pairs_the_pairs_are_counted_in_place_of_the_groups(csv_file):
+    rows = [(f"P{i}", arm, 10.0 + i + (arm == "after")) for arm in ("before", "after") for i in range(1, 7)]
+    table = io.read_table(csv_file("clean.csv", rows, ("panel_id", "stage", "thickness")))
+    intake = io.make_groups(table, values="thickness", group="stage")
+    assert intake.screening.paired is not None  # the engine sees the sign of pairs
+    separate = screening_html(table, intake.screening)
+    assert "<b>Compared</b>" in separate and "Are these really two separate groups?" in separate
+    pairs = pairs_by_id(table, values="thickness", group="stage", pair_id="panel_id")
+    paired = screening_html(table, intake.screening, pairs=pairs)
+    assert "<b>Compared</b>" not in paired and "Are these really two separate groups?" not in paired
+    assert "<b>Pairs</b>: 6 units with a value in both before and after" in paired
+    assert "Every unit found its partner" in paired
