@@ -116,3 +116,19 @@ def test_every_paired_plot_copies_and_saves(plot, tmp_path, kind):
         shown.save_picture(tmp_path / "pairs.jpg")
     with pytest.raises(FileProblem, match="Could not save the plot"):
         shown.save_picture(tmp_path / "no_such_folder" / "pairs.png")
+
+
+def test_a_right_click_on_a_plot_opens_its_own_menu(plot, monkeypatch):
+    from PySide6.QtCore import QPoint
+    from PySide6.QtGui import QContextMenuEvent
+    from PySide6.QtWidgets import QApplication
+
+    shown = plot(DifferencePlot)
+    shown.show()
+    menu = shown.picture_menu()
+    opened = []
+    monkeypatch.setattr(menu, "exec", lambda *where: opened.append([a.text() for a in menu.actions()]))
+    monkeypatch.setattr(shown, "picture_menu", lambda: menu)
+    event = QContextMenuEvent(QContextMenuEvent.Reason.Mouse, QPoint(40, 40), shown.mapToGlobal(QPoint(40, 40)))
+    QApplication.sendEvent(shown.viewport(), event)  # where a right-click lands
+    assert opened == [["Copy this plot", "Save this plot…"]]
