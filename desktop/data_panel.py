@@ -124,7 +124,8 @@ def _groups_html(screening: Any, *, paired: bool = False) -> str:
     if sign is not None and not paired:
         parts.append(f"<p><b>Are these really two separate groups?</b> {_escape(sign.text)}</p>")
     shown = {sign.key} if sign is not None else set()
-    findings = [f for f in getattr(screening, "findings", ()) or () if f.key not in shown]
+    findings = [f for f in getattr(screening, "findings", ()) or () if f.key not in shown
+                and not (paired and f.key.startswith("pairs_"))]  # the pairs' list gives these item by item
     slips = [f for f in getattr(screening, "possible_slips", ()) or () if f not in findings]
     if findings or slips:
         rows = "".join(f"<li>{'<b>Check:</b> ' if f.severity == 'warning' else ''}{_escape(f.text)}</li>"
