@@ -550,7 +550,8 @@ def recommend(diagnostics, groups: Groups, *, equal_spread_known: bool = False, 
         note = (f" Here the values beyond the fence in {_join(calm)} are not that surprising, so "
                 "they did not count." if calm else "")
         reasons.append(FENCE_RULE + note)
-    candidates = [r for r in RECORDS if r.key != key and (not r.needs_known_sd or known_sd is not None)]
+    candidates = [r for r in RECORDS if r.key != key and r.serves("independent", "differ")
+                  and (not r.needs_known_sd or known_sd is not None)]
     considered = tuple(ConsideredOption(r.key, r.name, _why_not(r.key, key, s, **flags))
                        for r in candidates)
     cautions = _cautions(key, s, diagnostics, groups, **flags)

@@ -1,14 +1,11 @@
 """Procedures on matched pairs that work with the mean of the differences (group 1 minus group 2).
 
 - :func:`paired_t`: the one-sample t-test of the differences, with its interval for any direction;
-- :func:`paired_equivalence`: two one-sided t-tests of the mean difference against a margin, with
-  the two-sided (1 - 2 alpha) interval (Schuirmann 1987), as :mod:`.equivalence` does for two
-  independent groups;
 - :func:`paired_bootstrap_mean`: the percentile bootstrap interval of the mean difference, the
   pairs resampled whole (each resample draws n differences with replacement).
 
 The signed-rank test and the sign-flip test of the same differences live in :mod:`.signed_rank`
-and :mod:`.sign_flip`.
+and :mod:`.sign_flip`; equivalence and non-inferiority of the pairs in :mod:`.paired_margin`.
 """
 
 from __future__ import annotations
@@ -18,22 +15,21 @@ from typing import Any
 
 import numpy as np
 
-from ..errors import DataProblem, OptionProblem
+from ..errors import DataProblem
 from ..results import Interval, ProcedureResult, frozen_mapping
 from ..stats_basics import (StudentT, centred_sd, common_scale, critical_value, quantiles,
                            statistic_p, tail_alpha)
+from ..tasks import CancelCheck, Progress, Task
 from ._checks import check_alternative, check_confidence_level, check_sample
-from .equivalence import _check_margin
 from .resampling import BOOTSTRAP_MIN_N, _check_resamples, _check_rng
 
 __all__ = ["paired_differences", "paired_values", "corrected_mean", "scaled_moments",
            "paired_t",
-           "paired_equivalence", "paired_bootstrap_mean", "NAMES"]
+           "paired_bootstrap_mean", "NAMES"]
 
 # The plain name of each procedure in this module.
 NAMES = frozen_mapping({
     "paired_t": "paired t-test",
-    "paired_equivalence": "two one-sided tests on the pair differences",
     "paired_bootstrap_mean": "bootstrap interval, mean of the pair differences",
 })
 
@@ -118,53 +114,25 @@ def paired_t(x: Any, y: Any, *, alternative: str = "two-sided",
     )
 
 
-def paired_equivalence(x: Any, y: Any, *, low: float, high: float,
-                       confidence_level: float = 0.95) -> ProcedureResult:
-    """Two one-sided t-tests on the pair differences: H0 mean(d) <= low or mean(d) >= high.
-
-    ``confidence_level`` is 1 - alpha of the whole test; the interval is the two-sided
-    (1 - 2 alpha) one, inside the margin exactly when both one-sided tests reject. The p-value is
-    the larger one-sided p-value; ``details`` holds both.
-    """
-    low, high = _check_margin(low, high)
-    level = check_confidence_level(confidence_level)
-    alpha = 1.0 - level
-    if not alpha < 0.5:
-        raise OptionProblem(f"The level of an equivalence test must be above 0.5 and below 1, "
-                            f"not {confidence_level}.")
-    base = paired_t(x, y, confidence_level=1.0 - 2.0 * alpha)
-    mean, se, df = base.estimate, base.details["standard_error"], base.df
-    distribution = StudentT(df)
-    t_lower, t_upper = (mean - low) / se, (mean - high) / se
-    p_lower, p_upper = distribution.sf(t_lower), distribution.cdf(t_upper)
-    p_value = max(p_lower, p_upper)
-    return ProcedureResult(
-        key="paired_equivalence", name=NAMES["paired_equivalence"], estimate=mean,
-        estimate_name="mean of the pair differences",
-        statistic=t_lower if p_lower >= p_upper else t_upper, statistic_name="t", df=df,
-        p_value=p_value, interval=base.interval, alternative="two-sided",
-        method=(f"two one-sided t-tests of the mean pair difference against the margin "
-                f"{low:g} to {high:g}; the interval is the {1 - 2 * alpha:.0%} one"),
-        details=dict(base.details, margin_low=low, margin_high=high, t_lower=t_lower,
-                     t_upper=t_upper, p_lower=p_lower, p_upper=p_upper,
-                     equivalent=bool(p_value < alpha)),
-    )
-
-
 def paired_bootstrap_mean(x: Any, y: Any, *, alternative: str = "two-sided",
                           confidence_level: float = 0.95, n_resamples: int = 10_000,
-                          rng: np.random.Generator | None = None) -> ProcedureResult:
+                          rng: np.random.Generator | None = None,
+                          progress: Progress | Task | None = None,
+                          cancelled: CancelCheck | None = None) -> ProcedureResult:
     """Percentile bootstrap interval of the mean pair difference.
 
     Each resample draws n of the n differences with replacement (the pairs stay whole); the
     interval runs between the alpha and 1 - alpha quantiles of the resampled means (alpha is
     half of 1 - level for two sides), quantiles by linear interpolation as numpy's default.
     ``rng`` is a ``numpy.random.Generator`` (seed it to repeat a result). No p-value.
+    ``progress(fraction, what)`` is told after each batch and ``cancelled()`` asked before it
+    (``progress`` may be an :class:`engine.tasks.Task`).
     """
     alternative = check_alternative(alternative)
     level = check_confidence_level(confidence_level)
     n_resamples = _check_resamples(n_resamples)
     rng = _check_rng(rng)
+    task = Task.of(progress, cancelled)
     d = paired_differences(x, y)
     n = d.size
     centre = corrected_mean(d)
@@ -173,9 +141,11 @@ def paired_bootstrap_mean(x: Any, y: Any, *, alternative: str = "two-sided",
     replicates = np.empty(n_resamples)
     rows = max(1, _BATCH_INDICES // n)
     for start in range(0, n_resamples, rows):
+        task.check()
         stop = min(start + rows, n_resamples)
         index = rng.integers(0, n, (stop - start, n))
         replicates[start:stop] = centred[index].mean(axis=1)
+        task.report(stop / n_resamples, "bootstrap of the mean pair difference")
     replicates = (replicates + centre / scale) * scale  # within the range of the differences
     tail = tail_alpha(level, alternative)
     low, high = quantiles(replicates, (tail, 1 - tail))

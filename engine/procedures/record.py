@@ -13,7 +13,7 @@ from typing import Any, Callable
 
 import numpy as np
 
-from ..question import ALL_KINDS, KINDS, Margin
+from ..question import ALL_KINDS, KINDS, MARGIN_UNITS, Margin
 from ..results import ProcedureResult
 from ..spec import DESIGNS, AnalysisSpec
 from ..tasks import Task
@@ -88,7 +88,10 @@ class Procedure:
     it serves (``engine.spec.DESIGNS``); ``questions``: the question kinds it answers.
     ``counterpart``: for a procedure of a margin question (equivalence, non-inferiority), the key
     of the procedure for a difference whose assumptions it shares (so the advice for a difference
-    carries over: "welch_t" for the two one-sided Welch tests).
+    carries over: "welch_t" for the two one-sided Welch tests). ``margin_units``: the units of
+    a margin it accepts (``engine.question.MARGIN_UNITS``; a ratio margin runs only the log-scale
+    procedures), None for a procedure of a difference. ``needs_equal_spread``: it runs only when
+    the user stated equal spreads (the pooled margin procedures).
     """
 
     key: str
@@ -115,6 +118,8 @@ class Procedure:
     questions: tuple[str, ...] = KINDS
     work: float = 1.0
     counterpart: str | None = None
+    margin_units: tuple[str, ...] | None = None
+    needs_equal_spread: bool = False
 
     def __post_init__(self) -> None:
         if self.family not in FAMILIES or self.estimate_kind not in ESTIMATE_KINDS:
@@ -123,6 +128,8 @@ class Procedure:
             raise ValueError(f"record {self.key!r}: unknown input or design")
         if not set(self.questions) <= set(ALL_KINDS):
             raise ValueError(f"record {self.key!r}: unknown question kind")
+        if self.margin_units is not None and not set(self.margin_units) <= set(MARGIN_UNITS):
+            raise ValueError(f"record {self.key!r}: unknown margin unit")
         if not self.votes and not self.not_voting_because:
             raise ValueError(f"record {self.key!r}: a procedure that never votes says why")
 
@@ -145,8 +152,14 @@ class Procedure:
         return design in self.designs and question_kind in self.questions
 
     def runs_for(self, spec: AnalysisSpec) -> bool:
-        """Whether what the user stated lets it run (the z-test needs known SDs)."""
-        return not self.needs_known_sd or spec.statements.known_sd is not None
+        """Whether what the user stated lets it run: the z-test needs known SDs, the pooled margin
+        procedures stated equal spreads, and a margin procedure a margin in units it accepts."""
+        if self.needs_known_sd and spec.statements.known_sd is None:
+            return False
+        if self.needs_equal_spread and not spec.statements.equal_spread_known:
+            return False
+        margin = spec.question.margin
+        return self.margin_units is None or margin is None or margin.unit in self.margin_units
 
     def fits_size(self, n_values: int) -> bool:
         """Whether it runs for ``n_values`` values in all (resampling has a limit)."""

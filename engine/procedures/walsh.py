@@ -16,6 +16,8 @@ __all__ = ["walsh_count", "walsh_order_statistic", "walsh_order_statistics", "wa
 
 # When at most this many averages (times n) remain between the search's ends, they are listed.
 _LIST_FACTOR = 2
+# Up to this many averages in all they are listed at once (a few hundred KB): cheaper than a search.
+_LIST_ALL = 20_000
 _MAX_STEPS = 200
 # Averages drawn at random to bracket the wanted rank before counting (a fixed seed: the result
 # never depends on the draw, only the number of counting steps does).
@@ -70,17 +72,19 @@ def walsh_order_statistics(ordered: np.ndarray, ranks) -> tuple[float, ...]:
 
 def _band_around(ordered: np.ndarray, rank: int) -> tuple[int, np.ndarray]:
     """(how many averages lie below the band, the band's averages sorted), the band holding the
-    ``rank``-th smallest and at most about ``_LIST_FACTOR`` n averages."""
+    ``rank``-th smallest and at most about ``_LIST_FACTOR`` n averages (all of them, when there
+    are at most ``_LIST_ALL``)."""
     n = ordered.size
     total = n * (n + 1) // 2
     # (low, high]: count(low) < rank <= count(high); the smallest average is ordered[0] itself,
     # so none lies at or below the number just under it
     low, high = float(np.nextafter(ordered[0], -np.inf)), float(ordered[-1])
     below, at_high = 0, total
-    if total > _LIST_FACTOR * n:
+    listed = max(_LIST_FACTOR * n, _LIST_ALL)
+    if total > listed:
         low, below, high, at_high = _bracket(ordered, rank, low, below, high, at_high)
     for _ in range(_MAX_STEPS):
-        if at_high - below <= _LIST_FACTOR * n:
+        if at_high - below <= listed:
             break
         # interpolate on the counts, kept off the ends so that each step shrinks the band
         share = min(max((rank - below) / (at_high - below), 0.05), 0.95)

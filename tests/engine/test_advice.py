@@ -12,6 +12,7 @@ import pytest
 
 from engine import advice
 from engine.analysis import PROCEDURE_NAMES
+from engine.procedures.registry import RECORDS
 from engine.diagnostics import diagnose
 from engine.results import Groups
 
@@ -125,7 +126,7 @@ def test_every_suggestion_has_reasons_alternatives_cautions_and_assumptions(rng,
     suggestion = _suggest(rng.normal(0, 1, 20), rng.normal(0.5, 1, 22), **flags)
     assert suggestion.reasons and all(r.strip() for r in suggestion.reasons)
     # every other applicable procedure is weighed, each with a reason
-    applicable = set(PROCEDURE_NAMES) - ({"z"} if "known_sd" not in flags else set())
+    applicable = {r.key for r in RECORDS if r.serves("independent", "differ")} - ({"z"} if "known_sd" not in flags else set())
     assert {c.key for c in suggestion.considered} == applicable - {suggestion.key}
     assert all(c.why_not.strip() and c.name == PROCEDURE_NAMES[c.key] for c in suggestion.considered)
     # one sentence on what choosing it assumes, for every procedure key

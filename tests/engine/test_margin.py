@@ -77,9 +77,17 @@ def test_the_margin_kinds_say_their_alternative():
     assert Question("not_worse", 0.95, Margin.not_worse_by(1, "higher")).alternative == "less"
 
 
-def test_no_existing_procedure_claims_a_margin_kind():
-    # the registry reads KINDS as what a procedure answers by default: the margin kinds stay out
+def test_only_the_margin_procedures_claim_a_margin_kind():
+    # the registry reads KINDS as what a procedure answers by default: the margin kinds are
+    # answered only by the records built for them, each naming the procedure of a difference
+    # whose assumptions it shares
     assert KINDS == ("differ", "lower", "higher")
     assert set(MARGIN_KINDS).isdisjoint(KINDS) and ALL_KINDS == KINDS + MARGIN_KINDS
+    keys = {record.key for record in RECORDS}
     for record in RECORDS:
-        assert set(record.questions) <= set(KINDS), record.key
+        if record.counterpart is None:
+            assert set(record.questions) <= set(KINDS), record.key
+        else:
+            assert len(record.questions) == 1 and record.questions[0] in MARGIN_KINDS, record.key
+            assert record.counterpart in keys or record.counterpart in (
+                "paired_t", "signed_rank", "paired_bootstrap_mean"), record.key

@@ -6,7 +6,8 @@ from scipy import stats
 from statsmodels.stats.weightstats import ttost_paired
 
 from engine.errors import DataProblem, OptionProblem
-from engine.procedures.paired import paired_bootstrap_mean, paired_equivalence, paired_t
+from engine.procedures.paired import paired_bootstrap_mean, paired_t
+from engine.procedures.paired_margin import paired_equivalence
 
 
 def _pairs(seed, n=15, shift=0.4):

@@ -1,0 +1,284 @@
+"""``python -m engine plan ...``: plan the next study from the command line.
+
+Two of the difference, the size and the power say what is found: ``--difference D --sd S
+--power P`` the size per group; ``--difference D --sd S --n N`` the power; ``--sd S --n N
+--power P`` the smallest detectable difference. ``--pilot FILE`` (with the analyze command's
+column flags) takes the spread and shape from pilot values instead of ``--sd``. ``--curve``
+adds the power along the size or the difference. Bad input ends with one line, as for the
+other commands (:mod:`engine.cli` prints it).
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import math
+from pathlib import Path
+from typing import Any, TextIO
+
+from .errors import OptionProblem
+from .text import visible
+
+__all__ = ["add_plan_command", "run_plan", "plan_from_arguments", "plan_document"]
+
+
+def _margin(text: str):
+    """``M`` (within -M to M) or ``LOW:HIGH``."""
+    from .question import Margin
+
+    if ":" in text:
+        low, _, high = text.partition(":")
+        return Margin.within(_float(low, "--equivalence-margin"), _float(high, "--equivalence-margin"))
+    return Margin.within(_float(text, "--equivalence-margin"))
+
+
+def _float(text: str, flag: str) -> float:
+    try:
+        return float(text)
+    except ValueError:
+        raise OptionProblem(f"{flag} takes a number, not '{text}'.") from None
+
+
+def add_plan_command(commands: Any) -> None:
+    """Add the ``plan`` command to the subcommands of ``python -m engine``."""
+    plan = commands.add_parser("plan", help="plan the next study: sample size, power or smallest "
+                               "detectable difference")
+    given = plan.add_argument_group("what is known (two of --difference, --n, --power say what is found)")
+    given.add_argument("--difference", type=float, metavar="D",
+                       help="the true difference of means to detect, group 1 minus group 2 (for an "
+                            "equivalence or non-inferiority plan: the one expected, default 0)")
+    given.add_argument("--sd", type=float, metavar="S",
+                       help="the SD of the measurements (paired: of the pair differences)")
+    given.add_argument("--sd2", type=float, metavar="S2", help="the SD of group 2, when it differs")
+    given.add_argument("--n", type=int, metavar="N", help="units per group (pairs when --paired)")
+    given.add_argument("--n2", type=int, metavar="N2", help="units in group 2, when it differs")
+    given.add_argument("--power", type=float, metavar="P", help="the power wanted, such as 0.8")
+    given.add_argument("--ratio", type=float, metavar="R",
+                       help="group 2's size over group 1's when the size is found (default 1)")
+    test = plan.add_argument_group("the test")
+    test.add_argument("--level", type=float, metavar="ALPHA",
+                      help="the test's level: the chance of a false finding (default 0.05)")
+    test.add_argument("--alternative", choices=("two-sided", "less", "greater"),
+                      help="two-sided (default); less/greater: is group 1 lower/higher")
+    test.add_argument("--equivalence-margin", metavar="M|LOW:HIGH",
+                      help="plan to show equivalence within -M to M (or LOW to HIGH; a negative LOW "
+                           "goes after an equals sign: --equivalence-margin=-3:4)")
+    test.add_argument("--noninferiority-margin", type=float, metavar="M",
+                      help="plan to show group 1 not worse than group 2 by more than M")
+    test.add_argument("--worse", choices=("lower", "higher"),
+                      help="with --noninferiority-margin: which direction is worse")
+    test.add_argument("--paired", action="store_true",
+                      help="a paired design (the same units measured twice); sizes are pairs")
+    test.add_argument("--procedure", choices=("welch", "pooled", "z", "mann_whitney"),
+                      help="welch (default), pooled, z (known SDs) or mann_whitney (paired: the "
+                           "signed-rank test)")
+    how = plan.add_argument_group("how the power is found")
+    how.add_argument("--method", choices=("auto", "exact", "approximation", "simulation"),
+                     help="auto (default): exact for the t and z tests, simulation otherwise; "
+                          "approximation: Noether's formula for Mann-Whitney")
+    how.add_argument("--shape", choices=("normal", "skewed", "heavy_tailed"),
+                     help="how the values vary, for a simulation (default normal)")
+    how.add_argument("--simulations", type=int, metavar="K", help="simulated studies (default 10000)")
+    how.add_argument("--seed", type=int, help="seed of the simulation, for repeatable results")
+    pilot = plan.add_argument_group("pilot values (their spread and shape, resampled)")
+    pilot.add_argument("--pilot", type=Path, metavar="FILE",
+                       help="a data file of pilot values, or a saved analysis (.twofold) whose groups are the pilot")
+    pilot.add_argument("--value", action="append", metavar="COLUMN",
+                       help="the column of measurements; give it twice for one column per group "
+                            "(paired: the two columns, one row per pair)")
+    pilot.add_argument("--group", metavar="COLUMN", help="the column that says which group a row is in")
+    pilot.add_argument("--groups", nargs=2, metavar=("FIRST", "SECOND"),
+                       help="the two group labels; every difference is FIRST minus SECOND")
+    pilot.add_argument("--sheet", help="the sheet of a workbook (default: the first)")
+    out = plan.add_argument_group("output")
+    out.add_argument("--unit", default="", help="the measurement's unit for the sentences, such as MPa")
+    out.add_argument("--curve", choices=("n", "difference"),
+                     help="also give the power along the size per group or the difference")
+    out.add_argument("--points", type=int, default=None, metavar="K",
+                     help="points of the curve (default 50)")
+    out.add_argument("--json", action="store_true", help="print one JSON object instead of text")
+
+
+def _question(args):
+    from .question import Margin, Question
+
+    if args.level is not None and not 0 < args.level < 0.5:
+        raise OptionProblem(f"--level is the test's level, above 0 and below 0.5, such as 0.05; "
+                            f"not {args.level:g}.")
+    level = 1.0 - (0.05 if args.level is None else args.level)
+    if args.equivalence_margin is not None and args.noninferiority_margin is not None:
+        raise OptionProblem("Give --equivalence-margin or --noninferiority-margin, not both.")
+    if (args.worse is not None) != (args.noninferiority_margin is not None):
+        raise OptionProblem("--noninferiority-margin and --worse go together: say which direction is worse.")
+    margin_given = args.equivalence_margin is not None or args.noninferiority_margin is not None
+    if margin_given and args.alternative not in (None, "two-sided"):
+        raise OptionProblem("A margin question sets its own direction; leave --alternative out.")
+    if args.equivalence_margin is not None:
+        return Question("equivalent", level, _margin(args.equivalence_margin))
+    if args.noninferiority_margin is not None:
+        return Question("not_worse", level, Margin.not_worse_by(args.noninferiority_margin, args.worse))
+    return Question.from_alternative(args.alternative or "two-sided", level)
+
+
+def _find(args, has_margin: bool) -> str:
+    known = {"difference": args.difference is not None or has_margin, "n": args.n is not None,
+             "power": args.power is not None}
+    if known["n"] and known["power"] and not (args.difference is None and not has_margin):
+        raise OptionProblem("Give two of --difference, --n and --power: the third is found.")
+    missing = [name for name, there in known.items() if not there]
+    if len(missing) != 1:
+        raise OptionProblem("Give two of --difference, --n and --power: the third is found "
+                            "(with a margin the difference defaults to 0).")
+    return missing[0]
+
+
+def _pilot(args):
+    """The pilot values from --pilot FILE (a data file with the column flags, or a saved
+    analysis, whose data file is read again and must still be the one it analysed)."""
+    from . import pipeline, saved
+    from .planning import Pilot
+    from .spec import AnalysisSpec, Source
+
+    name = args.pilot.name
+    if args.pilot.suffix.lower() == saved.EXTENSION:
+        if any(getattr(args, flag) is not None for flag in ("value", "group", "groups", "sheet")):
+            raise OptionProblem(f"{name} names its own columns and groups; leave out --value, "
+                                "--group, --groups and --sheet.")
+        reopened = saved.reopen(saved.load(args.pilot))
+        if reopened.prepared is None or reopened.status == "source_changed":
+            raise OptionProblem(f"{name}: {reopened.message}")
+        prepared = reopened.prepared
+        return _pilot_of(args, prepared.table, prepared.spec, prepared.intake.groups, name)
+    values = tuple(args.value or ())
+    spec = AnalysisSpec(source=Source(str(args.pilot), args.sheet),
+                        layout="long" if args.group is not None or len(values) == 1 else "wide",
+                        group_column=args.group, value_columns=values,
+                        groups=tuple(args.groups) if args.groups else None)
+    table = pipeline.read(spec)
+    spec = pipeline.complete(table, spec)
+    return _pilot_of(args, table, spec, None if args.paired else pipeline.form_groups(table, spec).groups, name)
+
+
+def _pilot_of(args, table, spec, groups, name: str):
+    """Two pilot groups, or with --paired the pair differences row by row (wide layout)."""
+    from .io.pairs import pairs_by_row
+    from .planning import Pilot
+
+    if args.paired:
+        if spec.layout != "wide":
+            raise OptionProblem(f"{name}: a paired pilot takes two value columns, one per group and "
+                                "one row per pair (--value FIRST --value SECOND).")
+        pairs = pairs_by_row(table, columns=tuple(spec.value_columns))
+        return Pilot(pairs.differences, None, pairs.labels, name)
+    return Pilot(groups.x, groups.y, groups.labels, name)
+
+
+def plan_from_arguments(args):
+    """The :class:`engine.planning.Plan` the flags describe."""
+    from .planning import Plan
+
+    if args.pilot is None and any(getattr(args, flag) is not None for flag in ("value", "group", "groups", "sheet")):
+        raise OptionProblem("--value, --group, --groups and --sheet name the columns of a pilot "
+                            "file; give it with --pilot FILE.")
+    question = _question(args)
+    find = _find(args, question.has_margin)
+    pilot = _pilot(args) if args.pilot is not None else None
+    optional = {name: getattr(args, name) for name in ("procedure", "method", "shape", "simulations",
+                                                       "ratio") if getattr(args, name) is not None}
+    return Plan(find, difference=args.difference, sd=args.sd, sd2=args.sd2, n1=args.n, n2=args.n2,
+                power=args.power, question=question, design="paired" if args.paired else "independent",
+                seed=args.seed, unit=args.unit, pilot=pilot, **optional)
+
+
+def _finite(value: float | None) -> float | None:
+    return None if value is None or not math.isfinite(value) else float(value)
+
+
+def plan_document(result, curve=None) -> dict[str, Any]:
+    """The ``--json`` document of a plan (members are added, never renamed)."""
+    plan = result.plan
+    margin = plan.question.margin
+    document = {
+        "find": plan.find,
+        "answer": {"n1": result.n1, "n2": result.n2, "power": result.power,
+                   "difference": result.difference,
+                   "effect": result.effect, "effect_name": result.effect_name,
+                   "continuous_n": _finite(result.continuous_n), "df": _finite(result.df),
+                   "monte_carlo_se": result.monte_carlo_se, "simulations": result.simulations,
+                   "seed": result.seed, "formula_power": result.formula_power,
+                   "formula_words": result.formula_words},
+        "inputs": {"difference": plan.difference, "sd1": result.sd1, "sd2": result.sd2,
+                   "n1": plan.n1, "n2": plan.n2, "ratio": plan.ratio, "power": plan.power,
+                   "level": plan.alpha, "question": plan.question.kind,
+                   "alternative": plan.alternative,
+                   "margin": None if margin is None else {"low": margin.low, "high": margin.high,
+                                                          "worse": margin.worse},
+                   "design": plan.design, "procedure": plan.procedure, "shape": plan.shape,
+                   "unit": plan.unit,
+                   "pilot": None if plan.pilot is None else {
+                       "source": plan.pilot.source, "labels": list(plan.pilot.labels),
+                       "n": [int(plan.pilot.group1.size)] + ([] if plan.pilot.group2 is None
+                                                             else [int(plan.pilot.group2.size)])}},
+        "method": result.method,
+        "method_words": result.method_words,
+        "procedure_name": result.procedure_name,
+        "sentence": result.sentence,
+        "notes": list(result.notes),
+    }
+    if curve is not None:
+        document["curve"] = {"over": curve.over, "x": curve.x.tolist(), "power": curve.power.tolist(),
+                             "monte_carlo_se": None if curve.monte_carlo_se is None
+                             else curve.monte_carlo_se.tolist()}
+    return document
+
+
+def _readable(result, curve) -> list[str]:
+    from .planning.sentence import power_text
+    from .rounding import format_number
+
+    plan = result.plan
+    unit = f" {plan.unit}" if plan.unit else ""
+    sizes = (f"{result.n1} pairs" if plan.design == "paired" else
+             f"{result.n1} per group" if result.n1 == result.n2 else
+             f"{result.n1} in group 1, {result.n2} in group 2")
+    lines = [result.sentence, ""]
+    answer = {"n": f"Sample size: {sizes}", "power": f"Power: {power_text(result.power)}",
+              "difference": f"Smallest detectable difference: {format_number(result.difference)}{unit}"}
+    lines.append(answer[plan.find])
+    if plan.find == "n":
+        lines.append(f"Achieved power: {power_text(result.power)}")
+    if result.continuous_n is not None:
+        lines.append(f"Size before rounding up: {format_number(result.continuous_n, digits=5)}")
+    lines.append(f"Standardised effect: {format_number(result.effect)} ({result.effect_name})")
+    if result.monte_carlo_se is not None:
+        lines.append(f"Monte Carlo standard error: {format_number(100 * result.monte_carlo_se, digits=2)} "
+                     f"percentage points ({result.simulations:,} studies, seed {result.seed})")
+    if result.formula_power is not None:
+        lines.append(f"For comparison, {result.formula_words}: {power_text(result.formula_power)}")
+    lines.append(f"Method: {result.method_words}")
+    lines += [f"Note: {note}" for note in result.notes]
+    if curve is not None:
+        label = "units per group" if curve.over == "n" else f"difference{unit}"
+        lines += ["", f"Power curve ({label}, power):"]
+        lines += [f"  {format_number(x, digits=4)}  {power_text(p)}" for x, p in zip(curve.x, curve.power)]
+    return lines
+
+
+def run_plan(args, out: TextIO) -> None:
+    """Run ``python -m engine plan`` with the parsed ``args``, writing to ``out``."""
+    from .planning import plan_study, power_curve
+
+    plan = plan_from_arguments(args)
+    result = plan_study(plan)
+    curve = None
+    if args.curve is not None:
+        kwargs = {} if args.points is None else {"points": args.points}
+        curve = power_curve(plan.with_(seed=result.seed) if result.seed is not None else plan,
+                            args.curve, **kwargs)
+    if args.json:
+        json.dump(plan_document(result, curve), out, indent=2, allow_nan=False)
+        out.write("\n")
+        return
+    out.write("".join(visible(line) + "\n" for line in _readable(result, curve)))
+
+
