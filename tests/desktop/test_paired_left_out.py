@@ -84,3 +84,16 @@ def test_for_pairs_the_pairs_are_counted_in_place_of_the_groups(csv_file):
     assert "<b>Compared</b>" not in paired and "Are these really two separate groups?" not in paired
     assert "<b>Pairs</b>: 6 units with a value in both before and after" in paired
     assert "Every unit found its partner" in paired
+
+
+def test_each_item_left_out_is_said_once(awkward_long):
+    from engine import pipeline
+
+    table = io.read_table(awkward_long)
+    spec = AnalysisSpec(group_column="stage", value_columns=("thickness",), groups=("before", "after"),
+                        design="paired", pair_column="panel_id")
+    intake = pipeline.form_groups(table, spec)
+    assert any(f.key.startswith("pairs_") for f in intake.screening.findings)  # the engine says them too
+    html = screening_html(table, intake.screening, pairs=intake.pairs)
+    for item in intake.pairs.problems:
+        assert html.count(visible_html(item.text)) == 1  # in the pairs' list, with its link, and only there
