@@ -49,13 +49,13 @@ def _ready(window, settle, qtbot):
 def test_paired_long_file_from_choice_to_plots(make_window, settle, qtbot, long_file):
     window = make_window([long_file])
     _ready(window, settle, qtbot)
-    session = window.session
+    live = window.session
     # data that look paired are never taken as paired without the user's say
-    assert session.spec.design == "independent" and session.analysis.design == "independent"
+    assert live.spec.design == "independent" and live.analysis.design == "independent"
     assert window.setup_panel.design_evidence.isVisibleTo(window.setup_panel)
     _choose(window.setup_panel.design, "paired")
     settle(window)
-    spec, analysis = session.spec, session.analysis
+    spec, analysis = live.spec, live.analysis
     assert spec.design == "paired" and spec.pair_column == "panel_id"
     assert analysis is not None and analysis.design == "paired"
     before, after = _coating()
@@ -104,12 +104,12 @@ def test_pairs_that_cannot_be_formed_never_fall_back(make_window, settle, qtbot,
     _choose(window.setup_panel.design, "paired")
     _choose(window.setup_panel.pair_column, "panel_id")
     settle(window)
-    session = window.session
-    assert session.spec.design == "paired"  # stays paired
-    assert session.analysis is None and session.problem  # and nothing is compared as separate groups
-    assert window.message_bar.key == "groups_problem" and session.problem in window.message_bar.text
-    assert "\n" not in session.problem  # the engine's one line
-    assert window.setup_panel.pair_note.text() == f"These data cannot be paired yet: {session.problem}"
+    live = window.session
+    assert live.spec.design == "paired"  # stays paired
+    assert live.analysis is None and live.problem  # and nothing is compared as separate groups
+    assert window.message_bar.key == "groups_problem" and live.problem in window.message_bar.text
+    assert "\n" not in live.problem  # the engine's one line
+    assert window.setup_panel.pair_note.text() == f"These data cannot be paired yet: {live.problem}"
 
 
 def test_a_saved_paired_analysis_reopens_paired(make_window, settle, qtbot, long_file, tmp_path):
