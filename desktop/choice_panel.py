@@ -23,6 +23,8 @@ from engine.text import visible, visible_html
 
 from .panel_parts import FlowLayout, disclosure_button, heading, hint_and_body, text_label
 from .plain_text import plain_label
+from .paired_plots import (DifferencePlot, DifferenceQQPlot, DifferenceShapePlot, JoinedPairsPlot, MAX_JOINED,
+                           pair_figures)
 from .plots import BoxPlot, QQPlot, ShapePlot
 
 __all__ = ["ChoicePanel", "CHECK_TIPS", "main_reading"]
@@ -158,6 +160,12 @@ class ChoicePanel(QWidget):
         self.shape_cards = [_CheckCard(list(pair)) for pair in self.shape_plots]
         for card in self.shape_cards:
             layout.addWidget(card)
+        # a paired design shows the differences of the pairs in place of each group's shape
+        self.paired_plots = (DifferenceShapePlot(), DifferenceQQPlot(), DifferencePlot(), JoinedPairsPlot())
+        self.paired_cards = (_CheckCard(list(self.paired_plots[:2])), _CheckCard(list(self.paired_plots[2:])))
+        for card in self.paired_cards:
+            card.hide()
+            layout.addWidget(card)
         self.box_plot = BoxPlot()
         self.spread_card = _CheckCard([self.box_plot])
         layout.addWidget(self.spread_card)
@@ -252,8 +260,17 @@ class ChoicePanel(QWidget):
 
     def _show_checks(self, analysis) -> None:
         groups, checks = analysis.groups, analysis.diagnostics
+        paired = analysis.paired if analysis.design == "paired" else None
+        for card in self.shape_cards:
+            card.setVisible(paired is None)
+        for card in self.paired_cards:
+            card.setVisible(paired is not None)
+        if paired is not None:
+            self._show_pairs(groups, paired)
         values = (groups.x, groups.y)
         for index, (card, (shape_plot, qq_plot)) in enumerate(zip(self.shape_cards, self.shape_plots)):
+            if paired is not None:
+                break
             summary, shape = analysis.summaries[index], checks.shapes[index]
             card.title.setText(f"Shape of {visible(groups.labels[index])} ({summary.n:,} values)")
             shape_plot.set_title("histogram and normal curve")
@@ -270,6 +287,33 @@ class ChoicePanel(QWidget):
                                    (groups.labels[1], groups.y, analysis.summaries[1])])
         self.spread_card.show_figures(_spread_figures(checks.spread))
         self.spread_card.show_findings([f for f in checks.findings if f.group is None])
+
+    def _show_pairs(self, groups, paired) -> None:
+        """The differences of the pairs: their shape, and against the pair means."""
+        shape_plot, qq_plot, difference_plot, joined_plot = self.paired_plots
+        shape_card, pairs_card = self.paired_cards
+        summary, labels = paired.summary, groups.labels
+        shape_card.title.setText(f"Shape of the differences, {visible(labels[0])} minus {visible(labels[1])} "
+                                 f"({summary.n:,} pairs)")
+        shape_plot.set_title("histogram and normal curve")
+        shape_plot.show_group(paired.differences, mean=summary.mean, sd=summary.sd)
+        qq_plot.set_title("normal Q-Q plot")
+        qq_plot.show_points(paired.shape.qq_theoretical, paired.shape.qq_observed, mean=summary.mean,
+                            sd=summary.sd)
+        shape_card.show_figures(_shape_figures(paired.shape))
+        shape_card.show_findings(paired.findings)
+        pairs_card.title.setText("The pairs")
+        difference_plot.show_pairs(paired.pair_means, paired.differences, mean_difference=summary.mean,
+                                   labels=labels)
+        joined_plot.set_title("each unit's two values")
+        joined_plot.setVisible(joined_plot.show_pairs(groups.x, groups.y, labels=labels))
+        figures = pair_figures(paired, labels)
+        if not joined_plot.drawn:
+            figures.append((f"more than {MAX_JOINED} pairs: not drawn one by one",
+                            "Each unit's two values are joined by a line only when there are few enough "
+                            "units for the lines to be followed."))
+        pairs_card.show_figures(figures)
+        pairs_card.show_findings([])
 
     def _show_suggestion(self, analysis) -> None:
         suggested = analysis.recommendation

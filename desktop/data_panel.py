@@ -12,6 +12,7 @@ Run on its own for a quick look: ``python -m desktop.data_panel demo_files/bolt_
 
 from __future__ import annotations
 
+import bisect
 import sys
 from typing import Any, Callable, Mapping
 
@@ -37,11 +38,14 @@ from engine.text import visible, visible_html
 from .plain_text import make_plain
 from .table_model import MARK_SET_ASIDE, FrameModel
 
-__all__ = ["DataPanel", "screening_html", "aside_order", "MAX_COPY_CELLS"]
+__all__ = ["DataPanel", "screening_html", "pairs_html", "pair_marks", "aside_order", "MAX_COPY_CELLS",
+           "MAX_PAIR_PROBLEMS_LISTED"]
 
 FIT_ROWS = 100  # rows looked at when fitting the column widths
 MAX_COPY_CELLS = 200_000  # a larger selection is copied only up to this many cells
 _BRING_BACK = "bring-back"
+_SHOW_ROW = "show-row"
+MAX_PAIR_PROBLEMS_LISTED = 200  # items the pairing left out, listed one by one; the rest are counted
 
 AskReason = Callable[[str], "str | None"]
 
@@ -72,7 +76,8 @@ def aside_order(set_aside: Mapping[tuple[int, str], str]) -> list[tuple[int, str
 
 
 def screening_html(table: Any, screening: Any, *, set_aside: Mapping[tuple[int, str], str] | None = None,
-                   problem: str | None = None, file_row: Callable[[int], int] | None = None) -> str:
+                   problem: str | None = None, file_row: Callable[[int], int] | None = None,
+                   pairs: Any = None) -> str:
     """The screening report as a short HTML page (no colours: the view's palette applies)."""
     parts: list[str] = []
     if table is None:
@@ -83,8 +88,10 @@ def screening_html(table: Any, screening: Any, *, set_aside: Mapping[tuple[int, 
         parts.append(f"<p>{_escape(note.text)}</p>")
     if problem:
         parts.append(f"<p><b>Not ready to compare:</b> {_escape(problem)}</p>")
+    if pairs is not None:  # the pairs are what is compared: their count replaces the groups'
+        parts.append(pairs_html(pairs))
     if screening is not None:
-        parts.append(_groups_html(screening))
+        parts.append(_groups_html(screening, paired=pairs is not None))
     if set_aside:
         finder = file_row or (lambda row: row + 1)
         items = []
@@ -95,11 +102,13 @@ def screening_html(table: Any, screening: Any, *, set_aside: Mapping[tuple[int, 
     return "\n".join(parts)
 
 
-def _groups_html(screening: Any) -> str:
+def _groups_html(screening: Any, *, paired: bool = False) -> str:
+    """The screening in words; for a paired design without the two groups' counts (the pairs
+    are what is compared) and without the question whether the groups are separate."""
     parts = []
     labels = tuple(getattr(screening, "labels", ()) or ())
     used = tuple(getattr(screening, "n_used", ()) or ())
-    if labels and used:
+    if labels and used and not paired:
         rows = "".join(f"<li>{_escape(label)}: {n:,} values</li>" for label, n in zip(labels, used))
         parts.append(f"<p><b>Compared</b> (group 1 first)</p><ul>{rows}</ul>")
     left_out = [(reason, n) for reason, n in _pairs(getattr(screening, "excluded_counts", None)) if n]
@@ -111,17 +120,70 @@ def _groups_html(screening: Any) -> str:
     others = _count(getattr(screening, "other_group_rows", 0))
     if others:
         parts.append(f"<p>{others:,} rows belong to other groups and are not part of this comparison.</p>")
-    paired = getattr(screening, "paired", None)
-    if paired is not None:
-        parts.append(f"<p><b>Are these really two separate groups?</b> {_escape(paired.text)}</p>")
-    shown = {paired.key} if paired is not None else set()
-    findings = [f for f in getattr(screening, "findings", ()) or () if f.key not in shown]
+    sign = getattr(screening, "paired", None)
+    if sign is not None and not paired:
+        parts.append(f"<p><b>Are these really two separate groups?</b> {_escape(sign.text)}</p>")
+    shown = {sign.key} if sign is not None else set()
+    findings = [f for f in getattr(screening, "findings", ()) or () if f.key not in shown
+                and not (paired and f.key.startswith("pairs_"))]  # the pairs' list gives these item by item
     slips = [f for f in getattr(screening, "possible_slips", ()) or () if f not in findings]
     if findings or slips:
         rows = "".join(f"<li>{'<b>Check:</b> ' if f.severity == 'warning' else ''}{_escape(f.text)}</li>"
                        for f in (*findings, *slips))
         parts.append(f"<p><b>Noticed while reading</b></p><ul>{rows}</ul>")
     return "\n".join(parts)
+
+
+def pairs_html(pairs: Any) -> str:
+    """How the pairs were formed and what the pairing left out (``engine.io.pairs.PairedIntake``),
+    each item with its file rows and a link that shows its first row in the grid."""
+    from engine.io.pairs import PAIR_PROBLEMS  # loaded with the pairs it words
+
+    labels = tuple(pairs.labels)
+    parts = [f"<p><b>Pairs</b>: {pairs.n_pairs:,} units with a value in both "
+             f"{_escape(labels[0])} and {_escape(labels[1])} (differences are {_escape(labels[0])} "
+             f"minus {_escape(labels[1])}).</p>"]
+    problems = tuple(pairs.problems)
+    if not problems:
+        parts.append("<p>Every unit found its partner: nothing was left out of the pairs.</p>")
+        return "\n".join(parts)
+    counts = "".join(f"<li>{_escape(PAIR_PROBLEMS.get(kind, kind))}: {n:,}</li>"
+                     for kind, n in _pairs(pairs.counts) if n)
+    parts.append(f"<p><b>Left out of the pairs</b> ({len(problems):,}; their cells are greyed in the grid)"
+                 f"</p><ul>{counts}</ul>")
+    items = []
+    for item in problems[:MAX_PAIR_PROBLEMS_LISTED]:
+        rows = tuple(item.file_rows)
+        link = f" (<a href=\"{_SHOW_ROW}:{rows[0]}\">show row {rows[0]}</a>)" if rows else ""
+        items.append(f"<li>{_escape(item.text)}{link}</li>")
+    rest = len(problems) - MAX_PAIR_PROBLEMS_LISTED
+    if rest > 0:
+        items.append(f"<li>and {rest:,} more, counted above</li>")
+    parts.append("<ul>" + "".join(items) + "</ul>")
+    return "\n".join(parts)
+
+
+def pair_marks(table: Any, spec: Any, pairs: Any) -> dict[tuple[int, str], str]:
+    """The value cells of the rows the pairing left out, as (frame row, column) -> reason.
+
+    A row is found by its file row number (the one the grid shows); the cells marked are the
+    value column of the long layout, or both value columns of the wide one.
+    """
+    from engine.io.pairs import PAIR_PROBLEMS  # loaded with the pairs it words
+
+    if table is None or pairs is None:
+        return {}
+    rows = len(table.frame)
+    columns = [c for c in spec.value_columns if c in table.frame.columns]
+    marks: dict[tuple[int, str], str] = {}
+    for item in pairs.problems:
+        why = f"left out of the pairs ({PAIR_PROBLEMS.get(item.kind, item.kind)})"
+        for number in item.file_rows:
+            frame_row = bisect.bisect_left(range(rows), number, key=table.file_row)
+            if frame_row < rows and table.file_row(frame_row) == number:
+                for column in columns:
+                    marks.setdefault((frame_row, column), why)
+    return marks
 
 
 def _ask_reason(parent: QWidget) -> AskReason:
@@ -291,10 +353,14 @@ class DataPanel(QWidget):
             for item in screening.exclusions:
                 why = EXCLUSION_WORDS.get(item.reason, item.reason)
                 excluded[(int(item.frame_row), str(item.column))] = f"{why} ('{item.text}')" if item.text else why
+        pairs = getattr(intake, "pairs", None) if self._session.spec.design == "paired" else None
+        for cell, why in pair_marks(self._session.table, self._session.spec, pairs).items():
+            excluded.setdefault(cell, why)  # a blank cell keeps the screening's own reason
         set_aside = self._set_aside()
         self.model.set_marks(excluded=excluded, set_aside=set_aside)
         self.report.setHtml(screening_html(self._session.table, screening, set_aside=set_aside,
-                                           problem=self._session.problem, file_row=self.model.file_row))
+                                           problem=self._session.problem, file_row=self.model.file_row,
+                                           pairs=pairs))
         self._update_buttons()
 
     # -- setting aside -------------------------------------------------------------------------
@@ -373,6 +439,9 @@ class DataPanel(QWidget):
         menu.exec(self.grid.viewport().mapToGlobal(point))
 
     def _on_link(self, url: QUrl) -> None:
+        if url.scheme() == _SHOW_ROW:
+            self._show_file_row(url.path())
+            return
         if url.scheme() != _BRING_BACK:
             return
         cells = aside_order(self._set_aside())
@@ -400,6 +469,18 @@ class DataPanel(QWidget):
         text = self.selection_text()
         if text:
             QGuiApplication.clipboard().setText(text)
+
+    def _show_file_row(self, text: str) -> None:
+        """Make the row the file numbers ``text`` current in the grid, at its first value column."""
+        table = self.model.table
+        if table is None or not text.isdigit():
+            return
+        rows, number = self.model.rowCount(), int(text)
+        frame_row = bisect.bisect_left(range(rows), number, key=self.model.file_row)
+        if frame_row >= rows:
+            return
+        values = [c for c in self._session.spec.value_columns if c in table.frame.columns]
+        self.select_cell(frame_row, values[0] if values else self.model.column_name(0))
 
     def select_cell(self, row: int, column: str) -> None:
         """Make (frame row, column) the current cell and show it."""

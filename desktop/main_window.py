@@ -71,8 +71,8 @@ SAVE_FILTER = "Web page (*.html);;PDF document (*.pdf)"
 PLOT_FILTER = "Picture (*.png);;Drawing (*.svg)"
 
 # Fields of the spec that change the two groups, and fields that change only the analysis of them.
-GROUP_FIELDS = ("layout", "group_column", "value_columns", "groups", "set_aside")
-ANALYSIS_FIELDS = ("question", "resamples", "seed", "statements", "rank_method")
+GROUP_FIELDS = ("layout", "group_column", "value_columns", "groups", "set_aside", "design", "pair_column")
+ANALYSIS_FIELDS = ("question", "resamples", "seed", "statements", "rank_method", "zero_rule")
 
 # The settings of the comparison that each new file starts from afresh (the defaults of
 # ``AnalysisSpec``) unless the user ticks "Keep these settings for the next file". A new file
@@ -715,6 +715,8 @@ class MainWindow(QMainWindow):
             return "Choose the column that names the groups."
         if spec.group_column == columns[0]:
             return "The groups and the measurements must be in different columns."
+        if spec.design == "paired" and not spec.pair_column:
+            return "Choose the column that names each unit, so that its two rows can be paired."
         return None
 
     def form_groups(self) -> None:

@@ -15,7 +15,7 @@ from __future__ import annotations
 import sys
 from typing import Any, Sequence
 
-from PySide6.QtCore import QSignalBlocker
+from PySide6.QtCore import QSignalBlocker, Qt
 from PySide6.QtWidgets import (
     QButtonGroup,
     QComboBox,
@@ -36,17 +36,26 @@ from engine.errors import OptionProblem
 from engine.io.layout import trimmed_levels
 from engine.question import LEVEL_RANGE
 from engine.report import QUESTIONS  # the question in the user's words, for each kind
-from engine.spec import RESAMPLES_RANGE, draw_seed
+from engine.spec import DESIGNS, RESAMPLES_RANGE, draw_seed
 from engine.text import visible
 
 from .margin_entry import MarginEntry, mirrored
 from .plain_text import plain_label
 
-__all__ = ["SetupPanel", "QUESTIONS", "group_levels", "MAX_LEVELS"]
+__all__ = ["SetupPanel", "QUESTIONS", "DESIGN_WORDS", "group_levels", "MAX_LEVELS"]
 
 MAX_LEVELS = 500  # a column with more distinct entries than this is not a list of groups
 
 LEVEL_DECIMALS = 1  # the confidence level is typed in percent with one decimal
+
+# The two designs in the user's words (the spec's DESIGNS, in order), with what each means.
+DESIGN_WORDS = {
+    "independent": ("Two separate groups of units",
+                    "Each unit (a part, a plot, a sample) was measured once, in one of the two groups."),
+    "paired": ("The same units measured twice (pairs)",
+               "Each unit has one value in each group, for example before and after, or on two "
+               "instruments: the procedures then work on the difference within each pair."),
+}
 
 
 def group_levels(table: Any, column: str | None) -> list[str]:
@@ -174,6 +183,7 @@ class SetupPanel(QWidget):
         inner.addLayout(form)
         inner.addWidget(self.refused)
         inner.addWidget(self.hint)
+        self._build_design(form)
         outer = QVBoxLayout(self)
         outer.setContentsMargins(0, 0, 0, 0)
         outer.addWidget(self.box)
@@ -192,6 +202,10 @@ class SetupPanel(QWidget):
         self.first_group.activated.connect(lambda _: self._groups_edited(first_moved=True))
         self.second_group.activated.connect(lambda _: self._groups_edited(first_moved=False))
         self.swap_button.clicked.connect(self.swap)
+        self.design.activated.connect(self._design_edited)
+        self.pair_column.activated.connect(self._pair_column_edited)
+        self.setTabOrder(self.second_group, self.design)  # the design's rows follow the groups
+        self.setTabOrder(self.design, self.pair_column)
         self.question.activated.connect(self._question_edited)
         self.confidence.valueChanged.connect(self._confidence_edited)
         self.resamples.valueChanged.connect(self._resamples_edited)
@@ -274,6 +288,7 @@ class SetupPanel(QWidget):
         else:
             self.hint.setText("")
         self.hint.setVisible(bool(self.hint.text()))
+        self._refresh_design(columns)
 
     # -- to the session ------------------------------------------------------------------------
     def _choose(self, **changes: Any) -> None:
@@ -300,13 +315,15 @@ class SetupPanel(QWidget):
             return
         spec = self._session.spec
         if long_checked:
-            self._choose(layout="long", value_columns=tuple(spec.value_columns[:1]), groups=None)
+            self._choose(layout="long", value_columns=tuple(spec.value_columns[:1]), groups=None,
+                         pair_column=self._proposed_pair_column(spec.group_column, spec.value_columns[:1])
+                         if spec.design == "paired" else None)
         else:
             numbers = self._number_columns()
             values = tuple(spec.value_columns[:2])
             if len(values) < 2:
                 values = tuple(numbers[:2])
-            self._choose(layout="wide", value_columns=values, group_column=None, groups=None)
+            self._choose(layout="wide", value_columns=values, group_column=None, groups=None, pair_column=None)
 
     def _number_columns(self) -> list[str]:
         table = self._session.table
@@ -379,6 +396,123 @@ class SetupPanel(QWidget):
     def new_seed(self) -> None:
         """Draw another seed at random."""
         self._choose(seed=draw_seed())
+
+    # -- the design: two separate groups, or the same units measured twice -----------------------
+    def _build_design(self, form: QFormLayout) -> None:
+        """The design's rows, below the two groups: the choice, what the file suggests, the pair
+        ID column (long layout) and a note on how the pairs are formed or why they cannot be."""
+        self.design = QComboBox(self)
+        for design in DESIGNS:
+            words, tip = DESIGN_WORDS[design]
+            self.design.addItem(words, design)
+            self.design.setItemData(self.design.count() - 1, tip, Qt.ItemDataRole.ToolTipRole)
+        self.design.setToolTip("Whether the two groups hold different units, or the same units measured "
+                               "twice. " + DESIGN_WORDS["paired"][1])
+        self.design_label = QLabel("Design:", self)
+        self.design_label.setBuddy(self.design)
+        self.design_evidence = plain_label(parent=self)  # the screening's sentence quotes a column
+        self.design_evidence.setWordWrap(True)
+        self.pair_column = QComboBox(self)
+        self.pair_column.setToolTip("The column that names each unit, so that its row in group 1 and its "
+                                    "row in group 2 can be matched (each name once in each group).")
+        self.pair_column_label = QLabel("Pair ID column:", self)
+        self.pair_column_label.setBuddy(self.pair_column)
+        self.pair_note = plain_label(parent=self)  # how the pairs are formed, or the engine's reason why not
+        self.pair_note.setWordWrap(True)
+        self._evidence: tuple[Any, Any] = (None, None)  # (table, the screening's paired finding)
+        at = form.getWidgetPosition(self.second_group)[0] + 1
+        form.insertRow(at, self.design_label, self.design)
+        form.insertRow(at + 1, self.design_evidence)
+        form.insertRow(at + 2, self.pair_column_label, self.pair_column)
+        form.insertRow(at + 3, self.pair_note)
+
+    def _paired_finding(self) -> Any:
+        """The screening's sign of pairing for the table on show (kept while a paired choice
+        leaves no groups to screen), or None."""
+        session = self._session
+        screening = getattr(session.intake, "screening", None)
+        if screening is not None and (screening.paired is not None or self._evidence[0] is not session.table):
+            self._evidence = (session.table, screening.paired)
+        table, finding = self._evidence
+        return finding if table is session.table else None
+
+    def _refresh_design(self, columns: list[str]) -> None:
+        session, spec = self._session, self._session.spec
+        paired, long = spec.design == "paired", spec.layout == "long"
+        with QSignalBlocker(self.design):
+            self.design.setCurrentIndex(max(0, self.design.findData(spec.design)))
+        taken = {spec.group_column, *spec.value_columns[:1]} if long else set()
+        _fill(self.pair_column, [c for c in columns if c not in taken], spec.pair_column,
+              blank="(choose a column)")
+        for widget in (self.pair_column_label, self.pair_column):
+            widget.setVisible(paired and long)
+        finding = self._paired_finding()
+        screened = session.table is not None and getattr(session.intake, "screening", None) is not None
+        if finding is not None and paired:
+            self.design_evidence.setText(f"Sign of pairs: {visible(finding.text)}")
+        elif finding is not None:
+            self.design_evidence.setText(f"Take care: {visible(finding.text)} If so, choose "
+                                         f"\u201c{DESIGN_WORDS['paired'][0]}\u201d as the design.")
+        elif screened and not paired:
+            self.design_evidence.setText("The file shows no sign of pairs (no ID column with each name once "
+                                         "in each group); only you know how the values were taken.")
+        else:
+            self.design_evidence.setText("")
+        self.design_evidence.setVisible(bool(self.design_evidence.text()))
+        if paired and long and spec.pair_column is None:
+            note = "Choose the column that names each unit, so that its two rows can be matched."
+        elif paired and session.problem and session.table is not None:
+            note = f"These data cannot be paired yet: {visible(session.problem)}"
+        elif paired and not long:
+            note = "Each row is one unit: its values in the two columns make a pair."
+        elif paired:
+            note = (f"Rows with the same {visible(spec.pair_column)} make a pair, one row in each group; "
+                    "what cannot be matched is listed under Your data.")
+        else:
+            note = ""
+        self.pair_note.setText(note)
+        self.pair_note.setVisible(bool(note))
+        self._fit_wrapped()
+
+    def _fit_wrapped(self) -> None:
+        """Keep room for every line of the design's wrapped sentences: the splitter the panel sits
+        in goes by minimum heights, and a wrapping label's own is a single line."""
+        width = self.box.contentsRect().width() - 24
+        for label in (self.design_evidence, self.pair_note):
+            label.setMinimumHeight(label.heightForWidth(width) if label.text() and width > 100 else 0)
+
+    def resizeEvent(self, event: Any) -> None:  # noqa: N802 - Qt's name
+        super().resizeEvent(event)
+        self._fit_wrapped()
+
+    def _proposed_pair_column(self, group: str | None, values: Sequence[str]) -> str | None:
+        """The column to offer first as the pair ID: the one the screening found pairs in, else
+        the first column that looks like it names units, else none (the user chooses)."""
+        table = self._session.table
+        if table is None:
+            return None
+        from engine.io.screening import identifier_candidates
+
+        skip = [c for c in (group, *values) if c]
+        candidates = identifier_candidates(table, skip)
+        finding = self._paired_finding()
+        if finding is not None:
+            named = [c for c in candidates if f"'{c}'" in finding.text]
+            candidates = named + [c for c in candidates if c not in named]
+        return candidates[0] if candidates else None
+
+    def _design_edited(self, _: int) -> None:
+        spec = self._session.spec
+        if self.design.currentData() == "paired":
+            changes: dict[str, Any] = {"design": "paired"}
+            if spec.layout == "long" and spec.pair_column is None:
+                changes["pair_column"] = self._proposed_pair_column(spec.group_column, spec.value_columns[:1])
+            self._choose(**changes)
+        else:
+            self._choose(design="independent", pair_column=None)
+
+    def _pair_column_edited(self, _: int) -> None:
+        self._choose(pair_column=self.pair_column.currentData())
 
     def cleanup(self) -> None:
         """Stop listening to the session."""

@@ -74,7 +74,7 @@ LAYERS: tuple[tuple[str, ...], ...] = (
      "desktop.plain_text"),
     ("desktop.table_model", "desktop.icons", "desktop.plots", "desktop.workers", "desktop.desktop_entry",
      "desktop.panel_parts"),
-    ("desktop.messages", "desktop.export"),
+    ("desktop.messages", "desktop.export", "desktop.paired_plots"),
     ("desktop.margin_entry",),
     # one panel on its own over a file (each panel's __main__)
     ("desktop.panel_alone",),
