@@ -95,7 +95,11 @@ class FindingsPanel(QWidget):
         self.copy_plot_button.clicked.connect(self.copy_plot)
         self.save_plot_button.clicked.connect(self.ask_save_plot)
         self.export_button.clicked.connect(self.ask_export_report)
-        for button in (self.copy_button, self.copy_plot_button, self.save_plot_button, self.export_button):
+        self.plan_button = QPushButton("Plan a follow-up from these data")
+        self.plan_button.setToolTip("How many to measure next time, resampling these two groups.")
+        self.plan_button.clicked.connect(lambda: self._window_saves("plan_follow_up"))
+        for button in (self.copy_button, self.copy_plot_button, self.save_plot_button, self.export_button,
+                       self.plan_button):
             buttons.addWidget(button)
         layout.addLayout(buttons)
         self.status = text_label()
@@ -187,6 +191,7 @@ class FindingsPanel(QWidget):
         self.scroll.setVisible(ready)
         for button in (self.copy_button, self.copy_plot_button, self.save_plot_button, self.export_button):
             button.setEnabled(ready)
+        self.plan_button.setVisible(ready and self.window() is not self)
         if not ready:
             self._shown_key = None
             return

@@ -79,6 +79,14 @@ _DECLARED = (
     Message("reopen_refused", "error", "Could not reopen {name}: {reason} What is on show stays as it was."),
     Message("reopen_crashed", "error",
             "Something unexpected stopped the reopening of {name} ({reason}). What is on show stays as it was."),
+    # planning the next study (said in one line under the plan's inputs)
+    Message("plan_input", "warning", "{reason}"),
+    Message("plan_crashed", "error", "Something unexpected stopped the working out of the plan ({reason})."),
+    Message("plan_stopped", "info", "Stopped. Change an input or press Work it out to start again."),
+    Message("plan_no_pilot", "warning",
+            "There are no groups to resample yet: open a file and compare two groups, or give the SDs."),
+    Message("plan_saved_differs", "warning",
+            "Worked out again, the saved plan gives other figures: saved {saved}; now {now}."),
     # copy and export
     Message("nothing_yet", "info", "There is nothing to copy or save yet: open a file and set up the comparison."),
     Message("copied", "info", "Copied {what} to the clipboard."),
