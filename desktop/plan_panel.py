@@ -462,14 +462,16 @@ class PlanPanel(QWidget):
             if paired:
                 self.sd.setText(_shown(float(np.std(x - y, ddof=1))))
                 self.sd2.setText("")
-                self.difference.setText(_shown(float(np.mean(x - y))) if not question.has_margin else "0")
+                self.difference.setText(_shown(_towards(question.kind, float(np.mean(x - y))))
+                                        if not question.has_margin else "0")
             else:
                 known = spec.statements.known_sd
                 sds = known if known is not None and self._value(self.procedure) == "z" else (first.sd, second.sd)
                 self.sd.setText(_shown(sds[0]))
                 self.sd2.setText("" if _shown(sds[0]) == _shown(sds[1]) or self._value(self.procedure) == "pooled"
                                  else _shown(sds[1]))
-                self.difference.setText(_shown(first.mean - second.mean) if not question.has_margin else "0")
+                self.difference.setText(_shown(_towards(question.kind, first.mean - second.mean))
+                                        if not question.has_margin else "0")
             self.n1.setText(str(int(first.n)))
             self.n2.setText("" if paired or first.n == second.n else str(int(second.n)))
             self.ratio.setText(_shown(second.n / first.n) if not paired and first.n else "1")
@@ -552,6 +554,7 @@ class PlanPanel(QWidget):
             return result, curve
 
         self.progress.setValue(0)
+        self._say(None)
         self.worker.run(job)
 
     def stop(self) -> None:
@@ -693,6 +696,15 @@ class PlanPanel(QWidget):
             self._say("plan_input", reason=problem.message)
             return
         self.restore(plan, member.get("answer"))
+
+
+def _towards(kind: str, difference: float) -> float:
+    """The observed difference turned the way a one-sided question asks (its size kept)."""
+    if kind == "lower":
+        return -abs(difference)
+    if kind == "higher":
+        return abs(difference)
+    return difference
 
 
 def _same_groups(old: Any, new: Any) -> bool:
