@@ -30,6 +30,7 @@ from engine.plan_words import DESIGN_WORDS, FIND_WORDS, QUESTION_WORDS, SHAPE_NA
 from engine.planning import Plan, PlanResult, PowerCurve, plan_study, power_curve
 from engine.question import Margin, Question
 from engine.rounding import format_number
+from engine.text import visible
 
 from . import clipboard
 from .messages import message_text
@@ -173,6 +174,7 @@ class PlanPanel(QWidget):
         self.worker = Worker(self)
         self._filling = False
         self._touched = False
+        self._filled_difference: str | None = None
         self._filled_from: Any = None  # the groups the inputs were last filled in from
         self._saved_answer: dict | None = None
         self._soon = QTimer(self)
@@ -198,6 +200,8 @@ class PlanPanel(QWidget):
         self.hint, self.scroll, layout = hint_and_body(self, _HINT)
         self.hint.setVisible(False)
         layout.addWidget(heading("What the next study should show"))
+        self.groups_line = text_label()
+        layout.addWidget(self.groups_line)
         form = self.form = QFormLayout()
         form.setFieldGrowthPolicy(QFormLayout.FieldGrowthPolicy.ExpandingFieldsGrow)
         self.find = _combo(FIND_WORDS)
@@ -252,7 +256,7 @@ class PlanPanel(QWidget):
             "sd2": ("SD of group 2", self.sd2, "Leave empty when it is the same as group 1's."),
             "n1": ("Size of group 1", self.n1, "Units in group 1 (pairs in a paired design)."),
             "n2": ("Size of group 2", self.n2, "Leave empty to take the ratio times group 1's size."),
-            "ratio": ("Group 2 to group 1", self.ratio,
+            "ratio": ("Size ratio, group 2 to group 1", self.ratio,
                       "How many units group 2 gets for each unit of group 1 (1: equal sizes)."),
             "power": ("Power wanted", self.power,
                       "The chance that the study finds the difference if it is real, such as 0.8."),
@@ -330,6 +334,7 @@ class PlanPanel(QWidget):
         for box in (self.find, self.question, self.worse, self.design, self.procedure, self.spread,
                     self.shape, self.curve_axis):
             box.currentIndexChanged.connect(self._changed)
+        self.question.currentIndexChanged.connect(self._question_changed)
         for edit in (self.margin_low, self.margin_high, self.margin_size, self.difference, self.sd,
                      self.sd2, self.n1, self.n2, self.ratio, self.power, self.level, self.unit):
             edit.textChanged.connect(self._changed)
@@ -370,6 +375,11 @@ class PlanPanel(QWidget):
         self.form.labelForField(self.difference).setText(
             "Expected true difference" if margin else "Difference that matters")
         has_pilot = self.session.analysis is not None
+        if has_pilot:
+            labels = self.session.analysis.groups.labels
+            self.groups_line.setText(f"Group 1 is {visible(labels[0])} and group 2 is {visible(labels[1])}, "
+                                     "as in the comparison; every difference is group 1 minus group 2.")
+        self.groups_line.setVisible(has_pilot)
         model = self.spread.model()
         model.item(self.spread.findData("pilot")).setEnabled(has_pilot)
 
@@ -481,6 +491,7 @@ class PlanPanel(QWidget):
             self._filling = False
         self._touched = False
         self._filled_from = analysis.groups
+        self._filled_difference = self.difference.text()
         self._saved_answer = None
         self._seed = None
         self._show_rows()
@@ -596,6 +607,20 @@ class PlanPanel(QWidget):
                       saved=", ".join(f"{name} {saved[name]:g}" for name in differ),
                       now=", ".join(f"{name} {now[name]:g}" for name in differ))
 
+    def _question_changed(self) -> None:
+        """A difference still as filled in from the comparison follows the question: turned the
+        way a one-sided question asks, 0 expected for a margin question."""
+        analysis = self.session.analysis
+        if analysis is None or self._filling or self.difference.text() != self._filled_difference:
+            return
+        import numpy as np
+
+        kind = self._value(self.question)
+        observed = float(np.mean(analysis.groups.x) - np.mean(analysis.groups.y))
+        text = "0" if kind in ("equivalent", "not_worse") else _shown(_towards(kind, observed))
+        self._filled_difference = text
+        self.difference.setText(text)
+
     def _show(self, result: PlanResult | None, curve: PowerCurve | None) -> None:
         self.result, self.curve = result, curve
         for button in (self.copy_button, self.copy_plot_button, self.save_plot_button):
@@ -606,6 +631,7 @@ class PlanPanel(QWidget):
             self.notes.setText("")
             self.curve_note.setText("")
             self.plot.show_curve(None)
+            self.plot.setVisible(False)
             return
         lines = answer_lines(result)
         self.sentence.setText(lines[0])
@@ -618,6 +644,7 @@ class PlanPanel(QWidget):
             x = result.n1 if curve.over == "n" else result.difference
             answer = (float(x), float(result.power))
         self.plot.show_curve(curve, answer, result.plan.power)
+        self.plot.setVisible(curve is not None)
         note = ""
         if curve is not None and curve.monte_carlo_se is not None:
             note = (f"Each point of the curve: {curve.plan.simulations:,} simulated studies (Monte Carlo "

@@ -153,7 +153,17 @@ def test_the_inputs_are_filled_in_from_the_comparison(qtbot):
     # the observed difference, turned the way the one-sided question asks
     assert first.mean > second.mean
     assert float(panel.difference.text()) == pytest.approx(-(first.mean - second.mean), rel=1e-3)
+    labels = session.analysis.groups.labels
+    assert panel.groups_line.text().startswith(f"Group 1 is {labels[0]} and group 2 is {labels[1]}")
     worked_out(qtbot, panel)
+    # a difference as filled in follows the question: 0 expected under a margin, turned for one side
+    panel._set(panel.question, "equivalent")
+    assert panel.difference.text() == "0"
+    panel._set(panel.question, "higher")
+    assert float(panel.difference.text()) == pytest.approx(first.mean - second.mean, rel=1e-3)
+    panel.difference.setText("7")  # typed by the user: it stays
+    panel._set(panel.question, "equivalent")
+    assert panel.difference.text() == "7"
     panel.cleanup()
 
 
