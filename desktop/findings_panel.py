@@ -28,7 +28,7 @@ from engine.side_by_side import NO_INTERVAL_WHY
 from . import clipboard, export
 from .icons import icon
 from .panel_parts import FlowLayout, heading, hint_and_body, text_label
-from .plots import BoxPlot, IntervalPlot, document_palette, plot_image, save_plot
+from .plots import BoxPlot, IntervalPlot, document_palette, plot_image, save_plot_file
 
 __all__ = ["FindingsPanel", "STATISTIC_TIPS"]
 
@@ -289,13 +289,7 @@ class FindingsPanel(QWidget):
 
         Raises :class:`engine.errors.FileProblem` for another suffix or a failed write.
         """
-        path = Path(path)
-        try:
-            return save_plot(self.plot, path)
-        except ValueError as error:
-            raise FileProblem(f"{str(error)[:1].upper()}{str(error)[1:]} ({path.name}).") from None
-        except OSError as error:
-            raise FileProblem(f"Could not save the plot to {path}: {error.strerror or error}.") from None
+        return save_plot_file(self.plot, path)
 
     def export_report(self, path: str | Path) -> Path:
         """Write the report as HTML or PDF (by the suffix of ``path``) and return the path.

@@ -98,7 +98,8 @@ LATE_PANELS = (
 # widget made from Python for its meta-object (as the destructor of a layout animation of the
 # main window does), and a concurrent entry crashed about one start in twenty.
 WARM_IN_WORKER = ("scipy.stats", "engine.analysis", "engine.advice", "engine.diagnostics", "engine.effects",
-                  "engine.procedures.ranks", "engine.procedures.resampling", "engine.procedures.t", "engine.report")
+                  "engine.procedures.ranks", "engine.procedures.resampling", "engine.procedures.t", "engine.report",
+                  "engine.planning", "engine.plan_member", "engine.plan_words")
 
 SCREEN_SHARE = 0.9  # of the available screen, each way, that the window opens at
 LEFT_SHARE = 0.47   # of the window's width for the data and set-up; the rest for the checks and findings

@@ -35,7 +35,7 @@ from engine.text import visible
 from . import clipboard
 from .messages import message_text
 from .panel_parts import FlowLayout, heading, hint_and_body, text_label
-from .plots import ThemedPlot, plot_image, save_plot
+from .plots import ThemedPlot, plot_image, save_plot_file
 from .workers import Worker
 
 __all__ = ["PlanPanel", "PowerCurvePlot", "procedure_of", "CURVE_SIMULATIONS", "SIMULATED_POINTS"]
@@ -419,7 +419,8 @@ class PlanPanel(QWidget):
         paired = self._value(self.design) == "paired"
         pilot = self.pilot() if self._value(self.spread) == "pilot" else None
         question = self._question()
-        difference = _number(self.difference.text(), "difference") if find != "difference" or question.has_margin else None
+        wanted = find != "difference" or question.has_margin
+        difference = _number(self.difference.text(), "difference") if wanted else None
         if difference is None and find != "difference" and not question.has_margin:
             raise OptionProblem("Give the difference that matters (group 1 minus group 2).")
         sizes = {}
@@ -691,13 +692,7 @@ class PlanPanel(QWidget):
 
     def save_plot(self, path: str | Path) -> Path:
         """Save the curve as PNG or SVG (by the suffix); raises :class:`FileProblem`."""
-        path = Path(path)
-        try:
-            return save_plot(self.plot, path)
-        except ValueError as error:
-            raise FileProblem(f"{str(error)[:1].upper()}{str(error)[1:]} ({path.name}).") from None
-        except OSError as error:
-            raise FileProblem(f"Could not save the curve to {path}: {error.strerror or error}.") from None
+        return save_plot_file(self.plot, path, "curve")
 
     def ask_save_plot(self) -> None:
         path, _ = QFileDialog.getSaveFileName(self, "Save the power curve", "power curve.png",

@@ -7,7 +7,6 @@ import json
 import math
 from pathlib import Path
 
-import numpy as np
 import pytest
 from PySide6.QtGui import QGuiApplication
 from statsmodels.stats.power import NormalIndPower, TTestIndPower, TTestPower
