@@ -15,7 +15,7 @@ from typing import Any, Mapping
 
 import numpy as np
 
-from .errors import OptionProblem, TwofoldError
+from .errors import DataProblem, OptionProblem, TwofoldError
 from .planning import Pilot, Plan, PlanResult
 
 __all__ = ["plan_member", "check_plan_member", "plan_of", "analysis_pilot", "ANSWER_FIGURES"]
@@ -31,6 +31,9 @@ def analysis_pilot(groups: Any, design: str = "independent", source: str = "") -
     paired design the pair differences (group 1 minus group 2)."""
     if design == "paired":
         x, y = np.asarray(groups.x, dtype=float), np.asarray(groups.y, dtype=float)
+        if x.size != y.size:
+            raise DataProblem(f"A paired plan resamples the pair differences, but these groups hold "
+                              f"{x.size} and {y.size} values, not pairs; plan two separate groups or give the SD.")
         return Pilot(x - y, None, tuple(groups.labels), source)
     return Pilot.of_groups(groups, source)
 

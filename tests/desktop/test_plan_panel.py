@@ -179,7 +179,9 @@ def test_resampling_the_comparison_runs_in_a_worker_and_stops(qtbot):
     with qtbot.waitSignal(panel.worker.stopped, timeout=5_000):
         panel.stop_button.click()
     assert not panel.worker.busy and panel.problem.text().startswith("Stopped.")
-    fill(panel, simulations=400)
+    fill(panel, design="paired")  # 32 and 30 values are no pairs: said in one line, no crash
+    assert not panel.problem.isHidden() and "32 and 30 values, not pairs" in panel.problem.text()
+    fill(panel, design="independent", simulations=400)
     result = worked_out(qtbot, panel)
     assert result.method == "simulation" and result.plan.pilot is not None
     assert result.plan.pilot.group1.size == session.analysis.groups.x.size
