@@ -208,6 +208,10 @@ def test_the_plan_is_saved_with_the_analysis_and_comes_back_on_reopening(make_wi
     window = make_window([data])
     qtbot.waitUntil(lambda: window.session.analysis is not None and window.findings_panel is not None
                     and not window.busy, timeout=60_000)
+    window.tabs.setCurrentIndex(0)
+    window.plan_action.trigger()  # Comparison > Plan the next study
+    assert window.tabs.currentWidget() is window.plan_panel
+    window.tabs.setCurrentWidget(window.findings_panel)
     window.findings_panel.plan_button.click()  # "plan a follow-up from these data"
     panel = window.plan_panel
     assert window.tabs.currentWidget() is panel and panel.spread.currentData() == "pilot"
