@@ -228,3 +228,8 @@ def test_the_plan_is_saved_with_the_analysis_and_comes_back_on_reopening(make_wi
     assert back.spread.currentData() == "pilot" and back.find.currentData() == "power" and back.n1.text() == "12"
     assert back.result.power == result.power and back.result.sentence == result.sentence
     assert back.problem.isHidden()
+    # the comparison run again (another confidence level) leaves the restored plan's inputs as they are
+    analysis = again.session.analysis
+    again.session.ask(level=0.9)
+    qtbot.waitUntil(lambda: again.session.analysis is not analysis and not again.busy, timeout=60_000)
+    assert back.find.currentData() == "power" and back.n1.text() == "12" and back.difference.text() == "25"
