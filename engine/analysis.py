@@ -12,8 +12,9 @@ from typing import Any, Callable, Mapping, TypeVar
 
 import numpy as np
 
-from . import advice, diagnostics, effects, margin_advice
-from .errors import TwofoldError, names_its_source
+from . import (advice, diagnostics, effects, margin_advice, paired_advice, paired_diagnostics,
+               paired_effects)
+from .errors import DataProblem, TwofoldError, names_its_source, quoted
 from .procedures import registry
 from .question import Margin, MarginAnswer, Question
 from .procedures.registry import (EXCHANGEABLE_NOTE, INTERVAL_ONLY_NOTE, PROCEDURE_NAMES,
@@ -162,6 +163,38 @@ def _robustness(procedures: Mapping[str, ProcedureResult], level: float, *,
     return Robustness(tuple(rows), agree=len(verdicts) <= 1, level=level)
 
 
+def _pairing(groups: Groups, spec: AnalysisSpec):
+    """The checks of the pairs in a paired design (``engine.paired_diagnostics.PairedChecks``),
+    None for independent groups; groups of different sizes cannot be pairs."""
+    if spec.design != "paired":
+        return None
+    (first, second), (n1, n2) = groups.labels, groups.n
+    if n1 != n2:
+        raise DataProblem(f"A paired design needs one value of each group per pair, but "
+                          f"'{quoted(first)}' has {n1:,} values and '{quoted(second)}' has {n2:,}.")
+    if n1 < 2:
+        raise DataProblem(f"A paired design needs at least 2 pairs; there {'is' if n1 == 1 else 'are'} "
+                          f"{n1}.")
+    if not np.any(groups.x != groups.y):
+        raise DataProblem("No pair shows any difference (both values of every pair are equal), "
+                          "so there is nothing for the paired procedures to test.")
+    with np.errstate(all="ignore"):
+        return paired_diagnostics.check_pairs(groups.x, groups.y, labels=groups.labels)
+
+
+def _paired_sizes(groups: Groups, question: Question) -> tuple[dict[str, EffectSize], dict[str, str]]:
+    """d_z and d_av of the pairs, and the reason for each left out."""
+    return paired_effects.paired_effect_sizes(groups.x, groups.y, alternative=question.alternative,
+                                              confidence_level=question.level)
+
+
+def _paired_advice(pairing, groups: Groups, spec: AnalysisSpec):
+    statements = spec.statements
+    return paired_advice.recommend_paired(
+        pairing, groups, ordinal=statements.ordinal, zero_rule=spec.zero_rule,
+        known_sd=statements.known_sd, equal_spread_known=statements.equal_spread_known)
+
+
 def _part(name: str, run: Callable[[], T], notes: list[Finding]) -> T | None:
     """``run()``, or None with a note that says why when it fails in a way nobody foresaw.
 
@@ -190,20 +223,31 @@ def analyze(
     *,
     screening: Any = None,
     source: Mapping[str, Any] | None = None,
+    pairs: Any = None,
     progress: Progress | Task | None = None,
     cancelled: CancelCheck | None = None,
+    rng: np.random.Generator | None = None,
 ) -> Analysis:
     """Run every applicable procedure, the checks, the effect sizes and the recommendation.
 
     ``progress(fraction, what)`` is called as the work advances; ``cancelled()`` is polled and a
     True answer raises :class:`engine.errors.Cancelled` (``progress`` may also be an
     :class:`engine.tasks.Task`). A spec without a seed gets a fresh one, recorded in
-    ``Analysis.spec``: every analysis can be run again to the same numbers.
+    ``Analysis.spec``: every analysis can be run again to the same numbers. ``rng``, if given,
+    is a generator of the seed's own stream (``engine.draw_log`` hands out such generators);
+    by default one is made from the seed.
+
+    With ``spec.design == "paired"`` the groups are matched pairs (x[i] and y[i] one unit;
+    groups of different sizes raise :class:`engine.errors.DataProblem`): the paired procedures
+    run on the differences, ``Analysis.paired`` holds the checks of the pairs, the effect sizes
+    are d_z and d_av and the suggestion is the paired advice's. ``pairs`` is the pairing of the
+    file (``engine.io.pairs.PairedIntake``) when the pairs came from one.
     """
     spec = spec.with_seed()
     question, statements = spec.question, spec.statements
     x, y = groups.x, groups.y
     task = Task.of(progress, cancelled)
+    pairing = _pairing(groups, spec)
 
     notes: list[Finding] = []
     # Each group is sorted once; the summaries, checks, rank test and effect sizes share the copies.
@@ -224,7 +268,9 @@ def analyze(
             f"The permutation and bootstrap procedures were left out: with {x.size + y.size:,} values "
             "the large-sample procedures are accurate, and resampling would take minutes."))
     margin = margin_in_units(question, groups)
-    context = registry.Context(rng=np.random.default_rng(spec.seed), margin=margin, **ordered)
+    rng = np.random.default_rng(spec.seed) if rng is None else rng
+    context = registry.Context(rng=rng, margin=margin, **ordered,
+                               differences=None if pairing is None else pairing.differences)
     procedures: dict[str, ProcedureResult] = {}
     share = (1.0 - _CHECKS_SHARE - _EFFECTS_SHARE) / max(sum(r.work for r in records), 1.0)
     for record in records:
@@ -237,8 +283,8 @@ def analyze(
     common = dict(alternative=question.alternative, confidence_level=question.level)
     rank_test = procedures.get("mann_whitney")
     found = _part("effect sizes", lambda: effects.effect_sizes_with_reasons(
-        x, y, **common, **ordered, u1=None if rank_test is None else rank_test.details["U1"]),
-        notes)
+        x, y, **common, **ordered, u1=None if rank_test is None else rank_test.details["U1"])
+        if pairing is None else _paired_sizes(groups, question), notes)
     sizes, missing = found if found is not None else ({}, {})
     for reason in missing.values():
         notes.append(Finding("effect_size_left_out", "note", reason))
@@ -246,7 +292,7 @@ def analyze(
         recommendation = advice.recommend(
             checks, groups, equal_spread_known=statements.equal_spread_known,
             ordinal=statements.ordinal, known_sd=statements.known_sd,
-        )
+        ) if pairing is None else _paired_advice(pairing, groups, spec)
     if question.has_margin:
         recommendation = margin_advice.for_margin(
             recommendation, [r for r in records if r.key in procedures], spec)
@@ -265,4 +311,6 @@ def analyze(
         source=source or {},
         notes=tuple(notes),
         margin=margin,
+        pairs=None if pairing is None else pairs,
+        paired=pairing,
     )

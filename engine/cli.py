@@ -15,7 +15,7 @@ import sys
 from pathlib import Path
 from typing import Sequence, TextIO
 
-from . import plan_cli
+from . import outcomes_cli, plan_cli, summary_cli
 from .errors import TwofoldError, quoted
 from .text import visible
 from .wording import plural
@@ -72,6 +72,7 @@ def build_parser() -> argparse.ArgumentParser:
                          help="a .csv, .tsv, .txt, .xlsx, .xls or .ods file; with --spec, the data "
                               "file's new place when it has moved")
     _analysis_flags(analyze)
+    summary_cli.add_flags(analyze), outcomes_cli.add_flags(analyze)
     analyze.add_argument("--json", action="store_true", help="print one JSON object instead of a summary")
     analyze.add_argument("--save", type=Path, metavar="OUT.twofold",
                          help="also save the analysis (its choices, seed and numbers) to reopen and check later")
@@ -164,6 +165,9 @@ def _analyze(args, out: TextIO) -> None:
     from .jsonout import analysis_document
     from .report import render
 
+    if summary_cli.wanted(args) or outcomes_cli.wanted(args):
+        return (summary_cli.run(args, out, DEFAULTS) if summary_cli.wanted(args)
+                else outcomes_cli.run(args, out, spec_from_arguments(args)))
     prepared, reopened = _prepared(args, args.path, args.spec,
                                    f"python -m engine analyze NEW_PLACE --spec {args.spec}")
     analysis = prepared.analysis

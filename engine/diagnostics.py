@@ -27,6 +27,7 @@ __all__ = [
     "SpreadCheck",
     "Diagnostics",
     "diagnose",
+    "sample_shape",
     "skewness_se",
     "kurtosis_se",
     "is_clearly_skewed",
@@ -487,6 +488,13 @@ def _shape(label: str, values: np.ndarray, index: int, ordered: np.ndarray | Non
     findings.append(_outlier_finding(shape, name, index))
     findings.append(_tie_finding(shape, name, index))
     return shape, findings, ordered, median
+
+
+def sample_shape(label: str, values: np.ndarray, *, ordered: np.ndarray | None = None) -> GroupShape:
+    """The shape checks of one sample, as :func:`diagnose` runs them on each group: Shapiro-Wilk,
+    skewness, tails, outliers at Tukey's fences with the extreme-value test, ties and the Q-Q
+    coordinates (``ordered``: the values sorted, when the caller has them)."""
+    return _shape(label, np.asarray(values, dtype=float), 0, ordered)[0]
 
 
 def _lower(name: str) -> str:

@@ -19,7 +19,8 @@ from .errors import DataProblem, OptionProblem
 from .procedures._checks import check_alternative, check_confidence_level, check_samples
 from .procedures.probability_interval import newcombe_limits
 from .procedures.ranks import pair_counts
-from .procedures.t import Moments, moments
+from .group_stats import GroupStats
+from .procedures.t import Moments, moments, two_groups
 from .noncentral_t import BY_INTEGRAL as _BY_INTEGRAL
 from .noncentral_t import limits_or_problem as _limits
 from .results import EffectSize, Interval
@@ -49,6 +50,16 @@ class _Pair:
         if u1 is not None:
             self.__dict__["u1"] = float(u1)  # given by the caller: the cached value
 
+    @classmethod
+    def of_stats(cls, first: GroupStats, second: GroupStats) -> "_Pair":
+        """Two groups known by their summary statistics: the mean-based sizes only."""
+        m, n1, n2 = two_groups(first, second)
+        pair = cls.__new__(cls)
+        pair.x = pair.y = pair.sorted_x = pair.sorted_y = None
+        pair.n1, pair.n2 = n1, n2
+        pair.__dict__["moments"] = m
+        return pair
+
     @cached_property
     def moments(self) -> Moments:
         """Means, difference and SDs, scaled so that no square overflows or underflows."""
@@ -56,11 +67,17 @@ class _Pair:
 
     @cached_property
     def u1(self) -> float:
+        if self.x is None:
+            raise DataProblem("The rank-based effect sizes need the values themselves, not only "
+                              "their means and standard deviations.")
         return mann_whitney_u1(self.x, self.y, sorted_x=self.sorted_x, sorted_y=self.sorted_y)
 
 
 def _prepare(x: Any, y: Any, confidence_level: Any, alternative: Any, sorted_x=None, sorted_y=None,
              u1=None):
+    if isinstance(x, GroupStats) or isinstance(y, GroupStats):
+        return (_Pair.of_stats(x, y), check_confidence_level(confidence_level),
+                check_alternative(alternative))
     x, y = check_samples(x, y)
     if u1 is not None and not (isinstance(u1, Real) and 0 <= u1 <= x.size * y.size):
         raise OptionProblem(f"U of group 1 must lie between 0 and {x.size * y.size}, not {u1!r}.")
@@ -138,8 +155,9 @@ def cohen_d(x: Any, y: Any, *, confidence_level: float = 0.95,
 
     Parameters
     ----------
-    x, y : array-like of float
-        Group 1 and group 2, at least two finite values each.
+    x, y : array-like of float, or two GroupStats
+        Group 1 and group 2, at least two finite values each, or each group's summary
+        statistics (:class:`engine.group_stats.GroupStats`).
     confidence_level : float
         Coverage of the interval, strictly between 0 and 1.
     alternative : {"two-sided", "less", "greater"}
@@ -182,8 +200,9 @@ def hedges_g(x: Any, y: Any, *, confidence_level: float = 0.95,
 
     Parameters
     ----------
-    x, y : array-like of float
-        Group 1 and group 2, at least two finite values each.
+    x, y : array-like of float, or two GroupStats
+        Group 1 and group 2, at least two finite values each, or each group's summary
+        statistics (:class:`engine.group_stats.GroupStats`).
     confidence_level : float
         Coverage of the interval, strictly between 0 and 1.
     alternative : {"two-sided", "less", "greater"}
@@ -221,8 +240,9 @@ def glass_delta(x: Any, y: Any, *, confidence_level: float = 0.95,
 
     Parameters
     ----------
-    x, y : array-like of float
-        Group 1 and group 2 (the reference group), at least two finite values each.
+    x, y : array-like of float, or two GroupStats
+        Group 1 and group 2 (the reference group), at least two finite values each, or each
+        group's summary statistics (:class:`engine.group_stats.GroupStats`).
     confidence_level : float
         Coverage of the interval, strictly between 0 and 1.
     alternative : {"two-sided", "less", "greater"}

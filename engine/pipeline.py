@@ -117,31 +117,65 @@ def set_aside_cells(table, keys: Mapping[tuple[int, str], str]) -> tuple[SetAsid
 
 
 def form_groups(table, spec: AnalysisSpec):
-    """The two groups and their screening report, as the (completed) spec says."""
+    """The two groups and their screening report, as the (completed) spec says.
+
+    In a paired design the groups are the matched pairs: by the pair ID column in the long
+    layout (``spec.pair_column``, each ID once in each group), row by row in the wide layout;
+    the intake's ``pairs`` says what was matched and what was left out. Data that cannot be
+    paired raise an error; a paired spec never falls back to independent groups.
+    """
     from .io import make_groups
 
     long = spec.layout == "long"
-    return make_groups(table, values=spec.values_argument, group=spec.group_column if long else None,
-                       pick=spec.groups if long else None,
-                       set_aside=set_aside_keys(table, spec.set_aside) or None)
+    if spec.design == "paired" and long and spec.pair_column is None:
+        raise ColumnProblem(
+            f"{table.path.name}: a paired design in the long layout needs the column of pair IDs "
+            "(the unit each row belongs to); name it, or give two value columns with one row "
+            "per unit.")
+    set_aside = set_aside_keys(table, spec.set_aside) or None
+    intake = make_groups(table, values=spec.values_argument, group=spec.group_column if long else None,
+                         pick=spec.groups if long else None, set_aside=set_aside)
+    if spec.design != "paired":
+        return intake
+    return _paired(table, spec, intake, set_aside)
+
+
+def _paired(table, spec: AnalysisSpec, intake, set_aside):
+    """The intake of matched pairs from the same columns as ``intake``'s groups."""
+    from .io.pairs import paired_intake, pairs_by_id, pairs_by_row
+
+    if spec.layout == "long":
+        pairs = pairs_by_id(table, values=spec.values_argument, group=spec.group_column,
+                            pair_id=spec.pair_column, pick=tuple(intake.groups.labels),
+                            set_aside=set_aside)
+        how = f"by the pair IDs in '{quoted(spec.pair_column)}'"
+    else:
+        pairs = pairs_by_row(table, columns=spec.value_columns, set_aside=set_aside)
+        how = "row by row"
+    return paired_intake(intake, pairs, file_name=table.path.name, how=how)
 
 
 def source_mapping(spec: AnalysisSpec) -> dict[str, Any]:
     """The ``source`` an analysis carries: the file's name, the sheet and the columns used."""
     columns = list(spec.value_columns) if spec.layout == "wide" else [spec.group_column, *spec.value_columns]
-    return {"file": Path(spec.source.path).name if spec.source else None,
-            "sheet": spec.source.sheet if spec.source else None,
-            "columns": columns, "group_column": spec.group_column,
-            "value_columns": list(spec.value_columns)}
+    source = {"file": Path(spec.source.path).name if spec.source else None,
+              "sheet": spec.source.sheet if spec.source else None,
+              "columns": columns, "group_column": spec.group_column,
+              "value_columns": list(spec.value_columns)}
+    if spec.pair_column is not None:
+        source.update(columns=columns + [spec.pair_column], pair_column=spec.pair_column)
+    return source
 
 
 def run(intake, spec: AnalysisSpec, *, progress: Progress | None = None,
-        cancelled: CancelCheck | None = None):
-    """The analysis of the groups ``intake`` holds, as the spec asks."""
+        cancelled: CancelCheck | None = None, rng=None):
+    """The analysis of the groups ``intake`` holds, as the spec asks (``rng``: see
+    :func:`engine.analysis.analyze`)."""
     from .analysis import analyze
 
     return analyze(intake.groups, spec, screening=intake.screening, source=source_mapping(spec),
-                   progress=progress, cancelled=cancelled)
+                   pairs=getattr(intake, "pairs", None), progress=progress, cancelled=cancelled,
+                   rng=rng)
 
 
 def from_file(path: str | Path | None = None, spec: AnalysisSpec = AnalysisSpec(), *,

@@ -29,7 +29,7 @@ LAYERS: tuple[tuple[str, ...], ...] = (
     # the noncentral t limits
     ("engine.stats_basics", "engine.root_finding", "engine.shapiro_wilk", "engine.noncentral_t"),
     # statistics helpers of one group (sorted values, the common scale, SD), also used by io
-    ("engine.summary",),
+    ("engine.summary", "engine.group_stats", "engine.multiplicity", "engine.draw_log"),
     # from a file to a table and two groups; the package's front last, so io's own modules
     # never import through it
     ("engine.io.*",),
@@ -49,18 +49,26 @@ LAYERS: tuple[tuple[str, ...], ...] = (
     ("engine.plan_words", "engine.plan_member"),
     # what the data look like, and effect sizes built on the procedures
     ("engine.diagnostics", "engine.effects", "engine.paired_effects"),
-    # the suggested procedure from the checks
+    # the checks of matched pairs, built on the checks of one sample
+    ("engine.paired_diagnostics",),
+    # the suggested procedure from the checks (for a margin question, carried over to its
+    # margin record); for matched pairs, on the same types
     ("engine.advice", "engine.margin_advice"),
+    ("engine.paired_advice",),
     # every part of one comparison together
     ("engine.analysis",),
+    # the comparison of two groups known by their summary statistics
+    ("engine.summary_analysis",),
     # an analysis in words, tables and JSON
     ("engine.side_by_side", "engine.report", "engine.report.*", "engine.jsonout"),
     # the path from a file to an analysis, and the window's session over it
     ("engine.pipeline", "engine.saved", "engine.session"),
+    # the same two groups compared on several measurements
+    ("engine.outcomes",),
     # where the command may write a report
     ("engine.audit",),
-    # the headless command (planning's part below the rest)
-    ("engine.plan_cli",),
+    # the headless command (planning's, summaries' and outcomes' parts below the rest)
+    ("engine.plan_cli", "engine.summary_cli", "engine.outcomes_cli"),
     ("engine.cli",),
     ("engine.__main__",),
     # desktop, above all of engine: parts that know no panel

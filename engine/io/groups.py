@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 from dataclasses import dataclass, field
-from typing import Mapping, Sequence
+from typing import Any, Mapping, Sequence
 
 import numpy as np
 import pandas as pd
@@ -32,11 +32,16 @@ _SHOWN = 5  # examples quoted in a finding
 
 @dataclass(frozen=True, eq=False)
 class Intake:
-    """Two clean groups, the screening report, and the frame row of each value used."""
+    """Two clean groups, the screening report, and the frame row of each value used.
+
+    In a paired design the groups are the matched pairs (``groups.x[i]`` and ``groups.y[i]`` one
+    unit) and ``pairs`` is the pairing (``engine.io.pairs.PairedIntake``); None otherwise.
+    """
 
     groups: Groups
     screening: ScreeningReport
     rows: tuple[np.ndarray, np.ndarray]
+    pairs: Any = None
 
 
 @dataclass

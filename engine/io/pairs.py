@@ -10,19 +10,20 @@ never matched to one of its rows at random.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from typing import Mapping
 
 import numpy as np
 
 from ..errors import ColumnProblem, DataProblem, OptionProblem, about_file, listing, quoted
-from ..results import frozen_mapping, readonly_array
+from ..results import Finding, Groups, frozen_mapping, readonly_array
 from ..wording import plural
 from .cells import cell_text, is_missing_marker
-from .groups import _check_columns, _check_measurements
+from .groups import Intake, _check_columns, _check_measurements
 from .table import Table
 
-__all__ = ["PAIR_PROBLEMS", "PairProblem", "PairedIntake", "pairs_by_id", "pairs_by_row"]
+__all__ = ["PAIR_PROBLEMS", "PairProblem", "PairedIntake", "pairs_by_id", "pairs_by_row",
+           "paired_intake"]
 
 # The kinds of item the pairing leaves out, in the words a count of them uses.
 PAIR_PROBLEMS: Mapping[str, str] = frozen_mapping({
@@ -31,8 +32,19 @@ PAIR_PROBLEMS: Mapping[str, str] = frozen_mapping({
     "no_id": "row without an ID",
     "partner_missing": "pair with one value blank",
     "non_numeric": "pair with a value that is not a number",
+    "set_aside": "pair with a value set aside by hand",
+})
+# The same kinds counted in the plural ("2 IDs in one group only").
+_PROBLEMS_PLURAL: Mapping[str, str] = frozen_mapping({
+    "unmatched": "IDs in one group only",
+    "repeated": "IDs more than once in a group",
+    "no_id": "rows without an ID",
+    "partner_missing": "pairs with one value blank",
+    "non_numeric": "pairs with a value that is not a number",
+    "set_aside": "pairs with a value set aside by hand",
 })
 _SHOWN_ROWS = 5
+_SHOWN_PROBLEMS = 5  # items quoted in full in the screening, per kind
 
 
 @dataclass(frozen=True)
@@ -52,7 +64,8 @@ class PairedIntake:
 
     ``x`` and ``y`` hold group 1's and group 2's value of each pair, ``differences`` is x - y,
     ``pair_ids`` names each pair (the ID, or the file row in the wide layout) and ``file_rows``
-    gives the file row of each value. ``counts`` has the number of items of each kind left out.
+    gives the file row of each value (``frame_rows``: its row in the table's frame).
+    ``counts`` has the number of items of each kind left out.
     """
 
     labels: tuple[str, str]
@@ -63,10 +76,12 @@ class PairedIntake:
     file_rows: tuple[tuple[int, ...], tuple[int, ...]]
     problems: tuple[PairProblem, ...]
     counts: Mapping[str, int]
+    frame_rows: tuple[np.ndarray, np.ndarray] = (np.empty(0, np.intp), np.empty(0, np.intp))
 
     def __post_init__(self) -> None:
         for name in ("x", "y", "differences"):
             object.__setattr__(self, name, readonly_array(getattr(self, name)))
+        object.__setattr__(self, "frame_rows", tuple(_readonly_rows(rows) for rows in self.frame_rows))
         object.__setattr__(self, "problems", tuple(self.problems))
         object.__setattr__(self, "counts", frozen_mapping(
             {kind: sum(p.kind == kind for p in self.problems) for kind in PAIR_PROBLEMS}))
@@ -74,6 +89,13 @@ class PairedIntake:
     @property
     def n_pairs(self) -> int:
         return int(self.differences.size)
+
+
+def _readonly_rows(rows) -> np.ndarray:
+    """Frame rows as a read-only integer array of their own."""
+    array = np.array(rows, dtype=np.intp, copy=True)
+    array.setflags(write=False)
+    return array
 
 
 def _rows(rows) -> str:
@@ -117,6 +139,27 @@ def _value_problem(table: Table, columns: tuple[str, str], names: tuple[str, str
                        f"blank; the pair was left out.")
 
 
+def _aside_problem(table: Table, columns: tuple[str, str], names: tuple[str, str],
+                   frame_rows: tuple[int, int], pair_id: str | None,
+                   set_aside: Mapping[tuple[int, str], str]) -> PairProblem | None:
+    """The problem of a pair one of whose value cells the user set aside, else None."""
+    aside = [(name, column, row) for name, column, row in zip(names, columns, frame_rows)
+             if (row, column) in set_aside]
+    if not aside:
+        return None
+    file_rows = tuple(sorted({table.file_row(r) for r in frame_rows}))
+    who = f"Pair '{quoted(pair_id)}' ({_rows(file_rows)})" if pair_id is not None else \
+        f"The pair in {_rows(file_rows)}"
+    said = []
+    for name, column, row in aside:
+        why = set_aside[(row, column)]
+        said.append(f"the '{quoted(name)}' value '{quoted(cell_text(table.frame[column].iat[row]))}'"
+                     + (f" ({quoted(why)})" if why else ""))
+    return PairProblem("set_aside", pair_id, file_rows,
+                       f"{who}: {' and '.join(said)} {'was' if len(said) == 1 else 'were'} set "
+                       "aside by hand; the pair was left out.")
+
+
 def _finish(table: Table, labels: tuple[str, str], columns: tuple[str, str], ids: list[str],
             frame_rows: list[tuple[int, int]], problems: list[PairProblem],
             none_found: str) -> PairedIntake:
@@ -130,14 +173,16 @@ def _finish(table: Table, labels: tuple[str, str], columns: tuple[str, str], ids
     return PairedIntake(labels=labels, pair_ids=tuple(ids), x=x, y=y, differences=d,
                         file_rows=(tuple(table.file_row(a) for a, _ in frame_rows),
                                    tuple(table.file_row(b) for _, b in frame_rows)),
-                        problems=tuple(problems), counts={})
+                        problems=tuple(problems), counts={}, frame_rows=(rows[:, 0], rows[:, 1]))
 
 
-def pairs_by_row(table: Table, *, columns: tuple[str, str]) -> PairedIntake:
+def pairs_by_row(table: Table, *, columns: tuple[str, str],
+                 set_aside: Mapping[tuple[int, str], str] | None = None) -> PairedIntake:
     """Pairs from two columns of a wide table, one row per unit (group 1 is ``columns[0]``).
 
     A row with both cells blank is skipped without a word (blank rows below the data); a row
-    with one value blank or not a number is left out and listed.
+    with one value blank or not a number, or with a cell in ``set_aside`` ((frame row, column)
+    -> the reason, as :func:`engine.io.make_groups` takes it), is left out and listed.
     """
     name = getattr(getattr(table, "path", None), "name", "the table")
     with about_file(name, getattr(table, "sheet", None)):
@@ -149,12 +194,19 @@ def pairs_by_row(table: Table, *, columns: tuple[str, str]) -> PairedIntake:
         _check_columns(table, columns)
         for column in columns:
             _check_measurements(table, column)
+        set_aside = set_aside or {}
         ok = np.isfinite(table.numbers(columns[0])) & np.isfinite(table.numbers(columns[1]))
         problems = []
-        for row in np.flatnonzero(~ok).tolist():
+        aside = sorted({row for row, column in set_aside if column in columns and 0 <= row < ok.size})
+        for row in aside:
+            problems.append(_aside_problem(table, columns, columns, (row, row), None, set_aside))
+        listed = ok.copy()
+        listed[aside] = True  # a row set aside is listed as such, whatever its cells hold
+        for row in np.flatnonzero(~listed).tolist():
             states = [_cell_state(table, c, row)[0] for c in columns]
             if states != ["missing", "missing"]:
                 problems.append(_value_problem(table, columns, columns, (row, row), None))
+        ok[aside] = False
         good = np.flatnonzero(ok).tolist()
         ids = [f"row {table.file_row(row)}" for row in good]
         frame_rows = [(row, row) for row in good]
@@ -164,7 +216,8 @@ def pairs_by_row(table: Table, *, columns: tuple[str, str]) -> PairedIntake:
 
 
 def pairs_by_id(table: Table, *, values: str, group: str, pair_id: str,
-                pick: tuple[str, str] | None = None) -> PairedIntake:
+                pick: tuple[str, str] | None = None,
+                set_aside: Mapping[tuple[int, str], str] | None = None) -> PairedIntake:
     """Pairs from a long table: ``values`` holds the measurements, ``group`` the group labels and
     ``pair_id`` the unit each row belongs to; each ID should appear once in each group.
 
@@ -172,7 +225,8 @@ def pairs_by_id(table: Table, *, values: str, group: str, pair_id: str,
     labels, and group 1 is the first met in the file. IDs and labels are compared with spaces
     around them trimmed. Left out, each with its file rows: IDs in one group only, IDs that
     appear more than once in a group (all their rows), rows without an ID (of the two groups),
-    and pairs with a value blank or not a number.
+    pairs with a value blank or not a number, and pairs with a value cell in ``set_aside``
+    ((frame row, column) -> the reason, as :func:`engine.io.make_groups` takes it).
     """
     name = getattr(getattr(table, "path", None), "name", "the table")
     with about_file(name, getattr(table, "sheet", None)):
@@ -201,10 +255,11 @@ def pairs_by_id(table: Table, *, values: str, group: str, pair_id: str,
         if pick[0] == pick[1]:
             raise OptionProblem(f"The two groups picked are the same ('{quoted(pick[0])}').")
         return _pair_long(table, name, values, group, pair_id, pick,
-                          [np.flatnonzero(codes == labels.index(label)) for label in pick])
+                          [np.flatnonzero(codes == labels.index(label)) for label in pick],
+                          set_aside or {})
 
 
-def _pair_long(table, name, values, group, pair_id, pick, rows_of) -> PairedIntake:
+def _pair_long(table, name, values, group, pair_id, pick, rows_of, set_aside) -> PairedIntake:
     id_cells = table.frame[pair_id].to_numpy(dtype=object)
     usable = np.isfinite(table.numbers(values))
     problems: list[PairProblem] = []
@@ -246,6 +301,10 @@ def _pair_long(table, name, values, group, pair_id, pick, rows_of) -> PairedInta
     ids, frame_rows = [], []
     for key in matched:
         rows = (first[key][0], second[key][0])
+        aside = _aside_problem(table, (values, values), pick, rows, key, set_aside)
+        if aside is not None:
+            problems.append(aside)
+            continue
         if not (usable[rows[0]] and usable[rows[1]]):
             problems.append(_value_problem(table, (values, values), pick, rows, key))
             continue
@@ -255,3 +314,43 @@ def _pair_long(table, name, values, group, pair_id, pick, rows_of) -> PairedInta
                    f"No pair ID in '{quoted(pair_id)}' of {name} has a number in both "
                    f"'{quoted(pick[0])}' and '{quoted(pick[1])}' (each ID once in each group), "
                    f"so there are no pairs.")
+
+
+def _problem_finding(kind: str, problems: list[PairProblem]) -> Finding:
+    """One finding for every item of one kind left out: how many, and the first few in full."""
+    count = len(problems)
+    shown = " ".join(p.text for p in problems[:_SHOWN_PROBLEMS])
+    more = (f" And {plural(count - _SHOWN_PROBLEMS, 'more')} like "
+            f"{'it' if count - _SHOWN_PROBLEMS == 1 else 'them'}." if count > _SHOWN_PROBLEMS else "")
+    severity = "warning" if kind in ("repeated", "unmatched") else "note"
+    return Finding(f"pairs_{kind}", severity,
+                   f"{plural(count, PAIR_PROBLEMS[kind], _PROBLEMS_PLURAL[kind])}: {shown}{more}")
+
+
+def paired_intake(base: Intake, pairs: PairedIntake, *, file_name: str, how: str) -> Intake:
+    """The intake of a paired design: the matched pairs as the two groups (``x[i]`` and ``y[i]``
+    one unit), and the screening of the cells (``base``, from :func:`engine.io.make_groups` on
+    the same columns) with what the pairing did in place of its own summary.
+
+    ``how`` says how the pairs were matched ("by the IDs in 'unit'", "row by row"). The
+    screening's findings start with the number of pairs formed and one finding for each kind of
+    item left out (IDs in one group only, IDs repeated within a group, rows without an ID, pairs
+    with a value blank, not a number or set aside), each item with its file rows and what was
+    done with it. The sign that independent groups look paired is dropped: the design is paired.
+    """
+    screening = base.screening
+    n = pairs.n_pairs
+    left_out = [(kind, [p for p in pairs.problems if p.kind == kind]) for kind in PAIR_PROBLEMS]
+    left_out = [(kind, items) for kind, items in left_out if items]
+    counts = ", ".join(plural(len(items), PAIR_PROBLEMS[kind], _PROBLEMS_PLURAL[kind])
+                       for kind, items in left_out)
+    summary = Finding(
+        "screening_summary", "info",
+        f"{plural(screening.rows_read, 'row')} read from {file_name}; {plural(n, 'pair')} of "
+        f"'{quoted(pairs.labels[0])}' and '{quoted(pairs.labels[1])}' formed {how}"
+        + (f"; left out: {counts}." if left_out else "; nothing left out of the pairs."))
+    kept = [f for f in screening.findings if f.key not in ("screening_summary", "paired")]
+    findings = (summary, *(_problem_finding(kind, items) for kind, items in left_out), *kept)
+    return Intake(Groups(pairs.labels, pairs.x, pairs.y),
+                  replace(screening, n_used=(n, n), paired=None, findings=findings),
+                  pairs.frame_rows, pairs=pairs)

@@ -3,7 +3,7 @@
 Each function takes a batch as arrays, one study per row (``x`` of shape (B, n1), ``y`` of
 shape (B, n2); ``d`` of shape (B, n) for pair differences), and returns each study's p-value
 by the very formulas of :mod:`engine.procedures` (``welch_t``, ``pooled_t``, ``z_test``,
-``paired_t``, ``equivalence_t``, ``noninferiority_t``, ``paired_equivalence``, ``mann_whitney``,
+``paired_t``, ``equivalence_t``, ``noninferiority_t``, ``paired_margin.paired_equivalence``, ``mann_whitney``,
 ``signed_rank_test``), row by row in numpy instead of one study per call
 (``tests/engine/test_plan_batch.py`` checks them against those functions).
 

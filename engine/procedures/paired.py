@@ -19,6 +19,7 @@ from ..errors import DataProblem
 from ..results import Interval, ProcedureResult, frozen_mapping
 from ..stats_basics import (StudentT, centred_sd, common_scale, critical_value, quantiles,
                            statistic_p, tail_alpha)
+from ..tasks import CancelCheck, Progress, Task
 from ._checks import check_alternative, check_confidence_level, check_sample
 from .resampling import BOOTSTRAP_MIN_N, _check_resamples, _check_rng
 
@@ -115,18 +116,23 @@ def paired_t(x: Any, y: Any, *, alternative: str = "two-sided",
 
 def paired_bootstrap_mean(x: Any, y: Any, *, alternative: str = "two-sided",
                           confidence_level: float = 0.95, n_resamples: int = 10_000,
-                          rng: np.random.Generator | None = None) -> ProcedureResult:
+                          rng: np.random.Generator | None = None,
+                          progress: Progress | Task | None = None,
+                          cancelled: CancelCheck | None = None) -> ProcedureResult:
     """Percentile bootstrap interval of the mean pair difference.
 
     Each resample draws n of the n differences with replacement (the pairs stay whole); the
     interval runs between the alpha and 1 - alpha quantiles of the resampled means (alpha is
     half of 1 - level for two sides), quantiles by linear interpolation as numpy's default.
     ``rng`` is a ``numpy.random.Generator`` (seed it to repeat a result). No p-value.
+    ``progress(fraction, what)`` is told after each batch and ``cancelled()`` asked before it
+    (``progress`` may be an :class:`engine.tasks.Task`).
     """
     alternative = check_alternative(alternative)
     level = check_confidence_level(confidence_level)
     n_resamples = _check_resamples(n_resamples)
     rng = _check_rng(rng)
+    task = Task.of(progress, cancelled)
     d = paired_differences(x, y)
     n = d.size
     centre = corrected_mean(d)
@@ -135,9 +141,11 @@ def paired_bootstrap_mean(x: Any, y: Any, *, alternative: str = "two-sided",
     replicates = np.empty(n_resamples)
     rows = max(1, _BATCH_INDICES // n)
     for start in range(0, n_resamples, rows):
+        task.check()
         stop = min(start + rows, n_resamples)
         index = rng.integers(0, n, (stop - start, n))
         replicates[start:stop] = centred[index].mean(axis=1)
+        task.report(stop / n_resamples, "bootstrap of the mean pair difference")
     replicates = (replicates + centre / scale) * scale  # within the range of the differences
     tail = tail_alpha(level, alternative)
     low, high = quantiles(replicates, (tail, 1 - tail))

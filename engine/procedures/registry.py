@@ -22,9 +22,9 @@ from . import brunner_munzel, ranks, resampling, t
 from .record import (DESIGNS, ESTIMATE_KINDS, EXCHANGEABLE_NOTE, FAMILIES, INPUTS,
                      INTERVAL_ONLY_NOTE, RESAMPLING_MAX_VALUES, Context, Procedure,
                      question_arguments)
-from . import margin_records, paired_records
+from . import margin_records, paired_records, summary_records
 
-__all__ = ["Procedure", "Context", "RECORDS", "PROCEDURE_NAMES", "record", "find", "applicable",
+__all__ = ["Procedure", "Context", "RECORDS", "SUMMARY_RECORDS", "PROCEDURE_NAMES", "record", "find", "applicable",
            "RESAMPLING_MAX_VALUES", "INTERVAL_ONLY_NOTE", "EXCHANGEABLE_NOTE", "DESIGNS", "INPUTS",
            "FAMILIES", "ESTIMATE_KINDS"]
 
@@ -143,6 +143,8 @@ _INDEPENDENT: tuple[Procedure, ...] = (
 # Every record, in the order they are run and shown: the procedures of a difference between two
 # independent groups, then those of a paired design, then those of a margin question.
 RECORDS: tuple[Procedure, ...] = _INDEPENDENT + paired_records.RECORDS + margin_records.RECORDS
+# The same procedures run from each group's summary statistics (``input="summary"``; same keys).
+SUMMARY_RECORDS: tuple[Procedure, ...] = summary_records.of(RECORDS)
 
 _BY_KEY: Mapping[str, Procedure] = frozen_mapping({r.key: r for r in RECORDS})
 if len(_BY_KEY) != len(RECORDS):  # pragma: no cover - a mistake in the table above
@@ -162,9 +164,11 @@ def find(key: str) -> Procedure | None:
     return _BY_KEY.get(key)
 
 
-def applicable(spec: AnalysisSpec, *, design: str | None = None) -> tuple[Procedure, ...]:
+def applicable(spec: AnalysisSpec, *, design: str | None = None,
+               input: str = "raw") -> tuple[Procedure, ...]:
     """The records that answer ``spec``'s question for ``design`` (default: the spec's) with what
     the user stated, in the order they are run (the size limits are checked by the caller, who
-    says what was left out)."""
+    says what was left out); ``input="summary"``: those that run from summary statistics."""
     design = spec.design if design is None else design
-    return tuple(r for r in RECORDS if r.serves(design, spec.question.kind) and r.runs_for(spec))
+    pool = SUMMARY_RECORDS if input == "summary" else RECORDS
+    return tuple(r for r in pool if r.serves(design, spec.question.kind) and r.runs_for(spec))

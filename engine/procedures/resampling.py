@@ -286,12 +286,23 @@ def _random_batches(pool: _Pool, rng: np.random.Generator, total: int, batch: in
     keep = shared_draws is not None and total * pool.n_bytes <= _SHARED_BYTES
     drawn = []
     for start in range(0, total, batch):
-        masks = pool.random_masks(rng, min(batch, total - start))
+        masks = _masks(pool, rng, min(batch, total - start))
         if keep:
             drawn.append(masks)
         yield masks
     if keep:  # only once all are drawn: a test stopped half-way leaves nothing behind
         shared_draws[key] = drawn
+
+
+def _masks(pool: _Pool, rng: np.random.Generator, rows: int) -> np.ndarray:
+    """``pool.random_masks(rng, rows)``; a generator that keeps what earlier runs drew from its seed
+    (:class:`engine.draw_log.DrawLog`) hands out the masks an earlier run drew at this point
+    instead of building them again: the same masks, and the generator left where drawing them
+    would leave it."""
+    kept = getattr(rng, "kept", None)
+    if kept is None:
+        return pool.random_masks(rng, rows)
+    return kept(("random relabellings", pool.n, pool.k, rows), lambda: pool.random_masks(rng, rows))
 
 
 def count_extreme(null: np.ndarray, observed: float, alternative: str, tolerance: float) -> int:

@@ -14,11 +14,13 @@ from typing import Any
 import numpy as np
 
 from ..errors import DataProblem, OptionProblem
+from ..group_stats import GroupStats
 from ..results import Interval, ProcedureResult, frozen_mapping
 from ..stats_basics import Normal, StudentT, centred_sd, common_scale, critical_value, statistic_p
 from ._checks import check_alternative, check_confidence_level, check_samples
 
-__all__ = ["z_test", "pooled_t", "welch_t", "mean_difference", "Moments", "moments", "NAMES"]
+__all__ = ["z_test", "pooled_t", "welch_t", "mean_difference", "Moments", "moments", "stats_moments",
+           "two_groups", "NAMES"]
 
 # The plain name of each procedure in this module (engine.procedures.registry shows them).
 NAMES = frozen_mapping({
@@ -142,9 +144,14 @@ def _exponent(power_of_two: float) -> int:
     return math.frexp(power_of_two)[1] - 1
 
 
-def _sd_parts(values: np.ndarray) -> tuple[float, int]:
-    """(a, k) with SD = a * 2**k, a at most about 3: the SD whatever the size of the values."""
+def _sd_parts(values: np.ndarray, sd: float | None = None) -> tuple[float, int]:
+    """(a, k) with SD = a * 2**k, a at most about 3: the SD whatever the size of the values.
+
+    ``sd``, when given, is the SD itself (``values`` then holds just that number, to find its
+    scale); otherwise the SD of ``values`` is computed."""
     own = common_scale(values)
+    if sd is not None:
+        return sd / own, _exponent(own)
     return centred_sd(values / own if own != 1.0 else values), _exponent(own)
 
 
@@ -196,18 +203,50 @@ def moments(x: np.ndarray, y: np.ndarray) -> Moments:
     """
     scale = common_scale(x, y)
     xs, ys = (x / scale, y / scale) if scale != 1.0 else (x, y)
-    mean_1, mean_2, difference = _mean_difference(xs, ys)
-    (a_1, k_1), (a_2, k_2) = _sd_parts(x), _sd_parts(y)
+    return _assembled(scale, *_mean_difference(xs, ys), _sd_parts(x), _sd_parts(y),
+                      bool(x.min() == x.max()), bool(y.min() == y.max()))
+
+
+def stats_moments(first: GroupStats, second: GroupStats) -> Moments:
+    """:func:`moments` of two groups known by their summary statistics.
+
+    The means are scaled by their common power of two and each SD is put in the same units as
+    :func:`moments` puts the SD of the values, so that the summaries of two groups give the
+    numbers their values give (the difference in means apart, which the values give with a few
+    more correct digits).
+    """
+    scale = common_scale(np.array([first.mean, second.mean]))
+    mean_1, mean_2 = first.mean / scale, second.mean / scale
+    sd_1, sd_2 = first.standard_deviation, second.standard_deviation
+    return _assembled(scale, mean_1, mean_2, mean_1 - mean_2, _sd_parts(np.array([sd_1]), sd_1),
+                      _sd_parts(np.array([sd_2]), sd_2), sd_1 == 0, sd_2 == 0)
+
+
+def _assembled(scale: float, mean_1: float, mean_2: float, difference: float,
+               parts_1: tuple[float, int], parts_2: tuple[float, int], constant_1: bool,
+               constant_2: bool) -> Moments:
+    """The :class:`Moments` from the scaled means and each SD as (a, k) with SD = a * 2**k."""
+    (a_1, k_1), (a_2, k_2) = parts_1, parts_2
     exponents = [math.frexp(a)[1] + k for a, k in ((a_1, k_1), (a_2, k_2)) if a > 0]
     unit_exponent = max(exponents) if exponents else 0
     return Moments(scale, mean_1, mean_2, difference,
                    _shifted(a_1, k_1 - unit_exponent), _shifted(a_2, k_2 - unit_exponent),
-                   unit_exponent, bool(x.min() == x.max()), bool(y.min() == y.max()))
+                   unit_exponent, constant_1, constant_2)
+
+
+def two_groups(x: Any, y: Any) -> tuple[Moments, int, int]:
+    """The :class:`Moments` and sizes of two groups given as values (each checked) or as two
+    :class:`engine.group_stats.GroupStats`."""
+    if isinstance(x, GroupStats) and isinstance(y, GroupStats):
+        return stats_moments(x, y), x.n, y.n
+    if isinstance(x, GroupStats) or isinstance(y, GroupStats):
+        raise OptionProblem("Give both groups as values or both as summary statistics, not one of each.")
+    x, y = check_samples(x, y)
+    return moments(x, y), x.size, y.size
 
 
 def _prepare(x: Any, y: Any, alternative: Any, confidence_level: Any):
-    x, y = check_samples(x, y)
-    return x, y, check_alternative(alternative), check_confidence_level(confidence_level)
+    return (*two_groups(x, y), check_alternative(alternative), check_confidence_level(confidence_level))
 
 
 def z_test(
@@ -222,8 +261,9 @@ def z_test(
 
     Parameters
     ----------
-    x, y : array-like of float
-        Group 1 and group 2, at least two finite values each.
+    x, y : array-like of float, or two GroupStats
+        Group 1 and group 2, at least two finite values each, or each group's summary
+        statistics (:class:`engine.group_stats.GroupStats`).
     sd : (float, float)
         The known population standard deviations of group 1 and group 2.
     alternative : {"two-sided", "less", "greater"}
@@ -246,17 +286,17 @@ def z_test(
     Snedecor, G. W. and Cochran, W. G. (1989). Statistical Methods, 8th ed., Iowa State
     University Press, section 6.
     """
-    x, y, alternative, level = _prepare(x, y, alternative, confidence_level)
+    m, n_x, n_y, alternative, level = _prepare(x, y, alternative, confidence_level)
     sd_x, sd_y = _check_known_sd(sd)
-    mean_x, mean_y, estimate = mean_difference(x, y)
+    mean_x, mean_y, estimate = (part * m.scale for part in (m.mean_1, m.mean_2, m.difference))
     # in units of the larger SD, so that the squares cannot overflow or underflow
     unit = max(sd_x, sd_y)
-    standard_error = math.sqrt((sd_x / unit) ** 2 / x.size + (sd_y / unit) ** 2 / y.size)
+    standard_error = math.sqrt((sd_x / unit) ** 2 / n_x + (sd_y / unit) ** 2 / n_y)
     return _result(
         "z", estimate=estimate / unit, standard_error=standard_error, df=None,
         alternative=alternative, level=level, scale=unit,
         method="normal distribution, with the standard deviations supplied as known",
-        details=dict(n_1=x.size, n_2=y.size, mean_1=mean_x, mean_2=mean_y, known_sd_1=sd_x,
+        details=dict(n_1=n_x, n_2=n_y, mean_1=mean_x, mean_2=mean_y, known_sd_1=sd_x,
                      known_sd_2=sd_y),
     )
 
@@ -272,8 +312,9 @@ def pooled_t(
 
     Parameters
     ----------
-    x, y : array-like of float
-        Group 1 and group 2, at least two finite values each.
+    x, y : array-like of float, or two GroupStats
+        Group 1 and group 2, at least two finite values each, or each group's summary
+        statistics (:class:`engine.group_stats.GroupStats`).
     alternative : {"two-sided", "less", "greater"}
         "greater" means group 1 has the larger mean.
     confidence_level : float
@@ -300,10 +341,8 @@ def pooled_t(
     Student (1908). The probable error of a mean. Biometrika 6(1), 1-25.
     Snedecor, G. W. and Cochran, W. G. (1989). Statistical Methods, 8th ed., section 6.7.
     """
-    x, y, alternative, level = _prepare(x, y, alternative, confidence_level)
-    m = moments(x, y)
+    m, n_x, n_y, alternative, level = _prepare(x, y, alternative, confidence_level)
     warnings = _check_spread(m)
-    n_x, n_y = x.size, y.size
     df = n_x + n_y - 2
     # variances in units of 2**m.unit_exponent squared
     var_x, var_y = m.sd_1**2, m.sd_2**2
@@ -334,8 +373,9 @@ def welch_t(
 
     Parameters
     ----------
-    x, y : array-like of float
-        Group 1 and group 2, at least two finite values each.
+    x, y : array-like of float, or two GroupStats
+        Group 1 and group 2, at least two finite values each, or each group's summary
+        statistics (:class:`engine.group_stats.GroupStats`).
     alternative : {"two-sided", "less", "greater"}
         "greater" means group 1 has the larger mean.
     confidence_level : float
@@ -363,10 +403,8 @@ def welch_t(
     Satterthwaite, F. E. (1946). An approximate distribution of estimates of variance
     components. Biometrics Bulletin 2(6), 110-114.
     """
-    x, y, alternative, level = _prepare(x, y, alternative, confidence_level)
-    m = moments(x, y)
+    m, n_x, n_y, alternative, level = _prepare(x, y, alternative, confidence_level)
     warnings = _check_spread(m)
-    n_x, n_y = x.size, y.size
     # v_i = s_i^2 / n_i in units of 2**m.unit_exponent squared: below 4, and the larger at
     # least 1 / (4 n_i), so v_i^2 neither overflows nor leaves both terms zero
     v_x, v_y = m.sd_1**2 / n_x, m.sd_2**2 / n_y

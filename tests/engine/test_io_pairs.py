@@ -61,7 +61,7 @@ def test_long_layout_matches_by_id_and_names_every_row_left_out(tmp_path):
     assert by_kind["no_id"].file_rows == (16,)
     assert all("left out" in p.text for p in result.problems)
     assert dict(result.counts) == {"unmatched": 1, "repeated": 1, "no_id": 1,
-                                   "partner_missing": 1, "non_numeric": 1}
+                                   "partner_missing": 1, "non_numeric": 1, "set_aside": 0}
     assert [min(p.file_rows) for p in result.problems] == sorted(min(p.file_rows) for p in result.problems)
 
 

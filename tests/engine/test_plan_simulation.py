@@ -263,8 +263,8 @@ def test_a_plan_goes_to_plain_values_and_back():
 
 
 def test_paired_equivalence_power_matches_the_engines_paired_two_one_sided_tests():
-    # reference: engine.procedures.paired.paired_equivalence on simulated pair differences
-    from engine.procedures.paired import paired_equivalence
+    # reference: engine.procedures.paired_margin.paired_equivalence on simulated pair differences
+    from engine.procedures.paired_margin import paired_equivalence
 
     rng = np.random.default_rng(32)
     result = plan_study(Plan("power", difference=0.2, sd=1.0, n1=24, design="paired",

@@ -15,6 +15,8 @@ from engine.spec import AnalysisSpec, Statements
 
 # the procedures of a difference between two independent groups
 _DIFFERENCE_KEYS = [r.key for r in registry.RECORDS if r.serves("independent", "differ")]
+# the procedures of a difference between matched pairs
+PAIRED = [r.key for r in registry.RECORDS if r.serves("paired", "differ")]
 
 
 @pytest.fixture(scope="module")
@@ -23,11 +25,16 @@ def groups():
     return Groups(("treated", "control"), rng.normal(10.5, 2.0, 24), rng.normal(9.0, 3.0, 21))
 
 
-def test_every_number_leads_to_the_function_that_computed_it_in_one_hop(groups):
+@pytest.mark.parametrize("design", ["independent", "paired"])
+def test_every_number_leads_to_the_function_that_computed_it_in_one_hop(groups, design):
     # from a result's key to its record, and from the record to the function by its dotted name
-    spec = AnalysisSpec(resamples=300, seed=4, statements=Statements(known_sd=(2.0, 3.0)))
+    spec = AnalysisSpec(resamples=300, seed=4, statements=Statements(known_sd=(2.0, 3.0)),
+                        design=design)
+    if design == "paired":
+        n = min(groups.n)
+        groups = Groups(groups.labels, groups.x[:n], groups.y[:n])
     analysis = analyze(groups, spec)
-    assert list(analysis.procedures) == _DIFFERENCE_KEYS
+    assert list(analysis.procedures) == (_DIFFERENCE_KEYS if design == "independent" else PAIRED)
     for key, result in analysis.procedures.items():
         record = registry.record(key)
         module, name = record.computed_by.rsplit(".", 1)
@@ -57,7 +64,8 @@ def test_every_question_kind_is_served_by_every_procedure_for_independent_groups
     for kind in ("differ", "lower", "higher"):
         spec = AnalysisSpec(question=Question(kind))
         assert {r.key for r in registry.applicable(spec)} == set(_DIFFERENCE_KEYS) - {"z"}
-    assert registry.applicable(AnalysisSpec(), design="paired") == ()
+        assert [r.key for r in registry.applicable(spec, design="paired")] == PAIRED
+    assert PAIRED == ["paired_t", "signed_rank", "sign_flip_mean", "paired_bootstrap_mean"]
 
 
 def test_resampling_has_a_size_limit_and_the_rest_does_not():
@@ -80,7 +88,8 @@ def test_advice_report_and_side_by_side_read_the_records():
     assert report.EFFECT_FOR["bootstrap_median"] == ("rank_biserial", "common_language")
     assert report.STATISTIC_LABEL["mann_whitney"] == "Mann-Whitney U"
     assert [k for k in report.RANK_KEYS if k in _DIFFERENCE_KEYS] == ["mann_whitney", "brunner_munzel"]
-    assert report.U_KEYS == ("mann_whitney",)
+    assert [k for k in report.RANK_KEYS if k in PAIRED] == ["signed_rank"]
+    assert report.U_KEYS == ("mann_whitney", "signed_rank")  # whole or half numbers
     assert report.MEDIAN_KEYS == ("permutation_median", "bootstrap_median")
     assert side_by_side.PROBABILITY_KEYS == report.PROBABILITY_KEYS == ("brunner_munzel",)
 

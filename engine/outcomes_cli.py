@@ -1,0 +1,142 @@
+"""The headless command for several outcomes:
+``python -m engine analyze FILE --outcomes strength hardness elongation --group lot [--adjust holm|bh]``
+(long layout: one value column per outcome) or ``--outcome-columns NAME COLUMN1 COLUMN2`` once per
+outcome (wide layout: one column per group). ``--same-procedure KEY`` reads one procedure for every
+outcome instead of each outcome's suggestion.
+
+The ``--json`` document: ``input`` ("outcomes"), ``adjustment``, ``procedure``,
+``simultaneous_level``, ``options``, ``spec``, ``findings``, and ``outcomes``: one member per
+outcome with its name, columns, the procedure read (``key``) and its ``result``, ``p_value``,
+``p_holm``, ``p_bh``, ``finding`` (the verdict by the chosen adjustment), the
+``simultaneous_interval`` at the Bonferroni level, the standardised ``effect``, a ``problem`` when
+it could not be analysed, and ``analysis``: the whole single-outcome document
+(:func:`engine.jsonout.analysis_document`). Members are added, never renamed.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+from typing import Any, TextIO
+
+from .errors import TwofoldError
+
+__all__ = ["add_flags", "wanted", "run", "outcomes_document", "outcomes_lines"]
+
+
+def add_flags(command: argparse.ArgumentParser) -> None:
+    """The outcome flags of ``analyze``."""
+    command.add_argument("--outcomes", nargs="+", metavar="COLUMN",
+                         help="compare the two groups on each of these value columns (with --group), "
+                              "with p-values adjusted for testing them all")
+    command.add_argument("--outcome-columns", nargs=3, action="append",
+                         metavar=("NAME", "COLUMN1", "COLUMN2"),
+                         help="one outcome of a file with one column per group; give it once per outcome")
+    command.add_argument("--adjust", choices=("holm", "bh"),
+                         help="the adjustment the verdicts follow: holm (family-wise error, default) "
+                              "or bh (Benjamini-Hochberg, false discovery rate)")
+    command.add_argument("--same-procedure", metavar="KEY",
+                         help="read this procedure (e.g. welch_t) for every outcome instead of each "
+                              "outcome's suggestion")
+
+
+def wanted(args) -> bool:
+    """Whether the arguments ask for several outcomes."""
+    return bool(getattr(args, "outcomes", None) or getattr(args, "outcome_columns", None))
+
+
+def _outcomes(args):
+    from .outcomes import long_outcomes, wide_outcomes
+
+    given = [flag for flag, value in (("--spec", args.spec), ("--save", args.save),
+                                      ("--value", args.value)) if value]
+    if given:
+        raise TwofoldError(f"python -m engine analyze: with several outcomes leave out {', '.join(given)}; "
+                           "the outcomes name the value columns (see --help)")
+    if args.outcomes and args.outcome_columns:
+        raise TwofoldError("python -m engine analyze: give --outcomes (with --group) or "
+                           "--outcome-columns, not both")
+    if args.path is None:
+        raise TwofoldError("python -m engine analyze: give the path of the data file the outcomes are in")
+    if args.outcomes:
+        if args.group is None:
+            raise TwofoldError("python -m engine analyze: --outcomes needs --group, the column that "
+                               "says which group each row is in")
+        return long_outcomes(args.outcomes)
+    if args.group is not None:
+        raise TwofoldError("python -m engine analyze: --outcome-columns is for a file with one column "
+                           "per group; leave out --group (or use --outcomes)")
+    return wide_outcomes([(a, b) for _, a, b in args.outcome_columns],
+                         [name for name, _, _ in args.outcome_columns])
+
+
+def outcomes_document(found) -> dict[str, Any]:
+    """The ``--json`` document of several outcomes."""
+    from .jsonout import SCHEMA_VERSION, analysis_document, options_member, to_plain
+
+    rows = found.rows
+    return {
+        "schema_version": SCHEMA_VERSION,
+        "input": "outcomes",
+        "adjustment": found.adjustment,
+        "procedure": found.procedure,
+        "simultaneous_level": found.simultaneous_level,
+        "options": options_member(found.spec),
+        "spec": found.spec.to_dict(),
+        "findings": to_plain(found.findings),
+        "outcomes": [{
+            "name": done.outcome.name,
+            "columns": list(done.outcome.columns),
+            "key": done.key,
+            "result": to_plain(done.result),
+            "p_value": to_plain(row.p_value),
+            "p_holm": to_plain(row.p_holm),
+            "p_bh": to_plain(row.p_bh),
+            "finding": row.finding,
+            "simultaneous_interval": to_plain(row.simultaneous_interval),
+            "effect": to_plain(row.effect),
+            "problem": done.problem,
+            "analysis": None if done.analysis is None else analysis_document(done.analysis),
+        } for done, row in zip(found.outcomes, rows)],
+    }
+
+
+def outcomes_lines(found) -> list[str]:
+    """The plain table: one line per outcome, then why one would choose each adjustment."""
+    from .report.numbers import format_interval
+    from .rounding import format_number, format_p, level_text
+
+    chosen = "Holm" if found.adjustment == "holm" else "Benjamini-Hochberg"
+    lines = [f"{len(found.outcomes)} outcomes; verdicts by {chosen}'s adjustment at "
+             f"{level_text(found.level)}; intervals at {level_text(found.level)} and, together, at "
+             f"{level_text(found.simultaneous_level)} (Bonferroni)."]
+    for row in found.rows:
+        if row.problem is not None and row.estimate is None:
+            lines.append(f"{row.name}: not analysed: {row.problem}")
+            continue
+        verdict = {True: "yes", False: "no", None: "no p-value"}[row.finding]
+        effect = ("" if row.effect is None else
+                  f"; {row.effect.name} {format_number(row.effect.value)}")
+        lines.append(
+            f"{row.name}: n {row.n[0]} and {row.n[1]}; {row.procedure}: {row.estimate_name} "
+            f"{format_number(row.estimate)} {format_interval(row.interval) or ''}"
+            f" (together {format_interval(row.simultaneous_interval) or '-'}); p {format_p(row.p_value)}, "
+            f"Holm {format_p(row.p_holm)}, Benjamini-Hochberg {format_p(row.p_bh)}; finding: {verdict}{effect}")
+    lines += [finding.text for finding in found.findings]
+    return lines
+
+
+def run(args, out: TextIO, spec) -> None:
+    """``analyze`` on several outcomes: ``spec`` is the analysis the other flags describe
+    (``engine.cli.spec_from_arguments``)."""
+    from .outcomes import outcomes_from_file
+    from .text import visible
+
+    outcomes = _outcomes(args)
+    found = outcomes_from_file(spec, outcomes, procedure=args.same_procedure,
+                               adjustment=args.adjust or "holm")
+    if args.json:
+        json.dump(outcomes_document(found), out, indent=2, allow_nan=False)
+        out.write("\n")
+        return
+    out.write("".join(visible(line) + "\n" for line in outcomes_lines(found)))
