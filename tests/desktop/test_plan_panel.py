@@ -7,6 +7,7 @@ import json
 import math
 from pathlib import Path
 
+import numpy as np
 import pytest
 from PySide6.QtGui import QGuiApplication
 from statsmodels.stats.power import NormalIndPower, TTestIndPower, TTestPower
@@ -233,3 +234,32 @@ def test_the_plan_is_saved_with_the_analysis_and_comes_back_on_reopening(make_wi
     again.session.ask(level=0.9)
     qtbot.waitUntil(lambda: again.session.analysis is not analysis and not again.busy, timeout=60_000)
     assert back.find.currentData() == "power" and back.n1.text() == "12" and back.difference.text() == "25"
+
+
+def test_a_paired_comparison_fills_in_a_paired_plan_from_its_pair_differences(qtbot, csv_file):
+    from desktop.plan_panel import PlanPanel
+
+    rng = np.random.default_rng(12)
+    before = rng.normal(50.0, 8.0, 14)
+    after = before + rng.normal(2.0, 1.5, 14)  # each unit measured twice: a small shift, strongly paired
+    path = csv_file("soak.csv", [(round(a, 3), round(b, 3)) for a, b in zip(after, before)], ("after", "before"))
+    spec = AnalysisSpec(source=pipeline.source_for(path), layout="wide", value_columns=("after", "before"),
+                        design="paired", seed=2, resamples=200)
+    prepared = pipeline.from_file(None, spec)
+    session = Session(prepared.spec)
+    session.store("analysis", prepared.analysis)
+    panel = PlanPanel(session)
+    qtbot.addWidget(panel)
+    differences = np.asarray(prepared.analysis.groups.x) - np.asarray(prepared.analysis.groups.y)
+    assert panel.design.currentData() == "paired" and panel.n1.text() == "14"
+    assert float(panel.sd.text()) == pytest.approx(np.std(differences, ddof=1), rel=1e-3)
+    assert panel.form.labelForField(panel.sd).text() == "SD of the pair differences"
+    fill(panel, find="n", power="0.9")
+    result = worked_out(qtbot, panel)
+    # statsmodels TTestPower().solve_power(d_z, alpha=0.05, power=0.9) with the filled-in figures, rounded up
+    d_z = float(panel.difference.text()) / float(panel.sd.text())
+    assert result.n1 == math.ceil(TTestPower().solve_power(d_z, alpha=0.05, power=0.9))
+    fill(panel, spread="pilot", simulations=300)
+    result = worked_out(qtbot, panel)
+    assert result.plan.pilot.paired and np.array_equal(result.plan.pilot.group1, differences)
+    panel.cleanup()
