@@ -28,7 +28,7 @@ from engine.side_by_side import NO_INTERVAL_WHY
 from . import clipboard, export
 from .icons import icon
 from .panel_parts import FlowLayout, heading, hint_and_body, text_label
-from .plots import BoxPlot, IntervalPlot, document_palette, plot_image, save_plot
+from .plots import BoxPlot, IntervalPlot, document_palette, plot_image, save_plot_file
 
 __all__ = ["FindingsPanel", "STATISTIC_TIPS", "MARGIN_OFFER", "MARGIN_OFFER_BUTTON", "MARGIN_PLOT_NOTE",
            "NOTHING_ANSWERS"]
@@ -127,7 +127,11 @@ class FindingsPanel(QWidget):
         self.copy_plot_button.clicked.connect(self.copy_plot)
         self.save_plot_button.clicked.connect(self.ask_save_plot)
         self.export_button.clicked.connect(self.ask_export_report)
-        for button in (self.copy_button, self.copy_plot_button, self.save_plot_button, self.export_button):
+        self.plan_button = QPushButton("Plan a follow-up from these data")
+        self.plan_button.setToolTip("How many to measure next time, resampling these two groups.")
+        self.plan_button.clicked.connect(lambda: self._window_saves("plan_follow_up"))
+        for button in (self.copy_button, self.copy_plot_button, self.save_plot_button, self.export_button,
+                       self.plan_button):
             buttons.addWidget(button)
         layout.addLayout(buttons)
         self.status = text_label()
@@ -238,6 +242,7 @@ class FindingsPanel(QWidget):
         self.scroll.setVisible(ready)
         for button in (self.copy_button, self.copy_plot_button, self.save_plot_button, self.export_button):
             button.setEnabled(ready)
+        self.plan_button.setVisible(ready and self.window() is not self)
         if not ready:
             self._shown_key = None
             return
@@ -373,13 +378,7 @@ class FindingsPanel(QWidget):
 
         Raises :class:`engine.errors.FileProblem` for another suffix or a failed write.
         """
-        path = Path(path)
-        try:
-            return save_plot(self.plot, path)
-        except ValueError as error:
-            raise FileProblem(f"{str(error)[:1].upper()}{str(error)[1:]} ({path.name}).") from None
-        except OSError as error:
-            raise FileProblem(f"Could not save the plot to {path}: {error.strerror or error}.") from None
+        return save_plot_file(self.plot, path)
 
     def export_report(self, path: str | Path) -> Path:
         """Write the report as HTML or PDF (by the suffix of ``path``) and return the path.

@@ -89,6 +89,8 @@ LATE_PANELS = (
      "The checks on shape and spread, and the procedure they point to."),
     ("findings_panel", "desktop.findings_panel", "FindingsPanel", "Findings",
      "The result in words and numbers, ready to copy into a report."),
+    ("plan_panel", "desktop.plan_panel", "PlanPanel", "Next study",
+     "How many to measure next time, or what given sizes can find, from these data or from SDs you give."),
 )
 
 # What the import worker loads ahead of the late panels: the slow, Qt-free part of their imports.
@@ -97,7 +99,8 @@ LATE_PANELS = (
 # widget made from Python for its meta-object (as the destructor of a layout animation of the
 # main window does), and a concurrent entry crashed about one start in twenty.
 WARM_IN_WORKER = ("scipy.stats", "engine.analysis", "engine.advice", "engine.diagnostics", "engine.effects",
-                  "engine.procedures.ranks", "engine.procedures.resampling", "engine.procedures.t", "engine.report")
+                  "engine.procedures.ranks", "engine.procedures.resampling", "engine.procedures.t", "engine.report",
+                  "engine.planning", "engine.plan_member", "engine.plan_words")
 
 SCREEN_SHARE = 0.9  # of the available screen, each way, that the window opens at
 LEFT_SHARE = 0.47   # of the window's width for the data and set-up; the rest for the checks and findings
@@ -200,6 +203,7 @@ class MainWindow(QMainWindow):
         self.tabs.setDocumentMode(True)
         self.choice_panel: Any = None
         self.findings_panel: Any = None
+        self.plan_panel: Any = None
         for attribute, _module, _name, title, tip in LATE_PANELS:
             placeholder = QLabel("Loading…", self)
             placeholder.setAlignment(Qt.AlignmentFlag.AlignCenter)
@@ -346,6 +350,9 @@ class MainWindow(QMainWindow):
             self._keep_settings_toggled)
         self.keep_settings_action.setCheckable(True)
         self.keep_settings_action.setChecked(self.settings.value(KEEP_SETTINGS_KEY, False, type=bool))
+        self.plan_action = self._action("&Plan the next study",
+                                        "How many to measure next time, or what given sizes can find.",
+                                        self.show_plan, "Ctrl+L")
         self.cancel_action = self._action("&Stop", "Stop the work in progress.", self.cancel, "Esc")
         self.cancel_action.setEnabled(False)
         self.quit_action = self._action("&Quit", "Close Twofold.", self.close, QKeySequence.StandardKey.Quit)
@@ -375,6 +382,8 @@ class MainWindow(QMainWindow):
         run_menu = menus.addMenu("&Comparison")
         run_menu.addAction(self.redo_action)
         run_menu.addAction(self.cancel_action)
+        run_menu.addSeparator()
+        run_menu.addAction(self.plan_action)
         run_menu.addSeparator()
         run_menu.addAction(self.keep_settings_action)
         tools = self.addToolBar("Main")
@@ -448,6 +457,19 @@ class MainWindow(QMainWindow):
         the margin's field."""
         self.setup_panel.margin_entry.focus_entry("equivalent")
         self.setup_panel.refresh()
+
+    # -- planning the next study ---------------------------------------------------------------
+    def show_plan(self, *, from_data: bool | None = None) -> None:
+        """Show the plan of the next study; ``from_data`` True fills it in to resample the
+        comparison's groups ("plan a follow-up from these data")."""
+        self._add_late_panels()
+        if from_data is not None and self.session.analysis is not None:
+            self.plan_panel.fill_from_analysis(from_data=from_data)
+        self.tabs.setCurrentWidget(self.plan_panel)
+
+    def plan_follow_up(self) -> None:
+        """Plan a follow-up study from the groups of the comparison on show."""
+        self.show_plan(from_data=True)
 
     # -- opening -------------------------------------------------------------------------------
     def open_dialog(self) -> None:
@@ -558,6 +580,9 @@ class MainWindow(QMainWindow):
         self.setWindowTitle(f"{visible(name)} - Twofold")
         self.recent.add(path)
         self._load_late_soon()
+        if reopened.saved.plan is not None:
+            self._add_late_panels()
+            self.plan_panel.restore_saved(reopened.saved.plan)
         differences = differences_words(reopened.differences)
         if status == "same":
             self.message_bar.show_message("reopen_same", name=name, source=source)
@@ -588,10 +613,12 @@ class MainWindow(QMainWindow):
         # the pick only changes what is shown, so the analysis carries the pick of its own run
         analysis = replace(analysis, spec=analysis.spec.replace(procedure=self.session.spec.procedure))
 
+        plan = self.plan_panel.result if self.plan_panel is not None else None
+
         def write(target: Path) -> None:
             from engine import saved as saved_files
 
-            saved_files.save(target, analysis)
+            saved_files.save(target, analysis, plan=plan)
 
         return self._save(path, "Save the analysis", ANALYSIS_FILTER, SAVED_SUFFIX, write, own_suffix=True)
 
@@ -927,7 +954,7 @@ class MainWindow(QMainWindow):
         self.session.unsubscribe(self._on_session)
         for worker in (self.load_worker, self.groups_worker, self.analysis_worker, self.import_worker):
             worker.shutdown()
-        for panel in (self.data_panel, self.setup_panel, self.choice_panel, self.findings_panel):
+        for panel in (self.data_panel, self.setup_panel, self.choice_panel, self.findings_panel, self.plan_panel):
             if panel is not None and hasattr(panel, "cleanup"):
                 panel.cleanup()
 

@@ -86,6 +86,14 @@ _DECLARED = (
     Message("margin_no_room", "warning", "A margin of {value} leaves no room either side of no difference."),
     Message("margin_refused", "warning", "{reason} Still in force: {question}"),
     Message("margin_wanted", "info", "Type a margin to ask this. Still in force: {question}"),
+    # planning the next study (said in one line under the plan's inputs)
+    Message("plan_input", "warning", "{reason}"),
+    Message("plan_crashed", "error", "Something unexpected stopped the working out of the plan ({reason})."),
+    Message("plan_stopped", "info", "Stopped. Change an input or press Work it out to start again."),
+    Message("plan_no_pilot", "warning",
+            "There are no groups to resample yet: open a file and compare two groups, or give the SDs."),
+    Message("plan_saved_differs", "warning",
+            "Worked out again, the saved plan gives other figures: saved {saved}; now {now}."),
     # copy and export
     Message("nothing_yet", "info", "There is nothing to copy or save yet: open a file and set up the comparison."),
     Message("copied", "info", "Copied {what} to the clipboard."),

@@ -43,6 +43,7 @@ __all__ = [
     "ratio_ticks",
     "plot_image",
     "save_plot",
+    "save_plot_file",
 ]
 
 MAX_POINTS = 2000
@@ -682,3 +683,17 @@ def save_plot(widget: ThemedPlot, path: str | Path) -> Path:
     else:
         raise ValueError(f"a plot is saved as .png or .svg, not '{path.suffix}'")
     return path
+
+
+def save_plot_file(widget: ThemedPlot, path: str | Path, what: str = "plot") -> Path:
+    """:func:`save_plot`, its failures said as :class:`engine.errors.FileProblem` sentences that
+    name the file (``what``: the plot's name in them)."""
+    from engine.errors import FileProblem
+
+    path = Path(path)
+    try:
+        return save_plot(widget, path)
+    except ValueError as error:
+        raise FileProblem(f"{str(error)[:1].upper()}{str(error)[1:]} ({path.name}).") from None
+    except OSError as error:
+        raise FileProblem(f"Could not save the {what} to {path}: {error.strerror or error}.") from None

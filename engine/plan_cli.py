@@ -233,35 +233,9 @@ def plan_document(result, curve=None) -> dict[str, Any]:
 
 
 def _readable(result, curve) -> list[str]:
-    from .planning.sentence import power_text
-    from .rounding import format_number
+    from .plan_words import answer_lines
 
-    plan = result.plan
-    unit = f" {plan.unit}" if plan.unit else ""
-    sizes = (f"{result.n1} pairs" if plan.design == "paired" else
-             f"{result.n1} per group" if result.n1 == result.n2 else
-             f"{result.n1} in group 1, {result.n2} in group 2")
-    lines = [result.sentence, ""]
-    answer = {"n": f"Sample size: {sizes}", "power": f"Power: {power_text(result.power)}",
-              "difference": f"Smallest detectable difference: {format_number(result.difference)}{unit}"}
-    lines.append(answer[plan.find])
-    if plan.find == "n":
-        lines.append(f"Achieved power: {power_text(result.power)}")
-    if result.continuous_n is not None:
-        lines.append(f"Size before rounding up: {format_number(result.continuous_n, digits=5)}")
-    lines.append(f"Standardised effect: {format_number(result.effect)} ({result.effect_name})")
-    if result.monte_carlo_se is not None:
-        lines.append(f"Monte Carlo standard error: {format_number(100 * result.monte_carlo_se, digits=2)} "
-                     f"percentage points ({result.simulations:,} studies, seed {result.seed})")
-    if result.formula_power is not None:
-        lines.append(f"For comparison, {result.formula_words}: {power_text(result.formula_power)}")
-    lines.append(f"Method: {result.method_words}")
-    lines += [f"Note: {note}" for note in result.notes]
-    if curve is not None:
-        label = "units per group" if curve.over == "n" else f"difference{unit}"
-        lines += ["", f"Power curve ({label}, power):"]
-        lines += [f"  {format_number(x, digits=4)}  {power_text(p)}" for x, p in zip(curve.x, curve.power)]
-    return lines
+    return answer_lines(result, curve)
 
 
 def run_plan(args, out: TextIO) -> None:

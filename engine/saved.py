@@ -75,6 +75,7 @@ class SavedAnalysis:
     location: Path | None = None
     source_from_here: str | None = None
     schema_version: int | None = None
+    plan: Mapping[str, Any] | None = None  # the plan of the next study (engine.plan_member), if saved
 
 
 @dataclass(frozen=True)
@@ -255,8 +256,10 @@ def _relative_to_folder(source: str, folder: Path) -> str | None:
         return None
 
 
-def document_of(analysis, *, path: str | Path | None = None, now: datetime | None = None) -> dict[str, Any]:
-    """The JSON object :func:`save` writes for ``analysis`` (to be saved at ``path``)."""
+def document_of(analysis, *, path: str | Path | None = None, now: datetime | None = None,
+                plan: Any = None) -> dict[str, Any]:
+    """The JSON object :func:`save` writes for ``analysis`` (to be saved at ``path``), with the
+    plan of the next study ``plan`` (an ``engine.planning.PlanResult``) when given."""
     from . import __version__
     from .jsonout import SCHEMA_VERSION
 
@@ -266,7 +269,7 @@ def document_of(analysis, *, path: str | Path | None = None, now: datetime | Non
         raise SavedFileProblem("Only an analysis of a data file, with its checksum and seed, can be saved.")
     moment = (now or datetime.now(timezone.utc)).astimezone(timezone.utc)
     folder = Path(path).parent if path is not None else Path(".")
-    return {
+    document = {
         "format": FORMAT,
         "version": VERSION,
         "program_version": __version__,
@@ -276,14 +279,17 @@ def document_of(analysis, *, path: str | Path | None = None, now: datetime | Non
         "spec": spec.to_dict(),
         "numbers": numbers_of(analysis),
     }
+    if plan is not None:
+        document["plan"] = _plan_member(plan, analysis)
+    return document
 
 
-def save(path: str | Path, analysis) -> None:
+def save(path: str | Path, analysis, *, plan: Any = None) -> None:
     """Write ``analysis`` (an ``engine.analysis.Analysis``, or a ``pipeline.Prepared``) to
     ``path``: its spec and :func:`numbers_of` it, members in sorted order, indented, UTF-8.
     The data file is never written to; a path that is the data file itself is refused."""
     path = Path(path)
-    document = document_of(analysis, path=path)
+    document = document_of(analysis, path=path, plan=plan)
     source = Path(document["spec"]["source"]["path"])
     try:
         if path.exists() and source.exists() and os.path.samefile(path, source):
@@ -463,8 +469,28 @@ def load(path: str | Path) -> SavedAnalysis:
     if spec.seed is None:
         raise _refuse(name, "is damaged: it does not record the seed of its resampling.")
     numbers = _check_numbers(_member(document, "numbers", dict, name), name)
+    plan = _checked_plan(document.get("plan"), name)
     return SavedAnalysis(spec=spec, numbers=numbers, program_version=program, saved_at=saved_at,
-                         location=path, source_from_here=here, schema_version=schema)
+                         location=path, source_from_here=here, schema_version=schema, plan=plan)
+
+
+# -- the plan of the next study (the optional "plan" member, engine.plan_member) -----------------
+def _plan_member(result, analysis) -> dict[str, Any]:
+    from .plan_member import plan_member
+
+    return plan_member(result, analysis.groups, analysis.spec.design)
+
+
+def _checked_plan(member: Any, name: str) -> dict[str, Any] | None:
+    """The "plan" member checked (None when the file has none, as files saved before plans)."""
+    if member is None:
+        return None
+    from .plan_member import check_plan_member
+
+    try:
+        return check_plan_member(member)
+    except OptionProblem as problem:
+        raise _refuse(name, f"is damaged: {problem.message}") from None
 
 
 # -- reopening -------------------------------------------------------------------------------------

@@ -45,6 +45,8 @@ LAYERS: tuple[tuple[str, ...], ...] = (
     ("engine.planning.equivalence_power", "engine.planning.simulation"),
     ("engine.planning.planner",),
     ("engine.planning",),
+    # a plan in words for a document, and as the saved-analysis file keeps it
+    ("engine.plan_words", "engine.plan_member"),
     # what the data look like, and effect sizes built on the procedures
     ("engine.diagnostics", "engine.effects", "engine.paired_effects"),
     # the checks of matched pairs, built on the checks of one sample
@@ -78,7 +80,8 @@ LAYERS: tuple[tuple[str, ...], ...] = (
     ("desktop.margin_entry",),
     # one panel on its own over a file (each panel's __main__)
     ("desktop.panel_alone",),
-    ("desktop.data_panel", "desktop.setup_panel", "desktop.choice_panel", "desktop.findings_panel"),
+    ("desktop.data_panel", "desktop.setup_panel", "desktop.choice_panel", "desktop.findings_panel",
+     "desktop.plan_panel"),
     ("desktop.main_window", "desktop.first_start"),
     # the program and the README pictures
     ("desktop.app", "desktop.screens"),
