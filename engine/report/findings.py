@@ -220,8 +220,6 @@ def render(analysis, *, procedure: str | None = None) -> ReportText:
     and statistics in text).
     """
     words, sameness, blocks = _findings(analysis, procedure)
-    if pairs.is_paired(analysis):  # the whole report lists them with the values set aside
-        blocks += pairs.left_out_blocks(analysis)
     blocks += caution_blocks(analysis)
     return ReportText(paragraph=words, html=tables.html(blocks), plain=tables.plain(blocks),
                       sameness=sameness)

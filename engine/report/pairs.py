@@ -14,7 +14,7 @@ from ..summary import summarize
 from ..wording import GLOSSES, gloss_line, plural, sentence_start
 from .numbers import EFFECT_DECIMALS, _effect_decimals, format_interval, level_text
 
-__all__ = ["is_paired", "n_pairs", "design_text", "left_out_sentence", "left_out_items", "left_out_blocks", "LISTED_IN_FINDINGS",
+__all__ = ["is_paired", "n_pairs", "design_text", "left_out_sentence", "left_out_items",
            "difference_summary", "difference_row", "with_differences", "paired_opening", "check_blocks", "effect_blocks",
            "EFFECT_SCALE", "PAIRED_EFFECTS", "DIFFERENCES_CHECKS_HEADING", "LEFT_OUT_HEADING"]
 
@@ -85,22 +85,6 @@ def left_out_sentence(analysis) -> str:
 def left_out_items(analysis) -> list[str]:
     """Each ID or row the pairing left out, with its file rows and what was done with it."""
     return [problem.text for problem in _problems(analysis)]
-
-
-# How many items left out of the pairs the findings list one by one (the whole report lists them all).
-LISTED_IN_FINDINGS = 10
-
-
-def left_out_blocks(analysis, limit: int | None = LISTED_IN_FINDINGS) -> list[tuple]:
-    """The items the pairing left out as report blocks (a heading and a list), the first
-    ``limit`` of them and a count of the rest (None: all)."""
-    items = left_out_items(analysis)
-    if not items:
-        return []
-    shown = items if limit is None else items[:limit]
-    if len(items) > len(shown):
-        shown = shown + [f"{plural(len(items) - len(shown), 'more', 'more')} (the whole report lists each)."]
-    return [("h", LEFT_OUT_HEADING), ("list", shown)]
 
 
 def difference_summary(analysis):

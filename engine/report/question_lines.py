@@ -5,6 +5,9 @@ reported procedure against it (:meth:`engine.question.Question.margin_words`).""
 from __future__ import annotations
 
 from ..wording import plural
+from .margins import margin_entered
+from .numbers import level_text
+from .sentences import question_text
 
 __all__ = ["setup_lines", "design_lines", "margin_lines", "PROBLEMS_SHOWN"]
 
@@ -38,24 +41,17 @@ def design_lines(analysis) -> list[str]:
 def margin_lines(analysis, procedure: str | None) -> list[str]:
     """For a margin question: the question, the margin and how it was entered, and the verdict of
     ``procedure`` against the margin; nothing for a question without a margin."""
-    from ..jsonout import margin_answers, question_member
+    from ..jsonout import margin_answers
 
     question = analysis.spec.question
     if not question.has_margin:
         return []
     first, second = analysis.groups.labels
-    margin = question.margin
-    alpha = f"{round(question.alpha * 100, 6):g}%"
-    if question.kind == "equivalent":
-        asked = f"are {first} and {second} equivalent within the margin? (equivalence, at the {alpha} level)"
-    else:
-        asked = (f"is {first} not worse than {second} by more than the margin, {margin.worse} being "
-                 f"worse? (non-inferiority, at the {alpha} level)")
-    how = {"units": "in the measurement's units",
-           "percent": f"as a percentage of {second}'s mean",
-           "ratio": f"as a ratio of {first}'s mean to {second}'s"}[margin.unit]
-    note = question_member(analysis)["margin"]["note"]
-    lines = [f"Question: {asked}", f"Margin (entered {how}): {note}."]
+    alpha = level_text(question.alpha)
+    kind = "equivalence" if question.kind == "equivalent" else "non-inferiority"
+    # the question and the margin in the words every report uses (engine.report.margins)
+    lines = [f"Question: {question_text(question, (first, second), analysis)} ({kind}, at the {alpha} level)",
+             f"Margin as entered: {margin_entered(analysis, procedure)}."]
     answers = margin_answers(analysis)
     if procedure in answers:
         result = analysis.procedures[procedure]
