@@ -30,7 +30,7 @@ from .icons import icon
 from .panel_parts import FlowLayout, heading, hint_and_body, text_label
 from .plots import BoxPlot, IntervalPlot, document_palette, plot_image, save_plot_file
 
-__all__ = ["FindingsPanel", "STATISTIC_TIPS", "MARGIN_OFFER", "MARGIN_OFFER_BUTTON", "MARGIN_PLOT_NOTE",
+__all__ = ["FindingsPanel", "STATISTIC_TIPS", "MARGIN_OFFER_BUTTON", "MARGIN_PLOT_NOTE",
            "NOTHING_ANSWERS"]
 
 # One sentence per statistic, shown when the pointer rests on a row of the table.
@@ -60,13 +60,6 @@ STATISTIC_TIPS = {
 _HINT = "Pick the columns and the two groups; the findings appear here."
 
 # Offered under the findings of a "do they differ?" question that found no clear difference.
-MARGIN_OFFER = (
-    "No clear difference does not show that the groups are the same: a small study can miss a real "
-    "difference. To show they are alike, ask whether they are the same within "
-    "a margin: the largest difference that would not matter in practice. Take the margin from the "
-    "subject matter (a tolerance, a specification, what a user of the result would notice), and fix "
-    "it before reading it against these data: a margin chosen from the data can be made to fit any "
-    "result, and then it shows nothing.")
 MARGIN_OFFER_BUTTON = "Ask whether they are the same within a margin…"
 # Shown when no procedure gave a result for the question asked.
 NOTHING_ANSWERS = "No procedure could answer this question with these data."
@@ -153,7 +146,7 @@ class FindingsPanel(QWidget):
         self.offer = QFrame()  # after "no clear difference": the question of sameness, and why a margin
         self.offer.setFrameShape(QFrame.Shape.StyledPanel)
         offer_layout = QVBoxLayout(self.offer)
-        self.offer_text = text_label(MARGIN_OFFER)
+        self.offer_text = text_label("")
         self.offer_button = QPushButton(MARGIN_OFFER_BUTTON)
         self.offer_button.setToolTip("Opens the question of sameness in the set-up, with the cursor in "
                                      "the margin's field.")
@@ -254,14 +247,17 @@ class FindingsPanel(QWidget):
             return
         for widget in (self.table, self.followed, self.side_heading, self.plot):
             widget.setVisible(True)
-        paragraph = self.report_text().paragraph
+        text = self.report_text()
+        paragraph = text.paragraph
         verdict = _margin_verdict(analysis, key)
         if verdict and paragraph.startswith(verdict):  # the paragraph opens with it: said once, above
             paragraph = paragraph[len(verdict):].lstrip()
         self.verdict.setText(verdict)
         self.verdict.setVisible(bool(verdict))
         self.headline.setText(paragraph)
-        self.offer.setVisible(_offers_margin(analysis, key))
+        # after "no clear difference": the report's paragraph on sameness, with the way to ask it
+        self.offer_text.setText(text.sameness)
+        self.offer.setVisible(bool(text.sameness))
         self.followed.setText(f"Procedure followed: {report.procedure_followed(analysis, key)}.")
         self._fill_table(analysis, result)
         self._show_robustness(analysis, key)
@@ -444,15 +440,6 @@ def _margin_verdict(analysis, key: str) -> str:
         return ""
     result = analysis.procedures[key]
     return analysis.spec.question.margin_words(answer, analysis.groups.labels, result.estimate_name)
-
-
-def _offers_margin(analysis, key: str) -> bool:
-    """Whether the findings offer the question of sameness: a "do they differ?" question whose
-    followed procedure found no clear difference."""
-    if analysis.spec.question.kind != "differ":
-        return False
-    row = next((row for row in analysis.robustness.rows if row.key == key), None)
-    return row is not None and not row.finds_difference
 
 
 def _difference_rows(robustness) -> list:

@@ -3,7 +3,8 @@
 Every plot only draws what the engine computed (summaries, Q-Q points, intervals) plus the
 bins, jitter and thinning that drawing needs. Large groups stay quick: histograms come from
 ``numpy.histogram``, and scatter overlays show at most :data:`MAX_POINTS` points per group.
-This module is the only one in the program that imports pyqtgraph.
+This module and ``desktop/paired_plots.py`` (the plots of a paired design) are the ones that
+import pyqtgraph.
 """
 
 from __future__ import annotations

@@ -85,10 +85,10 @@ def for_margin(base: Recommendation, records: Iterable[Procedure], spec: Analysi
                  f"{chosen.name}: it sets the ratio of the geometric means against the margin.")
     elif chosen.counterpart == base.key:
         first = (f"For a difference, the checks of these data suggest the {base.name}; the "
-                 f"{chosen.name} answers the {asked} question on the same assumptions.")
+                 f"{asked} question is answered on the same assumptions by the {chosen.name}.")
     else:
         first = (f"For a difference, the checks of these data suggest the {base.name}; the "
-                 f"{chosen.name} comes closest for the {asked} question, as "
+                 f"closest answer to the {asked} question is the {chosen.name}, as "
                  f"{_WHY_CLOSEST.get(base.key, 'it compares the same quantity')}.")
     reasons = (first,) + base.reasons
     why_not = {option.key: option.why_not for option in base.considered}

@@ -68,7 +68,7 @@ RECORDS: tuple[Procedure, ...] = (
     Procedure(
         key="sign_flip_mean", name=pair_differences.NAMES["sign_flip_mean"], family="resampling",
         module=pair_differences, function="sign_flip_pairs", arguments=_sign_flips,
-        estimate_name="mean difference", estimate_kind="mean", effect_sizes=PAIRED_EFFECTS,
+        estimate_name="mean of the pair differences", estimate_kind="mean", effect_sizes=PAIRED_EFFECTS,
         resampled="permutation", max_values=RESAMPLING_MAX_VALUES, designs=_DESIGN, work=10.0,
         assumption=("Assumes independent pairs and that, if the groups did not differ, each "
                     "pair's difference would be as likely to come out positive as negative "

@@ -97,7 +97,7 @@ def sign_flip_test(differences: Any, *, alternative: str = "two-sided", n_resamp
     return ProcedureResult(
         key="sign_flip_mean",
         name="sign-flip permutation test, mean difference",
-        estimate=float(d.mean()), estimate_name="mean difference", statistic=float(d.mean()),
+        estimate=float(d.mean()), estimate_name="mean of the pair differences", statistic=float(d.mean()),
         statistic_name="mean difference", df=None, p_value=float(p_value), interval=None,
         alternative=alternative, method=method,
         details=dict(n_pairs=n, exact=exact, n_extreme=extreme, n_resamples=total),
