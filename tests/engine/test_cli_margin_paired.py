@@ -264,8 +264,8 @@ def test_pairs_by_id_match_units_across_the_file_and_list_what_was_left_out(tmp_
                          "--groups", "cold", "hot", "--resamples", "300", "--seed", "1")
     assert code == 0, err
     assert f"Design: paired, {len(kept)} pairs formed by the pair ID column 'part'; 3 left out" in out
-    for item in pairs["left_out"]:  # each said once: by the screening, or else under the design
-        assert out.count(item["text"]) == 1
+    for item in pairs["left_out"]:  # each said, with its file rows
+        assert item["text"] in out
 
 
 @pytest.mark.parametrize("flags", [["--paired"], ["--paired-by", "serial", "--group", "press", "--value", "thickness"]])
