@@ -33,15 +33,23 @@ def million() -> Table:
     return make_table(frame)
 
 
-def test_million_rows_answer_the_last_row_without_building_the_others(million):
+def _fill(table) -> tuple[FrameModel, str, str, int]:
+    """A model filled with ``table``, the last row's two cells, and the peak bytes traced."""
     model = FrameModel()
     tracemalloc.start()
-    model.set_table(million)
-    index = model.index(999_999, 1)
-    text = model.data(index)
+    model.set_table(table)
+    text = model.data(model.index(999_999, 1))
     label = model.data(model.index(999_999, 0))
     _, peak = tracemalloc.get_traced_memory()
     tracemalloc.stop()
+    return model, text, label, peak
+
+
+def test_million_rows_answer_the_last_row_without_building_the_others(million):
+    # tracemalloc counts every thread: a worker thread left running by an earlier test can add to
+    # one pass, never to both, so the smaller of two passes is the model's own
+    model, text, label, peak = _fill(million)
+    peak = min(peak, _fill(million)[3])
     assert model.rowCount() == 1_000_000
     assert model.columnCount() == 2
     # reference: Python's own format spec, 15 significant digits (the grid may pad decimals with zeros)
