@@ -344,6 +344,9 @@ class MainWindow(QMainWindow):
             self._keep_settings_toggled)
         self.keep_settings_action.setCheckable(True)
         self.keep_settings_action.setChecked(self.settings.value(KEEP_SETTINGS_KEY, False, type=bool))
+        self.summary_action = self._action(
+            "Compare from s&ummary statistics…", "Compare two groups known only by their counts, means "
+            "and spreads (from a certificate, a paper or an older report).", self.open_summary_form)
         self.cancel_action = self._action("&Stop", "Stop the work in progress.", self.cancel, "Esc")
         self.cancel_action.setEnabled(False)
         self.quit_action = self._action("&Quit", "Close Twofold.", self.close, QKeySequence.StandardKey.Quit)
@@ -375,6 +378,8 @@ class MainWindow(QMainWindow):
         run_menu.addAction(self.cancel_action)
         run_menu.addSeparator()
         run_menu.addAction(self.keep_settings_action)
+        run_menu.addSeparator()
+        run_menu.addAction(self.summary_action)
         tools = self.addToolBar("Main")
         tools.setObjectName("main_tools")
         tools.setMovable(False)
@@ -395,6 +400,15 @@ class MainWindow(QMainWindow):
             action.triggered.connect(lambda checked=False, p=path: self.open_recent(p))
         if not paths:
             self.recent_menu.addAction("(no files yet)").setEnabled(False)
+
+    def open_summary_form(self) -> Any:
+        """Open the form of two groups' summary statistics (the window's question carried over)."""
+        from .summary_form import SummaryForm
+
+        form = SummaryForm(self.session.spec, self)
+        form.setAttribute(Qt.WidgetAttribute.WA_DeleteOnClose)
+        form.show()
+        return form
 
     # -- the panels that load late -------------------------------------------------------------
     def showEvent(self, event: Any) -> None:  # noqa: N802 - Qt's name
