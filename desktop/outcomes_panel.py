@@ -69,10 +69,15 @@ HEADING_TIPS = {
 }
 
 
-def _headings(found_level: float, together: float | None, adjustment: str) -> list[str]:
+# What a "yes" of the verdict column means, by the kind of question.
+VERDICT_HEADINGS = {"equivalent": "Equivalent", "not_worse": "Not worse"}
+
+
+def _headings(found_level: float, together: float | None, adjustment: str, kind: str = "differ") -> list[str]:
+    verdict = VERDICT_HEADINGS.get(kind, "Difference found")
     return ["Outcome", "n per group", "Procedure", "Estimate", f"{level_text(found_level)} interval",
             f"Together ({level_text(together)})" if together else "Together", "p-value", "Holm",
-            "Benjamini-Hochberg", "Standardised effect", f"Finding ({'Holm' if adjustment == 'holm' else 'B-H'})"]
+            "Benjamini-Hochberg", "Standardised effect", f"{verdict} ({'Holm' if adjustment == 'holm' else 'B-H'})"]
 
 
 def _cells(done, *, p_holm=None, p_bh=None, finding: Any = "") -> list[str]:
@@ -99,7 +104,8 @@ def table_blocks(found) -> list[tuple]:
     save)."""
     body = [_cells(done, p_holm=row.p_holm, p_bh=row.p_bh, finding=row.finding)
             for done, row in zip(found.outcomes, found.rows)]
-    return [("grid", _headings(found.level, found.simultaneous_level, found.adjustment), body, 3, True, 7),
+    kind = found.spec.question.kind
+    return [("grid", _headings(found.level, found.simultaneous_level, found.adjustment, kind), body, 3, True, 7),
             ("list", [finding.text for finding in found.findings])]
 
 
@@ -221,9 +227,11 @@ class OutcomesPanel(QDialog):
         self.problem.setVisible(False)
         layout.addWidget(self.problem)
 
+        self.direction = text_label()
+        layout.addWidget(self.direction)
         split = QSplitter(Qt.Orientation.Vertical)
         self.grid = QTableWidget(0, len(_headings(0.95, None, "holm")))
-        self._set_headings(_headings(self.spec.question.level, None, "holm"))
+        self._set_headings(_headings(self.spec.question.level, None, "holm", self.spec.question.kind))
         self.grid.verticalHeader().setVisible(False)
         self.grid.setEditTriggers(QAbstractItemView.EditTrigger.NoEditTriggers)
         self.grid.setSelectionBehavior(QAbstractItemView.SelectionBehavior.SelectRows)
@@ -319,7 +327,7 @@ class OutcomesPanel(QDialog):
         procedure, adjustment = self.procedure.currentData(), self.adjustment_method()
         self.found, self.outcomes_done = None, []
         self.grid.setRowCount(len(outcomes))
-        self._set_headings(_headings(spec.question.level, None, adjustment))
+        self._set_headings(_headings(spec.question.level, None, adjustment, spec.question.kind))
         for row, outcome in enumerate(outcomes):
             self._fill_row(row, [outcome.name, "", "waiting", *[""] * 8])
         self.plot.show_rows([])
@@ -357,6 +365,7 @@ class OutcomesPanel(QDialog):
             return  # an outcome of a run replaced or stopped
         self.outcomes_done.append(done)
         self._fill_row(done.index, _cells(done))
+        self._say_direction()
         self._show_plot()
 
     def _on_progress(self, fraction: float, what: str) -> None:
@@ -382,7 +391,8 @@ class OutcomesPanel(QDialog):
     def _show_found(self) -> None:
         found = self.found
         self.outcomes_done = list(found.outcomes)
-        self._set_headings(_headings(found.level, found.simultaneous_level, found.adjustment))
+        self._set_headings(_headings(found.level, found.simultaneous_level, found.adjustment,
+                                     found.spec.question.kind))
         blocks = table_blocks(found)
         for row, cells in enumerate(blocks[0][2]):
             self._fill_row(row, cells)
@@ -402,8 +412,12 @@ class OutcomesPanel(QDialog):
             self.grid.horizontalHeaderItem(column).setToolTip(tip)
 
     def _fill_row(self, row: int, cells: Sequence[str]) -> None:
+        done = next((d for d in self.outcomes_done if d.index == row), None)
+        named = None if done is None or done.result is None else done.result.estimate_name
         for column, text in enumerate(cells):
             item = QTableWidgetItem(visible(text))
+            if column == 3 and named:
+                item.setToolTip(named)
             if 3 <= column <= 9:
                 item.setTextAlignment(Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter)
             self.grid.setItem(row, column, item)
@@ -421,10 +435,20 @@ class OutcomesPanel(QDialog):
                                    and not interval.low <= 0 <= interval.high))
         return rows
 
+    def _groups(self) -> tuple[str, str] | None:
+        return next((tuple(d.prepared.spec.groups) for d in self.outcomes_done
+                     if d.prepared is not None and d.prepared.spec.groups), None)
+
+    def _say_direction(self) -> None:
+        groups = self._groups()
+        self.direction.setText("" if groups is None else
+                               f"Each estimate is {groups[0]} minus {groups[1]}; click a row for that "
+                               "measurement's whole findings.")
+
     def _show_plot(self) -> None:
         selected = self.grid.currentRow()
         named = next((d.effect.name for d in self.outcomes_done if d.effect is not None), "standardised effect")
-        groups = next((d.prepared.spec.groups for d in self.outcomes_done if d.prepared is not None), None)
+        groups = self._groups()
         self.plot.show_rows(self.effect_rows(), picked=str(selected) if selected >= 0 else None,
                             axis_label=f"{named}, {groups[0]} minus {groups[1]}" if groups else named)
 
@@ -443,12 +467,30 @@ class OutcomesPanel(QDialog):
         shown.setWindowTitle(f"{visible(done.outcome.name)}: findings")
         shown.setAttribute(Qt.WidgetAttribute.WA_DeleteOnClose)
         box = QVBoxLayout(shown)
+        standing = self._standing(done)
+        if standing:
+            box.addWidget(text_label(standing))
         panel = FindingsPanel(session, parent=shown)
         box.addWidget(panel)
         shown.finished.connect(lambda _code: panel.cleanup())
         shown.resize(760, 820)
         shown.show()
         return shown
+
+    def _standing(self, done) -> str:
+        """Where this measurement stands among all of them (its findings read it on its own)."""
+        found = self.found
+        if found is None or done.result is None:
+            return ""
+        row = found.rows[done.index]
+        p = found.adjusted()[done.index]
+        if p is None:
+            return ""
+        name = "Holm's" if found.adjustment == "holm" else "Benjamini and Hochberg's"
+        counted = "counts" if row.finding else "does not count"
+        return (f"These findings read {done.outcome.name} on its own. Among the {len(found.outcomes)} "
+                f"measurements compared, {name} adjusted p-value is {format_p(p)}, so it {counted} as a "
+                f"finding at {level_text(found.level)}.")
 
     # -- into a document -----------------------------------------------------------------------
     def copy_table(self) -> None:

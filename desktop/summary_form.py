@@ -79,14 +79,19 @@ def parse_block(text: str) -> list[list[str]]:
     return rows
 
 
+def _spread_text(stats: GroupStats) -> str:
+    """The spread as entered, and the SD found from a standard error."""
+    if stats.given_as == "se":
+        return f"SE {stats.se:.12g} (SD {format_number(stats.standard_deviation, digits=4)})"
+    return f"SD {stats.sd:.12g}" + (" (known)" if stats.sd_known else "")
+
+
 def result_blocks(analysis) -> list[tuple]:
     """The results as report blocks: the groups as entered, every procedure that works from
     summaries, the effect sizes, the suggestion and why, and what the summaries could not give."""
     chosen = analysis.recommendation.key
     level = level_text(analysis.spec.question.level)
-    groups = [(s.label, str(s.n), format_number(s.mean, digits=6),
-               format_number(s.standard_deviation, digits=6) + ("" if s.given_as == "sd" else " (from the SE)")
-               + (" known" if s.sd_known else "")) for s in analysis.stats]
+    groups = [(s.label, str(s.n), f"{s.mean:.12g}", _spread_text(s)) for s in analysis.stats]
     procedures = [((("suggested: " if key == chosen else "") + result.name), result.estimate_name,
                    format_number(result.estimate), format_interval(result.interval) or "none",
                    format_p(result.p_value) if result.p_value is not None else "none")
@@ -95,8 +100,9 @@ def result_blocks(analysis) -> list[tuple]:
              for size in analysis.effect_sizes.values()]
     blocks: list[tuple] = [
         ("h", "The two groups as entered"),
-        ("grid", ["Group", "n", "Mean", "SD"], groups, 1, False),
+        ("grid", ["Group", "n", "Mean", "Spread"], groups, 1, False),
         ("h", "Every procedure that works from summary statistics"),
+        ("p", f"Each difference is {analysis.labels[0]} minus {analysis.labels[1]}."),
         ("grid", ["Procedure", "Estimate of", "Estimate", f"{level} interval", "p-value"], procedures, 2, True),
         ("h", "Effect sizes"),
         ("grid", ["Effect size", "Value", f"{level} interval"], sizes, 1, False),
@@ -175,6 +181,7 @@ class SummaryForm(QDialog):
                 edit.setPlaceholderText(("group name", "count", "mean", "spread")[column])
                 edit.installEventFilter(catcher)
                 edit.textEdited.connect(lambda _text: self._say(""))
+                edit.textChanged.connect(lambda _text: self._forget())
                 grid.addWidget(edit, group + 1, column + 1)
                 row[name] = edit
             self.fields.append(row)
@@ -214,6 +221,15 @@ class SummaryForm(QDialog):
     # -- entering ------------------------------------------------------------------------------
     def _kind_changed(self, index: int) -> None:
         self.spread_heading.setText(SPREAD_KINDS[index][1])
+        self._forget()
+
+    def _forget(self) -> None:
+        """Take the results away once the numbers they came from are changed."""
+        if self.analysis is not None or self.worker.busy:
+            self.worker.cancel()
+            self.analysis = None
+            self.results.setHtml(tables.html([("p", "The numbers have changed: press Compare for their results.")]))
+            self.copy_button.setEnabled(False)
 
     def _say(self, problem: str) -> None:
         self.problem.setText(problem)

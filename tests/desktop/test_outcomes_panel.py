@@ -7,6 +7,7 @@ from __future__ import annotations
 import numpy as np
 import pytest
 from PySide6.QtGui import QGuiApplication
+from PySide6.QtWidgets import QLabel
 from scipy import stats as scipy_stats
 from statsmodels.stats.multitest import multipletests
 
@@ -119,7 +120,7 @@ def test_the_adjustment_switch_changes_the_verdicts_without_running_again(qtbot,
     assert [cell(panel, r, 10) for r in range(4)] == ["no"] * 4
     panel.set_adjustment("bh")
     assert [cell(panel, r, 10) for r in range(4)] == ["yes"] * 4
-    assert panel.grid.horizontalHeaderItem(10).text() == "Finding (B-H)"
+    assert panel.grid.horizontalHeaderItem(10).text() == "Difference found (B-H)"
     assert panel.found.rows == panel.found.with_adjustment("bh").rows
     panel.set_adjustment("holm")
     assert [cell(panel, r, 10) for r in range(4)] == ["no"] * 4
@@ -166,6 +167,11 @@ def test_a_row_opens_that_outcomes_findings(qtbot, panel):
     assert findings.session.analysis is done.analysis
     assert findings.procedure_key() == done.key
     assert findings.headline.text() == report.render(done.analysis, procedure=done.key).paragraph
+    # the findings read the outcome alone: the window says where it stands after the adjustment
+    standing = [label.text() for label in window.findChildren(QLabel) if "on its own" in label.text()]
+    assert standing and format_p(found.p_holm[1]) in standing[0]
+    assert ("does not count" in standing[0]) == (not found.rows[1].finding)
+    assert "east minus west" in panel.direction.text()
     assert panel.plot.row_names() == list(NAMES[:2])
     window.close()
 

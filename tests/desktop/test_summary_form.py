@@ -79,6 +79,15 @@ def test_the_results_are_analyze_summaries_and_scipy(qtbot, form):
     assert "shape of each group" in shown
 
 
+def test_changed_numbers_take_the_results_away(qtbot, form):
+    form.paste_block(BLOCK)
+    compared(qtbot, form)
+    assert "A minus B" in form.results.toPlainText()
+    form.fields[1]["n"].setText("16")
+    assert form.analysis is None and not form.copy_button.isEnabled()
+    assert "press Compare" in form.results.toPlainText()
+
+
 def test_a_standard_error_is_turned_into_the_sd(qtbot, form):
     form.spread_kind.setCurrentIndex(1)
     form.paste_block("A\t12\t41.2\t0.9\nB\t15\t38.0\t1.1\n")
