@@ -353,6 +353,12 @@ class MainWindow(QMainWindow):
         self.plan_action = self._action("&Plan the next study",
                                         "How many to measure next time, or what given sizes can find.",
                                         self.show_plan, "Ctrl+L")
+        self.summary_action = self._action(
+            "Compare from s&ummary statistics…", "Compare two groups known only by their counts, means "
+            "and spreads (from a certificate, a paper or an older report).", self.open_summary_form)
+        self.outcomes_action = self._action(
+            "Compare several &measurement columns…", "Compare the same two groups on several columns of "
+            "the file at once, with p-values adjusted for testing them all.", self.open_outcomes)
         self.cancel_action = self._action("&Stop", "Stop the work in progress.", self.cancel, "Esc")
         self.cancel_action.setEnabled(False)
         self.quit_action = self._action("&Quit", "Close Twofold.", self.close, QKeySequence.StandardKey.Quit)
@@ -386,6 +392,9 @@ class MainWindow(QMainWindow):
         run_menu.addAction(self.plan_action)
         run_menu.addSeparator()
         run_menu.addAction(self.keep_settings_action)
+        run_menu.addSeparator()
+        run_menu.addAction(self.summary_action)
+        run_menu.addAction(self.outcomes_action)
         tools = self.addToolBar("Main")
         tools.setObjectName("main_tools")
         tools.setMovable(False)
@@ -406,6 +415,27 @@ class MainWindow(QMainWindow):
             action.triggered.connect(lambda checked=False, p=path: self.open_recent(p))
         if not paths:
             self.recent_menu.addAction("(no files yet)").setEnabled(False)
+
+    def open_summary_form(self) -> Any:
+        """Open the form of two groups' summary statistics (the window's question carried over)."""
+        from .summary_form import SummaryForm
+
+        form = SummaryForm(self.session.spec, self)
+        form.setAttribute(Qt.WidgetAttribute.WA_DeleteOnClose)
+        form.show()
+        return form
+
+    def open_outcomes(self) -> Any:
+        """Open the comparison of several measurement columns of the file on show."""
+        if self.session.table is None:
+            self.message_bar.show_message("outcomes_need_file")
+            return None
+        from .outcomes_panel import OutcomesPanel
+
+        panel = OutcomesPanel(self.session, self)
+        panel.setAttribute(Qt.WidgetAttribute.WA_DeleteOnClose)
+        panel.show()
+        return panel
 
     # -- the panels that load late -------------------------------------------------------------
     def showEvent(self, event: Any) -> None:  # noqa: N802 - Qt's name

@@ -110,6 +110,8 @@ _DECLARED = (
             "Twofold no longer opens files with a double-click and is gone from Open With ({where})."),
     Message("not_registered", "info",
             "Twofold was not set up to open files with a double-click: there was nothing to take away."),
+    Message("outcomes_need_file", "info",
+            "Open a data file first: the measurements compared are columns of the file."),
     Message("window_crashed", "error",
             "Something unexpected went wrong ({reason}). The window carries on; your file was not changed."),
 )

@@ -82,6 +82,9 @@ LAYERS: tuple[tuple[str, ...], ...] = (
     ("desktop.panel_alone",),
     ("desktop.data_panel", "desktop.setup_panel", "desktop.choice_panel", "desktop.findings_panel",
      "desktop.plan_panel"),
+    # summary statistics and several outcomes, each in a window of its own (an outcome's findings
+    # in the findings panel)
+    ("desktop.summary_form", "desktop.outcomes_panel"),
     ("desktop.main_window", "desktop.first_start"),
     # the program and the README pictures
     ("desktop.app", "desktop.screens"),
