@@ -181,6 +181,15 @@ def _analyze(args, out: TextIO) -> None:
         question_flags.refuse_with(args, summaries=summary_cli.wanted(args))
         return (summary_cli.run(args, out, DEFAULTS) if summary_cli.wanted(args)
                 else outcomes_cli.run(args, out, spec_from_arguments(args)))
+    if args.spec is not None:
+        from . import saved
+
+        loaded = saved.load(args.spec)
+        if loaded.summary_statistics is not None:
+            _refuse_flags_with_saved(args, args.spec.name)
+            if args.path is not None:
+                raise TwofoldError(f"{args.spec.name} is an analysis of summary statistics; it needs no data file.")
+            return summary_cli.run_saved(args, out, loaded)
     prepared, reopened = _prepared(args, args.path, args.spec,
                                    f"python -m engine analyze NEW_PLACE --spec {args.spec}")
     analysis = prepared.analysis

@@ -36,7 +36,7 @@ from .spec import AnalysisSpec, Source
 __all__ = ["FORMAT", "VERSION", "EXTENSION", "MIME_TYPE", "SIZE_LIMIT", "CLOSE_ENOUGH",
            "SavedFileProblem", "SavedAnalysis", "Reopened", "save", "load", "numbers_of",
            "compare_numbers", "reopen", "source_candidates", "write_atomically", "STATUSES",
-           "document_of", "saved_schema"]
+           "document_of", "saved_schema", "rerun_summaries"]
 
 FORMAT = "twofold-analysis"  # the "format" member
 VERSION = 1                  # the "version" member; a newer one is refused with a message
@@ -76,6 +76,8 @@ class SavedAnalysis:
     source_from_here: str | None = None
     schema_version: int | None = None
     plan: Mapping[str, Any] | None = None  # the plan of the next study (engine.plan_member), if saved
+    # an analysis from summary statistics: the two groups as entered (engine.group_stats.GroupStats)
+    summary_statistics: tuple[Any, ...] | None = None
 
 
 @dataclass(frozen=True)
@@ -137,6 +139,14 @@ def _margin_verdicts(analysis) -> dict[str, Any]:
     return verdicts
 
 
+def _group_figures(analysis) -> list[dict[str, Any]]:
+    if getattr(analysis, "input", None) == "summary":  # from summary statistics: the SD in use
+        return [{"label": s.label, "n": int(s.n), "mean": _figure(s.mean),
+                 "sd": _figure(s.standard_deviation)} for s in analysis.stats]
+    return [{"label": s.label, "n": int(s.n), "mean": _figure(s.mean), "sd": _figure(s.sd)}
+            for s in analysis.summaries]
+
+
 def numbers_of(analysis) -> dict[str, Any]:
     """The figures a saved analysis records and :func:`reopen` compares: for each group its
     label, size, mean and SD; for every procedure its estimate, interval ends, p-value, statistic
@@ -145,8 +155,7 @@ def numbers_of(analysis) -> dict[str, Any]:
     margin (``margins``). Unrounded; a missing figure is None, a non-finite one a text."""
     analysis = getattr(analysis, "analysis", analysis)  # a pipeline.Prepared is taken too
     numbers = {
-        "groups": [{"label": s.label, "n": int(s.n), "mean": _figure(s.mean), "sd": _figure(s.sd)}
-                   for s in analysis.summaries],
+        "groups": _group_figures(analysis),
         "procedures": {key: {"estimate": _figure(r.estimate), **_ends(r.interval),
                              "p_value": _figure(r.p_value), "statistic": _figure(r.statistic),
                              "df": _figure(r.df)}
@@ -265,7 +274,8 @@ def document_of(analysis, *, path: str | Path | None = None, now: datetime | Non
 
     analysis = getattr(analysis, "analysis", analysis)
     spec = analysis.spec
-    if spec.source is None or spec.source.sha256 is None or spec.seed is None:
+    from_summaries = getattr(analysis, "input", None) == "summary"
+    if not from_summaries and (spec.source is None or spec.source.sha256 is None or spec.seed is None):
         raise SavedFileProblem("Only an analysis of a data file, with its checksum and seed, can be saved.")
     moment = (now or datetime.now(timezone.utc)).astimezone(timezone.utc)
     folder = Path(path).parent if path is not None else Path(".")
@@ -275,10 +285,12 @@ def document_of(analysis, *, path: str | Path | None = None, now: datetime | Non
         "program_version": __version__,
         "schema_version": SCHEMA_VERSION,
         "saved_at": moment.strftime(SAVED_AT_FORMAT),
-        "source_from_here": _relative_to_folder(spec.source.path, folder),
+        "source_from_here": None if from_summaries else _relative_to_folder(spec.source.path, folder),
         "spec": spec.to_dict(),
         "numbers": numbers_of(analysis),
     }
+    if from_summaries:
+        document["summary_statistics"] = [s.to_dict() for s in analysis.stats]
     if plan is not None:
         document["plan"] = _plan_member(plan, analysis)
     return document
@@ -290,9 +302,9 @@ def save(path: str | Path, analysis, *, plan: Any = None) -> None:
     The data file is never written to; a path that is the data file itself is refused."""
     path = Path(path)
     document = document_of(analysis, path=path, plan=plan)
-    source = Path(document["spec"]["source"]["path"])
+    source = document["spec"]["source"] and Path(document["spec"]["source"]["path"])
     try:
-        if path.exists() and source.exists() and os.path.samefile(path, source):
+        if source and path.exists() and source.exists() and os.path.samefile(path, source):
             raise SavedFileProblem(f"{path.name} is the data file itself; save the analysis to a "
                                    f"file of its own ({EXTENSION}).")
     except OSError:
@@ -464,14 +476,47 @@ def load(path: str | Path) -> SavedAnalysis:
         spec = AnalysisSpec.from_dict(_member(document, "spec", dict, name))
     except OptionProblem as problem:
         raise _refuse(name, f"is damaged: its analysis cannot be used. {problem.message}") from None
-    if spec.source is None or spec.source.sha256 is None:
+    stats = _checked_statistics(document.get("summary_statistics"), name)
+    if stats is None and (spec.source is None or spec.source.sha256 is None):
         raise _refuse(name, "is damaged: it does not name its data file with the file's checksum.")
-    if spec.seed is None:
+    if stats is None and spec.seed is None:
         raise _refuse(name, "is damaged: it does not record the seed of its resampling.")
     numbers = _check_numbers(_member(document, "numbers", dict, name), name)
     plan = _checked_plan(document.get("plan"), name)
     return SavedAnalysis(spec=spec, numbers=numbers, program_version=program, saved_at=saved_at,
-                         location=path, source_from_here=here, schema_version=schema, plan=plan)
+                         location=path, source_from_here=here, schema_version=schema, plan=plan,
+                         summary_statistics=stats)
+
+
+# -- an analysis from summary statistics (the optional "summary_statistics" member) ---------------
+def _checked_statistics(member: Any, name: str) -> tuple[Any, ...] | None:
+    """The two groups as entered (None when the file has none: an analysis of a data file)."""
+    if member is None:
+        return None
+    from .group_stats import GroupStats
+
+    if not isinstance(member, list) or len(member) != 2:
+        raise _refuse(name, "is damaged: its 'summary_statistics' do not hold two groups.")
+    groups = []
+    for number, data in enumerate(member, start=1):
+        try:
+            groups.append(GroupStats.from_dict(data))
+        except (TwofoldError, TypeError, ValueError) as problem:
+            why = getattr(problem, "message", None) or "its members are not label, n, mean, sd or se, sd_known"
+            raise _refuse(name, f"is damaged: summary statistics group {number}: {why}") from None
+    return tuple(groups)
+
+
+def rerun_summaries(saved: SavedAnalysis):
+    """A saved analysis from summary statistics run again from its recorded numbers:
+    (the new ``SummaryAnalysis``, "same" | "close" | "numbers_differ", the differences)."""
+    from .summary_analysis import analyze_summaries
+
+    if saved.summary_statistics is None:
+        raise SavedFileProblem(f"{_saved_name(saved)} is an analysis of a data file, not of summary statistics.")
+    analysis = analyze_summaries(saved.summary_statistics, saved.spec)
+    status, differences = compare_numbers(saved.numbers, numbers_of(analysis))
+    return analysis, status, differences
 
 
 # -- the plan of the next study (the optional "plan" member, engine.plan_member) -----------------
@@ -549,6 +594,9 @@ def reopen(saved: SavedAnalysis, *, source_path: str | Path | None = None,
     that is gone) raises :class:`SavedFileProblem` with the reason in one line."""
     from . import pipeline
 
+    if saved.summary_statistics is not None:
+        raise SavedFileProblem(f"{_saved_name(saved)} is an analysis of summary statistics, with no data "
+                               "file to read again; run it again with analyze --spec.")
     recorded = saved.spec.source
     place, checksum, beside = _locate(saved, source_path)
     if place is None:

@@ -39,7 +39,7 @@ def wanted(args) -> bool:
 
 def _refuse_others(args) -> None:
     given = [flag for flag, value in (("a data file", args.path), ("--spec", args.spec),
-                                      ("--save", args.save), ("--value", args.value),
+                                      ("--value", args.value),
                                       ("--group", args.group), ("--groups", args.groups),
                                       ("--outcomes", getattr(args, "outcomes", None)))
              if value]
@@ -141,6 +141,36 @@ def run(args, out: TextIO, defaults: dict[str, Any]) -> None:
 
     _refuse_others(args)
     analysis = analyze_summaries(_stats(args), _spec(args, defaults))
+    if args.save is not None:  # before anything is printed: a failed save is then the only line
+        from . import saved
+
+        saved.save(args.save, analysis)
+    _write(analysis, args, out)
+
+
+def run_saved(args, out: TextIO, loaded) -> None:
+    """``analyze --spec SAVED`` of a saved analysis from summary statistics: run again from the
+    recorded numbers; a one-line :class:`TwofoldError` unless it gave the saved figures."""
+    from . import saved
+
+    analysis, status, differences = saved.rerun_summaries(loaded)
+    name = args.spec.name
+    if status == "numbers_differ":
+        shown = "; ".join(differences[:saved.DIFFERENCES_SHOWN])
+        more = len(differences) - saved.DIFFERENCES_SHOWN
+        raise TwofoldError(f"{name}: run again from its summary statistics, the numbers differ: {shown}"
+                           + (f" (and {more} more)" if more > 0 else ""))
+    if args.save is not None:
+        saved.save(args.save, analysis)
+    if not args.json:
+        word = "gave the saved numbers" if status == "same" else "gave the saved numbers within rounding"
+        out.write(f"Saved analysis {name}: run again from its summary statistics, it {word}.\n\n")
+    _write(analysis, args, out)
+
+
+def _write(analysis, args, out: TextIO) -> None:
+    from .text import visible
+
     if args.json:
         json.dump(summary_document(analysis), out, indent=2, allow_nan=False)
         out.write("\n")
