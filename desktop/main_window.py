@@ -416,11 +416,12 @@ class MainWindow(QMainWindow):
         if not paths:
             self.recent_menu.addAction("(no files yet)").setEnabled(False)
 
-    def open_summary_form(self) -> Any:
-        """Open the form of two groups' summary statistics (the window's question carried over)."""
+    def open_summary_form(self, spec: AnalysisSpec | None = None) -> Any:
+        """Open the form of two groups' summary statistics (the window's question carried over,
+        or that of ``spec``, a saved analysis's)."""
         from .summary_form import SummaryForm
 
-        form = SummaryForm(self.session.spec, self)
+        form = SummaryForm(spec or self.session.spec, self)
         form.setAttribute(Qt.WidgetAttribute.WA_DeleteOnClose)
         form.show()
         return form
@@ -575,6 +576,8 @@ class MainWindow(QMainWindow):
             from engine import saved as saved_files
 
             found = saved if saved is not None else saved_files.load(path)
+            if found.summary_statistics is not None:  # no data file: run again from its numbers
+                return ("summary_reopened", path, found, *saved_files.rerun_summaries(found))
             return ("reopened", path, saved_files.reopen(found, source_path=source_path, progress=progress,
                                                          cancelled=cancelled))
 
@@ -624,6 +627,23 @@ class MainWindow(QMainWindow):
         else:  # "numbers_differ", or a status this window does not know: never called the same
             self.message_bar.show_message("reopen_numbers_differ", name=name, source=source,
                                           differences=differences or reopened.message)
+
+    def _on_summary_reopened(self, path: Path, saved: Any, analysis: Any, status: str,
+                             differences: tuple) -> Any:
+        """A saved analysis from summary statistics, run again: the summary form opens filled in
+        with its numbers and results; the message bar says whether they are the saved ones."""
+        form = self.open_summary_form(saved.spec)
+        form.show_saved(saved.summary_statistics, analysis)
+        self.recent.add(path)
+        name = path.name
+        if status == "same":
+            self.message_bar.show_message("reopen_summary_same", name=name)
+        elif status == "close":
+            self.message_bar.show_message("reopen_summary_close", name=name)
+        else:
+            self.message_bar.show_message("reopen_summary_differ", name=name,
+                                          differences=differences_words(differences))
+        return form
 
     def locate_source(self, path: Path, saved: Any) -> None:
         """Ask where the data file of the saved analysis ``path`` went, then reopen it from there."""
@@ -684,6 +704,9 @@ class MainWindow(QMainWindow):
             return
         if result[0] == "reopened":
             self._on_reopened(result[1], result[2])
+            return
+        if result[0] == "summary_reopened":
+            self._on_summary_reopened(*result[1:])
             return
         _, path, table, spec = result
         self.message_bar.clear()

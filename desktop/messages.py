@@ -61,6 +61,15 @@ _DECLARED = (
             "{name} reopened: its data file {source} has the checksum it was saved with, and every number "
             "agrees with the saved one to 12 significant digits (the last digits can differ a little on "
             "another computer)."),
+    Message("reopen_summary_same", "info",
+            "{name} reopened: run again from its summary statistics, every number came out exactly as saved."),
+    Message("reopen_summary_close", "info",
+            "{name} reopened: run again from its summary statistics, every number came out as saved to within "
+            "rounding in the last digits."),
+    Message("reopen_summary_differ", "warning",
+            "{name} reopened, but run again from its summary statistics some numbers came out differently "
+            "from the saved ones: {differences}. The results shown are the new ones; the saved file was "
+            "not changed."),
     Message("reopen_numbers_differ", "warning",
             "{name} reopened from the unchanged data file {source}, but some numbers came out differently "
             "from the saved ones: {differences}. The findings shown are the new ones; the saved file was "

@@ -41,6 +41,7 @@ SPREAD_KINDS = (
     ("SD known in advance as the population value (adds the z-test)", "known SD", "sd", True),
 )
 FIELDS = ("label", "n", "mean", "spread")
+SAVED_FILTER = "Saved analyses (*.twofold);;All files (*)"
 SUMMARY_FILTER = "Summary files (*.csv *.tsv *.txt *.xlsx *.xls *.ods);;All files (*)"
 
 
@@ -145,6 +146,7 @@ class SummaryForm(QDialog):
         self.setWindowTitle("Compare from summary statistics")
         self.spec = AnalysisSpec(question=spec.question, statements=spec.statements) if spec else AnalysisSpec()
         self.analysis: Any = None
+        self.saved_path: Path | None = None  # where the analysis was last saved
         self.worker = Worker(self)
         self.worker.finished.connect(self._on_done)
         self.worker.failed.connect(lambda message, expected: self._say(message))
@@ -207,10 +209,15 @@ class SummaryForm(QDialog):
         self.copy_button.setToolTip("Put the results on the clipboard as tables and as plain text.")
         self.copy_button.setEnabled(False)
         self.copy_button.clicked.connect(self.copy_results)
+        self.save_button = QPushButton("Save the analysis...")
+        self.save_button.setToolTip("Keep these numbers, the question and the results as a .twofold file, "
+                                    "to open again or run again with the command.")
+        self.save_button.setEnabled(False)
+        self.save_button.clicked.connect(lambda: self.save_analysis())
         for button in (self.paste_button, self.file_button):
             buttons.addWidget(button)
         buttons.addStretch(1)
-        for button in (self.run_button, self.copy_button):
+        for button in (self.run_button, self.copy_button, self.save_button):
             buttons.addWidget(button)
         layout.addLayout(buttons)
         self.results = QTextBrowser()
@@ -230,6 +237,7 @@ class SummaryForm(QDialog):
             self.analysis = None
             self.results.setHtml(tables.html([("p", "The numbers have changed: press Compare for their results.")]))
             self.copy_button.setEnabled(False)
+            self.save_button.setEnabled(False)
 
     def _say(self, problem: str) -> None:
         self.problem.setText(problem)
@@ -326,6 +334,36 @@ class SummaryForm(QDialog):
         self.analysis = analysis
         self.results.setHtml(tables.html(result_blocks(analysis)))
         self.copy_button.setEnabled(True)
+        self.save_button.setEnabled(True)
+
+    def show_saved(self, stats, analysis: Any) -> None:
+        """Show a saved analysis run again: its numbers in the form, its results below."""
+        self.fill(stats)
+        self._on_done(analysis)
+
+    def save_analysis(self, path: str | Path | None = None) -> bool:
+        """Save the results on show as a ``.twofold`` file (asks for the path when none is given);
+        a failure is said under the form."""
+        from engine import saved as saved_files
+
+        if self.analysis is None:
+            return False
+        if path is None:
+            chosen, _ = QFileDialog.getSaveFileName(self, "Save the analysis", "", SAVED_FILTER)
+            if not chosen:
+                return False
+            path = chosen
+        path = Path(path)
+        if path.suffix.lower() != saved_files.EXTENSION:
+            path = path.with_name(path.name + saved_files.EXTENSION)
+        try:
+            saved_files.save(path, self.analysis)
+        except (TwofoldError, OSError) as problem:
+            self._say(f"Could not save {path.name}: {getattr(problem, 'message', None) or problem}")
+            return False
+        self._say("")
+        self.saved_path = path
+        return True
 
     def copy_results(self) -> None:
         """Put the results on the clipboard as HTML tables and as plain text."""
