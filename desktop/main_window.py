@@ -578,6 +578,8 @@ class MainWindow(QMainWindow):
             found = saved if saved is not None else saved_files.load(path)
             if found.summary_statistics is not None:  # no data file: run again from its numbers
                 return ("summary_reopened", path, found, *saved_files.rerun_summaries(found))
+            if found.outcomes is not None:  # several outcomes: the command runs those again
+                return ("outcomes_saved", path)
             return ("reopened", path, saved_files.reopen(found, source_path=source_path, progress=progress,
                                                          cancelled=cancelled))
 
@@ -704,6 +706,9 @@ class MainWindow(QMainWindow):
             return
         if result[0] == "reopened":
             self._on_reopened(result[1], result[2])
+            return
+        if result[0] == "outcomes_saved":
+            self.message_bar.show_message("reopen_outcomes_command", name=result[1].name)
             return
         if result[0] == "summary_reopened":
             self._on_summary_reopened(*result[1:])

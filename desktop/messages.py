@@ -70,6 +70,9 @@ _DECLARED = (
             "{name} reopened, but run again from its summary statistics some numbers came out differently "
             "from the saved ones: {differences}. The results shown are the new ones; the saved file was "
             "not changed."),
+    Message("reopen_outcomes_command", "warning",
+            "{name} compares several outcomes at once; this window cannot open such a file yet. Run it again "
+            "with the command: python -m engine analyze --spec {name}"),
     Message("reopen_numbers_differ", "warning",
             "{name} reopened from the unchanged data file {source}, but some numbers came out differently "
             "from the saved ones: {differences}. The findings shown are the new ones; the saved file was "

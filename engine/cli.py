@@ -190,6 +190,13 @@ def _analyze(args, out: TextIO) -> None:
             if args.path is not None:
                 raise TwofoldError(f"{args.spec.name} is an analysis of summary statistics; it needs no data file.")
             return summary_cli.run_saved(args, out, loaded)
+        if loaded.outcomes is not None:  # several outcomes: the table, after the confirmation
+            _refuse_flags_with_saved(args, args.spec.name)
+            reopened = _reopened(args.spec, args.path, f"python -m engine analyze NEW_PLACE --spec {args.spec}")
+            if args.save is not None:
+                saved.save(args.save, reopened.prepared)
+            lines = [] if args.json else [f"Saved analysis {args.spec.name}: {reopened.message}", ""]
+            return outcomes_cli.write(reopened.prepared, args, out, lines)
     prepared, reopened = _prepared(args, args.path, args.spec,
                                    f"python -m engine analyze NEW_PLACE --spec {args.spec}")
     analysis = prepared.analysis

@@ -21,7 +21,7 @@ from typing import Any, TextIO
 
 from .errors import TwofoldError
 
-__all__ = ["add_flags", "wanted", "run", "outcomes_document", "outcomes_lines"]
+__all__ = ["add_flags", "wanted", "run", "write", "outcomes_document", "outcomes_lines"]
 
 
 def add_flags(command: argparse.ArgumentParser) -> None:
@@ -48,8 +48,7 @@ def wanted(args) -> bool:
 def _outcomes(args):
     from .outcomes import long_outcomes, wide_outcomes
 
-    given = [flag for flag, value in (("--spec", args.spec), ("--save", args.save),
-                                      ("--value", args.value)) if value]
+    given = [flag for flag, value in (("--spec", args.spec), ("--value", args.value)) if value]
     if given:
         raise TwofoldError(f"python -m engine analyze: with several outcomes leave out {', '.join(given)}; "
                            "the outcomes name the value columns (see --help)")
@@ -130,13 +129,23 @@ def run(args, out: TextIO, spec) -> None:
     """``analyze`` on several outcomes: ``spec`` is the analysis the other flags describe
     (``engine.cli.spec_from_arguments``)."""
     from .outcomes import outcomes_from_file
-    from .text import visible
 
     outcomes = _outcomes(args)
     found = outcomes_from_file(spec, outcomes, procedure=args.same_procedure,
                                adjustment=args.adjust or "holm")
+    if args.save is not None:  # before anything is printed: a failed save is then the only line
+        from . import saved
+
+        saved.save(args.save, found)
+    write(found, args, out)
+
+
+def write(found, args, out: TextIO, lines: list[str] | None = None) -> None:
+    """``found`` printed as JSON, or as plain lines after ``lines``."""
+    from .text import visible
+
     if args.json:
         json.dump(outcomes_document(found), out, indent=2, allow_nan=False)
         out.write("\n")
         return
-    out.write("".join(visible(line) + "\n" for line in outcomes_lines(found)))
+    out.write("".join(visible(line) + "\n" for line in (lines or []) + outcomes_lines(found)))

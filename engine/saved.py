@@ -78,6 +78,8 @@ class SavedAnalysis:
     plan: Mapping[str, Any] | None = None  # the plan of the next study (engine.plan_member), if saved
     # an analysis from summary statistics: the two groups as entered (engine.group_stats.GroupStats)
     summary_statistics: tuple[Any, ...] | None = None
+    # several outcomes at once (engine.saved_outcomes), if saved so
+    outcomes: Mapping[str, Any] | None = None
 
 
 @dataclass(frozen=True)
@@ -96,7 +98,7 @@ class Reopened:
     status: str
     message: str
     differences: tuple[str, ...] = ()
-    prepared: Any = None  # engine.pipeline.Prepared
+    prepared: Any = None  # engine.pipeline.Prepared (engine.outcomes.OutcomesAnalysis for several outcomes)
     source_used: str | None = None
     found_elsewhere: bool = False
 
@@ -205,7 +207,10 @@ def _shown(value: Any) -> str:
 
 def compare_numbers(saved: Mapping[str, Any], now: Mapping[str, Any]) -> tuple[str, tuple[str, ...]]:
     """("same" | "close" | "numbers_differ", one line per figure that is not the same)."""
-    before, after = _flat(saved), _flat(now)
+    return _compare_flat(_flat(saved), _flat(now))
+
+
+def _compare_flat(before: Mapping[str, Any], after: Mapping[str, Any]) -> tuple[str, tuple[str, ...]]:
     differences, beyond = [], False
     for name in [*before, *(n for n in after if n not in before)]:
         old, new = before.get(name), after.get(name)
@@ -272,6 +277,8 @@ def document_of(analysis, *, path: str | Path | None = None, now: datetime | Non
     from . import __version__
     from .jsonout import SCHEMA_VERSION
 
+    if getattr(analysis, "p_holm", None) is not None:  # several outcomes (engine.outcomes)
+        return _outcomes_document(analysis, path=path, now=now)
     analysis = getattr(analysis, "analysis", analysis)
     spec = analysis.spec
     from_summaries = getattr(analysis, "input", None) == "summary"
@@ -293,6 +300,18 @@ def document_of(analysis, *, path: str | Path | None = None, now: datetime | Non
         document["summary_statistics"] = [s.to_dict() for s in analysis.stats]
     if plan is not None:
         document["plan"] = _plan_member(plan, analysis)
+    return document
+
+
+def _outcomes_document(found, *, path, now) -> dict[str, Any]:
+    from .saved_outcomes import outcomes_member
+
+    first = next((d.analysis for d in found.outcomes if d.analysis is not None), None)
+    if first is None:
+        raise SavedFileProblem("No outcome could be analysed, so there is nothing to save.")
+    document = document_of(first, path=path, now=now)
+    document["spec"] = found.spec.to_dict()
+    document["outcomes"] = outcomes_member(found, _figure)
     return document
 
 
@@ -477,6 +496,7 @@ def load(path: str | Path) -> SavedAnalysis:
     except OptionProblem as problem:
         raise _refuse(name, f"is damaged: its analysis cannot be used. {problem.message}") from None
     stats = _checked_statistics(document.get("summary_statistics"), name)
+    outcomes = _checked_outcomes(document.get("outcomes"), name)
     if stats is None and (spec.source is None or spec.source.sha256 is None):
         raise _refuse(name, "is damaged: it does not name its data file with the file's checksum.")
     if stats is None and spec.seed is None:
@@ -485,7 +505,19 @@ def load(path: str | Path) -> SavedAnalysis:
     plan = _checked_plan(document.get("plan"), name)
     return SavedAnalysis(spec=spec, numbers=numbers, program_version=program, saved_at=saved_at,
                          location=path, source_from_here=here, schema_version=schema, plan=plan,
-                         summary_statistics=stats)
+                         summary_statistics=stats, outcomes=outcomes)
+
+
+def _checked_outcomes(member: Any, name: str) -> dict[str, Any] | None:
+    """The "outcomes" member checked (None when the file has none: one outcome)."""
+    if member is None:
+        return None
+    from .saved_outcomes import check_outcomes_member
+
+    try:
+        return check_outcomes_member(member)
+    except OptionProblem as problem:
+        raise _refuse(name, f"is damaged: {problem.message}") from None
 
 
 # -- an analysis from summary statistics (the optional "summary_statistics" member) ---------------
@@ -607,13 +639,25 @@ def reopen(saved: SavedAnalysis, *, source_path: str | Path | None = None,
     elsewhere = source_path is not None or beside
     spec = saved.spec.replace(source=Source(str(place), recorded.sheet, checksum))
     try:
-        prepared = pipeline.from_file(None, spec, progress=progress, cancelled=cancelled)
+        if saved.outcomes is not None:
+            from .outcomes import outcomes_from_file
+            from .saved_outcomes import flat, outcome_figures, outcomes_of
+
+            prepared = outcomes_from_file(spec, outcomes_of(saved.outcomes),
+                                          procedure=saved.outcomes["procedure"],
+                                          adjustment=saved.outcomes["adjustment"],
+                                          progress=progress, cancelled=cancelled)
+        else:
+            prepared = pipeline.from_file(None, spec, progress=progress, cancelled=cancelled)
     except Cancelled:
         raise
     except TwofoldError as problem:
         raise SavedFileProblem(f"{_saved_name(saved)}: the analysis no longer fits its data: "
                                f"{problem.message}") from problem
-    status, differences = compare_numbers(saved.numbers, numbers_of(prepared.analysis))
+    if saved.outcomes is not None:
+        status, differences = _compare_flat(flat(saved.outcomes["figures"]), flat(outcome_figures(prepared, _figure)))
+    else:
+        status, differences = compare_numbers(saved.numbers, numbers_of(prepared.analysis))
     changed = checksum != recorded.sha256
     if changed:
         status = "source_changed"

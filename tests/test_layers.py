@@ -61,10 +61,12 @@ LAYERS: tuple[tuple[str, ...], ...] = (
     ("engine.summary_analysis",),
     # an analysis in words, tables and JSON
     ("engine.side_by_side", "engine.report", "engine.report.*", "engine.jsonout"),
-    # the path from a file to an analysis, and the window's session over it
-    ("engine.pipeline", "engine.saved", "engine.session"),
+    # the path from a file to an analysis
+    ("engine.pipeline",),
     # the same two groups compared on several measurements
     ("engine.outcomes",),
+    # the saved-analysis file (its several-outcomes member beside it), the window's session
+    ("engine.saved", "engine.saved_outcomes", "engine.session"),
     # where the command may write a report; the command's question and design flags
     ("engine.audit", "engine.question_flags"),
     # the headless command (planning's, summaries' and outcomes' parts below the rest)
