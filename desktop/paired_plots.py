@@ -25,7 +25,7 @@ from engine.errors import FileProblem
 from engine.text import visible
 
 from . import clipboard
-from .plots import MAX_POINTS, PlotColours, QQPlot, ShapePlot, ThemedPlot, plot_image, save_plot
+from .plots import MAX_POINTS, PlotColours, QQPlot, ShapePlot, ThemedPlot, plot_image, save_plot_file
 
 __all__ = ["MAX_JOINED", "PLOT_TIPS", "DifferencePlot", "DifferenceShapePlot", "DifferenceQQPlot",
            "JoinedPairsPlot", "pick_points", "joined_segments", "pair_figures"]
@@ -111,13 +111,7 @@ class _Copyable:
 
         Raises :class:`engine.errors.FileProblem` for another suffix or a failed write.
         """
-        path = Path(path)
-        try:
-            return save_plot(self, path)
-        except ValueError as error:
-            raise FileProblem(f"{str(error)[:1].upper()}{str(error)[1:]} ({path.name}).") from None
-        except OSError as error:
-            raise FileProblem(f"Could not save the plot to {path}: {error.strerror or error}.") from None
+        return save_plot_file(self, path)
 
     def ask_save_picture(self) -> Path | None:
         """Ask where to save the plot, then save it; a failure is said in a small box."""

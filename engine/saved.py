@@ -496,28 +496,34 @@ def load(path: str | Path) -> SavedAnalysis:
     except OptionProblem as problem:
         raise _refuse(name, f"is damaged: its analysis cannot be used. {problem.message}") from None
     stats = _checked_statistics(document.get("summary_statistics"), name)
-    outcomes = _checked_outcomes(document.get("outcomes"), name)
+    outcomes = _checked_member(document.get("outcomes"), name, _check_outcomes)
     if stats is None and (spec.source is None or spec.source.sha256 is None):
         raise _refuse(name, "is damaged: it does not name its data file with the file's checksum.")
     if stats is None and spec.seed is None:
         raise _refuse(name, "is damaged: it does not record the seed of its resampling.")
     numbers = _check_numbers(_member(document, "numbers", dict, name), name)
-    plan = _checked_plan(document.get("plan"), name)
+    plan = _checked_member(document.get("plan"), name, _check_plan)
     return SavedAnalysis(spec=spec, numbers=numbers, program_version=program, saved_at=saved_at,
                          location=path, source_from_here=here, schema_version=schema, plan=plan,
                          summary_statistics=stats, outcomes=outcomes)
 
 
-def _checked_outcomes(member: Any, name: str) -> dict[str, Any] | None:
-    """The "outcomes" member checked (None when the file has none: one outcome)."""
+def _checked_member(member: Any, name: str, check: Callable[[Any], dict[str, Any]]) -> dict[str, Any] | None:
+    """An optional member checked by ``check`` (None when the file has none, as older files); a
+    damaged one refuses the file in one line."""
     if member is None:
         return None
-    from .saved_outcomes import check_outcomes_member
-
     try:
-        return check_outcomes_member(member)
+        return check(member)
     except OptionProblem as problem:
         raise _refuse(name, f"is damaged: {problem.message}") from None
+
+
+def _check_outcomes(member: Any) -> dict[str, Any]:
+    """The "outcomes" member checked (a file without it holds one outcome)."""
+    from .saved_outcomes import check_outcomes_member
+
+    return check_outcomes_member(member)
 
 
 # -- an analysis from summary statistics (the optional "summary_statistics" member) ---------------
@@ -558,16 +564,11 @@ def _plan_member(result, analysis) -> dict[str, Any]:
     return plan_member(result, analysis.groups, analysis.spec.design)
 
 
-def _checked_plan(member: Any, name: str) -> dict[str, Any] | None:
-    """The "plan" member checked (None when the file has none, as files saved before plans)."""
-    if member is None:
-        return None
+def _check_plan(member: Any) -> dict[str, Any]:
+    """The "plan" member checked (files saved before plans have none)."""
     from .plan_member import check_plan_member
 
-    try:
-        return check_plan_member(member)
-    except OptionProblem as problem:
-        raise _refuse(name, f"is damaged: {problem.message}") from None
+    return check_plan_member(member)
 
 
 # -- reopening -------------------------------------------------------------------------------------
