@@ -99,6 +99,11 @@ def _spec_for(stats: tuple[GroupStats, GroupStats], spec: AnalysisSpec) -> Analy
     if spec.design != "independent":
         raise OptionProblem("Summary statistics of two groups serve two independent groups; a paired "
                             "comparison needs the pairs' values.")
+    margin = spec.question.margin
+    if margin is not None and margin.unit == "ratio":
+        raise OptionProblem("A margin given as a ratio is judged on the log scale of the values (the "
+                            "ratio of their geometric means), which summary statistics do not give; give "
+                            "the margin in the measurement's units or as a percentage of group 2's mean.")
     known = spec.statements.known_sd
     if all(s.sd_known for s in stats):
         known = (stats[0].standard_deviation, stats[1].standard_deviation)
