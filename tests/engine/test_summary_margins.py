@@ -266,3 +266,12 @@ def test_the_report_command_never_replaces_the_saved_file_or_reports_other_numbe
     page = target.with_suffix(".html")
     code, _, err = run("report", target, "--html", page)
     assert code == 2 and err.count("\n") == 1 and "the numbers differ" in err and not page.exists()
+
+
+def test_known_sds_with_a_margin_suggest_a_margin_procedure_that_ran():
+    # the z-test has no margin version: the suggestion must be one of the procedures that ran
+    document = _document("--summary", A, "--summary", B, "--sd-known", "--equivalence-margin", "3")
+    suggested = document["recommendation"]["key"]
+    assert suggested == "equivalence_welch" and suggested in document["procedures"]
+    assert "no margin version of the z-test" in document["recommendation"]["reasons"][0]
+    assert suggested in document["margin_verdicts"]
