@@ -175,10 +175,18 @@ def _procedure_blocks(analysis, size: str | None) -> list[tuple]:
     details = []
     for key, result in analysis.procedures.items():
         shown = numbers_for(key)
-        details.append([capital(result.name), shown.statistic or "none", shown.df or "none", result.method])
+        details.append([capital(result.name), _statistic(result, shown), shown.df or "none", result.method])
     blocks += [("h", "How each was found"),
                ("grid", ["Procedure", "Test statistic", "Degrees of freedom", "Method"], details, 1, True, 2)]
     return blocks
+
+
+def _statistic(result, shown: DisplayNumbers) -> str:
+    """The test statistic as shown; the two of two one-sided tests, lower end first."""
+    lower, upper = result.details.get("t_lower"), result.details.get("t_upper")
+    if result.key.startswith("equivalence_") and lower is not None and upper is not None:
+        return f"{format_number(lower)} against the lower end; {format_number(upper)} against the upper end"
+    return shown.statistic or "none"
 
 
 def _effect_blocks(analysis) -> list[tuple]:
