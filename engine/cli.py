@@ -235,6 +235,8 @@ def _report(args, out: TextIO) -> None:
     if not is_saved and args.source is not None:
         raise TwofoldError("--source gives the new place of a saved analysis's data file; "
                            f"{args.path.name} is not a saved analysis ({saved.EXTENSION}).")
+    if is_saved and (loaded := saved.load(args.path)).summary_statistics is not None:
+        return summary_cli.write_report(args, out, loaded, ANALYSIS_FLAGS)
     if is_saved:
         prepared, reopened = _prepared(args, args.source, args.path,
                                        f"python -m engine report {args.path} --source NEW_PLACE --html {args.html}")

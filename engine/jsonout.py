@@ -89,8 +89,19 @@ def options_member(spec) -> dict[str, Any]:
     }
 
 
+def _labels(analysis) -> tuple[str, str]:
+    """The two group labels (an analysis from summary statistics has no groups of values)."""
+    return tuple(analysis.labels if _from_summaries(analysis) else analysis.groups.labels)
+
+
+def _from_summaries(analysis) -> bool:
+    return getattr(analysis, "input", None) == "summary"
+
+
 def _reference_mean(analysis) -> float | None:
     """Group 2's mean, the reference of a margin given as a percentage (as the analysis took it)."""
+    if _from_summaries(analysis):
+        return float(analysis.stats[1].mean)
     y = np.asarray(analysis.groups.y, dtype=float)
     return float(np.mean(y)) if y.size else None
 
@@ -114,7 +125,7 @@ def question_member(analysis) -> dict[str, Any]:
         "in_units": None if used is None else {"low": used.low, "high": used.high, "unit": used.unit,
                                                "worse": used.worse},
         "note": entered.note(reference),
-        "text": None if used is None else question.margin_text(used, tuple(analysis.groups.labels)),
+        "text": None if used is None else question.margin_text(used, _labels(analysis)),
     }
     return plain
 
@@ -144,7 +155,7 @@ def margin_verdicts(analysis) -> dict[str, Any]:
     with the (1 - 2 alpha) ``interval`` set against it and the (1 - alpha)
     ``difference_interval``; empty for a question without a margin."""
     question = analysis.spec.question
-    labels = tuple(analysis.groups.labels)
+    labels = _labels(analysis)
     verdicts: dict[str, Any] = {}
     for key, answer in margin_answers(analysis).items():
         result = analysis.procedures[key]

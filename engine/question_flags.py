@@ -194,13 +194,26 @@ def design_of(args: Any, values: tuple[str, ...]) -> dict[str, Any]:
     return design
 
 
+# The flags summary statistics cannot honour: pairs need the values of each unit.
+_PAIRED_FLAGS = ("paired_by", "paired", "zero_rule")
+_MARGIN_FLAGS = ("equivalence_margin", "noninferiority_margin", "worse", "margin_as")
+
+
 def refuse_with(args: Any, *, summaries: bool) -> None:
-    """Refuse the flags that summary statistics (every one of them: a margin question and pairs
-    need the data) or several outcomes (the margin flags: the outcomes' verdicts and joint
-    intervals are those of a difference) cannot honour, in one line naming them."""
-    names = FLAGS if summaries else ("equivalence_margin", "noninferiority_margin", "worse", "margin_as")
+    """Refuse the flags that summary statistics or several outcomes cannot honour, in one line
+    naming them. Summaries: the paired design (pairs need each unit's values) and a margin given
+    as a ratio (judged on the log scale of the values); a margin in units or percent is answered.
+    Several outcomes: every margin flag (the outcomes' verdicts and joint intervals are those of a
+    difference)."""
+    names = _PAIRED_FLAGS if summaries else _MARGIN_FLAGS
     given = [_flag(name) for name in names if _given(args, name)]
+    what = "summary statistics" if summaries else "several outcomes"
     if given:
-        what = "summary statistics" if summaries else "several outcomes"
-        raise OptionProblem(f"python -m engine analyze: {', '.join(given)} cannot be used with {what}; "
-                            "leave them out, or analyse the data file's values themselves.")
+        them = "them" if len(given) > 1 else "it"
+        why = (f"leave {them} out: pairs need each unit's two values, which summaries do not give"
+               if summaries else f"leave {them} out, or analyse the data file's values themselves")
+        raise OptionProblem(f"python -m engine analyze: {', '.join(given)} cannot be used with {what}; {why}.")
+    if summaries and getattr(args, "margin_as", None) == "ratio":
+        raise OptionProblem("python -m engine analyze: --margin-as ratio cannot be used with summary "
+                            "statistics: a ratio margin is judged on the log scale of the values, which "
+                            "summaries do not give; give the margin in units or as a percentage (5%).")

@@ -19,6 +19,7 @@ from .advice import ConsideredOption, Recommendation
 from .analysis import Robustness, _part, _robustness, margin_answer_of
 from .errors import DataProblem, OptionProblem
 from .group_stats import GroupStats
+from .margin_advice import CLOSEST
 from .procedures import registry
 from .question import Margin, MarginAnswer
 from .results import EffectSize, Finding, ProcedureResult, frozen_mapping
@@ -99,6 +100,11 @@ def _spec_for(stats: tuple[GroupStats, GroupStats], spec: AnalysisSpec) -> Analy
     if spec.design != "independent":
         raise OptionProblem("Summary statistics of two groups serve two independent groups; a paired "
                             "comparison needs the pairs' values.")
+    margin = spec.question.margin
+    if margin is not None and margin.unit == "ratio":
+        raise OptionProblem("A margin given as a ratio is judged on the log scale of the values (the "
+                            "ratio of their geometric means), which summary statistics do not give; give "
+                            "the margin in the measurement's units or as a percentage of group 2's mean.")
     known = spec.statements.known_sd
     if all(s.sd_known for s in stats):
         known = (stats[0].standard_deviation, stats[1].standard_deviation)
@@ -152,10 +158,16 @@ def _recommend(spec: AnalysisSpec, stats: tuple[GroupStats, GroupStats],
         base, why = "welch_t", ("Welch's t-test does not take the two spreads to be equal; from "
                                 "summaries it is the safe choice.")
     key = base
-    margin_keys = [r.key for r in records if r.counterpart == base]
+    closest = CLOSEST.get(base, base)  # the z-test has no margin version: Welch's t comes closest
+    margin_keys = [r.key for r in records if r.counterpart == closest]
     if spec.question.has_margin and margin_keys:
         key = margin_keys[0]
-        why += f" The margin question is answered by the procedure built on it ({registry.record(key).name})."
+        name = registry.record(key).name
+        why = (why + f" The margin question is answered by the procedure built on it ({name})."
+               if closest == base else
+               "Both standard deviations were given as known population values, but there is no margin "
+               f"version of the z-test here: the margin question is answered by the {name}, with the "
+               "spreads taken as estimates from the summaries.")
     reasons = [why, "Only summary statistics were given, so the shape of the groups could not be "
                "checked and the suggestion rests on what was stated alone."]
     if needs:

@@ -27,7 +27,8 @@ from .margins import margin_question, margin_tests
 from .sentences import question_text
 from .numbers import DisplayNumbers, _numbers, format_interval, level_text, margin_decimals
 
-__all__ = ["html", "plain", "blocks", "title", "answer_lines", "summary_cautions", "ANSWER_HEADING"]
+__all__ = ["html", "plain", "blocks", "title", "answer_lines", "question_sentence", "margin_texts",
+           "summary_cautions", "ANSWER_HEADING"]
 
 ANSWER_HEADING = "The answer against the margin"
 # The cautions of every report that speak of checks of the values; from summaries none ran.
@@ -58,13 +59,14 @@ def _group_rows(analysis) -> tuple[list[str], list[list[str]]]:
     return head, body
 
 
-def _margin_words(analysis, key: str) -> tuple[str, str]:
+def margin_texts(analysis, key: str | None = None) -> tuple[str, str]:
     """The margin as the verdicts name it ("±1.90 (±5% of B's mean)") and as it was entered
     ("-5% to 5% of B's mean (38), that is -1.90 to 1.90 in the measurement's units"; for
-    non-inferiority the size on the worse side and which way is worse)."""
+    non-inferiority the size on the worse side and which way is worse), its decimals those of
+    the verdict of procedure ``key`` (default: the suggested one). Only for a margin question."""
     question, used = analysis.spec.question, analysis.margin
     given = question.margin
-    answer = analysis.margin_answer(key)
+    answer = analysis.margin_answer(key or analysis.recommendation.key)
     decimals = margin_decimals(answer) if answer is not None else shared_decimals([used.low, used.high])
     size = question.margin_text(used, analysis.labels, decimals)
     not_worse = question.kind == "not_worse"
@@ -82,8 +84,12 @@ def _margin_words(analysis, key: str) -> tuple[str, str]:
     return size, entered
 
 
-def _question_sentence(analysis, size: str | None) -> str:
+def question_sentence(analysis, size: str | None = None) -> str:
+    """The question in words: "Do A and B differ?", "Are A and B equivalent within ±1.90 (±5% of
+    B's mean)?" (``size``: the margin as :func:`margin_texts` names it)."""
     question = analysis.spec.question
+    if question.has_margin and size is None:
+        size = margin_texts(analysis)[0]
     if question.has_margin:
         return margin_question(question, analysis.labels, size or "")
     return question_text(question, analysis.labels)
@@ -127,7 +133,7 @@ def _choice_rows(analysis, size: str | None, entered: str | None) -> list[tuple[
     rows = [("Groups compared", f"{first} (first) and {second} (second); differences are "
                                 f"{first} minus {second}"),
             ("Design", "two independent groups"),
-            ("Question", _question_sentence(analysis, size))]
+            ("Question", question_sentence(analysis, size))]
     level = level_text(question.level)
     if analysis.margin is not None:
         rows.append(("Margin as entered", entered))
@@ -169,10 +175,18 @@ def _procedure_blocks(analysis, size: str | None) -> list[tuple]:
     details = []
     for key, result in analysis.procedures.items():
         shown = numbers_for(key)
-        details.append([capital(result.name), shown.statistic or "none", shown.df or "none", result.method])
+        details.append([capital(result.name), _statistic(result, shown), shown.df or "none", result.method])
     blocks += [("h", "How each was found"),
                ("grid", ["Procedure", "Test statistic", "Degrees of freedom", "Method"], details, 1, True, 2)]
     return blocks
+
+
+def _statistic(result, shown: DisplayNumbers) -> str:
+    """The test statistic as shown; the two of two one-sided tests, lower end first."""
+    lower, upper = result.details.get("t_lower"), result.details.get("t_upper")
+    if result.key.startswith("equivalence_") and lower is not None and upper is not None:
+        return f"{format_number(lower)} against the lower end; {format_number(upper)} against the upper end"
+    return shown.statistic or "none"
 
 
 def _effect_blocks(analysis) -> list[tuple]:
@@ -222,7 +236,7 @@ def blocks(analysis) -> list[tuple]:
     key = _reported_key(analysis)
     size = entered = None
     if analysis.margin is not None:
-        size, entered = _margin_words(analysis, key or analysis.recommendation.key)
+        size, entered = margin_texts(analysis, key)
     out: list[tuple] = []
     if analysis.margin is not None:
         out += [("h", ANSWER_HEADING)] + [("p", line) for line in answer_lines(analysis)]

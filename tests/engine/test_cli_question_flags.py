@@ -131,8 +131,8 @@ def test_a_saved_analysis_refuses_the_new_flags(tmp_path):
 
 
 @pytest.mark.parametrize("flags, named", [
-    (["--summary", "a n=10 mean=5.1 sd=1.2", "--summary", "b n=12 mean=5.6 sd=1.0", "--equivalence-margin", "1"],
-     ["--equivalence-margin", "summary statistics"]),
+    (["--summary", "a n=10 mean=5.1 sd=1.2", "--summary", "b n=12 mean=5.6 sd=1.0", "--equivalence-margin",
+      "0.8:1.25", "--margin-as", "ratio"], ["--margin-as ratio", "summary statistics"]),
     (["--summary", "a n=10 mean=5.1 sd=1.2", "--summary", "b n=12 mean=5.6 sd=1.0", "--paired"],
      ["--paired", "summary statistics"]),
     ([BOLTS, "--outcomes", "strength_mpa", "--group", "supplier", "--noninferiority-margin", "3", "--worse", "lower"],

@@ -130,10 +130,13 @@ def test_a_data_file_is_refused_with_a_summary_file(summary_file):
     assert code == 2 and "needs no data file" in err
 
 
-def test_report_of_a_summary_file_says_so_in_one_line(summary_file, tmp_path):
+def test_report_of_a_summary_file_is_the_report_of_summaries(summary_file, tmp_path):
     target, _ = summary_file
-    code, _, err = run("report", target, "--html", tmp_path / "r.html")
-    assert code == 2 and err.count("\n") == 1 and "summary statistics" in err
+    code, out, err = run("report", target, "--html", tmp_path / "r.html")
+    assert code == 0 and not err and out.startswith("Report written to")
+    page = (tmp_path / "r.html").read_text(encoding="utf-8")
+    assert "Comparison of Supplier A and Supplier B from summary statistics" in page
+    assert "standard error 1.1" in page and "it gave the saved numbers" in page
 
 
 def test_files_of_data_saved_before_still_load_and_reopen(tmp_path):

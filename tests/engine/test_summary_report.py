@@ -137,3 +137,14 @@ def test_known_sds_give_the_z_test_and_say_so():
     text = report.plain(_analysis(stats=known))
     assert "Why the z-test" in text and re.search(r"Known population SDs\s+2\.000 and 2\.000", text)
     assert "SD 2, a known population value" in text
+
+
+def test_two_one_sided_tests_show_both_statistics():
+    analysis = _analysis(Question("equivalent", 0.95, margin=Margin.within(3.0)))
+    sd_b = 1.1 * 15 ** 0.5
+    # reference: scipy.stats.ttest_ind_from_stats with group 1's mean moved by the margin's end
+    # (the t against an end is the usual Welch t of the difference minus that end)
+    lower = scipy_stats.ttest_ind_from_stats(41.2 + 3.0, 3.1, 12, 38.0, sd_b, 15, equal_var=False).statistic
+    upper = scipy_stats.ttest_ind_from_stats(41.2 - 3.0, 3.1, 12, 38.0, sd_b, 15, equal_var=False).statistic
+    text = report.plain(analysis)
+    assert f"{lower:.3g} against the lower end; {upper:.3g} against the upper end" in text
