@@ -126,7 +126,7 @@ def _question_lines(analysis) -> list[str]:
     """The question; for a margin question also the margin as entered and each margin
     procedure's verdict against it (in the words of every report)."""
     from .jsonout import margin_answers
-    from .report.summary_report import margin_texts, question_sentence
+    from .report.from_summaries import margin_texts, question_sentence
     from .rounding import level_text
 
     question = analysis.spec.question
@@ -185,8 +185,25 @@ def run(args, out: TextIO, defaults: dict[str, Any]) -> None:
     if args.save is not None:  # before anything is printed: a failed save is then the only line
         from . import saved
 
+        _refuse_saving_over(args.save, args.summary_file)
         saved.save(args.save, analysis)
     _write(analysis, args, out)
+
+
+def _refuse_saving_over(target, summary_file) -> None:
+    """A one-line :class:`TwofoldError` when ``--save`` names the file of summaries it reads."""
+    import os
+    from pathlib import Path
+
+    if summary_file is None:
+        return
+    try:
+        same = Path(target).exists() and os.path.samefile(target, summary_file)
+    except OSError:
+        same = False
+    if same:
+        raise TwofoldError(f"--save {Path(target).name} would replace the file of summary statistics "
+                           "it reads; save the analysis to a .twofold file of its own.")
 
 
 def _rerun(name: str, loaded):
@@ -224,7 +241,7 @@ def write_report(args, out: TextIO, loaded, flags: tuple[str, ...]) -> None:
     (the page of a summary analysis in ``engine.report``). The flags of a data file (``flags``, the
     analysis flags, and --source) are refused in one line: the saved file holds every choice."""
     from . import audit, saved
-    from .report.summary_report import html as page_of
+    from .report.from_summaries import html as page_of
 
     name = args.path.name
     given = [flag for flag in flags if getattr(args, flag, None) not in (None, False)]

@@ -60,6 +60,17 @@ def test_summary_file_and_plain_lines(tmp_path):
     assert code == 0 and "Welch t-test" in out and "Hedges' g" in out and "need the values" in out
 
 
+def test_saving_over_the_file_of_summaries_is_refused(tmp_path):
+    # the user's file is never changed: --save naming the file it reads gives one line
+    source = tmp_path / "summaries.csv"
+    source.write_text("label,n,mean,sd\nA,12,41.2,3.1\nB,15,38.0,4.4\n", encoding="utf-8")
+    before = source.read_bytes()
+    code, out, err = run("analyze", "--summary-file", str(source), "--save", str(source))
+    assert code == 2 and out == ""
+    assert "would replace the file of summary statistics" in err and len(err.strip().splitlines()) == 1
+    assert source.read_bytes() == before
+
+
 @pytest.mark.parametrize("argv, message", [
     (["--summary", A], "give --summary twice"),
     (["--summary", A, "--summary", "B n=15 mean=x sd=1"], "mean= must be a number"),

@@ -12,7 +12,7 @@ from scipy import stats as scipy_stats
 
 from engine.group_stats import GroupStats
 from engine.question import Margin, Question
-from engine.report import summary_report as report
+from engine.report import from_summaries as report
 from engine.report.cautions import CAUTIONS_ALWAYS, MARGIN_CAUTIONS
 from engine.rounding import format_p
 from engine.spec import AnalysisSpec
