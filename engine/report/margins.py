@@ -43,13 +43,24 @@ def margin_size(analysis, question=None, labels: tuple[str, str] | None = None) 
     else:
         margin = question.margin
         if margin.unit == "percent":
-            given = Margin(margin.low, margin.high, "units", margin.worse)
-            return f"{question.margin_text(given, labels, entered_decimals([margin.low, margin.high]))}% of {labels[1]}'s mean"
+            return f"{_percent_span(question)} of {labels[1]}'s mean"
     if question.margin.unit == "percent":  # converted: written as the verdict writes it
         decimals = _converted_decimals(analysis, None)
     else:
         decimals = entered_decimals([margin.low, margin.high])
     return question.margin_text(margin, labels, decimals)
+
+
+def _percent_span(question) -> str:
+    """A percentage margin as entered, each number with its sign: "±5%", "-2% to 3%", "4%"."""
+    margin = question.margin
+    if question.kind == "not_worse":
+        (size,) = _entered(abs(margin.bound))
+        return f"{size}%"
+    low, high = _entered(margin.low, margin.high)
+    if margin.symmetric:
+        return f"±{high}%"
+    return f"{low}% to {high}%"
 
 
 def _converted_decimals(analysis, key: str | None) -> int | None:

@@ -15,6 +15,7 @@ from engine import pipeline, report
 from engine.analysis import _robustness, analyze
 from engine.question import Margin, Question
 from engine.report import document
+from engine.report.sentences import question_text
 from engine.report.cautions import CAUTIONS_ALWAYS, MARGIN_CAUTIONS
 from engine.results import Groups, Interval, ProcedureResult
 from engine.rounding import format_p
@@ -327,3 +328,14 @@ def test_a_probability_estimate_leaves_the_groups_their_own_decimals():
     assert f"(median {median:.1f}, quartiles" in text.paragraph
     first_row = next(line for line in text.plain.splitlines() if line.startswith(analysis.groups.labels[0] + " "))
     assert first_row.split()[4] == f"{median:.1f}"
+
+
+@pytest.mark.parametrize("margin, kind, said", [
+    (Margin(-5, 5, "percent"), "equivalent", "within ±5% of B's mean?"),
+    (Margin(-2, 3, "percent"), "equivalent", "within -2% to 3% of B's mean?"),
+    (Margin.not_worse_by(4, "lower", "percent"), "not_worse", "4% of B's mean"),
+])
+def test_a_percentage_margin_without_the_analysis_is_said_once(margin, kind, said):
+    # before any analysis (no group 2 mean yet) the question names the percentage once
+    text = question_text(Question(kind=kind, margin=margin), ("A", "B"))
+    assert said in text and text.count("%") == said.count("%")
