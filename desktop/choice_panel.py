@@ -302,11 +302,17 @@ class ChoicePanel(QWidget):
         summary, labels = paired.summary, groups.labels
         shape_card.title.setText(f"Shape of the differences, {visible(labels[0])} minus {visible(labels[1])} "
                                  f"({summary.n:,} pairs)")
-        shape_plot.set_title("histogram and normal curve")
-        shape_plot.show_group(paired.differences, mean=summary.mean, sd=summary.sd)
-        qq_plot.set_title("normal Q-Q plot")
-        qq_plot.show_points(paired.shape.qq_theoretical, paired.shape.qq_observed, mean=summary.mean,
-                            sd=summary.sd)
+        # differences that are all one amount have no shape to draw: a histogram of them would
+        # put its one bar around zero, a bin's width either side
+        spread = getattr(paired, "common_difference", None) is None
+        for plot in (shape_plot, qq_plot):
+            plot.setVisible(spread)
+        if spread:
+            shape_plot.set_title("histogram and normal curve")
+            shape_plot.show_group(paired.differences, mean=summary.mean, sd=summary.sd)
+            qq_plot.set_title("normal Q-Q plot")
+            qq_plot.show_points(paired.shape.qq_theoretical, paired.shape.qq_observed, mean=summary.mean,
+                                sd=summary.sd)
         shape_card.show_figures(_shape_figures(paired.shape))
         shape_card.show_findings([f for f in paired.findings if f.key not in _PAIR_KEYS])
         pairs_card.title.setText("The pairs")

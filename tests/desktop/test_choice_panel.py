@@ -253,6 +253,7 @@ def test_paired_data_show_the_checks_of_pairs_not_those_of_two_groups(qtbot, gro
     # the pairs' own checks (how they go together) sit with the pairs; the shape with the shape
     assert "go together" in _card_text(pairs_card) and "go together" not in _card_text(shape_card)
     assert "Shapiro-Wilk" in _card_text(shape_card)
+    assert not any(plot.isHidden() for plot in widget.paired_plots)
     # two separate groups again: their spread and statements are back
     session.store("analysis", analyze(groups, AnalysisSpec(resamples=300, seed=4)))
     assert not widget.spread_card.isHidden() and not widget.equal_spread.isHidden()
@@ -267,4 +268,7 @@ def test_pairs_one_amount_apart_say_so_with_the_pairs(qtbot):
     assert "Every pair differs by the same amount, 0.02" in text
     assert widget.session.analysis.recommendation.key == "signed_rank"
     assert "paired_t" not in [widget.picker.itemData(i) for i in range(widget.picker.count())]
+    # no histogram or Q-Q plot of one amount (its one bar would sit around zero)
+    assert all(plot.isHidden() for plot in widget.paired_plots[:2])
+    assert "Shapiro-Wilk check of a bell shape cannot be run" in _card_text(widget.paired_cards[0])
     widget.cleanup()
