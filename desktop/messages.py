@@ -100,8 +100,10 @@ _DECLARED = (
     Message("margin_wanted", "info", "Type a margin to ask this. Still in force: {question}"),
     # the groups swapped under a percentage margin (always of group 2's mean)
     Message("swap_percent_margin", "info",
-            "Swapped with the same margin: it was {before} ({second}'s mean is {mean}), and as a "
-            "percentage is always of group 2's mean, it is now given in the measurement's units: {after}."),
+            "Same margin after the swap, now in units. It was {before}; {second}'s mean is {mean}."),
+    Message("swap_percent_why", "info",
+            "A percentage margin is always of group 2's mean. After the swap that is {first}'s mean, "
+            "which would make another margin, so the margin is kept as the amounts it stood for: {after}."),
     Message("swap_percent_unknown", "warning",
             "Swapped: the margin is a percentage of group 2's mean, which is now {after}'s instead "
             "of {before}'s, so in the measurement's units it is not the same margin as before."),

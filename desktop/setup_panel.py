@@ -276,8 +276,10 @@ class SetupPanel(QWidget):
         self.swap_button.setEnabled(not wide and bool(spec.groups) or wide and len(values) == 2)
         first, second = self._labels()
         self.margin_entry.refresh((first, second))
-        if spec.question != self._swapped_question:
+        if spec.question != self._swapped_question and self.swap_note.text():
             self.swap_note.setText("")
+            self.swap_note.setToolTip("")
+            self._fit_height()
         self.swap_note.setVisible(bool(self.swap_note.text()))
         with QSignalBlocker(self.question):
             self.question.clear()
@@ -387,30 +389,41 @@ class SetupPanel(QWidget):
             return
         if self._session.spec.question == question and note:
             self._swapped_question = question
-            self.swap_note.setText(note)
+            self.swap_note.setText(note[0])
+            self.swap_note.setToolTip(note[1])
             self.swap_note.setVisible(True)
+            self._fit_height()
 
-    def _swapped(self, question: Question, labels: tuple[str, str]) -> tuple[Question, str]:
-        """``question`` for the groups exchanged, and what the line under the margin says of it
-        ("" when the margin is simply turned over)."""
+    def _fit_height(self) -> None:
+        """Ask for the height the wrapped lines need at this width, so that the window gives it
+        rather than squeezing the rows of the form over one another."""
+        self.setMinimumHeight(0)
+        needed = self.heightForWidth(self.width()) if self.hasHeightForWidth() else -1
+        self.setMinimumHeight(max(needed, self.minimumSizeHint().height()))
+
+    def _swapped(self, question: Question, labels: tuple[str, str]) -> tuple[Question, tuple[str, str] | None]:
+        """``question`` for the groups exchanged, and the line under the margin with its tooltip
+        (None when the margin is simply turned over)."""
         margin = question.margin
         if margin is None or margin.unit != "percent":
-            return mirrored(question), ""
+            return mirrored(question), None
         first, second = labels
+        unknown = (message_text("swap_percent_unknown", before=second, after=first), "")
         intake = self._session.intake
         if intake is None or tuple(intake.groups.labels) != (first, second):
-            return mirrored(question), message_text("swap_percent_unknown", before=second, after=first)
+            return mirrored(question), unknown
         reference = float(intake.groups.y.mean())  # group 2's mean, as the analysis takes it
         try:
             units = margin.in_units(reference)
         except OptionProblem:  # group 2's mean is 0: no percentage of it to keep
-            return mirrored(question), message_text("swap_percent_unknown", before=second, after=first)
+            return mirrored(question), unknown
         if question.kind == "equivalent":
             units = Margin(-units.high, -units.low, "units")
         turned = Question(question.kind, question.level, units)
-        return turned, message_text(
-            "swap_percent_margin", before=entered_words(margin, labels), second=second,
-            mean=f"{reference:.6g}", after=entered_words(units, (first, second)))
+        return turned, (
+            message_text("swap_percent_margin", before=entered_words(margin, labels), second=second,
+                         mean=f"{reference:.6g}"),
+            message_text("swap_percent_why", first=first, after=entered_words(units, (second, first))))
 
     def _question_edited(self, _: int) -> None:
         if not self._refreshing:  # the margin's fields ask it, or say why they cannot yet

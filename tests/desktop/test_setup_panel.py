@@ -186,7 +186,8 @@ def test_swapping_under_a_percentage_margin_keeps_the_same_margin_in_units(qtbot
     assert margin.unit == "units"
     assert (margin.low, margin.high) == (-0.04 * float(np.mean(south)), -(-0.02 * float(np.mean(south))))
     note = panel.swap_note.text()
-    assert not panel.swap_note.isHidden() and "measurement's units" in note and "south_forge's mean" in note
+    assert not panel.swap_note.isHidden() and "now in units" in note and "south_forge's mean" in note
+    assert "always of group 2's mean" in panel.swap_note.toolTip()
     session.store("intake", pipeline.form_groups(session.table, session.spec))
     after = pipeline.run(session.intake, session.spec)
     # reference: statsmodels ttost_ind(south, north, low, high, usevar="unequal"), the swapped
