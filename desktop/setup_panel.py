@@ -393,6 +393,9 @@ class SetupPanel(QWidget):
             self.swap_note.setToolTip(note[1])
             self.swap_note.setVisible(True)
             self._fit_height()
+            entry = self.margin_entry
+            for field in (entry.size, entry.low, entry.high):
+                field.setCursorPosition(0)  # a long amount shows its sign and first digits
 
     def _fit_height(self) -> None:
         """Ask for the height the wrapped lines need at this width, so that the window gives it

@@ -188,6 +188,8 @@ def test_swapping_under_a_percentage_margin_keeps_the_same_margin_in_units(qtbot
     note = panel.swap_note.text()
     assert not panel.swap_note.isHidden() and "now in units" in note and "south_forge's mean" in note
     assert "always of group 2's mean" in panel.swap_note.toolTip()
+    low = panel.margin_entry.low
+    assert float(low.text()) == pytest.approx(margin.low, rel=1e-11) and low.cursorPosition() == 0
     session.store("intake", pipeline.form_groups(session.table, session.spec))
     after = pipeline.run(session.intake, session.spec)
     # reference: statsmodels ttost_ind(south, north, low, high, usevar="unequal"), the swapped
