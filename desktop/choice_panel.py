@@ -33,6 +33,8 @@ _SEVERITY_RANK = {"info": 0, "note": 1, "warning": 2}
 _SEVERITY_WORD = {"info": "", "note": "Worth a look: ", "warning": "Take care: "}
 _SHAPE_KEYS = ("normality", "skewness", "tails", "outliers", "ties")
 _SPREAD_KEYS = ("spread", "sizes", "pooled_ties")
+# The checks of matched pairs about the pairs themselves (the rest are the differences' shape).
+_PAIR_KEYS = ("pairs", "same_difference", "zero_differences", "pair_correlation")
 
 # One sentence per figure of the checks, shown when the pointer rests on it.
 CHECK_TIPS = {
@@ -265,12 +267,17 @@ class ChoicePanel(QWidget):
             card.setVisible(paired is None)
         for card in self.paired_cards:
             card.setVisible(paired is not None)
+        # the spreads of two separate groups, and what may be stated about them, are no part of
+        # a paired design: its procedures work on the differences
+        self.spread_card.setVisible(paired is None)
+        for widget in (self.equal_spread, self.advanced_button):
+            widget.setVisible(paired is None)
+        self.sd_box.setVisible(paired is None and self.advanced_button.isChecked())
         if paired is not None:
             self._show_pairs(groups, paired)
+            return
         values = (groups.x, groups.y)
         for index, (card, (shape_plot, qq_plot)) in enumerate(zip(self.shape_cards, self.shape_plots)):
-            if paired is not None:
-                break
             summary, shape = analysis.summaries[index], checks.shapes[index]
             card.title.setText(f"Shape of {visible(groups.labels[index])} ({summary.n:,} values)")
             shape_plot.set_title("histogram and normal curve")
@@ -295,13 +302,19 @@ class ChoicePanel(QWidget):
         summary, labels = paired.summary, groups.labels
         shape_card.title.setText(f"Shape of the differences, {visible(labels[0])} minus {visible(labels[1])} "
                                  f"({summary.n:,} pairs)")
-        shape_plot.set_title("histogram and normal curve")
-        shape_plot.show_group(paired.differences, mean=summary.mean, sd=summary.sd)
-        qq_plot.set_title("normal Q-Q plot")
-        qq_plot.show_points(paired.shape.qq_theoretical, paired.shape.qq_observed, mean=summary.mean,
-                            sd=summary.sd)
+        # differences that are all one amount have no shape to draw: a histogram of them would
+        # put its one bar around zero, a bin's width either side
+        spread = getattr(paired, "common_difference", None) is None
+        for plot in (shape_plot, qq_plot):
+            plot.setVisible(spread)
+        if spread:
+            shape_plot.set_title("histogram and normal curve")
+            shape_plot.show_group(paired.differences, mean=summary.mean, sd=summary.sd)
+            qq_plot.set_title("normal Q-Q plot")
+            qq_plot.show_points(paired.shape.qq_theoretical, paired.shape.qq_observed, mean=summary.mean,
+                                sd=summary.sd)
         shape_card.show_figures(_shape_figures(paired.shape))
-        shape_card.show_findings(paired.findings)
+        shape_card.show_findings([f for f in paired.findings if f.key not in _PAIR_KEYS])
         pairs_card.title.setText("The pairs")
         difference_plot.show_pairs(paired.pair_means, paired.differences, mean_difference=summary.mean,
                                    labels=labels)
@@ -313,7 +326,7 @@ class ChoicePanel(QWidget):
                             "Each unit's two values are joined by a line only when there are few enough "
                             "units for the lines to be followed."))
         pairs_card.show_figures(figures)
-        pairs_card.show_findings([])
+        pairs_card.show_findings([f for f in paired.findings if f.key in _PAIR_KEYS])
 
     def _show_suggestion(self, analysis) -> None:
         suggested = analysis.recommendation
@@ -356,6 +369,8 @@ class ChoicePanel(QWidget):
                 self.advanced_button.setChecked(True)
                 for edit, value in zip(self.sd_edits, statements.known_sd):
                     edit.setText(repr(float(value)))
+            if self._shown is not None and self._shown.design == "paired":
+                self.sd_box.hide()  # known SDs of two separate groups: no part of pairs
         finally:
             self._syncing = False
         self._show_assumption()

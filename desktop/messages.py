@@ -98,6 +98,15 @@ _DECLARED = (
     Message("margin_no_room", "warning", "A margin of {value} leaves no room either side of no difference."),
     Message("margin_refused", "warning", "{reason} Still in force: {question}"),
     Message("margin_wanted", "info", "Type a margin to ask this. Still in force: {question}"),
+    # the groups swapped under a percentage margin (always of group 2's mean)
+    Message("swap_percent_margin", "info",
+            "Same margin after the swap, now in units. It was {before}; {second}'s mean is {mean}."),
+    Message("swap_percent_why", "info",
+            "A percentage margin is always of group 2's mean. After the swap that is {first}'s mean, "
+            "which would make another margin, so the margin is kept as the amounts it stood for: {after}."),
+    Message("swap_percent_unknown", "warning",
+            "Swapped: the margin is a percentage of group 2's mean, which is now {after}'s instead "
+            "of {before}'s, so in the measurement's units it is not the same margin as before."),
     # planning the next study (said in one line under the plan's inputs)
     Message("plan_input", "warning", "{reason}"),
     Message("plan_crashed", "error", "Something unexpected stopped the working out of the plan ({reason})."),

@@ -34,12 +34,13 @@ from PySide6.QtWidgets import (
 
 from engine.errors import OptionProblem
 from engine.io.layout import trimmed_levels
-from engine.question import LEVEL_RANGE
+from engine.question import LEVEL_RANGE, Margin, Question
 from engine.report import QUESTIONS  # the question in the user's words, for each kind
 from engine.spec import DESIGNS, RESAMPLES_RANGE, draw_seed
 from engine.text import visible
 
-from .margin_entry import MarginEntry, mirrored
+from .margin_entry import MarginEntry, entered_words, mirrored
+from .messages import message_text
 from .plain_text import plain_label
 
 __all__ = ["SetupPanel", "QUESTIONS", "DESIGN_WORDS", "group_levels", "MAX_LEVELS"]
@@ -113,6 +114,10 @@ class SetupPanel(QWidget):
         self.question.setToolTip("What you want to know: any difference, a difference in one direction only, "
                                  "or whether the groups are the same (or one no worse) within a margin you set.")
         self.margin_entry = MarginEntry(session, self)  # shown while the question needs a margin
+        # what a swap did to a percentage margin, shown until the question changes again
+        self.swap_note = plain_label(parent=self)
+        self.swap_note.setWordWrap(True)
+        self._swapped_question: Question | None = None
         self.confidence = QDoubleSpinBox(self)
         low, high = LEVEL_RANGE  # the spec's range: at least low, below high
         self.confidence.setDecimals(LEVEL_DECIMALS)
@@ -162,6 +167,7 @@ class SetupPanel(QWidget):
         self.question_label.setBuddy(self.question)
         form.addRow(self.question_label, self.question)
         form.addRow(self.margin_entry)
+        form.addRow(self.swap_note)
         form.addRow("Confidence level:", self.confidence)
         form.addRow("Resampling rounds:", self.resamples)
         seed_row = QHBoxLayout()
@@ -270,6 +276,11 @@ class SetupPanel(QWidget):
         self.swap_button.setEnabled(not wide and bool(spec.groups) or wide and len(values) == 2)
         first, second = self._labels()
         self.margin_entry.refresh((first, second))
+        if spec.question != self._swapped_question and self.swap_note.text():
+            self.swap_note.setText("")
+            self.swap_note.setToolTip("")
+            self._fit_height()
+        self.swap_note.setVisible(bool(self.swap_note.text()))
         with QSignalBlocker(self.question):
             self.question.clear()
             for key, words in QUESTIONS:
@@ -364,13 +375,58 @@ class SetupPanel(QWidget):
             self.refresh()
 
     def swap(self) -> None:
-        """Exchange group 1 and group 2 (an uneven equivalence margin turns over with them)."""
+        """Exchange group 1 and group 2 with the same margin: an uneven equivalence margin turns
+        over with them, and a percentage margin (always of group 2's mean) is put in the
+        measurement's units it stood for, which the line under the margin says."""
         spec = self._session.spec
-        question = mirrored(spec.question)
+        labels = self._labels()
+        question, note = self._swapped(spec.question, labels)
         if spec.layout == "wide" and len(spec.value_columns) == 2:
             self._choose(value_columns=(spec.value_columns[1], spec.value_columns[0]), question=question)
         elif spec.groups:
             self._choose(groups=(spec.groups[1], spec.groups[0]), question=question)
+        else:
+            return
+        if self._session.spec.question == question and note:
+            self._swapped_question = question
+            self.swap_note.setText(note[0])
+            self.swap_note.setToolTip(note[1])
+            self.swap_note.setVisible(True)
+            self._fit_height()
+            entry = self.margin_entry
+            for field in (entry.size, entry.low, entry.high):
+                field.setCursorPosition(0)  # a long amount shows its sign and first digits
+
+    def _fit_height(self) -> None:
+        """Ask for the height the wrapped lines need at this width, so that the window gives it
+        rather than squeezing the rows of the form over one another."""
+        self.setMinimumHeight(0)
+        needed = self.heightForWidth(self.width()) if self.hasHeightForWidth() else -1
+        self.setMinimumHeight(max(needed, self.minimumSizeHint().height()))
+
+    def _swapped(self, question: Question, labels: tuple[str, str]) -> tuple[Question, tuple[str, str] | None]:
+        """``question`` for the groups exchanged, and the line under the margin with its tooltip
+        (None when the margin is simply turned over)."""
+        margin = question.margin
+        if margin is None or margin.unit != "percent":
+            return mirrored(question), None
+        first, second = labels
+        unknown = (message_text("swap_percent_unknown", before=second, after=first), "")
+        intake = self._session.intake
+        if intake is None or tuple(intake.groups.labels) != (first, second):
+            return mirrored(question), unknown
+        reference = float(intake.groups.y.mean())  # group 2's mean, as the analysis takes it
+        try:
+            units = margin.in_units(reference)
+        except OptionProblem:  # group 2's mean is 0: no percentage of it to keep
+            return mirrored(question), unknown
+        if question.kind == "equivalent":
+            units = Margin(-units.high, -units.low, "units")
+        turned = Question(question.kind, question.level, units)
+        return turned, (
+            message_text("swap_percent_margin", before=entered_words(margin, labels), second=second,
+                         mean=f"{reference:.6g}"),
+            message_text("swap_percent_why", first=first, after=entered_words(units, (second, first))))
 
     def _question_edited(self, _: int) -> None:
         if not self._refreshing:  # the margin's fields ask it, or say why they cannot yet

@@ -262,6 +262,9 @@ def analyze(
     if question.has_margin:
         margin_advice.check_runnable(candidates, spec)
     records = [r for r in candidates if r.fits_size(x.size + y.size)]
+    if pairing is not None and pairing.common_difference is not None:
+        # no spread in the differences: no t (the pairing's "same_difference" finding says so)
+        records = [r for r in records if r.family != "t"]
     if any(r.family == "resampling" for r in candidates if r not in records):
         notes.append(Finding(
             "resampling_left_out", "note",
@@ -286,7 +289,7 @@ def analyze(
         x, y, **common, **ordered, u1=None if rank_test is None else rank_test.details["U1"])
         if pairing is None else _paired_sizes(groups, question), notes)
     sizes, missing = found if found is not None else ({}, {})
-    for reason in missing.values():
+    for reason in dict.fromkeys(missing.values()):  # one note for sizes left out for one reason
         notes.append(Finding("effect_size_left_out", "note", reason))
     with np.errstate(all="ignore"):
         recommendation = advice.recommend(

@@ -55,6 +55,7 @@ class _Pairs:
     zeros: int
     correlation: float
     resampling_runs: bool
+    same: float | None = None  # the one amount every pair differs by, if they all do
 
     @property
     def small(self) -> bool:
@@ -90,6 +91,7 @@ def _situation(paired: PairedChecks, groups: Groups) -> _Pairs:
         zeros=paired.zeros,
         correlation=float(paired.correlation),
         resampling_runs=record("sign_flip_mean").fits_size(groups.x.size + groups.y.size),
+        same=paired.common_difference,
     )
 
 
@@ -104,10 +106,15 @@ _RANKS = ("The signed-rank test works with the order of the sizes of the differe
           "p-value means that centre is not zero. Its estimate is the median of the averages of "
           "every two differences (Hodges-Lehmann), a median-like typical difference; it does "
           "not test the mean.")
+_NO_SPREAD = ("Every pair differs by the same amount, so the differences have no spread: the "
+              "paired t-test has no standard error to divide by, and gives no t, p-value or "
+              "interval. The signed-rank test still works, from the signs of the differences.")
 
 
 def _choose(s: _Pairs, *, ordinal: bool) -> tuple[str, list[str]]:
     """The suggested key and the reasons for it."""
+    if s.same is not None:
+        return "signed_rank", [_NO_SPREAD, _RANKS]
     if ordinal:
         return "signed_rank", [
             "The values are ratings on an ordered scale: their order means something but the "
@@ -164,6 +171,8 @@ def _why_not(key: str, chosen: str, s: _Pairs, *, ordinal: bool) -> str:
         return "Resampling is not run for this many values; the large-sample procedures are accurate."
     if ordinal and procedure.estimate_kind == "mean":
         return "A mean of differences of ratings assumes equal steps between the scale points."
+    if key == "paired_t" and s.same is not None:
+        return "It was not computed: the differences have no spread, so it has no standard error."
     if key == "paired_t":
         return (f"With {plural(s.n, 'pair')} and differences that {s.describe()}, the t-test's "
                 "p-value and interval may be off, and extreme pairs pull the mean it compares.")
@@ -176,6 +185,9 @@ def _why_not(key: str, chosen: str, s: _Pairs, *, ordinal: bool) -> str:
         return ("It tests whether the differences are symmetric about zero, with a median-like "
                 "estimate, rather than comparing the mean; nothing in the differences calls for "
                 "leaving the mean. It serves as a cross-check.")
+    if key == "sign_flip_mean" and s.same is not None:
+        return ("With every difference the same amount it counts the same signs as the "
+                "signed-rank test and gives the same p-value; it serves as a cross-check.")
     if key == "sign_flip_mean":
         if chosen == "signed_rank" and s.extremes:
             return ("It is exact with few pairs, counting every pattern of signs, but it "

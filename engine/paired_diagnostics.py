@@ -17,7 +17,7 @@ import numpy as np
 from .diagnostics import (CHECK_ALPHA, FAR_FENCE, HEAVY_TIES, MILD_FENCE, OUTLIER_SURPRISE,
                           SHAPIRO_MAX_N, SHAPIRO_MIN_N, SHAPIRO_SMALL_N, SKEW_MATERIAL,
                           GroupShape, is_clearly_skewed, is_heavy_tailed, sample_shape)
-from .procedures.paired import paired_values
+from .procedures.paired import common_difference, paired_values
 from .results import Finding, GroupSummary, readonly_array
 from .rounding import format_number, format_shape, p_clause
 from .stats_basics import common_scale
@@ -43,7 +43,9 @@ class PairedChecks:
     each pair's two values (for the plot of differences against means); ``shape``: the one-sample
     checks of the differences; ``summary``: their summary (label "differences");
     ``correlation``: Pearson's r of the two members of a pair (NaN with fewer than three pairs
-    or a member that does not vary); ``findings``: one per check, in plain words.
+    or a member that does not vary); ``findings``: one per check, in plain words;
+    ``common_difference``: the amount by which every pair differs when they all differ by the
+    same amount (``differences`` then hold exactly that amount), else None.
     """
 
     n_pairs: int
@@ -53,6 +55,7 @@ class PairedChecks:
     summary: GroupSummary
     correlation: float
     findings: tuple[Finding, ...]
+    common_difference: float | None = None
 
     def __post_init__(self) -> None:
         object.__setattr__(self, "differences", readonly_array(self.differences))
@@ -105,7 +108,8 @@ def check_pairs(x: Any, y: Any, *, labels: tuple[str, str] | None = None) -> Pai
     Returns
     -------
     PairedChecks
-        With findings keyed "pairs", "difference_normality", "difference_skewness",
+        With findings keyed "pairs", "same_difference" (only when every pair differs by the
+        same amount), "difference_normality", "difference_skewness",
         "difference_tails", "difference_outliers", "difference_ties", "zero_differences" and
         "pair_correlation".
 
@@ -122,16 +126,18 @@ def check_pairs(x: Any, y: Any, *, labels: tuple[str, str] | None = None) -> Pai
     matter, Tukey's fences with the generalized ESD test, ties): see :mod:`engine.diagnostics`.
     """
     first, second, d = paired_values(x, y, minimum=1)
+    same = common_difference(first, second, d)
     ordered = np.sort(d)
     shape = sample_shape(DIFFERENCES_LABEL, d, ordered=ordered)
     summary = summarize(DIFFERENCES_LABEL, d, ordered=ordered)
     r = pair_correlation(first, second)
     n = int(d.size)
-    findings = (_count_finding(n, labels), _normality_finding(shape), _skew_finding(shape),
-                _tail_finding(shape), _outlier_finding(shape), _tie_finding(shape),
+    findings = (_count_finding(n, labels), *_same_finding(same, labels), _normality_finding(shape),
+                _skew_finding(shape), _tail_finding(shape), _outlier_finding(shape), _tie_finding(shape),
                 _zero_finding(int(np.count_nonzero(d == 0)), n), _correlation_finding(r, n))
     return PairedChecks(n_pairs=n, differences=d, pair_means=first / 2 + second / 2, shape=shape,
-                        summary=summary, correlation=r, findings=findings)
+                        summary=summary, correlation=r, findings=findings,
+                        common_difference=same)
 
 
 # -- the findings in words --------------------------------------------------------------------------
@@ -142,6 +148,20 @@ def _count_finding(n: int, labels: tuple[str, str] | None) -> Finding:
     return Finding("pairs", "info",
                    f"{plural(n, 'pair')} of values; each difference is {direction}, and the "
                    "paired procedures compare these differences with zero.")
+
+
+def _same_finding(same: float | None, labels: tuple[str, str] | None) -> tuple[Finding, ...]:
+    """The finding that every pair differs by one amount (none when they do not)."""
+    if same is None:
+        return ()
+    direction = (f" ('{labels[0]}' minus '{labels[1]}')" if labels is not None else "")
+    return (Finding("same_difference", "warning",
+                    f"Every pair differs by the same amount, {same:.12g}{direction}: the "
+                    "differences have no spread, so the paired t-test, its margin version and "
+                    "the standardised differences d_z and d_av cannot be worked out (there is no "
+                    "standard error). The signed-rank and sign-flip tests still count on which "
+                    "side of zero the differences fall, and a rank interval is that amount "
+                    "itself."),)
 
 
 def _normality_finding(shape: GroupShape) -> Finding:

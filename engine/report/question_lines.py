@@ -1,11 +1,10 @@
-"""The design and a margin question in lines of the command's plain text: how the pairs were
-formed and what the pairing left out; the margin, how it was entered, and the verdict of the
-reported procedure against it (:meth:`engine.question.Question.margin_words`)."""
+"""The design and a margin question in lines of the command's plain text, above the findings and
+saying only what they do not: two independent groups, or what the pairing left out that the
+screening did not name; the question asked (the findings open with the verdict against the
+margin and say how the margin was entered)."""
 
 from __future__ import annotations
 
-from ..wording import plural
-from .margins import margin_entered
 from .numbers import level_text
 from .sentences import question_text
 
@@ -15,53 +14,43 @@ PROBLEMS_SHOWN = 10  # items left out of the pairs listed one by one; the rest a
 
 
 def design_lines(analysis) -> list[str]:
-    """The design, and for paired data the pairs formed and every ID or row left out."""
+    """The design where the findings below do not say it: "two independent groups"; for paired
+    data (whose findings give the design, the pairs and how many were left out) only the IDs or
+    rows left out that the screening's lines above do not already name, each once."""
     if analysis.spec.design != "paired":
         return ["Design: two independent groups."]
     pairs = analysis.pairs
-    column = analysis.spec.pair_column
-    how = f"by the pair ID column '{column}'" if column is not None else "row by row"
     if pairs is None:
-        return [f"Design: paired, {plural(int(analysis.groups.n[0]), 'pair')} {how}."]
-    left = len(pairs.problems)
-    # the items the screening's lines above do not already name, each once
+        return []
     said = " ".join(finding.text for finding in getattr(analysis.screening, "findings", ()))
     unsaid = [problem for problem in pairs.problems if problem.text not in said]
-    if not left:
-        return [f"Design: paired, {plural(pairs.n_pairs, 'pair')} formed {how}; nothing left out."]
-    where = "" if unsaid else " (listed above)"
-    lines = [f"Design: paired, {plural(pairs.n_pairs, 'pair')} formed {how}; {left} left out{where}"
-             + (":" if unsaid else ".")]
-    lines += [f"  [left out] {problem.text}" for problem in unsaid[:PROBLEMS_SHOWN]]
+    lines = [f"  [left out] {problem.text}" for problem in unsaid[:PROBLEMS_SHOWN]]
     if len(unsaid) > PROBLEMS_SHOWN:
         lines.append(f"  and {len(unsaid) - PROBLEMS_SHOWN} more (the --json output's 'pairs' lists every one).")
     return lines
 
 
 def margin_lines(analysis, procedure: str | None) -> list[str]:
-    """For a margin question: the question, the margin and how it was entered, and the verdict of
-    ``procedure`` against the margin; nothing for a question without a margin."""
+    """For a margin question: the question (the findings below open with the verdict of
+    ``procedure`` against the margin and say how the margin was entered), and a line when no
+    procedure gave a verdict; nothing for a question without a margin."""
     from ..jsonout import margin_answers
 
     question = analysis.spec.question
     if not question.has_margin:
         return []
-    first, second = analysis.groups.labels
     alpha = level_text(question.alpha)
     kind = "equivalence" if question.kind == "equivalent" else "non-inferiority"
-    # the question and the margin in the words every report uses (engine.report.margins)
-    lines = [f"Question: {question_text(question, (first, second), analysis)} ({kind}, at the {alpha} level)",
-             f"Margin as entered: {margin_entered(analysis, procedure)}."]
-    answers = margin_answers(analysis)
-    if procedure in answers:
-        result = analysis.procedures[procedure]
-        lines.append(f"Verdict by {result.name}: "
-                     + question.margin_words(answers[procedure], (first, second), result.estimate_name))
-    else:
+    # the question in the words every report uses (engine.report.sentences)
+    lines = [f"Question: {question_text(question, analysis.groups.labels, analysis)} "
+             f"({kind}, at the {alpha} level)"]
+    if procedure not in margin_answers(analysis):
         lines.append("Verdict: no procedure gave an interval to set against the margin (the notes say why).")
     return lines
 
 
 def setup_lines(analysis, procedure: str | None) -> list[str]:
-    """:func:`design_lines` and :func:`margin_lines`, then a blank line."""
-    return design_lines(analysis) + margin_lines(analysis, procedure) + [""]
+    """:func:`design_lines` and :func:`margin_lines`, then a blank line (none when both are
+    empty)."""
+    lines = design_lines(analysis) + margin_lines(analysis, procedure)
+    return lines + [""] if lines else []

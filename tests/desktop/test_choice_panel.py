@@ -226,3 +226,49 @@ def test_new_figures_replace_the_old_at_once_without_overlap(qtbot, groups):
             bottom = max(label.geometry().bottom() for label in labels)
             assert bottom < card.reading.geometry().top()  # the reading sits below every line
     widget.cleanup()
+
+
+def _paired_panel(qtbot, x, y, **spec):
+    session = Session()
+    widget = ChoicePanel(session)
+    qtbot.addWidget(widget)
+    session.store("analysis", analyze(Groups(("caliper", "laser"), x, y),
+                                      AnalysisSpec(design="paired", resamples=300, seed=4, **spec)))
+    return session, widget
+
+
+def _card_text(card) -> str:
+    return card.reading.text() + "\n" + card.more.text()
+
+
+def test_paired_data_show_the_checks_of_pairs_not_those_of_two_groups(qtbot, groups):
+    rng = np.random.default_rng(8)
+    units = rng.normal(12.0, 0.05, 18)
+    x, y = units + rng.normal(0.01, 0.004, 18), units + rng.normal(0.0, 0.004, 18)
+    session, widget = _paired_panel(qtbot, x, y, statements=Statements(known_sd=(0.01, 0.01)))
+    assert widget.spread_card.isHidden()  # no "spread of the two groups", no Levene, no SD ratio
+    assert widget.equal_spread.isHidden() and widget.advanced_button.isHidden() and widget.sd_box.isHidden()
+    assert not widget.ordinal.isHidden()  # ratings still matter to pairs
+    shape_card, pairs_card = widget.paired_cards
+    # the pairs' own checks (how they go together) sit with the pairs; the shape with the shape
+    assert "go together" in _card_text(pairs_card) and "go together" not in _card_text(shape_card)
+    assert "Shapiro-Wilk" in _card_text(shape_card)
+    assert not any(plot.isHidden() for plot in widget.paired_plots)
+    # two separate groups again: their spread and statements are back
+    session.store("analysis", analyze(groups, AnalysisSpec(resamples=300, seed=4)))
+    assert not widget.spread_card.isHidden() and not widget.equal_spread.isHidden()
+    assert not widget.advanced_button.isHidden()
+    widget.cleanup()
+
+
+def test_pairs_one_amount_apart_say_so_with_the_pairs(qtbot):
+    x = np.array([11.965, 12.014, 11.923, 12.055, 11.987, 12.002])
+    _, widget = _paired_panel(qtbot, x, np.round(x - 0.02, 3))
+    text = _card_text(widget.paired_cards[1])
+    assert "Every pair differs by the same amount, 0.02" in text
+    assert widget.session.analysis.recommendation.key == "signed_rank"
+    assert "paired_t" not in [widget.picker.itemData(i) for i in range(widget.picker.count())]
+    # no histogram or Q-Q plot of one amount (its one bar would sit around zero)
+    assert all(plot.isHidden() for plot in widget.paired_plots[:2])
+    assert "Shapiro-Wilk check of a bell shape cannot be run" in _card_text(widget.paired_cards[0])
+    widget.cleanup()

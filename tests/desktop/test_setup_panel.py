@@ -4,6 +4,7 @@ from __future__ import annotations
 
 from pathlib import Path
 
+import numpy as np
 import pytest
 
 from desktop.setup_panel import SetupPanel, group_levels
@@ -143,3 +144,83 @@ def test_the_ranges_are_the_specs_and_a_refused_value_shows_its_sentence(panel, 
     panel.new_seed_button.click()
     assert session.spec.seed != 12345 and panel.seed.text() == str(session.spec.seed)
     assert panel.refused.isHidden()
+
+
+# -- swapping the groups under a percentage margin ---------------------------------------------
+
+BOLTS = Path(__file__).resolve().parents[2] / "demo_files" / "bolt_strength.csv"
+
+
+def _bolts_panel(qtbot, question, *, formed=True):
+    """The panel over the bolts' two suppliers with ``question``; the groups formed as the window
+    forms them (or not yet)."""
+    from engine import pipeline
+
+    session = Session()
+    table = io.read_table(BOLTS)
+    spec = pipeline.complete(table, session.spec.replace(source=pipeline.source_for(BOLTS)))
+    session.adopt(spec.replace(groups=("north_forge", "south_forge"), question=question, resamples=200, seed=4))
+    session.store("table", table)
+    if formed:
+        session.store("intake", pipeline.form_groups(table, session.spec))
+    panel = SetupPanel(session)
+    qtbot.addWidget(panel)
+    return session, panel
+
+
+def test_swapping_under_a_percentage_margin_keeps_the_same_margin_in_units(qtbot):
+    from statsmodels.stats.weightstats import ttost_ind
+
+    from engine import pipeline
+    from engine.question import Margin, Question
+
+    session, panel = _bolts_panel(qtbot, Question("equivalent", 0.95, Margin(-2.0, 4.0, "percent")))
+    groups = session.intake.groups
+    north, south = groups.x, groups.y
+    before = pipeline.run(session.intake, session.spec)
+    panel.swap()
+    assert session.spec.groups == ("south_forge", "north_forge")
+    # the margin stood for -2% to 4% of south_forge's mean; turned over with the groups, it is
+    # -4% to 2% of that same mean, now in units (group 2's mean has become north_forge's)
+    margin = session.spec.question.margin
+    assert margin.unit == "units"
+    assert (margin.low, margin.high) == (-0.04 * float(np.mean(south)), -(-0.02 * float(np.mean(south))))
+    note = panel.swap_note.text()
+    assert not panel.swap_note.isHidden() and "now in units" in note and "south_forge's mean" in note
+    assert "always of group 2's mean" in panel.swap_note.toolTip()
+    low = panel.margin_entry.low
+    assert float(low.text()) == pytest.approx(margin.low, rel=1e-11) and low.cursorPosition() == 0
+    session.store("intake", pipeline.form_groups(session.table, session.spec))
+    after = pipeline.run(session.intake, session.spec)
+    # reference: statsmodels ttost_ind(south, north, low, high, usevar="unequal"), the swapped
+    # groups against the mirrored margin; the p-value of the two one-sided tests is unchanged
+    p, _, _ = ttost_ind(south, north, margin.low, margin.high, usevar="unequal")
+    assert after.procedures["equivalence_welch"].p_value == pytest.approx(p, rel=1e-10)
+    assert after.procedures["equivalence_welch"].p_value == pytest.approx(
+        before.procedures["equivalence_welch"].p_value, rel=1e-12)
+    # another question clears the line
+    session.ask(kind="differ", margin=None)
+    assert panel.swap_note.isHidden()
+    panel.cleanup()
+
+
+def test_swapping_under_a_percentage_non_inferiority_margin_keeps_its_size_in_units(qtbot):
+    from engine.question import Margin, Question
+
+    session, panel = _bolts_panel(qtbot, Question("not_worse", 0.95, Margin.not_worse_by(3.0, "lower", "percent")))
+    south = session.intake.groups.y
+    panel.swap()
+    assert session.spec.question.margin == Margin.not_worse_by(0.03 * float(np.mean(south)), "lower")
+    panel.cleanup()
+
+
+def test_swapping_before_the_groups_are_formed_says_the_percentage_now_means_another_margin(qtbot):
+    from engine.question import Margin, Question
+
+    session, panel = _bolts_panel(qtbot, Question("equivalent", 0.95, Margin.within(3.0, unit="percent")),
+                                  formed=False)
+    panel.swap()
+    assert session.spec.question.margin == Margin.within(3.0, unit="percent")
+    note = panel.swap_note.text()
+    assert "now north_forge's instead of south_forge's" in note and "not the same margin" in note
+    panel.cleanup()

@@ -141,9 +141,24 @@ def test_the_readable_output_says_the_margin_how_it_was_entered_and_the_verdict(
     code, out, err = run("analyze", path, "--equivalence-margin", "4%", "--resamples", "300", "--seed", "2")
     assert code == 0, err
     assert "Design: two independent groups." in out
-    assert "Margin as entered: -4% to 4% of old_press's mean (" in out
-    verdict = next(line for line in out.splitlines() if line.startswith("Verdict by "))
+    lines = out.splitlines()
+    question = next(line for line in lines if line.startswith("Question: "))
+    assert "equivalent within" in question and "4% of old_press's mean" in question
+    # the verdict opens the findings, right under the suggestion; the margin as entered is said
+    # there, once
+    verdict = lines[lines.index(next(line for line in lines if line.startswith("Suggested procedure: "))) + 2]
     assert "equivalent within" in verdict.lower()
+    assert out.count("Margin as entered: -4% to 4% of old_press's mean (") == 1
+    assert out.count(verdict.split(":")[0]) == 1 and not any(line.startswith("Verdict") for line in lines)
+
+
+def test_the_readable_output_says_the_design_of_pairs_once(gauges):
+    path, _, _ = gauges
+    code, out, err = run("analyze", path, "--paired", "--equivalence-margin", "0.5", "--resamples", "300",
+                         "--seed", "2")
+    assert code == 0, err
+    assert out.count("Design") == 1 and "Design: paired" not in out
+    assert out.count("Margin as entered") == 1
 
 
 # -- paired -------------------------------------------------------------------------------------
@@ -263,9 +278,9 @@ def test_pairs_by_id_match_units_across_the_file_and_list_what_was_left_out(tmp_
     code, out, err = run("analyze", path, "--group", "oven", "--value", "weight", "--paired-by", "part",
                          "--groups", "cold", "hot", "--resamples", "300", "--seed", "1")
     assert code == 0, err
-    assert f"Design: paired, {len(kept)} pairs formed by the pair ID column 'part'; 3 left out" in out
-    for item in pairs["left_out"]:  # each said, with its file rows
-        assert item["text"] in out
+    assert f"Paired: {len(kept)} pairs, matched by ID column 'part'" in out  # the findings' design row
+    for item in pairs["left_out"]:  # each said once, with its file rows
+        assert out.count(item["text"]) == 1
 
 
 @pytest.mark.parametrize("flags", [["--paired"], ["--paired-by", "serial", "--group", "press", "--value", "thickness"]])
@@ -301,8 +316,7 @@ def test_items_left_out_of_the_pairs_are_listed_under_the_design_when_the_screen
                     encoding="utf-8")
     spec = AnalysisSpec(value_columns=("first", "second"), layout="wide", design="paired", resamples=200)
     analysis = pipeline.from_file(path, spec).analysis
-    assert design_lines(analysis) == ["Design: paired, 4 pairs formed row by row; 2 left out (listed above)."]
+    assert design_lines(analysis) == []  # the screening's lines name them
     alone = design_lines(dataclasses.replace(analysis, screening=None))
-    assert alone[0] == "Design: paired, 4 pairs formed row by row; 2 left out:"
-    assert [line.split("] ")[0] for line in alone[1:]] == ["  [left out", "  [left out"]
-    assert "row 3" in alone[1] and "row 5" in alone[2]  # the file rows (the header is row 1)
+    assert [line.split("] ")[0] for line in alone] == ["  [left out", "  [left out"]
+    assert "row 3" in alone[0] and "row 5" in alone[1]  # the file rows (the header is row 1)

@@ -11,8 +11,9 @@ from engine.errors import Cancelled, DataProblem
 from engine.paired_effects import paired_effect_sizes
 from engine.procedures import registry
 from engine.procedures.pair_differences import signed_rank_pairs
-from engine.procedures.paired import paired_bootstrap_mean
-from engine.question import Question
+from engine.procedures.paired import (common_difference, paired_bootstrap_mean, paired_differences,
+                                     paired_t)
+from engine.question import Margin, Question
 from engine.results import Groups
 from engine.spec import AnalysisSpec
 
@@ -188,12 +189,74 @@ def test_groups_of_different_sizes_cannot_be_pairs():
         _paired(x[:1], y[:1])
 
 
-def test_pairs_that_never_differ_or_always_differ_alike_are_said_in_one_line():
+def test_pairs_that_never_differ_are_said_in_one_line():
     x = np.array([1.0, 2.0, 3.0, 4.0])
     with pytest.raises(DataProblem, match="No pair shows any difference"):
         _paired(x, x.copy())
-    with pytest.raises(DataProblem, match="Every pair differs by the same amount"):
-        _paired(x, x - 0.5)
+
+
+def _rods_one_amount_apart(n=10, amount=0.02):
+    """Diameters to three decimals, every second reading ``amount`` below the first: as written,
+    one amount apart; as floats, differences that disagree in their last binary places."""
+    first = np.round(np.random.default_rng(0).uniform(11.9, 12.1, n), 3)
+    return first, np.round(first - amount, 3)
+
+
+@pytest.mark.parametrize("shift", [0.5, -0.25])
+def test_pairs_one_amount_apart_give_the_rank_and_sign_results_and_say_why_no_t(shift):
+    x = np.array([10.5, 11.5, 12.0, 9.5, 10.25, 13.0, 8.75])
+    analysis = _paired(x, x - shift)
+    n = x.size
+    assert "paired_t" not in analysis.procedures
+    assert analysis.recommendation.key == "signed_rank"
+    assert any("no spread" in reason for reason in analysis.recommendation.reasons)
+    assert analysis.paired.common_difference == shift
+    assert "same_difference" in {finding.key for finding in analysis.paired.findings}
+    # reference: every |difference| tied, so T+ is (n + 1)/2 times the number of positive signs
+    # and the signed-rank and sign-flip tests are the sign test: scipy.stats.binomtest
+    sign_test = stats.binomtest(n if shift > 0 else 0, n, 0.5).pvalue
+    for key in ("signed_rank", "sign_flip_mean"):
+        result = analysis.procedures[key]
+        assert result.estimate == shift
+        assert result.p_value == pytest.approx(sign_test, rel=1e-12)
+    rank_interval = analysis.procedures["signed_rank"].interval
+    assert rank_interval.low == rank_interval.high == shift  # every Walsh average is the amount
+    assert analysis.effect_sizes == {}
+    left_out = [note for note in analysis.notes if note.key == "effect_size_left_out"]
+    assert len(left_out) == 1 and "no spread" in left_out[0].text
+
+
+def test_one_amount_written_in_decimals_is_one_amount_not_a_t_in_the_trillions():
+    first, second = _rods_one_amount_apart()
+    assert np.ptp(first - second) > 0  # the float differences do disagree in their last places
+    assert common_difference(first, second, first - second) == pytest.approx(0.02, abs=1e-15)
+    assert np.ptp(paired_differences(first, second)) == 0
+    with pytest.raises(DataProblem, match="no spread"):
+        paired_t(first, second)
+    analysis = _paired(first, second)
+    assert "paired_t" not in analysis.procedures
+    interval = analysis.procedures["paired_bootstrap_mean"].interval
+    assert interval.low == interval.high == analysis.paired.common_difference
+
+
+@pytest.mark.parametrize("scale", [1.0, 1e6, 1e-9])
+def test_differences_that_do_vary_however_little_are_not_one_amount(scale):
+    first, second = _rods_one_amount_apart()
+    first, second = first * scale, second * scale
+    # one pair a thousandth of a millimetre apart from the rest: a real spread, far above rounding
+    second[3] += 0.001 * scale
+    assert common_difference(first, second, first - second) is None
+    analysis = _paired(first, second)
+    assert "paired_t" in analysis.procedures and analysis.paired.common_difference is None
+
+
+def test_a_margin_question_on_pairs_one_amount_apart_is_answered_by_the_rank_interval():
+    first, second = _rods_one_amount_apart()
+    analysis = _paired(first, second, question=Question("equivalent", 0.95, Margin.within(0.05)))
+    assert "paired_equivalence" not in analysis.procedures
+    assert analysis.recommendation.key == "paired_equivalence_ranks"
+    result = analysis.procedures["paired_equivalence_ranks"]
+    assert result.interval.low == result.interval.high == pytest.approx(0.02, abs=1e-15)
 
 
 def test_the_resampling_procedures_report_progress_and_stop_when_asked():
