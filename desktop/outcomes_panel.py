@@ -9,6 +9,10 @@ follow Holm's or Benjamini and Hochberg's adjustment, as the user chooses, witho
 anything again (``OutcomesAnalysis.with_adjustment``). Beside it, a plot of every outcome's
 standardised effect (Hedges' g, or d of the differences for pairs) with its interval. Clicking a
 row opens that outcome's whole findings in the findings panel.
+
+The analysis on show saves as a ``.twofold`` file (``engine.saved.save``); a saved one, run again
+by the window (``engine.saved.reopen``), comes back through :meth:`OutcomesPanel.show_saved` with
+its outcomes ticked, its adjustment and procedure chosen and its table filled.
 """
 
 from __future__ import annotations
@@ -34,6 +38,7 @@ from engine.text import visible
 
 from . import clipboard
 from .findings_panel import FindingsPanel
+from .messages import message_text
 from .panel_parts import heading, text_label
 from .plain_text import plain_label
 from .plots import IntervalPlot, plot_image, save_plot
@@ -50,6 +55,8 @@ ADJUSTMENT_WHY = {
           "the level. Choose it to screen many outcomes for the ones worth a closer look; it finds more.",
 }
 TABLE_FILTER = "Web page (*.html);;Plain text (*.txt)"
+SAVED_SUFFIX = ".twofold"  # engine.saved.EXTENSION (checked by a test)
+ANALYSIS_FILTER = f"Saved analysis (*{SAVED_SUFFIX})"
 
 
 def candidate_columns(table, spec) -> list[str]:
@@ -144,6 +151,8 @@ class OutcomesPanel(QDialog):
         self.spec = session.spec
         self.found: Any = None
         self.outcomes_done: list = []
+        self.reopened: str | None = None  # what the check of a reopened file found, in a sentence
+        self.saved_path: Path | None = None  # where the analysis was last saved
         self._run = 0
         self._windows: list[QDialog] = []
         self.worker = Worker(self)
@@ -266,7 +275,13 @@ class OutcomesPanel(QDialog):
         self.copy_plot_button.clicked.connect(lambda: clipboard.copy_image(plot_image(self.plot)))
         self.save_plot_button = QPushButton("Save the plot...")
         self.save_plot_button.clicked.connect(self.ask_save_plot)
-        for button in (self.copy_button, self.save_button, self.copy_plot_button, self.save_plot_button):
+        self.save_analysis_button = QPushButton("Save the analysis...")
+        self.save_analysis_button.setToolTip(
+            "Keep this comparison of several measurements as a .twofold file: the columns, the choices, "
+            "the seed and every number, so that it can be opened again and checked.")
+        self.save_analysis_button.clicked.connect(lambda: self.save_analysis())
+        for button in (self.copy_button, self.save_button, self.copy_plot_button, self.save_plot_button,
+                       self.save_analysis_button):
             button.setEnabled(False)
             buttons.addWidget(button)
         buttons.addStretch(1)
@@ -321,6 +336,7 @@ class OutcomesPanel(QDialog):
             self._say(problem.message)
             return False
         self._say("")
+        self.reopened = None
         self._run += 1
         run, relay = self._run, self._relay
         table, spec = self.table_data, self.spec
@@ -401,7 +417,7 @@ class OutcomesPanel(QDialog):
         self._enable(True, table=True)
 
     def _enable(self, plot: bool, *, table: bool) -> None:
-        for button in (self.copy_button, self.save_button):
+        for button in (self.copy_button, self.save_button, self.save_analysis_button):
             button.setEnabled(table)
         for button in (self.copy_plot_button, self.save_plot_button):
             button.setEnabled(plot)
@@ -451,6 +467,54 @@ class OutcomesPanel(QDialog):
         groups = self._groups()
         self.plot.show_rows(self.effect_rows(), picked=str(selected) if selected >= 0 else None,
                             axis_label=f"{named}, {groups[0]} minus {groups[1]}" if groups else named)
+
+    # -- a saved analysis ----------------------------------------------------------------------
+    def show_saved(self, found, *, said: str | None = None) -> None:
+        """Show ``found`` (an ``OutcomesAnalysis`` run again from a saved file): its outcomes'
+        columns ticked, its procedure and adjustment chosen, its table, plot and notes filled;
+        ``said`` (what the check of the saved numbers found) stands in the status line."""
+        self.worker.cancel()
+        self._run += 1  # an outcome still on its way from an earlier run is not shown
+        self.tick([column for done in found.outcomes for column in done.outcome.columns])
+        at = self.procedure.findData(found.procedure)
+        self.procedure.setCurrentIndex(at if at >= 0 else 0)
+        self.found = None  # the switch below must not recompute what the file holds
+        self.set_adjustment(found.adjustment)
+        self.found, self.reopened = found, said
+        self.grid.setRowCount(len(found.outcomes))
+        self._say("")
+        self._show_found()
+        self._say_direction()
+        self.status.setText(said or f"{len(found.outcomes)} measurements compared.")
+
+    def save_analysis(self, path: str | Path | None = None) -> bool:
+        """Save the analysis on show as a ``.twofold`` file (asks for the path when none is given;
+        the suffix is added when left out, so the data file is never written over); a failure is
+        said under the controls."""
+        from engine import saved as saved_files
+
+        if self.found is None:
+            return False
+        if path is None:
+            data = Path(self.spec.source.path) if self.spec.source is not None else None
+            start = "" if data is None else str(data.with_name(f"{data.stem} measurements{SAVED_SUFFIX}"))
+            chosen, _ = QFileDialog.getSaveFileName(self, "Save the analysis", start, ANALYSIS_FILTER)
+            if not chosen:
+                return False
+            path = chosen
+        path = Path(path)
+        if path.suffix.lower() != saved_files.EXTENSION:
+            path = path.with_name(path.name + saved_files.EXTENSION)
+        try:
+            saved_files.save(path, self.found)
+        except (TwofoldError, OSError) as problem:
+            self._say(message_text("save_failed", name=path.name,
+                                   reason=getattr(problem, "message", None) or problem))
+            return False
+        self._say("")
+        self.saved_path = path
+        self.status.setText(message_text("saved", name=path.name, folder=path.resolve().parent))
+        return True
 
     # -- one outcome's findings ----------------------------------------------------------------
     def open_findings(self, row: int) -> QDialog | None:
@@ -525,7 +589,7 @@ class OutcomesPanel(QDialog):
         except (FileProblem, OSError, ValueError) as problem:
             self._say(getattr(problem, "message", str(problem)))
         else:
-            self.status.setText(f"Saved {Path(written).name} in {Path(written).resolve().parent}.")
+            self.status.setText(message_text("saved", name=Path(written).name, folder=Path(written).resolve().parent))
 
     def ask_save_table(self) -> None:
         self._ask_and_save("Save the table", "measurements.html", TABLE_FILTER, self.save_table)
