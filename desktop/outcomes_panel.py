@@ -235,6 +235,9 @@ class OutcomesPanel(QDialog):
         self.problem.setStyleSheet("color: #b3261e;")
         self.problem.setVisible(False)
         layout.addWidget(self.problem)
+        self.check = text_label()  # what the check of a reopened file found
+        self.check.setVisible(False)
+        layout.addWidget(self.check)
 
         self.direction = text_label()
         layout.addWidget(self.direction)
@@ -336,7 +339,7 @@ class OutcomesPanel(QDialog):
             self._say(problem.message)
             return False
         self._say("")
-        self.reopened = None
+        self._said_check(None)
         self._run += 1
         run, relay = self._run, self._relay
         table, spec = self.table_data, self.spec
@@ -480,12 +483,19 @@ class OutcomesPanel(QDialog):
         self.procedure.setCurrentIndex(at if at >= 0 else 0)
         self.found = None  # the switch below must not recompute what the file holds
         self.set_adjustment(found.adjustment)
-        self.found, self.reopened = found, said
+        self.found = found
         self.grid.setRowCount(len(found.outcomes))
         self._say("")
+        self._said_check(said)
         self._show_found()
         self._say_direction()
-        self.status.setText(said or f"{len(found.outcomes)} measurements compared.")
+        self.status.setText(f"{len(found.outcomes)} measurements compared again.")
+
+    def _said_check(self, said: str | None) -> None:
+        """Show what the check of a reopened file found (None: a table of this panel's own run)."""
+        self.reopened = said
+        self.check.setText(said or "")
+        self.check.setVisible(bool(said))
 
     def save_analysis(self, path: str | Path | None = None) -> bool:
         """Save the analysis on show as a ``.twofold`` file (asks for the path when none is given;

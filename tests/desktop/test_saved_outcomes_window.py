@@ -115,8 +115,7 @@ def test_reopening_from_the_command_line_shows_the_table_and_the_panel(make_wind
     panel = shown_panel(window)
     assert panel.ticked() == list(TICKED)
     assert panel.procedure.currentData() == "welch_t" and panel.adjustment_method() == "bh"
-    assert panel.status.text() == window.message_bar.text
-    assert panel.reopened == window.message_bar.text
+    assert panel.check.text() == panel.reopened == window.message_bar.text and panel.check.isVisibleTo(panel)
     assert panel.grid.horizontalHeaderItem(10).text() == "Difference found (B-H)"
     assert panel.grid.rowCount() == len(TICKED)
     for row, (now, then) in enumerate(zip(panel.found.rows, found.rows)):
@@ -131,6 +130,11 @@ def test_reopening_from_the_command_line_shows_the_table_and_the_panel(make_wind
     # the switch works on the reopened table without running anything again
     panel.set_adjustment("holm")
     assert not panel.worker.busy and panel.grid.horizontalHeaderItem(10).text() == "Difference found (Holm)"
+    # a run of the panel's own no longer carries the check of the file
+    with qtbot.waitSignal(panel.worker.finished, timeout=120_000):
+        assert panel.run()
+    assert panel.reopened is None and not panel.check.isVisibleTo(panel)
+    assert [r.p_value for r in panel.found.rows] == [r.p_value for r in found.rows]  # the same seed
     panel.close()
 
 
@@ -187,7 +191,7 @@ def test_a_changed_data_file_is_said_with_the_figures_that_moved(make_window, qt
     assert "has changed" in text and "checksum" in text and "hardness_hv" in text
     assert MESSAGES["reopen_outcomes_changed"].level == "warning"
     assert window.session.spec.source.sha256 == digest(data_file)  # the file as it is now
-    assert shown_panel(window).status.text() == text
+    assert shown_panel(window).check.text() == text
 
 
 @pytest.mark.parametrize("factor, key, words", [
