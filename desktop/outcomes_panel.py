@@ -497,34 +497,28 @@ class OutcomesPanel(QDialog):
         self.check.setText(said or "")
         self.check.setVisible(bool(said))
 
-    def save_analysis(self, path: str | Path | None = None) -> bool:
-        """Save the analysis on show as a ``.twofold`` file (asks for the path when none is given;
-        the suffix is added when left out, so the data file is never written over); a failure is
-        said under the controls."""
+    def write_analysis(self, path: str | Path) -> Path:
+        """Write the analysis on show to ``path`` as a ``.twofold`` file, the suffix added when
+        left out (so the data file is never written over); returns the file written."""
         from engine import saved as saved_files
 
-        if self.found is None:
-            return False
-        if path is None:
-            data = Path(self.spec.source.path) if self.spec.source is not None else None
-            start = "" if data is None else str(data.with_name(f"{data.stem} measurements{SAVED_SUFFIX}"))
-            chosen, _ = QFileDialog.getSaveFileName(self, "Save the analysis", start, ANALYSIS_FILTER)
-            if not chosen:
-                return False
-            path = chosen
-        path = Path(path)
-        if path.suffix.lower() != saved_files.EXTENSION:
-            path = path.with_name(path.name + saved_files.EXTENSION)
+        path = saved_files.with_extension(path)
         try:
             saved_files.save(path, self.found)
         except (TwofoldError, OSError) as problem:
-            self._say(message_text("save_failed", name=path.name,
-                                   reason=getattr(problem, "message", None) or problem))
-            return False
-        self._say("")
+            reason = getattr(problem, "message", None) or getattr(problem, "strerror", None) or problem
+            raise FileProblem(message_text("save_failed", name=path.name, reason=reason)) from None
         self.saved_path = path
-        self.status.setText(message_text("saved", name=path.name, folder=path.resolve().parent))
-        return True
+        return path
+
+    def save_analysis(self, path: str | Path | None = None) -> bool:
+        """Save the analysis on show as a ``.twofold`` file (asks for the path when none is given);
+        a failure is said under the controls."""
+        if self.found is None:
+            return False
+        data = Path(self.spec.source.path) if self.spec.source is not None else None
+        start = "" if data is None else str(data.with_name(f"{data.stem} measurements{SAVED_SUFFIX}"))
+        return self._ask_and_save("Save the analysis", start, ANALYSIS_FILTER, self.write_analysis, path)
 
     # -- one outcome's findings ----------------------------------------------------------------
     def open_findings(self, row: int) -> QDialog | None:
@@ -590,16 +584,21 @@ class OutcomesPanel(QDialog):
             raise FileProblem(f"Could not save the table to {path}: {error.strerror or error}.") from None
         return path
 
-    def _ask_and_save(self, title: str, start: str, name_filter: str, save) -> None:
-        path, _ = QFileDialog.getSaveFileName(self, title, start, name_filter)
-        if not path:
-            return
+    def _ask_and_save(self, title: str, start: str, name_filter: str, save, path: str | Path | None = None) -> bool:
+        """Write with ``save(path)`` (it returns the file written), asking for the path when none
+        is given; the outcome is said under the controls."""
+        if path is None:
+            path, _ = QFileDialog.getSaveFileName(self, title, start, name_filter)
+            if not path:
+                return False
         try:
-            written = save(path)
+            written = Path(save(path))
         except (FileProblem, OSError, ValueError) as problem:
             self._say(getattr(problem, "message", str(problem)))
-        else:
-            self.status.setText(message_text("saved", name=Path(written).name, folder=Path(written).resolve().parent))
+            return False
+        self._say("")
+        self.status.setText(message_text("saved", name=written.name, folder=written.resolve().parent))
+        return True
 
     def ask_save_table(self) -> None:
         self._ask_and_save("Save the table", "measurements.html", TABLE_FILTER, self.save_table)

@@ -230,6 +230,8 @@ def test_saving_never_writes_over_the_data_file(make_window, qtbot, saved_file, 
     window = make_window([path])
     qtbot.waitUntil(lambda: window.message_bar.key == "reopen_outcomes_same" and not window.busy, timeout=120_000)
     panel = shown_panel(window)
+    assert saved.with_extension("a.csv") == Path("a.csv.twofold")
+    assert saved.with_extension("b.TwoFold") == Path("b.TwoFold")
     assert panel.save_analysis(data_file)  # the data file's own name: the suffix goes after it
     assert digest(data_file) == before
     assert saved.load(data_file.with_name(data_file.name + SAVED_SUFFIX)).outcomes is not None
