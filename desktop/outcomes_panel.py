@@ -153,6 +153,8 @@ class OutcomesPanel(QDialog):
         self.outcomes_done: list = []
         self.reopened: str | None = None  # what the check of a reopened file found, in a sentence
         self.saved_path: Path | None = None  # where the analysis was last saved
+        # a reopened analysis's outcomes (their names and order) and the ticks that stand for them
+        self._kept: tuple[tuple, list[str]] | None = None
         self._run = 0
         self._windows: list[QDialog] = []
         self.worker = Worker(self)
@@ -306,11 +308,14 @@ class OutcomesPanel(QDialog):
                                else Qt.CheckState.Unchecked)
 
     def outcomes(self) -> tuple:
-        """The outcomes the ticks describe (raises an engine error naming what is wrong)."""
+        """The outcomes the ticks describe (raises an engine error naming what is wrong); while the
+        ticks are those of a reopened analysis, its outcomes as saved."""
         from engine.errors import OptionProblem
         from engine.outcomes import long_outcomes, wide_outcomes
 
         columns = self.ticked()
+        if self._kept is not None and self._kept[1] == columns:  # as reopened: its names and order stand
+            return self._kept[0]
         if self.spec.layout != "wide":
             if len(columns) < 2:
                 raise OptionProblem("Tick at least two measurement columns.")
@@ -479,6 +484,7 @@ class OutcomesPanel(QDialog):
         self.worker.cancel()
         self._run += 1  # an outcome still on its way from an earlier run is not shown
         self.tick([column for done in found.outcomes for column in done.outcome.columns])
+        self._kept = (tuple(done.outcome for done in found.outcomes), self.ticked())
         at = self.procedure.findData(found.procedure)
         self.procedure.setCurrentIndex(at if at >= 0 else 0)
         self.found = None  # the switch below must not recompute what the file holds

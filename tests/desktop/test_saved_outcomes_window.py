@@ -19,6 +19,7 @@ from desktop.main_window import REOPEN_MESSAGES, reopen_message
 from desktop.messages import MESSAGES
 from desktop.outcomes_panel import SAVED_SUFFIX, OutcomesPanel
 from engine import saved
+from engine.outcomes import wide_outcomes
 from engine.rounding import format_p
 
 DEMO = Path(__file__).resolve().parents[2] / "demo_files" / "bolts_four_ways.csv"
@@ -264,3 +265,37 @@ def test_every_status_of_a_reopen_has_a_message_of_its_own():
     assert reopen_message("something new", ("a: saved 1, now 2",), "sentence", several=True) == \
         ("reopen_outcomes_differ", {"differences": "a: saved 1, now 2"})
     assert reopen_message("same", (), "sentence")[0] == "reopen_same"
+
+
+def test_a_wide_file_reopens_with_its_pairs_and_names(make_window, qtbot, tmp_path):
+    from engine.cli import main
+
+    rng = np.random.default_rng(5)
+    header = ("a_east", "a_west", "b_east", "b_west")
+    rows = np.round(rng.normal(10, 1, (12, 4)) + [0.9, 0, 0, 0], 3)
+    data = tmp_path / "wide.csv"
+    data.write_text(",".join(header) + "\n" + "".join(",".join(map(str, row)) + "\n" for row in rows),
+                    encoding="utf-8")
+    target = tmp_path / "wide.twofold"
+    assert main(["analyze", str(data), "--outcome-columns", "second", "b_east", "b_west", "--outcome-columns",
+                 "first", "a_east", "a_west", "--resamples", str(RESAMPLES), "--save", str(target)],
+                out=io.StringIO(), err=io.StringIO()) == 0
+    window = make_window([target])
+    qtbot.waitUntil(lambda: window.message_bar.key == "reopen_outcomes_same" and not window.busy, timeout=120_000)
+    panel = shown_panel(window)
+    assert panel.ticked() == list(header)
+    # the saved names and order stand in the table, not the pairs of the ticks
+    assert [cell(panel, row, 0) for row in range(2)] == ["second", "first"]
+    assert window.session.spec.layout == "wide" and window.session.spec.value_columns == ("b_east", "b_west")
+    # reference: scipy.stats.ttest_ind (Welch) of the pair a_east, a_west
+    welch = scipy_stats.ttest_ind(rows[:, 0], rows[:, 1], equal_var=False)
+    assert panel.found.outcomes[1].analysis.procedures["welch_t"].p_value == pytest.approx(welch.pvalue, rel=1e-10)
+    # compared again in the panel with the ticks as they came, the saved outcomes are compared
+    saved_rows = panel.found.rows
+    with qtbot.waitSignal(panel.worker.finished, timeout=120_000):
+        assert panel.run()
+    assert [(r.name, r.p_value, r.p_holm) for r in panel.found.rows] == \
+        [(r.name, r.p_value, r.p_holm) for r in saved_rows]
+    panel.tick(header[:2])  # other ticks: the pairs of the ticks
+    assert panel.outcomes() == wide_outcomes([("a_east", "a_west")])
+    panel.close()
