@@ -523,6 +523,15 @@ class MainWindow(QMainWindow):
         """Plan a follow-up study from the groups of the comparison on show."""
         self.show_plan(from_data=True)
 
+    def plan_from_summaries(self, analysis: Any) -> None:
+        """Plan the next study from a comparison of summary statistics (a ``SummaryAnalysis``):
+        the Next study tab, filled in from its SDs, sizes, difference and question, comes to the front."""
+        self._add_late_panels()
+        self.plan_panel.fill_from_summaries(analysis)
+        self.tabs.setCurrentWidget(self.plan_panel)
+        self.raise_()
+        self.activateWindow()
+
     # -- opening -------------------------------------------------------------------------------
     def open_dialog(self) -> None:
         start = str(self.session.path.parent) if self.session.path else ""

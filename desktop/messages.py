@@ -122,6 +122,12 @@ _DECLARED = (
             "There are no groups to resample yet: open a file and compare two groups, or give the SDs."),
     Message("plan_saved_differs", "warning",
             "Worked out again, the saved plan gives other figures: saved {saved}; now {now}."),
+    Message("plan_from_summaries", "info",
+            "Filled in from the summary statistics of {first} (group 1) and {second} (group 2): their SDs, "
+            "sizes and difference of means. There are no values behind them, so they cannot be resampled; "
+            "the power is worked out from the SDs."),
+    Message("plan_summaries_no_pilot", "warning",
+            "The inputs come from summary statistics, which hold no values to resample; give the SDs."),
     # copy and export
     Message("nothing_yet", "info", "There is nothing to copy or save yet: open a file and set up the comparison."),
     Message("copied", "info", "Copied {what} to the clipboard."),

@@ -2,8 +2,9 @@
 difference they can find, with a power curve.
 
 The inputs are filled in from the current comparison (its SDs, sizes, level, question and
-design) and can be changed freely; "from these data" resamples the comparison's own groups
-(:func:`engine.plan_member.analysis_pilot`). Every number comes from
+design), or from a comparison of summary statistics (:meth:`PlanPanel.fill_from_summaries`: its
+SDs, sizes and difference, with no values to resample), and can be changed freely; "from these
+data" resamples the comparison's own groups (:func:`engine.plan_member.analysis_pilot`). Every number comes from
 :func:`engine.planning.plan_study` and :func:`engine.planning.power_curve`, run in a worker with
 a progress bar and a Stop button whenever an input changes; a refused input is said in one line
 under the inputs. Copy puts the inputs, the sentence and the curve (as a table and as a picture)
@@ -27,7 +28,7 @@ from engine.errors import FileProblem, OptionProblem, TwofoldError
 from engine.plan_member import analysis_pilot, plan_of
 from engine.plan_words import DESIGN_WORDS, FIND_WORDS, QUESTION_WORDS, SHAPE_NAMES, answer_lines, curve_heading, \
     plan_html, plan_plain
-from engine.planning import Plan, PlanResult, PowerCurve, plan_study, power_curve
+from engine.planning import Plan, PlanResult, PowerCurve, SummaryPilot, plan_study, power_curve, towards
 from engine.question import Margin, Question
 from engine.rounding import format_number
 from engine.text import visible
@@ -176,6 +177,8 @@ class PlanPanel(QWidget):
         self._touched = False
         self._filled_difference: str | None = None
         self._filled_from: Any = None  # the groups the inputs were last filled in from
+        self._summaries: SummaryPilot | None = None  # the summary statistics they came from, if so
+        self._summary_analysis: Any = None  # the comparison of summaries last filled in from
         self._saved_answer: dict | None = None
         self._soon = QTimer(self)
         self._soon.setSingleShot(True)
@@ -339,7 +342,7 @@ class PlanPanel(QWidget):
                      self.sd2, self.n1, self.n2, self.ratio, self.power, self.level, self.unit):
             edit.textChanged.connect(self._changed)
         self.simulations.valueChanged.connect(self._changed)
-        self.fill_button.clicked.connect(lambda: self.fill_from_analysis())
+        self.fill_button.clicked.connect(self._fill_again)
         self.run_button.clicked.connect(self.work_out)
         self.stop_button.clicked.connect(self.stop)
         self.copy_button.clicked.connect(self.copy_plan)
@@ -374,12 +377,16 @@ class PlanPanel(QWidget):
         self.form.labelForField(self.n1).setText("Number of pairs" if paired else "Size of group 1")
         self.form.labelForField(self.difference).setText(
             "Expected true difference" if margin else "Difference that matters")
-        has_pilot = self.session.analysis is not None
-        if has_pilot:
+        summaries = self._summaries
+        has_pilot = self.session.analysis is not None and summaries is None
+        if summaries is not None:
+            self.groups_line.setText(message_text("plan_from_summaries", first=summaries.labels[0],
+                                                  second=summaries.labels[1]))
+        elif has_pilot:
             labels = self.session.analysis.groups.labels
             self.groups_line.setText(f"Group 1 is {visible(labels[0])} and group 2 is {visible(labels[1])}, "
                                      "as in the comparison; every difference is group 1 minus group 2.")
-        self.groups_line.setVisible(has_pilot)
+        self.groups_line.setVisible(has_pilot or summaries is not None)
         model = self.spread.model()
         model.item(self.spread.findData("pilot")).setEnabled(has_pilot)
 
@@ -408,6 +415,8 @@ class PlanPanel(QWidget):
     def pilot(self):
         """The pilot values of the current comparison (its groups, or pair differences)."""
         analysis = self.session.analysis
+        if self._summaries is not None:
+            raise OptionProblem(message_text("plan_summaries_no_pilot"))
         if analysis is None:
             raise OptionProblem(message_text("plan_no_pilot"))
         path = self.session.path
@@ -457,23 +466,14 @@ class PlanPanel(QWidget):
                                                    else analysis.recommendation.key))
             if self._value(self.procedure) == "mann_whitney" and question.has_margin:
                 self._set(self.procedure, "welch")
-            self._set(self.question, question.kind)
-            self.level.setText(_shown(1 - question.level, 12))
-            margin = analysis.margin
-            if margin is not None and margin.unit == "units":
-                if question.kind == "equivalent":
-                    self.margin_low.setText(_shown(margin.low, 12))
-                    self.margin_high.setText(_shown(margin.high, 12))
-                else:
-                    self.margin_size.setText(_shown(margin.high if margin.worse == "higher" else -margin.low, 12))
-                    self._set(self.worse, margin.worse or "lower")
+            self._fill_question(question, analysis.margin)
             import numpy as np
 
             x, y = np.asarray(analysis.groups.x, dtype=float), np.asarray(analysis.groups.y, dtype=float)
             if paired:
                 self.sd.setText(_shown(float(np.std(x - y, ddof=1))))
                 self.sd2.setText("")
-                self.difference.setText(_shown(_towards(question.kind, float(np.mean(x - y))))
+                self.difference.setText(_shown(towards(question.kind, float(np.mean(x - y))))
                                         if not question.has_margin else "0")
             else:
                 known = spec.statements.known_sd
@@ -481,7 +481,7 @@ class PlanPanel(QWidget):
                 self.sd.setText(_shown(sds[0]))
                 self.sd2.setText("" if _shown(sds[0]) == _shown(sds[1]) or self._value(self.procedure) == "pooled"
                                  else _shown(sds[1]))
-                self.difference.setText(_shown(_towards(question.kind, first.mean - second.mean))
+                self.difference.setText(_shown(towards(question.kind, first.mean - second.mean))
                                         if not question.has_margin else "0")
             self.n1.setText(str(int(first.n)))
             self.n2.setText("" if paired or first.n == second.n else str(int(second.n)))
@@ -490,13 +490,66 @@ class PlanPanel(QWidget):
                 self._set(self.spread, "pilot" if from_data else "given")
         finally:
             self._filling = False
+        self._summaries = None
+        self._filled(analysis.groups)
+
+    def fill_from_summaries(self, analysis: Any) -> None:
+        """Fill the inputs in from a comparison of summary statistics (an
+        :class:`engine.summary_analysis.SummaryAnalysis`): its question, level and margin, the SDs
+        of the procedure it suggests (the pooled SD for the pooled t-test), the sizes and the
+        difference of the means. The tab then says the numbers come from summaries, and resampling
+        is not offered: there are no values to resample."""
+        summaries = SummaryPilot.of_analysis(analysis)
+        question = analysis.spec.question
+        self._filling = True
+        try:
+            self._set(self.design, "independent")
+            self._set(self.procedure, procedure_of(analysis.recommendation.key))
+            self._fill_question(question, analysis.margin)
+            self._set(self.spread, "given")
+            self._set(self.shape, "normal")
+            sd, sd2 = summaries.sds_for(self._value(self.procedure))
+            self.sd.setText(_shown(sd))
+            self.sd2.setText("" if sd2 is None or _shown(sd2) == _shown(sd) else _shown(sd2))
+            self.difference.setText(_shown(summaries.expected_difference(question.kind)))
+            n1, n2 = summaries.sizes
+            self.n1.setText(str(n1))
+            self.n2.setText("" if n1 == n2 else str(n2))
+            self.ratio.setText(_shown(n2 / n1))
+        finally:
+            self._filling = False
+        self._summaries, self._summary_analysis = summaries, analysis
+        analysis_now = self.session.analysis
+        self._filled(None if analysis_now is None else analysis_now.groups)
+
+    def _fill_question(self, question: Question, margin: Margin | None) -> None:
+        """The question's kind and level, and its margin when it is in the measurement's units."""
+        self._set(self.question, question.kind)
+        self.level.setText(_shown(1 - question.level, 12))
+        if margin is not None and margin.unit == "units":
+            if question.kind == "equivalent":
+                self.margin_low.setText(_shown(margin.low, 12))
+                self.margin_high.setText(_shown(margin.high, 12))
+            else:
+                self.margin_size.setText(_shown(margin.high if margin.worse == "higher" else -margin.low, 12))
+                self._set(self.worse, margin.worse or "lower")
+
+    def _filled(self, groups: Any) -> None:
+        """After a filling in: the inputs are as filled (``groups``: the comparison's on show)."""
         self._touched = False
-        self._filled_from = analysis.groups
+        self._filled_from = groups
         self._filled_difference = self.difference.text()
         self._saved_answer = None
         self._seed = None
         self._show_rows()
         self._soon.start()
+
+    def _fill_again(self) -> None:
+        """The fill-in button: from the comparison on show, else from the summaries last used."""
+        if self.session.analysis is None and self._summary_analysis is not None:
+            self.fill_from_summaries(self._summary_analysis)
+        else:
+            self.fill_from_analysis()
 
     def restore(self, plan: Plan, answer: dict | None = None) -> None:
         """Show ``plan`` (a saved one) in the inputs and work it out; when ``answer`` (the saved
@@ -529,6 +582,7 @@ class PlanPanel(QWidget):
             self._filling = False
         self._seed = plan.seed
         self._touched = True
+        self._summaries = self._summary_analysis = None
         self._saved_answer = answer
         self._changed()
         self.work_out()
@@ -612,13 +666,15 @@ class PlanPanel(QWidget):
         """A difference still as filled in from the comparison follows the question: turned the
         way a one-sided question asks, 0 expected for a margin question."""
         analysis = self.session.analysis
-        if analysis is None or self._filling or self.difference.text() != self._filled_difference:
+        if (analysis is None and self._summaries is None) or self._filling \
+                or self.difference.text() != self._filled_difference:
             return
         import numpy as np
 
         kind = self._value(self.question)
-        observed = float(np.mean(analysis.groups.x) - np.mean(analysis.groups.y))
-        text = "0" if kind in ("equivalent", "not_worse") else _shown(_towards(kind, observed))
+        observed = (self._summaries.difference if self._summaries is not None
+                    else float(np.mean(analysis.groups.x) - np.mean(analysis.groups.y)))
+        text = "0" if kind in ("equivalent", "not_worse") else _shown(towards(kind, observed))
         self._filled_difference = text
         self.difference.setText(text)
 
@@ -664,7 +720,7 @@ class PlanPanel(QWidget):
             self._show_rows()
             return
         new_data = self._filled_from is None or not _same_groups(self._filled_from, value.groups)
-        if not self._touched or new_data:
+        if new_data or (not self._touched and self._summaries is None):
             self.fill_from_analysis()
         elif self._value(self.spread) == "pilot":
             self._soon.start()  # the pilot is the comparison's groups: work it out again
@@ -718,15 +774,6 @@ class PlanPanel(QWidget):
             self._say("plan_input", reason=problem.message)
             return
         self.restore(plan, member.get("answer"))
-
-
-def _towards(kind: str, difference: float) -> float:
-    """The observed difference turned the way a one-sided question asks (its size kept)."""
-    if kind == "lower":
-        return -abs(difference)
-    if kind == "higher":
-        return abs(difference)
-    return difference
 
 
 def _same_groups(old: Any, new: Any) -> bool:

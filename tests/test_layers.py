@@ -39,7 +39,7 @@ LAYERS: tuple[tuple[str, ...], ...] = (
     ("engine.procedures.registry",),
     # planning the next study: sizes, power and detectable differences, run on the procedures'
     # own formulas; its front last
-    ("engine.planning.plan", "engine.planning.shapes"),
+    ("engine.planning.plan", "engine.planning.shapes", "engine.planning.summary_pilot"),
     ("engine.planning.result", "engine.planning.exact_power", "engine.planning.sentence",
      "engine.planning.rank_approximation", "engine.planning.batch_tests"),
     ("engine.planning.equivalence_power", "engine.planning.simulation"),

@@ -263,3 +263,95 @@ def test_a_paired_comparison_fills_in_a_paired_plan_from_its_pair_differences(qt
     result = worked_out(qtbot, panel)
     assert result.plan.pilot.paired and np.array_equal(result.plan.pilot.group1, differences)
     panel.cleanup()
+
+
+def summary_analysis(kind="differ", level=0.95, *, equal_spreads=False, margin=None):
+    """The comparison of the bolt demo's two groups from their summary statistics alone."""
+    from engine.group_stats import GroupStats
+    from engine.spec import Statements
+    from engine.summary_analysis import analyze_summaries
+
+    groups = pipeline.from_file(None, AnalysisSpec(source=pipeline.source_for(DEMO), seed=3,
+                                                   resamples=200)).analysis.groups
+    stats = (GroupStats.of_values(groups.labels[0], groups.x), GroupStats.of_values(groups.labels[1], groups.y))
+    spec = AnalysisSpec(question=Question(kind, level, margin),
+                        statements=Statements(equal_spread_known=equal_spreads))
+    return analyze_summaries(stats, spec), groups
+
+
+def test_the_inputs_are_filled_in_from_summary_statistics(qtbot, panel):
+    analysis, groups = summary_analysis("higher", 0.9, equal_spreads=True)
+    panel.fill_from_summaries(analysis)
+    first, second = analysis.stats
+    assert panel.procedure.currentData() == "pooled" and panel.spread.currentData() == "given"
+    # the pooled SD of the raw values (numpy), which the pooled t-test plans with
+    pooled = math.sqrt(((groups.x.size - 1) * np.var(groups.x, ddof=1) + (groups.y.size - 1) * np.var(groups.y, ddof=1))
+                       / (groups.x.size + groups.y.size - 2))
+    assert float(panel.sd.text()) == pytest.approx(pooled, rel=1e-3) and panel.sd2.text() == ""
+    assert (int(panel.n1.text()), int(panel.n2.text())) == (groups.x.size, groups.y.size)
+    assert panel.question.currentData() == "higher" and float(panel.level.text()) == pytest.approx(0.1)
+    assert float(panel.difference.text()) == pytest.approx(abs(first.mean - second.mean), rel=1e-3)
+    assert "summary statistics" in panel.groups_line.text() and first.label in panel.groups_line.text()
+    assert not panel.groups_line.isHidden()
+    # nothing to resample: the choice is not offered
+    assert not panel.spread.model().item(panel.spread.findData("pilot")).isEnabled()
+    panel._set(panel.find, "power")
+    result = worked_out(qtbot, panel)
+    d = float(panel.difference.text()) / float(panel.sd.text())
+    # statsmodels TTestIndPower().power(d, nobs1, alpha=0.1, ratio, alternative="larger")
+    assert result.power == pytest.approx(TTestIndPower().power(
+        d, groups.x.size, 0.1, ratio=groups.y.size / groups.x.size, alternative="larger"), abs=1e-10)
+    # the difference as filled in follows the question, from the summaries' means
+    panel._set(panel.question, "lower")
+    assert float(panel.difference.text()) == pytest.approx(-abs(first.mean - second.mean), rel=1e-3)
+    panel._set(panel.spread, "pilot")  # even if forced, the summaries hold no values: one line
+    panel.work_out()
+    assert not panel.problem.isHidden() and "no values to resample" in panel.problem.text()
+
+
+def test_welch_and_a_margin_question_are_filled_in_from_summary_statistics(qtbot, panel):
+    analysis, groups = summary_analysis("equivalent", margin=Margin.within(-20, 25))
+    panel.fill_from_summaries(analysis)
+    assert panel.procedure.currentData() == "welch" and panel.question.currentData() == "equivalent"
+    assert (panel.margin_low.text(), panel.margin_high.text()) == ("-20", "25")
+    assert panel.difference.text() == "0"  # the difference expected under a margin question
+    assert float(panel.sd.text()) == pytest.approx(np.std(groups.x, ddof=1), rel=1e-3)
+    assert float(panel.sd2.text()) == pytest.approx(np.std(groups.y, ddof=1), rel=1e-3)
+    panel._set(panel.find, "n")
+    result = worked_out(qtbot, panel)
+    expected = plan_study(Plan("n", difference=0, sd=float(panel.sd.text()), sd2=float(panel.sd2.text()),
+                               power=0.8, ratio=float(panel.ratio.text()),
+                               question=Question("equivalent", 0.95, Margin.within(-20, 25))))
+    assert (result.n1, result.power) == (expected.n1, expected.power)
+    # the fill-in button, with no comparison of values on show, fills in from the summaries again
+    panel.sd.setText("1")
+    panel.fill_button.click()
+    assert float(panel.sd.text()) == pytest.approx(np.std(groups.x, ddof=1), rel=1e-3)
+
+
+def test_a_comparison_of_values_takes_over_from_the_summaries(qtbot):
+    from desktop.plan_panel import PlanPanel
+
+    session = Session()
+    panel = PlanPanel(session)
+    qtbot.addWidget(panel)
+    analysis, _ = summary_analysis()
+    panel.fill_from_summaries(analysis)
+    worked_out(qtbot, panel)
+    prepared = prepared_session()
+    session.store("analysis", prepared.analysis)  # a file compared after: its groups fill the tab in
+    assert panel.groups_line.text().startswith("Group 1 is ")
+    assert panel.spread.model().item(panel.spread.findData("pilot")).isEnabled()
+    panel.cleanup()
+
+
+def test_the_window_plans_from_summary_statistics(make_window, qtbot):
+    window = make_window()
+    analysis, groups = summary_analysis()
+    window.plan_from_summaries(analysis)
+    panel = window.plan_panel
+    assert window.tabs.currentWidget() is panel
+    assert (int(panel.n1.text()), int(panel.n2.text())) == (groups.x.size, groups.y.size)
+    assert "summary statistics" in panel.groups_line.text()
+    result = worked_out(qtbot, panel)
+    assert result.method == "exact" and result.plan.pilot is None
