@@ -650,7 +650,7 @@ class MainWindow(QMainWindow):
         if not several:
             return None
         panel = self.open_outcomes()
-        panel.show_saved(reopened.prepared, said=message_text(key, **values))
+        panel.show_saved(reopened.prepared, said=message_text(key, **values), reopened=reopened)
         return panel
 
     def _show_prepared(self, prepared: Any) -> None:

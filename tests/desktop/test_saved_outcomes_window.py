@@ -116,7 +116,8 @@ def test_reopening_from_the_command_line_shows_the_table_and_the_panel(make_wind
     panel = shown_panel(window)
     assert panel.ticked() == list(TICKED)
     assert panel.procedure.currentData() == "welch_t" and panel.adjustment_method() == "bh"
-    assert panel.check.text() == panel.reopened == window.message_bar.text and panel.check.isVisibleTo(panel)
+    assert panel.check.text() == window.message_bar.text and panel.check.isVisibleTo(panel)
+    assert panel.reopened.status == "same" and panel.reopened.prepared is panel.found
     assert panel.grid.horizontalHeaderItem(10).text() == "Difference found (B-H)"
     assert panel.grid.rowCount() == len(TICKED)
     for row, (now, then) in enumerate(zip(panel.found.rows, found.rows)):
@@ -128,6 +129,13 @@ def test_reopening_from_the_command_line_shows_the_table_and_the_panel(make_wind
     assert panel.plot.row_names() == list(TICKED)
     assert panel.copy_button.isEnabled() and panel.save_analysis_button.isEnabled()
     assert (digest(data_file), digest(path)) == before  # neither file is written by reopening
+    # the report says first what the check found, then the table as saved
+    assert panel.report_button.isEnabled()
+    report = panel.write_report(path.parent / "report.txt").read_text(encoding="utf-8")
+    assert report.index("run again") < report.index("strength_mpa")
+    assert panel.reopened.message in report
+    page = panel.write_report(path.parent / "report.html").read_text(encoding="utf-8")
+    assert "The saved analysis, run again" in page and "Every choice, as the saved analysis records it" in page
     # the switch works on the reopened table without running anything again
     panel.set_adjustment("holm")
     assert not panel.worker.busy and panel.grid.horizontalHeaderItem(10).text() == "Difference found (Holm)"
