@@ -50,7 +50,7 @@ from engine.text import visible
 
 from .data_panel import DataPanel
 from .margin_entry import question_words
-from .messages import MessageBar
+from .messages import MessageBar, message_text
 from .plain_text import plain_label, tooltip
 from .recent import RecentFiles, menu_labels
 from .setup_panel import SetupPanel
@@ -131,6 +131,27 @@ def differences_words(differences: Sequence[str], limit: int = MAX_DIFFERENCES_S
     shown = "; ".join(differences[:limit])
     rest = len(differences) - limit
     return f"{shown}; and {rest} more" if rest > 0 else shown
+
+
+# What a reopened analysis's check found -> the message that says it: (one outcome, several).
+REOPEN_MESSAGES = {
+    "same": ("reopen_same", "reopen_outcomes_same"),
+    "close": ("reopen_close", "reopen_outcomes_close"),
+    "source_changed": ("reopen_source_changed", "reopen_outcomes_changed"),
+    "source_changed_alike": ("reopen_source_changed_alike", "reopen_outcomes_changed_alike"),
+    "numbers_differ": ("reopen_numbers_differ", "reopen_outcomes_differ"),
+}
+
+
+def reopen_message(status: str, differences: Sequence[str], engine_sentence: str, *,
+                   several: bool = False) -> tuple[str, dict[str, str]]:
+    """The message key and its values (beside the file's and the data file's names) that say what
+    reopening found; a status this window does not know is never called the same."""
+    listed = differences_words(differences)
+    if status == "source_changed" and not listed:
+        status = "source_changed_alike"
+    keys = REOPEN_MESSAGES.get(status, REOPEN_MESSAGES["numbers_differ"])
+    return keys[several], {"differences": listed or engine_sentence}
 
 
 def _workbook_sheets(path: Path) -> tuple[tuple[str, ...], str | None]:
@@ -587,16 +608,18 @@ class MainWindow(QMainWindow):
             found = saved if saved is not None else saved_files.load(path)
             if found.summary_statistics is not None:  # no data file: run again from its numbers
                 return ("summary_reopened", path, found, *saved_files.rerun_summaries(found))
-            if found.outcomes is not None:  # several outcomes: the command runs those again
-                return ("outcomes_saved", path)
+            # several outcomes are run again all together, as one
             return ("reopened", path, saved_files.reopen(found, source_path=source_path, progress=progress,
                                                          cancelled=cancelled))
 
         self.load_worker.run(reopen)
         return True
 
-    def _on_reopened(self, path: Path, reopened: Any) -> None:
-        status, name = reopened.status, path.name
+    def _on_reopened(self, path: Path, reopened: Any) -> Any:
+        """Show a saved analysis run again (one outcome in the window's panels; several in the
+        panel of several measurements, over the file's table) and say what the check found.
+        Returns the panel of several measurements when one opened."""
+        name = path.name
         source = Path(reopened.saved.spec.source.path).name
         if reopened.found_elsewhere:
             source += f" (found at {reopened.source_used})"
@@ -604,8 +627,35 @@ class MainWindow(QMainWindow):
             self.message_bar.show_message(
                 "reopen_source_missing", name=name, source=source,
                 action=("Find the data file…", lambda: self.locate_source(path, reopened.saved)))
-            return
+            return None
+        several = reopened.saved.outcomes is not None
         prepared = reopened.prepared
+        if several:  # the window shows the first outcome compared; the panel shows them all
+            prepared = next((d.prepared for d in prepared.outcomes if d.prepared is not None), None)
+            if prepared is None:
+                problem = next((d.problem for d in reopened.prepared.outcomes if d.problem), "")
+                self.message_bar.show_message("reopen_refused", name=name,
+                                              reason=f"no measurement could be compared again. {problem}")
+                return None
+        self._show_prepared(prepared)
+        self.setWindowTitle(f"{visible(name)} - Twofold")
+        self.recent.add(path)
+        self._load_late_soon()
+        if reopened.saved.plan is not None:
+            self._add_late_panels()
+            self.plan_panel.restore_saved(reopened.saved.plan)
+        key, values = reopen_message(reopened.status, reopened.differences, reopened.message, several=several)
+        values.update(name=name, source=source)
+        self.message_bar.show_message(key, **values)
+        if not several:
+            return None
+        panel = self.open_outcomes()
+        panel.show_saved(reopened.prepared, said=message_text(key, **values), reopened=reopened)
+        return panel
+
+    def _show_prepared(self, prepared: Any) -> None:
+        """Put a reopened analysis (an ``engine.pipeline.Prepared``) on show as it is, running
+        nothing again."""
         self.groups_worker.cancel()
         self.analysis_worker.cancel()
         self._analysis_soon.stop()
@@ -621,23 +671,6 @@ class MainWindow(QMainWindow):
         finally:
             self._quiet = False
             self._seen = self.session.spec
-        self.setWindowTitle(f"{visible(name)} - Twofold")
-        self.recent.add(path)
-        self._load_late_soon()
-        if reopened.saved.plan is not None:
-            self._add_late_panels()
-            self.plan_panel.restore_saved(reopened.saved.plan)
-        differences = differences_words(reopened.differences)
-        if status == "same":
-            self.message_bar.show_message("reopen_same", name=name, source=source)
-        elif status == "close":
-            self.message_bar.show_message("reopen_close", name=name, source=source)
-        elif status == "source_changed":
-            self.message_bar.show_message("reopen_source_changed" if differences else "reopen_source_changed_alike",
-                                          name=name, source=source, differences=differences)
-        else:  # "numbers_differ", or a status this window does not know: never called the same
-            self.message_bar.show_message("reopen_numbers_differ", name=name, source=source,
-                                          differences=differences or reopened.message)
 
     def _on_summary_reopened(self, path: Path, saved: Any, analysis: Any, status: str,
                              differences: tuple) -> Any:
@@ -715,9 +748,6 @@ class MainWindow(QMainWindow):
             return
         if result[0] == "reopened":
             self._on_reopened(result[1], result[2])
-            return
-        if result[0] == "outcomes_saved":
-            self.message_bar.show_message("reopen_outcomes_command", name=result[1].name)
             return
         if result[0] == "summary_reopened":
             self._on_summary_reopened(*result[1:])

@@ -70,9 +70,25 @@ _DECLARED = (
             "{name} reopened, but run again from its summary statistics some numbers came out differently "
             "from the saved ones: {differences}. The results shown are the new ones; the saved file was "
             "not changed."),
-    Message("reopen_outcomes_command", "warning",
-            "{name} compares several outcomes at once; this window cannot open such a file yet. Run it again "
-            "with the command: python -m engine analyze --spec {name}"),
+    Message("reopen_outcomes_same", "info",
+            "{name} reopened: its data file {source} has the checksum it was saved with, and every number of "
+            "every measurement came out exactly as saved."),
+    Message("reopen_outcomes_close", "info",
+            "{name} reopened: its data file {source} has the checksum it was saved with, and every number of "
+            "every measurement agrees with the saved one to 12 significant digits (the last digits can differ "
+            "a little on another computer)."),
+    Message("reopen_outcomes_differ", "warning",
+            "{name} reopened from the unchanged data file {source}, but some numbers came out differently "
+            "from the saved ones: {differences}. The table shown holds the new ones; the saved file was "
+            "not changed."),
+    Message("reopen_outcomes_changed", "warning",
+            "{name} reopened, but its data file {source} has changed since the analysis was saved (its "
+            "checksum differs). The table shown comes from the file as it is now; numbers that differ "
+            "from the saved ones: {differences}."),
+    Message("reopen_outcomes_changed_alike", "warning",
+            "{name} reopened, but its data file {source} has changed since the analysis was saved (its "
+            "checksum differs). The table shown comes from the file as it is now, although its numbers "
+            "came out as saved."),
     Message("reopen_numbers_differ", "warning",
             "{name} reopened from the unchanged data file {source}, but some numbers came out differently "
             "from the saved ones: {differences}. The findings shown are the new ones; the saved file was "

@@ -9,13 +9,18 @@ follow Holm's or Benjamini and Hochberg's adjustment, as the user chooses, witho
 anything again (``OutcomesAnalysis.with_adjustment``). Beside it, a plot of every outcome's
 standardised effect (Hedges' g, or d of the differences for pairs) with its interval. Clicking a
 row opens that outcome's whole findings in the findings panel.
+
+The whole report (``engine.report.outcomes_report``) saves as a web page or plain text. The
+analysis on show saves as a ``.twofold`` file (``engine.saved.save``); a saved one, run again
+by the window (``engine.saved.reopen``), comes back through :meth:`OutcomesPanel.show_saved` with
+its outcomes ticked, its adjustment and procedure chosen and its table filled.
 """
 
 from __future__ import annotations
 
 from dataclasses import dataclass
 from pathlib import Path
-from typing import Any, Sequence
+from typing import Any, Callable, Sequence
 
 from PySide6.QtCore import QObject, Qt, Signal
 from PySide6.QtWidgets import (QAbstractItemView, QButtonGroup, QComboBox, QDialog, QFileDialog,
@@ -25,7 +30,7 @@ from PySide6.QtWidgets import (QAbstractItemView, QButtonGroup, QComboBox, QDial
 
 from engine.errors import FileProblem, TwofoldError
 from engine.multiplicity import ADJUSTMENT_NAMES, ADJUSTMENTS
-from engine.report import tables
+from engine.report import outcomes_report, tables
 from engine.report.numbers import format_interval
 from engine.results import Interval
 from engine.rounding import format_number, format_p, level_text
@@ -34,6 +39,7 @@ from engine.text import visible
 
 from . import clipboard
 from .findings_panel import FindingsPanel
+from .messages import message_text
 from .panel_parts import heading, text_label
 from .plain_text import plain_label
 from .plots import IntervalPlot, plot_image, save_plot
@@ -50,6 +56,8 @@ ADJUSTMENT_WHY = {
           "the level. Choose it to screen many outcomes for the ones worth a closer look; it finds more.",
 }
 TABLE_FILTER = "Web page (*.html);;Plain text (*.txt)"
+SAVED_SUFFIX = ".twofold"  # engine.saved.EXTENSION (checked by a test)
+ANALYSIS_FILTER = f"Saved analysis (*{SAVED_SUFFIX})"
 
 
 def candidate_columns(table, spec) -> list[str]:
@@ -144,6 +152,10 @@ class OutcomesPanel(QDialog):
         self.spec = session.spec
         self.found: Any = None
         self.outcomes_done: list = []
+        self.reopened: Any = None  # the engine.saved.Reopened of the analysis on show, if it was reopened
+        self.saved_path: Path | None = None  # where the analysis was last saved
+        # a reopened analysis's outcomes (their names and order) and the ticks that stand for them
+        self._kept: tuple[tuple, list[str]] | None = None
         self._run = 0
         self._windows: list[QDialog] = []
         self.worker = Worker(self)
@@ -226,6 +238,9 @@ class OutcomesPanel(QDialog):
         self.problem.setStyleSheet("color: #b3261e;")
         self.problem.setVisible(False)
         layout.addWidget(self.problem)
+        self.check = text_label()  # what the check of a reopened file found
+        self.check.setVisible(False)
+        layout.addWidget(self.check)
 
         self.direction = text_label()
         layout.addWidget(self.direction)
@@ -266,7 +281,18 @@ class OutcomesPanel(QDialog):
         self.copy_plot_button.clicked.connect(lambda: clipboard.copy_image(plot_image(self.plot)))
         self.save_plot_button = QPushButton("Save the plot...")
         self.save_plot_button.clicked.connect(self.ask_save_plot)
-        for button in (self.copy_button, self.save_button, self.copy_plot_button, self.save_plot_button):
+        self.save_analysis_button = QPushButton("Save the analysis...")
+        self.save_analysis_button.setToolTip(
+            "Keep this comparison of several measurements as a .twofold file: the columns, the choices, "
+            "the seed and every number, so that it can be opened again and checked.")
+        self.save_analysis_button.clicked.connect(lambda: self.save_analysis())
+        self.report_button = QPushButton("Save a report...")
+        self.report_button.setToolTip(
+            "Write the whole report as a web page or plain text: the table, which adjustment the verdicts "
+            "follow and why, each measurement's suggestion and checks in short, and the cautions.")
+        self.report_button.clicked.connect(lambda: self.save_report())
+        for button in (self.copy_button, self.save_button, self.copy_plot_button, self.save_plot_button,
+                       self.report_button, self.save_analysis_button):
             button.setEnabled(False)
             buttons.addWidget(button)
         buttons.addStretch(1)
@@ -288,11 +314,14 @@ class OutcomesPanel(QDialog):
                                else Qt.CheckState.Unchecked)
 
     def outcomes(self) -> tuple:
-        """The outcomes the ticks describe (raises an engine error naming what is wrong)."""
+        """The outcomes the ticks describe (raises an engine error naming what is wrong); while the
+        ticks are those of a reopened analysis, its outcomes as saved."""
         from engine.errors import OptionProblem
         from engine.outcomes import long_outcomes, wide_outcomes
 
         columns = self.ticked()
+        if self._kept is not None and self._kept[1] == columns:  # as reopened: its names and order stand
+            return self._kept[0]
         if self.spec.layout != "wide":
             if len(columns) < 2:
                 raise OptionProblem("Tick at least two measurement columns.")
@@ -321,6 +350,7 @@ class OutcomesPanel(QDialog):
             self._say(problem.message)
             return False
         self._say("")
+        self._said_check(None, None)
         self._run += 1
         run, relay = self._run, self._relay
         table, spec = self.table_data, self.spec
@@ -401,7 +431,7 @@ class OutcomesPanel(QDialog):
         self._enable(True, table=True)
 
     def _enable(self, plot: bool, *, table: bool) -> None:
-        for button in (self.copy_button, self.save_button):
+        for button in (self.copy_button, self.save_button, self.report_button, self.save_analysis_button):
             button.setEnabled(table)
         for button in (self.copy_plot_button, self.save_plot_button):
             button.setEnabled(plot)
@@ -452,6 +482,57 @@ class OutcomesPanel(QDialog):
         self.plot.show_rows(self.effect_rows(), picked=str(selected) if selected >= 0 else None,
                             axis_label=f"{named}, {groups[0]} minus {groups[1]}" if groups else named)
 
+    # -- a saved analysis ----------------------------------------------------------------------
+    def show_saved(self, found, *, said: str | None = None, reopened: Any = None) -> None:
+        """Show ``found`` (an ``OutcomesAnalysis`` run again from a saved file): its outcomes'
+        columns ticked, its procedure and adjustment chosen, its table, plot and notes filled;
+        ``said`` (what the check of the saved numbers found) stands in a line of its own and
+        ``reopened`` (the ``engine.saved.Reopened``) goes into the report."""
+        self.worker.cancel()
+        self._run += 1  # an outcome still on its way from an earlier run is not shown
+        self.tick([column for done in found.outcomes for column in done.outcome.columns])
+        self._kept = (tuple(done.outcome for done in found.outcomes), self.ticked())
+        at = self.procedure.findData(found.procedure)
+        self.procedure.setCurrentIndex(at if at >= 0 else 0)
+        self.found = None  # the switch below must not recompute what the file holds
+        self.set_adjustment(found.adjustment)
+        self.found = found
+        self.grid.setRowCount(len(found.outcomes))
+        self._say("")
+        self._said_check(said, reopened)
+        self._show_found()
+        self._say_direction()
+        self.status.setText(f"{len(found.outcomes)} measurements compared again.")
+
+    def _said_check(self, said: str | None, reopened: Any) -> None:
+        """Show what the check of a reopened file found (None: a table of this panel's own run)."""
+        self.reopened = reopened
+        self.check.setText(said or "")
+        self.check.setVisible(bool(said))
+
+    def write_analysis(self, path: str | Path) -> Path:
+        """Write the analysis on show to ``path`` as a ``.twofold`` file, the suffix added when
+        left out (so the data file is never written over); returns the file written."""
+        from engine import saved as saved_files
+
+        path = saved_files.with_extension(path)
+        try:
+            saved_files.save(path, self.found)
+        except (TwofoldError, OSError) as problem:
+            reason = getattr(problem, "message", None) or getattr(problem, "strerror", None) or problem
+            raise FileProblem(message_text("save_failed", name=path.name, reason=reason)) from None
+        self.saved_path = path
+        return path
+
+    def save_analysis(self, path: str | Path | None = None) -> bool:
+        """Save the analysis on show as a ``.twofold`` file (asks for the path when none is given);
+        a failure is said under the controls."""
+        if self.found is None:
+            return False
+        data = Path(self.spec.source.path) if self.spec.source is not None else None
+        start = "" if data is None else str(data.with_name(f"{data.stem} measurements{SAVED_SUFFIX}"))
+        return self._ask_and_save("Save the analysis", start, ANALYSIS_FILTER, self.write_analysis, path)
+
     # -- one outcome's findings ----------------------------------------------------------------
     def open_findings(self, row: int) -> QDialog | None:
         """Open the whole findings of the outcome in ``row`` (None while it is not done)."""
@@ -500,32 +581,54 @@ class OutcomesPanel(QDialog):
         blocks = table_blocks(self.found)
         clipboard.copy_findings_text(tables.html(blocks), tables.plain(blocks))
 
-    def save_table(self, path: str | Path) -> Path:
-        """Write the table as a web page (.html) or plain text (.txt)."""
+    def _write_page(self, path: str | Path, what: str, page: Callable[[], str], text: Callable[[], str]) -> Path:
+        """Write ``page()`` to ``path`` ending in .html (or .htm), ``text()`` to one ending in .txt."""
         path = Path(path)
         if self.found is None:
-            raise FileProblem("There is no table to save yet.")
-        blocks = table_blocks(self.found)
-        if path.suffix.lower() not in (".html", ".htm", ".txt"):
-            raise FileProblem(f"A table is saved as .html or .txt, not '{path.suffix}' ({path.name}).")
-        text = tables.plain(blocks) if path.suffix.lower() == ".txt" else \
-            clipboard.html_document(tables.html(blocks), title="Several measurements compared")
+            raise FileProblem(f"There is no {what} to save yet.")
+        suffix = path.suffix.lower()
+        if suffix not in (".html", ".htm", ".txt"):
+            raise FileProblem(f"A {what} is saved as .html or .txt, not '{path.suffix}' ({path.name}).")
         try:
-            path.write_text(text, encoding="utf-8")
+            path.write_text(text() if suffix == ".txt" else page(), encoding="utf-8")
         except OSError as error:
-            raise FileProblem(f"Could not save the table to {path}: {error.strerror or error}.") from None
+            raise FileProblem(f"Could not save the {what} to {path}: {error.strerror or error}.") from None
         return path
 
-    def _ask_and_save(self, title: str, start: str, name_filter: str, save) -> None:
-        path, _ = QFileDialog.getSaveFileName(self, title, start, name_filter)
-        if not path:
-            return
+    def save_table(self, path: str | Path) -> Path:
+        """Write the table as a web page (.html) or plain text (.txt)."""
+        blocks = table_blocks(self.found) if self.found is not None else []
+        return self._write_page(path, "table", lambda: clipboard.html_document(
+            tables.html(blocks), title="Several measurements compared"), lambda: tables.plain(blocks))
+
+    def write_report(self, path: str | Path) -> Path:
+        """Write the whole report of the analysis on show (``engine.report.outcomes_report``, with
+        the check of a reopened file first) as a web page (.html) or plain text (.txt)."""
+        return self._write_page(path, "report", lambda: outcomes_report.html(self.found, reopened=self.reopened),
+                                lambda: outcomes_report.plain(self.found, reopened=self.reopened))
+
+    def _ask_and_save(self, title: str, start: str, name_filter: str, save, path: str | Path | None = None) -> bool:
+        """Write with ``save(path)`` (it returns the file written), asking for the path when none
+        is given; the outcome is said under the controls."""
+        if path is None:
+            path, _ = QFileDialog.getSaveFileName(self, title, start, name_filter)
+            if not path:
+                return False
         try:
-            written = save(path)
+            written = Path(save(path))
         except (FileProblem, OSError, ValueError) as problem:
             self._say(getattr(problem, "message", str(problem)))
-        else:
-            self.status.setText(f"Saved {Path(written).name} in {Path(written).resolve().parent}.")
+            return False
+        self._say("")
+        self.status.setText(message_text("saved", name=written.name, folder=written.resolve().parent))
+        return True
+
+    def save_report(self, path: str | Path | None = None) -> bool:
+        """Save the whole report (asks for the path when none is given); the outcome is said
+        under the controls."""
+        data = Path(self.spec.source.path) if self.spec.source is not None else None
+        start = "measurements report.html" if data is None else str(data.with_name(f"{data.stem} report.html"))
+        return self._ask_and_save("Save a report", start, TABLE_FILTER, self.write_report, path)
 
     def ask_save_table(self) -> None:
         self._ask_and_save("Save the table", "measurements.html", TABLE_FILTER, self.save_table)

@@ -33,7 +33,7 @@ from typing import Any, Callable, Mapping
 from .errors import Cancelled, OptionProblem, TwofoldError, quoted
 from .spec import AnalysisSpec, Source
 
-__all__ = ["FORMAT", "VERSION", "EXTENSION", "MIME_TYPE", "SIZE_LIMIT", "CLOSE_ENOUGH",
+__all__ = ["FORMAT", "VERSION", "EXTENSION", "with_extension", "MIME_TYPE", "SIZE_LIMIT", "CLOSE_ENOUGH",
            "SavedFileProblem", "SavedAnalysis", "Reopened", "save", "load", "numbers_of",
            "compare_numbers", "reopen", "source_candidates", "write_atomically", "STATUSES",
            "document_of", "saved_schema", "rerun_summaries"]
@@ -330,6 +330,13 @@ def save(path: str | Path, analysis, *, plan: Any = None) -> None:
         pass
     text = json.dumps(document, indent=2, sort_keys=True, ensure_ascii=False, allow_nan=False)
     write_atomically(path, text + "\n")
+
+
+def with_extension(path: str | Path) -> Path:
+    """``path`` with :data:`EXTENSION` added when it has another suffix or none (a save never
+    lands on a data file by its name)."""
+    path = Path(path)
+    return path if path.suffix.lower() == EXTENSION else path.with_name(path.name + EXTENSION)
 
 
 def saved_schema() -> dict[str, Any]:

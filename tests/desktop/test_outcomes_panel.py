@@ -223,3 +223,27 @@ def test_the_window_menu_opens_the_panel(make_window, settle, qtbot, tmp_path):
     assert panel is not None and panel.isVisible()
     assert panel.ticked() == list(window.session.spec.value_columns)  # the column on show
     panel.close()
+
+
+def test_save_a_report_writes_the_whole_report(qtbot, panel, tmp_path):
+    from engine.report import outcomes_report
+
+    assert not panel.report_button.isEnabled()
+    panel.tick(NAMES)
+    found = run_all(qtbot, panel)
+    assert panel.report_button.isEnabled()
+    text = panel.write_report(tmp_path / "report.txt").read_text(encoding="utf-8")
+    assert text == outcomes_report.plain(found)
+    assert "run again" not in text  # a table of the panel's own run has no check to report
+    page = panel.write_report(tmp_path / "report.html").read_text(encoding="utf-8")
+    assert page.startswith("<!DOCTYPE html>") and all(name in page for name in NAMES)
+    # reference: statsmodels multipletests ('holm') for the adjusted p-values the report shows
+    holm = multipletests([r.p_value for r in found.rows], method="holm")[1]
+    assert all(format_p(p) in page for p in holm)
+    with pytest.raises(Exception, match=r"report is saved as \.html or \.txt"):
+        panel.write_report(tmp_path / "report.pdf")
+    assert not (tmp_path / "report.pdf").exists()
+    assert panel.save_report(tmp_path / "again.html")
+    assert panel.status.text() == f"Saved again.html in {tmp_path.resolve()}."
+    assert not panel.save_report(tmp_path / "no such folder" / "r.html")
+    assert "Could not save the report" in panel.problem.text() and "\n" not in panel.problem.text()

@@ -64,20 +64,3 @@ def test_a_damaged_summary_file_is_said_in_one_line(make_window, qtbot, tmp_path
     text = window.message_bar.text
     assert "batches.twofold is damaged" in text and "group 2" in text and "\n" not in text
 
-
-def test_a_saved_analysis_of_several_outcomes_is_said_not_crashed(make_window, qtbot, tmp_path):
-    import io
-    import shutil
-    from pathlib import Path
-
-    from engine.cli import main
-
-    data = Path(shutil.copy(Path(__file__).resolve().parents[2] / "demo_files" / "bolts_four_ways.csv",
-                            tmp_path / "bolts.csv"))
-    target = tmp_path / "four.twofold"
-    assert main(["analyze", str(data), "--outcomes", "strength_mpa", "mass_g", "--group", "supplier", "--resamples",
-                 "200", "--save", str(target)], out=io.StringIO(), err=io.StringIO()) == 0
-    window = make_window()
-    window.open_file(target)
-    qtbot.waitUntil(lambda: window.message_bar.key == "reopen_outcomes_command", timeout=60_000)
-    assert window.session.analysis is None  # nothing on show was changed
