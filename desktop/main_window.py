@@ -171,6 +171,23 @@ def _workbook_sheets(path: Path) -> tuple[tuple[str, ...], str | None]:
     return sheets.visible, sheets.first_with_numbers
 
 
+def _refuse_replacing_outcomes(target: Path) -> None:
+    """Raise when ``target`` is a saved analysis of several outcomes: the window's one-outcome
+    analysis must not take its place (the outcomes panel saves those)."""
+    from engine import saved as saved_files
+    from engine.errors import TwofoldError
+
+    if not target.is_file():
+        return
+    try:
+        outcomes = saved_files.load(target).outcomes
+    except TwofoldError:  # not a saved analysis Twofold can read: the dialog asked to replace it
+        return
+    if outcomes is not None:
+        raise TwofoldError(f"it holds an analysis of {len(outcomes['list'])} outcomes, and this window "
+                           "holds one; save it under another name, or save the outcomes from their panel")
+
+
 def _open_folder(folder: Path) -> None:
     """Show ``folder`` in the desktop's file manager."""
     from PySide6.QtCore import QUrl
@@ -712,6 +729,7 @@ class MainWindow(QMainWindow):
         def write(target: Path) -> None:
             from engine import saved as saved_files
 
+            _refuse_replacing_outcomes(target)
             saved_files.save(target, analysis, plan=plan)
 
         return self._save(path, "Save the analysis", ANALYSIS_FILTER, SAVED_SUFFIX, write, own_suffix=True)

@@ -307,3 +307,15 @@ def test_a_wide_file_reopens_with_its_pairs_and_names(make_window, qtbot, tmp_pa
     panel.tick(header[:2])  # other ticks: the pairs of the ticks
     assert panel.outcomes() == wide_outcomes([("a_east", "a_west")])
     panel.close()
+
+
+def test_the_window_never_saves_one_outcome_over_a_file_of_several(saved_file, make_window, qtbot, data_file):
+    # the window's Save writes one outcome; over a saved analysis of several it would lose the rest
+    written, _ = saved_file
+    before = digest(written)
+    window = make_window([data_file])
+    qtbot.waitUntil(lambda: window.session.analysis is not None and not window.busy, timeout=60_000)
+    assert not window.save_analysis(written)
+    assert digest(written) == before
+    assert "holds an analysis of 3 outcomes" in window.message_bar.text
+    assert window.save_analysis(written.with_name("one outcome.twofold"))
