@@ -16,12 +16,17 @@ it could not be analysed, and ``analysis``: the whole single-outcome document
 from __future__ import annotations
 
 import argparse
+import difflib
 import json
 from typing import Any, TextIO
 
-from .errors import TwofoldError
+from .errors import TwofoldError, quoted
 
-__all__ = ["add_flags", "wanted", "run", "write", "outcomes_document", "outcomes_lines"]
+__all__ = ["add_flags", "wanted", "run", "write", "outcomes_document", "outcomes_lines", "FLAGS",
+           "refuse_alone", "check_same_procedure", "write_report"]
+
+# The flags that only several outcomes take (a saved analysis holds their choices already).
+FLAGS = ("adjust", "same_procedure")
 
 
 def add_flags(command: argparse.ArgumentParser) -> None:
@@ -43,6 +48,61 @@ def add_flags(command: argparse.ArgumentParser) -> None:
 def wanted(args) -> bool:
     """Whether the arguments ask for several outcomes."""
     return bool(getattr(args, "outcomes", None) or getattr(args, "outcome_columns", None))
+
+
+def _given(args) -> list[str]:
+    return ["--" + name.replace("_", "-") for name in FLAGS if getattr(args, name, None) is not None]
+
+
+def refuse_alone(args) -> None:
+    """One line for --adjust or --same-procedure without --outcomes or --outcome-columns (a
+    saved analysis given with --spec refuses them with its other choices)."""
+    given = _given(args)
+    if given and not wanted(args) and getattr(args, "spec", None) is None:
+        both = len(given) > 1
+        raise TwofoldError(f"python -m engine analyze: {' and '.join(given)} {'are' if both else 'is'} for "
+                           "several outcomes; add --outcomes (with --group) or --outcome-columns, or leave "
+                           f"{'them' if both else 'it'} out")
+
+
+def check_same_procedure(key: str | None, spec) -> None:
+    """One line, before the data are read, for a --same-procedure key that does not answer the
+    question ``spec`` asks, naming the keys that do."""
+    from .procedures import registry
+
+    if key is None:
+        return
+    fits = [record.key for record in registry.applicable(spec)]
+    if key in fits:
+        return
+    known = registry.find(key)
+    if known is None:
+        close = difflib.get_close_matches(key, fits, n=1)
+        why = "no procedure has that key" + (f" (perhaps {close[0]})" if close else "")
+    else:
+        why = _why_not(known, spec)
+    raise TwofoldError(f"python -m engine analyze: --same-procedure '{quoted(key)}' does not answer this "
+                       f"question: {why}; the keys that fit: {', '.join(fits)}")
+
+
+_DESIGN_WORDS = {"independent": "two independent groups", "paired": "matched pairs"}
+_QUESTION_WORDS = {"differ": "whether the groups differ", "lower": "a one-sided question",
+                   "higher": "a one-sided question", "equivalent": "an equivalence question",
+                   "not_worse": "a non-inferiority question"}
+
+
+def _why_not(record, spec) -> str:
+    """Why the procedure ``record`` does not answer the question ``spec`` asks, in a few words."""
+    if spec.design not in record.designs:
+        return f"it is for {' or '.join(_DESIGN_WORDS.get(d, d) for d in record.designs)}"
+    if spec.question.kind not in record.questions:
+        asked = dict.fromkeys(_QUESTION_WORDS.get(q, q) for q in record.questions)
+        return f"it is for {' or '.join(asked)}"
+    if record.needs_known_sd and spec.statements.known_sd is None:
+        return "it needs the groups' known SDs (--known-sd)"
+    if record.needs_equal_spread and not spec.statements.equal_spread_known:
+        return "it needs the spreads known to be equal (--equal-spreads-known)"
+    return "it does not take a margin given this way"
 
 
 def _outcomes(args):
@@ -131,6 +191,7 @@ def run(args, out: TextIO, spec) -> None:
     from .outcomes import outcomes_from_file
 
     outcomes = _outcomes(args)
+    check_same_procedure(args.same_procedure, spec)
     found = outcomes_from_file(spec, outcomes, procedure=args.same_procedure,
                                adjustment=args.adjust or "holm")
     if args.save is not None:  # before anything is printed: a failed save is then the only line
@@ -138,6 +199,19 @@ def run(args, out: TextIO, spec) -> None:
 
         saved.save(args.save, found)
     write(found, args, out)
+
+
+def write_report(args, out: TextIO, reopened) -> None:
+    """``report SAVED --html OUT`` of a saved analysis of several outcomes, run again and
+    confirmed (``reopened``): the page of :func:`engine.report.outcomes_report.html`, never over
+    the data file or the saved analysis."""
+    from . import audit, saved
+    from .report import outcomes_report
+    from .text import visible
+
+    audit.refuse_overwriting(args.html, [reopened.source_used, args.path])
+    saved.write_atomically(args.html, outcomes_report.html(reopened.prepared, reopened=reopened))
+    out.write(visible(f"Report written to {args.html}") + "\n")
 
 
 def write(found, args, out: TextIO, lines: list[str] | None = None) -> None:
