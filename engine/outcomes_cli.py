@@ -161,26 +161,22 @@ def outcomes_document(found) -> dict[str, Any]:
 
 
 def outcomes_lines(found) -> list[str]:
-    """The plain table: one line per outcome, then why one would choose each adjustment."""
-    from .report.numbers import format_interval
-    from .rounding import format_number, format_p, level_text
+    """The plain table: one line per outcome (its cells as the report writes them), then why one
+    would choose each adjustment."""
+    from .report.outcomes_report import ADJUSTMENT_SHORT, row_cells
+    from .rounding import level_text
 
-    chosen = "Holm" if found.adjustment == "holm" else "Benjamini-Hochberg"
-    lines = [f"{len(found.outcomes)} outcomes; verdicts by {chosen}'s adjustment at "
+    lines = [f"{len(found.outcomes)} outcomes; verdicts by {ADJUSTMENT_SHORT[found.adjustment]}'s adjustment at "
              f"{level_text(found.level)}; intervals at {level_text(found.level)} and, together, at "
              f"{level_text(found.simultaneous_level)} (Bonferroni)."]
-    for row in found.rows:
-        if row.problem is not None and row.estimate is None:
+    for index, (done, row) in enumerate(zip(found.outcomes, found.rows)):
+        if done.result is None:
             lines.append(f"{row.name}: not analysed: {row.problem}")
             continue
-        verdict = {True: "yes", False: "no", None: "no p-value"}[row.finding]
-        effect = ("" if row.effect is None else
-                  f"; {row.effect.name} {format_number(row.effect.value)}")
-        lines.append(
-            f"{row.name}: n {row.n[0]} and {row.n[1]}; {row.procedure}: {row.estimate_name} "
-            f"{format_number(row.estimate)} {format_interval(row.interval) or ''}"
-            f" (together {format_interval(row.simultaneous_interval) or '-'}); p {format_p(row.p_value)}, "
-            f"Holm {format_p(row.p_holm)}, Benjamini-Hochberg {format_p(row.p_bh)}; finding: {verdict}{effect}")
+        name, n, procedure, estimate, together, p, holm, bh, effect, verdict = row_cells(found, index)
+        effect_words = "" if done.effect is None else f"; {done.effect.name} {effect}"
+        lines.append(f"{name}: n {n}; {procedure}: {row.estimate_name} {estimate}, together {together}; "
+                     f"p {p}, Holm {holm}, Benjamini-Hochberg {bh}; verdict: {verdict}{effect_words}")
     lines += [finding.text for finding in found.findings]
     return lines
 
