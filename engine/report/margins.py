@@ -10,6 +10,7 @@ this module places them and says the rest.
 from __future__ import annotations
 
 import math
+from dataclasses import replace
 
 from ..question import Margin
 from ..side_by_side import alpha_number
@@ -44,7 +45,8 @@ def margin_size(analysis, question=None, labels: tuple[str, str] | None = None) 
         margin = question.margin
         if margin.unit == "percent":
             given = Margin(margin.low, margin.high, "units", margin.worse)
-            return f"{question.margin_text(given, labels, entered_decimals([margin.low, margin.high]))}% of {labels[1]}'s mean"
+            as_units = replace(question, margin=given)  # the percentages as numbers, then the % sign
+            return f"{as_units.margin_text(given, labels, entered_decimals([margin.low, margin.high]))}% of {labels[1]}'s mean"
     if question.margin.unit == "percent":  # converted: written as the verdict writes it
         decimals = _converted_decimals(analysis, None)
     else:
