@@ -130,7 +130,7 @@ def spec_from_arguments(args):
 
 
 def _refuse_flags_with_saved(args, saved_name: str) -> None:
-    given = [name for name in ANALYSIS_FLAGS if getattr(args, name, None) not in (None, False)]
+    given = [name for name in ANALYSIS_FLAGS + outcomes_cli.FLAGS if getattr(args, name, None) not in (None, False)]
     if given:
         flags = ", ".join("--" + name.replace("_", "-") for name in given)
         raise TwofoldError(f"{saved_name} holds every choice of its analysis; leave out {flags} "
@@ -177,6 +177,7 @@ def _analyze(args, out: TextIO) -> None:
     from .jsonout import analysis_document
     from .report import render
 
+    outcomes_cli.refuse_alone(args)
     if summary_cli.wanted(args) or outcomes_cli.wanted(args):
         question_flags.refuse_with(args, summaries=summary_cli.wanted(args))
         return (summary_cli.run(args, out, DEFAULTS) if summary_cli.wanted(args)
@@ -238,8 +239,11 @@ def _report(args, out: TextIO) -> None:
     if is_saved and (loaded := saved.load(args.path)).summary_statistics is not None:
         return summary_cli.write_report(args, out, loaded, ANALYSIS_FLAGS)
     if is_saved:
-        prepared, reopened = _prepared(args, args.source, args.path,
-                                       f"python -m engine report {args.path} --source NEW_PLACE --html {args.html}")
+        locate = f"python -m engine report {args.path} --source NEW_PLACE --html {args.html}"
+        if saved.load(args.path).outcomes is not None:  # several outcomes: their own report
+            _refuse_flags_with_saved(args, args.path.name)
+            return outcomes_cli.write_report(args, out, _reopened(args.path, args.source, locate))
+        prepared, reopened = _prepared(args, args.source, args.path, locate)
     else:
         prepared, reopened = _prepared(args, args.path, None)
     keep = [Path(prepared.spec.source.path)] + ([args.path] if is_saved else [])

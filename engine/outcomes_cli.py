@@ -16,12 +16,17 @@ it could not be analysed, and ``analysis``: the whole single-outcome document
 from __future__ import annotations
 
 import argparse
+import difflib
 import json
 from typing import Any, TextIO
 
-from .errors import TwofoldError
+from .errors import TwofoldError, quoted
 
-__all__ = ["add_flags", "wanted", "run", "write", "outcomes_document", "outcomes_lines"]
+__all__ = ["add_flags", "wanted", "run", "write", "outcomes_document", "outcomes_lines", "FLAGS",
+           "refuse_alone", "check_same_procedure", "write_report"]
+
+# The flags that only several outcomes take (a saved analysis holds their choices already).
+FLAGS = ("adjust", "same_procedure")
 
 
 def add_flags(command: argparse.ArgumentParser) -> None:
@@ -43,6 +48,61 @@ def add_flags(command: argparse.ArgumentParser) -> None:
 def wanted(args) -> bool:
     """Whether the arguments ask for several outcomes."""
     return bool(getattr(args, "outcomes", None) or getattr(args, "outcome_columns", None))
+
+
+def _given(args) -> list[str]:
+    return ["--" + name.replace("_", "-") for name in FLAGS if getattr(args, name, None) is not None]
+
+
+def refuse_alone(args) -> None:
+    """One line for --adjust or --same-procedure without --outcomes or --outcome-columns (a
+    saved analysis given with --spec refuses them with its other choices)."""
+    given = _given(args)
+    if given and not wanted(args) and getattr(args, "spec", None) is None:
+        both = len(given) > 1
+        raise TwofoldError(f"python -m engine analyze: {' and '.join(given)} {'are' if both else 'is'} for "
+                           "several outcomes; add --outcomes (with --group) or --outcome-columns, or leave "
+                           f"{'them' if both else 'it'} out")
+
+
+def check_same_procedure(key: str | None, spec) -> None:
+    """One line, before the data are read, for a --same-procedure key that does not answer the
+    question ``spec`` asks, naming the keys that do."""
+    from .procedures import registry
+
+    if key is None:
+        return
+    fits = [record.key for record in registry.applicable(spec)]
+    if key in fits:
+        return
+    known = registry.find(key)
+    if known is None:
+        close = difflib.get_close_matches(key, fits, n=1)
+        why = "no procedure has that key" + (f" (perhaps {close[0]})" if close else "")
+    else:
+        why = _why_not(known, spec)
+    raise TwofoldError(f"python -m engine analyze: --same-procedure '{quoted(key)}' does not answer this "
+                       f"question: {why}; the keys that fit: {', '.join(fits)}")
+
+
+_DESIGN_WORDS = {"independent": "two independent groups", "paired": "matched pairs"}
+_QUESTION_WORDS = {"differ": "whether the groups differ", "lower": "a one-sided question",
+                   "higher": "a one-sided question", "equivalent": "an equivalence question",
+                   "not_worse": "a non-inferiority question"}
+
+
+def _why_not(record, spec) -> str:
+    """Why the procedure ``record`` does not answer the question ``spec`` asks, in a few words."""
+    if spec.design not in record.designs:
+        return f"it is for {' or '.join(_DESIGN_WORDS.get(d, d) for d in record.designs)}"
+    if spec.question.kind not in record.questions:
+        asked = dict.fromkeys(_QUESTION_WORDS.get(q, q) for q in record.questions)
+        return f"it is for {' or '.join(asked)}"
+    if record.needs_known_sd and spec.statements.known_sd is None:
+        return "it needs the groups' known SDs (--known-sd)"
+    if record.needs_equal_spread and not spec.statements.equal_spread_known:
+        return "it needs the spreads known to be equal (--equal-spreads-known)"
+    return "it does not take a margin given this way"
 
 
 def _outcomes(args):
@@ -101,26 +161,22 @@ def outcomes_document(found) -> dict[str, Any]:
 
 
 def outcomes_lines(found) -> list[str]:
-    """The plain table: one line per outcome, then why one would choose each adjustment."""
-    from .report.numbers import format_interval
-    from .rounding import format_number, format_p, level_text
+    """The plain table: one line per outcome (its cells as the report writes them), then why one
+    would choose each adjustment."""
+    from .report.outcomes_report import ADJUSTMENT_SHORT, row_cells
+    from .rounding import level_text
 
-    chosen = "Holm" if found.adjustment == "holm" else "Benjamini-Hochberg"
-    lines = [f"{len(found.outcomes)} outcomes; verdicts by {chosen}'s adjustment at "
+    lines = [f"{len(found.outcomes)} outcomes; verdicts by {ADJUSTMENT_SHORT[found.adjustment]}'s adjustment at "
              f"{level_text(found.level)}; intervals at {level_text(found.level)} and, together, at "
              f"{level_text(found.simultaneous_level)} (Bonferroni)."]
-    for row in found.rows:
-        if row.problem is not None and row.estimate is None:
+    for index, (done, row) in enumerate(zip(found.outcomes, found.rows)):
+        if done.result is None:
             lines.append(f"{row.name}: not analysed: {row.problem}")
             continue
-        verdict = {True: "yes", False: "no", None: "no p-value"}[row.finding]
-        effect = ("" if row.effect is None else
-                  f"; {row.effect.name} {format_number(row.effect.value)}")
-        lines.append(
-            f"{row.name}: n {row.n[0]} and {row.n[1]}; {row.procedure}: {row.estimate_name} "
-            f"{format_number(row.estimate)} {format_interval(row.interval) or ''}"
-            f" (together {format_interval(row.simultaneous_interval) or '-'}); p {format_p(row.p_value)}, "
-            f"Holm {format_p(row.p_holm)}, Benjamini-Hochberg {format_p(row.p_bh)}; finding: {verdict}{effect}")
+        name, n, procedure, estimate, together, p, holm, bh, effect, verdict = row_cells(found, index)
+        effect_words = "" if done.effect is None else f"; {done.effect.name} {effect}"
+        lines.append(f"{name}: n {n}; {procedure}: {row.estimate_name} {estimate}, together {together}; "
+                     f"p {p}, Holm {holm}, Benjamini-Hochberg {bh}; verdict: {verdict}{effect_words}")
     lines += [finding.text for finding in found.findings]
     return lines
 
@@ -131,6 +187,7 @@ def run(args, out: TextIO, spec) -> None:
     from .outcomes import outcomes_from_file
 
     outcomes = _outcomes(args)
+    check_same_procedure(args.same_procedure, spec)
     found = outcomes_from_file(spec, outcomes, procedure=args.same_procedure,
                                adjustment=args.adjust or "holm")
     if args.save is not None:  # before anything is printed: a failed save is then the only line
@@ -138,6 +195,19 @@ def run(args, out: TextIO, spec) -> None:
 
         saved.save(args.save, found)
     write(found, args, out)
+
+
+def write_report(args, out: TextIO, reopened) -> None:
+    """``report SAVED --html OUT`` of a saved analysis of several outcomes, run again and
+    confirmed (``reopened``): the page of :func:`engine.report.outcomes_report.html`, never over
+    the data file or the saved analysis."""
+    from . import audit, saved
+    from .report import outcomes_report
+    from .text import visible
+
+    audit.refuse_overwriting(args.html, [reopened.source_used, args.path])
+    saved.write_atomically(args.html, outcomes_report.html(reopened.prepared, reopened=reopened))
+    out.write(visible(f"Report written to {args.html}") + "\n")
 
 
 def write(found, args, out: TextIO, lines: list[str] | None = None) -> None:

@@ -26,7 +26,7 @@ from .pairs import is_paired, n_pairs
 from .sentences import question_text
 
 __all__ = ["html", "plain", "sections", "blocks", "table_block", "page_blocks", "headings", "row_cells", "title",
-           "ADJUSTMENT_SHORT", "VERDICT_WORDS", "SEVERAL_CAUTIONS", "NONE"]
+           "ADJUSTMENT_SHORT", "VERDICT_WORDS", "WIDE_LABELS", "SEVERAL_CAUTIONS", "NONE"]
 
 # The adjustments as a table heading and a sentence name them.
 ADJUSTMENT_SHORT = {"holm": "Holm", "bh": "Benjamini-Hochberg"}
@@ -71,20 +71,30 @@ def _first_analysis(found):
     return next((done.analysis for done in found.outcomes if done.analysis is not None), None)
 
 
+# In the wide layout each outcome has columns of its own: the groups have no names in common.
+WIDE_LABELS = ("group 1", "group 2")
+
+
 def _labels(found) -> tuple[str, str]:
+    """The two groups' labels (the long layout's group labels; in the wide layout "group 1" and
+    "group 2", each outcome's first and second column)."""
+    if found.spec.layout == "wide":
+        return WIDE_LABELS
     analysis = _first_analysis(found)
     if analysis is not None:
         return tuple(str(label) for label in analysis.groups.labels)
     if found.spec.groups:
         return tuple(str(label) for label in found.spec.groups)
-    return ("group 1", "group 2")
+    return WIDE_LABELS
 
 
 def title(found) -> str:
-    """The report's title: "north_forge and east_works compared on 4 outcomes"."""
+    """The report's title: "north_forge and east_works compared on 4 outcomes" ("Two groups
+    compared on 3 outcomes" in the wide layout)."""
     first, second = _labels(found)
     count = len(found.outcomes)
-    return f"{first} and {second} compared on {count} outcome{'s' if count != 1 else ''}"
+    groups = "Two groups" if found.spec.layout == "wide" else f"{first} and {second}"
+    return f"{groups} compared on {count} outcome{'s' if count != 1 else ''}"
 
 
 def headings(found) -> list[str]:
@@ -216,7 +226,9 @@ def _choice_pairs(found) -> list[tuple[str, str]]:
         if source.sha256:
             rows.append((CHECKSUM_NAME, source.sha256))
     ratio = analysis is not None and estimate_is_ratio(analysis)
-    rows.append(("Groups compared", f"{labels[0]} (first) and {labels[1]} (second); "
+    compared = (f"{labels[0]} (first) and {labels[1]} (second)" if spec.layout == "long" else
+                f"{labels[0]}: the first column of each outcome; {labels[1]}: the second")
+    rows.append(("Groups compared", f"{compared}; "
                                     + (f"ratios are {labels[0]} over {labels[1]}" if ratio
                                        else f"differences are {labels[0]} minus {labels[1]}")))
     if spec.layout == "long" and spec.group_column is not None:
@@ -225,7 +237,8 @@ def _choice_pairs(found) -> list[tuple[str, str]]:
         done.outcome.name + ("" if done.outcome.columns == (done.outcome.name,)
                              else f" (columns {', '.join(done.outcome.columns)})")
         for done in found.outcomes)))
-    rows.append(("Question", question_text(spec.question, labels, analysis)))
+    # a margin in % is said as entered: in units it differs from one outcome to the next
+    rows.append(("Question", question_text(spec.question, labels)))
     rows.append(("Confidence level", level_text(found.level)))
     rows.append(("Procedure read", "the same for every outcome: " + _procedure_name(found)
                  if found.procedure is not None else "each outcome's own suggestion"))

@@ -13,7 +13,7 @@ import pandas as pd
 import pytest
 from statsmodels.stats.multitest import multipletests
 
-from engine.outcomes import long_outcomes, outcomes_from_file
+from engine.outcomes import long_outcomes, outcomes_from_file, wide_outcomes
 from engine.question import Margin, Question
 from engine.report import outcomes_report
 from engine.report.cautions import CAUTIONS_ALWAYS, HEADING
@@ -216,3 +216,21 @@ def test_a_saved_analysis_run_again_says_so_first(found, tmp_path):
     assert h2[0] == "The saved analysis, run again" and reopened.message in " ".join(parsed.text)
     assert re.search(r"The saved analysis, run again\n-+\n\n- Run again on bolt_lots.csv",
                      outcomes_report.plain(reopened.prepared, reopened=reopened))
+
+
+def test_the_wide_layout_names_the_groups_by_their_place_and_a_percent_margin_as_entered(tmp_path):
+    rng = np.random.default_rng(8)
+    frame = pd.DataFrame({f"{name}_{lot}": rng.normal(level, 1, 14).round(3)
+                          for name, level in (("width", 10), ("depth", 40)) for lot in ("old", "new")})
+    path = tmp_path / "plates.csv"
+    frame.to_csv(path, index=False)
+    question = Question(kind="equivalent", margin=Margin.within(-5.0, 5.0, unit="percent"))
+    spec = AnalysisSpec(source=Source(str(path)), layout="wide", resamples=200, seed=2, question=question)
+    outcomes = wide_outcomes([("width_old", "width_new"), ("depth_old", "depth_new")], ["width", "depth"])
+    found = outcomes_from_file(spec, outcomes)
+    text = outcomes_report.plain(found)
+    # not the first outcome's columns as if every outcome had them
+    assert text.startswith("Two groups compared on 2 outcomes\n") and "width_old and" not in text
+    assert "group 1: the first column of each outcome; group 2: the second" in text
+    assert "width (columns width_old, width_new); depth (columns depth_old, depth_new)" in text
+    assert "Are group 1 and group 2 equivalent within ±5% of group 2's mean?" in text

@@ -1,9 +1,11 @@
 """Saved analyses of several outcomes: ``analyze --outcomes ... --save``, ``analyze --spec`` of
-such a file, the optional ``outcomes`` member, and files saved before it."""
+such a file, ``report`` of it (with --source for a moved data file), the optional ``outcomes``
+member, and files saved before it."""
 
 import io
 import json
 import shutil
+from html.parser import HTMLParser
 from pathlib import Path
 
 import pytest
@@ -11,6 +13,7 @@ from statsmodels.stats.multitest import multipletests
 
 from engine import saved
 from engine.cli import main
+from engine.rounding import format_p
 from engine.saved import SavedFileProblem
 
 DEMO = Path(__file__).resolve().parents[2] / "demo_files"
@@ -141,3 +144,109 @@ def test_an_outcomes_file_validates_against_the_shipped_schema(four):
     validator.validate(document)  # jsonschema: a reference validator of JSON Schema 2020-12
     document["outcomes"]["adjustment"] = "sidak"
     assert not validator.is_valid(document)
+
+
+def refused(code, out, err, *words):
+    assert code == 2 and out == "" and err.count("\n") == 1, (code, out, err)
+    for word in words:
+        assert word in err, (word, err)
+
+
+def text_of(path: Path) -> str:
+    parser = _Text()
+    parser.feed(path.read_text(encoding="utf-8"))
+    return " ".join(parser.parts)
+
+
+class _Text(HTMLParser):
+    def __init__(self) -> None:
+        super().__init__()
+        self.parts: list[str] = []
+
+    def handle_data(self, data):
+        self.parts.append(data)
+
+
+def test_report_of_a_saved_outcomes_file_writes_the_page(four, tmp_path):
+    data, target, document = four
+    page = tmp_path / "four.html"
+    before = data.read_bytes(), target.read_bytes()
+    code, out, err = run("report", target, "--html", page)
+    assert (code, err) == (0, "") and out == f"Report written to {page}\n"
+    text = text_of(page)
+    assert "Run again on bolts.csv, the analysis gave the saved numbers exactly." in text
+    assert "north_forge and east_works compared on 4 outcomes" in text
+    raw = [o["p_value"] for o in document["outcomes"]]
+    bh = multipletests(raw, method="fdr_bh")[1]  # reference: statsmodels, the adjustment the file chose
+    for name, p, adjusted in zip(OUTCOMES, raw, bh):
+        assert name in text
+        assert format_p(p) in text and format_p(adjusted) in text
+    assert "Verdict by Benjamini-Hochberg" in text
+    assert (data.read_bytes(), target.read_bytes()) == before
+
+
+def test_a_moved_data_file_is_given_with_source(four, tmp_path):
+    data, target, _ = four
+    elsewhere = tmp_path / "elsewhere"
+    elsewhere.mkdir()
+    moved = data.rename(elsewhere / "renamed.csv")
+    page = tmp_path / "four.html"
+    refused(*run("report", target, "--html", page), "the data file bolts.csv was not found",
+            f"python -m engine report {target} --source NEW_PLACE --html {page}")
+    assert not page.exists()
+    code, out, err = run("report", target, "--source", moved, "--html", page)
+    assert code == 0, err
+    assert "renamed.csv, found at a new place with the same checksum" in text_of(page)
+
+
+def test_the_report_never_replaces_what_it_reads_nor_takes_new_choices(four, tmp_path):
+    data, target, _ = four
+    before = data.read_bytes(), target.read_bytes()
+    refused(*run("report", target, "--html", data), "would replace bolts.csv")
+    refused(*run("report", target, "--html", target), "would replace four.twofold")
+    refused(*run("report", target, "--html", tmp_path / "x.html", "--confidence", "0.9"),
+            "four.twofold holds every choice of its analysis; leave out --confidence")
+    assert (data.read_bytes(), target.read_bytes()) == before
+
+
+def test_a_changed_data_file_gives_no_report(four, tmp_path):
+    data, target, _ = four
+    data.write_text(data.read_text(encoding="utf-8").replace("814.3", "815.3", 1), encoding="utf-8")
+    page = tmp_path / "four.html"
+    refused(*run("report", target, "--html", page), "has changed since the analysis was saved")
+    assert not page.exists()
+
+
+@pytest.mark.parametrize("flags, said", [
+    (["--adjust", "holm"], "leave out --adjust"),
+    (["--same-procedure", "welch_t"], "leave out --same-procedure"),
+    (["--adjust", "holm", "--same-procedure", "welch_t"], "leave out --adjust, --same-procedure"),
+])
+def test_outcome_flags_with_a_saved_analysis_are_refused(four, tmp_path, flags, said):
+    _, target, _ = four
+    refused(*run("analyze", "--spec", target, *flags), f"four.twofold holds every choice of its analysis; {said}")
+    one = tmp_path / "one.twofold"
+    assert run("analyze", DEMO / "bolt_strength.csv", "--resamples", "200", "--save", one)[0] == 0
+    refused(*run("analyze", "--spec", one, *flags), f"one.twofold holds every choice of its analysis; {said}")
+    sums = tmp_path / "sums.twofold"
+    code, _, err = run("analyze", "--summary", "A n=12 mean=41.2 sd=3.1", "--summary", "B n=15 mean=38.0 sd=4.4",
+                       "--save", sums)
+    assert code == 0, err
+    refused(*run("analyze", "--spec", sums, *flags), f"sums.twofold holds every choice of its analysis; {said}")
+
+
+def test_the_plain_lines_show_each_outcome_as_the_report_does(four):
+    from engine.report.outcomes_report import row_cells
+
+    _, target, _ = four
+    code, out, err = run("analyze", "--spec", target)
+    assert code == 0, err
+    found = saved.reopen(saved.load(target)).prepared
+    lines = out.splitlines()
+    for index, name in enumerate(OUTCOMES):
+        line = next(line for line in lines if line.startswith(f"{name}: "))
+        cells = row_cells(found, index)
+        # the estimate and its interval, the Bonferroni interval, the p-values, the verdict
+        assert f" {cells[3]}, together {cells[4]}; p {cells[5]}, Holm {cells[6]}, Benjamini-Hochberg {cells[7]}; " \
+               f"verdict: {cells[9]}; Hedges' g {cells[8]}" in line
+
