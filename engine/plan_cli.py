@@ -3,8 +3,10 @@
 Two of the difference, the size and the power say what is found: ``--difference D --sd S
 --power P`` the size per group; ``--difference D --sd S --n N`` the power; ``--sd S --n N
 --power P`` the smallest detectable difference. ``--pilot FILE`` (with the analyze command's
-column flags) takes the spread and shape from pilot values instead of ``--sd``. ``--curve``
-adds the power along the size or the difference. Bad input ends with one line, as for the
+column flags) takes the spread and shape from pilot values instead of ``--sd``; a saved analysis
+of summary statistics as the pilot gives the SDs, and the sizes and the difference where they are
+not given, with the normal-theory power (what would need the values, such as resampling or a
+rank test, is refused in one line). ``--curve`` adds the power along the size or the difference. Bad input ends with one line, as for the
 other commands (:mod:`engine.cli` prints it).
 """
 
@@ -141,10 +143,16 @@ def _pilot(args):
 
     name = args.pilot.name
     if args.pilot.suffix.lower() == saved.EXTENSION:
+        loaded = saved.load(args.pilot)
         if any(getattr(args, flag) is not None for flag in ("value", "group", "groups", "sheet")):
-            raise OptionProblem(f"{name} names its own columns and groups; leave out --value, "
-                                "--group, --groups and --sheet.")
-        reopened = saved.reopen(saved.load(args.pilot))
+            what = ("holds summary statistics, not columns" if loaded.summary_statistics is not None
+                    else "names its own columns and groups")
+            raise OptionProblem(f"{name} {what}; leave out --value, --group, --groups and --sheet.")
+        if loaded.summary_statistics is not None:
+            from .planning import SummaryPilot
+
+            return SummaryPilot(loaded.summary_statistics, name)
+        reopened = saved.reopen(loaded)
         if reopened.prepared is None or reopened.status == "source_changed":
             raise OptionProblem(f"{name}: {reopened.message}")
         prepared = reopened.prepared
@@ -175,27 +183,72 @@ def _pilot_of(args, table, spec, groups, name: str):
 
 def plan_from_arguments(args):
     """The :class:`engine.planning.Plan` the flags describe."""
-    from .planning import Plan
+    return _planned(args)[0]
+
+
+def _planned(args):
+    """The plan the flags describe, with the summary statistics it took numbers from (or None)
+    and the names of the inputs it took from them."""
+    from .planning import Plan, SummaryPilot
 
     if args.pilot is None and any(getattr(args, flag) is not None for flag in ("value", "group", "groups", "sheet")):
         raise OptionProblem("--value, --group, --groups and --sheet name the columns of a pilot "
                             "file; give it with --pilot FILE.")
     question = _question(args)
-    find = _find(args, question.has_margin)
     pilot = _pilot(args) if args.pilot is not None else None
+    if isinstance(pilot, SummaryPilot):
+        return _from_summaries(args, question, pilot)
+    find = _find(args, question.has_margin)
     optional = {name: getattr(args, name) for name in ("procedure", "method", "shape", "simulations",
                                                        "ratio") if getattr(args, name) is not None}
     return Plan(find, difference=args.difference, sd=args.sd, sd2=args.sd2, n1=args.n, n2=args.n2,
                 power=args.power, question=question, design="paired" if args.paired else "independent",
-                seed=args.seed, unit=args.unit, pilot=pilot, **optional)
+                seed=args.seed, unit=args.unit, pilot=pilot, **optional), None, ()
+
+
+def _from_summaries(args, question, summaries):
+    """A plan from a pilot's summary statistics: their SDs always; the sizes when the power is
+    found and --n is not given; the difference observed (turned the way a one-sided question
+    asks) when --difference is not given and the question has no margin."""
+    from .planning import Plan
+
+    name = summaries.source
+    if args.sd is not None or args.sd2 is not None:
+        raise OptionProblem(f"{name} gives the SDs from its summary statistics; leave out --sd and "
+                            "--sd2, or leave out --pilot to give your own.")
+    procedure = args.procedure or ("z" if summaries.known else "welch")
+    summaries.refuse(procedure=procedure, design="paired" if args.paired else "independent",
+                     method=args.method or "auto", shape=args.shape or "normal")
+    if args.power is None:
+        find = "power"
+    else:
+        find = _find(args, question.has_margin) if args.n is not None else "n"
+    taken = ["sd1", "sd2"]
+    difference = args.difference
+    if difference is None and not question.has_margin and find != "difference":
+        difference = summaries.expected_difference(question.kind)
+        taken.append("difference")
+    sizes = {"n1": args.n, "n2": args.n2}
+    if find == "power" and args.n is None:
+        sizes = {"n1": summaries.sizes[0], "n2": summaries.sizes[1] if args.n2 is None else args.n2}
+        taken += ["n1"] + ([] if args.n2 is not None else ["n2"])
+    sd, sd2 = summaries.sds_for(procedure)
+    optional = {name: getattr(args, name) for name in ("method", "simulations", "ratio")
+                if getattr(args, name) is not None}
+    plan = Plan(find, difference=difference, sd=sd, sd2=sd2, power=args.power, question=question,
+                procedure=procedure, seed=args.seed, unit=args.unit, **sizes, **optional)
+    return plan, summaries, tuple(taken)
 
 
 def _finite(value: float | None) -> float | None:
     return None if value is None or not math.isfinite(value) else float(value)
 
 
-def plan_document(result, curve=None) -> dict[str, Any]:
-    """The ``--json`` document of a plan (members are added, never renamed)."""
+def plan_document(result, curve=None, summaries=None, taken: tuple[str, ...] = ()) -> dict[str, Any]:
+    """The ``--json`` document of a plan (members are added, never renamed); ``summaries``: the
+    pilot's summary statistics the plan took ``taken`` (input names) from, if so."""
+    from .plan_words import summary_notes
+
     plan = result.plan
     margin = plan.question.margin
     document = {
@@ -223,8 +276,9 @@ def plan_document(result, curve=None) -> dict[str, Any]:
         "method_words": result.method_words,
         "procedure_name": result.procedure_name,
         "sentence": result.sentence,
-        "notes": list(result.notes),
+        "notes": list(result.notes) + summary_notes(summaries, taken),
     }
+    document["inputs"]["summaries"] = None if summaries is None else {**summaries.to_dict(), "taken": list(taken)}
     if curve is not None:
         document["curve"] = {"over": curve.over, "x": curve.x.tolist(), "power": curve.power.tolist(),
                              "monte_carlo_se": None if curve.monte_carlo_se is None
@@ -232,17 +286,21 @@ def plan_document(result, curve=None) -> dict[str, Any]:
     return document
 
 
-def _readable(result, curve) -> list[str]:
-    from .plan_words import answer_lines
+def _readable(result, curve, summaries=None, taken: tuple[str, ...] = ()) -> list[str]:
+    from .plan_words import answer_lines, summary_lines, summary_notes
 
-    return answer_lines(result, curve)
+    lines = answer_lines(result, curve)
+    if summaries is None:
+        return lines
+    notes = [f"Note: {note}" for note in summary_notes(summaries, taken)]
+    return summary_lines(summaries, taken, result.plan.procedure) + notes + [""] + lines
 
 
 def run_plan(args, out: TextIO) -> None:
     """Run ``python -m engine plan`` with the parsed ``args``, writing to ``out``."""
     from .planning import plan_study, power_curve
 
-    plan = plan_from_arguments(args)
+    plan, summaries, taken = _planned(args)
     result = plan_study(plan)
     curve = None
     if args.curve is not None:
@@ -250,9 +308,9 @@ def run_plan(args, out: TextIO) -> None:
         curve = power_curve(plan.with_(seed=result.seed) if result.seed is not None else plan,
                             args.curve, **kwargs)
     if args.json:
-        json.dump(plan_document(result, curve), out, indent=2, allow_nan=False)
+        json.dump(plan_document(result, curve, summaries, taken), out, indent=2, allow_nan=False)
         out.write("\n")
         return
-    out.write("".join(visible(line) + "\n" for line in _readable(result, curve)))
+    out.write("".join(visible(line) + "\n" for line in _readable(result, curve, summaries, taken)))
 
 
