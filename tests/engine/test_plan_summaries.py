@@ -192,3 +192,23 @@ def test_the_summary_plan_document_follows_its_schema(tmp_path, raw):
     document["inputs"]["summaries"]["taken"] = ["the SDs"]
     with pytest.raises(jsonschema.ValidationError):
         validator.validate(document)
+
+
+def test_a_percentage_margin_is_of_group_2s_mean_in_the_pilot(tmp_path, raw):
+    s1, s2, _, _, _, _ = _raw_figures(raw)
+    mean2 = float(np.mean(raw.y))
+    expected = plan_study(Plan("n", sd=s1, sd2=s2, power=0.8,
+                               question=Question("equivalent", 0.95, Margin.within(0.03 * abs(mean2)))))
+    path = _saved(tmp_path, raw)
+    code, out, err = _run("--pilot", str(path), "--power", "0.8", "--equivalence-margin", "3%", "--json")
+    assert code == 0, err
+    document = json.loads(out)
+    assert document["inputs"]["margin"]["high"] == pytest.approx(0.03 * abs(mean2), rel=1e-12)
+    assert document["answer"]["n1"] == expected.n1
+    assert any(note.startswith("The margin: the margin -3% to 3% of group 2's mean") for note in document["notes"])
+    # a pilot of values: group 2's mean from its values
+    code, out, err = _run("--pilot", str(DEMO), "--value", "strength_mpa", "--group", "supplier",
+                          "--noninferiority-margin", "2%", "--worse", "lower", "--n", "20",
+                          "--simulations", "200", "--seed", "4", "--json")
+    assert code == 0, err
+    assert json.loads(out)["inputs"]["margin"]["low"] == pytest.approx(-0.02 * abs(mean2), rel=1e-12)
