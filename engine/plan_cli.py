@@ -19,7 +19,7 @@ from pathlib import Path
 from typing import Any, NamedTuple, TextIO
 
 from .column_flags import COLUMN_FLAGS, add_column_flags
-from .errors import OptionProblem
+from .errors import OptionProblem, quoted
 from .text import visible
 
 __all__ = ["add_plan_command", "run_plan", "plan_from_arguments", "plan_document"]
@@ -69,9 +69,12 @@ def add_plan_command(commands: Any) -> None:
                      help="how the values vary, for a simulation (default normal)")
     how.add_argument("--simulations", type=int, metavar="K", help="simulated studies (default 10000)")
     how.add_argument("--seed", type=int, help="seed of the simulation, for repeatable results")
-    pilot = plan.add_argument_group("pilot values (their spread and shape, resampled)")
+    pilot = plan.add_argument_group("pilot values (their spread and shape, resampled), or a pilot's "
+                                    "summary statistics (their SDs, sizes and difference)")
     pilot.add_argument("--pilot", type=Path, metavar="FILE",
-                       help="a data file of pilot values, or a saved analysis (.twofold) whose groups are the pilot")
+                       help="a data file of pilot values, or a saved analysis (.twofold) whose groups are the "
+                            "pilot; a saved analysis of summary statistics gives the SDs, and the sizes and "
+                            "difference when not given, with the normal-theory power")
     add_column_flags(pilot)
     out = plan.add_argument_group("output")
     out.add_argument("--unit", default="", help="the measurement's unit for the sentences, such as MPa")
@@ -230,11 +233,19 @@ def _from_summaries(args, question, summaries):
     if difference is None and not question.has_margin and find != "difference":
         difference = summaries.expected_difference(question.kind)
         taken.append("difference")
+        if difference == 0:
+            raise OptionProblem(f"{name}: the two means are the same, so there is no difference to take "
+                                "from them; give the difference that matters with --difference.")
     sizes = {"n1": args.n, "n2": args.n2}
     if find == "power" and args.n is None:
         sizes = {"n1": summaries.sizes[0], "n2": summaries.sizes[1] if args.n2 is None else args.n2}
         taken += ["n1"] + ([] if args.n2 is not None else ["n2"])
     sd, sd2 = summaries.sds_for(procedure)
+    for label, value in zip(summaries.labels, (sd, sd if sd2 is None else sd2)):
+        if value == 0:
+            said = "the pooled SD" if procedure == "pooled" else f"the SD of group '{quoted(label)}'"
+            raise OptionProblem(f"{name}: {said} is 0, so there is no spread to plan with; give the SD "
+                                "expected with --sd instead of --pilot.")
     optional = {name: getattr(args, name) for name in ("method", "simulations", "ratio")
                 if getattr(args, name) is not None}
     plan = Plan(find, difference=difference, sd=sd, sd2=sd2, power=args.power, question=question,

@@ -165,6 +165,21 @@ def test_what_needs_the_values_is_refused_in_one_line(tmp_path, raw, extra, mess
     assert err.count("\n") == 1 and message in err and "Traceback" not in err
 
 
+@pytest.mark.parametrize("stats, extra, message", [
+    (("A n=5 mean=1 sd=0", "B n=3 mean=2 sd=1"), (), "summary.twofold: the SD of group 'A' is 0"),
+    (("A n=5 mean=1 sd=2", "B n=3 mean=1 sd=1"), (), "summary.twofold: the two means are the same"),
+    (("A n=5 mean=1 sd=2", "B n=3 mean=1 sd=1"), ("--alternative", "less"), "the two means are the same"),
+])
+def test_summaries_with_nothing_to_plan_on_are_refused_naming_the_file(tmp_path, stats, extra, message):
+    path = tmp_path / "summary.twofold"
+    assert main(["analyze", "--summary", stats[0], "--summary", stats[1], "--save", str(path)],
+                out=io.StringIO(), err=io.StringIO()) == 0
+    code, out, err = _run("--pilot", str(path), *extra)
+    assert code == 2 and out == "" and err.count("\n") == 1 and message in err
+    code, out, err = _run("--pilot", str(path), "--difference", "1", "--sd", "2")
+    assert code == 2 and "leave out --sd" in err
+
+
 def test_the_summary_pilot_takes_the_pooled_sd_for_the_pooled_test(raw):
     stats = tuple(GroupStats.of_values(label, values) for label, values in zip(raw.labels, (raw.x, raw.y)))
     pilot = SummaryPilot(stats, "pilot")
