@@ -6,8 +6,9 @@ Two of the difference, the size and the power say what is found: ``--difference 
 column flags) takes the spread and shape from pilot values instead of ``--sd``; a saved analysis
 of summary statistics as the pilot gives the SDs, and the sizes and the difference where they are
 not given, with the normal-theory power (what would need the values, such as resampling or a
-rank test, is refused in one line). ``--curve`` adds the power along the size or the difference. Bad input ends with one line, as for the
-other commands (:mod:`engine.cli` prints it).
+rank test, is refused in one line). With a pilot of two groups a margin may be a percentage of
+group 2's mean. ``--curve`` adds the power along the size or the difference. Bad input ends with
+one line, as for the other commands (:mod:`engine.cli` prints it).
 """
 
 from __future__ import annotations
@@ -52,7 +53,7 @@ def add_plan_command(commands: Any) -> None:
                            "groups a %% after a number makes it a percentage of group 2's mean (5%%)")
     test.add_argument("--noninferiority-margin", metavar="M",
                       help="plan to show group 1 not worse than group 2 by more than M (with a --pilot "
-                           "of two groups, or a percentage of group 2's mean: 5%%)")
+                           "of two groups M may be a percentage of group 2's mean: 5%%)")
     test.add_argument("--worse", choices=("lower", "higher"),
                       help="with --noninferiority-margin: which direction is worse")
     test.add_argument("--paired", action="store_true",
