@@ -4,11 +4,11 @@ difference they can find, with a power curve.
 The inputs are filled in from the current comparison (its SDs, sizes, level, question and
 design), or from a comparison of summary statistics (:meth:`PlanPanel.fill_from_summaries`: its
 SDs, sizes and difference, with no values to resample), and can be changed freely; "from these
-data" resamples the comparison's own groups (:func:`engine.plan_member.analysis_pilot`). Every number comes from
-:func:`engine.planning.plan_study` and :func:`engine.planning.power_curve`, run in a worker with
-a progress bar and a Stop button whenever an input changes; a refused input is said in one line
-under the inputs. Copy puts the inputs, the sentence and the curve (as a table and as a picture)
-on the clipboard.
+data" resamples the comparison's own groups (:func:`engine.plan_member.analysis_pilot`). Every
+number comes from :func:`engine.planning.plan_study` and :func:`engine.planning.power_curve`,
+run in a worker with a progress bar and a Stop button whenever an input changes; a refused input
+is said in one line under the inputs. Copy puts the inputs, the sentence and the curve (as a table
+and as a picture) on the clipboard.
 
 Run on its own for a quick look: ``python -m desktop.plan_panel demo_files/bolt_strength.csv``.
 """

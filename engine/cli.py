@@ -17,6 +17,7 @@ from pathlib import Path
 from typing import Sequence, TextIO
 
 from . import outcomes_cli, plan_cli, question_flags, summary_cli
+from .column_flags import COLUMN_FLAGS, add_column_flags
 from .errors import TwofoldError, quoted
 from .text import visible
 from .wording import plural
@@ -43,18 +44,12 @@ class _Parser(argparse.ArgumentParser):
 # The analysis flags' defaults (None in the parser, so that flags given with --spec are noticed).
 DEFAULTS = {"alternative": "two-sided", "confidence": 0.95, "resamples": 10_000}
 # Flags that describe a new analysis; a saved one (--spec) already holds all of them.
-ANALYSIS_FLAGS = ("value", "group", "groups", "sheet", "alternative", "confidence", "resamples", "seed",
+ANALYSIS_FLAGS = COLUMN_FLAGS + ("alternative", "confidence", "resamples", "seed",
                   "known_sd", "equal_spreads_known", "ordinal") + question_flags.FLAGS
 
 
 def _analysis_flags(command: argparse.ArgumentParser) -> None:
-    command.add_argument("--value", action="append", metavar="COLUMN",
-                         help="the column of measurements; give it twice, once per group column, "
-                              "for a file with one column per group")
-    command.add_argument("--group", metavar="COLUMN", help="the column that says which group a row is in")
-    command.add_argument("--groups", nargs=2, metavar=("FIRST", "SECOND"),
-                         help="the two group labels to compare; every difference is FIRST minus SECOND")
-    command.add_argument("--sheet", help="the sheet of a workbook (default: the first)")
+    add_column_flags(command)
     command.add_argument("--alternative", choices=("two-sided", "less", "greater"),
                          help="two-sided (default): do the groups differ; less/greater: is the first "
                               "group lower/higher")

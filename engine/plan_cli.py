@@ -3,9 +3,12 @@
 Two of the difference, the size and the power say what is found: ``--difference D --sd S
 --power P`` the size per group; ``--difference D --sd S --n N`` the power; ``--sd S --n N
 --power P`` the smallest detectable difference. ``--pilot FILE`` (with the analyze command's
-column flags) takes the spread and shape from pilot values instead of ``--sd``. ``--curve``
-adds the power along the size or the difference. Bad input ends with one line, as for the
-other commands (:mod:`engine.cli` prints it).
+column flags) takes the spread and shape from pilot values instead of ``--sd``; a saved analysis
+of summary statistics as the pilot gives the SDs, and the sizes and the difference where they are
+not given, with the normal-theory power (what would need the values, such as resampling or a
+rank test, is refused in one line). With a pilot of two groups a margin may be a percentage of
+group 2's mean. ``--curve`` adds the power along the size or the difference. Bad input ends with
+one line, as for the other commands (:mod:`engine.cli` prints it).
 """
 
 from __future__ import annotations
@@ -14,29 +17,13 @@ import argparse
 import json
 import math
 from pathlib import Path
-from typing import Any, TextIO
+from typing import Any, NamedTuple, TextIO
 
-from .errors import OptionProblem
+from .column_flags import COLUMN_FLAGS, add_column_flags
+from .errors import OptionProblem, quoted
 from .text import visible
 
 __all__ = ["add_plan_command", "run_plan", "plan_from_arguments", "plan_document"]
-
-
-def _margin(text: str):
-    """``M`` (within -M to M) or ``LOW:HIGH``."""
-    from .question import Margin
-
-    if ":" in text:
-        low, _, high = text.partition(":")
-        return Margin.within(_float(low, "--equivalence-margin"), _float(high, "--equivalence-margin"))
-    return Margin.within(_float(text, "--equivalence-margin"))
-
-
-def _float(text: str, flag: str) -> float:
-    try:
-        return float(text)
-    except ValueError:
-        raise OptionProblem(f"{flag} takes a number, not '{text}'.") from None
 
 
 def add_plan_command(commands: Any) -> None:
@@ -62,9 +49,11 @@ def add_plan_command(commands: Any) -> None:
                       help="two-sided (default); less/greater: is group 1 lower/higher")
     test.add_argument("--equivalence-margin", metavar="M|LOW:HIGH",
                       help="plan to show equivalence within -M to M (or LOW to HIGH; a negative LOW "
-                           "goes after an equals sign: --equivalence-margin=-3:4)")
-    test.add_argument("--noninferiority-margin", type=float, metavar="M",
-                      help="plan to show group 1 not worse than group 2 by more than M")
+                           "goes after an equals sign: --equivalence-margin=-3:4); with a --pilot of two "
+                           "groups a %% after a number makes it a percentage of group 2's mean (5%%)")
+    test.add_argument("--noninferiority-margin", metavar="M",
+                      help="plan to show group 1 not worse than group 2 by more than M (with a --pilot "
+                           "of two groups M may be a percentage of group 2's mean: 5%%)")
     test.add_argument("--worse", choices=("lower", "higher"),
                       help="with --noninferiority-margin: which direction is worse")
     test.add_argument("--paired", action="store_true",
@@ -72,6 +61,7 @@ def add_plan_command(commands: Any) -> None:
     test.add_argument("--procedure", choices=("welch", "pooled", "z", "mann_whitney"),
                       help="welch (default), pooled, z (known SDs) or mann_whitney (paired: the "
                            "signed-rank test)")
+    plan.set_defaults(margin_as=None)  # a margin's unit follows its % (engine.question_flags reads it)
     how = plan.add_argument_group("how the power is found")
     how.add_argument("--method", choices=("auto", "exact", "approximation", "simulation"),
                      help="auto (default): exact for the t and z tests, simulation otherwise; "
@@ -80,16 +70,13 @@ def add_plan_command(commands: Any) -> None:
                      help="how the values vary, for a simulation (default normal)")
     how.add_argument("--simulations", type=int, metavar="K", help="simulated studies (default 10000)")
     how.add_argument("--seed", type=int, help="seed of the simulation, for repeatable results")
-    pilot = plan.add_argument_group("pilot values (their spread and shape, resampled)")
+    pilot = plan.add_argument_group("pilot values (their spread and shape, resampled), or a pilot's "
+                                    "summary statistics (their SDs, sizes and difference)")
     pilot.add_argument("--pilot", type=Path, metavar="FILE",
-                       help="a data file of pilot values, or a saved analysis (.twofold) whose groups are the pilot")
-    pilot.add_argument("--value", action="append", metavar="COLUMN",
-                       help="the column of measurements; give it twice for one column per group "
-                            "(paired: the two columns, one row per pair)")
-    pilot.add_argument("--group", metavar="COLUMN", help="the column that says which group a row is in")
-    pilot.add_argument("--groups", nargs=2, metavar=("FIRST", "SECOND"),
-                       help="the two group labels; every difference is FIRST minus SECOND")
-    pilot.add_argument("--sheet", help="the sheet of a workbook (default: the first)")
+                       help="a data file of pilot values, or a saved analysis (.twofold) whose groups are the "
+                            "pilot; a saved analysis of summary statistics gives the SDs, and the sizes and "
+                            "difference when not given, with the normal-theory power")
+    add_column_flags(pilot)
     out = plan.add_argument_group("output")
     out.add_argument("--unit", default="", help="the measurement's unit for the sentences, such as MPa")
     out.add_argument("--curve", choices=("n", "difference"),
@@ -100,24 +87,34 @@ def add_plan_command(commands: Any) -> None:
 
 
 def _question(args):
-    from .question import Margin, Question
+    """The question the flags ask; its margin parsed and checked as ``analyze`` does
+    (:func:`engine.question_flags.question_of`: one wording for every margin flag)."""
+    from .question_flags import question_of
 
     if args.level is not None and not 0 < args.level < 0.5:
         raise OptionProblem(f"--level is the test's level, above 0 and below 0.5, such as 0.05; "
                             f"not {args.level:g}.")
-    level = 1.0 - (0.05 if args.level is None else args.level)
-    if args.equivalence_margin is not None and args.noninferiority_margin is not None:
-        raise OptionProblem("Give --equivalence-margin or --noninferiority-margin, not both.")
-    if (args.worse is not None) != (args.noninferiority_margin is not None):
-        raise OptionProblem("--noninferiority-margin and --worse go together: say which direction is worse.")
-    margin_given = args.equivalence_margin is not None or args.noninferiority_margin is not None
-    if margin_given and args.alternative not in (None, "two-sided"):
-        raise OptionProblem("A margin question sets its own direction; leave --alternative out.")
-    if args.equivalence_margin is not None:
-        return Question("equivalent", level, _margin(args.equivalence_margin))
-    if args.noninferiority_margin is not None:
-        return Question("not_worse", level, Margin.not_worse_by(args.noninferiority_margin, args.worse))
-    return Question.from_alternative(args.alternative or "two-sided", level)
+    return question_of(args, args.alternative or "two-sided", 1.0 - (0.05 if args.level is None else args.level))
+
+
+def _in_units(question, pilot):
+    """The question with a percentage margin turned into the measurement's units, by group 2's
+    mean in the pilot; and the note that says so ("" when nothing was turned)."""
+    from .planning import SummaryPilot
+    from .question import Question
+
+    margin = question.margin
+    if margin is None or margin.unit != "percent":
+        return question, ""
+    if isinstance(pilot, SummaryPilot):
+        mean = pilot.stats[1].mean
+    elif pilot is not None and pilot.group2 is not None:
+        mean = float(pilot.group2.mean())
+    else:
+        flag = "--equivalence-margin" if question.kind == "equivalent" else "--noninferiority-margin"
+        raise OptionProblem(f"{flag}: a percentage is of group 2's mean, which the plan knows only from a "
+                            "--pilot of two groups; give the margin in the measurement's units.")
+    return Question(question.kind, question.level, margin.in_units(mean)), f"The margin: {margin.note(mean)}."
 
 
 def _find(args, has_margin: bool) -> str:
@@ -141,10 +138,16 @@ def _pilot(args):
 
     name = args.pilot.name
     if args.pilot.suffix.lower() == saved.EXTENSION:
-        if any(getattr(args, flag) is not None for flag in ("value", "group", "groups", "sheet")):
-            raise OptionProblem(f"{name} names its own columns and groups; leave out --value, "
-                                "--group, --groups and --sheet.")
-        reopened = saved.reopen(saved.load(args.pilot))
+        loaded = saved.load(args.pilot)
+        if any(getattr(args, flag) is not None for flag in COLUMN_FLAGS):
+            what = ("holds summary statistics, not columns" if loaded.summary_statistics is not None
+                    else "names its own columns and groups")
+            raise OptionProblem(f"{name} {what}; leave out --value, --group, --groups and --sheet.")
+        if loaded.summary_statistics is not None:
+            from .planning import SummaryPilot
+
+            return SummaryPilot(loaded.summary_statistics, name)
+        reopened = saved.reopen(loaded)
         if reopened.prepared is None or reopened.status == "source_changed":
             raise OptionProblem(f"{name}: {reopened.message}")
         prepared = reopened.prepared
@@ -175,27 +178,93 @@ def _pilot_of(args, table, spec, groups, name: str):
 
 def plan_from_arguments(args):
     """The :class:`engine.planning.Plan` the flags describe."""
-    from .planning import Plan
+    return _planned(args).plan
 
-    if args.pilot is None and any(getattr(args, flag) is not None for flag in ("value", "group", "groups", "sheet")):
+
+class _Planned(NamedTuple):
+    """A plan with what the command says beside it: the summary statistics it took numbers from
+    (or None), the names of the inputs taken from them, and notes of its own."""
+
+    plan: Any
+    summaries: Any = None
+    taken: tuple[str, ...] = ()
+    notes: tuple[str, ...] = ()
+
+
+def _planned(args) -> _Planned:
+    from .planning import Plan, SummaryPilot
+
+    if args.pilot is None and any(getattr(args, flag) is not None for flag in COLUMN_FLAGS):
         raise OptionProblem("--value, --group, --groups and --sheet name the columns of a pilot "
                             "file; give it with --pilot FILE.")
     question = _question(args)
-    find = _find(args, question.has_margin)
     pilot = _pilot(args) if args.pilot is not None else None
+    question, margin_note = _in_units(question, pilot)
+    notes = (margin_note,) if margin_note else ()
+    if isinstance(pilot, SummaryPilot):
+        plan, taken = _from_summaries(args, question, pilot)
+        return _Planned(plan, pilot, taken, notes)
+    find = _find(args, question.has_margin)
     optional = {name: getattr(args, name) for name in ("procedure", "method", "shape", "simulations",
                                                        "ratio") if getattr(args, name) is not None}
-    return Plan(find, difference=args.difference, sd=args.sd, sd2=args.sd2, n1=args.n, n2=args.n2,
-                power=args.power, question=question, design="paired" if args.paired else "independent",
-                seed=args.seed, unit=args.unit, pilot=pilot, **optional)
+    return _Planned(Plan(find, difference=args.difference, sd=args.sd, sd2=args.sd2, n1=args.n, n2=args.n2,
+                         power=args.power, question=question, design="paired" if args.paired else "independent",
+                         seed=args.seed, unit=args.unit, pilot=pilot, **optional), notes=notes)
+
+
+def _from_summaries(args, question, summaries):
+    """A plan from a pilot's summary statistics: their SDs always; the sizes when the power is
+    found and --n is not given; the difference observed (turned the way a one-sided question
+    asks) when --difference is not given and the question has no margin."""
+    from .planning import Plan
+
+    name = summaries.source
+    if args.sd is not None or args.sd2 is not None:
+        raise OptionProblem(f"{name} gives the SDs from its summary statistics; leave out --sd and "
+                            "--sd2, or leave out --pilot to give your own.")
+    procedure = args.procedure or ("z" if summaries.known else "welch")
+    summaries.refuse(procedure=procedure, design="paired" if args.paired else "independent",
+                     method=args.method or "auto", shape=args.shape or "normal")
+    if args.power is None:
+        find = "power"
+    else:
+        find = _find(args, question.has_margin) if args.n is not None else "n"
+    taken = ["sd1", "sd2"]
+    difference = args.difference
+    if difference is None and not question.has_margin and find != "difference":
+        difference = summaries.expected_difference(question.kind)
+        taken.append("difference")
+        if difference == 0:
+            raise OptionProblem(f"{name}: the two means are the same, so there is no difference to take "
+                                "from them; give the difference that matters with --difference.")
+    sizes = {"n1": args.n, "n2": args.n2}
+    if find == "power" and args.n is None:
+        sizes = {"n1": summaries.sizes[0], "n2": summaries.sizes[1] if args.n2 is None else args.n2}
+        taken += ["n1"] + ([] if args.n2 is not None else ["n2"])
+    sd, sd2 = summaries.sds_for(procedure)
+    for label, value in zip(summaries.labels, (sd, sd if sd2 is None else sd2)):
+        if value == 0:
+            said = "the pooled SD" if procedure == "pooled" else f"the SD of group '{quoted(label)}'"
+            raise OptionProblem(f"{name}: {said} is 0, so there is no spread to plan with; give the SD "
+                                "expected with --sd instead of --pilot.")
+    optional = {name: getattr(args, name) for name in ("method", "simulations", "ratio")
+                if getattr(args, name) is not None}
+    plan = Plan(find, difference=difference, sd=sd, sd2=sd2, power=args.power, question=question,
+                procedure=procedure, seed=args.seed, unit=args.unit, **sizes, **optional)
+    return plan, tuple(taken)
 
 
 def _finite(value: float | None) -> float | None:
     return None if value is None or not math.isfinite(value) else float(value)
 
 
-def plan_document(result, curve=None) -> dict[str, Any]:
-    """The ``--json`` document of a plan (members are added, never renamed)."""
+def plan_document(result, curve=None, summaries=None, taken: tuple[str, ...] = (),
+                  notes: tuple[str, ...] = ()) -> dict[str, Any]:
+    """The ``--json`` document of a plan (members are added, never renamed); ``summaries``: the
+    pilot's summary statistics the plan took ``taken`` (input names) from, if so; ``notes``: the
+    command's own, after the plan's."""
+    from .plan_words import summary_notes
+
     plan = result.plan
     margin = plan.question.margin
     document = {
@@ -223,8 +292,9 @@ def plan_document(result, curve=None) -> dict[str, Any]:
         "method_words": result.method_words,
         "procedure_name": result.procedure_name,
         "sentence": result.sentence,
-        "notes": list(result.notes),
+        "notes": list(result.notes) + summary_notes(summaries, taken) + list(notes),
     }
+    document["inputs"]["summaries"] = None if summaries is None else {**summaries.to_dict(), "taken": list(taken)}
     if curve is not None:
         document["curve"] = {"over": curve.over, "x": curve.x.tolist(), "power": curve.power.tolist(),
                              "monte_carlo_se": None if curve.monte_carlo_se is None
@@ -232,17 +302,23 @@ def plan_document(result, curve=None) -> dict[str, Any]:
     return document
 
 
-def _readable(result, curve) -> list[str]:
-    from .plan_words import answer_lines
+def _readable(result, curve, planned: _Planned) -> list[str]:
+    from .plan_words import answer_lines, summary_lines, summary_notes
 
-    return answer_lines(result, curve)
+    summaries, taken = planned.summaries, planned.taken
+    notes = [f"Note: {note}" for note in summary_notes(summaries, taken) + list(planned.notes)]
+    lines = answer_lines(result, curve)
+    if summaries is None:
+        return lines + notes
+    return summary_lines(summaries, taken, result.plan.procedure) + notes + [""] + lines
 
 
 def run_plan(args, out: TextIO) -> None:
     """Run ``python -m engine plan`` with the parsed ``args``, writing to ``out``."""
     from .planning import plan_study, power_curve
 
-    plan = plan_from_arguments(args)
+    planned = _planned(args)
+    plan = planned.plan
     result = plan_study(plan)
     curve = None
     if args.curve is not None:
@@ -250,9 +326,9 @@ def run_plan(args, out: TextIO) -> None:
         curve = power_curve(plan.with_(seed=result.seed) if result.seed is not None else plan,
                             args.curve, **kwargs)
     if args.json:
-        json.dump(plan_document(result, curve), out, indent=2, allow_nan=False)
+        json.dump(plan_document(result, curve, planned.summaries, planned.taken, planned.notes), out, indent=2, allow_nan=False)
         out.write("\n")
         return
-    out.write("".join(visible(line) + "\n" for line in _readable(result, curve)))
+    out.write("".join(visible(line) + "\n" for line in _readable(result, curve, planned)))
 
 

@@ -2,19 +2,22 @@
 answer in a few lines, and the power curve as a table. The command's text output and the
 window's copy both read them, so a plan reads the same wherever it is pasted from.
 
-The sentence for a protocol itself is :attr:`engine.planning.PlanResult.sentence`.
+The sentence for a protocol itself is :attr:`engine.planning.PlanResult.sentence`. A plan from a
+pilot's summary statistics says first which of its inputs came from them (:func:`summary_lines`)
+and adds their cautions (:func:`summary_notes`).
 """
 
 from __future__ import annotations
 
 from html import escape
 
-from .planning import PlanResult, PowerCurve
+from .planning import PlanResult, PowerCurve, SummaryPilot
 from .planning.sentence import power_text
 from .rounding import format_number, level_text
 from .text import visible, visible_html
 
-__all__ = ["input_rows", "answer_lines", "curve_rows", "plan_plain", "plan_html", "FIND_WORDS",
+__all__ = ["input_rows", "answer_lines", "curve_rows", "plan_plain", "plan_html", "summary_lines",
+           "summary_notes", "FIND_WORDS",
            "QUESTION_WORDS", "DESIGN_WORDS", "SHAPE_NAMES"]
 
 # What a plan works out, in words.
@@ -124,6 +127,40 @@ def answer_lines(result: PlanResult, curve: PowerCurve | None = None) -> list[st
         lines += ["", f"Power curve ({curve_heading(curve)}, power):"]
         lines += [f"  {x}  {p}" for x, p in curve_rows(curve)]
     return lines
+
+
+_TAKEN_WORDS = {"sd1": "the SDs", "n1": "the sizes", "difference": "the difference of the means"}
+
+
+def summary_lines(summaries: SummaryPilot, taken: tuple[str, ...], procedure: str = "welch") -> list[str]:
+    """What a plan took from a pilot's summary statistics: the groups as entered, then which
+    inputs came from them."""
+    origin = f" in {summaries.source}" if summaries.source else ""
+    lines = [f"From the summary statistics{origin}:"]
+    for number, (stats, sd) in enumerate(zip(summaries.stats, summaries.sds()), start=1):
+        lines.append(f"  group {number}, {stats.label}: n {stats.n}, mean {stats.mean:.12g}, SD {sd:.12g}"
+                     + (" (from its standard error)" if stats.given_as == "se" else "")
+                     + (" (known)" if stats.sd_known else ""))
+    words = [_TAKEN_WORDS[name] for name in ("sd1", "n1", "difference") if name in taken]
+    if procedure == "pooled" and "sd1" in taken:
+        words[0] = f"the SDs pooled ({format_number(summaries.pooled_sd)})"
+    lines.append("Taken from them: " + ", ".join(words) + ". The power is worked out under normal "
+                 "spread: summaries do not show the shape of the values, so nothing is resampled.")
+    return lines
+
+
+def summary_notes(summaries: SummaryPilot | None, taken: tuple[str, ...]) -> list[str]:
+    """The cautions of a plan that took numbers from a pilot's summary statistics (none without)."""
+    if summaries is None:
+        return []
+    n1, n2 = summaries.sizes
+    notes = [f"The pilot's SDs are estimates from {n1} and {n2} values: the power found carries "
+             "their uncertainty."]
+    if "difference" in taken:
+        notes.append(f"The difference to detect is the one the pilot showed "
+                     f"({format_number(summaries.difference)}); it is uncertain too, and a study "
+                     "planned on it alone may be too small if the true difference is smaller.")
+    return notes
 
 
 def curve_heading(curve: PowerCurve) -> str:

@@ -68,7 +68,7 @@ LAYERS: tuple[tuple[str, ...], ...] = (
     # the saved-analysis file (its several-outcomes member beside it), the window's session
     ("engine.saved", "engine.saved_outcomes", "engine.session"),
     # where the command may write a report; the command's question and design flags
-    ("engine.audit", "engine.question_flags"),
+    ("engine.audit", "engine.question_flags", "engine.column_flags"),
     # the headless command (planning's, summaries' and outcomes' parts below the rest)
     ("engine.plan_cli", "engine.summary_cli", "engine.outcomes_cli"),
     ("engine.cli",),

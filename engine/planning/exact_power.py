@@ -16,7 +16,24 @@ from dataclasses import dataclass
 
 from ..noncentral_t import nct_cdf
 
-__all__ = ["Spread", "spread", "power_of_shift", "test_shift"]
+__all__ = ["Spread", "spread", "power_of_shift", "test_shift", "root_mean_square"]
+
+
+def _scale(sd1: float, sd2: float) -> float:
+    """A power of two near the larger SD: the SDs are divided by it before they are squared, so
+    that SDs near 1e300 or 1e-300 give what they give in ordinary units (a power of two rounds
+    nothing, so ordinary SDs give the same bits as without it)."""
+    top = max(abs(sd1), abs(sd2))
+    if not math.isfinite(top) or top == 0.0:
+        return 1.0
+    return math.ldexp(1.0, math.frexp(top)[1])
+
+
+def root_mean_square(sd1: float, sd2: float) -> float:
+    """sqrt((sd1^2 + sd2^2) / 2), without overflow or underflow."""
+    scale = _scale(sd1, sd2)
+    a, b = sd1 / scale, sd2 / scale
+    return scale * math.sqrt((a * a + b * b) / 2.0)
 
 
 @dataclass(frozen=True)
@@ -39,13 +56,16 @@ def spread(procedure: str, design: str, sd1: float, sd2: float, n1: float, n2: f
     """
     if design == "paired":
         return Spread(sd1 / math.sqrt(n1), None if procedure == "z" else n1 - 1.0)
-    v1, v2 = sd1 * sd1 / n1, sd2 * sd2 / n2
-    if procedure == "z":
-        return Spread(math.sqrt(v1 + v2), None)
     if procedure == "pooled":
         return Spread(sd1 * math.sqrt(1.0 / n1 + 1.0 / n2), n1 + n2 - 2.0)
+    scale = _scale(sd1, sd2)
+    a, b = sd1 / scale, sd2 / scale
+    v1, v2 = a * a / n1, b * b / n2  # the variances of the means over scale^2
+    se = scale * math.sqrt(v1 + v2)
+    if procedure == "z":
+        return Spread(se, None)
     df = (v1 + v2) ** 2 / (v1 * v1 / (n1 - 1.0) + v2 * v2 / (n2 - 1.0))
-    return Spread(math.sqrt(v1 + v2), df)
+    return Spread(se, df)
 
 
 def _upper(nc: float, critical: float, df: float | None) -> float:

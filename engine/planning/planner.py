@@ -24,7 +24,7 @@ from ..results import readonly_array
 from ..root_finding import brent_root
 from ..tasks import CancelCheck, Progress, Task
 from .equivalence_power import equivalence_power
-from .exact_power import power_of_shift, spread, test_shift
+from .exact_power import power_of_shift, root_mean_square, spread, test_shift
 from .plan import MAX_N, MIN_N, Plan
 from .rank_approximation import noether_power, probability_greater
 from .result import CURVE_AXES, PlanResult, PowerCurve
@@ -335,7 +335,7 @@ def plan_study(plan: Plan, *, progress: Progress | Task | None = None,
     power, se = powers.at(n1, n2, difference, task.step(1.0, "the power at the answer"))
     task.report(1.0)
     sd1, sd2 = powers.sd1, powers.sd2
-    standardiser = sd1 if plan.design == "paired" else math.sqrt((sd1 * sd1 + sd2 * sd2) / 2.0)
+    standardiser = sd1 if plan.design == "paired" else root_mean_square(sd1, sd2)
     formula_power = powers.formula(n1, n2, difference) if powers.simulated else None
     formula_words = ""
     if formula_power is not None:

@@ -96,9 +96,9 @@ class SummaryPilot:
                                 "statistics do not show; plan the Welch, pooled or z test from them, or "
                                 "take the values themselves as the pilot.")
         if shape != "normal" or method == "simulation":
-            raise OptionProblem("From summary statistics the power is worked out under normal spread; a "
-                                "simulation of another shape would rest on values they do not show (give "
-                                "the SDs with --sd to assume a shape).")
+            raise OptionProblem("From summary statistics the power is worked out by the normal-theory "
+                                "formulas; a simulation would rest on a shape of the values they do not "
+                                "show (give the SDs with --sd to simulate a shape assumed).")
 
     def expected_difference(self, kind: str) -> float:
         """The difference a plan of a question of ``kind`` takes when none is given: the one

@@ -259,3 +259,20 @@ def test_power_is_never_overstated_in_words():
     assert power_text(0.80999) == "80.9%"
     assert power_text(0.8) == "80%"
     assert power_text(0.79996) == "79.9%"
+
+
+@pytest.mark.parametrize("procedure", ["welch", "z"])
+@pytest.mark.parametrize("scale", [2.0**990, 2.0**-1000])
+def test_sds_near_the_ends_of_the_number_range_give_the_power_of_ordinary_units(procedure, scale):
+    # the power depends on the difference over the SDs alone: at SDs near 1e298 (whose squares
+    # overflow) or 1e-301 (whose squares vanish) it is the power in ordinary units
+    ordinary = plan_study(Plan("power", difference=2.0, sd=1.0, sd2=10.0, n1=5, n2=3, procedure=procedure))
+    far = plan_study(Plan("power", difference=2.0 * scale, sd=scale, sd2=10.0 * scale, n1=5, n2=3,
+                          procedure=procedure))
+    assert far.power == pytest.approx(ordinary.power, rel=1e-12)
+    assert far.effect == pytest.approx(ordinary.effect, rel=1e-12)
+    # and, by scipy.stats.norm, the z-test's power in ordinary units
+    if procedure == "z":
+        se = math.sqrt(1.0 / 5 + 100.0 / 3)
+        reference = stats.norm.sf(stats.norm.isf(0.025) - 2.0 / se) + stats.norm.cdf(-stats.norm.isf(0.025) - 2.0 / se)
+        assert ordinary.power == pytest.approx(reference, abs=1e-12)
