@@ -11,7 +11,6 @@ from __future__ import annotations
 
 import math
 
-from ..question import Margin
 from ..side_by_side import alpha_number
 from ..rounding import entered_decimals, fixed, p_clause, shared_decimals
 from .numbers import _numbers, _summary_decimals, level_text, margin_decimals
