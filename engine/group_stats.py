@@ -20,14 +20,22 @@ import numpy as np
 from .errors import DataProblem, quoted
 from .stats_basics import centred_sd, common_scale
 
-__all__ = ["GroupStats", "parse_stats", "SPREAD_NAMES"]
+__all__ = ["GroupStats", "parse_stats", "plain_number", "SPREAD_NAMES", "LARGEST_COUNT"]
 
 # How the spread of a group may be given, as the short form and the reader name it.
 SPREAD_NAMES = ("sd", "se")
+# The largest count n taken: beyond 2^53 a float64 no longer holds every whole number, so the
+# count would not be the one entered by the time the formulas use it.
+LARGEST_COUNT = 2 ** 53
 
 
 def _is_number(value: object) -> bool:
     return isinstance(value, (int, float, np.integer, np.floating)) and not isinstance(value, (bool, np.bool_))
+
+
+def _shown(value: object) -> str:
+    """A number as a message shows it; anything else as Python writes it, quoted to a length."""
+    return quoted(str(value) if _is_number(value) else repr(value))
 
 
 @dataclass(frozen=True)
@@ -51,8 +59,10 @@ class GroupStats:
         if not isinstance(label, str) or not label.strip():
             raise DataProblem("Each group of summary statistics needs a label.")
         name = f"group '{quoted(label)}'"
-        if not (isinstance(self.n, (int, np.integer)) and not isinstance(self.n, bool)) or self.n < 2:
-            raise DataProblem(f"The count n of {name} must be a whole number of 2 or more, not {self.n!r}.")
+        if not (isinstance(self.n, (int, np.integer)) and not isinstance(self.n, bool)) \
+                or not 2 <= self.n <= LARGEST_COUNT:
+            raise DataProblem(f"The count n of {name} must be a whole number of 2 or more, up to "
+                              f"{LARGEST_COUNT:,} (2^53), not {_shown(self.n)}.")
         object.__setattr__(self, "n", int(self.n))
         if not _is_number(self.mean) or not math.isfinite(self.mean):
             raise DataProblem(f"The mean of {name} must be a finite number, not {self.mean!r}.")
@@ -110,6 +120,24 @@ class GroupStats:
 _KEYS = ("n", "mean", "sd", "se")
 
 
+def plain_number(text: str, *, whole: bool = False) -> float | int:
+    """The number written in ``text``: digits 0-9, a sign, a decimal point and an exponent (and
+    the words nan and inf, which the checks of :class:`GroupStats` then refuse by name).
+    Python's own readers also take underscores between digits and digits of other scripts;
+    neither is how a count or a mean is written, and "1_000" is more likely a slip than a
+    thousand, so both are refused. ``whole``: an integer (no point, no exponent).
+
+    Raises
+    ------
+    ValueError
+        For any other text.
+    """
+    text = text.strip()
+    if not text.isascii() or "_" in text:
+        raise ValueError(text)
+    return int(text) if whole else float(text)
+
+
 def parse_stats(text: str, *, sd_known: bool = False) -> GroupStats:
     """One group from its short form: the label first, then ``n=``, ``mean=`` and ``sd=`` or
     ``se=``, separated by spaces (``"A n=12 mean=41.2 sd=3.1"``; a label with spaces in quotes
@@ -147,7 +175,7 @@ def parse_stats(text: str, *, sd_known: bool = False) -> GroupStats:
     numbers: dict[str, Any] = {}
     for name, value in found.items():
         try:
-            numbers[name] = int(value) if name == "n" else float(value)
+            numbers[name] = plain_number(value, whole=name == "n")
         except ValueError:
             kind = "a whole number" if name == "n" else "a number"
             raise DataProblem(f"'{shown}': {name}= must be {kind}, not '{quoted(value)}'.") from None

@@ -23,11 +23,12 @@ import numpy as np
 
 from . import multiplicity, pipeline
 from .draw_log import DrawLog
-from .errors import Cancelled, ColumnProblem, OptionProblem, TwofoldError, quoted
+from .errors import Cancelled, ColumnProblem, DataProblem, OptionProblem, TwofoldError, quoted
 from .procedures import registry
 from .results import EffectSize, Finding, Interval, ProcedureResult
 from .spec import AnalysisSpec
 from .tasks import CancelCheck, Progress, Task
+from .wording import plural
 
 __all__ = ["Outcome", "OutcomeResult", "OutcomeRow", "OutcomesAnalysis", "analyze_outcomes",
            "outcomes_from_file", "long_outcomes", "wide_outcomes", "STANDARDISED", "ADJUSTMENTS"]
@@ -213,7 +214,11 @@ def _check_columns(table, outcomes: Sequence[Outcome], spec: AnalysisSpec) -> No
     if len(set(names)) != len(names):
         raise OptionProblem("Two outcomes share a name; give each its own.")
     columns = set(table.frame.columns)
+    file = table.path.name
     wanted = 1 if spec.layout == "long" else 2
+    if spec.layout == "long" and spec.group_column is not None and spec.group_column not in columns:
+        raise ColumnProblem(f"{file}: there is no group column '{quoted(spec.group_column)}'.")
+    compared: dict[tuple[str, ...], str] = {}
     for outcome in outcomes:
         if len(outcome.columns) != wanted:
             raise OptionProblem(f"In the {spec.layout} layout each outcome takes {wanted} "
@@ -221,10 +226,37 @@ def _check_columns(table, outcomes: Sequence[Outcome], spec: AnalysisSpec) -> No
                                 f"{len(outcome.columns)}.")
         for column in outcome.columns:
             if column not in columns:
-                raise ColumnProblem(f"{table.path.name}: there is no column '{quoted(column)}'.")
+                raise ColumnProblem(f"{file}: there is no column '{quoted(column)}'.")
+        if len(set(outcome.columns)) < len(outcome.columns):
+            raise ColumnProblem(f"{file}: the outcome '{quoted(outcome.name)}' names the column "
+                                f"'{quoted(outcome.columns[0])}' for both groups; give one column per group.")
+        if outcome.columns in compared:
+            raise ColumnProblem(f"{file}: the outcomes '{quoted(compared[outcome.columns])}' and "
+                                f"'{quoted(outcome.name)}' compare the same "
+                                f"column{'s' if wanted > 1 else ''}; keep one, or the adjustment "
+                                "counts it twice.")
+        compared[outcome.columns] = outcome.name
     if spec.layout == "long" and spec.group_column in {c for o in outcomes for c in o.columns}:
-        raise ColumnProblem(f"{table.path.name}: the group column '{quoted(spec.group_column)}' "
+        raise ColumnProblem(f"{file}: the group column '{quoted(spec.group_column)}' "
                             "cannot also be an outcome.")
+
+
+def _check_some_analysed(done: Sequence[OutcomeResult], file: str) -> None:
+    """Refuse a run in which no outcome could be analysed (a table of reasons alone answers
+    nothing): one line with the first outcome's reason, which names what went wrong for all of
+    them when the cause is shared (three groups in the group column, a group label not there)."""
+    if not done or any(d.prepared is not None for d in done):
+        return
+    first = done[0]
+    reason = first.problem or "it could not be analysed."
+    if file not in reason:
+        reason = f"{file}: {reason}"
+    others = sum(d.problem != first.problem for d in done[1:])
+    more = (f" ({plural(others, 'other outcome')} could not be analysed for "
+            f"{'another reason' if others == 1 else 'other reasons'}.)" if others else "")
+    lead = ("" if len(done) == 1 else f"None of the {len(done)} outcomes could be analysed; "
+            f"'{quoted(first.outcome.name)}': ")
+    raise DataProblem(lead + reason + more)
 
 
 def _rerun(prepared: pipeline.Prepared, key: str, level: float) -> ProcedureResult | None:
@@ -335,6 +367,7 @@ def analyze_outcomes(
         done.append(result)
         if on_outcome is not None:
             on_outcome(result)
+    _check_some_analysed(done, table.path.name)
     task.report(1.0, "done")
     p_values = [d.p_value for d in done]
     tested = sum(p is not None for p in p_values)

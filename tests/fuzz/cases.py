@@ -92,8 +92,11 @@ def _table(rng: random.Random, cells: int = 200_000, max_columns: int | None = N
            ) -> tuple[list[object], list[list[object]]]:
     """A long (label, value) or wide (one column per group) table, with the usual troubles.
 
-    ``cells`` bounds the size: very wide tables get fewer rows.
+    ``cells`` bounds the size: very wide tables get fewer rows. One table in ten is a file of
+    two groups' summary statistics instead (see :func:`_summary_table`).
     """
+    if rng.random() < 0.1:
+        return _summary_table(rng)
     label_pool = rng.sample(_LABELS, 2) if rng.random() < 0.4 else rng.choice(
         [["A", "B"], ["treated", "control"], ["north_forge", "south_forge"]])
     n_groups = rng.choice([1, 2, 2, 2, 2, 3, 5]) if rng.random() < 0.3 else 2
@@ -147,6 +150,41 @@ def _table(rng: random.Random, cells: int = 200_000, max_columns: int | None = N
     if rng.random() < 0.1:  # duplicated names
         header = [header[0]] * len(header)
     return header, rows[:max(3, cells // max(len(header), 1))]
+
+
+_SUMMARY_HEADERS = [
+    ["label", "n", "mean", "sd"], ["group", "N", "Mean", "SD"], ["name", "n", "mean", "se"],
+    ["label", "n", "mean", "sd", "sd_known"], ["supplier", "n", "mean", "sd"], [" Label ", " n", "MEAN ", "sd"],
+    ["label", "n", "N", "mean", "sd"], ["label", "n", "mean", "sd", "se"], ["label", "n", "mean"],
+    ["n", "mean", "sd"], ["label", "label", "n", "mean", "sd"], ["", "n", "mean", "sd"],
+]
+_COUNTS = ["12", "15", "2", "1", "0", "-3", "12.5", "1e3", "1_000", "12,000", "9007199254740993",
+           "1" * 30, "1e30", "nan", "", "twelve", "١٢", "TRUE"]
+_KNOWN = ["yes", "no", "true", "1", "0", "", "maybe", "YES"]
+
+
+def _summary_table(rng: random.Random) -> tuple[list[object], list[list[object]]]:
+    """A file of two groups' summary statistics (label, n, mean, sd or se, perhaps sd_known),
+    with odd headers, too few or too many rows, and odd counts, means and spreads."""
+    header: list[object] = list(rng.choice(_SUMMARY_HEADERS[:6] if rng.random() < 0.7 else _SUMMARY_HEADERS))
+    n_rows = 2 if rng.random() < 0.8 else rng.choice([0, 1, 3, 50])
+    rows: list[list[object]] = []
+    for i in range(n_rows):
+        row: list[object] = []
+        for name in header:
+            role = str(name).strip().lower()
+            if role in ("label", "group", "name", "supplier", ""):
+                row.append(rng.choice(_LABELS) if rng.random() < 0.15 else f"lot {i + 1}")
+            elif role == "n":
+                row.append(rng.choice(_COUNTS) if rng.random() < 0.15 else rng.choice([5, 12, 30, 200]))
+            elif role == "sd_known":
+                row.append(rng.choice(_KNOWN))
+            else:
+                centre, spread = _scale(rng)
+                number = centre if role == "mean" else spread
+                row.append(rng.choice(_SPECIAL_NUMBERS) if rng.random() < 0.08 else number)
+        rows.append(row)
+    return header, rows
 
 
 def _filler(rng: random.Random, filler: str, number: int) -> object:

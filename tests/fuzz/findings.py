@@ -87,12 +87,13 @@ def problems_of(result: dict) -> list[Problem]:
 
 
 def verdict_of(result: dict) -> str:
-    """clean, typed error, crash or hang: the worst of the case's commands."""
+    """clean, typed error, crash or hang: the worst of the case's commands (a refusal the
+    command was expected to give, as of a data table read as summaries, is not counted)."""
     if result["hung"]:
         return "hang"
     if result["died"] or any(o["result"] == "crash" for o in result["outcomes"] or ()):
         return "crash"
-    if any(o["result"] == "typed" for o in result["outcomes"] or ()):
+    if any(o["result"] == "typed" and not o.get("refusal_expected") for o in result["outcomes"] or ()):
         return "typed error"
     return "clean"
 
