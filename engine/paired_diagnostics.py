@@ -14,7 +14,7 @@ from typing import Any
 
 import numpy as np
 
-from .diagnostics import (CHECK_ALPHA, FAR_FENCE, HEAVY_TIES, MILD_FENCE, OUTLIER_SURPRISE,
+from .diagnostics import (CHECK_ALPHA, FAR_FENCE, HEAVY_TIES, MILD_FENCE,
                           SHAPIRO_MAX_N, SHAPIRO_MIN_N, SHAPIRO_SMALL_N, SKEW_MATERIAL,
                           GroupShape, is_clearly_skewed, is_heavy_tailed, sample_shape)
 from .procedures.paired import common_difference, paired_values

@@ -9,7 +9,7 @@ resampling procedures and the checks of shape, spread, outliers and ties.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field, replace
+from dataclasses import dataclass, replace
 from typing import Any, Mapping, Sequence
 
 import numpy as np
@@ -23,7 +23,7 @@ from .margin_advice import CLOSEST
 from .procedures import registry
 from .question import Margin, MarginAnswer
 from .results import EffectSize, Finding, ProcedureResult, frozen_mapping
-from .spec import AnalysisSpec, Statements
+from .spec import AnalysisSpec
 from .tasks import CancelCheck, Progress, Task
 
 __all__ = ["SummaryAnalysis", "analyze_summaries", "MEAN_EFFECTS"]

@@ -20,7 +20,7 @@ from typing import Any
 from ..rounding import entered_decimals, fixed, format_number, shared_decimals
 from ..side_by_side import agreement_text, margin_agreement_text, margin_table, procedure_table
 from ..text import visible_html
-from ..wording import capital, plural
+from ..wording import capital
 from . import tables
 from .cautions import CAUTIONS_ALWAYS, HEADING as CAUTIONS_HEADING, cautions
 from .margins import margin_question, margin_tests
